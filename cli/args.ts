@@ -1,0 +1,123 @@
+/**
+ * Argument parsing shared by every command: node:util parseArgs for the
+ * syntax, zod for the values. Failures are usage errors (exit 2).
+ *
+ * @module
+ */
+import { parseArgs, type ParseArgsConfig } from "node:util";
+import { z } from "zod";
+import { QuiverError } from "../lib/errors.ts";
+import { parseDecimal } from "../lib/io/numbers.ts";
+
+/** Option definitions in parseArgs form. */
+export type OptionSpec = NonNullable<ParseArgsConfig["options"]>;
+
+/** Options every command accepts. */
+export const COMMON_OPTIONS: OptionSpec = {
+  help: { type: "boolean", short: "h" },
+  debug: { type: "boolean" },
+};
+
+/** Parsed, validated arguments of a command. */
+export interface ParsedArgs<T> {
+  /** Positional arguments. */
+  readonly positionals: string[];
+  /** Validated option values. */
+  readonly values: T;
+}
+
+/** Raises a usage error. */
+export function usageError(message: string): never {
+  throw new QuiverError(message, {}, "usage");
+}
+
+/**
+ * Parses `argv` against the option spec, then validates the values with the
+ * zod schema (whose keys are the option names).
+ *
+ * @throws {QuiverError} (usage) for unknown options, missing values or values
+ * the schema refuses.
+ */
+export function parseCommandArgs<S extends z.ZodType>(
+  argv: readonly string[],
+  spec: OptionSpec,
+  schema: S,
+): ParsedArgs<z.infer<S>> {
+  let parsed;
+  try {
+    parsed = parseArgs({
+      args: [...argv],
+      options: { ...COMMON_OPTIONS, ...spec },
+      allowPositionals: true,
+      strict: true,
+    });
+  } catch (error) {
+    usageError(error instanceof Error ? error.message.split("\n")[0] : String(error));
+  }
+  const { help: _help, debug: _debug, ...rest } = parsed.values;
+  const result = schema.safeParse(rest);
+  if (!result.success) {
+    const issue = result.error.issues[0];
+    const name = issue.path.map(String).join(".");
+    usageError(name === "" ? issue.message : `--${name}: ${issue.message}`);
+  }
+  return { positionals: parsed.positionals, values: result.data };
+}
+
+/**
+ * A zod schema reading a decimal number from an option string. Refuses the
+ * empty string, NaN, Infinity and trailing text, which `Number()` would not.
+ *
+ * @example
+ * ```ts
+ * import { numberOption } from "./args.ts";
+ * if (numberOption().parse(" 0.75 ") !== 0.75) throw new Error();
+ * if (numberOption().safeParse("1x").success) throw new Error();
+ * ```
+ */
+export function numberOption() {
+  return z.string().transform((text, context) => {
+    const value = parseDecimal(text.trim(), ".");
+    if (value === undefined || !Number.isFinite(value)) {
+      context.addIssue({ code: "custom", message: `"${text}" is not a number` });
+      return z.NEVER;
+    }
+    return value;
+  });
+}
+
+/**
+ * A zod schema reading a positive integer from an option string.
+ *
+ * @example
+ * ```ts
+ * import { integerOption } from "./args.ts";
+ * if (integerOption().parse("4096") !== 4096) throw new Error();
+ * if (integerOption().safeParse("40.5").success) throw new Error();
+ * ```
+ */
+export function integerOption() {
+  return numberOption().pipe(
+    z.number().int("must be a whole number").positive("must be positive"),
+  );
+}
+
+/**
+ * A zod schema reading a comma-separated list of names.
+ *
+ * @example
+ * ```ts
+ * import { listOption } from "./args.ts";
+ * if (listOption().parse("a, b").join() !== "a,b") throw new Error();
+ * ```
+ */
+export function listOption() {
+  return z.string().transform((text, context) => {
+    const names = text.split(",").map((s) => s.trim());
+    if (names.some((n) => n === "")) {
+      context.addIssue({ code: "custom", message: `"${text}" has an empty name` });
+      return z.NEVER;
+    }
+    return names;
+  });
+}

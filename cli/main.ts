@@ -1,0 +1,78 @@
+/**
+ * The quiver command line: `deno run -A cli/main.ts <command> [options]`.
+ *
+ * Exit codes: 0 success, 1 bad data, 2 wrong usage, 3 internal error.
+ * Errors print one line without a stack trace unless `--debug` is given.
+ *
+ * @module
+ */
+import process from "node:process";
+import { QuiverError } from "../lib/errors.ts";
+import * as spectrum from "./spectrum.ts";
+
+interface Command {
+  summary: string;
+  help: string;
+  run(argv: readonly string[]): Promise<void>;
+}
+
+const COMMANDS: Readonly<Record<string, Command>> = { spectrum };
+
+const MAIN_HELP = `quiver: NVH test data from raw time histories to trustworthy numbers
+
+Usage: quiver <command> [options]      (quiver <command> --help for details)
+
+Commands:
+${Object.entries(COMMANDS).map(([name, c]) => `  ${name.padEnd(12)} ${c.summary}`).join("\n")}
+
+Every command takes --help, and --debug to show a stack trace on error.
+Exit codes: 0 done, 1 bad data, 2 wrong usage, 3 internal error.
+`;
+
+/** Runs quiver with the given arguments and returns the exit code. */
+export async function main(argv: readonly string[]): Promise<number> {
+  const debug = argv.includes("--debug");
+  const [name, ...rest] = argv;
+  if (name === undefined || name === "--help" || name === "-h" || name === "help") {
+    process.stdout.write(MAIN_HELP);
+    return name === undefined ? 2 : 0;
+  }
+  const command = COMMANDS[name];
+  if (command === undefined) {
+    process.stderr.write(`quiver: unknown command "${name}"\n\n${MAIN_HELP}`);
+    return 2;
+  }
+  if (rest.includes("--help") || rest.includes("-h")) {
+    process.stdout.write(command.help);
+    return 0;
+  }
+  try {
+    await command.run(rest);
+    return 0;
+  } catch (error) {
+    return report(error, name, debug);
+  }
+}
+
+function report(error: unknown, command: string, debug: boolean): number {
+  if (debug && error instanceof Error && error.stack !== undefined) {
+    process.stderr.write(`${error.stack}\n`);
+  }
+  if (error instanceof QuiverError) {
+    process.stderr.write(`quiver ${command}: ${error.message}\n`);
+    return error.kind === "usage" ? 2 : 1;
+  }
+  if (error instanceof RangeError || error instanceof TypeError && !(error.stack ?? "").includes("node_modules")) {
+    process.stderr.write(`quiver ${command}: ${error.message}\n`);
+    return 2;
+  }
+  const message = error instanceof Error ? error.message : String(error);
+  process.stderr.write(
+    `quiver ${command}: internal error: ${message}${debug ? "" : " (run with --debug for the stack trace)"}\n`,
+  );
+  return 3;
+}
+
+if (import.meta.main) {
+  process.exitCode = await main(process.argv.slice(2));
+}

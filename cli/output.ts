@@ -1,0 +1,52 @@
+/**
+ * Where a command's table goes: a file (written atomically) or stdout.
+ *
+ * @module
+ */
+import process from "node:process";
+import { QuiverError } from "../lib/errors.ts";
+import { writeFileAtomic } from "../lib/io/atomic_write.ts";
+import { formatCsv, formatJson, type Table } from "../lib/io/table.ts";
+
+/** Output formats of table-writing commands. */
+export type TableFormat = "csv" | "json";
+
+/**
+ * The format to write: the one asked for, else JSON for a `.json` path, else CSV.
+ *
+ * @example
+ * ```ts
+ * import { resolveFormat } from "./output.ts";
+ * if (resolveFormat(undefined, "s.json") !== "json") throw new Error();
+ * ```
+ */
+export function resolveFormat(
+  format: TableFormat | undefined,
+  out: string | undefined,
+): TableFormat {
+  if (format !== undefined) return format;
+  return out !== undefined && out.toLowerCase().endsWith(".json") ? "json" : "csv";
+}
+
+/** Writes the table to `out` atomically, or to stdout when `out` is undefined. */
+export async function writeTable(
+  table: Table,
+  format: TableFormat,
+  out: string | undefined,
+): Promise<void> {
+  const text = format === "json" ? formatJson(table) : formatCsv(table);
+  if (out === undefined) {
+    process.stdout.write(text);
+    return;
+  }
+  try {
+    await writeFileAtomic(out, text);
+  } catch (error) {
+    const code = (error as { code?: string }).code;
+    throw new QuiverError(
+      `cannot write: ${code === "ENOENT" ? "the folder does not exist" : error instanceof Error ? error.message : String(error)}`,
+      { file: out },
+      "usage",
+    );
+  }
+}

@@ -1,0 +1,49 @@
+/**
+ * The options every command that reads a recording shares.
+ *
+ * @module
+ */
+import { z } from "zod";
+import type { ReadRecordingOptions } from "../lib/io/read_recording.ts";
+import { numberOption, type OptionSpec } from "./args.ts";
+
+/** parseArgs spec of the recording options. */
+export const RECORDING_OPTIONS: OptionSpec = {
+  rate: { type: "string" },
+  setup: { type: "string" },
+  delimiter: { type: "string" },
+  decimal: { type: "string" },
+};
+
+/** zod shape of the recording options. */
+export const recordingOptionsShape = {
+  rate: numberOption().pipe(z.number().positive("must be a positive number of Hz")).optional(),
+  setup: z.string().optional(),
+  delimiter: z.enum(["auto", "comma", "semicolon", "tab"]).optional(),
+  decimal: z.enum(["auto", "point", "comma"]).optional(),
+};
+
+/** Help lines for the recording options. */
+export const RECORDING_HELP = `Reading the recording:
+  --rate HZ            sample rate, needed when the CSV has no time_s/time column
+                       (checked against the column when it has one; WAV states its own)
+  --setup FILE.json    channel set-up: units, sensitivities, roles (see DEVELOPERS.md)
+  --delimiter D        auto | comma | semicolon | tab            (default auto)
+  --decimal M          auto | point | comma                      (default auto)`;
+
+/** Converts validated recording options to reader options. */
+export function toReadOptions(values: {
+  rate?: number;
+  setup?: string;
+  delimiter?: "auto" | "comma" | "semicolon" | "tab";
+  decimal?: "auto" | "point" | "comma";
+}): ReadRecordingOptions {
+  const delimiters = { auto: "auto", comma: ",", semicolon: ";", tab: "\t" } as const;
+  const decimals = { auto: "auto", point: ".", comma: "," } as const;
+  return {
+    ...(values.rate !== undefined ? { rate: values.rate } : {}),
+    ...(values.setup !== undefined ? { setup: values.setup } : {}),
+    delimiter: delimiters[values.delimiter ?? "auto"],
+    decimal: decimals[values.decimal ?? "auto"],
+  };
+}

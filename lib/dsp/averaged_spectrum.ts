@@ -1,0 +1,113 @@
+/**
+ * Averaged auto spectra of a recording's channels, as a table: the analysis
+ * behind the `spectrum` command.
+ *
+ * @module
+ */
+import { QuiverError } from "../errors.ts";
+import { type Recording, recordingLength, selectChannels } from "../io/recording.ts";
+import type { Table, TableColumn } from "../io/table.ts";
+import {
+  blockForResolution,
+  type SpectralOptions,
+  spectralEstimate,
+} from "./spectral_core.ts";
+import { autoSpectrum, type SpectrumKind, spectrumUnit } from "./spectrum_kinds.ts";
+import { WINDOW_DEFINITIONS, windowGains, windowSamples } from "./windows.ts";
+
+/** Default block length when neither block nor resolution is given. */
+export const DEFAULT_BLOCK = 4096;
+
+/** Options of {@linkcode averagedSpectrum}. */
+export interface AveragedSpectrumOptions
+  extends Omit<SpectralOptions, "rate" | "block" | "pairs"> {
+  /** Channel names, in output order. Default: every channel. */
+  channels?: readonly string[];
+  /** Samples per block. Default {@linkcode DEFAULT_BLOCK}, unless `resolution` is given. */
+  block?: number;
+  /** Wanted line spacing in Hz; the block becomes ceil(rate/resolution). Default: none. */
+  resolution?: number;
+  /** Spectrum kind. Default `"psd"`. */
+  kind?: SpectrumKind;
+}
+
+/**
+ * Computes averaged spectra of the chosen channels in one pass of the
+ * spectral core and returns them as a table: `frequency_hz`, then one column
+ * per channel with its spectrum unit. The metadata records every parameter
+ * needed to reproduce the numbers.
+ *
+ * @throws {RangeError} for impossible options; {@linkcode QuiverError} when
+ * the record is shorter than one block or a channel is unknown.
+ *
+ * @example
+ * ```ts
+ * import { averagedSpectrum } from "./averaged_spectrum.ts";
+ * const data = new Float64Array(2048).map((_, i) => Math.sin(2 * Math.PI * 100 * i / 1024));
+ * const table = averagedSpectrum({ rate: 1024, startTime: 0, channels: [{ name: "a", unit: "V", data }] },
+ *   { block: 256, kind: "rms" });
+ * if (table.columns[1].unit !== "V" || table.metadata.averages !== 15) throw new Error();
+ * ```
+ */
+export function averagedSpectrum(
+  recording: Recording,
+  options: AveragedSpectrumOptions = {},
+): Table {
+  if (options.block !== undefined && options.resolution !== undefined) {
+    throw new RangeError("give a block length or a resolution, not both");
+  }
+  const block = options.resolution !== undefined
+    ? blockForResolution(recording.rate, options.resolution)
+    : options.block ?? DEFAULT_BLOCK;
+  const channels = selectChannels(recording, options.channels);
+  const length = recordingLength(recording);
+  if (block > length) {
+    throw new QuiverError(
+      `a block of ${block} samples (${block / recording.rate} s) is longer than the record of ${length} samples (${length / recording.rate} s)`,
+    );
+  }
+  const kind = options.kind ?? "psd";
+  const estimate = spectralEstimate(channels.map((c) => c.data), {
+    ...options,
+    rate: recording.rate,
+    block,
+  });
+  const gains = windowGains(windowSamples(estimate.window, block));
+  const columns: TableColumn[] = [
+    { name: "frequency_hz", unit: "", values: estimate.frequencies },
+    ...channels.map((c, i) => ({
+      name: c.name,
+      unit: spectrumUnit(c.unit, kind),
+      values: autoSpectrum(estimate, i, kind),
+    })),
+  ];
+  return {
+    columns,
+    metadata: {
+      analysis: "spectrum",
+      kind,
+      rate_hz: estimate.rate,
+      block: estimate.block,
+      df_hz: estimate.df,
+      overlap: options.overlap ?? 0.5,
+      overlap_samples: estimate.overlapSamples,
+      averages: estimate.averages,
+      average: estimate.average,
+      ...(estimate.tau !== undefined ? { tau_s: estimate.tau } : {}),
+      window: estimate.window,
+      window_source: WINDOW_DEFINITIONS[estimate.window].source,
+      window_coherent_gain: gains.coherentGain,
+      window_enbw_bins: gains.enbwBins,
+      enbw_hz: estimate.enbwHz,
+      detrend: estimate.detrend,
+      record_samples: length,
+      record_start_s: recording.startTime,
+      channels: channels.map((c) => ({
+        name: c.name,
+        unit: c.unit,
+        spectrum_unit: spectrumUnit(c.unit, kind),
+        ...(c.role !== undefined ? { role: c.role } : {}),
+      })),
+    },
+  };
+}

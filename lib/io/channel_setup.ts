@@ -1,0 +1,189 @@
+/**
+ * The channel set-up file: per-channel unit, sensitivity and role.
+ *
+ * ```json
+ * {
+ *   "description": "Ridgeback road test, rig B, 2026-11-12",
+ *   "channels": {
+ *     "seat_rail_z": { "unit": "m/s^2", "sensitivity_mv_per_unit": 10.2, "role": "response" },
+ *     "ch3": { "name": "driver_ear", "unit": "Pa", "full_scale_volts": 5, "sensitivity_mv_per_unit": 50, "role": "microphone" }
+ *   }
+ * }
+ * ```
+ *
+ * Keys of `channels` are the names in the file (CSV header names, or `ch1` …
+ * for WAV). Fields of an entry:
+ * - `name`: new channel name (default: the key).
+ * - `unit`: engineering unit. Required with a sensitivity.
+ * - `sensitivity_mv_per_unit`: transducer sensitivity in mV per engineering
+ *   unit (e.g. 10.2 mV/(m/s²), 50 mV/Pa). The data must then be voltages:
+ *   CSV header unit `V` or `mV` (or `input_unit`), or WAV with
+ *   `full_scale_volts`. Engineering value = volts·1000/sensitivity.
+ * - `input_unit`: `V` or `mV`, for a CSV column whose header has no unit.
+ * - `full_scale_volts`: WAV only, the voltage at digital full scale.
+ * - `role`: `force`, `response`, `microphone`, `tacho` or `other`.
+ * - `description`: free text (e.g. sensor position).
+ *
+ * Unknown fields, unknown channels, and a unit that contradicts the file's
+ * own header are errors, never silently ignored.
+ *
+ * @module
+ */
+import { z } from "zod";
+import { QuiverError } from "../errors.ts";
+import { CHANNEL_ROLES, type Channel, type Recording } from "./recording.ts";
+import { FULL_SCALE_UNIT } from "./wav.ts";
+
+const channelEntrySchema = z.strictObject({
+  name: z.string().trim().min(1).optional(),
+  unit: z.string().trim().optional(),
+  sensitivity_mv_per_unit: z.number().positive().finite().optional(),
+  input_unit: z.enum(["V", "mV"]).optional(),
+  full_scale_volts: z.number().positive().finite().optional(),
+  role: z.enum(CHANNEL_ROLES).optional(),
+  description: z.string().optional(),
+});
+
+/** The zod schema of a channel set-up file. */
+export const channelSetupSchema = z.strictObject({
+  description: z.string().optional(),
+  channels: z.record(z.string(), channelEntrySchema),
+});
+
+/** A validated channel set-up. */
+export type ChannelSetup = z.infer<typeof channelSetupSchema>;
+
+/**
+ * Parses and validates set-up JSON text.
+ *
+ * @throws {QuiverError} naming the file and the offending field or position.
+ *
+ * @example
+ * ```ts
+ * import { parseChannelSetup } from "./channel_setup.ts";
+ * const s = parseChannelSetup('{"channels": {"a": {"unit": "N", "role": "force"}}}');
+ * if (s.channels.a.role !== "force") throw new Error();
+ * ```
+ */
+export function parseChannelSetup(text: string, file?: string): ChannelSetup {
+  let json: unknown;
+  try {
+    json = JSON.parse(text);
+  } catch (error) {
+    const message = error instanceof Error ? error.message : String(error);
+    const position = /position (\d+)/.exec(message);
+    const location = position === null
+      ? { file }
+      : lineAndColumn(text, Number(position[1]), file);
+    throw new QuiverError(`not valid JSON: ${message}`, location);
+  }
+  const result = channelSetupSchema.safeParse(json);
+  if (!result.success) {
+    const issue = result.error.issues[0];
+    const path = issue.path.map(String).join(".");
+    throw new QuiverError(
+      `channel set-up${path === "" ? "" : ` field ${path}`}: ${issue.message}`,
+      { file },
+    );
+  }
+  return result.data;
+}
+
+function lineAndColumn(text: string, position: number, file?: string) {
+  const before = text.slice(0, position).split("\n");
+  return { file, line: before.length, column: before[before.length - 1].length + 1 };
+}
+
+/**
+ * Applies a set-up to a recording: renames, converts volts to engineering
+ * units, sets units and roles.
+ *
+ * @throws {QuiverError} for an entry that names no channel of the recording
+ * or whose conversion cannot be made from the file's units.
+ *
+ * @example
+ * ```ts
+ * import { applyChannelSetup } from "./channel_setup.ts";
+ * const rec = { rate: 100, startTime: 0, channels: [{ name: "acc", unit: "mV", data: new Float64Array([102]) }] };
+ * const out = applyChannelSetup(rec, { channels: { acc: { unit: "m/s^2", sensitivity_mv_per_unit: 10.2 } } });
+ * if (Math.abs(out.channels[0].data[0] - 10) > 1e-12) throw new Error();
+ * ```
+ */
+export function applyChannelSetup(
+  recording: Recording,
+  setup: ChannelSetup,
+  file?: string,
+): Recording {
+  const fail = (detail: string): never => {
+    throw new QuiverError(detail, { file });
+  };
+  const known = new Set(recording.channels.map((c) => c.name));
+  for (const key of Object.keys(setup.channels)) {
+    if (!known.has(key)) {
+      fail(
+        `the set-up names channel "${key}", which the recording does not have (it has ${[...known].join(", ")})`,
+      );
+    }
+  }
+  const channels = recording.channels.map((channel): Channel => {
+    const entry = setup.channels[channel.name];
+    if (entry === undefined) return channel;
+    const where = `set-up entry "${channel.name}"`;
+    let volts: number | undefined;
+    if (channel.unit === FULL_SCALE_UNIT) {
+      if (entry.input_unit !== undefined) {
+        fail(`${where}: input_unit is for CSV columns; for WAV give full_scale_volts`);
+      }
+      volts = entry.full_scale_volts;
+    } else {
+      if (entry.full_scale_volts !== undefined) {
+        fail(`${where}: full_scale_volts applies to WAV channels only`);
+      }
+      const headerUnit = channel.unit === "" ? entry.input_unit : channel.unit;
+      if (entry.input_unit !== undefined && channel.unit !== "" && channel.unit !== entry.input_unit) {
+        fail(`${where}: input_unit ${entry.input_unit} contradicts the file's unit [${channel.unit}]`);
+      }
+      volts = headerUnit === "V" ? 1 : headerUnit === "mV" ? 1e-3 : undefined;
+    }
+    let data = channel.data;
+    let unit = channel.unit;
+    if (entry.sensitivity_mv_per_unit !== undefined) {
+      if (entry.unit === undefined || entry.unit === "") {
+        fail(`${where}: a sensitivity needs the engineering unit it refers to ("unit")`);
+      }
+      if (volts === undefined) {
+        fail(
+          channel.unit === FULL_SCALE_UNIT
+            ? `${where}: a WAV channel needs full_scale_volts before a sensitivity can apply`
+            : `${where}: a sensitivity needs voltage data, but the column's unit is ${channel.unit === "" ? "not given (set input_unit)" : `[${channel.unit}]`}`,
+        );
+      }
+      const factor = (volts as number) * 1000 / entry.sensitivity_mv_per_unit;
+      data = channel.data.map((v) => v * factor);
+      unit = entry.unit as string;
+    } else if (channel.unit === FULL_SCALE_UNIT && volts !== undefined) {
+      data = channel.data.map((v) => v * (volts as number));
+      unit = "V";
+      if (entry.unit !== undefined && entry.unit !== "V") {
+        fail(`${where}: without a sensitivity the data are volts, not [${entry.unit}]`);
+      }
+    } else if (entry.unit !== undefined) {
+      if (channel.unit !== "" && channel.unit !== entry.unit) {
+        fail(`${where}: unit [${entry.unit}] contradicts the file's unit [${channel.unit}]; give a sensitivity to convert`);
+      }
+      unit = entry.unit;
+    }
+    return {
+      name: entry.name ?? channel.name,
+      unit,
+      data,
+      ...(entry.role !== undefined ? { role: entry.role } : channel.role !== undefined ? { role: channel.role } : {}),
+    };
+  });
+  const names = new Set<string>();
+  for (const c of channels) {
+    if (names.has(c.name)) fail(`after renaming, two channels are called "${c.name}"`);
+    names.add(c.name);
+  }
+  return { ...recording, channels };
+}

@@ -1,0 +1,79 @@
+/**
+ * The recording: what every reader produces and every analysis consumes.
+ *
+ * @module
+ */
+import { QuiverError } from "../errors.ts";
+
+/** What a channel measures, as the channel set-up declares it. */
+export const CHANNEL_ROLES = [
+  "force",
+  "response",
+  "microphone",
+  "tacho",
+  "other",
+] as const;
+
+/** One of {@linkcode CHANNEL_ROLES}. */
+export type ChannelRole = typeof CHANNEL_ROLES[number];
+
+/** One measured signal. */
+export interface Channel {
+  /** Channel name, unique within the recording. */
+  readonly name: string;
+  /** Engineering unit of the samples (e.g. `m/s^2`, `Pa`, `N`), "" if unknown. */
+  readonly unit: string;
+  /** Samples at the recording's rate. */
+  readonly data: Float64Array;
+  /** What the channel measures, when a set-up says so. */
+  readonly role?: ChannelRole;
+}
+
+/** A multi-channel time history at one sample rate. */
+export interface Recording {
+  /** Sample rate in Hz. */
+  readonly rate: number;
+  /** Time of the first sample in seconds (0 when the file has no time column). */
+  readonly startTime: number;
+  /** The channels, all of the same length. */
+  readonly channels: readonly Channel[];
+}
+
+/**
+ * Looks up channels by name, in the order asked, or all channels when
+ * `names` is undefined.
+ *
+ * @throws {QuiverError} (usage) naming the unknown channel and the known ones.
+ *
+ * @example
+ * ```ts
+ * import { selectChannels } from "./recording.ts";
+ * const rec = { rate: 1, startTime: 0, channels: [{ name: "a", unit: "", data: new Float64Array(1) }] };
+ * if (selectChannels(rec, ["a"])[0].name !== "a") throw new Error();
+ * ```
+ */
+export function selectChannels(
+  recording: Recording,
+  names?: readonly string[],
+): Channel[] {
+  if (names === undefined) return [...recording.channels];
+  return names.map((name) => {
+    const channel = recording.channels.find((c) => c.name === name);
+    if (channel === undefined) {
+      throw new QuiverError(
+        `no channel named "${name}"; the recording has ${
+          recording.channels.map((c) => `"${c.name}"`).join(", ")
+        }`,
+        {},
+        "usage",
+      );
+    }
+    return channel;
+  });
+}
+
+/** Number of samples per channel. */
+export function recordingLength(recording: Recording): number {
+  return recording.channels[0]?.data.length ?? 0;
+}
+

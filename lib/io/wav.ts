@@ -1,0 +1,237 @@
+/**
+ * RIFF/WAVE reading and writing. Integer PCM of 8 (unsigned), 16, 24 and 32
+ * bits and IEEE float of 32 and 64 bits, any number of channels, plain or
+ * WAVE_FORMAT_EXTENSIBLE headers. Samples come out as fractions of digital
+ * full scale (unit `FS`): integers are divided by 2^(bits−1); floats are
+ * taken as written. A channel set-up turns them into volts and engineering
+ * units.
+ *
+ * @module
+ */
+import { QuiverError } from "../errors.ts";
+import type { Recording } from "./recording.ts";
+
+/** Sample encodings the writer produces. */
+export type WavEncoding = "pcm16" | "pcm24" | "pcm32" | "float32";
+
+/** The unit of samples read from a WAV file: fraction of digital full scale. */
+export const FULL_SCALE_UNIT = "FS";
+
+const FORMAT_PCM = 1;
+const FORMAT_FLOAT = 3;
+const FORMAT_EXTENSIBLE = 0xfffe;
+
+/**
+ * True when the bytes start with a RIFF/WAVE header.
+ *
+ * @example
+ * ```ts
+ * import { looksLikeWav } from "./wav.ts";
+ * if (looksLikeWav(new TextEncoder().encode("time_s,a\n"))) throw new Error();
+ * ```
+ */
+export function looksLikeWav(bytes: Uint8Array): boolean {
+  return bytes.length >= 12 && ascii(bytes, 0, 4) === "RIFF" &&
+    ascii(bytes, 8, 4) === "WAVE";
+}
+
+function ascii(bytes: Uint8Array, offset: number, length: number): string {
+  return String.fromCharCode(...bytes.subarray(offset, offset + length));
+}
+
+/**
+ * Decodes a WAV file into a recording with channels `ch1` … `chN` in unit
+ * `FS`.
+ *
+ * @throws {QuiverError} for a file that is not WAV, is truncated, or uses an
+ * encoding quiver does not read.
+ *
+ * @example
+ * ```ts
+ * import { encodeWav, parseWav } from "./wav.ts";
+ * const rec = { rate: 8000, startTime: 0, channels: [{ name: "ch1", unit: "FS", data: new Float64Array([0, 0.5, -0.5]) }] };
+ * const back = parseWav(encodeWav(rec, "pcm16"));
+ * if (back.channels[0].data[1] !== 0.5) throw new Error();
+ * ```
+ */
+export function parseWav(bytes: Uint8Array, file?: string): Recording {
+  const fail = (detail: string): never => {
+    throw new QuiverError(detail, { file });
+  };
+  if (!looksLikeWav(bytes)) fail("not a RIFF/WAVE file (no RIFF…WAVE header)");
+  const view = new DataView(bytes.buffer, bytes.byteOffset, bytes.byteLength);
+  let format: { code: number; channels: number; rate: number; blockAlign: number; bits: number } | undefined;
+  let offset = 12;
+  while (offset + 8 <= bytes.length) {
+    const id = ascii(bytes, offset, 4);
+    const size = view.getUint32(offset + 4, true);
+    const start = offset + 8;
+    if (id === "fmt ") {
+      if (size < 16 || start + size > bytes.length) {
+        fail("truncated or malformed fmt chunk");
+      }
+      let code = view.getUint16(start, true);
+      const bits = view.getUint16(start + 14, true);
+      if (code === FORMAT_EXTENSIBLE) {
+        if (size < 40) fail("extensible fmt chunk is shorter than 40 bytes");
+        // The sub-format GUID starts with the ordinary format code.
+        code = view.getUint16(start + 24, true);
+      }
+      format = {
+        code,
+        channels: view.getUint16(start + 2, true),
+        rate: view.getUint32(start + 4, true),
+        blockAlign: view.getUint16(start + 12, true),
+        bits,
+      };
+    } else if (id === "data") {
+      if (format === undefined) fail("data chunk comes before the fmt chunk");
+      const f = format as NonNullable<typeof format>;
+      checkFormat(f, fail);
+      const available = bytes.length - start;
+      if (size > available) {
+        fail(
+          `truncated: the data chunk declares ${size} bytes but the file holds ${available} after its header`,
+        );
+      }
+      if (size % f.blockAlign !== 0) {
+        fail(`data chunk of ${size} bytes is not a whole number of ${f.blockAlign}-byte frames`);
+      }
+      return decodeFrames(view, start, size / f.blockAlign, f);
+    }
+    offset = start + size + (size % 2);
+  }
+  return fail(format === undefined ? "no fmt chunk" : "no data chunk");
+}
+
+function checkFormat(
+  f: { code: number; channels: number; rate: number; blockAlign: number; bits: number },
+  fail: (detail: string) => never,
+): void {
+  if (f.code !== FORMAT_PCM && f.code !== FORMAT_FLOAT) {
+    fail(
+      `unsupported WAV encoding (format code ${f.code}); quiver reads integer PCM and IEEE float`,
+    );
+  }
+  const supported = f.code === FORMAT_PCM ? [8, 16, 24, 32] : [32, 64];
+  if (!supported.includes(f.bits)) {
+    fail(
+      `unsupported ${f.code === FORMAT_PCM ? "integer PCM" : "float"} sample size of ${f.bits} bits; supported: ${supported.join(", ")}`,
+    );
+  }
+  if (f.channels < 1) fail("the fmt chunk declares no channels");
+  if (f.rate < 1) fail("the fmt chunk declares a sample rate of 0");
+  if (f.blockAlign !== f.channels * f.bits / 8) {
+    fail(`block align ${f.blockAlign} does not match ${f.channels} channels of ${f.bits} bits`);
+  }
+}
+
+function decodeFrames(
+  view: DataView,
+  start: number,
+  frames: number,
+  f: { code: number; channels: number; rate: number; blockAlign: number; bits: number },
+): Recording {
+  const bytesPerSample = f.bits / 8;
+  const data = Array.from({ length: f.channels }, () => new Float64Array(frames));
+  for (let i = 0; i < frames; i++) {
+    for (let c = 0; c < f.channels; c++) {
+      const at = start + i * f.blockAlign + c * bytesPerSample;
+      data[c][i] = readSample(view, at, f.code, f.bits);
+    }
+  }
+  return {
+    rate: f.rate,
+    startTime: 0,
+    channels: data.map((d, c) => ({ name: `ch${c + 1}`, unit: FULL_SCALE_UNIT, data: d })),
+  };
+}
+
+function readSample(view: DataView, at: number, code: number, bits: number): number {
+  if (code === FORMAT_FLOAT) {
+    return bits === 32 ? view.getFloat32(at, true) : view.getFloat64(at, true);
+  }
+  switch (bits) {
+    case 8:
+      return (view.getUint8(at) - 128) / 128;
+    case 16:
+      return view.getInt16(at, true) / 32768;
+    case 24: {
+      const u = view.getUint8(at) | (view.getUint8(at + 1) << 8) | (view.getUint8(at + 2) << 16);
+      return (u >= 0x800000 ? u - 0x1000000 : u) / 8388608;
+    }
+    default:
+      return view.getInt32(at, true) / 2147483648;
+  }
+}
+
+/**
+ * Encodes a recording as a WAV file. Samples are fractions of full scale;
+ * integer encodings need every sample in [−1, 1) and refuse others rather
+ * than clip them.
+ *
+ * @throws {RangeError} for a sample outside full scale or a non-integer rate.
+ *
+ * @example
+ * ```ts
+ * import { encodeWav } from "./wav.ts";
+ * const rec = { rate: 8000, startTime: 0, channels: [{ name: "a", unit: "FS", data: new Float64Array(10) }] };
+ * if (encodeWav(rec, "pcm24").length !== 44 + 30) throw new Error();
+ * ```
+ */
+export function encodeWav(recording: Recording, encoding: WavEncoding): Uint8Array {
+  const bits = encoding === "pcm16" ? 16 : encoding === "pcm24" ? 24 : 32;
+  const isFloat = encoding === "float32";
+  if (!Number.isInteger(recording.rate) || recording.rate < 1) {
+    throw new RangeError(`WAV needs a whole-number sample rate, got ${recording.rate}`);
+  }
+  const channels = recording.channels.length;
+  const frames = recording.channels[0]?.data.length ?? 0;
+  const blockAlign = channels * bits / 8;
+  const dataBytes = frames * blockAlign;
+  const bytes = new Uint8Array(44 + dataBytes + (dataBytes % 2));
+  const view = new DataView(bytes.buffer);
+  const writeAscii = (at: number, s: string) => {
+    for (let i = 0; i < s.length; i++) bytes[at + i] = s.charCodeAt(i);
+  };
+  writeAscii(0, "RIFF");
+  view.setUint32(4, bytes.length - 8, true);
+  writeAscii(8, "WAVE");
+  writeAscii(12, "fmt ");
+  view.setUint32(16, 16, true);
+  view.setUint16(20, isFloat ? FORMAT_FLOAT : FORMAT_PCM, true);
+  view.setUint16(22, channels, true);
+  view.setUint32(24, recording.rate, true);
+  view.setUint32(28, recording.rate * blockAlign, true);
+  view.setUint16(32, blockAlign, true);
+  view.setUint16(34, bits, true);
+  writeAscii(36, "data");
+  view.setUint32(40, dataBytes, true);
+  const full = 2 ** (bits - 1);
+  for (let c = 0; c < channels; c++) {
+    const data = recording.channels[c].data;
+    for (let i = 0; i < frames; i++) {
+      const at = 44 + i * blockAlign + c * bits / 8;
+      const x = data[i];
+      if (isFloat) {
+        view.setFloat32(at, x, true);
+        continue;
+      }
+      const q = Math.round(x * full);
+      if (!(q >= -full && q < full)) {
+        throw new RangeError(
+          `sample ${i} of channel "${recording.channels[c].name}" is ${x}, outside the ${bits}-bit full scale [-1, 1)`,
+        );
+      }
+      if (bits === 16) view.setInt16(at, q, true);
+      else if (bits === 32) view.setInt32(at, q, true);
+      else {
+        const u = q < 0 ? q + 0x1000000 : q;
+        bytes[at] = u & 0xff;
+        bytes[at + 1] = (u >> 8) & 0xff;
+        bytes[at + 2] = (u >> 16) & 0xff;
+      }
+    }
+  }
+  return bytes;
+}
