@@ -66,10 +66,22 @@ export interface HeaderCell {
  * ```
  */
 export function parseHeaderCell(cell: string): HeaderCell {
-  const text = cell.trim();
+  const text = unquote(cell);
   const match = /^(.*?)\s*\[([^\]]*)\]$/.exec(text);
   if (match === null) return { name: text, unit: "" };
   return { name: match[1].trim(), unit: match[2].trim() };
+}
+
+/**
+ * Trims a cell and removes quotes that surround it after whitespace (which
+ * the CSV grammar does not treat as quoting, but exports write).
+ */
+function unquote(cell: string): string {
+  const text = cell.trim();
+  if (text.length >= 2 && text.startsWith('"') && text.endsWith('"')) {
+    return text.slice(1, -1).replaceAll('""', '"').trim();
+  }
+  return text;
 }
 
 const TIME_NAMES = new Set(["time_s", "time"]);
@@ -201,7 +213,7 @@ export function parseCsvRecording(
     const r = dataRows[i];
     const row = rows[r];
     for (let c = 0; c < row.length; c++) {
-      const cell = row[c].trim();
+      const cell = unquote(row[c]);
       if (mark === undefined) {
         if (cell.includes(",")) mark = ",";
         else if (cell.includes(".")) mark = ".";
@@ -276,22 +288,27 @@ function checkTimeColumn(
     throw new QuiverError(detail, { file, line, column });
   };
   if (n < 2) fail("one data row is not enough to derive a sample rate from the time column", lines[0]);
-  const step = (time[n - 1] - time[0]) / (n - 1);
-  if (!(step > 0)) {
+  const total = time[n - 1] - time[0];
+  if (!(total > 0)) {
     fail(`time does not increase from the first row (${time[0]}) to the last (${time[n - 1]})`, lines[n - 1]);
   }
+  // The median step is the reference: one jump must not shift it, so the
+  // error names the line of the jump itself.
+  const steps = new Float64Array(n - 1);
+  for (let i = 1; i < n; i++) steps[i - 1] = time[i] - time[i - 1];
+  const step = steps.slice().sort()[Math.floor((n - 1) / 2)];
   // Rounding the printed times to `decimals` places moves a step by up to
-  // one quantum; when that alone can break the tolerance, say so.
+  // one quantum; a deviation that rounding alone explains means too few digits.
   const quantum = Number.isFinite(decimals) ? 10 ** -decimals : 0;
-  const tooCoarse = quantum > tolerance * step;
   for (let i = 1; i < n; i++) {
-    const dt = time[i] - time[i - 1];
+    const dt = steps[i - 1];
     if (dt <= 0) {
       fail(`time goes backwards or stands still (${time[i - 1]} s, then ${time[i]} s)`, lines[i]);
     }
-    if (Math.abs(dt - step) > tolerance * step) {
+    const deviation = Math.abs(dt - step);
+    if (deviation > tolerance * step) {
       fail(
-        tooCoarse
+        deviation <= quantum * (1 + 1e-6)
           ? `the time column is written with ${decimals} decimals, too few for a sample interval of ${step} s ` +
             `(rate ${1 / step} Hz): steps vary by more than ${tolerance * 100} %; write at least ` +
             `${Math.ceil(-Math.log10(tolerance * step))} decimals, or drop the column and give the rate`
@@ -301,5 +318,7 @@ function checkTimeColumn(
       );
     }
   }
-  return 1 / step;
+  // Every step agrees with the median, so the end points give the most
+  // precise mean interval.
+  return (n - 1) / total;
 }

@@ -43,8 +43,12 @@ export function describeBadNumber(cell: string, mark: DecimalMark): string {
   if (/^[+-]?(nan|inf|infinity)$/i.test(cell)) {
     return `"${cell}" is not a finite number; NaN and infinite values are not accepted`;
   }
-  const other = mark === "." ? "," : ".";
-  if (parseDecimal(cell, other === "," ? "," : ".") !== undefined) {
+  const value = parseDecimal(cell, mark);
+  if (value !== undefined && !Number.isFinite(value)) {
+    return `"${cell}" is beyond the range of a double-precision number`;
+  }
+  const other: DecimalMark = mark === "." ? "," : ".";
+  if (cell.includes(other) && parseDecimal(cell, other) !== undefined) {
     return `"${cell}" uses "${other}" as decimal mark, but this file uses "${mark}"`;
   }
   return `"${cell}" is not a number`;
