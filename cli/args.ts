@@ -6,7 +6,7 @@
  */
 import { parseArgs, type ParseArgsConfig } from "node:util";
 import { z } from "zod";
-import { QuiverError } from "../lib/errors.ts";
+import { QuiverError, withFile } from "../lib/errors.ts";
 import { parseDecimal } from "../lib/io/numbers.ts";
 
 /** Option definitions in parseArgs form. */
@@ -120,4 +120,13 @@ export function listOption() {
     }
     return names;
   });
+}
+
+/** Runs an analysis step and attaches `file` to the data errors it raises. */
+export function inFile<T>(file: string, step: () => T): T {
+  try {
+    return step();
+  } catch (error) {
+    throw withFile(error, file);
+  }
 }

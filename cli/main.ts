@@ -62,17 +62,27 @@ function report(error: unknown, command: string, debug: boolean): number {
     process.stderr.write(`quiver ${command}: ${error.message}\n`);
     return error.kind === "usage" ? 2 : 1;
   }
-  if (error instanceof RangeError || error instanceof TypeError && !(error.stack ?? "").includes("node_modules")) {
+  if (
+    error instanceof RangeError ||
+    error instanceof TypeError && !(error.stack ?? "").includes("node_modules")
+  ) {
     process.stderr.write(`quiver ${command}: ${error.message}\n`);
     return 2;
   }
   const message = error instanceof Error ? error.message : String(error);
   process.stderr.write(
-    `quiver ${command}: internal error: ${message}${debug ? "" : " (run with --debug for the stack trace)"}\n`,
+    `quiver ${command}: internal error: ${message}${
+      debug ? "" : " (run with --debug for the stack trace)"
+    }\n`,
   );
   return 3;
 }
 
 if (import.meta.main) {
+  // A closed pipe (`quiver spectrum … | head`) is the reader's choice, not an error.
+  process.stdout.on("error", (error: { code?: string }) => {
+    if (error.code === "EPIPE") process.exit(process.exitCode ?? 0);
+    throw error;
+  });
   process.exitCode = await main(process.argv.slice(2));
 }

@@ -44,7 +44,13 @@ export async function writeTable(
   } catch (error) {
     const code = (error as { code?: string }).code;
     throw new QuiverError(
-      `cannot write: ${code === "ENOENT" ? "the folder does not exist" : error instanceof Error ? error.message : String(error)}`,
+      `cannot write: ${
+        code === "ENOENT"
+          ? "the folder does not exist"
+          : error instanceof Error
+          ? error.message
+          : String(error)
+      }`,
       { file: out },
       "usage",
     );

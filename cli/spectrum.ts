@@ -11,9 +11,21 @@ import { DETREND_MODES } from "../lib/dsp/detrend.ts";
 import { SPECTRUM_KINDS } from "../lib/dsp/spectrum_kinds.ts";
 import { WINDOW_NAMES } from "../lib/dsp/windows.ts";
 import { readRecordingFile } from "../lib/io/read_recording.ts";
-import { integerOption, listOption, numberOption, parseCommandArgs, usageError } from "./args.ts";
+import {
+  inFile,
+  integerOption,
+  listOption,
+  numberOption,
+  parseCommandArgs,
+  usageError,
+} from "./args.ts";
 import { resolveFormat, writeTable } from "./output.ts";
-import { RECORDING_HELP, RECORDING_OPTIONS, recordingOptionsShape, toReadOptions } from "./recording_options.ts";
+import {
+  RECORDING_HELP,
+  RECORDING_OPTIONS,
+  recordingOptionsShape,
+  toReadOptions,
+} from "./recording_options.ts";
 
 /** One-line summary for the command list. */
 export const summary = "averaged auto spectra (PSD, autopower, RMS or peak) of a recording";
@@ -51,9 +63,13 @@ averages, ...).
 const schema = z.strictObject({
   channels: listOption().optional(),
   block: integerOption().optional(),
-  resolution: numberOption().pipe(z.number().positive("must be a positive number of Hz")).optional(),
+  resolution: numberOption().pipe(z.number().positive("must be a positive number of Hz"))
+    .optional(),
   overlap: numberOption().pipe(
-    z.number().min(0, "must be at least 0").lt(1, "must be less than 1 (it is a fraction, e.g. 0.5 for 50 %)"),
+    z.number().min(0, "must be at least 0").lt(
+      1,
+      "must be less than 1 (it is a fraction, e.g. 0.5 for 50 %)",
+    ),
   ).optional(),
   window: z.enum(WINDOW_NAMES).optional(),
   detrend: z.enum(DETREND_MODES).optional(),
@@ -90,22 +106,27 @@ export async function run(argv: readonly string[]): Promise<void> {
   }
   const [input] = positionals;
   const recording = await readRecordingFile(input, toReadOptions(values));
-  const table = averagedSpectrum(recording, {
-    channels: values.channels,
-    block: values.block,
-    resolution: values.resolution,
-    overlap: values.overlap,
-    window: values.window,
-    detrend: values.detrend,
-    kind: values.kind,
-    average: values.average,
-    tau: values.tau,
-  });
+  const table = inFile(input, () =>
+    averagedSpectrum(recording, {
+      channels: values.channels,
+      block: values.block,
+      resolution: values.resolution,
+      overlap: values.overlap,
+      window: values.window,
+      detrend: values.detrend,
+      kind: values.kind,
+      average: values.average,
+      tau: values.tau,
+    }));
   const traced = { ...table, metadata: { source: input, ...table.metadata } };
   await writeTable(traced, resolveFormat(values.format, values.out), values.out);
   const m = table.metadata;
   process.stderr.write(
-    `spectrum: ${table.columns.length - 1} channel(s), ${m.kind}, ${m.averages} average(s) of ${m.block} samples, ` +
-      `df ${m.df_hz} Hz, ${m.window} window${values.out !== undefined ? ` -> ${values.out}` : ""}\n`,
+    `spectrum: ${
+      table.columns.length - 1
+    } channel(s), ${m.kind}, ${m.averages} average(s) of ${m.block} samples, ` +
+      `df ${m.df_hz} Hz, ${m.window} window${
+        values.out !== undefined ? ` -> ${values.out}` : ""
+      }\n`,
   );
 }

@@ -73,3 +73,22 @@ export function formatLocation(location: ErrorLocation): string {
   if (location.column !== undefined) parts.push(String(location.column));
   return parts.length === 0 ? "" : `${parts.join(":")}: `;
 }
+
+/**
+ * Returns `error` with `file` as its location when it is a
+ * {@linkcode QuiverError} that names no file yet; anything else unchanged.
+ * Analyses do not know file names; commands attach them.
+ *
+ * @example
+ * ```ts
+ * import { QuiverError, withFile } from "./errors.ts";
+ * const e = withFile(new QuiverError("record too short"), "road.csv");
+ * if (!(e instanceof QuiverError) || e.message !== "road.csv: record too short") throw new Error();
+ * ```
+ */
+export function withFile(error: unknown, file: string): unknown {
+  if (error instanceof QuiverError && error.location.file === undefined) {
+    return new QuiverError(error.detail, { ...error.location, file }, error.kind);
+  }
+  return error;
+}

@@ -7,11 +7,7 @@
 import { QuiverError } from "../errors.ts";
 import { type Recording, recordingLength, selectChannels } from "../io/recording.ts";
 import type { Table, TableColumn } from "../io/table.ts";
-import {
-  blockForResolution,
-  type SpectralOptions,
-  spectralEstimate,
-} from "./spectral_core.ts";
+import { blockForResolution, spectralEstimate, type SpectralOptions } from "./spectral_core.ts";
 import { autoSpectrum, type SpectrumKind, spectrumUnit } from "./spectrum_kinds.ts";
 import { WINDOW_DEFINITIONS, windowGains, windowSamples } from "./windows.ts";
 
@@ -19,8 +15,7 @@ import { WINDOW_DEFINITIONS, windowGains, windowSamples } from "./windows.ts";
 export const DEFAULT_BLOCK = 4096;
 
 /** Options of {@linkcode averagedSpectrum}. */
-export interface AveragedSpectrumOptions
-  extends Omit<SpectralOptions, "rate" | "block" | "pairs"> {
+export interface AveragedSpectrumOptions extends Omit<SpectralOptions, "rate" | "block" | "pairs"> {
   /** Channel names, in output order. Default: every channel. */
   channels?: readonly string[];
   /** Samples per block. Default {@linkcode DEFAULT_BLOCK}, unless `resolution` is given. */
@@ -63,7 +58,9 @@ export function averagedSpectrum(
   const length = recordingLength(recording);
   if (block > length) {
     throw new QuiverError(
-      `a block of ${block} samples (${block / recording.rate} s) is longer than the record of ${length} samples (${length / recording.rate} s)`,
+      `a block of ${block} samples (${
+        block / recording.rate
+      } s) is longer than the record of ${length} samples (${length / recording.rate} s)`,
     );
   }
   const kind = options.kind ?? "psd";

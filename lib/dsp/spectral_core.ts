@@ -18,9 +18,9 @@
  * @module
  */
 import { QuiverError } from "../errors.ts";
-import { realFftPlan, type RealFftPlan } from "./fft.ts";
-import { type DetrendMode, detrendInPlace } from "./detrend.ts";
-import { type WindowName, windowGains, windowSamples } from "./windows.ts";
+import { type RealFftPlan, realFftPlan } from "./fft.ts";
+import { detrendInPlace, type DetrendMode } from "./detrend.ts";
+import { windowGains, type WindowName, windowSamples } from "./windows.ts";
 
 /** How successive segment spectra are combined. */
 export const AVERAGING_MODES = ["linear", "exponential", "max"] as const;
@@ -281,9 +281,7 @@ export class SpectralAccumulator {
     this.#window = windowSamples(this.#o.window, block);
     const gains = windowGains(this.#window);
     const lines = this.#plan.lines;
-    this.#lineScale = oneSidedWeights(block).map((w) =>
-      w / (rate * gains.sumOfSquares)
-    );
+    this.#lineScale = oneSidedWeights(block).map((w) => w / (rate * gains.sumOfSquares));
     this.#enbwHz = rate * gains.sumOfSquares / (gains.sum * gains.sum);
     this.#alpha = 1 - Math.exp(-this.#o.hop / (rate * this.#o.tau));
     const make = (count: number, length: number) =>
@@ -402,9 +400,7 @@ export class SpectralAccumulator {
     }
     const divisor = o.average === "linear" ? this.#segments : 1;
     const div = (a: Float64Array) => divisor === 1 ? a : a.map((v) => v / divisor);
-    const frequencies = new Float64Array(this.#plan.lines).map((_, k) =>
-      k * o.rate / o.block
-    );
+    const frequencies = new Float64Array(this.#plan.lines).map((_, k) => k * o.rate / o.block);
     return {
       rate: o.rate,
       block: o.block,

@@ -15,11 +15,7 @@
  *
  * @module
  */
-import {
-  oneSidedWeights,
-  scaleFactor,
-  type SpectralEstimate,
-} from "./spectral_core.ts";
+import { oneSidedWeights, scaleFactor, type SpectralEstimate } from "./spectral_core.ts";
 
 /** The spectrum kinds. */
 export const SPECTRUM_KINDS = ["psd", "power", "rms", "peak"] as const;
@@ -94,10 +90,6 @@ export function autoSpectrum(
 export function spectrumUnit(unit: string, kind: SpectrumKind): string {
   const base = unit.trim() === "" ? "1" : unit.trim();
   if (kind === "rms" || kind === "peak") return base;
-  const squared = base === "1"
-    ? "1"
-    : /^[A-Za-zµμ°Ω]+$/.test(base)
-    ? `${base}^2`
-    : `(${base})^2`;
+  const squared = base === "1" ? "1" : /^[A-Za-zµμ°Ω]+$/.test(base) ? `${base}^2` : `(${base})^2`;
   return kind === "power" ? squared : `${squared}/Hz`;
 }

@@ -31,7 +31,7 @@
  */
 import { z } from "zod";
 import { QuiverError } from "../errors.ts";
-import { CHANNEL_ROLES, type Channel, type Recording } from "./recording.ts";
+import { type Channel, CHANNEL_ROLES, type Recording } from "./recording.ts";
 import { FULL_SCALE_UNIT } from "./wav.ts";
 
 const channelEntrySchema = z.strictObject({
@@ -72,9 +72,7 @@ export function parseChannelSetup(text: string, file?: string): ChannelSetup {
   } catch (error) {
     const message = error instanceof Error ? error.message : String(error);
     const position = /position (\d+)/.exec(message);
-    const location = position === null
-      ? { file }
-      : lineAndColumn(text, Number(position[1]), file);
+    const location = position === null ? { file } : lineAndColumn(text, Number(position[1]), file);
     throw new QuiverError(`not valid JSON: ${message}`, location);
   }
   const result = channelSetupSchema.safeParse(json);
@@ -121,7 +119,9 @@ export function applyChannelSetup(
   for (const key of Object.keys(setup.channels)) {
     if (!known.has(key)) {
       fail(
-        `the set-up names channel "${key}", which the recording does not have (it has ${[...known].join(", ")})`,
+        `the set-up names channel "${key}", which the recording does not have (it has ${
+          [...known].join(", ")
+        })`,
       );
     }
   }
@@ -140,8 +140,12 @@ export function applyChannelSetup(
         fail(`${where}: full_scale_volts applies to WAV channels only`);
       }
       const headerUnit = channel.unit === "" ? entry.input_unit : channel.unit;
-      if (entry.input_unit !== undefined && channel.unit !== "" && channel.unit !== entry.input_unit) {
-        fail(`${where}: input_unit ${entry.input_unit} contradicts the file's unit [${channel.unit}]`);
+      if (
+        entry.input_unit !== undefined && channel.unit !== "" && channel.unit !== entry.input_unit
+      ) {
+        fail(
+          `${where}: input_unit ${entry.input_unit} contradicts the file's unit [${channel.unit}]`,
+        );
       }
       volts = headerUnit === "V" ? 1 : headerUnit === "mV" ? 1e-3 : undefined;
     }
@@ -155,7 +159,9 @@ export function applyChannelSetup(
         fail(
           channel.unit === FULL_SCALE_UNIT
             ? `${where}: a WAV channel needs full_scale_volts before a sensitivity can apply`
-            : `${where}: a sensitivity needs voltage data, but the column's unit is ${channel.unit === "" ? "not given (set input_unit)" : `[${channel.unit}]`}`,
+            : `${where}: a sensitivity needs voltage data, but the column's unit is ${
+              channel.unit === "" ? "not given (set input_unit)" : `[${channel.unit}]`
+            }`,
         );
       }
       const factor = (volts as number) * 1000 / entry.sensitivity_mv_per_unit;
@@ -169,7 +175,9 @@ export function applyChannelSetup(
       }
     } else if (entry.unit !== undefined) {
       if (channel.unit !== "" && channel.unit !== entry.unit) {
-        fail(`${where}: unit [${entry.unit}] contradicts the file's unit [${channel.unit}]; give a sensitivity to convert`);
+        fail(
+          `${where}: unit [${entry.unit}] contradicts the file's unit [${channel.unit}]; give a sensitivity to convert`,
+        );
       }
       unit = entry.unit;
     }
@@ -177,7 +185,11 @@ export function applyChannelSetup(
       name: entry.name ?? channel.name,
       unit,
       data,
-      ...(entry.role !== undefined ? { role: entry.role } : channel.role !== undefined ? { role: channel.role } : {}),
+      ...(entry.role !== undefined
+        ? { role: entry.role }
+        : channel.role !== undefined
+        ? { role: channel.role }
+        : {}),
     };
   });
   const names = new Set<string>();

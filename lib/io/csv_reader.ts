@@ -159,7 +159,9 @@ export function parseCsvRecording(
     if (TIME_NAMES.has(cell.name.toLowerCase())) {
       if (timeColumn >= 0) {
         fail(
-          `two time columns ("${header[timeColumn].name}" in column ${timeColumn + 1} and "${cell.name}")`,
+          `two time columns ("${header[timeColumn].name}" in column ${
+            timeColumn + 1
+          } and "${cell.name}")`,
           headerLine,
           i + 1,
         );
@@ -203,9 +205,7 @@ export function parseCsvRecording(
     fail("the file has a header but no data rows", headerLine);
   }
 
-  let mark: DecimalMark | undefined = options.decimal === "auto"
-    ? undefined
-    : options.decimal;
+  let mark: DecimalMark | undefined = options.decimal === "auto" ? undefined : options.decimal;
   if (mark === undefined && delimiter === ",") mark = ".";
   const columns = header.map(() => new Float64Array(dataRows.length));
   let timeDecimals = 0;
@@ -287,10 +287,15 @@ function checkTimeColumn(
   const fail = (detail: string, line?: number): never => {
     throw new QuiverError(detail, { file, line, column });
   };
-  if (n < 2) fail("one data row is not enough to derive a sample rate from the time column", lines[0]);
+  if (n < 2) {
+    fail("one data row is not enough to derive a sample rate from the time column", lines[0]);
+  }
   const total = time[n - 1] - time[0];
   if (!(total > 0)) {
-    fail(`time does not increase from the first row (${time[0]}) to the last (${time[n - 1]})`, lines[n - 1]);
+    fail(
+      `time does not increase from the first row (${time[0]}) to the last (${time[n - 1]})`,
+      lines[n - 1],
+    );
   }
   // The median step is the reference: one jump must not shift it, so the
   // error names the line of the jump itself.
@@ -311,8 +316,12 @@ function checkTimeColumn(
         deviation <= quantum * (1 + 1e-6)
           ? `the time column is written with ${decimals} decimals, too few for a sample interval of ${step} s ` +
             `(rate ${1 / step} Hz): steps vary by more than ${tolerance * 100} %; write at least ` +
-            `${Math.ceil(-Math.log10(tolerance * step))} decimals, or drop the column and give the rate`
-          : `time step of ${dt} s differs from the mean step ${step} s by more than ${tolerance * 100} %: ` +
+            `${
+              Math.ceil(-Math.log10(tolerance * step))
+            } decimals, or drop the column and give the rate`
+          : `time step of ${dt} s differs from the mean step ${step} s by more than ${
+            tolerance * 100
+          } %: ` +
             `a gap, jump or jitter in the time column`,
         lines[i],
       );

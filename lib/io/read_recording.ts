@@ -13,8 +13,7 @@ import type { Recording } from "./recording.ts";
 import { looksLikeWav, parseWav } from "./wav.ts";
 
 /** Options of {@linkcode readRecordingFile}. */
-export interface ReadRecordingOptions
-  extends Omit<CsvReadOptions, "file"> {
+export interface ReadRecordingOptions extends Omit<CsvReadOptions, "file"> {
   /** Path of a channel set-up JSON file. Default: none. */
   setup?: string;
 }

@@ -76,4 +76,3 @@ export function selectChannels(
 export function recordingLength(recording: Recording): number {
   return recording.channels[0]?.data.length ?? 0;
 }
-

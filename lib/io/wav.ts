@@ -60,7 +60,9 @@ export function parseWav(bytes: Uint8Array, file?: string): Recording {
   };
   if (!looksLikeWav(bytes)) fail("not a RIFF/WAVE file (no RIFF…WAVE header)");
   const view = new DataView(bytes.buffer, bytes.byteOffset, bytes.byteLength);
-  let format: { code: number; channels: number; rate: number; blockAlign: number; bits: number } | undefined;
+  let format:
+    | { code: number; channels: number; rate: number; blockAlign: number; bits: number }
+    | undefined;
   let offset = 12;
   while (offset + 8 <= bytes.length) {
     const id = ascii(bytes, offset, 4);
@@ -116,7 +118,9 @@ function checkFormat(
   const supported = f.code === FORMAT_PCM ? [8, 16, 24, 32] : [32, 64];
   if (!supported.includes(f.bits)) {
     fail(
-      `unsupported ${f.code === FORMAT_PCM ? "integer PCM" : "float"} sample size of ${f.bits} bits; supported: ${supported.join(", ")}`,
+      `unsupported ${
+        f.code === FORMAT_PCM ? "integer PCM" : "float"
+      } sample size of ${f.bits} bits; supported: ${supported.join(", ")}`,
     );
   }
   if (f.channels < 1) fail("the fmt chunk declares no channels");
@@ -220,7 +224,9 @@ export function encodeWav(recording: Recording, encoding: WavEncoding): Uint8Arr
       const q = Math.round(x * full);
       if (!(q >= -full && q < full)) {
         throw new RangeError(
-          `sample ${i} of channel "${recording.channels[c].name}" is ${x}, outside the ${bits}-bit full scale [-1, 1)`,
+          `sample ${i} of channel "${
+            recording.channels[c].name
+          }" is ${x}, outside the ${bits}-bit full scale [-1, 1)`,
         );
       }
       if (bits === 16) view.setInt16(at, q, true);

@@ -1,10 +1,7 @@
 import { readFileSync } from "node:fs";
 import { describe, expect, test } from "vitest";
 import { averagedSpectrum } from "../../lib/dsp/averaged_spectrum.ts";
-import {
-  SpectralAccumulator,
-  spectralEstimate,
-} from "../../lib/dsp/spectral_core.ts";
+import { SpectralAccumulator, spectralEstimate } from "../../lib/dsp/spectral_core.ts";
 import { autoSpectrum } from "../../lib/dsp/spectrum_kinds.ts";
 import type { WindowName } from "../../lib/dsp/windows.ts";
 import { parseCsvRecording } from "../../lib/io/csv_reader.ts";

@@ -1,8 +1,8 @@
 import { describe, expect, test } from "vitest";
 import {
   parseWindowName,
-  type WindowName,
   windowGains,
+  type WindowName,
   windowResponse,
   windowSamples,
 } from "../../lib/dsp/windows.ts";

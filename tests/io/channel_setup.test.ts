@@ -40,7 +40,13 @@ describe("channel set-up", () => {
   test("WAV channels go through full-scale volts, then sensitivity, and can be renamed", () => {
     const setup = parseChannelSetup(JSON.stringify({
       channels: {
-        ch1: { name: "driver_ear", unit: "Pa", full_scale_volts: 2, sensitivity_mv_per_unit: 50, role: "microphone" },
+        ch1: {
+          name: "driver_ear",
+          unit: "Pa",
+          full_scale_volts: 2,
+          sensitivity_mv_per_unit: 50,
+          role: "microphone",
+        },
       },
     }));
     const rec = applyChannelSetup(wavRecording, setup);
@@ -50,21 +56,50 @@ describe("channel set-up", () => {
 
   const refusals: [string, unknown, Recording, RegExp][] = [
     ["an unknown channel", { channels: { nope: { unit: "N" } } }, csvRecording, /does not have/],
-    ["a sensitivity without a unit", { channels: { hammer: { sensitivity_mv_per_unit: 2 } } }, csvRecording, /needs the engineering unit/],
-    ["a sensitivity on data that are not volts", { channels: { plain: { unit: "N", sensitivity_mv_per_unit: 2 } } }, csvRecording, /needs voltage data/],
-    ["a unit contradicting the header", { channels: { seat_rail_z: { unit: "m/s^2" } } }, csvRecording, /contradicts/],
-    ["a WAV sensitivity without full scale", { channels: { ch1: { unit: "Pa", sensitivity_mv_per_unit: 50 } } }, wavRecording, /full_scale_volts/],
-    ["a rename that collides", { channels: { hammer: { name: "plain" } } }, csvRecording, /two channels are called "plain"/],
+    [
+      "a sensitivity without a unit",
+      { channels: { hammer: { sensitivity_mv_per_unit: 2 } } },
+      csvRecording,
+      /needs the engineering unit/,
+    ],
+    [
+      "a sensitivity on data that are not volts",
+      { channels: { plain: { unit: "N", sensitivity_mv_per_unit: 2 } } },
+      csvRecording,
+      /needs voltage data/,
+    ],
+    [
+      "a unit contradicting the header",
+      { channels: { seat_rail_z: { unit: "m/s^2" } } },
+      csvRecording,
+      /contradicts/,
+    ],
+    [
+      "a WAV sensitivity without full scale",
+      { channels: { ch1: { unit: "Pa", sensitivity_mv_per_unit: 50 } } },
+      wavRecording,
+      /full_scale_volts/,
+    ],
+    [
+      "a rename that collides",
+      { channels: { hammer: { name: "plain" } } },
+      csvRecording,
+      /two channels are called "plain"/,
+    ],
   ];
   for (const [label, json, rec, pattern] of refusals) {
     test(`refuses ${label}`, () => {
-      expect(() => applyChannelSetup(rec, parseChannelSetup(JSON.stringify(json), "s.json"), "s.json"))
+      expect(() =>
+        applyChannelSetup(rec, parseChannelSetup(JSON.stringify(json), "s.json"), "s.json")
+      )
         .toThrow(pattern);
     });
   }
 
   test("schema errors name the field", () => {
-    expect(() => parseChannelSetup('{"channels": {"a": {"sensitivity_mv_per_unit": -1}}}', "s.json"))
+    expect(() =>
+      parseChannelSetup('{"channels": {"a": {"sensitivity_mv_per_unit": -1}}}', "s.json")
+    )
       .toThrow(/s\.json: channel set-up field channels\.a\.sensitivity_mv_per_unit/);
     expect(() => parseChannelSetup('{"channels": {"a": {"untis": "N"}}}', "s.json"))
       .toThrow(QuiverError);

@@ -106,15 +106,29 @@ describe("CSV recordings that are refused, with file, line and column", () => {
   test("ragged row", () =>
     expectRefusal("time_s,a,b\n0,1,2\n0.1,1\n", { line: 3 }, /2 fields, the header has 3/));
   test("text in a numeric cell", () =>
-    expectRefusal("time_s,a\n0,1\n0.1,abc\n0.2,3\n", { line: 3, column: 2 }, /"abc" is not a number/));
+    expectRefusal(
+      "time_s,a\n0,1\n0.1,abc\n0.2,3\n",
+      { line: 3, column: 2 },
+      /"abc" is not a number/,
+    ));
   test("empty cell", () =>
     expectRefusal("time_s,a,b\n0,1,2\n0.1,,2\n0.2,3,3\n", { line: 3, column: 2 }, /empty cell/));
   test("NaN", () =>
-    expectRefusal("time_s,a\n0,1\n0.1,NaN\n0.2,1\n", { line: 3, column: 2 }, /not a finite number/));
+    expectRefusal(
+      "time_s,a\n0,1\n0.1,NaN\n0.2,1\n",
+      { line: 3, column: 2 },
+      /not a finite number/,
+    ));
   test("Inf", () =>
-    expectRefusal("time_s,a\n0,1\n0.1,-Inf\n0.2,1\n", { line: 3, column: 2 }, /not a finite number/));
+    expectRefusal(
+      "time_s,a\n0,1\n0.1,-Inf\n0.2,1\n",
+      { line: 3, column: 2 },
+      /not a finite number/,
+    ));
   test("number too large for a double", () =>
-    expectRefusal("a\n1\n1e999\n", { line: 3, column: 1 }, /beyond the range of a double/, { rate: 10 }));
+    expectRefusal("a\n1\n1e999\n", { line: 3, column: 1 }, /beyond the range of a double/, {
+      rate: 10,
+    }));
   test("duplicate channel names", () =>
     expectRefusal("time_s,a [V],a\n0,1,2\n", { line: 1, column: 3 }, /duplicate channel name "a"/));
   test("two time columns", () =>
@@ -128,7 +142,11 @@ describe("CSV recordings that are refused, with file, line and column", () => {
       /gap, jump or jitter/,
     ));
   test("a reversal in the time column", () =>
-    expectRefusal("time_s,a\n0,1\n0.002,1\n0.001,1\n0.003,1\n", { line: 4, column: 1 }, /backwards/));
+    expectRefusal(
+      "time_s,a\n0,1\n0.002,1\n0.001,1\n0.003,1\n",
+      { line: 4, column: 1 },
+      /backwards/,
+    ));
   test("time that never increases", () =>
     expectRefusal("time_s,a\n1,1\n1,1\n", { line: 3, column: 1 }, /does not increase/));
   test("a time column with too little precision for the rate", () => {
@@ -139,16 +157,23 @@ describe("CSV recordings that are refused, with file, line and column", () => {
     const firstOff = steps.findIndex((d) => Math.abs(d - median) > 0.01 * median);
     expect(firstOff).toBeGreaterThan(0);
     const rows = printed.map((t) => `${t},0`);
-    expectRefusal(`time_s,a\n${rows.join("\n")}\n`, { line: firstOff + 3, column: 1 }, /6 decimals, too few/);
+    expectRefusal(
+      `time_s,a\n${rows.join("\n")}\n`,
+      { line: firstOff + 3, column: 1 },
+      /6 decimals, too few/,
+    );
   });
   test("no time column and no rate", () =>
     expectRefusal("a,b\n1,2\n", { line: 1 }, /give the sample rate/));
   test("a rate that contradicts the time column", () =>
     expectRefusal(clean, {}, /rate of .* Hz, but 2000 Hz was given/, { rate: 2000 }));
   test("mixed decimal marks", () =>
-    expectRefusal("time;a\n0;1,5\n1;2.5\n2;1\n", { line: 3, column: 2 }, /uses "\." as decimal mark/));
-  test("binary garbage", () =>
-    expectRefusal("\u0000\u0001\u0002binary", {}, /binary/));
+    expectRefusal(
+      "time;a\n0;1,5\n1;2.5\n2;1\n",
+      { line: 3, column: 2 },
+      /uses "\." as decimal mark/,
+    ));
+  test("binary garbage", () => expectRefusal("\u0000\u0001\u0002binary", {}, /binary/));
   test("an empty column name", () =>
     expectRefusal("time_s,,b\n0,1,2\n", { line: 1, column: 2 }, /empty column name/));
 });

@@ -50,13 +50,20 @@ describe("WAV round trips", () => {
       const back = parseWav(encodeWav(rec, encoding));
       expect(back.rate).toBe(48000);
       back.channels.forEach((c, i) => {
-        assertClose(c.data, data[i], { relative: encoding === "float32" ? quantum : 0, absolute: encoding === "float32" ? 0 : quantum / 2 });
+        assertClose(c.data, data[i], {
+          relative: encoding === "float32" ? quantum : 0,
+          absolute: encoding === "float32" ? 0 : quantum / 2,
+        });
       });
     });
   }
 
   test("integer encodings refuse samples beyond full scale instead of clipping", () => {
-    const rec = { rate: 8000, startTime: 0, channels: [{ name: "a", unit: "FS", data: new Float64Array([0, 1.2]) }] };
+    const rec = {
+      rate: 8000,
+      startTime: 0,
+      channels: [{ name: "a", unit: "FS", data: new Float64Array([0, 1.2]) }],
+    };
     expect(() => encodeWav(rec, "pcm16")).toThrow(RangeError);
   });
 });
@@ -76,7 +83,8 @@ describe("WAV files that are refused", () => {
   };
 
   test("truncated data chunk", () => refuse(good.subarray(0, good.length - 10), /truncated/));
-  test("header cut inside the fmt chunk", () => refuse(good.subarray(0, 30), /truncated or malformed fmt|no fmt/));
+  test("header cut inside the fmt chunk", () =>
+    refuse(good.subarray(0, 30), /truncated or malformed fmt|no fmt/));
   test("unsupported encoding (µ-law)", () => {
     const b = good.slice();
     new DataView(b.buffer).setUint16(20, 7, true);
@@ -88,5 +96,6 @@ describe("WAV files that are refused", () => {
     v.setUint16(34, 12, true);
     refuse(b, /12 bits/);
   });
-  test("not a WAV at all", () => refuse(new TextEncoder().encode("RIFX1234WAVEfmt "), /not a RIFF\/WAVE/));
+  test("not a WAV at all", () =>
+    refuse(new TextEncoder().encode("RIFX1234WAVEfmt "), /not a RIFF\/WAVE/));
 });

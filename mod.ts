@@ -1,0 +1,35 @@
+/**
+ * quiver: a toolkit for vehicle noise-and-vibration test data.
+ *
+ * Data flow: a reader gives a {@linkcode Recording} (rate, channels with
+ * name, unit and samples); the spectral core turns channels into averaged
+ * auto and cross spectra; analyses turn those into tables; writers put
+ * tables into CSV or JSON files atomically.
+ *
+ * @example
+ * ```ts
+ * import { averagedSpectrum, parseCsvRecording } from "./mod.ts";
+ * const rows = Array.from({ length: 1024 }, (_, i) => `${i / 1024},${Math.sin(2 * Math.PI * 64 * i / 1024)}`);
+ * const recording = parseCsvRecording(`time_s,mount_acc [m/s^2]\n${rows.join("\n")}\n`);
+ * const table = averagedSpectrum(recording, { block: 256, kind: "peak", window: "flattop" });
+ * const peak = Math.max(...table.columns[1].values);
+ * if (Math.abs(peak - 1) > 0.005) throw new Error();
+ * ```
+ *
+ * @module
+ */
+export * from "./lib/errors.ts";
+export * from "./lib/io/recording.ts";
+export * from "./lib/io/numbers.ts";
+export * from "./lib/io/csv_reader.ts";
+export * from "./lib/io/wav.ts";
+export * from "./lib/io/channel_setup.ts";
+export * from "./lib/io/read_recording.ts";
+export * from "./lib/io/table.ts";
+export * from "./lib/io/atomic_write.ts";
+export * from "./lib/dsp/fft.ts";
+export * from "./lib/dsp/windows.ts";
+export * from "./lib/dsp/detrend.ts";
+export * from "./lib/dsp/spectral_core.ts";
+export * from "./lib/dsp/spectrum_kinds.ts";
+export * from "./lib/dsp/averaged_spectrum.ts";

@@ -1,0 +1,25 @@
+/**
+ * A vitest reporter that ends the run with one plain line,
+ * "tests: N passed, N failed[, N skipped]", which CI logs can be read by.
+ */
+import type { Reporter, TestModule } from "vitest/node";
+
+export default class SummaryReporter implements Reporter {
+  onTestRunEnd(testModules: ReadonlyArray<TestModule>): void {
+    let passed = 0;
+    let failed = 0;
+    let skipped = 0;
+    for (const module of testModules) {
+      for (const test of module.children.allTests()) {
+        const state = test.result().state;
+        if (state === "passed") passed++;
+        else if (state === "failed") failed++;
+        else skipped++;
+      }
+      if (module.state() === "failed" && module.children.size === 0) failed++;
+    }
+    console.log(
+      `tests: ${passed} passed, ${failed} failed${skipped > 0 ? `, ${skipped} skipped` : ""}`,
+    );
+  }
+}
