@@ -62,10 +62,9 @@ function report(error: unknown, command: string, debug: boolean): number {
     process.stderr.write(`quiver ${command}: ${error.message}\n`);
     return error.kind === "usage" ? 2 : 1;
   }
-  if (
-    error instanceof RangeError ||
-    error instanceof TypeError && !(error.stack ?? "").includes("node_modules")
-  ) {
+  // Library functions throw RangeError for impossible parameters, which on
+  // the command line come from options. Anything else is a bug of ours.
+  if (error instanceof RangeError) {
     process.stderr.write(`quiver ${command}: ${error.message}\n`);
     return 2;
   }

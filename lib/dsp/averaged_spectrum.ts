@@ -64,10 +64,15 @@ export function averagedSpectrum(
     );
   }
   const kind = options.kind ?? "psd";
+  const { overlap, window, detrend, average, tau } = options;
   const estimate = spectralEstimate(channels.map((c) => c.data), {
-    ...options,
     rate: recording.rate,
     block,
+    overlap,
+    window,
+    detrend,
+    average,
+    tau,
   });
   const gains = windowGains(windowSamples(estimate.window, block));
   const columns: TableColumn[] = [
