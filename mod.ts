@@ -19,6 +19,7 @@
  * @module
  */
 export * from "./lib/errors.ts";
+export * from "./lib/choices.ts";
 export * from "./lib/io/recording.ts";
 export * from "./lib/io/numbers.ts";
 export * from "./lib/io/csv_reader.ts";

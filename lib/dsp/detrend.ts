@@ -3,6 +3,7 @@
  *
  * @module
  */
+import { parseChoice } from "../choices.ts";
 
 /** What to remove from each segment before windowing. */
 export const DETREND_MODES = ["none", "mean", "linear"] as const;
@@ -22,12 +23,7 @@ export type DetrendMode = typeof DETREND_MODES[number];
  * ```
  */
 export function parseDetrendMode(mode: string): DetrendMode {
-  if ((DETREND_MODES as readonly string[]).includes(mode)) {
-    return mode as DetrendMode;
-  }
-  throw new RangeError(
-    `unknown detrend "${mode}"; expected one of ${DETREND_MODES.join(", ")}`,
-  );
+  return parseChoice(mode, DETREND_MODES, "detrend");
 }
 
 /**

@@ -15,6 +15,7 @@
  *
  * @module
  */
+import { parseChoice } from "../choices.ts";
 import { oneSidedWeights, scaleFactor, type SpectralEstimate } from "./spectral_core.ts";
 
 /** The spectrum kinds. */
@@ -35,12 +36,7 @@ export type SpectrumKind = typeof SPECTRUM_KINDS[number];
  * ```
  */
 export function parseSpectrumKind(kind: string): SpectrumKind {
-  if ((SPECTRUM_KINDS as readonly string[]).includes(kind)) {
-    return kind as SpectrumKind;
-  }
-  throw new RangeError(
-    `unknown spectrum kind "${kind}"; expected one of ${SPECTRUM_KINDS.join(", ")}`,
-  );
+  return parseChoice(kind, SPECTRUM_KINDS, "spectrum kind");
 }
 
 /**

@@ -8,6 +8,7 @@
  *
  * @module
  */
+import { parseChoice } from "../choices.ts";
 
 /** The windows quiver offers. */
 export const WINDOW_NAMES = [
@@ -72,12 +73,7 @@ export const WINDOW_DEFINITIONS: Readonly<Record<WindowName, WindowDefinition>> 
  * ```
  */
 export function parseWindowName(name: string): WindowName {
-  if ((WINDOW_NAMES as readonly string[]).includes(name)) {
-    return name as WindowName;
-  }
-  throw new RangeError(
-    `unknown window "${name}"; expected one of ${WINDOW_NAMES.join(", ")}`,
-  );
+  return parseChoice(name, WINDOW_NAMES, "window");
 }
 
 /**
