@@ -59,6 +59,9 @@ export function parseCommandArgs<S extends z.ZodType>(
   if (!result.success) {
     const issue = result.error.issues[0];
     const name = issue.path.map(String).join(".");
+    if (name !== "" && (rest as Record<string, unknown>)[name] === undefined) {
+      usageError(`--${name} is required`);
+    }
     usageError(name === "" ? issue.message : `--${name}: ${issue.message}`);
   }
   return { positionals: parsed.positionals, values: result.data };

@@ -8,6 +8,8 @@
  */
 import process from "node:process";
 import { QuiverError } from "../lib/errors.ts";
+import * as frf from "./frf.ts";
+import * as hammer from "./hammer.ts";
 import * as spectrum from "./spectrum.ts";
 
 interface Command {
@@ -16,7 +18,7 @@ interface Command {
   run(argv: readonly string[]): Promise<void>;
 }
 
-const COMMANDS: Readonly<Record<string, Command>> = { spectrum };
+const COMMANDS: Readonly<Record<string, Command>> = { spectrum, frf, hammer };
 
 const MAIN_HELP = `quiver: NVH test data from raw time histories to trustworthy numbers
 

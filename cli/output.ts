@@ -6,7 +6,7 @@
 import process from "node:process";
 import { QuiverError } from "../lib/errors.ts";
 import { writeFileAtomic } from "../lib/io/atomic_write.ts";
-import { formatCsv, formatJson, type Table } from "../lib/io/table.ts";
+import { type ColumnValues, formatCsv, formatJson, type Table } from "../lib/io/table.ts";
 
 /** Output formats of table-writing commands. */
 export type TableFormat = "csv" | "json";
@@ -30,7 +30,7 @@ export function resolveFormat(
 
 /** Writes the table to `out` atomically, or to stdout when `out` is undefined. */
 export async function writeTable(
-  table: Table,
+  table: Table<ColumnValues>,
   format: TableFormat,
   out: string | undefined,
 ): Promise<void> {

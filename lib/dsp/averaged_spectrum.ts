@@ -4,21 +4,17 @@
  *
  * @module
  */
-import { QuiverError } from "../errors.ts";
 import { type Recording, recordingLength, selectChannels } from "../io/recording.ts";
 import type { Table, TableColumn } from "../io/table.ts";
-import { blockForResolution, spectralEstimate, type SpectralOptions } from "./spectral_core.ts";
+import { resolveBlock, spectralEstimate, type SpectralOptions } from "./spectral_core.ts";
 import { autoSpectrum, type SpectrumKind, spectrumUnit } from "./spectrum_kinds.ts";
 import { WINDOW_DEFINITIONS, windowGains, windowSamples } from "./windows.ts";
-
-/** Default block length when neither block nor resolution is given. */
-export const DEFAULT_BLOCK = 4096;
 
 /** Options of {@linkcode averagedSpectrum}. */
 export interface AveragedSpectrumOptions extends Omit<SpectralOptions, "rate" | "block" | "pairs"> {
   /** Channel names, in output order. Default: every channel. */
   channels?: readonly string[];
-  /** Samples per block. Default {@linkcode DEFAULT_BLOCK}, unless `resolution` is given. */
+  /** Samples per block. Default 4096 (`DEFAULT_BLOCK`), unless `resolution` is given. */
   block?: number;
   /** Wanted line spacing in Hz; the block becomes ceil(rate/resolution). Default: none. */
   resolution?: number;
@@ -48,21 +44,9 @@ export function averagedSpectrum(
   recording: Recording,
   options: AveragedSpectrumOptions = {},
 ): Table {
-  if (options.block !== undefined && options.resolution !== undefined) {
-    throw new RangeError("give a block length or a resolution, not both");
-  }
-  const block = options.resolution !== undefined
-    ? blockForResolution(recording.rate, options.resolution)
-    : options.block ?? DEFAULT_BLOCK;
   const channels = selectChannels(recording, options.channels);
   const length = recordingLength(recording);
-  if (block > length) {
-    throw new QuiverError(
-      `a block of ${block} samples (${
-        block / recording.rate
-      } s) is longer than the record of ${length} samples (${length / recording.rate} s)`,
-    );
-  }
+  const block = resolveBlock(recording.rate, length, options);
   const kind = options.kind ?? "psd";
   const { overlap, window, detrend, average, tau } = options;
   const estimate = spectralEstimate(channels.map((c) => c.data), {

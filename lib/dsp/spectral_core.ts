@@ -164,6 +164,43 @@ export function blockForResolution(rate: number, resolution: number): number {
   return Math.ceil(rate / resolution - 1e-9);
 }
 
+/** Default block length when neither block nor resolution is given. */
+export const DEFAULT_BLOCK = 4096;
+
+/**
+ * The block an analysis uses: `block`, else ceil(rate/`resolution`), else
+ * {@linkcode DEFAULT_BLOCK}, checked against the record length.
+ *
+ * @throws {RangeError} when both are given; {@linkcode QuiverError} when the
+ * block is longer than the record.
+ *
+ * @example
+ * ```ts
+ * import { resolveBlock } from "./spectral_core.ts";
+ * if (resolveBlock(2048, 10000, { resolution: 1 }) !== 2048) throw new Error();
+ * ```
+ */
+export function resolveBlock(
+  rate: number,
+  recordLength: number,
+  choice: { block?: number; resolution?: number },
+): number {
+  if (choice.block !== undefined && choice.resolution !== undefined) {
+    throw new RangeError("give a block length or a resolution, not both");
+  }
+  const block = choice.resolution !== undefined
+    ? blockForResolution(rate, choice.resolution)
+    : choice.block ?? DEFAULT_BLOCK;
+  if (block > recordLength) {
+    throw new QuiverError(
+      `a block of ${block} samples (${
+        block / rate
+      } s) is longer than the record of ${recordLength} samples (${recordLength / rate} s)`,
+    );
+  }
+  return block;
+}
+
 /** Smallest block the core accepts. */
 export const MIN_BLOCK = 8;
 
@@ -329,19 +366,38 @@ export class SpectralAccumulator {
       this.#filled += take;
       offset += take;
       if (this.#filled === block) {
-        this.#processSegment();
+        this.#processSegment(this.#buffers);
         for (const buffer of this.#buffers) buffer.copyWithin(0, hop);
         this.#filled = block - hop;
       }
     }
   }
 
-  #processSegment(): void {
+  /**
+   * Adds one whole segment (exactly one block per channel), bypassing the
+   * overlap buffer: for records cut by the caller, such as one record per
+   * hammer hit. Detrend and window still apply.
+   *
+   * @throws {RangeError} when the segment is not one block of every channel.
+   */
+  pushSegment(segment: readonly Float64Array[]): void {
+    if (
+      segment.length !== this.#channelCount ||
+      segment.some((c) => c.length !== this.#o.block)
+    ) {
+      throw new RangeError(
+        `a segment must hold ${this.#channelCount} channels of ${this.#o.block} samples`,
+      );
+    }
+    this.#processSegment(segment);
+  }
+
+  #processSegment(source: readonly Float64Array[]): void {
     const { detrend, average, pairs } = this.#o;
     const scratch = this.#scratch;
     const window = this.#window;
     for (let c = 0; c < this.#channelCount; c++) {
-      scratch.set(this.#buffers[c]);
+      scratch.set(source[c]);
       detrendInPlace(scratch, detrend);
       for (let i = 0; i < scratch.length; i++) scratch[i] *= window[i];
       this.#plan.forward(scratch, this.#re[c], this.#im[c]);

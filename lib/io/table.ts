@@ -5,20 +5,23 @@
  * @module
  */
 
-/** One column of a table. */
-export interface TableColumn {
+/** What a column can hold: numbers, or text labels (e.g. a hit's status). */
+export type ColumnValues = Float64Array | readonly string[];
+
+/** One column of a table; numeric unless said otherwise. */
+export interface TableColumn<V extends ColumnValues = Float64Array> {
   /** Column name as it appears in the CSV header. */
   readonly name: string;
   /** Unit of the values, "" for none; CSV headers show it as ` [unit]`. */
   readonly unit: string;
   /** The values, one per row. */
-  readonly values: Float64Array;
+  readonly values: V;
 }
 
 /** A table with the metadata that makes it traceable. */
-export interface Table {
+export interface Table<V extends ColumnValues = Float64Array> {
   /** The columns, all of one length. */
-  readonly columns: readonly TableColumn[];
+  readonly columns: readonly TableColumn<V>[];
   /** Anything a reader needs to reproduce the numbers (JSON-serialisable). */
   readonly metadata: Readonly<Record<string, unknown>>;
 }
@@ -32,7 +35,7 @@ export interface Table {
  * if (columnHeader({ name: "mic", unit: "Pa^2/Hz", values: new Float64Array() }) !== "mic [Pa^2/Hz]") throw new Error();
  * ```
  */
-export function columnHeader(column: TableColumn): string {
+export function columnHeader(column: TableColumn<ColumnValues>): string {
   return column.unit === "" ? column.name : `${column.name} [${column.unit}]`;
 }
 
@@ -55,14 +58,19 @@ function csvCell(text: string): string {
  * if (csv !== "frequency_hz,a [V]\n0,1\n0.5,2\n") throw new Error();
  * ```
  */
-export function formatCsv(table: Table): string {
+export function formatCsv(table: Table<ColumnValues>): string {
   const rows = table.columns[0]?.values.length ?? 0;
   if (table.columns.some((c) => c.values.length !== rows)) {
     throw new RangeError("every column of a table must have the same length");
   }
   const lines = [table.columns.map((c) => csvCell(columnHeader(c))).join(",")];
   for (let r = 0; r < rows; r++) {
-    lines.push(table.columns.map((c) => String(c.values[r])).join(","));
+    lines.push(
+      table.columns.map((c) => {
+        const value = c.values[r];
+        return typeof value === "string" ? csvCell(value) : String(value);
+      }).join(","),
+    );
   }
   return lines.join("\n") + "\n";
 }
@@ -77,14 +85,14 @@ export function formatCsv(table: Table): string {
  * if (json.columns[0].values[0] !== 1 || json.metadata.rate !== 8) throw new Error();
  * ```
  */
-export function formatJson(table: Table): string {
+export function formatJson(table: Table<ColumnValues>): string {
   return JSON.stringify(
     {
       metadata: table.metadata,
       columns: table.columns.map((c) => ({
         name: c.name,
         unit: c.unit,
-        values: Array.from(c.values),
+        values: Array.from<number | string>(c.values),
       })),
     },
     null,

@@ -1,0 +1,196 @@
+/**
+ * Averaged FRFs with coherence from continuous excitation (shaker random,
+ * burst random, sine sweep): the analysis behind the `frf` command. One
+ * pass of the spectral core gives Gxx, every Gyy and every Gxy.
+ *
+ * @module
+ */
+import { QuiverError } from "../errors.ts";
+import { type Channel, type Recording, recordingLength, selectChannels } from "../io/recording.ts";
+import type { Table, TableColumn } from "../io/table.ts";
+import { resolveBlock, type SpectralEstimate, spectralEstimate } from "../dsp/spectral_core.ts";
+import type { DetrendMode } from "../dsp/detrend.ts";
+import { WINDOW_DEFINITIONS, type WindowName } from "../dsp/windows.ts";
+import { coherence, type Estimator, frfEstimate } from "./estimators.ts";
+import {
+  convertFrfForm,
+  formOfResponseUnit,
+  formPower,
+  type FrfForm,
+  frfUnit,
+  responseUnitOfForm,
+} from "./forms.ts";
+import { responseColumns, type ResponseFrf } from "./frf_table.ts";
+
+/** Options of {@linkcode frequencyResponse}. */
+export interface FrfOptions {
+  /** The excitation channel (force). Required. */
+  input: string;
+  /** The response channels. Required, at least one. */
+  outputs: readonly string[];
+  /** Estimator. Default `"h1"`. */
+  estimator?: Estimator;
+  /** Samples per block. Default 4096 unless `resolution` is given. */
+  block?: number;
+  /** Line spacing in Hz instead of `block`. Default: none. */
+  resolution?: number;
+  /** Overlap fraction in [0, 1). Default 0.5. */
+  overlap?: number;
+  /** Window. Default `"hann"`. */
+  window?: WindowName;
+  /** Detrend. Default `"mean"`. */
+  detrend?: DetrendMode;
+  /** Output form; default: the measured form (no conversion). */
+  form?: FrfForm;
+}
+
+/** An FRF table and the warnings that travel with it. */
+export interface FrfResult {
+  /** The table (see frf_table.ts for its columns). */
+  readonly table: Table;
+  /** Warnings, also in `table.metadata.warnings`. */
+  readonly warnings: readonly string[];
+}
+
+/** The FRF part of a table: columns plus the metadata that describes them. */
+export interface FrfTableParts {
+  /** `frequency_hz`, then six columns per response. */
+  readonly columns: TableColumn[];
+  /** estimator, input, responses (with forms and units), first_line_dropped. */
+  readonly metadata: Readonly<Record<string, unknown>>;
+}
+
+/**
+ * Turns the core's estimate (channel 0 the input, pairs [0, i] for every
+ * response i) into FRF columns in the requested form. Shared by the `frf`
+ * and `hammer` analyses. When the conversion divides by jω, the 0 Hz line
+ * (undefined there) is dropped from every column.
+ *
+ * @throws {QuiverError} (usage) when a conversion is asked for a response
+ * whose unit does not say what it measures.
+ */
+export function frfTableParts(
+  estimate: SpectralEstimate,
+  input: Channel,
+  outputs: readonly Channel[],
+  estimator: Estimator,
+  form: FrfForm | undefined,
+): FrfTableParts {
+  const measured = outputs.map((o) => formOfResponseUnit(o.unit));
+  const responses: ResponseFrf[] = outputs.map((output, i) => {
+    const cross = estimate.cross[i];
+    const spectra = {
+      gxx: estimate.auto[0],
+      gyy: estimate.auto[i + 1],
+      gxyRe: cross.re,
+      gxyIm: cross.im,
+    };
+    let h = frfEstimate(spectra, estimator);
+    let responseUnit = output.unit;
+    const from = measured[i];
+    if (form !== undefined && form !== from) {
+      if (from === undefined) {
+        throw new QuiverError(
+          `cannot convert "${output.name}" to ${form}: its unit [${output.unit}] is not m/s^2, m/s or m`,
+          {},
+          "usage",
+        );
+      }
+      h = convertFrfForm(h, estimate.frequencies, from, form);
+      responseUnit = responseUnitOfForm(form);
+    }
+    return {
+      name: output.name,
+      unit: frfUnit(responseUnit, input.unit),
+      h,
+      coherence: coherence(spectra),
+    };
+  });
+  const dividedAtDc = form !== undefined &&
+    measured.some((m) => m !== undefined && formPower(form) < formPower(m));
+  const columns: TableColumn[] = [
+    { name: "frequency_hz", unit: "", values: estimate.frequencies },
+    ...responses.flatMap((r) => responseColumns(r, estimate.averages)),
+  ];
+  return {
+    columns: dividedAtDc ? columns.map((c) => ({ ...c, values: c.values.subarray(1) })) : columns,
+    metadata: {
+      estimator,
+      input: { name: input.name, unit: input.unit },
+      responses: outputs.map((o, i) => ({
+        name: o.name,
+        unit: o.unit,
+        measured_form: measured[i] ?? null,
+        form: form ?? measured[i] ?? null,
+        frf_unit: responses[i].unit,
+      })),
+      first_line_dropped: dividedAtDc,
+    },
+  };
+}
+
+/** The warning for an FRF from a single average. */
+export const SINGLE_AVERAGE_WARNING =
+  "only one average: coherence is identically 1 and says nothing about noise or nonlinearity; the random error column is 0 for the same reason";
+
+/**
+ * Averaged FRFs of every output against the input, with coherence and
+ * random error.
+ *
+ * @throws {QuiverError} for unknown channels, a record shorter than one
+ * block, or an impossible form conversion; RangeError for bad options.
+ *
+ * @example
+ * ```ts
+ * import { frequencyResponse } from "./frf_analysis.ts";
+ * const x = new Float64Array(4096).map((_, i) => Math.sin(0.37 * i) + Math.sin(1.3 * i));
+ * const y = x.map((v) => 2.5 * v);
+ * const rec = { rate: 1000, startTime: 0, channels: [
+ *   { name: "force", unit: "N", data: x }, { name: "acc", unit: "m/s^2", data: y }] };
+ * const { table } = frequencyResponse(rec, { input: "force", outputs: ["acc"], block: 512 });
+ * const mag = table.columns.find((c) => c.name === "acc_mag")!;
+ * if (Math.abs(mag.values[60] - 2.5) > 1e-9) throw new Error();
+ * ```
+ */
+export function frequencyResponse(recording: Recording, options: FrfOptions): FrfResult {
+  if (options.outputs.length === 0) {
+    throw new RangeError("name at least one response channel");
+  }
+  if (options.outputs.includes(options.input)) {
+    throw new QuiverError(`"${options.input}" is both input and response`, {}, "usage");
+  }
+  const [input, ...outputs] = selectChannels(recording, [options.input, ...options.outputs]);
+  const block = resolveBlock(recording.rate, recordingLength(recording), options);
+  const estimator = options.estimator ?? "h1";
+  const estimate = spectralEstimate([input.data, ...outputs.map((o) => o.data)], {
+    rate: recording.rate,
+    block,
+    overlap: options.overlap,
+    window: options.window,
+    detrend: options.detrend,
+    pairs: outputs.map((_, i) => [0, i + 1] as const),
+  });
+  const parts = frfTableParts(estimate, input, outputs, estimator, options.form);
+  const warnings = estimate.averages === 1 ? [SINGLE_AVERAGE_WARNING] : [];
+  return {
+    warnings,
+    table: {
+      columns: parts.columns,
+      metadata: {
+        analysis: "frf",
+        ...parts.metadata,
+        rate_hz: estimate.rate,
+        block: estimate.block,
+        df_hz: estimate.df,
+        overlap: options.overlap ?? 0.5,
+        overlap_samples: estimate.overlapSamples,
+        averages: estimate.averages,
+        window: estimate.window,
+        window_source: WINDOW_DEFINITIONS[estimate.window].source,
+        detrend: estimate.detrend,
+        record_samples: recordingLength(recording),
+        warnings,
+      },
+    },
+  };
+}

@@ -1,0 +1,223 @@
+/**
+ * Impact testing from one continuous recording: find the hits, cut one
+ * record per hit, window it, and average H1 over the accepted hits only.
+ *
+ * Per record (all channels): the mean of the first half of the pre-trigger
+ * is removed. The force then gets the force window: 1 from the record start
+ * to the end of the force window, with a half-cosine taper over its last
+ * quarter, and 0 after (default length: the pre-trigger plus four times the
+ * median pulse width). An optional exponential window exp(−t/τ), t from the
+ * record start, goes on every channel (force and responses alike, so the
+ * FRF is that of the structure with added damping 1/(τ·ωn), which the
+ * damping analysis removes; Ewins, Modal Testing, 2nd ed., sec. 3.11).
+ * The records then go through the spectral core with a rectangular window
+ * and no further detrend; coherence comes out across hits.
+ *
+ * @module
+ */
+import { QuiverError } from "../errors.ts";
+import { type Recording, selectChannels } from "../io/recording.ts";
+import type { Table } from "../io/table.ts";
+import { SpectralAccumulator } from "../dsp/spectral_core.ts";
+import type { FrfForm } from "./forms.ts";
+import { frfTableParts, SINGLE_AVERAGE_WARNING } from "./frf_analysis.ts";
+import { findHits, type Hit } from "./hits.ts";
+
+/** Options of {@linkcode hammerFrf}. */
+export interface HammerOptions {
+  /** Force (hammer) channel. Required. */
+  force: string;
+  /** Response channels. Required, at least one. */
+  outputs: readonly string[];
+  /** Trigger level above the baseline in the force's unit. Default: derived (see hits.ts). */
+  trigger?: number;
+  /** Pre-trigger in seconds. Default 0.01 s. */
+  pretrigger?: number;
+  /** Record length in seconds. Default: derived from the hit spacing (see hits.ts). */
+  record?: number;
+  /** Force window length in seconds from the record start. Default: pre-trigger + 4 pulse widths. */
+  forceWindow?: number;
+  /** Exponential window time constant τ in seconds. Default: none. */
+  expTau?: number;
+  /** Exponential window given by its value at the record end, in (0, 1). Default: none. */
+  expEnd?: number;
+  /** Force channel full-scale range; peaks at or above it are overloads. Default: none. */
+  range?: number;
+  /** Output FRF form. Default: the measured form. */
+  form?: FrfForm;
+}
+
+/** The averaged FRF, the hit log and the warnings. */
+export interface HammerResult {
+  /** FRF table, the same layout as `frf`'s. */
+  readonly table: Table;
+  /** Hit log: `hit`, `time_s`, `peak`, `status`. */
+  readonly hitLog: Table<Float64Array | readonly string[]>;
+  /** The hits with their classification. */
+  readonly hits: readonly Hit[];
+  /** Warnings, also in the table's metadata. */
+  readonly warnings: readonly string[];
+  /** One line such as "6 hits: 4 accepted, 1 double, 1 overload". */
+  readonly summary: string;
+}
+
+/** "6 hits: 4 accepted, 1 double, 1 overload". */
+function summarise(hits: readonly Hit[]): string {
+  const counts = (["accepted", "double", "overload", "short"] as const)
+    .map((status) => [status, hits.filter((h) => h.status === status).length] as const)
+    .filter(([, count]) => count > 0)
+    .map(([status, count]) => `${count} ${status}`);
+  return `${hits.length} hit${hits.length === 1 ? "" : "s"}: ${counts.join(", ")}`;
+}
+
+/** Half-cosine-tapered force window of `length` samples in a record of `size`. */
+function forceWindowSamples(size: number, length: number): Float64Array {
+  const w = new Float64Array(size);
+  const taper = Math.max(1, Math.floor(length / 4));
+  const flat = length - taper;
+  for (let i = 0; i < Math.min(size, length); i++) {
+    w[i] = i < flat ? 1 : 0.5 * (1 + Math.cos(Math.PI * (i - flat + 1) / (taper + 1)));
+  }
+  return w;
+}
+
+/**
+ * Averaged H1 over the accepted hits of a hammer test.
+ *
+ * @throws {QuiverError} when no hit is accepted or channels are unknown;
+ * RangeError for impossible options.
+ */
+export function hammerFrf(recording: Recording, options: HammerOptions): HammerResult {
+  if (options.outputs.length === 0) throw new RangeError("name at least one response channel");
+  if (options.expTau !== undefined && options.expEnd !== undefined) {
+    throw new RangeError(
+      "give the exponential window by its time constant or by its end value, not both",
+    );
+  }
+  if (options.expEnd !== undefined && !(options.expEnd > 0 && options.expEnd < 1)) {
+    throw new RangeError(
+      `the exponential window's end value must be in (0, 1), got ${options.expEnd}`,
+    );
+  }
+  for (
+    const [name, value] of [
+      ["pretrigger", options.pretrigger],
+      ["record", options.record],
+      [
+        "force window",
+        options.forceWindow,
+      ],
+      ["exponential time constant", options.expTau],
+      ["trigger", options.trigger],
+      ["range", options.range],
+    ] as const
+  ) {
+    if (value !== undefined && !(value > 0 && Number.isFinite(value))) {
+      throw new RangeError(`${name} must be a positive number, got ${value}`);
+    }
+  }
+  if (options.outputs.includes(options.force)) {
+    throw new QuiverError(`"${options.force}" is both force and response`, {}, "usage");
+  }
+  const [force, ...outputs] = selectChannels(recording, [options.force, ...options.outputs]);
+  const rate = recording.rate;
+  const pretriggerSamples = Math.round((options.pretrigger ?? 0.01) * rate);
+  const detection = findHits(force.data, {
+    pretriggerSamples,
+    ...(options.record !== undefined ? { recordSamples: Math.round(options.record * rate) } : {}),
+    ...(options.trigger !== undefined ? { trigger: options.trigger } : {}),
+    ...(options.range !== undefined ? { range: options.range } : {}),
+  });
+  const { hits, recordSamples } = detection;
+  if (pretriggerSamples >= recordSamples) {
+    throw new RangeError("the pre-trigger must be shorter than the record");
+  }
+  const accepted = hits.filter((h) => h.status === "accepted");
+  const summary = summarise(hits);
+  if (accepted.length === 0) {
+    throw new QuiverError(`no accepted hit to average (${summary})`);
+  }
+  const pulses = accepted.map((h) => h.pulseSamples).sort((a, b) => a - b);
+  const forceWindowLength = options.forceWindow !== undefined
+    ? Math.round(options.forceWindow * rate)
+    : pretriggerSamples + 4 * pulses[Math.floor(pulses.length / 2)];
+  if (forceWindowLength > recordSamples) {
+    throw new RangeError("the force window is longer than the record");
+  }
+  const tau = options.expTau ??
+    (options.expEnd !== undefined ? -(recordSamples / rate) / Math.log(options.expEnd) : undefined);
+
+  const forceWindow = forceWindowSamples(recordSamples, forceWindowLength);
+  const exponential = new Float64Array(recordSamples).map((_, i) =>
+    tau === undefined ? 1 : Math.exp(-i / (rate * tau))
+  );
+  const channels = [force, ...outputs];
+  const accumulator = new SpectralAccumulator(channels.length, {
+    rate,
+    block: recordSamples,
+    overlap: 0,
+    window: "rectangular",
+    detrend: "none",
+    pairs: outputs.map((_, i) => [0, i + 1] as const),
+  });
+  const baselineSamples = Math.max(1, Math.floor(pretriggerSamples / 2));
+  const records = channels.map(() => new Float64Array(recordSamples));
+  for (const hit of accepted) {
+    const start = hit.sample - pretriggerSamples;
+    channels.forEach((channel, c) => {
+      const record = records[c];
+      record.set(channel.data.subarray(start, start + recordSamples));
+      let offset = 0;
+      for (let i = 0; i < baselineSamples; i++) offset += record[i];
+      offset /= baselineSamples;
+      for (let i = 0; i < recordSamples; i++) {
+        record[i] = (record[i] - offset) * exponential[i] * (c === 0 ? forceWindow[i] : 1);
+      }
+    });
+    accumulator.pushSegment(records);
+  }
+  const estimate = accumulator.finish();
+  const parts = frfTableParts(estimate, force, outputs, "h1", options.form);
+  const warnings = [
+    ...(accepted.length === 1 ? [SINGLE_AVERAGE_WARNING] : []),
+    ...hits.filter((h) => h.status !== "accepted").map((h) =>
+      `hit ${h.hit} at ${
+        (recording.startTime + h.sample / rate).toFixed(4)
+      } s left out: ${h.status} (${h.reason})`
+    ),
+  ];
+  const table: Table = {
+    columns: parts.columns,
+    metadata: {
+      analysis: "hammer",
+      ...parts.metadata,
+      rate_hz: rate,
+      block: recordSamples,
+      df_hz: rate / recordSamples,
+      averages: estimate.averages,
+      hits_summary: summary,
+      hits_accepted: accepted.map((h) => h.hit),
+      trigger_level: detection.trigger,
+      force_baseline: detection.baseline,
+      pretrigger_s: pretriggerSamples / rate,
+      record_s: recordSamples / rate,
+      force_window_s: forceWindowLength / rate,
+      exponential_window_tau_s: tau ?? null,
+      warnings,
+    },
+  };
+  const hitLog: Table<Float64Array | readonly string[]> = {
+    columns: [
+      { name: "hit", unit: "", values: new Float64Array(hits.map((h) => h.hit)) },
+      {
+        name: "time_s",
+        unit: "",
+        values: new Float64Array(hits.map((h) => recording.startTime + h.sample / rate)),
+      },
+      { name: "peak", unit: "", values: new Float64Array(hits.map((h) => h.peak)) },
+      { name: "status", unit: "", values: hits.map((h) => h.status) },
+    ],
+    metadata: { analysis: "hammer hits", force: force.name, force_unit: force.unit, summary },
+  };
+  return { table, hitLog, hits, warnings, summary };
+}

@@ -1,0 +1,196 @@
+/**
+ * Finding and classifying impact-hammer hits in one continuous force
+ * recording.
+ *
+ * Detection: the force's baseline (median) is removed and its polarity taken
+ * from the larger excursion. A hit starts where the force crosses the
+ * trigger level upwards while armed; the detector re-arms only after the
+ * force has fallen below half the trigger level (hysteresis), so one pulse
+ * triggers once. The default trigger level is the larger of 5 % of the
+ * largest force and 5 σ of the noise (σ from the median absolute deviation),
+ * both common practice.
+ *
+ * Classification of each hit's record (pretrigger + record length):
+ * - `short`: the record runs off either end of the file;
+ * - `overload`: a flat top (3 or more consecutive samples equal to the peak,
+ *   as clipped converters write) or a peak at or above the stated range;
+ * - `double`: another trigger crossing inside the record, the classic rebound;
+ * - `accepted`: none of these.
+ * The first that applies, in this order, is the hit's status.
+ *
+ * @module
+ */
+import { QuiverError } from "../errors.ts";
+
+/** What became of a hit. */
+export type HitStatus = "accepted" | "double" | "overload" | "short";
+
+/** One detected hit. */
+export interface Hit {
+  /** 1-based number in time order. */
+  readonly hit: number;
+  /** Sample of the trigger crossing. */
+  readonly sample: number;
+  /** Sample of the force peak. */
+  readonly peakSample: number;
+  /** Force peak above the baseline, with its sign, in the channel's unit. */
+  readonly peak: number;
+  /** Samples from the crossing until the force fell below the re-arm level. */
+  readonly pulseSamples: number;
+  /** The classification. */
+  readonly status: HitStatus;
+  /** Why a hit was not accepted, in words. */
+  readonly reason?: string;
+}
+
+/** Options of {@linkcode findHits}. */
+export interface HitOptions {
+  /** Trigger level above the baseline, in the force's unit. Default: derived (see module). */
+  trigger?: number;
+  /** Samples of pre-trigger in each record. Required. */
+  pretriggerSamples: number;
+  /**
+   * Samples per record. Default: the largest power of two that fits in 90 %
+   * of the median spacing of the crossings, less the pre-trigger.
+   */
+  recordSamples?: number;
+  /** Full-scale range of the force channel; a peak at or above it is an overload. Default: none. */
+  range?: number;
+}
+
+/** Hits and the settings that found them. */
+export interface HitDetection {
+  /** Every hit, in time order. */
+  readonly hits: readonly Hit[];
+  /** Trigger level used, above the baseline. */
+  readonly trigger: number;
+  /** Baseline removed from the force (median). */
+  readonly baseline: number;
+  /** +1 when hits push the force positive, −1 when negative. */
+  readonly polarity: 1 | -1;
+  /** Samples per record. */
+  readonly recordSamples: number;
+}
+
+function median(values: Float64Array): number {
+  const sorted = values.slice().sort();
+  const mid = Math.floor(sorted.length / 2);
+  return sorted.length % 2 === 1 ? sorted[mid] : (sorted[mid - 1] + sorted[mid]) / 2;
+}
+
+/**
+ * Finds and classifies the hits on a force channel.
+ *
+ * @throws {QuiverError} when no hit crosses the trigger, or the record
+ * length cannot be derived from fewer than two hits.
+ *
+ * @example
+ * ```ts
+ * import { findHits } from "./hits.ts";
+ * const f = new Float64Array(4000);
+ * for (const at of [500, 1500, 2500]) for (let i = 0; i < 10; i++) f[at + i] = 100 * Math.sin(Math.PI * (i + 0.5) / 10);
+ * const d = findHits(f, { pretriggerSamples: 20 });
+ * if (d.hits.length !== 3 || d.hits.some((h) => h.status !== "accepted")) throw new Error();
+ * ```
+ */
+export function findHits(force: Float64Array, options: HitOptions): HitDetection {
+  const n = force.length;
+  const baseline = median(force);
+  let max = -Infinity;
+  let min = Infinity;
+  for (let i = 0; i < n; i++) {
+    max = Math.max(max, force[i] - baseline);
+    min = Math.min(min, force[i] - baseline);
+  }
+  const polarity: 1 | -1 = max >= -min ? 1 : -1;
+  const s = force.map((v) => polarity * (v - baseline));
+  const sigma = 1.4826 * median(s.map(Math.abs));
+  const trigger = options.trigger ?? Math.max(0.05 * Math.max(max, -min), 5 * sigma);
+  if (!(trigger > 0) || !Number.isFinite(trigger)) {
+    throw new RangeError(`trigger level must be a positive number, got ${trigger}`);
+  }
+
+  const crossings: { sample: number; rearm: number; peakSample: number }[] = [];
+  let armed = true;
+  for (let i = 0; i < n; i++) {
+    if (armed && s[i] >= trigger) {
+      armed = false;
+      crossings.push({ sample: i, rearm: n, peakSample: i });
+    } else if (!armed) {
+      const current = crossings[crossings.length - 1];
+      if (s[i] > s[current.peakSample]) current.peakSample = i;
+      if (s[i] < trigger / 2) {
+        armed = true;
+        current.rearm = i;
+      }
+    }
+  }
+  if (crossings.length === 0) {
+    throw new QuiverError(`no hit reaches the trigger level of ${trigger} above the baseline`);
+  }
+
+  let recordSamples = options.recordSamples;
+  if (recordSamples === undefined) {
+    if (crossings.length < 2) {
+      throw new QuiverError(
+        "one hit only: give the record length, it cannot be derived from hit spacing",
+        {},
+        "usage",
+      );
+    }
+    const spacing = median(
+      new Float64Array(crossings.slice(1).map((c, i) => c.sample - crossings[i].sample)),
+    );
+    const room = Math.floor(0.9 * spacing) - options.pretriggerSamples;
+    if (room < 8) {
+      throw new QuiverError(
+        "hits are too close together to derive a record length; give it",
+        {},
+        "usage",
+      );
+    }
+    recordSamples = 2 ** Math.floor(Math.log2(room));
+  }
+
+  const hits: Hit[] = [];
+  for (let c = 0; c < crossings.length; c++) {
+    const crossing = crossings[c];
+    const start = crossing.sample - options.pretriggerSamples;
+    const end = start + recordSamples;
+    let next = c + 1;
+    while (next < crossings.length && crossings[next].sample < end) next++;
+    const peak = s[crossing.peakSample];
+    let flat = 1;
+    for (let i = crossing.peakSample + 1; i < n && s[i] >= peak * (1 - 1e-9); i++) flat++;
+    for (let i = crossing.peakSample - 1; i >= 0 && s[i] >= peak * (1 - 1e-9); i--) flat++;
+    let status: HitStatus = "accepted";
+    let reason: string | undefined;
+    if (start < 0 || end > n) {
+      status = "short";
+      reason = start < 0
+        ? "the pre-trigger starts before the file"
+        : "the record runs past the end of the file";
+    } else if (flat >= 3 || (options.range !== undefined && peak >= options.range)) {
+      status = "overload";
+      reason = flat >= 3
+        ? `flat top of ${flat} equal samples at the peak`
+        : `peak ${peak} at or above the range ${options.range}`;
+    } else if (next > c + 1) {
+      status = "double";
+      reason = `${next - c - 1} more impact(s) inside the record, the first ${
+        crossings[c + 1].sample - crossing.sample
+      } samples after the trigger`;
+    }
+    hits.push({
+      hit: hits.length + 1,
+      sample: crossing.sample,
+      peakSample: crossing.peakSample,
+      peak: polarity * peak,
+      pulseSamples: Math.max(1, crossing.rearm - crossing.sample),
+      status,
+      ...(reason !== undefined ? { reason } : {}),
+    });
+    c = next - 1; // crossings inside this record belong to it
+  }
+  return { hits, trigger, baseline, polarity, recordSamples };
+}
