@@ -1,0 +1,83 @@
+import { describe, expect, test } from "vitest";
+import { hammerFrf } from "../../lib/frf/hammer.ts";
+import { findHits } from "../../lib/frf/hits.ts";
+import { QuiverError } from "../../lib/errors.ts";
+import { MODES_A, RATE, sixHits } from "../helpers/hammer_recording.ts";
+
+describe("hammer test", () => {
+  const rec = sixHits();
+
+  test("classifies a six-hit recording with one double and one clipped hit", () => {
+    const d = findHits(rec.channels[0].data, { pretriggerSamples: 41 });
+    expect(d.hits.map((h) => h.status)).toEqual([
+      "accepted",
+      "accepted",
+      "double",
+      "accepted",
+      "overload",
+      "accepted",
+    ]);
+    expect(d.hits.map((h) => Math.round(h.sample / RATE))).toEqual([1, 3, 5, 7, 9, 11]);
+    expect(d.hits[4].peak).toBeCloseTo(300, 0);
+    expect(d.recordSamples).toBe(4096); // 90 % of 2 s less the pre-trigger → 2^12 samples
+  });
+
+  test("averages the accepted hits only and puts both modes within one line", () => {
+    const result = hammerFrf(rec, { force: "hammer", outputs: ["bracket_a", "bracket_b"] });
+    expect(result.summary).toBe("6 hits: 4 accepted, 1 double, 1 overload");
+    expect(result.table.metadata.averages).toBe(4);
+    expect(result.table.metadata.hits_accepted).toEqual([1, 2, 4, 6]);
+    const f = result.table.columns[0].values;
+    const df = f[1] - f[0];
+    for (const name of ["bracket_a", "bracket_b"]) {
+      const mag = result.table.columns.find((c) => c.name === `${name}_mag`)!.values;
+      for (const mode of MODES_A) {
+        let best = 0;
+        for (let k = 0; k < f.length; k++) {
+          if (Math.abs(f[k] - mode.frequencyHz) < 10 && mag[k] > mag[best]) best = k;
+        }
+        expect(Math.abs(f[best] - mode.frequencyHz)).toBeLessThanOrEqual(df);
+      }
+    }
+    expect(result.warnings.filter((w) => /left out/.test(w))).toHaveLength(2);
+    const status = result.hitLog.columns.find((c) => c.name === "status")!.values;
+    expect(Array.from<number | string>(status)).toEqual([
+      "accepted",
+      "accepted",
+      "double",
+      "accepted",
+      "overload",
+      "accepted",
+    ]);
+  });
+
+  test("a declared range marks a peak at or above it as overload", () => {
+    // Sampled peaks sit ~1.2 % below the nominal pulse peaks: 237, 257, 247, 227, 300, 252 N.
+    const d = findHits(rec.channels[0].data, { pretriggerSamples: 41, range: 250 });
+    expect(d.hits.map((h) => h.status)).toEqual([
+      "accepted",
+      "overload",
+      "double",
+      "accepted",
+      "overload",
+      "overload",
+    ]);
+  });
+
+  test("a record running past the file end is short", () => {
+    const cut = rec.channels[0].data.subarray(0, Math.round(11.5 * RATE));
+    const d = findHits(cut, { pretriggerSamples: 41, recordSamples: 4096 });
+    expect(d.hits.at(-1)!.status).toBe("short");
+  });
+
+  test("the exponential window's time constant is recorded for damping correction", () => {
+    const result = hammerFrf(rec, { force: "hammer", outputs: ["bracket_a"], expEnd: 0.05 });
+    // exp(−T/τ) = 0.05 at the record end T = 1 s → τ = 1/ln(20).
+    expect(result.table.metadata.exponential_window_tau_s).toBeCloseTo(1 / Math.log(20), 12);
+  });
+
+  test("refuses a recording with no accepted hit", () => {
+    expect(() => hammerFrf(rec, { force: "hammer", outputs: ["bracket_a"], range: 100 }))
+      .toThrow(QuiverError);
+  });
+});
