@@ -28,7 +28,17 @@ export function resolveFormat(
   return out !== undefined && out.toLowerCase().endsWith(".json") ? "json" : "csv";
 }
 
-/** Writes the table to `out` atomically, or to stdout when `out` is undefined. */
+/** Path of the metadata sidecar written beside a CSV output. */
+export function sidecarPath(out: string): string {
+  return `${out}.meta.json`;
+}
+
+/**
+ * Writes the table to `out` atomically, or to stdout when `out` is undefined.
+ * A CSV file gets a sidecar `<out>.meta.json` holding the metadata and the
+ * column names and units, so that a CSV result stays traceable (JSON output
+ * carries its metadata inside).
+ */
 export async function writeTable(
   table: Table<ColumnValues>,
   format: TableFormat,
@@ -41,6 +51,13 @@ export async function writeTable(
   }
   try {
     await writeFileAtomic(out, text);
+    if (format === "csv") {
+      const columns = table.columns.map((c) => ({ name: c.name, unit: c.unit }));
+      await writeFileAtomic(
+        sidecarPath(out),
+        JSON.stringify({ metadata: table.metadata, columns }, null, 2) + "\n",
+      );
+    }
   } catch (error) {
     const code = (error as { code?: string }).code;
     throw new QuiverError(

@@ -179,6 +179,27 @@ describe("quiver hammer", () => {
     expect(frf.metadata.analysis).toBe("hammer");
   });
 
+  test("a CSV result gets a metadata sidecar carrying the exponential window", async () => {
+    const r = runQuiver([
+      "hammer",
+      `${dir}/impact.csv`,
+      "--rate",
+      String(RATE),
+      "--force",
+      "hammer",
+      "--outputs",
+      "bracket_a",
+      "--exp-end",
+      "0.05",
+      "--out",
+      `${dir}/frf.csv`,
+    ]);
+    expect(r.code).toBe(0);
+    const meta = JSON.parse(await readFile(`${dir}/frf.csv.meta.json`, "utf8"));
+    expect(meta.metadata.exponential_window_tau_s).toBeCloseTo(1 / Math.log(20), 12);
+    expect(meta.columns[1]).toEqual({ name: "bracket_a_re", unit: "m/N" });
+  });
+
   test("--exp-window and --exp-end together are refused", () => {
     const r = runQuiver([
       "hammer",
