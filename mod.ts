@@ -22,6 +22,7 @@ export * from "./lib/errors.ts";
 export * from "./lib/choices.ts";
 export * from "./lib/io/recording.ts";
 export * from "./lib/io/numbers.ts";
+export * from "./lib/io/csv_table.ts";
 export * from "./lib/io/csv_reader.ts";
 export * from "./lib/io/wav.ts";
 export * from "./lib/io/channel_setup.ts";

@@ -175,7 +175,7 @@ describe("quiver spectrum refuses bad input and writes nothing", () => {
     ["text in a cell", ["text.csv"], 1, /text\.csv:3:2: "oops" is not a number/],
     ["empty cell", ["empty_cell.csv"], 1, /empty_cell\.csv:3:2: empty cell/],
     ["NaN", ["nan.csv"], 1, /nan\.csv:3:2: .*not a finite number/],
-    ["duplicate names", ["duplicate.csv"], 1, /duplicate\.csv:1:3: duplicate channel name/],
+    ["duplicate names", ["duplicate.csv"], 1, /duplicate\.csv:1:3: duplicate column name/],
     ["jumping time", ["jump.csv"], 1, /jump\.csv:5:1: .*gap, jump or jitter/],
     ["reversed time", ["reversed.csv"], 1, /reversed\.csv:4:1: time goes backwards/],
     ["binary garbage", ["garbage.bin"], 1, /garbage\.bin: neither a WAV file nor UTF-8 text/],

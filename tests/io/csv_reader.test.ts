@@ -129,8 +129,8 @@ describe("CSV recordings that are refused, with file, line and column", () => {
     expectRefusal("a\n1\n1e999\n", { line: 3, column: 1 }, /beyond the range of a double/, {
       rate: 10,
     }));
-  test("duplicate channel names", () =>
-    expectRefusal("time_s,a [V],a\n0,1,2\n", { line: 1, column: 3 }, /duplicate channel name "a"/));
+  test("duplicate column names", () =>
+    expectRefusal("time_s,a [V],a\n0,1,2\n", { line: 1, column: 3 }, /duplicate column name "a"/));
   test("two time columns", () =>
     expectRefusal("time_s,time,a\n0,0,1\n", { line: 1, column: 2 }, /two time columns/));
   test("time in milliseconds", () =>
