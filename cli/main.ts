@@ -8,6 +8,7 @@
  */
 import process from "node:process";
 import { QuiverError } from "../lib/errors.ts";
+import * as damping from "./damping.ts";
 import * as frf from "./frf.ts";
 import * as hammer from "./hammer.ts";
 import * as spectrum from "./spectrum.ts";
@@ -18,7 +19,7 @@ interface Command {
   run(argv: readonly string[]): Promise<void>;
 }
 
-const COMMANDS: Readonly<Record<string, Command>> = { spectrum, frf, hammer };
+const COMMANDS: Readonly<Record<string, Command>> = { spectrum, frf, hammer, damping };
 
 const MAIN_HELP = `quiver: NVH test data from raw time histories to trustworthy numbers
 

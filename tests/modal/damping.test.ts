@@ -1,0 +1,186 @@
+import { describe, expect, test } from "vitest";
+import { modalDamping } from "../../lib/modal/damping_analysis.ts";
+import type { FrfData } from "../../lib/modal/frf_input.ts";
+import { halfPower } from "../../lib/modal/half_power.ts";
+import { hammerFrf } from "../../lib/frf/hammer.ts";
+import type { FrfForm } from "../../lib/frf/forms.ts";
+import { type Mode, receptance, simulateReceptance } from "../helpers/modal.ts";
+import { MODES_A, RATE, sixHits } from "../helpers/hammer_recording.ts";
+
+/** Analytic receptance (modal superposition, Ewins eq. 2.37) on a grid, as FRF data. */
+function analytic(
+  modes: readonly Mode[],
+  df: number,
+  maxHz: number,
+  form: FrfForm = "receptance",
+): FrfData {
+  const frequencies = new Float64Array(Math.floor(maxHz / df) + 1).map((_, k) => k * df);
+  const re = new Float64Array(frequencies.length);
+  const im = new Float64Array(frequencies.length);
+  frequencies.forEach((f, k) => {
+    const h = receptance(modes, f);
+    re[k] = h.re;
+    im[k] = h.im;
+  });
+  return {
+    frequencies,
+    channels: [{
+      name: "frf",
+      unit: "m/N",
+      form,
+      re,
+      im,
+      magnitude: re.map((r, k) => Math.hypot(r, im[k])),
+    }],
+  };
+}
+
+const relative = (a: number, b: number) => Math.abs(a / b - 1);
+
+describe("damping of analytic FRFs with modes between lines", () => {
+  // Closed-form SDOF receptance (Ewins, Modal Testing, eq. 2.37); the requirements are
+  // half-power damping within 5 %, fitted damping within 2 %, frequency within 0.1 %.
+  for (const zeta of [0.005, 0.01, 0.02, 0.05]) {
+    for (const offset of [0.13, 0.5, 0.81]) {
+      test(`SDOF, ζ = ${zeta * 100} %, ${offset} of a line off the grid`, () => {
+        const fn = 100 + offset * 0.25;
+        const { modes } = modalDamping(
+          analytic([{ frequencyHz: fn, damping: zeta, residue: 1e4 }], 0.25, 400),
+        );
+        expect(modes).toHaveLength(1);
+        const m = modes[0];
+        expect(relative(m.fit!.dampingRatio, zeta)).toBeLessThan(0.02);
+        expect(relative(m.fit!.frequencyHz, fn)).toBeLessThan(0.001);
+        expect(relative(m.halfPower!.dampingRatio, zeta)).toBeLessThan(0.05);
+        expect(relative(m.halfPower!.frequencyHz, fn)).toBeLessThan(0.001);
+      });
+    }
+  }
+
+  test("3 modes at 0.25 Hz: all found within 0.2 % and damping within 5 %", () => {
+    const modes3: Mode[] = [
+      { frequencyHz: 23.4, damping: 0.03, residue: 2e4 },
+      { frequencyHz: 61.87, damping: 0.012, residue: -1.5e4 }, // between lines 61.75 and 62.0
+      { frequencyHz: 140.125, damping: 0.008, residue: 3e4 },
+    ];
+    const { modes } = modalDamping(analytic(modes3, 0.25, 300));
+    expect(modes).toHaveLength(3);
+    modes.forEach((m, i) => {
+      expect(relative(m.frequencyHz, modes3[i].frequencyHz)).toBeLessThan(0.002);
+      expect(relative(m.dampingRatio, modes3[i].damping)).toBeLessThan(0.05);
+      expect(relative(m.halfPower!.dampingRatio, modes3[i].damping)).toBeLessThan(0.05);
+    });
+  });
+
+  test("few lines in the half-power band are flagged, and the mode still reported", () => {
+    // ζ = 0.5 % at 100 Hz: a 1 Hz half-power band holds 4 lines at 0.25 Hz.
+    const { modes, warnings } = modalDamping(
+      analytic([{ frequencyHz: 100.1, damping: 0.005, residue: 1e4 }], 0.25, 200),
+    );
+    expect(modes[0].flags).toContain("few_lines");
+    expect(warnings.join()).toMatch(/resolution bias/);
+  });
+
+  test("close modes are flagged", () => {
+    const { modes } = modalDamping(analytic(
+      [
+        { frequencyHz: 80, damping: 0.02, residue: 1e4 },
+        { frequencyHz: 86, damping: 0.02, residue: 1e4 },
+      ],
+      0.1,
+      200,
+    ));
+    expect(modes.length).toBe(2);
+    for (const m of modes) expect(m.flags).toContain("close_modes");
+  });
+
+  test("the first-mode frequency target reports pass or fail with the margin", () => {
+    const data = analytic([{ frequencyHz: 41.2, damping: 0.02, residue: 1e4 }], 0.25, 200);
+    const pass = modalDamping(data, { targetHz: 40 }).target!;
+    expect(pass.pass).toBe(true);
+    expect(pass.marginHz).toBeCloseTo(1.2, 2);
+    const fail = modalDamping(data, { targetHz: 45 }).target!;
+    expect(fail.pass).toBe(false);
+    expect(fail.marginPercent).toBeCloseTo((100 * (41.2 - 45)) / 45, 1);
+  });
+});
+
+describe("the half-power method's own bias", () => {
+  test("on receptance it grows with damping, as the exact half-power points predict", () => {
+    // Ewins, Modal Testing, sec. 4.3: the half-power formula is an approximation whose error
+    // grows with damping. For receptance the exact −3 dB points are
+    // ω₁,₂² = ωₙ²(1 − 2ζ² ∓ 2ζ√(1−ζ²)) and the peak is at ωₙ√(1 − 2ζ²) (analytic).
+    let previous = 0;
+    for (const zeta of [0.01, 0.05, 0.1, 0.2]) {
+      const fn = 50;
+      const f = new Float64Array(40001).map((_, k) => k * 0.005);
+      const mag = f.map((v) => {
+        const h = receptance([{ frequencyHz: fn, damping: zeta, residue: 1 }], v);
+        return Math.hypot(h.re, h.im);
+      });
+      const hp = halfPower(f, mag, mag.indexOf(Math.max(...mag)))!;
+      const root = 2 * zeta * Math.sqrt(1 - zeta * zeta);
+      const expected =
+        (Math.sqrt(1 - 2 * zeta * zeta + root) - Math.sqrt(1 - 2 * zeta * zeta - root)) /
+        (2 * Math.sqrt(1 - 2 * zeta * zeta));
+      expect(relative(hp.dampingRatio, expected)).toBeLessThan(1e-4);
+      const bias = hp.dampingRatio / zeta - 1;
+      expect(bias).toBeGreaterThan(previous);
+      previous = bias;
+    }
+    expect(previous).toBeGreaterThan(0.04); // at ζ = 20 % the formula reads 4.7 % high
+  });
+});
+
+describe("the exponential-window correction", () => {
+  test("recovers the true damping of a lightly damped decay cut short by the record", () => {
+    // Ewins, Modal Testing, sec. 3.11: exp(−t/τ) adds 1/(τ·ωₙ) to the apparent damping.
+    const zeta = 0.005;
+    const mode: Mode = { frequencyHz: 40.3, damping: zeta, residue: 1e4 };
+    const force = new Float64Array(12 * RATE);
+    for (const t of [1, 4, 7, 10]) {
+      const start = t * RATE;
+      for (let i = 0; i < 8; i++) force[start + i] = 200 * Math.sin((Math.PI * (i + 0.5)) / 8);
+    }
+    const rec = {
+      rate: RATE,
+      startTime: 0,
+      channels: [
+        { name: "hammer", unit: "N", data: force },
+        { name: "tip", unit: "m", data: simulateReceptance([mode], force, RATE) },
+      ],
+    };
+    // A 1 s record: the 0.5 % decay has fallen only to exp(−ζωₙ·1 s) ≈ 28 %, so leakage is large.
+    const windowed = hammerFrf(rec, { force: "hammer", outputs: ["tip"], record: 1, expEnd: 0.01 });
+    const frf = { frequencies: windowed.table.columns[0].values, ...toFrfData(windowed.table) };
+    const corrected = modalDamping(frf).modes[0];
+    const uncorrected = modalDamping(frf, { expTau: 1e12 }).modes[0];
+    expect(corrected.windowCorrection).toBeGreaterThan(2 * zeta);
+    expect(relative(corrected.dampingRatio, zeta)).toBeLessThan(0.05);
+    expect(uncorrected.dampingRatio).toBeGreaterThan(3 * zeta);
+  });
+});
+
+describe("hammer test to damping, end to end", () => {
+  test("both modes of the synthesised six-hit test within 10 % of the simulated damping", () => {
+    const result = hammerFrf(sixHits(), { force: "hammer", outputs: ["bracket_a"] });
+    const { modes } = modalDamping(
+      { frequencies: result.table.columns[0].values, ...toFrfData(result.table) },
+      { maxHz: 250 }, // above it the impact no longer excites the structure: 4 averages of noise
+    );
+    expect(modes).toHaveLength(2);
+    modes.forEach((m, i) => {
+      expect(relative(m.frequencyHz, MODES_A[i].frequencyHz)).toBeLessThan(0.005);
+      expect(relative(m.dampingRatio, MODES_A[i].damping)).toBeLessThan(0.1);
+    });
+  });
+});
+
+import { frfFromColumns } from "../../lib/modal/frf_input.ts";
+import type { Table } from "../../lib/io/table.ts";
+
+/** The FRF table a command wrote, read as the damping command reads it. */
+function toFrfData(table: Table): Omit<FrfData, "frequencies"> {
+  const { frequencies: _f, ...rest } = frfFromColumns(table.columns, table.metadata);
+  return rest;
+}
