@@ -33,6 +33,8 @@ Options:
   --method M           ${DAMPING_METHODS.join(" | ")}: with both, the fit is the
                        primary value and half-power the second   (default both)
   --prominence DB      smallest peak prominence, dB                (default 6)
+  --peaks-from P       each (every FRF's own peaks) | sum (peaks of the summed
+                       |H|, so every FRF reports the same modes)   (default each)
   --exp-tau S          exponential window time constant to correct for
                        (default: from the table's metadata)
   --form F             ${FRF_FORMS.join(" | ")}, when the table does not say
@@ -59,6 +61,7 @@ const schema = z.strictObject({
   "max-hz": positive("Hz").optional(),
   method: z.enum(DAMPING_METHODS).optional(),
   prominence: positive("dB").optional(),
+  "peaks-from": z.enum(["each", "sum"]).optional(),
   "exp-tau": positive("seconds").optional(),
   form: z.enum(FRF_FORMS).optional(),
   "target-hz": positive("Hz").optional(),
@@ -76,6 +79,7 @@ export async function run(argv: readonly string[]): Promise<void> {
     "max-hz": text,
     method: text,
     prominence: text,
+    "peaks-from": text,
     "exp-tau": text,
     form: text,
     "target-hz": text,
@@ -100,6 +104,7 @@ export async function run(argv: readonly string[]): Promise<void> {
       maxHz: values["max-hz"],
       method: values.method,
       prominenceDb: values.prominence,
+      peaks: values["peaks-from"],
       expTau: values["exp-tau"],
       form: values.form,
       targetHz: values["target-hz"],

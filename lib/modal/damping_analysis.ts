@@ -47,6 +47,12 @@ export interface DampingOptions {
   method?: DampingMethod;
   /** Peak prominence threshold, dB. Default 6. */
   prominenceDb?: number;
+  /**
+   * Where peaks are picked: on each FRF's own |H| (`each`), or once on the sum
+   * of |H| over the chosen FRFs (`sum`), each FRF then taking its own maximum
+   * within 2 lines of every summed peak. Default `"each"`.
+   */
+  peaks?: "each" | "sum";
   /** Exponential window time constant, s; overrides the table's metadata. Default: from metadata. */
   expTau?: number;
   /** FRF form when the table does not say. Default: receptance, flagged `form_assumed`. */
@@ -115,18 +121,37 @@ const DISAGREEMENT = 0.2;
 const POOR_FIT = 0.1;
 const MANY_PEAKS = 20;
 
+/** Each FRF's own maximum within 2 lines of every peak of the summed |H|. */
+function peaksOnSum(
+  frequencies: Float64Array,
+  channels: readonly FrfChannel[],
+  options: DampingOptions,
+) {
+  const sum = new Float64Array(frequencies.length);
+  for (const c of channels) for (let k = 0; k < sum.length; k++) sum[k] += c.magnitude[k];
+  const summed = findPeaks(frequencies, sum, {
+    prominenceDb: options.prominenceDb,
+    minHz: options.minHz,
+    maxHz: options.maxHz,
+  });
+  return (channel: FrfChannel): Peak[] =>
+    summed.map((p) => {
+      let best = p.index;
+      for (let k = Math.max(1, p.index - 2); k <= Math.min(sum.length - 2, p.index + 2); k++) {
+        if (channel.magnitude[k] > channel.magnitude[best]) best = k;
+      }
+      return { index: best, prominenceDb: p.prominenceDb };
+    }).filter((p, i, all) => i === 0 || p.index !== all[i - 1].index);
+}
+
 function analyseChannel(
   frequencies: Float64Array,
   channel: FrfChannel,
   options: DampingOptions,
   tau: number | undefined,
+  peaks: readonly Peak[],
 ): ModeEstimate[] {
   const method = options.method ?? "both";
-  const peaks = findPeaks(frequencies, channel.magnitude, {
-    prominenceDb: options.prominenceDb,
-    minHz: options.minHz,
-    maxHz: options.maxHz,
-  });
   const form = channel.form ?? options.form;
   const power = formPower(form ?? "receptance");
   const n = frequencies.length;
@@ -265,7 +290,15 @@ export function modalDamping(data: FrfData, options: DampingOptions = {}): Dampi
     return c;
   });
   const tau = options.expTau ?? data.expTau;
-  const modes = chosen.flatMap((c) => analyseChannel(data.frequencies, c, options, tau));
+  const pick = options.peaks === "sum"
+    ? peaksOnSum(data.frequencies, chosen, options)
+    : (c: FrfChannel) =>
+      findPeaks(data.frequencies, c.magnitude, {
+        prominenceDb: options.prominenceDb,
+        minHz: options.minHz,
+        maxHz: options.maxHz,
+      });
+  const modes = chosen.flatMap((c) => analyseChannel(data.frequencies, c, options, tau, pick(c)));
   const warnings: string[] = [];
   for (const c of chosen) {
     const count = modes.filter((m) => m.channel === c.name).length;
@@ -324,6 +357,7 @@ export function modalDamping(data: FrfData, options: DampingOptions = {}): Dampi
       analysis: "damping",
       method: options.method ?? "both",
       prominence_db: options.prominenceDb ?? 6,
+      peaks_from: options.peaks ?? "each",
       min_hz: options.minHz ?? null,
       max_hz: options.maxHz ?? null,
       exponential_window_tau_s: tau ?? null,
