@@ -8,9 +8,12 @@
  */
 import process from "node:process";
 import { QuiverError } from "../lib/errors.ts";
+import * as bands from "./bands.ts";
+import * as calibrate from "./calibrate.ts";
 import * as damping from "./damping.ts";
 import * as frf from "./frf.ts";
 import * as hammer from "./hammer.ts";
+import * as level from "./level.ts";
 import * as spectrum from "./spectrum.ts";
 
 interface Command {
@@ -19,7 +22,15 @@ interface Command {
   run(argv: readonly string[]): Promise<void>;
 }
 
-const COMMANDS: Readonly<Record<string, Command>> = { spectrum, frf, hammer, damping };
+const COMMANDS: Readonly<Record<string, Command>> = {
+  spectrum,
+  frf,
+  hammer,
+  damping,
+  bands,
+  level,
+  calibrate,
+};
 
 const MAIN_HELP = `quiver: NVH test data from raw time histories to trustworthy numbers
 

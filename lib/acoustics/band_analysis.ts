@@ -1,0 +1,187 @@
+/**
+ * Fractional-octave band levels of a recording's channels: the analysis
+ * behind the `bands` command.
+ *
+ * Two methods:
+ * - `fft` (the default): bands synthesised from the averaged narrowband PSD
+ *   of the spectral core, weighting applied line by line. It shares the
+ *   spectral core's stated scaling, works at any sample rate, and its energy
+ *   bookkeeping is exact (the bands sum to the overall level of the lines
+ *   they cover). Its limit is resolution: a band needs several lines, so low
+ *   bands need long blocks; bands under 5 lines are warned about.
+ * - `filter`: a Butterworth filter bank with multirate decimation (see
+ *   filter_bank.ts), weighting applied at each band's mid-band frequency.
+ *   Use it when the record is too short for the narrowband resolution the
+ *   low bands need.
+ *
+ * Levels are for engineering comparison; quiver is not a certified sound
+ * level meter.
+ *
+ * @module
+ */
+import { type Recording, recordingLength, selectChannels } from "../io/recording.ts";
+import type { Table, TableColumn } from "../io/table.ts";
+import { resolveBlock, spectralEstimate } from "../dsp/spectral_core.ts";
+import { type Band, type BandFraction, bandsInRange } from "./bands.ts";
+import { bandPowersFromDensity } from "./band_synthesis.ts";
+import { filterBankPowers } from "./filter_bank.ts";
+import { levelDb, levelReference, levelUnit } from "./levels.ts";
+import { type Weighting, weightingDb } from "./weighting.ts";
+
+/** How band levels are computed. */
+export const BAND_METHODS = ["fft", "filter"] as const;
+
+/** One of {@linkcode BAND_METHODS}. */
+export type BandMethod = typeof BAND_METHODS[number];
+
+/** Options of {@linkcode bandLevels}. */
+export interface BandLevelOptions {
+  /** Channels. Default: all. */
+  channels?: readonly string[];
+  /** Bandwidth designator b. Default 3. */
+  fraction?: BandFraction;
+  /** Frequency weighting. Default `"Z"`. */
+  weighting?: Weighting;
+  /** Method. Default `"fft"`. */
+  method?: BandMethod;
+  /** Level reference (linear, channel unit); default from the unit (ISO 1683). */
+  reference?: number;
+  /** Lowest mid-band frequency, Hz. Default 20 Hz. */
+  minHz?: number;
+  /** Highest mid-band frequency, Hz. Default: 20 kHz or the last band below 0.45·rate. */
+  maxHz?: number;
+  /** fft method: samples per block. Default: the largest power of two within a quarter of the record. */
+  block?: number;
+  /** fft method: line spacing instead of a block. Default: none. */
+  resolution?: number;
+}
+
+/** Band levels and their summary. */
+export interface BandLevelResult {
+  /** center_hz, nominal_hz, lower_hz, upper_hz, then one dB column per channel. */
+  readonly table: Table;
+  /** Overall level per channel (energy sum of the bands), dB. */
+  readonly overall: readonly { channel: string; levelDb: number; unit: string }[];
+  /** Warnings. */
+  readonly warnings: readonly string[];
+}
+
+/** Fewest lines a band should span in the fft method (common practice). */
+export const MIN_LINES_PER_BAND = 5;
+
+/**
+ * Band levels of the chosen channels.
+ *
+ * @throws {QuiverError} for unknown channels, units without a reference, or a
+ * record shorter than the block; RangeError for bad options.
+ */
+export function bandLevels(recording: Recording, options: BandLevelOptions = {}): BandLevelResult {
+  const fraction = options.fraction ?? 3;
+  const weighting = options.weighting ?? "Z";
+  const method = options.method ?? "fft";
+  const channels = selectChannels(recording, options.channels);
+  const references = channels.map((c) => levelReference(c.unit, options.reference));
+  const rate = recording.rate;
+  const minHz = options.minHz ?? 20;
+  const candidates = bandsInRange(fraction, minHz, options.maxHz ?? Math.min(20000, 0.45 * rate));
+  const bands: Band[] = candidates.filter((b) => b.upperHz < 0.45 * rate);
+  if (bands.length === 0) {
+    throw new RangeError(`no band between ${minHz} Hz and the rate's limit of ${0.45 * rate} Hz`);
+  }
+  const warnings: string[] = [];
+  if (bands.length < candidates.length) {
+    warnings.push(
+      `bands above ${
+        bands[bands.length - 1].nominalHz
+      } Hz are left out: they reach beyond 0.45 of the sample rate`,
+    );
+  }
+  let powers: Float64Array[];
+  const metadata: Record<string, unknown> = {};
+  if (method === "fft") {
+    const length = recordingLength(recording);
+    const defaultBlock = 2 ** Math.floor(Math.log2(Math.max(8, length / 4)));
+    const block = resolveBlock(rate, length, {
+      block: options.block ?? (options.resolution === undefined ? defaultBlock : undefined),
+      resolution: options.resolution,
+    });
+    const estimate = spectralEstimate(channels.map((c) => c.data), { rate, block });
+    powers = estimate.auto.map((density) =>
+      bandPowersFromDensity(estimate.frequencies, density, estimate.df, bands, weighting).power
+    );
+    const few = bands.filter((b) => (b.upperHz - b.lowerHz) / estimate.df < MIN_LINES_PER_BAND);
+    if (few.length > 0) {
+      warnings.push(
+        `${few.length} band(s) up to ${
+          few[few.length - 1].nominalHz
+        } Hz span fewer than ${MIN_LINES_PER_BAND} lines ` +
+          `at df ${estimate.df} Hz; their levels are unreliable (use a longer block or --method filter)`,
+      );
+    }
+    Object.assign(metadata, {
+      block,
+      df_hz: estimate.df,
+      averages: estimate.averages,
+      window: estimate.window,
+      overlap_samples: estimate.overlapSamples,
+    });
+  } else {
+    const results = channels.map((c) => filterBankPowers(c.data, rate, bands));
+    powers = results.map((r) => {
+      // Weighting at each band's mid-band frequency (common practice for band spectra).
+      return r.power.map((p, i) => p * 10 ** (weightingDb(weighting, bands[i].centerHz) / 10));
+    });
+    const short = results[0].shortRecord;
+    if (short.length > 0) {
+      warnings.push(
+        `${short.length} low band(s) spent over half the record settling; their levels are unreliable`,
+      );
+    }
+    Object.assign(metadata, {
+      filter: "Butterworth order 3 band-pass, bilinear with pre-warped edges",
+      band_rates_hz: Array.from(results[0].bandRate),
+    });
+  }
+  const overall = channels.map((c, i) => {
+    const total = powers[i].reduce((s, p) => s + p, 0);
+    return {
+      channel: c.name,
+      levelDb: levelDb(total, references[i]),
+      unit: levelUnit(weighting, references[i], c.unit),
+    };
+  });
+  const columns: TableColumn[] = [
+    { name: "center_hz", unit: "", values: new Float64Array(bands.map((b) => b.centerHz)) },
+    { name: "nominal_hz", unit: "", values: new Float64Array(bands.map((b) => b.nominalHz)) },
+    { name: "lower_hz", unit: "", values: new Float64Array(bands.map((b) => b.lowerHz)) },
+    { name: "upper_hz", unit: "", values: new Float64Array(bands.map((b) => b.upperHz)) },
+    ...channels.map((c, i) => ({
+      name: c.name,
+      unit: levelUnit(weighting, references[i], c.unit),
+      values: powers[i].map((p) => levelDb(p, references[i])),
+    })),
+  ];
+  return {
+    overall,
+    warnings,
+    table: {
+      columns,
+      metadata: {
+        analysis: "bands",
+        method,
+        fraction,
+        weighting,
+        references: channels.map((c, i) => ({
+          channel: c.name,
+          unit: c.unit,
+          reference: references[i],
+        })),
+        overall: overall.map((o) => ({ channel: o.channel, level_db: o.levelDb, unit: o.unit })),
+        rate_hz: rate,
+        ...metadata,
+        warnings,
+        note: "engineering comparison only; not a certified sound level meter measurement",
+      },
+    },
+  };
+}

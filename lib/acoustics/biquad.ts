@@ -1,0 +1,113 @@
+/**
+ * Second-order IIR sections and cascades of them: the digital filters of the
+ * frequency weightings, the band filters and the decimators.
+ *
+ * @module
+ */
+
+/** One section, H(z) = (b0 + b1·z⁻¹ + b2·z⁻²)/(1 + a1·z⁻¹ + a2·z⁻²). */
+export interface Biquad {
+  readonly b0: number;
+  readonly b1: number;
+  readonly b2: number;
+  readonly a1: number;
+  readonly a2: number;
+}
+
+/** A complex number. */
+export interface Complex {
+  readonly re: number;
+  readonly im: number;
+}
+
+/**
+ * Filters `x` through the cascade (transposed direct form II), starting at
+ * rest. Returns a new array.
+ *
+ * @example
+ * ```ts
+ * import { filterCascade } from "./biquad.ts";
+ * const y = filterCascade(new Float64Array([1, 0, 0]), [{ b0: 0.5, b1: 0.5, b2: 0, a1: 0, a2: 0 }]);
+ * if (y.join() !== "0.5,0.5,0") throw new Error();
+ * ```
+ */
+export function filterCascade(x: Float64Array, sections: readonly Biquad[]): Float64Array {
+  const y = x.slice();
+  for (const { b0, b1, b2, a1, a2 } of sections) {
+    let s1 = 0;
+    let s2 = 0;
+    for (let n = 0; n < y.length; n++) {
+      const input = y[n];
+      const output = b0 * input + s1;
+      s1 = b1 * input - a1 * output + s2;
+      s2 = b2 * input - a2 * output;
+      y[n] = output;
+    }
+  }
+  return y;
+}
+
+/**
+ * The cascade's complex response at `frequency` Hz for sample rate `rate`.
+ *
+ * @example
+ * ```ts
+ * import { cascadeResponse } from "./biquad.ts";
+ * const h = cascadeResponse([{ b0: 1, b1: 0, b2: 0, a1: 0, a2: 0 }], 100, 1000);
+ * if (h.re !== 1 || h.im !== 0) throw new Error();
+ * ```
+ */
+export function cascadeResponse(
+  sections: readonly Biquad[],
+  frequency: number,
+  rate: number,
+): Complex {
+  const w = (2 * Math.PI * frequency) / rate;
+  const c1 = Math.cos(w), s1 = -Math.sin(w);
+  const c2 = Math.cos(2 * w), s2 = -Math.sin(2 * w);
+  let re = 1;
+  let im = 0;
+  for (const q of sections) {
+    const nr = q.b0 + q.b1 * c1 + q.b2 * c2;
+    const ni = q.b1 * s1 + q.b2 * s2;
+    const dr = 1 + q.a1 * c1 + q.a2 * c2;
+    const di = q.a1 * s1 + q.a2 * s2;
+    const d = dr * dr + di * di;
+    const hr = (nr * dr + ni * di) / d;
+    const hi = (ni * dr - nr * di) / d;
+    [re, im] = [re * hr - im * hi, re * hi + im * hr];
+  }
+  return { re, im };
+}
+
+/**
+ * A section from its two zeros and a complex-conjugate (or two real) poles
+ * in the z-plane, with gain `gain`.
+ */
+export function sectionFromRoots(
+  zeros: readonly [Complex, Complex],
+  poles: readonly [Complex, Complex],
+  gain = 1,
+): Biquad {
+  const sum = (a: Complex, b: Complex) => a.re + b.re;
+  const product = (a: Complex, b: Complex) => a.re * b.re - a.im * b.im;
+  return {
+    b0: gain,
+    b1: -gain * sum(zeros[0], zeros[1]),
+    b2: gain * product(zeros[0], zeros[1]),
+    a1: -sum(poles[0], poles[1]),
+    a2: product(poles[0], poles[1]),
+  };
+}
+
+/** Scales a cascade so that its magnitude at `frequency` is `magnitude`. */
+export function normaliseCascade(
+  sections: readonly Biquad[],
+  frequency: number,
+  rate: number,
+  magnitude: number,
+): Biquad[] {
+  const h = cascadeResponse(sections, frequency, rate);
+  const k = magnitude / Math.hypot(h.re, h.im);
+  return sections.map((s, i) => (i === 0 ? { ...s, b0: s.b0 * k, b1: s.b1 * k, b2: s.b2 * k } : s));
+}

@@ -1,0 +1,63 @@
+/**
+ * Levels in decibels against the trade's reference values: 20 µPa for sound
+ * pressure (ISO 1683), 1e-6 m/s² for acceleration and 1e-9 m/s for velocity
+ * (ISO 1683); 1e-12 m for displacement (ISO 1683); anything else needs a
+ * reference from the user.
+ *
+ * @module
+ */
+import { QuiverError } from "../errors.ts";
+
+const REFERENCES: Readonly<Record<string, number>> = {
+  Pa: 20e-6,
+  "m/s^2": 1e-6,
+  "m/s": 1e-9,
+  m: 1e-12,
+};
+
+/**
+ * The reference value for a unit, or `override` when given.
+ *
+ * @throws {QuiverError} (usage) for a unit without a standard reference and no override.
+ *
+ * @example
+ * ```ts
+ * import { levelReference } from "./levels.ts";
+ * if (levelReference("Pa") !== 20e-6 || levelReference("V", 1) !== 1) throw new Error();
+ * ```
+ */
+export function levelReference(unit: string, override?: number): number {
+  if (override !== undefined) {
+    if (!(override > 0) || !Number.isFinite(override)) {
+      throw new RangeError(`the reference must be a positive number, got ${override}`);
+    }
+    return override;
+  }
+  const reference = REFERENCES[unit];
+  if (reference === undefined) {
+    throw new QuiverError(
+      `no standard level reference for unit [${unit}]; give one (e.g. --reference 1)`,
+      {},
+      "usage",
+    );
+  }
+  return reference;
+}
+
+/**
+ * 10·log10(meanSquare / reference²).
+ *
+ * @example
+ * ```ts
+ * import { levelDb } from "./levels.ts";
+ * if (Math.abs(levelDb(1, 20e-6) - 93.9794) > 1e-4) throw new Error(); // 1 Pa rms
+ * ```
+ */
+export function levelDb(meanSquare: number, reference: number): number {
+  return 10 * Math.log10(meanSquare / (reference * reference));
+}
+
+/** The label of a level unit, e.g. `dB(A) re 2e-05 Pa`. */
+export function levelUnit(weighting: string, reference: number, unit: string): string {
+  return `dB${weighting === "Z" ? "" : `(${weighting})`} re ${reference} ${unit}`;
+}

@@ -1,0 +1,139 @@
+import { describe, expect, test } from "vitest";
+import { bandLevels } from "../../lib/acoustics/band_analysis.ts";
+import { band, bandsInRange, midbandHz } from "../../lib/acoustics/bands.ts";
+import { weightingDb } from "../../lib/acoustics/weighting.ts";
+import type { Recording } from "../../lib/io/recording.ts";
+import { assertClose } from "../helpers/assert_close.ts";
+import { gaussianNoise } from "../helpers/random.ts";
+
+const G = 10 ** 0.3; // IEC 61260-1:2014 eq. 1, base-10 octave ratio
+
+describe("IEC 61260-1 bands", () => {
+  test("exact mid-band frequencies for odd and even b (formulas 2 and 3)", () => {
+    assertClose(midbandHz(-10, 3), 100, { relative: 1e-14, absolute: 0 });
+    assertClose(midbandHz(1, 3), 1000 * G ** (1 / 3), { relative: 1e-14, absolute: 0 });
+    assertClose(midbandHz(-3, 1), 1000 * G ** -3, { relative: 1e-14, absolute: 0 }); // ≈ 125.89 Hz
+    assertClose(midbandHz(0, 6), 1000 * G ** (1 / 12), { relative: 1e-14, absolute: 0 });
+    assertClose(midbandHz(-1, 24), 1000 * G ** (-1 / 48), { relative: 1e-14, absolute: 0 });
+  });
+
+  test("band edges are fm·G^(∓1/2b) (formulas 4 and 5)", () => {
+    const b = band(0, 3);
+    assertClose(b.lowerHz, 1000 * G ** (-1 / 6), { relative: 1e-14, absolute: 0 });
+    assertClose(b.upperHz, 1000 * G ** (1 / 6), { relative: 1e-14, absolute: 0 });
+    assertClose(b.lowerHz, 891.2509381, { relative: 1e-9, absolute: 0 });
+    assertClose(b.upperHz, 1122.018454, { relative: 1e-9, absolute: 0 });
+  });
+
+  test("nominal labels of the one-third-octave bands from 25 Hz to 20 kHz", () => {
+    // IEC 61260-1:2014 Annex E (preferred numbers, R10 series).
+    expect(bandsInRange(3, 24, 21000).map((b) => b.nominalHz)).toEqual([
+      25,
+      31.5,
+      40,
+      50,
+      63,
+      80,
+      100,
+      125,
+      160,
+      200,
+      250,
+      315,
+      400,
+      500,
+      630,
+      800,
+      1000,
+      1250,
+      1600,
+      2000,
+      2500,
+      3150,
+      4000,
+      5000,
+      6300,
+      8000,
+      10000,
+      12500,
+      16000,
+      20000,
+    ]);
+    expect(bandsInRange(1, 30, 17000).map((b) => b.nominalHz)).toEqual([
+      31.5,
+      63,
+      125,
+      250,
+      500,
+      1000,
+      2000,
+      4000,
+      8000,
+      16000,
+    ]);
+  });
+});
+
+const RATE = 16384;
+const SECONDS = 16;
+const rms2 = (rms: number) => rms * rms;
+
+function tones(list: { f: number; rms: number }[], noise = 0): Recording {
+  const n = RATE * SECONDS;
+  const w = gaussianNoise(99, n);
+  const data = new Float64Array(n).map((_, i) =>
+    list.reduce(
+      (s, t) => s + t.rms * Math.SQRT2 * Math.sin(2 * Math.PI * t.f * (i / RATE) + t.f),
+      0,
+    ) + noise * w[i]
+  );
+  return { rate: RATE, startTime: 0, channels: [{ name: "cabin_mic", unit: "Pa", data }] };
+}
+
+const level = (ms: number) => 10 * Math.log10(ms / (20e-6) ** 2);
+
+describe("band levels", () => {
+  for (const method of ["fft", "filter"] as const) {
+    test(`${method}: a tone at a band centre reads its level plus the weighting within 0.1 dB`, () => {
+      const f = band(-7, 3).centerHz; // ≈ 199.5 Hz
+      const result = bandLevels(tones([{ f, rms: 0.2 }]), { method, weighting: "A" });
+      const row = result.table.columns[0].values.findIndex((c) => Math.abs(c - f) < 1e-6);
+      const read = result.table.columns[4].values[row];
+      // IEC 61672-1 A-weighting at the tone's frequency, added to 20·log10(0.2/20 µPa).
+      expect(Math.abs(read - (level(rms2(0.2)) + weightingDb("A", f)))).toBeLessThan(0.1);
+    });
+  }
+
+  test("fft: a tone exactly on a band edge splits half and half (−3.01 dB each)", () => {
+    // By the documented rule: a line's power is shared by the part of its bin in each band.
+    const edge = band(0, 3).upperHz;
+    const rec = tones([{ f: edge, rms: 0.5 }]);
+    const result = bandLevels(rec, { resolution: RATE / 65536 * 4 });
+    const cols = result.table.columns;
+    const lower = cols[4].values[cols[1].values.indexOf(1000)];
+    const upper = cols[4].values[cols[1].values.indexOf(1250)];
+    expect(Math.abs(lower - (level(0.25) - 3.0103))).toBeLessThan(0.1);
+    expect(Math.abs(upper - (level(0.25) - 3.0103))).toBeLessThan(0.1);
+  });
+
+  test("fft: the energy sum of the bands equals the overall level of the signal within 0.1 dB", () => {
+    const list = [40, 180, 700, 1500, 3200].map((f, i) => ({ f, rms: 0.05 * (i + 1) }));
+    const result = bandLevels(tones(list), {});
+    const expected = level(list.reduce((s, t) => s + rms2(t.rms), 0)); // Parseval: tones are orthogonal
+    expect(Math.abs(result.overall[0].levelDb - expected)).toBeLessThan(0.1);
+  });
+
+  test("fft and filter bank agree on broadband noise within 0.5 dB per band", () => {
+    const rec = tones([], 0.3);
+    const fft = bandLevels(rec, { minHz: 50, maxHz: 5000 });
+    const filter = bandLevels(rec, { minHz: 50, maxHz: 5000, method: "filter" });
+    const a = fft.table.columns[4].values;
+    const b = filter.table.columns[4].values;
+    for (let i = 0; i < a.length; i++) expect(Math.abs(a[i] - b[i]), `band ${i}`).toBeLessThan(0.5);
+  });
+
+  test("warns about bands holding too few lines", () => {
+    const result = bandLevels(tones([{ f: 1000, rms: 1 }]), { block: 1024 });
+    expect(result.warnings.join()).toMatch(/fewer than 5 lines/);
+  });
+});

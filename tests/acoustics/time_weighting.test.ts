@@ -1,0 +1,61 @@
+import { describe, expect, test } from "vitest";
+import { levelHistory } from "../../lib/acoustics/level_analysis.ts";
+import { TIME_CONSTANTS_S } from "../../lib/acoustics/time_weighting.ts";
+
+const RATE = 8000;
+
+/** Silence, then a 1 kHz burst of 1 Pa rms from 1 s to 7 s (6 Slow time constants), then silence to 12 s. */
+function burst() {
+  const data = new Float64Array(12 * RATE).map((_, i) => {
+    const t = i / RATE;
+    return (t >= 1 && t < 7 ? Math.SQRT2 * Math.sin(2 * Math.PI * 1000 * t) : 0) +
+      1e-6 * Math.sin(7 * i);
+  });
+  return { rate: RATE, startTime: 0, channels: [{ name: "mic", unit: "Pa", data }] };
+}
+
+describe("Fast and Slow time weighting", () => {
+  for (const weighting of ["fast", "slow"] as const) {
+    test(`${weighting}: the burst's level rises and decays with τ = ${TIME_CONSTANTS_S[weighting]} s`, () => {
+      // IEC 61672-1:2013, 3.9/5.8: exponential time weighting. Analytic response of
+      // dy/dt = (x² − y)/τ: y = ms·(1 − e^(−t/τ)) after the onset, and a decay of
+      // 10·log10(e)/τ dB per second after the end.
+      const tau = TIME_CONSTANTS_S[weighting];
+      const step = 0.005;
+      const { table, summary } = levelHistory(burst(), {
+        weighting: "Z",
+        timeWeighting: weighting,
+        step,
+      });
+      const time = table.columns[0].values;
+      const l = table.columns[1].values;
+      const at = (t: number) => l[time.findIndex((v) => Math.abs(v - t) < step / 2)];
+      const steady = 10 * Math.log10(1 / (20e-6) ** 2);
+      expect(Math.abs(at(1 + tau) - (steady + 10 * Math.log10(1 - Math.exp(-1))))).toBeLessThan(
+        0.1,
+      );
+      const t1 = 7 + tau;
+      const t2 = 7 + 3 * tau;
+      const slope = (at(t1) - at(t2)) / (t2 - t1);
+      expect(Math.abs(slope / ((10 * Math.log10(Math.E)) / tau) - 1)).toBeLessThan(0.01);
+      expect(Math.abs(summary[0].lmax - steady)).toBeLessThan(0.1);
+    });
+  }
+
+  test("Leq, Lmax, Lmin and exceedance levels of a steady tone", () => {
+    const data = new Float64Array(10 * RATE).map((_, i) =>
+      0.5 * Math.SQRT2 * Math.sin(2 * Math.PI * 250 * i / RATE)
+    );
+    const { summary } = levelHistory({
+      rate: RATE,
+      startTime: 0,
+      channels: [{ name: "mic", unit: "Pa", data }],
+    }, {
+      weighting: "Z",
+    });
+    const expected = 10 * Math.log10(0.25 / (20e-6) ** 2); // 0.5 Pa rms, re 20 µPa (ISO 1683)
+    for (const key of ["leq", "lmax", "lmin", "l10", "l50", "l90"] as const) {
+      expect(Math.abs(summary[0][key] - expected), key).toBeLessThan(0.05);
+    }
+  });
+});
