@@ -1,0 +1,383 @@
+/**
+ * Order tracking of run-ups and run-downs: the analysis behind `orders`.
+ *
+ * Two methods, both stepping through the rpm range:
+ * - `angle` (the default, computed order tracking): each channel is
+ *   resampled to equal angle steps (angle_resample.ts), and a block of R
+ *   revolutions centred where the shaft passes each rpm step goes through
+ *   the spectral core with the angle as "time": lines are orders, spaced
+ *   1/R apart. Orders stay on their lines however fast the sweep, so this
+ *   is the method for real run-ups.
+ * - `time` (rpm-synchronous blocks): a time block centred at each rpm step,
+ *   order k read at k·rpm/60 Hz. Simple and close to what a spectrum shows,
+ *   but an order sweeps across lines during the block, so fast sweeps smear
+ *   it and read it low; use it for slow sweeps or steady steps.
+ *
+ * An order's amplitude is the energy of the spectral-core density over the
+ * window's main lobe around it (±1 line for `angle`, ±2 lines for `time`,
+ * Hann), which is the window's power correction: exact for a steady order
+ * on a line and insensitive to where between lines it falls. Amplitudes are
+ * RMS in the channel's unit (`peak`: √2 × RMS). `overall` is the RMS of the
+ * channel over the same stretch of time, mean removed.
+ *
+ * Memory: both methods need the whole record of one channel at a time (the
+ * angle method resamples across the record).
+ *
+ * @module
+ */
+import { QuiverError } from "../errors.ts";
+import { type Channel, type Recording, selectChannels } from "../io/recording.ts";
+import type { Table, TableColumn } from "../io/table.ts";
+import { SpectralAccumulator } from "../dsp/spectral_core.ts";
+import { inverseAngle, resampleToAngle } from "./angle_resample.ts";
+import { motionFromPulses, motionFromRpm, type ShaftMotion, tachoPulses } from "./tacho.ts";
+
+/** The order-tracking methods. */
+export const ORDER_METHODS = ["angle", "time"] as const;
+
+/** One of {@linkcode ORDER_METHODS}. */
+export type OrderMethod = typeof ORDER_METHODS[number];
+
+/** Options of {@linkcode trackOrders}. */
+export interface OrderOptions {
+  /** Tacho pulse channel; give this or `rpmChannel`. */
+  tacho?: string;
+  /** Channel that holds rpm directly; give this or `tacho`. */
+  rpmChannel?: string;
+  /** Pulses per revolution of the tacho. Required with `tacho`. */
+  ppr?: number;
+  /** Tacho switching level. Default: automatic (see tacho.ts). */
+  tachoLevel?: number;
+  /** Tacho hysteresis. Default: automatic. */
+  tachoHysteresis?: number;
+  /** Response channels. Required. */
+  channels: readonly string[];
+  /** Orders to cut. Default 1, 2, 4. */
+  orders?: readonly number[];
+  /** Lowest rpm step. Default: the recording's lowest rpm rounded up to a step. */
+  rpmMin?: number;
+  /** Highest rpm step. Default: the recording's highest rpm rounded down to a step. */
+  rpmMax?: number;
+  /** rpm between steps. Default 50. */
+  rpmStep?: number;
+  /** Method. Default `"angle"`. */
+  method?: OrderMethod;
+  /** `rms` or `peak`. Default `"rms"`. */
+  amplitude?: "rms" | "peak";
+  /** angle method: revolutions per block (order resolution 1/R). Default 16. */
+  revolutions?: number;
+  /** angle method: samples per revolution (power of two). Default: ≥ 4 × the highest order, at least 64. */
+  samplesPerRev?: number;
+  /** time method: samples per block. Default: the power of two giving ¼-order resolution at the lowest rpm. */
+  block?: number;
+}
+
+/** Order cuts, rpm profile, map and warnings. */
+export interface OrderResult {
+  /** rpm, then `<channel>_order<k>` per channel and order, then `<channel>_overall`. */
+  readonly cuts: Table;
+  /** time_s, rpm. */
+  readonly rpm: Table;
+  /** Tidy map: rpm, order (angle) or frequency_hz (time), then one RMS-per-line column per channel. */
+  readonly map: Table;
+  /** Warnings. */
+  readonly warnings: readonly string[];
+}
+
+/** The label of order k in column names: as written, e.g. 2 → "2", 6.5 → "6.5". */
+export function orderLabel(order: number): string {
+  return String(order);
+}
+
+function motionOf(
+  recording: Recording,
+  options: OrderOptions,
+): { motion: ShaftMotion; notes: string[] } {
+  if ((options.tacho === undefined) === (options.rpmChannel === undefined)) {
+    throw new RangeError(
+      "give a tacho channel (with pulses per revolution) or an rpm channel, not both",
+    );
+  }
+  if (options.rpmChannel !== undefined) {
+    const [c] = selectChannels(recording, [options.rpmChannel]);
+    return { motion: motionFromRpm(c.data, recording.rate), notes: [] };
+  }
+  const ppr = options.ppr;
+  if (ppr === undefined || !Number.isInteger(ppr) || ppr < 1) {
+    throw new RangeError(`pulses per revolution must be a positive integer, got ${ppr}`);
+  }
+  const [tacho] = selectChannels(recording, [options.tacho as string]);
+  const pulses = tachoPulses(tacho.data, recording.rate, {
+    ppr,
+    ...(options.tachoLevel !== undefined ? { level: options.tachoLevel } : {}),
+    ...(options.tachoHysteresis !== undefined ? { hysteresis: options.tachoHysteresis } : {}),
+  });
+  const notes: string[] = [];
+  if (pulses.inserted > 0) notes.push(`${pulses.inserted} missing tacho pulse(s) filled in`);
+  if (pulses.removed > 0) notes.push(`${pulses.removed} extra tacho pulse(s) removed`);
+  return { motion: motionFromPulses(pulses.times, ppr), notes };
+}
+
+/** First time at which the speed passes `rpm`, or undefined. */
+function timeAtRpm(motion: ShaftMotion, rpm: number): number | undefined {
+  const { times, rpm: r } = motion;
+  for (let i = 1; i < r.length; i++) {
+    if ((r[i - 1] - rpm) * (r[i] - rpm) <= 0 && r[i] !== r[i - 1]) {
+      return times[i - 1] + ((rpm - r[i - 1]) / (r[i] - r[i - 1])) * (times[i] - times[i - 1]);
+    }
+    if (r[i] === rpm) return times[i];
+  }
+  return undefined;
+}
+
+function energyAround(
+  density: Float64Array,
+  centre: number,
+  halfWidth: number,
+  spacing: number,
+): number {
+  let sum = 0;
+  const lo = Math.max(0, Math.ceil(centre - halfWidth - 1e-9));
+  const hi = Math.min(density.length - 1, Math.floor(centre + halfWidth + 1e-9));
+  for (let k = lo; k <= hi; k++) sum += density[k] * spacing;
+  return sum;
+}
+
+function rmsOver(data: Float64Array, first: number, last: number): number {
+  let mean = 0;
+  for (let n = first; n <= last; n++) mean += data[n];
+  mean /= last - first + 1;
+  let sum = 0;
+  for (let n = first; n <= last; n++) sum += (data[n] - mean) ** 2;
+  return Math.sqrt(sum / (last - first + 1));
+}
+
+/**
+ * Order cuts, rpm profile and map of a run-up or run-down.
+ *
+ * @throws {QuiverError} when the rpm never spans the requested range, or no
+ * rpm step has a whole block inside the record; RangeError for bad options.
+ */
+export function trackOrders(recording: Recording, options: OrderOptions): OrderResult {
+  if (options.channels.length === 0) throw new RangeError("name at least one response channel");
+  const orders = options.orders ?? [1, 2, 4];
+  if (orders.some((k) => !(k > 0))) throw new RangeError("orders must be positive numbers");
+  const step = options.rpmStep ?? 50;
+  if (!(step > 0)) throw new RangeError(`the rpm step must be positive, got ${step}`);
+  const method = options.method ?? "angle";
+  const amplitude = options.amplitude ?? "rms";
+  const amplitudeFactor = amplitude === "peak" ? Math.SQRT2 : 1;
+  const channels = selectChannels(recording, options.channels);
+  const { motion, notes } = motionOf(recording, options);
+  const warnings = [...notes];
+  let lowest = Infinity, highest = -Infinity;
+  for (const r of motion.rpm) {
+    lowest = Math.min(lowest, r);
+    highest = Math.max(highest, r);
+  }
+  const rpmMin = options.rpmMin ?? Math.ceil(lowest / step) * step;
+  const rpmMax = options.rpmMax ?? Math.floor(highest / step) * step;
+  if (!(rpmMax > rpmMin)) throw new RangeError(`the rpm range ${rpmMin}–${rpmMax} is empty`);
+  if (rpmMin < lowest || rpmMax > highest) {
+    throw new QuiverError(
+      `the recording's speed spans ${lowest.toFixed(1)}–${
+        highest.toFixed(1)
+      } rpm, which does not cover the requested ${rpmMin}–${rpmMax} rpm`,
+    );
+  }
+  const steps: number[] = [];
+  for (let r = rpmMin; r <= rpmMax + 1e-9; r += step) steps.push(r);
+  const maxOrder = Math.max(...orders);
+  const revolutions = options.revolutions ?? 16;
+  const samplesPerRev = options.samplesPerRev ??
+    Math.max(64, 2 ** Math.ceil(Math.log2(4 * maxOrder)));
+  if (method === "angle" && maxOrder > 0.45 * samplesPerRev) {
+    throw new RangeError(
+      `order ${maxOrder} is above 0.45 of ${samplesPerRev} samples per revolution`,
+    );
+  }
+  const timeBlock = options.block ??
+    2 ** Math.ceil(Math.log2((4 * recording.rate * 60) / rpmMin));
+
+  const rows: {
+    rpm: number;
+    time: number;
+    cut: number[][];
+    overall: number[];
+    line: Float64Array[];
+  }[] = [];
+  let lineSpacing = 0;
+  let lines = 0;
+  const skipped: number[] = [];
+  for (const r of steps) {
+    const t = timeAtRpm(motion, r);
+    if (t === undefined) {
+      skipped.push(r);
+      continue;
+    }
+    let blocks: Float64Array[];
+    let first: number, last: number;
+    let rate: number, block: number;
+    if (method === "angle") {
+      block = revolutions * samplesPerRev;
+      rate = samplesPerRev;
+      const centre = motion.angleAt(t);
+      const startRev = centre - revolutions / 2;
+      const endRev = centre + revolutions / 2;
+      const timeOf = inverseAngle(motion.angleAt, motion.span);
+      const t0 = timeOf(startRev), t1 = timeOf(endRev);
+      if (
+        startRev < motion.angleAt(motion.span[0]) || endRev > motion.angleAt(motion.span[1]) ||
+        t0 < 0 ||
+        t1 * recording.rate > recording.channels[0].data.length - 1
+      ) {
+        skipped.push(r);
+        continue;
+      }
+      first = Math.ceil(t0 * recording.rate);
+      last = Math.floor(t1 * recording.rate);
+      blocks = channels.map((c: Channel) =>
+        resampleToAngle(c.data, recording.rate, timeOf, motion.rpmAt, {
+          samplesPerRev,
+          startRev,
+          count: block,
+        })
+      );
+    } else {
+      block = timeBlock;
+      rate = recording.rate;
+      const centre = Math.round(t * recording.rate);
+      first = centre - block / 2;
+      last = first + block - 1;
+      if (first < 0 || last >= recording.channels[0].data.length) {
+        skipped.push(r);
+        continue;
+      }
+      blocks = channels.map((c) => c.data.slice(first, last + 1));
+    }
+    const accumulator = new SpectralAccumulator(channels.length, { rate, block, window: "hann" });
+    accumulator.pushSegment(blocks);
+    const estimate = accumulator.finish();
+    lineSpacing = estimate.df;
+    lines = estimate.frequencies.length;
+    const cut = channels.map((_, c) =>
+      orders.map((k) => {
+        const centreLine = method === "angle" ? k * revolutions : (k * r) / 60 / estimate.df;
+        const energy = energyAround(
+          estimate.auto[c],
+          centreLine,
+          method === "angle" ? 1 : 2,
+          estimate.df,
+        );
+        return amplitudeFactor * Math.sqrt(energy);
+      })
+    );
+    const overall = channels.map((c) => amplitudeFactor * rmsOver(c.data, first, last));
+    const line = estimate.auto.map((g) =>
+      g.map((v) => amplitudeFactor * Math.sqrt(v * estimate.df))
+    );
+    rows.push({ rpm: r, time: t, cut, overall, line });
+  }
+  if (rows.length === 0) {
+    throw new QuiverError(
+      "no rpm step has a whole analysis block inside the record; use a shorter block",
+    );
+  }
+  if (skipped.length > 0) {
+    warnings.push(
+      `${skipped.length} rpm step(s) left out (no whole block around them): ${
+        skipped.slice(0, 5).join(", ")
+      }${skipped.length > 5 ? ", …" : ""}`,
+    );
+  }
+  const columns: TableColumn[] = [{
+    name: "rpm",
+    unit: "rpm",
+    values: new Float64Array(rows.map((x) => x.rpm)),
+  }];
+  channels.forEach((c, ci) => {
+    orders.forEach((k, ki) => {
+      columns.push({
+        name: `${c.name}_order${orderLabel(k)}`,
+        unit: c.unit,
+        values: new Float64Array(rows.map((x) => x.cut[ci][ki])),
+      });
+    });
+  });
+  channels.forEach((c, ci) => {
+    columns.push({
+      name: `${c.name}_overall`,
+      unit: c.unit,
+      values: new Float64Array(rows.map((x) => x.overall[ci])),
+    });
+  });
+  // The map keeps orders (or frequencies) up to 0.45 of the block's sampling, where the data are valid.
+  const validLines = Math.min(
+    lines,
+    Math.floor((0.45 * (method === "angle" ? samplesPerRev : recording.rate)) / lineSpacing) + 1,
+  );
+  const mapRpm: number[] = [];
+  const mapAxis: number[] = [];
+  rows.forEach((row) => {
+    for (let k = 0; k < validLines; k++) {
+      mapRpm.push(row.rpm);
+      mapAxis.push(k * lineSpacing);
+    }
+  });
+  const mapColumns: TableColumn[] = [
+    { name: "rpm", unit: "rpm", values: new Float64Array(mapRpm) },
+    {
+      name: method === "angle" ? "order" : "frequency_hz",
+      unit: "",
+      values: new Float64Array(mapAxis),
+    },
+    ...channels.map((c, ci) => ({
+      name: c.name,
+      unit: c.unit,
+      values: new Float64Array(
+        rows.flatMap((row) => Array.from(row.line[ci].subarray(0, validLines))),
+      ),
+    })),
+  ];
+  const metadata = {
+    analysis: "orders",
+    method,
+    amplitude,
+    orders,
+    rpm_min: rpmMin,
+    rpm_max: rpmMax,
+    rpm_step: step,
+    speed_source: options.tacho !== undefined
+      ? { tacho: options.tacho, ppr: options.ppr }
+      : { rpm_channel: options.rpmChannel },
+    ...(method === "angle"
+      ? {
+        revolutions_per_block: revolutions,
+        samples_per_rev: samplesPerRev,
+        order_resolution: 1 / revolutions,
+      }
+      : { block: timeBlock, df_hz: recording.rate / timeBlock }),
+    window: "hann",
+    recorded_rpm_range: [lowest, highest],
+    warnings,
+  };
+  return {
+    cuts: { columns, metadata },
+    rpm: {
+      columns: [
+        { name: "time_s", unit: "", values: motion.times.map((t) => t + recording.startTime) },
+        { name: "rpm", unit: "rpm", values: motion.rpm },
+      ],
+      metadata: { ...metadata, analysis: "rpm" },
+    },
+    map: {
+      columns: mapColumns,
+      metadata: {
+        ...metadata,
+        analysis: "order map",
+        layout: "tidy: one row per (rpm, order or frequency)",
+      },
+    },
+    warnings,
+  };
+}

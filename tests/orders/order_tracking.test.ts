@@ -1,0 +1,149 @@
+import { describe, expect, test } from "vitest";
+import { trackOrders } from "../../lib/orders/order_tracking.ts";
+import { QuiverError } from "../../lib/errors.ts";
+import type { Table } from "../../lib/io/table.ts";
+import {
+  linearProfile,
+  type OrderContent,
+  quadraticProfile,
+  resonanceShape,
+  runUpRecording,
+} from "../helpers/run_up.ts";
+
+const RATE = 8192;
+const col = (t: Table, name: string) => t.columns.find((c) => c.name === name)!.values;
+const db = (a: number, b: number) => 20 * Math.log10(a / b);
+
+// Our e-motor mount (invented): order 2 steady at 0.5 m/s² rms; order 6 crossing a
+// 320 Hz mount resonance (ζ = 5 %), peaking at 60·320/6 = 3200 rpm with 2 m/s² rms.
+const resonance = resonanceShape(320, 0.05);
+const CONTENT: OrderContent[] = [
+  { order: 2, rms: () => 0.5 },
+  { order: 6, rms: (rpm) => 2 * resonance((6 * rpm) / 60) },
+];
+
+describe("order tracking of a run-up", () => {
+  for (
+    const [name, profile] of [
+      ["linear", linearProfile(900, 4800, 20)],
+      ["quadratic", quadraticProfile(900, 4800, 20)],
+    ] as const
+  ) {
+    test(`${name} 900→4800 rpm in 20 s, 2-pulse TTL tacho: order cuts within 0.5 dB and 1 dB`, () => {
+      const rec = runUpRecording(profile, RATE, 20, 2, CONTENT, { noise: 0.05 });
+      const { cuts, rpm } = trackOrders(rec, {
+        tacho: "tacho",
+        ppr: 2,
+        channels: ["mount_acc"],
+        orders: [2, 6],
+        rpmMin: 1000,
+        rpmMax: 4700,
+        rpmStep: 100,
+      });
+      // rpm profile within 0.5 % of the analytic one.
+      const times = col(rpm, "time_s");
+      const r = col(rpm, "rpm");
+      times.forEach((t, i) => {
+        if (t > 0.5 && t < 19.5) expect(Math.abs(r[i] / profile.rpm(t) - 1)).toBeLessThan(0.005);
+      });
+      const steps = col(cuts, "rpm");
+      const o2 = col(cuts, "mount_acc_order2");
+      const o6 = col(cuts, "mount_acc_order6");
+      steps.forEach((s, i) => {
+        expect(Math.abs(db(o2[i], 0.5)), `order 2 at ${s} rpm`).toBeLessThan(0.5);
+        expect(Math.abs(db(o6[i], CONTENT[1].rms(s))), `order 6 at ${s} rpm`).toBeLessThan(1);
+      });
+      // The resonance is crossed by order 6 at 3200 rpm.
+      expect(steps[o6.indexOf(Math.max(...o6))]).toBe(3200);
+      // Overall level: both orders and the noise, as RMS.
+      const overall = col(cuts, "mount_acc_overall");
+      const at3200 = steps.indexOf(3200);
+      expect(Math.abs(db(overall[at3200], Math.sqrt(0.25 + 4 + 0.0025)))).toBeLessThan(0.5);
+    });
+  }
+
+  test("a run-down reads the same", () => {
+    const rec = runUpRecording(linearProfile(4800, 900, 20), RATE, 20, 2, CONTENT);
+    const { cuts } = trackOrders(rec, {
+      tacho: "tacho",
+      ppr: 2,
+      channels: ["mount_acc"],
+      orders: [2, 6],
+      rpmStep: 200,
+    });
+    const steps = col(cuts, "rpm");
+    col(cuts, "mount_acc_order6").forEach((v, i) => {
+      expect(Math.abs(db(v, CONTENT[1].rms(steps[i])))).toBeLessThan(1);
+    });
+  });
+
+  test("order resolution is 1/revolutions: orders 4 and 4.25 are told apart", () => {
+    const rec = runUpRecording(linearProfile(1500, 3000, 10), RATE, 10, 1, [
+      { order: 4, rms: () => 1 },
+      { order: 4.25, rms: () => 0.3 },
+    ]);
+    const { cuts } = trackOrders(rec, {
+      tacho: "tacho",
+      ppr: 1,
+      channels: ["mount_acc"],
+      orders: [4, 4.25],
+      revolutions: 16,
+      rpmStep: 250,
+    });
+    expect(cuts.metadata.order_resolution).toBe(1 / 16);
+    for (const v of col(cuts, "mount_acc_order4")) expect(Math.abs(db(v, 1))).toBeLessThan(0.5);
+    for (const v of col(cuts, "mount_acc_order4.25")) {
+      expect(Math.abs(db(v, 0.3))).toBeLessThan(0.5);
+    }
+  });
+
+  test("a high order above the resampled Nyquist does not fold into low orders", () => {
+    // With 64 samples per revolution the resampled Nyquist is order 32; order 90 would
+    // alias to |90 − 64| = 26 without the band-limited resampling (sampling theorem).
+    const rec = runUpRecording(linearProfile(1000, 1500, 10), RATE, 10, 1, [
+      { order: 3, rms: () => 1 },
+      { order: 90, rms: () => 1 },
+    ]);
+    const { cuts } = trackOrders(rec, {
+      tacho: "tacho",
+      ppr: 1,
+      channels: ["mount_acc"],
+      orders: [3, 26],
+      samplesPerRev: 64,
+      rpmStep: 100,
+    });
+    for (const v of col(cuts, "mount_acc_order3")) expect(Math.abs(db(v, 1))).toBeLessThan(0.5);
+    for (const v of col(cuts, "mount_acc_order26")) expect(db(v, 1)).toBeLessThan(-40);
+  });
+
+  test("the time-domain method reads a slow sweep", () => {
+    const rec = runUpRecording(linearProfile(1000, 1600, 30), RATE, 30, 2, [{
+      order: 2,
+      rms: () => 0.5,
+    }]);
+    const { cuts, map } = trackOrders(rec, {
+      tacho: "tacho",
+      ppr: 2,
+      channels: ["mount_acc"],
+      orders: [2],
+      method: "time",
+      rpmStep: 100,
+    });
+    for (const v of col(cuts, "mount_acc_order2")) expect(Math.abs(db(v, 0.5))).toBeLessThan(0.5);
+    expect(map.columns[1].name).toBe("frequency_hz");
+  });
+
+  test("a requested range beyond the recorded speeds is refused", () => {
+    const rec = runUpRecording(linearProfile(900, 4800, 20), RATE, 20, 2, CONTENT);
+    expect(() =>
+      trackOrders(rec, {
+        tacho: "tacho",
+        ppr: 2,
+        channels: ["mount_acc"],
+        rpmMin: 500,
+        rpmMax: 5000,
+      })
+    )
+      .toThrow(QuiverError);
+  });
+});

@@ -1,0 +1,60 @@
+import { describe, expect, test } from "vitest";
+import { motionFromPulses, motionFromRpm, tachoPulses } from "../../lib/orders/tacho.ts";
+import { linearProfile, quadraticProfile, ttlTacho } from "../helpers/run_up.ts";
+
+const RATE = 51200; // a common acquisition rate; a 60-pulse wheel at 4800 rpm pulses at 4.8 kHz
+
+describe("rpm from a tacho", () => {
+  for (const ppr of [1, 2, 60]) {
+    test(`${ppr} pulse(s) per revolution with one missing pulse: rpm within 0.5 %`, () => {
+      // Truth: the analytic profile; the rpm at each reading is compared with it.
+      const profile = quadraticProfile(900, 4800, 20);
+      const signal = ttlTacho(profile, RATE, 20, ppr, 10 * ppr + 1);
+      const pulses = tachoPulses(signal, RATE, { ppr });
+      expect(pulses.inserted).toBe(1);
+      const motion = motionFromPulses(pulses.times, ppr);
+      let worst = 0;
+      motion.times.forEach((t, i) => {
+        if (t < 0.5 || t > 19.5) return;
+        worst = Math.max(worst, Math.abs(motion.rpm[i] / profile.rpm(t) - 1));
+      });
+      expect(worst).toBeLessThan(0.005);
+      // The angle follows the shaft too: within 1 % of a revolution at mid-record.
+      const offset = motion.angleAt(pulses.times[0]) - profile.angle(pulses.times[0]);
+      expect(Math.abs(motion.angleAt(10) - offset - profile.angle(10))).toBeLessThan(0.01);
+    });
+  }
+
+  test("an extra (spurious) pulse is removed", () => {
+    const profile = linearProfile(1200, 1200, 5);
+    const signal = ttlTacho(profile, RATE, 5, 1);
+    // A glitch in the middle of a low phase: 3 samples high.
+    const at = Math.round(2.035 * RATE); // 70 % into a period: the low phase
+    for (let i = at; i < at + 3; i++) signal[i] = 5;
+    const pulses = tachoPulses(signal, RATE, { ppr: 1 });
+    expect(pulses.removed).toBe(1);
+    const motion = motionFromPulses(pulses.times, 1);
+    for (const r of motion.rpm) expect(Math.abs(r / 1200 - 1)).toBeLessThan(0.005);
+  });
+
+  test("an analogue tacho with noise, through the hysteresis", () => {
+    const profile = linearProfile(3000, 3000, 4);
+    const signal = new Float64Array(4 * RATE).map((_, i) =>
+      Math.sin(2 * Math.PI * profile.angle(i / RATE)) +
+      0.05 * Math.sin(2 * Math.PI * 2000 * i / RATE)
+    );
+    const motion = motionFromPulses(tachoPulses(signal, RATE, { ppr: 1 }).times, 1);
+    for (const r of motion.rpm) expect(Math.abs(r / 3000 - 1)).toBeLessThan(0.005);
+  });
+
+  test("pulses too close for the sample rate are refused, not misread", () => {
+    const signal = ttlTacho(linearProfile(4800, 4800, 1), 8192, 1, 60);
+    expect(() => tachoPulses(signal, 8192, { ppr: 60 })).toThrow(/too low for this tacho/);
+  });
+
+  test("a channel that holds rpm gives the angle by integration", () => {
+    const m = motionFromRpm(new Float64Array(1001).map((_, i) => 600 + i), 100);
+    // ∫(600 + 100t) dt /60 from 0 to 10 s = (6000 + 5000)/60 revolutions (analytic).
+    expect(Math.abs(m.angleAt(10) - 11000 / 60)).toBeLessThan(1e-9);
+  });
+});
