@@ -57,3 +57,6 @@ export * from "./lib/acoustics/time_weighting.ts";
 export * from "./lib/acoustics/band_analysis.ts";
 export * from "./lib/acoustics/level_analysis.ts";
 export * from "./lib/acoustics/calibration.ts";
+export * from "./lib/orders/tacho.ts";
+export * from "./lib/orders/angle_resample.ts";
+export * from "./lib/orders/order_tracking.ts";

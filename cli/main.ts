@@ -14,6 +14,7 @@ import * as damping from "./damping.ts";
 import * as frf from "./frf.ts";
 import * as hammer from "./hammer.ts";
 import * as level from "./level.ts";
+import * as orders from "./orders.ts";
 import * as spectrum from "./spectrum.ts";
 
 interface Command {
@@ -30,6 +31,7 @@ const COMMANDS: Readonly<Record<string, Command>> = {
   bands,
   level,
   calibrate,
+  orders,
 };
 
 const MAIN_HELP = `quiver: NVH test data from raw time histories to trustworthy numbers

@@ -1,0 +1,183 @@
+/**
+ * `quiver orders`: order cuts, rpm profile and maps of a run-up or run-down.
+ *
+ * @module
+ */
+import process from "node:process";
+import { z } from "zod";
+import { ORDER_METHODS, trackOrders } from "../lib/orders/order_tracking.ts";
+import { readRecordingFile } from "../lib/io/read_recording.ts";
+import {
+  inFile,
+  integerOption,
+  listOption,
+  numberOption,
+  parseCommandArgs,
+  usageError,
+} from "./args.ts";
+import { resolveFormat, writeTable } from "./output.ts";
+import {
+  RECORDING_HELP,
+  RECORDING_OPTIONS,
+  recordingOptionsShape,
+  toReadOptions,
+} from "./recording_options.ts";
+import { OUTPUT_HELP, OUTPUT_OPTIONS, outputOptionsShape } from "./segment_options.ts";
+
+/** One-line summary for the command list. */
+export const summary = "order cuts, rpm and rpm maps of run-ups and run-downs from a tacho";
+
+/** The command's help text. */
+export const help = `quiver orders IN (--tacho T --ppr N | --rpm-channel R) --channels a,b [options]
+
+Order tracking of a run-up or run-down. The shaft angle comes from tacho
+pulses (Schmitt trigger with automatic level and hysteresis, sub-sample
+edges, missing and extra pulses repaired, speed from a local fit) or from a
+channel that already holds rpm.
+
+Speed:
+  --tacho CH           tacho pulse channel (analogue or TTL)
+  --ppr N              pulses per revolution                   (with --tacho)
+  --tacho-level L      switching level          (default: mid 2nd-98th percentile)
+  --tacho-hysteresis H hysteresis width         (default: 20 % of that span)
+  --rpm-channel CH     a channel holding rpm, instead of a tacho
+
+Analysis:
+  --channels a,b       response channels                          (required)
+  --orders 2,4,6.5     orders to cut                               (default 1,2,4)
+  --rpm-min R, --rpm-max R   rpm range      (default: the recorded range, in steps)
+  --rpm-step R         rpm between cuts                            (default 50)
+  --method M           angle: resample to equal angle steps, FFT over R
+                       revolutions; orders stay on their lines (default; for
+                       real run-ups) | time: time blocks at each rpm step, order
+                       k at k*rpm/60 Hz (fast sweeps smear orders; for slow ones)
+  --amplitude A        rms | peak                                  (default rms)
+  --revolutions R      angle: revolutions per block; order resolution 1/R (default 16)
+  --samples-per-rev S  angle: power of two       (default >= 4 x highest order, >= 64)
+  --block N            time: samples per block   (default: 1/4-order resolution at rpm-min)
+
+${RECORDING_HELP}
+
+${OUTPUT_HELP}
+  --rpm-out FILE       rpm profile: time_s, rpm
+  --map-out FILE       map, tidy: one row per (rpm, order) for angle or (rpm,
+                       frequency_hz) for time, then one RMS-per-line column per channel
+
+Cut columns: rpm, then <channel>_order<k> per channel and order, then
+<channel>_overall (RMS over the same stretch of time), in the channel's unit.
+`;
+
+const positive = (what: string) =>
+  numberOption().pipe(z.number().positive(`must be a positive number of ${what}`));
+
+const schema = z.strictObject({
+  tacho: z.string().min(1).optional(),
+  ppr: integerOption().optional(),
+  "tacho-level": numberOption().optional(),
+  "tacho-hysteresis": positive("channel units").optional(),
+  "rpm-channel": z.string().min(1).optional(),
+  channels: listOption(),
+  orders: listOption().pipe(z.array(z.string())).transform((list, context) => {
+    const values = list.map(Number);
+    if (values.some((v) => !(v > 0) || !Number.isFinite(v))) {
+      context.addIssue({ code: "custom", message: "orders must be positive numbers" });
+      return z.NEVER;
+    }
+    return values;
+  }).optional(),
+  "rpm-min": positive("rpm").optional(),
+  "rpm-max": positive("rpm").optional(),
+  "rpm-step": positive("rpm").optional(),
+  method: z.enum(ORDER_METHODS).optional(),
+  amplitude: z.enum(["rms", "peak"]).optional(),
+  revolutions: integerOption().optional(),
+  "samples-per-rev": integerOption().optional(),
+  block: integerOption().optional(),
+  "rpm-out": z.string().min(1).optional(),
+  "map-out": z.string().min(1).optional(),
+  ...outputOptionsShape,
+  ...recordingOptionsShape,
+}).refine((v) => (v.tacho === undefined) !== (v["rpm-channel"] === undefined), {
+  message: "give --tacho (with --ppr) or --rpm-channel, one of them",
+}).refine((v) => v.tacho === undefined || v.ppr !== undefined, { message: "--tacho needs --ppr" });
+
+/** Runs the command. */
+export async function run(argv: readonly string[]): Promise<void> {
+  const text = { type: "string" } as const;
+  const { positionals, values } = parseCommandArgs(argv, {
+    tacho: text,
+    ppr: text,
+    "tacho-level": text,
+    "tacho-hysteresis": text,
+    "rpm-channel": text,
+    channels: text,
+    orders: text,
+    "rpm-min": text,
+    "rpm-max": text,
+    "rpm-step": text,
+    method: text,
+    amplitude: text,
+    revolutions: text,
+    "samples-per-rev": text,
+    block: text,
+    "rpm-out": text,
+    "map-out": text,
+    ...OUTPUT_OPTIONS,
+    ...RECORDING_OPTIONS,
+  }, schema);
+  if (positionals.length !== 1) usageError(`orders takes one recording, got ${positionals.length}`);
+  const outputs = [values.out, values["rpm-out"], values["map-out"]].filter((o) => o !== undefined);
+  if (new Set(outputs).size !== outputs.length) {
+    usageError("--out, --rpm-out and --map-out must name different files");
+  }
+  const [input] = positionals;
+  const recording = await readRecordingFile(input, toReadOptions(values));
+  const result = inFile(input, () =>
+    trackOrders(recording, {
+      tacho: values.tacho,
+      ppr: values.ppr,
+      tachoLevel: values["tacho-level"],
+      tachoHysteresis: values["tacho-hysteresis"],
+      rpmChannel: values["rpm-channel"],
+      channels: values.channels,
+      orders: values.orders,
+      rpmMin: values["rpm-min"],
+      rpmMax: values["rpm-max"],
+      rpmStep: values["rpm-step"],
+      method: values.method,
+      amplitude: values.amplitude,
+      revolutions: values.revolutions,
+      samplesPerRev: values["samples-per-rev"],
+      block: values.block,
+    }));
+  const trace = <T extends { metadata: Readonly<Record<string, unknown>> }>(t: T) => ({
+    ...t,
+    metadata: { source: input, ...t.metadata },
+  });
+  const format = resolveFormat(values.format, values.out);
+  await writeTable(trace(result.cuts), format, values.out);
+  if (values["rpm-out"] !== undefined) {
+    await writeTable(
+      trace(result.rpm),
+      resolveFormat(undefined, values["rpm-out"]),
+      values["rpm-out"],
+    );
+  }
+  if (values["map-out"] !== undefined) {
+    await writeTable(
+      trace(result.map),
+      resolveFormat(undefined, values["map-out"]),
+      values["map-out"],
+    );
+  }
+  for (const w of result.warnings) process.stderr.write(`quiver orders: warning: ${w}\n`);
+  const m = result.cuts.metadata;
+  process.stderr.write(
+    `orders: ${
+      result.cuts.columns[0].values.length
+    } rpm step(s) from ${m.rpm_min} to ${m.rpm_max} rpm, ` +
+      `method ${m.method}, recorded ${
+        (m.recorded_rpm_range as number[]).map((r) => r.toFixed(0)).join("–")
+      } rpm\n`,
+  );
+}
