@@ -10,6 +10,7 @@ import process from "node:process";
 import { QuiverError } from "../lib/errors.ts";
 import * as bands from "./bands.ts";
 import * as calibrate from "./calibrate.ts";
+import * as compare from "./compare.ts";
 import * as damping from "./damping.ts";
 import * as frf from "./frf.ts";
 import * as hammer from "./hammer.ts";
@@ -32,6 +33,7 @@ const COMMANDS: Readonly<Record<string, Command>> = {
   level,
   calibrate,
   orders,
+  compare,
 };
 
 const MAIN_HELP = `quiver: NVH test data from raw time histories to trustworthy numbers

@@ -52,6 +52,36 @@ function parabola(x: readonly number[], y: readonly number[]): [number, number, 
 }
 
 /**
+ * The interpolated peak around line `k`: the vertex of the parabola through
+ * 1/|H|² at lines k − 1, k, k + 1 (falls back to line k when the three do not
+ * curve upward).
+ *
+ * @example
+ * ```ts
+ * import { peakVertex } from "./half_power.ts";
+ * const f = new Float64Array([9, 10, 11]);
+ * const mag = f.map((v) => 1 / Math.sqrt(1 + (v - 10.3) ** 2));
+ * if (Math.abs(peakVertex(f, mag, 1).frequencyHz - 10.3) > 1e-9) throw new Error();
+ * ```
+ */
+export function peakVertex(
+  frequencies: Float64Array,
+  magnitude: Float64Array,
+  k: number,
+): { frequencyHz: number; magnitude: number } {
+  if (k <= 0 || k >= magnitude.length - 1) {
+    return { frequencyHz: frequencies[k], magnitude: magnitude[k] };
+  }
+  const inv = (i: number) => 1 / (magnitude[i] * magnitude[i]);
+  const [a, b, c] = parabola(
+    [frequencies[k - 1], frequencies[k], frequencies[k + 1]],
+    [inv(k - 1), inv(k), inv(k + 1)],
+  );
+  if (!(a > 0)) return { frequencyHz: frequencies[k], magnitude: magnitude[k] };
+  return { frequencyHz: -b / (2 * a), magnitude: 1 / Math.sqrt(c - (b * b) / (4 * a)) };
+}
+
+/**
  * The half-power estimate of the mode whose magnitude peaks on line
  * `peakIndex`, or undefined when a −3 dB point is not reached inside
  * `[lowLimit, highLimit]` (line indices, default the whole spectrum).
@@ -79,12 +109,9 @@ export function halfPower(
   const k = peakIndex;
   if (k <= lowLimit || k >= highLimit) return undefined;
   const inv = (i: number) => 1 / (magnitude[i] * magnitude[i]);
-  const [a, b, c] = parabola(
-    [frequencies[k - 1], frequencies[k], frequencies[k + 1]],
-    [inv(k - 1), inv(k), inv(k + 1)],
-  );
-  const peakHz = a > 0 ? -b / (2 * a) : frequencies[k];
-  const vertex = a > 0 ? c - (b * b) / (4 * a) : inv(k);
+  const peak = peakVertex(frequencies, magnitude, k);
+  const peakHz = peak.frequencyHz;
+  const vertex = 1 / (peak.magnitude * peak.magnitude);
   const target = 2 * vertex;
   const crossing = (direction: -1 | 1): number | undefined => {
     let j = k;

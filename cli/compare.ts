@@ -1,0 +1,113 @@
+/**
+ * `quiver compare`: a test curve against a simulation.
+ *
+ * @module
+ */
+import process from "node:process";
+import { z } from "zod";
+import { BAND_FRACTIONS } from "../lib/acoustics/bands.ts";
+import { compareCurves } from "../lib/compare/comparison.ts";
+import { readCurveFile } from "../lib/compare/curve_input.ts";
+import { writeFileAtomic } from "../lib/io/atomic_write.ts";
+import { inFile, numberOption, parseCommandArgs, usageError } from "./args.ts";
+import { resolveFormat, writeTable } from "./output.ts";
+import { OUTPUT_HELP, OUTPUT_OPTIONS, outputOptionsShape } from "./segment_options.ts";
+
+/** One-line summary for the command list. */
+export const summary =
+  "test against simulation: common grid, dB difference, FRAC, peak shifts, bands";
+
+/** The command's help text. */
+export const help = `quiver compare TEST SIM [options]
+
+Lays a test curve against a simulation. Either file may be what quiver
+wrote (CSV with its .meta.json sidecar, or JSON) or a plain table from a
+solver: frequency_hz plus re and im, or mag (linear, optional phase_deg),
+or a dB column (name ending in _db, or a unit starting with "dB").
+
+Both go on the coarser of the two grids over the range both cover; the
+other is interpolated linearly (in re/im when it has phase, else in
+magnitude).
+
+  --test-column C      curve in TEST (C, C_re/C_im, C_mag or C_mag_db)   (default: first)
+  --sim-column C       curve in SIM                                     (default: first)
+  --power              the curves are power quantities (dB = 10 log10); default from
+                       the metadata (psd/power spectra), else amplitudes (20 log10)
+  --min-hz F, --max-hz F   frequency range
+  --bands B            per-band level differences, 1/B octave (${BAND_FRACTIONS.join(", ")})
+  --prominence DB      peak prominence for peak matching              (default 6)
+${OUTPUT_HELP}
+  --summary-out FILE   JSON summary: frac, peaks (test_hz, simulation_hz,
+                       shift_percent, level_difference_db), bands, grid
+
+CSV columns: frequency_hz, test, simulation, difference_db (simulation - test).
+`;
+
+/** parseArgs spec. */
+export const options = {
+  "test-column": { type: "string" },
+  "sim-column": { type: "string" },
+  power: { type: "boolean" },
+  "min-hz": { type: "string" },
+  "max-hz": { type: "string" },
+  bands: { type: "string" },
+  prominence: { type: "string" },
+  "summary-out": { type: "string" },
+  ...OUTPUT_OPTIONS,
+} as const;
+
+/** zod schema of the options. */
+export const schema = z.strictObject({
+  "test-column": z.string().min(1).optional(),
+  "sim-column": z.string().min(1).optional(),
+  power: z.boolean().optional(),
+  "min-hz": numberOption().pipe(z.number().min(0, "must be at least 0")).optional(),
+  "max-hz": numberOption().pipe(z.number().positive("must be positive")).optional(),
+  bands: z.enum(BAND_FRACTIONS.map(String) as [string, ...string[]]).optional(),
+  prominence: numberOption().pipe(z.number().positive("must be positive")).optional(),
+  "summary-out": z.string().min(1).optional(),
+  ...outputOptionsShape,
+});
+
+/** Runs the command. */
+export async function run(argv: readonly string[]): Promise<void> {
+  const { positionals, values } = parseCommandArgs(argv, options, schema);
+  if (positionals.length !== 2) {
+    usageError(`compare takes a test file and a simulation file, got ${positionals.length}`);
+  }
+  const [testPath, simPath] = positionals;
+  const quantity = values.power === true ? "power" : undefined;
+  const test = await readCurveFile(testPath, { column: values["test-column"], quantity });
+  const simulation = await readCurveFile(simPath, {
+    column: values["sim-column"],
+    quantity: quantity ?? test.quantity,
+  });
+  const result = inFile(testPath, () =>
+    compareCurves(test, simulation, {
+      minHz: values["min-hz"],
+      maxHz: values["max-hz"],
+      bands: values.bands === undefined ? undefined : Number(values.bands) as 1 | 3 | 6 | 12 | 24,
+      prominenceDb: values.prominence,
+    }));
+  const traced = {
+    ...result.table,
+    metadata: { test: testPath, simulation: simPath, ...result.table.metadata },
+  };
+  await writeTable(traced, resolveFormat(values.format, values.out), values.out);
+  if (values["summary-out"] !== undefined) {
+    await writeFileAtomic(
+      values["summary-out"],
+      JSON.stringify({ test: testPath, simulation: simPath, ...result.summary }, null, 2) + "\n",
+    );
+  }
+  const s = result.summary;
+  process.stderr.write(
+    `compare: FRAC ${s.frac.toFixed(4)} (${s.frac_on}), ${s.peaks.length} matched peak(s)` +
+      s.peaks.map((p) =>
+        `; ${p.test_hz.toFixed(2)} Hz -> ${p.simulation_hz.toFixed(2)} Hz (${
+          p.shift_percent.toFixed(2)
+        } %)`
+      ).join("") +
+      `, grid ${s.grid.lines} lines ${s.grid.min_hz}-${s.grid.max_hz} Hz from ${s.grid.from}\n`,
+  );
+}

@@ -1,0 +1,135 @@
+/**
+ * Targets: limits a result must meet, each checked to pass or fail with its
+ * margin (positive when met).
+ *
+ * - `min` / `max`: a single value, e.g. a minimum first-mode frequency or a
+ *   maximum overall dB(A). Margin: value − limit for `min`, limit − value for `max`.
+ * - `limit_curve`: a curve of (frequency, level) points; between points the
+ *   limit is interpolated linearly in level against log-frequency. The
+ *   result's curve is checked on its own lines inside the limit's range.
+ *   Margin: the smallest limit − value (`max`) or value − limit (`min`) over
+ *   those lines, with the frequency where it occurs.
+ *
+ * Component frequency targets and level limit curves are common practice in
+ * vehicle development.
+ *
+ * @module
+ */
+
+/** A checked target. */
+export interface TargetResult {
+  /** The target's id. */
+  readonly id: string;
+  /** What was checked, in words. */
+  readonly description: string;
+  /** Whether the result meets the limit. */
+  readonly pass: boolean;
+  /** Margin in the target's unit; positive when met. */
+  readonly margin: number;
+  /** Unit of the margin. */
+  readonly unit: string;
+  /** The value checked (single-value targets) or the worst-case value (curves). */
+  readonly value: number;
+  /** The limit at the worst case. */
+  readonly limit: number;
+  /** Frequency of the worst case (curves). */
+  readonly atHz?: number;
+}
+
+/**
+ * Checks a single value against a minimum or maximum.
+ *
+ * @example
+ * ```ts
+ * import { checkValue } from "./targets.ts";
+ * const r = checkValue("first_mode", "first mode", 41.2, "min", 38, "Hz");
+ * if (!r.pass || Math.abs(r.margin - 3.2) > 1e-12) throw new Error();
+ * ```
+ */
+export function checkValue(
+  id: string,
+  description: string,
+  value: number,
+  kind: "min" | "max",
+  limit: number,
+  unit: string,
+): TargetResult {
+  const margin = kind === "min" ? value - limit : limit - value;
+  return { id, description, pass: margin >= 0, margin, unit, value, limit };
+}
+
+/**
+ * The limit curve's level at `frequency`, linear in level against
+ * log-frequency, or undefined outside its range.
+ *
+ * @example
+ * ```ts
+ * import { limitAt } from "./targets.ts";
+ * if (Math.abs(limitAt([[100, 60], [1000, 50]], Math.sqrt(1e5))! - 55) > 1e-9) throw new Error();
+ * ```
+ */
+export function limitAt(
+  points: readonly (readonly [number, number])[],
+  frequency: number,
+): number | undefined {
+  for (let i = 1; i < points.length; i++) {
+    const [f0, l0] = points[i - 1];
+    const [f1, l1] = points[i];
+    if (frequency >= f0 && frequency <= f1) {
+      const u = Math.log(frequency / f0) / Math.log(f1 / f0);
+      return l0 + u * (l1 - l0);
+    }
+  }
+  return undefined;
+}
+
+/**
+ * Checks a curve against a limit curve.
+ *
+ * @throws {RangeError} when the limit's points are not increasing in frequency
+ * or no line of the curve falls inside the limit's range.
+ *
+ * @example
+ * ```ts
+ * import { checkCurve } from "./targets.ts";
+ * const r = checkCurve("cabin", "cabin thirds", new Float64Array([100, 200]), new Float64Array([58, 61]), "max", [[50, 62], [400, 62]], "dB");
+ * if (!r.pass || r.atHz !== 200 || Math.abs(r.margin - 1) > 1e-12) throw new Error();
+ * ```
+ */
+export function checkCurve(
+  id: string,
+  description: string,
+  frequencies: Float64Array,
+  levels: Float64Array,
+  kind: "min" | "max",
+  points: readonly (readonly [number, number])[],
+  unit: string,
+): TargetResult {
+  for (let i = 1; i < points.length; i++) {
+    if (!(points[i][0] > points[i - 1][0]) || !(points[i - 1][0] > 0)) {
+      throw new RangeError(`the limit curve of "${id}" must have positive, increasing frequencies`);
+    }
+  }
+  let worst: TargetResult | undefined;
+  frequencies.forEach((f, k) => {
+    const limit = limitAt(points, f);
+    if (limit === undefined || !Number.isFinite(levels[k])) return;
+    const margin = kind === "min" ? levels[k] - limit : limit - levels[k];
+    if (worst === undefined || margin < worst.margin) {
+      worst = {
+        id,
+        description,
+        pass: margin >= 0,
+        margin,
+        unit,
+        value: levels[k],
+        limit,
+        atHz: f,
+      };
+    }
+  });
+  if (worst === undefined) {
+    throw new RangeError(`no line of the result falls inside the limit curve of "${id}"`);
+  }
+  return worst;
+}
