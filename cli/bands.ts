@@ -14,6 +14,7 @@ import {
   integerOption,
   listOption,
   numberOption,
+  type OptionSpec,
   parseCommandArgs,
   usageError,
 } from "./args.ts";
@@ -68,7 +69,8 @@ measurement; for noise exposure follow local regulations and use certified
 instruments.
 `;
 
-const schema = z.strictObject({
+/** zod schema of the options. */
+export const schema = z.strictObject({
   channels: listOption().optional(),
   fraction: z.enum(BAND_FRACTIONS.map(String) as [string, ...string[]]).optional(),
   weighting: z.enum(WEIGHTINGS).optional(),
@@ -82,22 +84,26 @@ const schema = z.strictObject({
   ...recordingOptionsShape,
 }).refine(oneBlockChoice, { message: "give --block or --resolution, not both" });
 
+const text = { type: "string" } as const;
+
+/** parseArgs spec of the options. */
+export const options: OptionSpec = {
+  channels: text,
+  fraction: text,
+  weighting: text,
+  method: text,
+  reference: text,
+  "min-hz": text,
+  "max-hz": text,
+  block: text,
+  resolution: text,
+  ...OUTPUT_OPTIONS,
+  ...RECORDING_OPTIONS,
+};
+
 /** Runs the command. */
 export async function run(argv: readonly string[]): Promise<void> {
-  const text = { type: "string" } as const;
-  const { positionals, values } = parseCommandArgs(argv, {
-    channels: text,
-    fraction: text,
-    weighting: text,
-    method: text,
-    reference: text,
-    "min-hz": text,
-    "max-hz": text,
-    block: text,
-    resolution: text,
-    ...OUTPUT_OPTIONS,
-    ...RECORDING_OPTIONS,
-  }, schema);
+  const { positionals, values } = parseCommandArgs(argv, options, schema);
   if (positionals.length !== 1) usageError(`bands takes one recording, got ${positionals.length}`);
   const [input] = positionals;
   const recording = await readRecordingFile(input, toReadOptions(values));

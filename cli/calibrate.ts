@@ -13,7 +13,7 @@ import { type ChannelSetup, parseChannelSetup } from "../lib/io/channel_setup.ts
 import { readRecordingFile } from "../lib/io/read_recording.ts";
 import { selectChannels } from "../lib/io/recording.ts";
 import { FULL_SCALE_UNIT } from "../lib/io/wav.ts";
-import { inFile, numberOption, parseCommandArgs, usageError } from "./args.ts";
+import { inFile, numberOption, type OptionSpec, parseCommandArgs, usageError } from "./args.ts";
 
 /** One-line summary for the command list. */
 export const summary =
@@ -39,7 +39,8 @@ A calibrator at 94 dB (1 Pa rms) and 1 kHz is common practice. quiver's
 levels are for engineering comparison, not certified measurements.
 `;
 
-const schema = z.strictObject({
+/** zod schema of the options. */
+export const schema = z.strictObject({
   channel: z.string().min(1),
   level: numberOption().pipe(z.number().positive("must be a positive number of dB")).optional(),
   frequency: numberOption().pipe(z.number().positive("must be a positive number of Hz")).optional(),
@@ -48,17 +49,21 @@ const schema = z.strictObject({
   rate: numberOption().pipe(z.number().positive("must be a positive number of Hz")).optional(),
 });
 
+const text = { type: "string" } as const;
+
+/** parseArgs spec of the options. */
+export const options: OptionSpec = {
+  channel: text,
+  level: text,
+  frequency: text,
+  setup: text,
+  out: text,
+  rate: text,
+};
+
 /** Runs the command. */
 export async function run(argv: readonly string[]): Promise<void> {
-  const text = { type: "string" } as const;
-  const { positionals, values } = parseCommandArgs(argv, {
-    channel: text,
-    level: text,
-    frequency: text,
-    setup: text,
-    out: text,
-    rate: text,
-  }, schema);
+  const { positionals, values } = parseCommandArgs(argv, options, schema);
   if (positionals.length !== 1) {
     usageError(`calibrate takes one recording, got ${positionals.length}`);
   }

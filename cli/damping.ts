@@ -8,7 +8,14 @@ import { z } from "zod";
 import { FRF_FORMS } from "../lib/frf/forms.ts";
 import { DAMPING_METHODS, modalDamping } from "../lib/modal/damping_analysis.ts";
 import { readFrfFile } from "../lib/modal/frf_input.ts";
-import { inFile, listOption, numberOption, parseCommandArgs, usageError } from "./args.ts";
+import {
+  inFile,
+  listOption,
+  numberOption,
+  type OptionSpec,
+  parseCommandArgs,
+  usageError,
+} from "./args.ts";
 import { resolveFormat, writeTable } from "./output.ts";
 import { OUTPUT_HELP, OUTPUT_OPTIONS, outputOptionsShape } from "./segment_options.ts";
 
@@ -55,7 +62,8 @@ poor_fit, magnitude_only, form_assumed, window_dominates (see README).
 const positive = (what: string) =>
   numberOption().pipe(z.number().positive(`must be a positive number of ${what}`));
 
-const schema = z.strictObject({
+/** zod schema of the options. */
+export const schema = z.strictObject({
   channel: listOption().optional(),
   "min-hz": numberOption().pipe(z.number().min(0, "must be at least 0")).optional(),
   "max-hz": positive("Hz").optional(),
@@ -70,23 +78,27 @@ const schema = z.strictObject({
   ...outputOptionsShape,
 });
 
+const text = { type: "string" } as const;
+
+/** parseArgs spec of the options. */
+export const options: OptionSpec = {
+  channel: text,
+  "min-hz": text,
+  "max-hz": text,
+  method: text,
+  prominence: text,
+  "peaks-from": text,
+  "exp-tau": text,
+  form: text,
+  "target-hz": text,
+  delimiter: text,
+  decimal: text,
+  ...OUTPUT_OPTIONS,
+};
+
 /** Runs the command. */
 export async function run(argv: readonly string[]): Promise<void> {
-  const text = { type: "string" } as const;
-  const { positionals, values } = parseCommandArgs(argv, {
-    channel: text,
-    "min-hz": text,
-    "max-hz": text,
-    method: text,
-    prominence: text,
-    "peaks-from": text,
-    "exp-tau": text,
-    form: text,
-    "target-hz": text,
-    delimiter: text,
-    decimal: text,
-    ...OUTPUT_OPTIONS,
-  }, schema);
+  const { positionals, values } = parseCommandArgs(argv, options, schema);
   if (positionals.length !== 1) {
     usageError(`damping takes one FRF table, got ${positionals.length}`);
   }

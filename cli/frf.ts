@@ -9,7 +9,7 @@ import { ESTIMATORS } from "../lib/frf/estimators.ts";
 import { FRF_FORMS } from "../lib/frf/forms.ts";
 import { frequencyResponse } from "../lib/frf/frf_analysis.ts";
 import { readRecordingFile } from "../lib/io/read_recording.ts";
-import { inFile, listOption, parseCommandArgs, usageError } from "./args.ts";
+import { inFile, listOption, type OptionSpec, parseCommandArgs, usageError } from "./args.ts";
 import { resolveFormat, writeTable } from "./output.ts";
 import {
   RECORDING_HELP,
@@ -59,7 +59,8 @@ R_phase_deg, R_coherence, R_random_error. When a conversion divides by jw,
 the 0 Hz line is left out (undefined there).
 `;
 
-const schema = z.strictObject({
+/** zod schema of the options. */
+export const schema = z.strictObject({
   input: z.string().min(1),
   outputs: listOption(),
   estimator: z.enum(ESTIMATORS).optional(),
@@ -69,17 +70,20 @@ const schema = z.strictObject({
   ...recordingOptionsShape,
 }).refine(oneBlockChoice, { message: "give --block or --resolution, not both" });
 
+/** parseArgs spec of the options. */
+export const options: OptionSpec = {
+  input: { type: "string" },
+  outputs: { type: "string" },
+  estimator: { type: "string" },
+  form: { type: "string" },
+  ...SEGMENT_OPTIONS,
+  ...OUTPUT_OPTIONS,
+  ...RECORDING_OPTIONS,
+};
+
 /** Runs the command. */
 export async function run(argv: readonly string[]): Promise<void> {
-  const { positionals, values } = parseCommandArgs(argv, {
-    input: { type: "string" },
-    outputs: { type: "string" },
-    estimator: { type: "string" },
-    form: { type: "string" },
-    ...SEGMENT_OPTIONS,
-    ...OUTPUT_OPTIONS,
-    ...RECORDING_OPTIONS,
-  }, schema);
+  const { positionals, values } = parseCommandArgs(argv, options, schema);
   if (positionals.length !== 1) usageError(`frf takes one recording, got ${positionals.length}`);
   const [input] = positionals;
   const recording = await readRecordingFile(input, toReadOptions(values));

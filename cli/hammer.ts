@@ -10,7 +10,14 @@ import { hammerFrf } from "../lib/frf/hammer.ts";
 import { readRecordingFile } from "../lib/io/read_recording.ts";
 import { formatCsv } from "../lib/io/table.ts";
 import { writeFileAtomic } from "../lib/io/atomic_write.ts";
-import { inFile, listOption, numberOption, parseCommandArgs, usageError } from "./args.ts";
+import {
+  inFile,
+  listOption,
+  numberOption,
+  type OptionSpec,
+  parseCommandArgs,
+  usageError,
+} from "./args.ts";
 import { resolveFormat, writeTable } from "./output.ts";
 import {
   RECORDING_HELP,
@@ -63,7 +70,8 @@ damping estimates can remove the damping it adds.
 const positive = (what: string) =>
   numberOption().pipe(z.number().positive(`must be a positive number of ${what}`));
 
-const schema = z.strictObject({
+/** zod schema of the options. */
+export const schema = z.strictObject({
   force: z.string().min(1),
   outputs: listOption(),
   trigger: positive("force units").optional(),
@@ -82,24 +90,28 @@ const schema = z.strictObject({
   message: "give --exp-window or --exp-end, not both",
 });
 
+const text = { type: "string" } as const;
+
+/** parseArgs spec of the options. */
+export const options: OptionSpec = {
+  force: text,
+  outputs: text,
+  trigger: text,
+  range: text,
+  pretrigger: text,
+  record: text,
+  "force-window": text,
+  "exp-window": text,
+  "exp-end": text,
+  form: text,
+  "hits-out": text,
+  ...OUTPUT_OPTIONS,
+  ...RECORDING_OPTIONS,
+};
+
 /** Runs the command. */
 export async function run(argv: readonly string[]): Promise<void> {
-  const text = { type: "string" } as const;
-  const { positionals, values } = parseCommandArgs(argv, {
-    force: text,
-    outputs: text,
-    trigger: text,
-    range: text,
-    pretrigger: text,
-    record: text,
-    "force-window": text,
-    "exp-window": text,
-    "exp-end": text,
-    form: text,
-    "hits-out": text,
-    ...OUTPUT_OPTIONS,
-    ...RECORDING_OPTIONS,
-  }, schema);
+  const { positionals, values } = parseCommandArgs(argv, options, schema);
   if (positionals.length !== 1) usageError(`hammer takes one recording, got ${positionals.length}`);
   if (values.out !== undefined && values.out === values["hits-out"]) {
     usageError("--out and --hits-out name the same file");

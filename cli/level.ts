@@ -9,7 +9,14 @@ import { levelHistory } from "../lib/acoustics/level_analysis.ts";
 import { TIME_WEIGHTINGS } from "../lib/acoustics/time_weighting.ts";
 import { WEIGHTINGS } from "../lib/acoustics/weighting.ts";
 import { readRecordingFile } from "../lib/io/read_recording.ts";
-import { inFile, listOption, numberOption, parseCommandArgs, usageError } from "./args.ts";
+import {
+  inFile,
+  listOption,
+  numberOption,
+  type OptionSpec,
+  parseCommandArgs,
+  usageError,
+} from "./args.ts";
 import { resolveFormat, writeTable } from "./output.ts";
 import {
   RECORDING_HELP,
@@ -45,7 +52,8 @@ measurement; for noise exposure follow local regulations and use certified
 instruments.
 `;
 
-const schema = z.strictObject({
+/** zod schema of the options. */
+export const schema = z.strictObject({
   channels: listOption().optional(),
   weighting: z.enum(WEIGHTINGS).optional(),
   "time-weighting": z.enum(TIME_WEIGHTINGS).optional(),
@@ -55,18 +63,22 @@ const schema = z.strictObject({
   ...recordingOptionsShape,
 });
 
+const text = { type: "string" } as const;
+
+/** parseArgs spec of the options. */
+export const options: OptionSpec = {
+  channels: text,
+  weighting: text,
+  "time-weighting": text,
+  step: text,
+  reference: text,
+  ...OUTPUT_OPTIONS,
+  ...RECORDING_OPTIONS,
+};
+
 /** Runs the command. */
 export async function run(argv: readonly string[]): Promise<void> {
-  const text = { type: "string" } as const;
-  const { positionals, values } = parseCommandArgs(argv, {
-    channels: text,
-    weighting: text,
-    "time-weighting": text,
-    step: text,
-    reference: text,
-    ...OUTPUT_OPTIONS,
-    ...RECORDING_OPTIONS,
-  }, schema);
+  const { positionals, values } = parseCommandArgs(argv, options, schema);
   if (positionals.length !== 1) usageError(`level takes one recording, got ${positionals.length}`);
   const [input] = positionals;
   const recording = await readRecordingFile(input, toReadOptions(values));

@@ -16,6 +16,8 @@ import * as frf from "./frf.ts";
 import * as hammer from "./hammer.ts";
 import * as level from "./level.ts";
 import * as orders from "./orders.ts";
+import * as reportCommand from "./report.ts";
+import * as runPlanCommand from "./run.ts";
 import * as spectrum from "./spectrum.ts";
 
 interface Command {
@@ -34,6 +36,8 @@ const COMMANDS: Readonly<Record<string, Command>> = {
   calibrate,
   orders,
   compare,
+  run: runPlanCommand,
+  report: reportCommand,
 };
 
 const MAIN_HELP = `quiver: NVH test data from raw time histories to trustworthy numbers
@@ -66,7 +70,8 @@ export async function main(argv: readonly string[]): Promise<number> {
   }
   try {
     await command.run(rest);
-    return 0;
+    // A command that finished but must report failure (e.g. a campaign step) sets the exit code.
+    return typeof process.exitCode === "number" ? process.exitCode : 0;
   } catch (error) {
     return report(error, name, debug);
   }

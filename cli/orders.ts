@@ -12,6 +12,7 @@ import {
   integerOption,
   listOption,
   numberOption,
+  type OptionSpec,
   parseCommandArgs,
   usageError,
 } from "./args.ts";
@@ -70,7 +71,8 @@ Cut columns: rpm, then <channel>_order<k> per channel and order, then
 const positive = (what: string) =>
   numberOption().pipe(z.number().positive(`must be a positive number of ${what}`));
 
-const schema = z.strictObject({
+/** zod schema of the options. */
+export const schema = z.strictObject({
   tacho: z.string().min(1).optional(),
   ppr: integerOption().optional(),
   "tacho-level": numberOption().optional(),
@@ -101,30 +103,34 @@ const schema = z.strictObject({
   message: "give --tacho (with --ppr) or --rpm-channel, one of them",
 }).refine((v) => v.tacho === undefined || v.ppr !== undefined, { message: "--tacho needs --ppr" });
 
+const text = { type: "string" } as const;
+
+/** parseArgs spec of the options. */
+export const options: OptionSpec = {
+  tacho: text,
+  ppr: text,
+  "tacho-level": text,
+  "tacho-hysteresis": text,
+  "rpm-channel": text,
+  channels: text,
+  orders: text,
+  "rpm-min": text,
+  "rpm-max": text,
+  "rpm-step": text,
+  method: text,
+  amplitude: text,
+  revolutions: text,
+  "samples-per-rev": text,
+  block: text,
+  "rpm-out": text,
+  "map-out": text,
+  ...OUTPUT_OPTIONS,
+  ...RECORDING_OPTIONS,
+};
+
 /** Runs the command. */
 export async function run(argv: readonly string[]): Promise<void> {
-  const text = { type: "string" } as const;
-  const { positionals, values } = parseCommandArgs(argv, {
-    tacho: text,
-    ppr: text,
-    "tacho-level": text,
-    "tacho-hysteresis": text,
-    "rpm-channel": text,
-    channels: text,
-    orders: text,
-    "rpm-min": text,
-    "rpm-max": text,
-    "rpm-step": text,
-    method: text,
-    amplitude: text,
-    revolutions: text,
-    "samples-per-rev": text,
-    block: text,
-    "rpm-out": text,
-    "map-out": text,
-    ...OUTPUT_OPTIONS,
-    ...RECORDING_OPTIONS,
-  }, schema);
+  const { positionals, values } = parseCommandArgs(argv, options, schema);
   if (positionals.length !== 1) usageError(`orders takes one recording, got ${positionals.length}`);
   const outputs = [values.out, values["rpm-out"], values["map-out"]].filter((o) => o !== undefined);
   if (new Set(outputs).size !== outputs.length) {

@@ -9,7 +9,14 @@ import { AVERAGING_MODES } from "../lib/dsp/spectral_core.ts";
 import { averagedSpectrum } from "../lib/dsp/averaged_spectrum.ts";
 import { SPECTRUM_KINDS } from "../lib/dsp/spectrum_kinds.ts";
 import { readRecordingFile } from "../lib/io/read_recording.ts";
-import { inFile, listOption, numberOption, parseCommandArgs, usageError } from "./args.ts";
+import {
+  inFile,
+  listOption,
+  numberOption,
+  type OptionSpec,
+  parseCommandArgs,
+  usageError,
+} from "./args.ts";
 import { resolveFormat, writeTable } from "./output.ts";
 import {
   RECORDING_HELP,
@@ -53,7 +60,8 @@ JSON: the same columns plus metadata (rate, block, df, window, overlap,
 averages, ...).
 `;
 
-const schema = z.strictObject({
+/** zod schema of the options. */
+export const schema = z.strictObject({
   channels: listOption().optional(),
   ...segmentOptionsShape,
   kind: z.enum(SPECTRUM_KINDS).optional(),
@@ -67,17 +75,20 @@ const schema = z.strictObject({
   message: "--tau applies to --average exponential only",
 });
 
+/** parseArgs spec of the options. */
+export const options: OptionSpec = {
+  channels: { type: "string" },
+  ...SEGMENT_OPTIONS,
+  kind: { type: "string" },
+  average: { type: "string" },
+  tau: { type: "string" },
+  ...OUTPUT_OPTIONS,
+  ...RECORDING_OPTIONS,
+};
+
 /** Runs the command. */
 export async function run(argv: readonly string[]): Promise<void> {
-  const { positionals, values } = parseCommandArgs(argv, {
-    channels: { type: "string" },
-    ...SEGMENT_OPTIONS,
-    kind: { type: "string" },
-    average: { type: "string" },
-    tau: { type: "string" },
-    ...OUTPUT_OPTIONS,
-    ...RECORDING_OPTIONS,
-  }, schema);
+  const { positionals, values } = parseCommandArgs(argv, options, schema);
   if (positionals.length !== 1) {
     usageError(`spectrum takes one recording, got ${positionals.length}`);
   }

@@ -1,0 +1,68 @@
+/**
+ * `quiver run`: a whole campaign from one plan file.
+ *
+ * @module
+ */
+import { basename, dirname, join } from "node:path";
+import process from "node:process";
+import { z } from "zod";
+import { writeReport } from "../lib/report/html_report.ts";
+import { runPlan } from "../lib/plan/runner.ts";
+import { type OptionSpec, parseCommandArgs, usageError } from "./args.ts";
+import { PLAN_COMMAND_TABLE } from "./plan_commands.ts";
+
+/** One-line summary for the command list. */
+export const summary =
+  "runs a campaign plan: every analysis, comparison and target, the manifest and the report";
+
+/** The command's help text. */
+export const help = `quiver run PLAN.json [--out-dir DIR]
+
+Runs every analysis and comparison of a plan file in order, checks its
+targets, and writes under DIR (default: out/<plan name>/ beside the plan):
+one JSON result per step, manifest.json (inputs with sizes and sha256,
+options, quiver version, status per step) and, when the plan has a report
+section, the HTML report with its figures/ folder.
+
+Everything is validated before any work starts: the plan's keys (errors name
+the key path), references between steps, input files, and every step's
+options against its command. A step that fails is recorded in the manifest;
+the others still run, and the exit code is 1.
+
+The plan format is described in DEVELOPERS.md and lib/plan/schema.ts.
+`;
+
+/** parseArgs spec of the options. */
+export const options: OptionSpec = { "out-dir": { type: "string" } };
+
+/** zod schema of the options. */
+export const schema = z.strictObject({ "out-dir": z.string().min(1).optional() });
+
+/** Runs the command; sets the exit code to 1 when a step failed. */
+export async function run(argv: readonly string[]): Promise<void> {
+  const { positionals, values } = parseCommandArgs(argv, options, schema);
+  if (positionals.length !== 1) usageError(`run takes one plan file, got ${positionals.length}`);
+  const [planFile] = positionals;
+  const outDir = values["out-dir"] ??
+    join(dirname(planFile), "out", basename(planFile).replace(/\.json$/i, ""));
+  const manifest = await runPlan(planFile, {
+    outDir,
+    commands: PLAN_COMMAND_TABLE,
+    report: writeReport,
+  });
+  const failed = manifest.steps.filter((s) => s.status !== "ok");
+  const targets = manifest.targets as { id: string; status: string; pass?: boolean }[];
+  const passed = targets.filter((t) => t.pass === true).length;
+  process.stderr.write(
+    `run: ${
+      manifest.steps.length - failed.length
+    }/${manifest.steps.length} steps ok, targets ${passed}/${targets.length} passed` +
+      `${
+        manifest.report !== undefined ? `, report ${join(manifest.out_dir, manifest.report)}` : ""
+      }\n`,
+  );
+  if (failed.length > 0) {
+    for (const f of failed) process.stderr.write(`  ${f.id}: ${f.status}: ${f.error ?? ""}\n`);
+    process.exitCode = 1;
+  }
+}

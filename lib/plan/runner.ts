@@ -1,0 +1,377 @@
+/**
+ * Running a plan: validate everything first, then run each analysis and
+ * comparison in order with its command, check the targets, write the
+ * manifest and (when the plan asks) the report.
+ *
+ * Validation before any work: the plan's schema (errors name the key path),
+ * references between steps, the existence of every input file, and each
+ * step's options against its command's own option schema.
+ *
+ * Fault isolation: a step that fails is recorded in the manifest with its
+ * error; steps that need its output are skipped with the reason; the others
+ * still run. The manifest's `status` and the caller's exit code say so.
+ *
+ * @module
+ */
+import { createHash } from "node:crypto";
+import { existsSync, statSync } from "node:fs";
+import { mkdir, readFile } from "node:fs/promises";
+import { dirname, isAbsolute, join, relative, resolve } from "node:path";
+import { QuiverError } from "../errors.ts";
+import { writeFileAtomic } from "../io/atomic_write.ts";
+import { QUIVER_VERSION } from "../version.ts";
+import { keyPath, optionsToArgv, type Plan, planSchema } from "./schema.ts";
+import { createProgress, type Progress } from "./progress.ts";
+import { evaluateTargets } from "./target_eval.ts";
+
+/** What the runner needs of a command: a dry check of its arguments, and a run. */
+export interface PlanCommand {
+  /** Parses and validates `argv` as the command would; throws on bad options. */
+  validate(argv: readonly string[]): void;
+  /** Runs the command with `argv`. */
+  run(argv: readonly string[]): Promise<void>;
+}
+
+/** One step as the runner will execute it. */
+export interface PlanStep {
+  readonly id: string;
+  readonly kind: "analysis" | "comparison";
+  readonly command: string;
+  readonly argv: string[];
+  readonly inputs: string[];
+  readonly outputs: Record<string, string>;
+  readonly needs: string[];
+  /** Key path of the step in the plan, for messages. */
+  readonly where: string;
+}
+
+/** A file with its size and hash. */
+export interface FileRecord {
+  readonly path: string;
+  readonly bytes: number;
+  readonly sha256: string;
+}
+
+/** The manifest written to `<out>/manifest.json`. */
+export interface Manifest {
+  readonly quiver_version: string;
+  readonly plan: FileRecord & { title: string };
+  readonly out_dir: string;
+  readonly started: string;
+  readonly finished: string;
+  readonly status: "ok" | "failed";
+  readonly steps: readonly {
+    id: string;
+    kind: string;
+    command: string;
+    argv: string[];
+    inputs: FileRecord[];
+    outputs: Record<string, FileRecord>;
+    status: "ok" | "failed" | "skipped";
+    error?: string;
+    seconds: number;
+  }[];
+  readonly targets: readonly unknown[];
+  readonly report?: string;
+}
+
+/** Reads and validates a plan file's JSON against the schema. */
+export async function loadPlan(path: string): Promise<{ plan: Plan; text: string }> {
+  let text: string;
+  try {
+    text = await readFile(path, "utf8");
+  } catch {
+    throw new QuiverError("cannot read the plan: no such file", { file: path }, "usage");
+  }
+  let json: unknown;
+  try {
+    json = JSON.parse(text);
+  } catch (error) {
+    throw new QuiverError(
+      `the plan is not valid JSON: ${(error as Error).message}`,
+      { file: path },
+      "usage",
+    );
+  }
+  const parsed = planSchema.safeParse(json);
+  if (!parsed.success) {
+    const issue = parsed.error.issues[0];
+    const path_ = keyPath(issue.path);
+    const hint = issue.code === "unrecognized_keys" ? ` (${issue.keys.join(", ")})` : "";
+    throw new QuiverError(
+      `plan key ${path_ === "" ? "(top level)" : path_}: ${issue.message}${hint}`,
+      { file: path },
+      "usage",
+    );
+  }
+  return { plan: parsed.data, text };
+}
+
+const planError = (file: string, where: string, detail: string): never => {
+  throw new QuiverError(`plan key ${where}: ${detail}`, { file }, "usage");
+};
+
+/**
+ * The steps of a plan with their arguments and output paths, after checking
+ * references, input files and every step's options. Throws before any work.
+ */
+export function planSteps(
+  plan: Plan,
+  planFile: string,
+  outDir: string,
+  commands: Readonly<Record<string, PlanCommand>>,
+): PlanStep[] {
+  const base = dirname(planFile);
+  const at = (p: string) => (isAbsolute(p) ? p : join(base, p));
+  const steps: PlanStep[] = [];
+  const known = new Map<string, string>(); // id → command
+  for (const [name, rec] of Object.entries(plan.recordings)) {
+    if (!existsSync(at(rec.file))) {
+      planError(planFile, `recordings.${name}.file`, `no such file: ${rec.file}`);
+    }
+    if (rec.setup !== undefined && !existsSync(at(rec.setup))) {
+      planError(planFile, `recordings.${name}.setup`, `no such file: ${rec.setup}`);
+    }
+  }
+  const check = (where: string, command: string, argv: string[]) => {
+    const c = commands[command];
+    if (c === undefined) planError(planFile, where, `unknown command "${command}"`);
+    try {
+      c.validate(argv);
+    } catch (error) {
+      const message = error instanceof Error ? error.message : String(error);
+      const option = /--([a-z0-9-]+)/i.exec(message)?.[1];
+      planError(
+        planFile,
+        option !== undefined ? `${where}.options.${option}` : `${where}.options`,
+        message,
+      );
+    }
+  };
+  plan.analyses.forEach((a, i) => {
+    const where = `analyses[${i}]`;
+    if (known.has(a.id)) planError(planFile, `${where}.id`, `"${a.id}" is used twice`);
+    const argv: string[] = [];
+    const inputs: string[] = [];
+    const needs: string[] = [];
+    if (a.command === "damping") {
+      if (a.input === undefined) {
+        planError(planFile, `${where}.input`, "damping needs the id of an frf or hammer analysis");
+      }
+      const source = known.get(a.input as string);
+      if (source !== "frf" && source !== "hammer") {
+        planError(
+          planFile,
+          `${where}.input`,
+          `"${a.input}" is not an earlier frf or hammer analysis`,
+        );
+      }
+      const path = join(outDir, `${a.input}.json`);
+      argv.push(path);
+      inputs.push(path);
+      needs.push(a.input as string);
+    } else {
+      if (a.recording === undefined) {
+        planError(planFile, `${where}.recording`, `${a.command} needs a recording`);
+      }
+      const rec = plan.recordings[a.recording as string];
+      if (rec === undefined) {
+        planError(planFile, `${where}.recording`, `no recording "${a.recording}" in recordings`);
+      }
+      argv.push(at(rec.file));
+      inputs.push(at(rec.file));
+      if (rec.setup !== undefined) {
+        argv.push("--setup", at(rec.setup));
+        inputs.push(at(rec.setup));
+      }
+      if (rec.rate !== undefined) argv.push("--rate", String(rec.rate));
+    }
+    const outputs: Record<string, string> = { out: join(outDir, `${a.id}.json`) };
+    if (a.command === "hammer") outputs["hits-out"] = join(outDir, `${a.id}_hits.csv`);
+    if (a.command === "orders") {
+      outputs["rpm-out"] = join(outDir, `${a.id}_rpm.json`);
+      outputs["map-out"] = join(outDir, `${a.id}_map.json`);
+    }
+    for (const key of Object.keys(outputs)) {
+      if (key in a.options || "format" in a.options) {
+        planError(
+          planFile,
+          `${where}.options.${key in a.options ? key : "format"}`,
+          "outputs are set by the plan runner",
+        );
+      }
+    }
+    argv.push(...optionsToArgv(a.options));
+    for (const [key, path] of Object.entries(outputs)) argv.push(`--${key}`, path);
+    check(where, a.command, argv);
+    known.set(a.id, a.command);
+    steps.push({
+      id: a.id,
+      kind: "analysis",
+      command: a.command,
+      argv,
+      inputs,
+      outputs,
+      needs,
+      where,
+    });
+  });
+  plan.comparisons.forEach((c, i) => {
+    const where = `comparisons[${i}]`;
+    if (known.has(c.id)) planError(planFile, `${where}.id`, `"${c.id}" is used twice`);
+    if (!known.has(c.test)) planError(planFile, `${where}.test`, `no analysis "${c.test}"`);
+    const sim = at(c.simulation.file);
+    if (!existsSync(sim)) {
+      planError(planFile, `${where}.simulation.file`, `no such file: ${c.simulation.file}`);
+    }
+    const test = join(outDir, `${c.test}.json`);
+    const outputs = {
+      out: join(outDir, `${c.id}.json`),
+      "summary-out": join(outDir, `${c.id}_summary.json`),
+    };
+    const argv = [test, sim, ...optionsToArgv(c.options)];
+    if (c.test_column !== undefined) argv.push("--test-column", c.test_column);
+    if (c.simulation.column !== undefined) argv.push("--sim-column", c.simulation.column);
+    for (const [key, path] of Object.entries(outputs)) argv.push(`--${key}`, path);
+    check(where, "compare", argv);
+    known.set(c.id, "compare");
+    steps.push({
+      id: c.id,
+      kind: "comparison",
+      command: "compare",
+      argv,
+      inputs: [test, sim],
+      outputs,
+      needs: [c.test],
+      where,
+    });
+  });
+  plan.targets.forEach((t, i) => {
+    if (!known.has(t.of.analysis)) {
+      planError(planFile, `targets[${i}].of.analysis`, `no analysis "${t.of.analysis}"`);
+    }
+  });
+  return steps;
+}
+
+async function record(path: string, outDir: string): Promise<FileRecord> {
+  const bytes = await readFile(path);
+  return {
+    path: relative(outDir, path) || path,
+    bytes: bytes.length,
+    sha256: createHash("sha256").update(bytes).digest("hex"),
+  };
+}
+
+/** Options of {@linkcode runPlan}. */
+export interface RunOptions {
+  /** Output folder. Required. */
+  outDir: string;
+  /** The commands by name. Required. */
+  commands: Readonly<Record<string, PlanCommand>>;
+  /** Progress reporter. Default: stderr. */
+  progress?: Progress;
+  /** Writes the report; called when the plan has a `report` section. */
+  report?: (outDir: string, manifest: Manifest, plan: Plan) => Promise<string>;
+}
+
+/**
+ * Runs a plan file and returns its manifest (also written as
+ * `<outDir>/manifest.json`).
+ *
+ * @throws {QuiverError} (usage) for a plan that fails validation; step
+ * failures are recorded in the manifest instead.
+ */
+export async function runPlan(planFile: string, options: RunOptions): Promise<Manifest> {
+  const started = new Date().toISOString();
+  const { plan, text } = await loadPlan(planFile);
+  const outDir = resolve(options.outDir);
+  const steps = planSteps(plan, resolve(planFile), outDir, options.commands);
+  await mkdir(outDir, { recursive: true });
+  const progress = options.progress ?? createProgress(steps.length);
+  const failed = new Set<string>();
+  const results: Manifest["steps"][number][] = [];
+  for (const [i, step] of steps.entries()) {
+    const label = `${step.command} ${step.id}`;
+    const begin = performance.now();
+    progress.start(i + 1, label);
+    const blocked = step.needs.find((n) => failed.has(n));
+    const inputs = await Promise.all(
+      step.inputs.filter((p) => existsSync(p)).map((p) => record(p, outDir)),
+    );
+    if (blocked !== undefined) {
+      failed.add(step.id);
+      progress.end(i + 1, label, false, 0, `skipped: "${blocked}" failed`);
+      results.push({
+        id: step.id,
+        kind: step.kind,
+        command: step.command,
+        argv: step.argv,
+        inputs,
+        outputs: {},
+        status: "skipped",
+        error: `needs "${blocked}", which failed`,
+        seconds: 0,
+      });
+      continue;
+    }
+    try {
+      await options.commands[step.command].run(step.argv);
+      const outputs: Record<string, FileRecord> = {};
+      for (const [key, path] of Object.entries(step.outputs)) {
+        if (existsSync(path) && statSync(path).isFile()) outputs[key] = await record(path, outDir);
+      }
+      const seconds = (performance.now() - begin) / 1000;
+      progress.end(i + 1, label, true, seconds);
+      results.push({
+        id: step.id,
+        kind: step.kind,
+        command: step.command,
+        argv: step.argv,
+        inputs,
+        outputs,
+        status: "ok",
+        seconds,
+      });
+    } catch (error) {
+      failed.add(step.id);
+      const message = error instanceof Error ? error.message : String(error);
+      const seconds = (performance.now() - begin) / 1000;
+      progress.end(i + 1, label, false, seconds, message);
+      results.push({
+        id: step.id,
+        kind: step.kind,
+        command: step.command,
+        argv: step.argv,
+        inputs,
+        outputs: {},
+        status: "failed",
+        error: message,
+        seconds,
+      });
+    }
+  }
+  const targets = await evaluateTargets(plan, outDir, failed);
+  const planBytes = new TextEncoder().encode(text);
+  let manifest: Manifest = {
+    quiver_version: QUIVER_VERSION,
+    plan: {
+      path: resolve(planFile),
+      bytes: planBytes.length,
+      sha256: createHash("sha256").update(planBytes).digest("hex"),
+      title: plan.title,
+    },
+    out_dir: outDir,
+    started,
+    finished: new Date().toISOString(),
+    status: results.some((r) => r.status !== "ok") ? "failed" : "ok",
+    steps: results,
+    targets,
+  };
+  if (plan.report !== undefined && options.report !== undefined) {
+    const reportPath = await options.report(outDir, manifest, plan);
+    manifest = { ...manifest, report: relative(outDir, reportPath) };
+  }
+  await writeFileAtomic(join(outDir, "manifest.json"), JSON.stringify(manifest, null, 2) + "\n");
+  return manifest;
+}

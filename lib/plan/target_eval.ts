@@ -1,0 +1,124 @@
+/**
+ * Checking a plan's targets against the results its steps wrote.
+ *
+ * Quantities: `first_mode_hz` and `mode_hz` (mode `mode`, 1-based) from a
+ * damping result, optionally of one `channel`; `overall_db` from a bands
+ * result's overall level of `channel`; `leq_db` and `lmax_db` from a level
+ * result's summary of `channel`. A limit curve checks the `channel` column
+ * of any result against its first column (frequency, band centre or rpm),
+ * in the column's own unit.
+ *
+ * @module
+ */
+import { readFile } from "node:fs/promises";
+import { join } from "node:path";
+import { checkCurve, checkValue, type TargetResult } from "../compare/targets.ts";
+import type { Plan, PlanTarget } from "./schema.ts";
+
+/** A target's outcome: a result, or why it could not be checked. */
+export type TargetOutcome = (TargetResult & { status: "checked" }) | {
+  id: string;
+  description: string;
+  status: "not_checked";
+  reason: string;
+};
+
+interface ResultJson {
+  metadata: Record<string, unknown>;
+  columns: { name: string; unit: string; values: number[] }[];
+}
+
+function describe(t: PlanTarget): string {
+  if (t.description !== undefined) return t.description;
+  if (t.type === "limit_curve") {
+    return `${t.of.channel} of ${t.of.analysis}: ${
+      t.limit === "max" ? "at most" : "at least"
+    } the limit curve`;
+  }
+  return `${t.of.quantity}${
+    t.of.channel !== undefined ? ` of ${t.of.channel}` : ""
+  } in ${t.of.analysis} ${t.type === "min" ? "≥" : "≤"} ${t.value} ${t.unit}`;
+}
+
+function quantityOf(t: Extract<PlanTarget, { type: "min" | "max" }>, json: ResultJson): number {
+  const { quantity, channel, mode } = t.of;
+  const m = json.metadata;
+  if (quantity === "first_mode_hz" || quantity === "mode_hz") {
+    const modes =
+      (m.modes as { channel: string; frequencyHz: number; mode: number }[] | undefined) ?? [];
+    const chosen = modes.filter((x) => channel === undefined || x.channel === channel)
+      .sort((a, b) => a.frequencyHz - b.frequencyHz);
+    const pick = quantity === "first_mode_hz" ? chosen[0] : chosen[(mode ?? 1) - 1];
+    if (pick === undefined) throw new Error("no such mode in the result");
+    return pick.frequencyHz;
+  }
+  if (quantity === "overall_db") {
+    const overall = (m.overall as { channel: string; level_db: number }[] | undefined) ?? [];
+    const o = overall.find((x) => channel === undefined || x.channel === channel);
+    if (o === undefined) {
+      throw new Error("no overall level for that channel (is it a bands result?)");
+    }
+    return o.level_db;
+  }
+  const summary =
+    (m.summary as { channel: string; leq_db: number; lmax_db: number }[] | undefined) ?? [];
+  const s = summary.find((x) => channel === undefined || x.channel === channel);
+  if (s === undefined) throw new Error("no level summary for that channel (is it a level result?)");
+  return quantity === "leq_db" ? s.leq_db : s.lmax_db;
+}
+
+/** Checks every target; a target whose result is missing is reported as not checked. */
+export async function evaluateTargets(
+  plan: Plan,
+  outDir: string,
+  failed: ReadonlySet<string>,
+): Promise<TargetOutcome[]> {
+  const outcomes: TargetOutcome[] = [];
+  for (const t of plan.targets) {
+    const description = describe(t);
+    if (failed.has(t.of.analysis)) {
+      outcomes.push({
+        id: t.id,
+        description,
+        status: "not_checked",
+        reason: `analysis "${t.of.analysis}" failed`,
+      });
+      continue;
+    }
+    try {
+      const json = JSON.parse(
+        await readFile(join(outDir, `${t.of.analysis}.json`), "utf8"),
+      ) as ResultJson;
+      if (t.type === "limit_curve") {
+        const column = json.columns.find((c) => c.name === t.of.channel);
+        if (column === undefined) throw new Error(`no column "${t.of.channel}" in the result`);
+        const x = new Float64Array(json.columns[0].values);
+        outcomes.push({
+          ...checkCurve(
+            t.id,
+            description,
+            x,
+            new Float64Array(column.values),
+            t.limit,
+            t.points,
+            t.unit || column.unit,
+          ),
+          status: "checked",
+        });
+      } else {
+        outcomes.push({
+          ...checkValue(t.id, description, quantityOf(t, json), t.type, t.value, t.unit),
+          status: "checked",
+        });
+      }
+    } catch (error) {
+      outcomes.push({
+        id: t.id,
+        description,
+        status: "not_checked",
+        reason: (error as Error).message,
+      });
+    }
+  }
+  return outcomes;
+}

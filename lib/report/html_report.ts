@@ -1,0 +1,433 @@
+/**
+ * The campaign report: one self-contained HTML file (inline SVG and CSS, no
+ * scripts, no network) with the targets first, then every result as plots
+ * and tables, then the trace of what was produced from what. Each plot is
+ * also written as a standalone SVG next to the report, under `figures/`.
+ *
+ * @module
+ */
+import { mkdir, readFile } from "node:fs/promises";
+import { join } from "node:path";
+import { writeFileAtomic } from "../io/atomic_write.ts";
+import type { Manifest } from "../plan/runner.ts";
+import type { Plan } from "../plan/schema.ts";
+import type { TargetOutcome } from "../plan/target_eval.ts";
+import { barPlot, escapeXml, heatMap, linePlot, type Series } from "./svg_plot.ts";
+
+interface ResultJson {
+  metadata: Record<string, unknown>;
+  columns: { name: string; unit: string; values: (number | string)[] }[];
+}
+
+interface Figure {
+  readonly name: string;
+  readonly svg: string;
+}
+
+interface Section {
+  readonly heading: string;
+  readonly note?: string;
+  readonly figures: Figure[];
+  readonly html?: string;
+}
+
+const numbers = (c: { values: (number | string)[] }) => c.values.map(Number);
+const withUnit = (label: string, unit: string) => (unit === "" ? label : `${label} [${unit}]`);
+
+async function readJson(path: string): Promise<ResultJson | undefined> {
+  try {
+    return JSON.parse(await readFile(path, "utf8")) as ResultJson;
+  } catch {
+    return undefined;
+  }
+}
+
+function spectrumFigures(id: string, title: string, r: ResultJson): Figure[] {
+  const [f, ...channels] = r.columns;
+  const kind = String(r.metadata.kind ?? "psd");
+  const fx = numbers(f);
+  const series: Series[] = channels.map((c) => ({ name: c.name, x: fx, y: numbers(c) }));
+  return [{
+    name: `${id}_spectrum`,
+    svg: linePlot({
+      title:
+        `${title}: ${kind}, df ${r.metadata.df_hz} Hz, ${r.metadata.averages} averages, ${r.metadata.window}`,
+      x: { label: "Frequency [Hz]", log: true, domain: [Math.max(fx[1], 1), fx[fx.length - 1]] },
+      y: { label: withUnit(kind.toUpperCase(), channels[0]?.unit ?? ""), log: true },
+      series,
+    }),
+  }];
+}
+
+function frfFigures(id: string, title: string, r: ResultJson): Figure[] {
+  const f = numbers(r.columns[0]);
+  const byEnd = (end: string) => r.columns.filter((c) => c.name.endsWith(end));
+  const label = (c: { name: string }, end: string) => c.name.slice(0, -end.length);
+  const domain: [number, number] = [Math.max(f[0] || f[1], 1), f[f.length - 1]];
+  const mags = byEnd("_mag");
+  return [
+    {
+      name: `${id}_magnitude`,
+      svg: linePlot({
+        title: `${title}: |H| (${r.metadata.estimator}, ${r.metadata.averages} averages)`,
+        x: { label: "Frequency [Hz]", log: true, domain },
+        y: { label: withUnit("|H|", mags[0]?.unit ?? ""), log: true },
+        series: mags.map((c) => ({ name: label(c, "_mag"), x: f, y: numbers(c) })),
+      }),
+    },
+    {
+      name: `${id}_phase`,
+      svg: linePlot({
+        title: `${title}: phase`,
+        x: { label: "Frequency [Hz]", log: true, domain },
+        y: { label: "Phase [deg]", domain: [-180, 180] },
+        series: byEnd("_phase_deg").map((c) => ({
+          name: label(c, "_phase_deg"),
+          x: f,
+          y: numbers(c),
+        })),
+        height: 240,
+      }),
+    },
+    {
+      name: `${id}_coherence`,
+      svg: linePlot({
+        title: `${title}: ordinary coherence`,
+        x: { label: "Frequency [Hz]", log: true, domain },
+        y: { label: "Coherence γ² [-]", domain: [0, 1] },
+        series: byEnd("_coherence").map((c) => ({
+          name: label(c, "_coherence"),
+          x: f,
+          y: numbers(c),
+        })),
+        height: 240,
+      }),
+    },
+  ];
+}
+
+function modeTable(r: ResultJson): string {
+  const modes = (r.metadata.modes as {
+    channel: string;
+    mode: number;
+    frequencyHz: number;
+    dampingRatio: number;
+    qFactor: number;
+    method: string;
+    flags: string[];
+    halfPower?: { dampingRatio: number };
+  }[]) ?? [];
+  const rows = modes.map((m) =>
+    `<tr><td>${escapeXml(m.channel)}</td><td>${m.mode}</td><td>${
+      m.frequencyHz.toFixed(2)
+    }</td><td>${(100 * m.dampingRatio).toFixed(2)}</td><td>${
+      m.halfPower !== undefined ? (100 * m.halfPower.dampingRatio).toFixed(2) : "–"
+    }</td><td>${m.qFactor.toFixed(1)}</td><td>${escapeXml(m.method)}</td><td>${
+      escapeXml(m.flags.join(", "))
+    }</td></tr>`
+  ).join("\n");
+  return `<table><thead><tr><th>Channel</th><th>Mode</th><th>Frequency [Hz]</th><th>Damping [%]</th><th>Half-power damping [%]</th><th>Q</th><th>Primary</th><th>Flags</th></tr></thead><tbody>${rows}</tbody></table>`;
+}
+
+function bandFigures(id: string, title: string, r: ResultJson): Figure[] {
+  const nominal = r.columns.find((c) => c.name === "nominal_hz")!;
+  const channels = r.columns.slice(4);
+  return [{
+    name: `${id}_bands`,
+    svg: barPlot({
+      title: `${title}: 1/${r.metadata.fraction}-octave bands, ${r.metadata.weighting}-weighted`,
+      labels: numbers(nominal).map((v) => String(v)),
+      groups: channels.map((c) => ({ name: c.name, values: numbers(c) })),
+      xLabel: "Band nominal frequency [Hz]",
+      yLabel: withUnit("Level", channels[0]?.unit ?? ""),
+    }),
+  }];
+}
+
+function levelFigures(id: string, title: string, r: ResultJson): Figure[] {
+  const t = numbers(r.columns[0]);
+  return [{
+    name: `${id}_level`,
+    svg: linePlot({
+      title:
+        `${title}: ${r.metadata.weighting}-weighted, ${r.metadata.time_weighting} time weighting`,
+      x: { label: "Time [s]" },
+      y: { label: withUnit("Level", r.columns[1]?.unit ?? "") },
+      series: r.columns.slice(1).map((c) => ({ name: c.name, x: t, y: numbers(c) })),
+    }),
+  }];
+}
+
+async function orderFigures(
+  id: string,
+  title: string,
+  r: ResultJson,
+  outDir: string,
+): Promise<Figure[]> {
+  const rpm = numbers(r.columns[0]);
+  const cuts = r.columns.slice(1);
+  const figures: Figure[] = [{
+    name: `${id}_cuts`,
+    svg: linePlot({
+      title: `${title}: order cuts (${r.metadata.amplitude}, ${r.metadata.method} method)`,
+      x: { label: "Speed [rpm]" },
+      y: { label: withUnit("Amplitude", cuts[0]?.unit ?? ""), log: true },
+      series: cuts.map((c) => ({
+        name: c.name,
+        x: rpm,
+        y: numbers(c),
+        dashed: c.name.endsWith("_overall"),
+      })),
+    }),
+  }];
+  const map = await readJson(join(outDir, `${id}_map.json`));
+  if (map !== undefined && map.columns.length >= 3) {
+    const mr = numbers(map.columns[0]);
+    const axis = numbers(map.columns[1]);
+    const values = numbers(map.columns[2]);
+    const steps = [...new Set(mr)];
+    const perStep = axis.length / steps.length;
+    const y = axis.slice(0, perStep);
+    const z = steps.map((_, i) =>
+      values.slice(i * perStep, (i + 1) * perStep).map((v) => 20 * Math.log10(v))
+    );
+    const unit = map.columns[2].unit;
+    figures.push({
+      name: `${id}_map`,
+      svg: heatMap({
+        title: `${title}: ${map.columns[2].name}, level against speed and ${
+          map.columns[1].name === "order" ? "order" : "frequency"
+        }`,
+        xLabel: "Speed [rpm]",
+        yLabel: map.columns[1].name === "order" ? "Order [-]" : "Frequency [Hz]",
+        zLabel: `dB re 1 ${unit}`,
+        x: steps,
+        y,
+        z,
+      }),
+    });
+  }
+  return figures;
+}
+
+function comparisonFigures(
+  id: string,
+  title: string,
+  r: ResultJson,
+): { figures: Figure[]; html: string } {
+  const f = numbers(r.columns[0]);
+  const m = r.metadata as {
+    frac: number;
+    frac_on: string;
+    peaks: {
+      test_hz: number;
+      simulation_hz: number;
+      shift_percent: number;
+      level_difference_db: number;
+    }[];
+    grid: { from: string; lines: number };
+  };
+  const figures = [
+    {
+      name: `${id}_overlay`,
+      svg: linePlot({
+        title: `${title}: test and simulation (FRAC ${m.frac.toFixed(3)})`,
+        x: { label: "Frequency [Hz]", log: true },
+        y: { label: withUnit("Magnitude", r.columns[1].unit), log: true },
+        series: [
+          { name: "test", x: f, y: numbers(r.columns[1]) },
+          { name: "simulation", x: f, y: numbers(r.columns[2]), dashed: true },
+        ],
+      }),
+    },
+    {
+      name: `${id}_difference`,
+      svg: linePlot({
+        title: `${title}: simulation − test`,
+        x: { label: "Frequency [Hz]", log: true },
+        y: { label: "Difference [dB]" },
+        series: [{ name: "difference", x: f, y: numbers(r.columns[3]) }],
+        height: 240,
+      }),
+    },
+  ];
+  const rows = m.peaks.map((p) =>
+    `<tr><td>${p.test_hz.toFixed(2)}</td><td>${p.simulation_hz.toFixed(2)}</td><td>${
+      p.shift_percent.toFixed(2)
+    }</td><td>${p.level_difference_db.toFixed(2)}</td></tr>`
+  ).join("");
+  const html = `<p>FRAC ${m.frac.toFixed(4)} (on ${
+    escapeXml(m.frac_on)
+  } data), common grid of ${m.grid.lines} lines from the ${
+    escapeXml(m.grid.from)
+  } curve.</p><table><thead><tr><th>Test peak [Hz]</th><th>Simulation peak [Hz]</th><th>Shift [%]</th><th>Level difference [dB]</th></tr></thead><tbody>${rows}</tbody></table>`;
+  return { figures, html };
+}
+
+function targetTable(targets: readonly TargetOutcome[]): string {
+  if (targets.length === 0) return "<p>The plan sets no targets.</p>";
+  const rows = targets.map((t) => {
+    if (t.status === "not_checked") {
+      return `<tr class="unchecked"><td>${escapeXml(t.id)}</td><td>${
+        escapeXml(t.description)
+      }</td><td colspan="3">not checked: ${
+        escapeXml(t.reason)
+      }</td><td class="verdict">—</td></tr>`;
+    }
+    const fmt = (v: number) => Number(v.toPrecision(4)).toString();
+    return `<tr class="${t.pass ? "pass" : "fail"}"><td>${escapeXml(t.id)}</td><td>${
+      escapeXml(t.description)
+    }</td><td>${fmt(t.value)} ${escapeXml(t.unit)}${
+      t.atHz !== undefined ? ` at ${fmt(t.atHz)}` : ""
+    }</td><td>${fmt(t.limit)} ${escapeXml(t.unit)}</td><td>${fmt(t.margin)} ${
+      escapeXml(t.unit)
+    }</td><td class="verdict">${t.pass ? "PASS" : "FAIL"}</td></tr>`;
+  }).join("\n");
+  return `<table class="targets"><thead><tr><th>Target</th><th>Requirement</th><th>Result</th><th>Limit</th><th>Margin</th><th>Verdict</th></tr></thead><tbody>${rows}</tbody></table>`;
+}
+
+const STYLE = `
+body { font-family: Helvetica, Arial, sans-serif; color: #22313f; margin: 0; background: #f4f1ea; }
+header { background: #22313f; color: #f4f1ea; padding: 18px 32px; }
+header h1 { margin: 0 0 4px 0; font-size: 22px; }
+header p { margin: 2px 0; font-size: 13px; color: #cfd8e0; }
+main { padding: 8px 32px 32px 32px; max-width: 1100px; }
+h2 { border-bottom: 2px solid #c8553d; padding-bottom: 4px; margin-top: 32px; font-size: 18px; }
+h3 { font-size: 15px; margin-bottom: 4px; }
+figure { margin: 12px 0; background: #ffffff; border: 1px solid #d9d4c7; padding: 6px; display: inline-block; }
+figure svg { max-width: 100%; height: auto; display: block; }
+table { border-collapse: collapse; margin: 8px 0 16px 0; font-size: 13px; background: #ffffff; }
+th, td { border: 1px solid #d9d4c7; padding: 4px 8px; text-align: left; }
+th { background: #e8e2d4; }
+tr.pass td.verdict { color: #1f6f3f; font-weight: 700; }
+tr.fail td.verdict { color: #b02e1f; font-weight: 700; }
+tr.unchecked td { color: #6b7785; }
+.note { font-size: 12px; color: #5b6b7b; }
+.caveat { border-left: 4px solid #edae49; background: #fff8e6; padding: 8px 12px; font-size: 13px; }
+@media print { body { background: #ffffff; } header { background: #ffffff; color: #000000; } figure { break-inside: avoid; } }
+`;
+
+/**
+ * Writes `<outDir>/<file>` and `<outDir>/figures/*.svg` from a finished run.
+ * Returns the report's path.
+ */
+export async function writeReport(outDir: string, manifest: Manifest, plan: Plan): Promise<string> {
+  const sections: Section[] = [];
+  const titles = new Map<string, string>();
+  for (const a of plan.analyses) titles.set(a.id, a.title ?? a.id);
+  for (const c of plan.comparisons) titles.set(c.id, c.title ?? c.id);
+  for (const step of manifest.steps) {
+    const title = titles.get(step.id) ?? step.id;
+    if (step.status !== "ok") {
+      sections.push({
+        heading: title,
+        note: `${step.command}: ${step.status}${
+          step.error !== undefined ? ` — ${step.error}` : ""
+        }`,
+        figures: [],
+      });
+      continue;
+    }
+    const r = await readJson(join(outDir, `${step.id}.json`));
+    if (r === undefined) continue;
+    const source = String(r.metadata.source ?? r.metadata.test ?? "");
+    const note = `${step.command} of ${source.split("/").pop()}`;
+    switch (step.command) {
+      case "spectrum":
+        sections.push({ heading: title, note, figures: spectrumFigures(step.id, title, r) });
+        break;
+      case "frf":
+      case "hammer":
+        sections.push({
+          heading: title,
+          note: `${note}${
+            r.metadata.hits_summary !== undefined ? `; ${r.metadata.hits_summary}` : ""
+          }`,
+          figures: frfFigures(step.id, title, r),
+        });
+        break;
+      case "damping":
+        sections.push({ heading: title, note, figures: [], html: modeTable(r) });
+        break;
+      case "bands": {
+        const overall =
+          (r.metadata.overall as { channel: string; level_db: number; unit: string }[])
+            .map((o) => `${escapeXml(o.channel)}: ${o.level_db.toFixed(1)} ${escapeXml(o.unit)}`)
+            .join("; ");
+        sections.push({
+          heading: title,
+          note: `${note}; overall ${overall}`,
+          figures: bandFigures(step.id, title, r),
+        });
+        break;
+      }
+      case "level":
+        sections.push({ heading: title, note, figures: levelFigures(step.id, title, r) });
+        break;
+      case "orders":
+        sections.push({
+          heading: title,
+          note,
+          figures: await orderFigures(step.id, title, r, outDir),
+        });
+        break;
+      case "compare": {
+        const { figures, html } = comparisonFigures(step.id, title, r);
+        sections.push({
+          heading: title,
+          note: `test ${String(r.metadata.test ?? "").split("/").pop()} against ${
+            String(r.metadata.simulation ?? "").split("/").pop()
+          }`,
+          figures,
+          html,
+        });
+        break;
+      }
+    }
+  }
+  await mkdir(join(outDir, "figures"), { recursive: true });
+  for (const s of sections) {
+    for (const f of s.figures) {
+      await writeFileAtomic(join(outDir, "figures", `${f.name}.svg`), f.svg + "\n");
+    }
+  }
+  const trace = manifest.steps.map((s) =>
+    `<tr><td>${escapeXml(s.id)}</td><td>${escapeXml(s.command)}</td><td>${s.status}</td><td>${
+      s.inputs.map((i) =>
+        `${escapeXml(i.path.split("/").pop() ?? i.path)} (${i.bytes} B, sha256 ${
+          i.sha256.slice(0, 12)
+        }…)`
+      ).join("<br>")
+    }</td><td>${Object.values(s.outputs).map((o) => escapeXml(o.path)).join("<br>")}</td></tr>`
+  ).join("\n");
+  const title = plan.report?.title ?? plan.title;
+  const body = sections.map((s) =>
+    `<section><h2>${escapeXml(s.heading)}</h2>${
+      s.note !== undefined ? `<p class="note">${escapeXml(s.note)}</p>` : ""
+    }${s.figures.map((f) => `<figure>${f.svg}</figure>`).join("\n")}${s.html ?? ""}</section>`
+  ).join("\n");
+  const html = `<!DOCTYPE html>
+<html lang="en"><head><meta charset="utf-8"><title>${escapeXml(title)}</title>
+<meta name="generator" content="quiver ${escapeXml(manifest.quiver_version)}">
+<style>${STYLE}</style></head>
+<body><header><h1>${escapeXml(title)}</h1>
+<p>${escapeXml(plan.description ?? "")}</p>
+<p>quiver ${escapeXml(manifest.quiver_version)} · plan ${
+    escapeXml(manifest.plan.path.split("/").pop() ?? "")
+  } (sha256 ${manifest.plan.sha256.slice(0, 12)}…) · run ${
+    escapeXml(manifest.started)
+  } · status ${manifest.status}</p></header>
+<main>
+<p class="caveat">Levels in this report are for engineering comparison between tests, simulations and targets. quiver is not a certified sound level meter; for occupational noise exposure and hearing protection follow local regulations and use certified instruments.</p>
+<h2>Targets</h2>
+${targetTable(manifest.targets as TargetOutcome[])}
+${body}
+<h2>Trace</h2>
+<p class="note">Every result in this folder, with the inputs it was computed from; manifest.json holds the full record (options, hashes, times).</p>
+<table><thead><tr><th>Step</th><th>Command</th><th>Status</th><th>Inputs</th><th>Outputs</th></tr></thead><tbody>${trace}</tbody></table>
+</main></body></html>
+`;
+  const path = join(outDir, plan.report?.file ?? "report.html");
+  await writeFileAtomic(path, html);
+  return path;
+}

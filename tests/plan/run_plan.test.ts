@@ -1,0 +1,105 @@
+import { existsSync } from "node:fs";
+import { readFile, writeFile } from "node:fs/promises";
+import { beforeAll, describe, expect, test } from "vitest";
+import { runQuiver } from "../helpers/cli.ts";
+import { demoFolder } from "../helpers/demo_campaign.ts";
+
+describe("quiver run", () => {
+  let dir: string;
+  let plan: Record<string, unknown>;
+  beforeAll(async () => {
+    dir = await demoFolder();
+    plan = JSON.parse(await readFile(`${dir}/tamarack_b2_plan.json`, "utf8"));
+  }, 60_000);
+
+  const variant = async (name: string, change: (p: Record<string, unknown>) => void) => {
+    const copy = structuredClone(plan);
+    change(copy);
+    await writeFile(`${dir}/${name}.json`, JSON.stringify(copy));
+    return runQuiver(["run", `${dir}/${name}.json`, "--out-dir", `${dir}/${name}_out`]);
+  };
+
+  const refusals: [string, (p: Record<string, unknown>) => void, RegExp][] = [
+    [
+      "a wrong key",
+      (p) => ((p.analyses as Record<string, unknown>[])[1].optoins = {}),
+      /plan key analyses\[1\]: .*optoins/,
+    ],
+    [
+      "a missing recording file",
+      (p) => ((p.recordings as Record<string, { file: string }>).bracket.file = "gone.csv"),
+      /plan key recordings\.bracket\.file: no such file: gone\.csv/,
+    ],
+    [
+      "an unknown analysis",
+      (p) => ((p.analyses as Record<string, unknown>[])[0].command = "spectrogram"),
+      /plan key analyses\[0\]\.command/,
+    ],
+    [
+      "a reference to no recording",
+      (p) => ((p.analyses as Record<string, unknown>[])[2].recording = "tunnel"),
+      /plan key analyses\[2\]\.recording: no recording "tunnel"/,
+    ],
+    [
+      "a bad option value",
+      (p) => ((p.analyses as { options: Record<string, unknown> }[])[5].options["rpm-step"] = -5),
+      /plan key analyses\[5\]\.options\.rpm-step/,
+    ],
+    [
+      "an unknown option",
+      (p) => ((p.analyses as { options: Record<string, unknown> }[])[0].options.windwo = "hann"),
+      /plan key analyses\[0\]\.options\.windwo/,
+    ],
+  ];
+  for (const [label, change, pattern] of refusals) {
+    test(`refuses ${label} with the key path, before any work`, async () => {
+      const name = label.replace(/\W+/g, "_");
+      const r = await variant(name, change);
+      expect(r.code).toBe(2);
+      expect(r.stderr).toMatch(pattern);
+      expect(existsSync(`${dir}/${name}_out`)).toBe(false);
+    });
+  }
+
+  test(
+    "runs the demo campaign: results, manifest with hashes, targets and the report",
+    async () => {
+      const r = runQuiver(["run", `${dir}/tamarack_b2_plan.json`, "--out-dir", `${dir}/out`]);
+      expect(r.code).toBe(0);
+      expect(r.stderr).toMatch(/\[7\/7\] compare bracket_vs_sim: ok/);
+      const manifest = JSON.parse(await readFile(`${dir}/out/manifest.json`, "utf8"));
+      expect(manifest.status).toBe("ok");
+      expect(manifest.steps).toHaveLength(7);
+      const hammer = manifest.steps.find((s: { id: string }) => s.id === "bracket_frf");
+      expect(hammer.inputs[0].sha256).toMatch(/^[0-9a-f]{64}$/);
+      expect(hammer.outputs["hits-out"].path).toBe("bracket_frf_hits.csv");
+      const targets = Object.fromEntries(manifest.targets.map((t: { id: string }) => [t.id, t]));
+      expect(targets.bracket_first_mode.pass).toBe(true);
+      expect(Math.abs(targets.bracket_first_mode.value - 44.2)).toBeLessThan(0.2); // the bracket's invented first mode
+      expect(targets.cabin_thirds.status).toBe("checked");
+      const html = await readFile(`${dir}/out/report.html`, "utf8");
+      expect((html.match(/<svg /g) ?? []).length).toBeGreaterThanOrEqual(6);
+      expect(html).not.toMatch(/(src|href)="https?:/);
+      expect(existsSync(`${dir}/out/figures/bracket_vs_sim_overlay.svg`)).toBe(true);
+    },
+    60_000,
+  );
+
+  test(
+    "a recording that fails is recorded in the manifest; the others complete; exit code 1",
+    async () => {
+      await writeFile(`${dir}/broken.csv`, "time_s,tacho [V],mount_acc [m/s^2]\n0,1,2\n0.1,1\n");
+      const r = await variant("one_bad", (p) => {
+        (p.recordings as Record<string, { file: string }>).runup.file = "broken.csv";
+      });
+      expect(r.code).toBe(1);
+      const manifest = JSON.parse(await readFile(`${dir}/one_bad_out/manifest.json`, "utf8"));
+      expect(manifest.status).toBe("failed");
+      const orders = manifest.steps.find((s: { id: string }) => s.id === "mount_orders");
+      expect(orders.status).toBe("failed");
+      expect(orders.error).toMatch(/broken\.csv:3: row has 2 fields/);
+      expect(manifest.steps.filter((s: { status: string }) => s.status === "ok")).toHaveLength(6);
+    },
+    60_000,
+  );
+});

@@ -1,0 +1,67 @@
+import { existsSync } from "node:fs";
+import { mkdtemp, readFile } from "node:fs/promises";
+import process from "node:process";
+import { chromium } from "playwright-core";
+import { beforeAll, describe, expect, test } from "vitest";
+import { runQuiver } from "../helpers/cli.ts";
+import { demoFolder } from "../helpers/demo_campaign.ts";
+
+const CHROMIUM = "/usr/bin/chromium";
+
+describe("the HTML report in a browser", () => {
+  let report: string;
+  beforeAll(async () => {
+    const dir = await demoFolder();
+    const r = runQuiver(["run", `${dir}/tamarack_b2_plan.json`, "--out-dir", `${dir}/out`]);
+    expect(r.code).toBe(0);
+    report = `${dir}/out/report.html`;
+  }, 60_000);
+
+  test(
+    "opens in headless Chromium with no console errors, shows its plots and fetches nothing",
+    async () => {
+      // Debian's chromium (.ci/run installs it); skipping needs an explicit QUIVER_SKIP_BROWSER=1.
+      if (!existsSync(CHROMIUM) && process.env.QUIVER_SKIP_BROWSER === "1") return;
+      expect(existsSync(CHROMIUM), `${CHROMIUM} is needed for this test`).toBe(true);
+      const profile = await mkdtemp("/tmp/quiver-chromium-");
+      const context = await chromium.launchPersistentContext(profile, {
+        executablePath: CHROMIUM,
+        headless: true,
+        args: [
+          "--headless",
+          "--no-sandbox",
+          "--disable-gpu",
+          "--disable-background-networking",
+          "--disable-component-update",
+          "--disable-sync",
+          "--no-first-run",
+        ],
+      });
+      try {
+        const page = await context.newPage();
+        const errors: string[] = [];
+        const requests: string[] = [];
+        page.on("console", (m) => {
+          if (m.type() === "error") errors.push(m.text());
+        });
+        page.on("pageerror", (e) => errors.push(e.message));
+        page.on("request", (r) => requests.push(r.url()));
+        await page.goto(`file://${report}`);
+        await page.waitForLoadState("load");
+        const plots = await page.locator("figure svg").count();
+        expect(plots).toBeGreaterThanOrEqual(6);
+        const firstBox = await page.locator("figure svg").first().boundingBox();
+        expect(firstBox!.width).toBeGreaterThan(300);
+        expect(await page.locator("table.targets tr.pass").count()).toBeGreaterThan(0);
+        const shot = await page.screenshot({ fullPage: true, path: `${profile}/report.png` });
+        expect(shot.length).toBeGreaterThan(10_000);
+        expect(errors).toEqual([]);
+        expect(requests.filter((u) => !u.startsWith("file://"))).toEqual([]);
+        expect((await readFile(`${profile}/report.png`)).subarray(1, 4).toString()).toBe("PNG");
+      } finally {
+        await context.close();
+      }
+    },
+    60_000,
+  );
+});
