@@ -18,7 +18,7 @@ import {
   parseCommandArgs,
   usageError,
 } from "./args.ts";
-import { resolveFormat, writeTable } from "./output.ts";
+import { writeResult } from "./output.ts";
 import {
   RECORDING_HELP,
   RECORDING_OPTIONS,
@@ -121,8 +121,7 @@ export async function run(argv: readonly string[]): Promise<void> {
       block: values.block,
       resolution: values.resolution,
     }));
-  const traced = { ...result.table, metadata: { source: input, ...result.table.metadata } };
-  await writeTable(traced, resolveFormat(values.format, values.out), values.out);
+  await writeResult(result.table, input, values);
   for (const w of result.warnings) process.stderr.write(`quiver bands: warning: ${w}\n`);
   for (const o of result.overall) {
     process.stderr.write(

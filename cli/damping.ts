@@ -16,7 +16,7 @@ import {
   parseCommandArgs,
   usageError,
 } from "./args.ts";
-import { resolveFormat, writeTable } from "./output.ts";
+import { writeResult } from "./output.ts";
 import { OUTPUT_HELP, OUTPUT_OPTIONS, outputOptionsShape } from "./segment_options.ts";
 
 /** One-line summary for the command list. */
@@ -121,8 +121,7 @@ export async function run(argv: readonly string[]): Promise<void> {
       form: values.form,
       targetHz: values["target-hz"],
     }));
-  const traced = { ...result.table, metadata: { source: input, ...result.table.metadata } };
-  await writeTable(traced, resolveFormat(values.format, values.out), values.out);
+  await writeResult(result.table, input, values);
   for (const w of result.warnings) process.stderr.write(`quiver damping: warning: ${w}\n`);
   for (const m of result.modes) {
     process.stderr.write(

@@ -10,7 +10,7 @@ import { FRF_FORMS } from "../lib/frf/forms.ts";
 import { frequencyResponse } from "../lib/frf/frf_analysis.ts";
 import { readRecordingFile } from "../lib/io/read_recording.ts";
 import { inFile, listOption, type OptionSpec, parseCommandArgs, usageError } from "./args.ts";
-import { resolveFormat, writeTable } from "./output.ts";
+import { writeResult } from "./output.ts";
 import {
   RECORDING_HELP,
   RECORDING_OPTIONS,
@@ -99,8 +99,7 @@ export async function run(argv: readonly string[]): Promise<void> {
       window: values.window,
       detrend: values.detrend,
     }));
-  const traced = { ...table, metadata: { source: input, ...table.metadata } };
-  await writeTable(traced, resolveFormat(values.format, values.out), values.out);
+  await writeResult(table, input, values);
   for (const warning of warnings) process.stderr.write(`quiver frf: warning: ${warning}\n`);
   const m = table.metadata;
   process.stderr.write(

@@ -18,7 +18,7 @@ import {
   parseCommandArgs,
   usageError,
 } from "./args.ts";
-import { resolveFormat, writeTable } from "./output.ts";
+import { writeResult } from "./output.ts";
 import {
   RECORDING_HELP,
   RECORDING_OPTIONS,
@@ -131,8 +131,7 @@ export async function run(argv: readonly string[]): Promise<void> {
       expEnd: values["exp-end"],
       form: values.form,
     }));
-  const traced = { ...result.table, metadata: { source: input, ...result.table.metadata } };
-  await writeTable(traced, resolveFormat(values.format, values.out), values.out);
+  await writeResult(result.table, input, values);
   if (values["hits-out"] !== undefined) {
     await writeFileAtomic(values["hits-out"], formatCsv(result.hitLog));
   }

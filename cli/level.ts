@@ -17,7 +17,7 @@ import {
   parseCommandArgs,
   usageError,
 } from "./args.ts";
-import { resolveFormat, writeTable } from "./output.ts";
+import { writeResult } from "./output.ts";
 import {
   RECORDING_HELP,
   RECORDING_OPTIONS,
@@ -90,8 +90,7 @@ export async function run(argv: readonly string[]): Promise<void> {
       step: values.step,
       reference: values.reference,
     }));
-  const traced = { ...result.table, metadata: { source: input, ...result.table.metadata } };
-  await writeTable(traced, resolveFormat(values.format, values.out), values.out);
+  await writeResult(result.table, input, values);
   for (const s of result.summary) {
     const f = (v: number) => v.toFixed(1);
     process.stderr.write(

@@ -16,7 +16,7 @@ import {
   parseCommandArgs,
   usageError,
 } from "./args.ts";
-import { resolveFormat, writeTable } from "./output.ts";
+import { writeResult } from "./output.ts";
 import {
   RECORDING_HELP,
   RECORDING_OPTIONS,
@@ -156,25 +156,12 @@ export async function run(argv: readonly string[]): Promise<void> {
       samplesPerRev: values["samples-per-rev"],
       block: values.block,
     }));
-  const trace = <T extends { metadata: Readonly<Record<string, unknown>> }>(t: T) => ({
-    ...t,
-    metadata: { source: input, ...t.metadata },
-  });
-  const format = resolveFormat(values.format, values.out);
-  await writeTable(trace(result.cuts), format, values.out);
+  await writeResult(result.cuts, input, values);
   if (values["rpm-out"] !== undefined) {
-    await writeTable(
-      trace(result.rpm),
-      resolveFormat(undefined, values["rpm-out"]),
-      values["rpm-out"],
-    );
+    await writeResult(result.rpm, input, { out: values["rpm-out"] });
   }
   if (values["map-out"] !== undefined) {
-    await writeTable(
-      trace(result.map),
-      resolveFormat(undefined, values["map-out"]),
-      values["map-out"],
-    );
+    await writeResult(result.map, input, { out: values["map-out"] });
   }
   for (const w of result.warnings) process.stderr.write(`quiver orders: warning: ${w}\n`);
   const m = result.cuts.metadata;

@@ -73,3 +73,16 @@ export async function writeTable(
     );
   }
 }
+
+/**
+ * Writes a command's main table with `source` prepended to its metadata, in
+ * the format the options ask for (see {@linkcode resolveFormat}).
+ */
+export async function writeResult(
+  table: Table<ColumnValues>,
+  source: string,
+  values: { format?: TableFormat; out?: string },
+): Promise<void> {
+  const traced = { ...table, metadata: { source, ...table.metadata } };
+  await writeTable(traced, resolveFormat(values.format, values.out), values.out);
+}

@@ -17,7 +17,7 @@ import {
   parseCommandArgs,
   usageError,
 } from "./args.ts";
-import { resolveFormat, writeTable } from "./output.ts";
+import { writeResult } from "./output.ts";
 import {
   RECORDING_HELP,
   RECORDING_OPTIONS,
@@ -106,8 +106,7 @@ export async function run(argv: readonly string[]): Promise<void> {
       average: values.average,
       tau: values.tau,
     }));
-  const traced = { ...table, metadata: { source: input, ...table.metadata } };
-  await writeTable(traced, resolveFormat(values.format, values.out), values.out);
+  await writeResult(table, input, values);
   const m = table.metadata;
   process.stderr.write(
     `spectrum: ${
