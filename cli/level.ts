@@ -91,6 +91,7 @@ export async function run(argv: readonly string[]): Promise<void> {
       reference: values.reference,
     }));
   await writeResult(result.table, input, values);
+  for (const w of result.warnings) process.stderr.write(`quiver level: warning: ${w}\n`);
   for (const s of result.summary) {
     const f = (v: number) => v.toFixed(1);
     process.stderr.write(

@@ -107,6 +107,9 @@ export async function run(argv: readonly string[]): Promise<void> {
       tau: values.tau,
     }));
   await writeResult(table, input, values);
+  for (const w of table.metadata.warnings as string[]) {
+    process.stderr.write(`quiver spectrum: warning: ${w}\n`);
+  }
   const m = table.metadata;
   process.stderr.write(
     `spectrum: ${

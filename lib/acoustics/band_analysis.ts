@@ -22,6 +22,7 @@
 import { type Recording, recordingLength, selectChannels } from "../io/recording.ts";
 import type { Table, TableColumn } from "../io/table.ts";
 import { resolveBlock, spectralEstimate } from "../dsp/spectral_core.ts";
+import { channelsWarnings } from "../io/signal_checks.ts";
 import { type Band, type BandFraction, bandsInRange } from "./bands.ts";
 import { bandPowersFromDensity } from "./band_synthesis.ts";
 import { filterBankPowers } from "./filter_bank.ts";
@@ -88,7 +89,7 @@ export function bandLevels(recording: Recording, options: BandLevelOptions = {})
   if (bands.length === 0) {
     throw new RangeError(`no band between ${minHz} Hz and the rate's limit of ${0.45 * rate} Hz`);
   }
-  const warnings: string[] = [];
+  const warnings: string[] = channelsWarnings(channels);
   if (bands.length < candidates.length) {
     warnings.push(
       `bands above ${

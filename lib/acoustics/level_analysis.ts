@@ -9,6 +9,7 @@
  */
 import { type Recording, selectChannels } from "../io/recording.ts";
 import type { Table, TableColumn } from "../io/table.ts";
+import { channelsWarnings } from "../io/signal_checks.ts";
 import { filterCascade } from "./biquad.ts";
 import { levelDb, levelReference, levelUnit } from "./levels.ts";
 import {
@@ -37,6 +38,8 @@ export interface LevelOptions {
 export interface LevelResult {
   /** time_s, then one dB column per channel. */
   readonly table: Table;
+  /** Warnings. */
+  readonly warnings: readonly string[];
   /** Per-channel statistics. */
   readonly summary: readonly ({ channel: string; unit: string } & LevelStatistics)[];
 }
@@ -74,7 +77,9 @@ export function levelHistory(recording: Recording, options: LevelOptions = {}): 
   const time = new Float64Array(count).map((_, j) =>
     recording.startTime + ((j + 1) * step) / recording.rate
   );
+  const warnings = channelsWarnings(channels);
   return {
+    warnings,
     summary,
     table: {
       columns: [{ name: "time_s", unit: "", values: time }, ...columns],
@@ -95,6 +100,7 @@ export function levelHistory(recording: Recording, options: LevelOptions = {}): 
           l50_db: s.l50,
           l90_db: s.l90,
         })),
+        warnings,
         note: "engineering comparison only; not a certified sound level meter measurement",
       },
     },

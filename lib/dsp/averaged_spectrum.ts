@@ -6,6 +6,7 @@
  */
 import { type Recording, recordingLength, selectChannels } from "../io/recording.ts";
 import type { Table, TableColumn } from "../io/table.ts";
+import { channelsWarnings } from "../io/signal_checks.ts";
 import { resolveBlock, spectralEstimate, type SpectralOptions } from "./spectral_core.ts";
 import { autoSpectrum, type SpectrumKind, spectrumUnit } from "./spectrum_kinds.ts";
 import { WINDOW_DEFINITIONS, windowGains, windowSamples } from "./windows.ts";
@@ -88,6 +89,7 @@ export function averagedSpectrum(
       detrend: estimate.detrend,
       record_samples: length,
       record_start_s: recording.startTime,
+      warnings: channelsWarnings(channels),
       channels: channels.map((c) => ({
         name: c.name,
         unit: c.unit,

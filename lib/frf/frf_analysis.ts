@@ -11,6 +11,7 @@ import type { Table, TableColumn } from "../io/table.ts";
 import { resolveBlock, type SpectralEstimate, spectralEstimate } from "../dsp/spectral_core.ts";
 import type { DetrendMode } from "../dsp/detrend.ts";
 import { WINDOW_DEFINITIONS, type WindowName } from "../dsp/windows.ts";
+import { channelsWarnings } from "../io/signal_checks.ts";
 import { coherence, type Estimator, frfEstimate } from "./estimators.ts";
 import {
   convertFrfForm,
@@ -129,6 +130,41 @@ export function frfTableParts(
   };
 }
 
+/** Coherence below which an FRF band is not to be trusted (common practice). */
+export const LOW_COHERENCE = 0.5;
+
+/**
+ * Warnings for stretches of at least 3 lines where a response's coherence is
+ * below {@linkcode LOW_COHERENCE}.
+ */
+export function lowCoherenceWarnings(columns: readonly TableColumn[]): string[] {
+  const f = columns[0].values;
+  const warnings: string[] = [];
+  for (const c of columns.filter((col) => col.name.endsWith("_coherence"))) {
+    const ranges: [number, number][] = [];
+    let start = -1;
+    for (let k = 1; k <= c.values.length; k++) {
+      const low = k < c.values.length && c.values[k] < LOW_COHERENCE;
+      if (low && start < 0) start = k;
+      if (!low && start >= 0) {
+        if (k - start >= 3) ranges.push([f[start], f[k - 1]]);
+        start = -1;
+      }
+    }
+    if (ranges.length > 0) {
+      const shown = ranges.slice(0, 3).map(([a, b]) => `${a}–${b} Hz`).join(", ");
+      warnings.push(
+        `coherence of "${
+          c.name.slice(0, -"_coherence".length)
+        }" is below ${LOW_COHERENCE} in ${ranges.length} band(s) (${shown}${
+          ranges.length > 3 ? ", …" : ""
+        }): the FRF is not to be trusted there`,
+      );
+    }
+  }
+  return warnings;
+}
+
 /** The warning for an FRF from a single average. */
 export const SINGLE_AVERAGE_WARNING =
   "only one average: coherence is identically 1 and says nothing about noise or nonlinearity; the random error column is 0 for the same reason";
@@ -171,7 +207,11 @@ export function frequencyResponse(recording: Recording, options: FrfOptions): Fr
     pairs: outputs.map((_, i) => [0, i + 1] as const),
   });
   const parts = frfTableParts(estimate, input, outputs, estimator, options.form);
-  const warnings = estimate.averages === 1 ? [SINGLE_AVERAGE_WARNING] : [];
+  const warnings = [
+    ...(estimate.averages === 1 ? [SINGLE_AVERAGE_WARNING] : []),
+    ...channelsWarnings([input, ...outputs]),
+    ...(estimate.averages > 1 ? lowCoherenceWarnings(parts.columns) : []),
+  ];
   return {
     warnings,
     table: {

@@ -22,6 +22,7 @@ import { SpectralAccumulator } from "../dsp/spectral_core.ts";
 import type { FrfForm } from "./forms.ts";
 import { frfTableParts, SINGLE_AVERAGE_WARNING } from "./frf_analysis.ts";
 import { findHits, type Hit } from "./hits.ts";
+import { channelsWarnings } from "../io/signal_checks.ts";
 
 /** Options of {@linkcode hammerFrf}. */
 export interface HammerOptions {
@@ -180,6 +181,7 @@ export function hammerFrf(recording: Recording, options: HammerOptions): HammerR
   const parts = frfTableParts(estimate, force, outputs, "h1", options.form);
   const warnings = [
     ...(accepted.length === 1 ? [SINGLE_AVERAGE_WARNING] : []),
+    ...channelsWarnings(outputs),
     ...hits.filter((h) => h.status !== "accepted").map((h) =>
       `hit ${h.hit} at ${
         (recording.startTime + h.sample / rate).toFixed(4)

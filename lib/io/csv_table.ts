@@ -142,6 +142,7 @@ export function parseNumericCsv(text: string, options: CsvTableOptions = {}): Nu
   }
   const isBlank = (row: string[]) => row.every((cell) => cell.trim() === "");
   const headerIndex = rows.findIndex((row) => !isBlank(row));
+  if (headerIndex < 0) fail("no header row: the file holds only blank cells");
   const header = rows[headerIndex].map(parseHeaderCell);
   const headerLine = lineOf[headerIndex];
 

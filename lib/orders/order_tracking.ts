@@ -29,6 +29,7 @@ import { QuiverError } from "../errors.ts";
 import { type Channel, type Recording, selectChannels } from "../io/recording.ts";
 import type { Table, TableColumn } from "../io/table.ts";
 import { SpectralAccumulator } from "../dsp/spectral_core.ts";
+import { channelsWarnings } from "../io/signal_checks.ts";
 import { inverseAngle, resampleToAngle } from "./angle_resample.ts";
 import { motionFromPulses, motionFromRpm, type ShaftMotion, tachoPulses } from "./tacho.ts";
 
@@ -169,7 +170,7 @@ export function trackOrders(recording: Recording, options: OrderOptions): OrderR
   const amplitudeFactor = amplitude === "peak" ? Math.SQRT2 : 1;
   const channels = selectChannels(recording, options.channels);
   const { motion, notes } = motionOf(recording, options);
-  const warnings = [...notes];
+  const warnings = [...notes, ...channelsWarnings(channels)];
   let lowest = Infinity, highest = -Infinity;
   for (const r of motion.rpm) {
     lowest = Math.min(lowest, r);

@@ -331,7 +331,10 @@ export async function writeReport(outDir: string, manifest: Manifest, plan: Plan
     const r = await readJson(join(outDir, `${step.id}.json`));
     if (r === undefined) continue;
     const source = String(r.metadata.source ?? r.metadata.test ?? "");
-    const note = `${step.command} of ${source.split("/").pop()}`;
+    const warnings = (r.metadata.warnings as string[] | undefined) ?? [];
+    const note = `${step.command} of ${source.split("/").pop()}${
+      warnings.length > 0 ? `. Warnings: ${warnings.join("; ")}` : ""
+    }`;
     switch (step.command) {
       case "spectrum":
         sections.push({ heading: title, note, figures: spectrumFigures(step.id, title, r) });

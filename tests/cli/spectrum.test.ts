@@ -11,6 +11,22 @@ import { fixturePath, readJsonFixture } from "../helpers/fixtures.ts";
 
 const shaker = fixturePath("recordings/bench_shaker_2ch.csv");
 
+function wavBytes(): Uint8Array {
+  const data = new Float64Array(4096).map((_, i) => 0.5 * Math.sin(i / 3));
+  return encodeWav(
+    { rate: 8000, startTime: 0, channels: [{ name: "ch1", unit: "FS", data }] },
+    "pcm16",
+  );
+}
+function truncatedWav(): Uint8Array {
+  return wavBytes().subarray(0, 3000);
+}
+function mulawWav(): Uint8Array {
+  const bytes = wavBytes().slice();
+  new DataView(bytes.buffer).setUint16(20, 7, true); // WAVE_FORMAT_MULAW
+  return bytes;
+}
+
 describe("quiver spectrum", () => {
   test("writes the same table as the library, to stdout by default", () => {
     const r = runQuiver(["spectrum", shaker, "--block", "256", "--kind", "rms"]);
@@ -164,6 +180,10 @@ describe("quiver spectrum refuses bad input and writes nothing", () => {
     "jump.csv": "time_s,a\n0,1\n0.001,1\n0.002,1\n0.005,1\n0.006,1\n",
     "reversed.csv": "time_s,a\n0,1\n0.002,1\n0.001,1\n0.003,1\n",
     "garbage.bin": new Uint8Array([0xff, 0xfe, 0x00, 0x81, 0x90, 0x00, 0x12]),
+    "inf.csv": "time_s,a\n0,1\n0.001,Inf\n",
+    "blank_cells.csv": ",\n,\n",
+    "truncated.wav": truncatedWav(),
+    "mulaw.wav": mulawWav(),
     "good.csv": "time_s,a\n" +
       Array.from({ length: 64 }, (_, i) => `${i / 100},${Math.sin(i)}`).join("\n") +
       "\n",
@@ -179,6 +199,15 @@ describe("quiver spectrum refuses bad input and writes nothing", () => {
     ["jumping time", ["jump.csv"], 1, /jump\.csv:5:1: .*gap, jump or jitter/],
     ["reversed time", ["reversed.csv"], 1, /reversed\.csv:4:1: time goes backwards/],
     ["binary garbage", ["garbage.bin"], 1, /garbage\.bin: neither a WAV file nor UTF-8 text/],
+    ["Inf", ["inf.csv"], 1, /inf\.csv:3:2: .*not a finite number/],
+    ["only blank cells", ["blank_cells.csv"], 1, /blank_cells\.csv: no header row/],
+    ["truncated WAV", ["truncated.wav"], 1, /truncated\.wav: truncated: the data chunk declares/],
+    [
+      "WAV with an unsupported encoding",
+      ["mulaw.wav"],
+      1,
+      /mulaw\.wav: unsupported WAV encoding \(format code 7\)/,
+    ],
     ["missing file", ["nope.csv"], 2, /nope\.csv: cannot read: no such file/],
     ["unknown channel", ["good.csv", "--channels", "a,b"], 2, /no channel named "b"/],
     [

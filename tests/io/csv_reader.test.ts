@@ -174,6 +174,8 @@ describe("CSV recordings that are refused, with file, line and column", () => {
       /uses "\." as decimal mark/,
     ));
   test("binary garbage", () => expectRefusal("\u0000\u0001\u0002binary", {}, /binary/));
+  test("only blank cells (found by the property tests)", () =>
+    expectRefusal(",\n", {}, /no header row/));
   test("an empty column name", () =>
     expectRefusal("time_s,,b\n0,1,2\n", { line: 1, column: 2 }, /empty column name/));
 });
