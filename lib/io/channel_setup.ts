@@ -31,7 +31,7 @@
  */
 import { z } from "zod";
 import { QuiverError } from "../errors.ts";
-import { type Channel, CHANNEL_ROLES, type Recording } from "./recording.ts";
+import { type Channel, CHANNEL_ROLES, type ChannelRole, type Recording } from "./recording.ts";
 import { FULL_SCALE_UNIT } from "./wav.ts";
 
 const channelEntrySchema = z.strictObject({
@@ -92,30 +92,36 @@ function lineAndColumn(text: string, position: number, file?: string) {
   return { file, line: before.length, column: before[before.length - 1].length + 1 };
 }
 
+/** What a set-up does to one channel: its new name, unit and role, and the factor on its samples. */
+export interface ChannelTransform {
+  readonly name: string;
+  readonly unit: string;
+  readonly role?: ChannelRole;
+  readonly factor: number;
+}
+
 /**
- * Applies a set-up to a recording: renames, converts volts to engineering
- * units, sets units and roles.
+ * The transform of every channel (by name and unit as read from the file).
  *
  * @throws {QuiverError} for an entry that names no channel of the recording
  * or whose conversion cannot be made from the file's units.
  *
  * @example
  * ```ts
- * import { applyChannelSetup } from "./channel_setup.ts";
- * const rec = { rate: 100, startTime: 0, channels: [{ name: "acc", unit: "mV", data: new Float64Array([102]) }] };
- * const out = applyChannelSetup(rec, { channels: { acc: { unit: "m/s^2", sensitivity_mv_per_unit: 10.2 } } });
- * if (Math.abs(out.channels[0].data[0] - 10) > 1e-12) throw new Error();
+ * import { setupTransforms } from "./channel_setup.ts";
+ * const [t] = setupTransforms([{ name: "acc", unit: "mV" }], { channels: { acc: { unit: "m/s^2", sensitivity_mv_per_unit: 10 } } });
+ * if (t.factor !== 0.1 || t.unit !== "m/s^2") throw new Error();
  * ```
  */
-export function applyChannelSetup(
-  recording: Recording,
+export function setupTransforms(
+  channels: readonly { name: string; unit: string; role?: ChannelRole }[],
   setup: ChannelSetup,
   file?: string,
-): Recording {
+): ChannelTransform[] {
   const fail = (detail: string): never => {
     throw new QuiverError(detail, { file });
   };
-  const known = new Set(recording.channels.map((c) => c.name));
+  const known = new Set(channels.map((c) => c.name));
   for (const key of Object.keys(setup.channels)) {
     if (!known.has(key)) {
       fail(
@@ -125,9 +131,15 @@ export function applyChannelSetup(
       );
     }
   }
-  const channels = recording.channels.map((channel): Channel => {
+  const transforms = channels.map((channel): ChannelTransform => {
     const entry = setup.channels[channel.name];
-    if (entry === undefined) return channel;
+    const keep = {
+      name: channel.name,
+      unit: channel.unit,
+      factor: 1,
+      ...(channel.role !== undefined ? { role: channel.role } : {}),
+    };
+    if (entry === undefined) return keep;
     const where = `set-up entry "${channel.name}"`;
     let volts: number | undefined;
     if (channel.unit === FULL_SCALE_UNIT) {
@@ -139,7 +151,6 @@ export function applyChannelSetup(
       if (entry.full_scale_volts !== undefined) {
         fail(`${where}: full_scale_volts applies to WAV channels only`);
       }
-      const headerUnit = channel.unit === "" ? entry.input_unit : channel.unit;
       if (
         entry.input_unit !== undefined && channel.unit !== "" && channel.unit !== entry.input_unit
       ) {
@@ -147,9 +158,10 @@ export function applyChannelSetup(
           `${where}: input_unit ${entry.input_unit} contradicts the file's unit [${channel.unit}]`,
         );
       }
+      const headerUnit = channel.unit === "" ? entry.input_unit : channel.unit;
       volts = headerUnit === "V" ? 1 : headerUnit === "mV" ? 1e-3 : undefined;
     }
-    let data = channel.data;
+    let factor = 1;
     let unit = channel.unit;
     if (entry.sensitivity_mv_per_unit !== undefined) {
       if (entry.unit === undefined || entry.unit === "") {
@@ -164,15 +176,14 @@ export function applyChannelSetup(
             }`,
         );
       }
-      const factor = (volts as number) * 1000 / entry.sensitivity_mv_per_unit;
-      data = channel.data.map((v) => v * factor);
+      factor = ((volts as number) * 1000) / entry.sensitivity_mv_per_unit;
       unit = entry.unit as string;
     } else if (channel.unit === FULL_SCALE_UNIT && volts !== undefined) {
-      data = channel.data.map((v) => v * (volts as number));
-      unit = "V";
       if (entry.unit !== undefined && entry.unit !== "V") {
         fail(`${where}: without a sensitivity the data are volts, not [${entry.unit}]`);
       }
+      factor = volts;
+      unit = "V";
     } else if (entry.unit !== undefined) {
       if (channel.unit !== "" && channel.unit !== entry.unit) {
         fail(
@@ -181,21 +192,45 @@ export function applyChannelSetup(
       }
       unit = entry.unit;
     }
+    const role = entry.role ?? channel.role;
     return {
       name: entry.name ?? channel.name,
       unit,
-      data,
-      ...(entry.role !== undefined
-        ? { role: entry.role }
-        : channel.role !== undefined
-        ? { role: channel.role }
-        : {}),
+      factor,
+      ...(role !== undefined ? { role } : {}),
     };
   });
   const names = new Set<string>();
-  for (const c of channels) {
-    if (names.has(c.name)) fail(`after renaming, two channels are called "${c.name}"`);
-    names.add(c.name);
+  for (const t of transforms) {
+    if (names.has(t.name)) fail(`after renaming, two channels are called "${t.name}"`);
+    names.add(t.name);
   }
+  return transforms;
+}
+
+/**
+ * Applies a set-up to a recording: renames, converts volts to engineering
+ * units, sets units and roles.
+ *
+ * @throws {QuiverError} as {@linkcode setupTransforms} does.
+ *
+ * @example
+ * ```ts
+ * import { applyChannelSetup } from "./channel_setup.ts";
+ * const rec = { rate: 100, startTime: 0, channels: [{ name: "acc", unit: "mV", data: new Float64Array([102]) }] };
+ * const out = applyChannelSetup(rec, { channels: { acc: { unit: "m/s^2", sensitivity_mv_per_unit: 10.2 } } });
+ * if (Math.abs(out.channels[0].data[0] - 10) > 1e-12) throw new Error();
+ * ```
+ */
+export function applyChannelSetup(
+  recording: Recording,
+  setup: ChannelSetup,
+  file?: string,
+): Recording {
+  const transforms = setupTransforms(recording.channels, setup, file);
+  const channels = recording.channels.map((c, i): Channel => {
+    const { factor, ...meta } = transforms[i];
+    return { ...meta, data: factor === 1 ? c.data : c.data.map((v) => v * factor) };
+  });
   return { ...recording, channels };
 }
