@@ -27,6 +27,8 @@ export * from "./lib/io/csv_reader.ts";
 export * from "./lib/io/wav.ts";
 export * from "./lib/io/channel_setup.ts";
 export * from "./lib/io/read_recording.ts";
+export * from "./lib/io/recording_stream.ts";
+export * from "./lib/io/signal_checks.ts";
 export * from "./lib/io/table.ts";
 export * from "./lib/io/atomic_write.ts";
 export * from "./lib/dsp/fft.ts";

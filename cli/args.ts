@@ -133,3 +133,12 @@ export function inFile<T>(file: string, step: () => T): T {
     throw withFile(error, file);
   }
 }
+
+/** {@linkcode inFile} for an asynchronous step. */
+export async function inFileAsync<T>(file: string, step: () => Promise<T>): Promise<T> {
+  try {
+    return await step();
+  } catch (error) {
+    throw withFile(error, file);
+  }
+}

@@ -4,10 +4,21 @@
  *
  * @module
  */
-import { type Recording, recordingLength, selectChannels } from "../io/recording.ts";
+import {
+  channelIndices,
+  type Recording,
+  recordingLength,
+  selectChannels,
+} from "../io/recording.ts";
 import type { Table, TableColumn } from "../io/table.ts";
-import { channelsWarnings } from "../io/signal_checks.ts";
-import { resolveBlock, spectralEstimate, type SpectralOptions } from "./spectral_core.ts";
+import { ChannelStatistics, channelsWarnings } from "../io/signal_checks.ts";
+import type { RecordingStream } from "../io/recording_stream.ts";
+import {
+  resolveBlock,
+  SpectralAccumulator,
+  type SpectralEstimate,
+  type SpectralOptions,
+} from "./spectral_core.ts";
 import { autoSpectrum, type SpectrumKind, spectrumUnit } from "./spectrum_kinds.ts";
 import { WINDOW_DEFINITIONS, windowGains, windowSamples } from "./windows.ts";
 
@@ -47,11 +58,58 @@ export function averagedSpectrum(
 ): Table {
   const channels = selectChannels(recording, options.channels);
   const length = recordingLength(recording);
-  const block = resolveBlock(recording.rate, length, options);
-  const kind = options.kind ?? "psd";
+  const accumulator = spectrumAccumulator(recording.rate, length, channels.length, options);
+  accumulator.push(channels.map((c) => c.data));
+  return spectrumTable(
+    accumulator.finish(),
+    channels,
+    options,
+    length,
+    recording.startTime,
+    channelsWarnings(channels),
+  );
+}
+
+/**
+ * The same analysis on a recording read in chunks: memory for one chunk,
+ * whatever the recording's length, and exactly the numbers of
+ * {@linkcode averagedSpectrum}.
+ *
+ * @throws {StreamFallback} when the file needs the in-memory reader after all.
+ */
+export async function averagedSpectrumStream(
+  stream: RecordingStream,
+  options: AveragedSpectrumOptions = {},
+): Promise<Table> {
+  const indices = channelIndices(stream.channels, options.channels);
+  const channels = indices.map((i) => stream.channels[i]);
+  const accumulator = spectrumAccumulator(stream.rate, stream.length, channels.length, options);
+  const statistics = channels.map(() => new ChannelStatistics());
+  await stream.read(indices, (chunk) => {
+    accumulator.push(chunk);
+    chunk.forEach((c, i) => statistics[i].push(c));
+  });
+  const warnings = channels.flatMap((c, i) => statistics[i].warnings(c));
+  return spectrumTable(
+    accumulator.finish(),
+    channels,
+    options,
+    stream.length,
+    stream.startTime,
+    warnings,
+  );
+}
+
+function spectrumAccumulator(
+  rate: number,
+  length: number,
+  channelCount: number,
+  options: AveragedSpectrumOptions,
+): SpectralAccumulator {
+  const block = resolveBlock(rate, length, options);
   const { overlap, window, detrend, average, tau } = options;
-  const estimate = spectralEstimate(channels.map((c) => c.data), {
-    rate: recording.rate,
+  return new SpectralAccumulator(channelCount, {
+    rate,
     block,
     overlap,
     window,
@@ -59,7 +117,18 @@ export function averagedSpectrum(
     average,
     tau,
   });
-  const gains = windowGains(windowSamples(estimate.window, block));
+}
+
+function spectrumTable(
+  estimate: SpectralEstimate,
+  channels: readonly { name: string; unit: string; role?: string }[],
+  options: AveragedSpectrumOptions,
+  length: number,
+  startTime: number,
+  warnings: string[],
+): Table {
+  const kind = options.kind ?? "psd";
+  const gains = windowGains(windowSamples(estimate.window, estimate.block));
   const columns: TableColumn[] = [
     { name: "frequency_hz", unit: "", values: estimate.frequencies },
     ...channels.map((c, i) => ({
@@ -88,8 +157,8 @@ export function averagedSpectrum(
       enbw_hz: estimate.enbwHz,
       detrend: estimate.detrend,
       record_samples: length,
-      record_start_s: recording.startTime,
-      warnings: channelsWarnings(channels),
+      record_start_s: startTime,
+      warnings,
       channels: channels.map((c) => ({
         name: c.name,
         unit: c.unit,

@@ -31,7 +31,11 @@ export interface CsvReadOptions extends CsvTableOptions {
   timeTolerance?: number;
 }
 
-const TIME_NAMES = new Set(["time_s", "time"]);
+/** Names of the time column (any case). */
+export const TIME_NAMES: ReadonlySet<string> = new Set(["time_s", "time"]);
+
+/** Steps whose median is the reference step of the time column check. */
+export const REFERENCE_STEPS = 1001;
 
 /**
  * Parses CSV text into a recording.
@@ -152,7 +156,10 @@ function checkTimeColumn(
   // error names the line of the jump itself.
   const steps = new Float64Array(n - 1);
   for (let i = 1; i < n; i++) steps[i - 1] = time[i] - time[i - 1];
-  const step = steps.slice().sort()[Math.floor((n - 1) / 2)];
+  // Reference: the median of the first (up to) 1001 steps, which a streaming
+  // reader also knows after its first chunk, so both name the same line.
+  const head = steps.slice(0, REFERENCE_STEPS).sort();
+  const step = head[Math.floor((head.length - 1) / 2)];
   // Rounding the printed times to `decimals` places moves a step by up to
   // one quantum; a deviation that rounding alone explains means too few digits.
   const quantum = Number.isFinite(decimals) ? 10 ** -decimals : 0;

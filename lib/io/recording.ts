@@ -56,19 +56,36 @@ export function selectChannels(
   recording: Recording,
   names?: readonly string[],
 ): Channel[] {
-  if (names === undefined) return [...recording.channels];
+  return channelIndices(recording.channels, names).map((i) => recording.channels[i]);
+}
+
+/**
+ * Indices of channels by name, in the order asked, or all when `names` is
+ * undefined (the same rule and message as {@linkcode selectChannels}).
+ *
+ * @example
+ * ```ts
+ * import { channelIndices } from "./recording.ts";
+ * if (channelIndices([{ name: "a" }, { name: "b" }], ["b"])[0] !== 1) throw new Error();
+ * ```
+ */
+export function channelIndices(
+  channels: readonly { name: string }[],
+  names?: readonly string[],
+): number[] {
+  if (names === undefined) return channels.map((_, i) => i);
   return names.map((name) => {
-    const channel = recording.channels.find((c) => c.name === name);
-    if (channel === undefined) {
+    const index = channels.findIndex((c) => c.name === name);
+    if (index < 0) {
       throw new QuiverError(
         `no channel named "${name}"; the recording has ${
-          recording.channels.map((c) => `"${c.name}"`).join(", ")
+          channels.map((c) => `"${c.name}"`).join(", ")
         }`,
         {},
         "usage",
       );
     }
-    return channel;
+    return index;
   });
 }
 
