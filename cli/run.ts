@@ -8,7 +8,8 @@ import process from "node:process";
 import { z } from "zod";
 import { writeReport } from "../lib/report/html_report.ts";
 import { runPlan } from "../lib/plan/runner.ts";
-import { type OptionSpec, parseCommandArgs, usageError } from "./args.ts";
+import { integerOption, type OptionSpec, parseCommandArgs, usageError } from "./args.ts";
+import { WorkerPool } from "./worker_pool.ts";
 import { PLAN_COMMAND_TABLE } from "./plan_commands.ts";
 
 /** One-line summary for the command list. */
@@ -16,7 +17,7 @@ export const summary =
   "runs a campaign plan: every analysis, comparison and target, the manifest and the report";
 
 /** The command's help text. */
-export const help = `quiver run PLAN.json [--out-dir DIR]
+export const help = `quiver run PLAN.json [--out-dir DIR] [--jobs N]
 
 Runs every analysis and comparison of a plan file in order, checks its
 targets, and writes under DIR (default: out/<plan name>/ beside the plan):
@@ -29,14 +30,21 @@ the key path), references between steps, input files, and every step's
 options against its command. A step that fails is recorded in the manifest;
 the others still run, and the exit code is 1.
 
+--jobs N runs up to N independent steps at once, each in its own worker
+(default: the number of CPU cores); --jobs 1 runs them one after another in
+this process.
+
 The plan format is described in DEVELOPERS.md and lib/plan/schema.ts.
 `;
 
 /** parseArgs spec of the options. */
-export const options: OptionSpec = { "out-dir": { type: "string" } };
+export const options: OptionSpec = { "out-dir": { type: "string" }, jobs: { type: "string" } };
 
 /** zod schema of the options. */
-export const schema = z.strictObject({ "out-dir": z.string().min(1).optional() });
+export const schema = z.strictObject({
+  "out-dir": z.string().min(1).optional(),
+  jobs: integerOption().optional(),
+});
 
 /** Runs the command; sets the exit code to 1 when a step failed. */
 export async function run(argv: readonly string[]): Promise<void> {
@@ -45,11 +53,22 @@ export async function run(argv: readonly string[]): Promise<void> {
   const [planFile] = positionals;
   const outDir = values["out-dir"] ??
     join(dirname(planFile), "out", basename(planFile).replace(/\.json$/i, ""));
-  const manifest = await runPlan(planFile, {
-    outDir,
-    commands: PLAN_COMMAND_TABLE,
-    report: writeReport,
-  });
+  const jobs = values.jobs ?? navigator.hardwareConcurrency ?? 1;
+  const pool = jobs > 1 ? new WorkerPool(jobs) : undefined;
+  let manifest;
+  try {
+    manifest = await runPlan(planFile, {
+      outDir,
+      commands: PLAN_COMMAND_TABLE,
+      report: writeReport,
+      jobs,
+      ...(pool !== undefined
+        ? { execute: (command: string, argv: readonly string[]) => pool.run(command, argv) }
+        : {}),
+    });
+  } finally {
+    pool?.close();
+  }
   const failed = manifest.steps.filter((s) => s.status !== "ok");
   const targets = manifest.targets as { id: string; status: string; pass?: boolean }[];
   const passed = targets.filter((t) => t.pass === true).length;

@@ -59,8 +59,6 @@ export interface RecordingStream {
 export const CHUNK_ROWS = 65536;
 const READ_BYTES = 1 << 22;
 
-const DOT_NUMBER = /^[+-]?(?:\d+\.?\d*|\.\d+)(?:[eE][+-]?\d+)?$/;
-
 async function transformsFor(
   channels: { name: string; unit: string }[],
   options: ReadRecordingOptions,
@@ -75,32 +73,114 @@ async function transformsFor(
   return setupTransforms(channels, parseChannelSetup(text, options.setup), options.setup);
 }
 
-/** Reads lines of a file in order, decoded, without holding the file. */
-async function* lines(path: string): AsyncGenerator<string> {
+/**
+ * Parses the number in text[start, end) with the grammar of the in-memory
+ * reader ([+-]digits[.digits][e[+-]digits]), or returns NaN. The conversion
+ * is Number() itself, on the same characters as the in-memory reader's, so
+ * both give identical doubles; the checks around it refuse what Number()
+ * would accept but the grammar does not (empty cells, Infinity, hex, binary
+ * and octal literals, surrounding whitespace; the in-memory reader handles
+ * whitespace).
+ *
+ * @example
+ * ```ts
+ * import { parseNumberAt } from "./recording_stream.ts";
+ * if (parseNumberAt("-1.25e-3", 0, 8) !== -0.00125 || !Number.isNaN(parseNumberAt("0x1f", 0, 4))) throw new Error();
+ * ```
+ */
+export function parseNumberAt(text: string, start: number, end: number): number {
+  if (end <= start) return NaN;
+  let k = start;
+  let c = text.charCodeAt(k);
+  if (c === 43 || c === 45) c = text.charCodeAt(++k);
+  if (!((c >= 48 && c <= 57) || c === 46)) return NaN;
+  if (c === 48 && k + 1 < end) {
+    const next = text.charCodeAt(k + 1) | 32; // lower case
+    if (next === 120 || next === 98 || next === 111) return NaN; // 0x, 0b, 0o
+  }
+  const last = text.charCodeAt(end - 1);
+  if (!((last >= 48 && last <= 57) || last === 46)) return NaN; // trailing space, sign or letter
+  const value = +text.slice(start, end);
+  return value - value === 0 ? value : NaN; // NaN and ±Infinity fail
+}
+
+/** Reads a file chunk by chunk as text, without holding the file. */
+async function* textChunks(path: string): AsyncGenerator<string> {
   const handle = await open(path, "r");
   try {
     const decoder = new TextDecoder("utf-8", { fatal: true });
     const buffer = new Uint8Array(READ_BYTES);
-    let carry = "";
-    let first = true;
     for (;;) {
       const { bytesRead } = await handle.read(buffer, 0, READ_BYTES, null);
       if (bytesRead === 0) break;
-      let text = carry + decoder.decode(buffer.subarray(0, bytesRead), { stream: true });
-      if (first && text.charCodeAt(0) === 0xfeff) text = text.slice(1);
-      first = false;
-      const parts = text.split("\n");
-      carry = parts.pop() ?? "";
-      for (const part of parts) yield part;
+      yield decoder.decode(buffer.subarray(0, bytesRead), { stream: true });
     }
-    carry += decoder.decode();
-    if (carry !== "") yield carry;
+    const rest = decoder.decode();
+    if (rest !== "") yield rest;
   } finally {
     await handle.close();
   }
 }
 
 const isBlankLine = (line: string) => /^[\s,]*$/.test(line);
+
+/** Pass 1 over the bytes: row count, header, first and last data rows. */
+async function scanCsv(
+  path: string,
+): Promise<{ header: string; first: string; last: string; rows: number }> {
+  const handle = await open(path, "r");
+  try {
+    const size = (await handle.stat()).size;
+    const buffer = new Uint8Array(READ_BYTES);
+    let newlines = 0;
+    let offset = 0;
+    let lastContent = -1; // position of the last byte that is not whitespace
+    let newlinesBeforeContentEnd = 0;
+    for (;;) {
+      const { bytesRead } = await handle.read(buffer, 0, READ_BYTES, offset);
+      if (bytesRead === 0) break;
+      const view = buffer.subarray(0, bytesRead);
+      if (view.indexOf(34) >= 0 || view.indexOf(0) >= 0) throw new StreamFallback("quotes or NUL");
+      let chunkLast = -1;
+      for (let k = bytesRead - 1; k >= 0; k--) {
+        const b = view[k];
+        if (b !== 10 && b !== 13 && b !== 32 && b !== 9) {
+          chunkLast = k;
+          break;
+        }
+      }
+      for (let at = view.indexOf(10); at >= 0; at = view.indexOf(10, at + 1)) {
+        newlines++;
+        if (at < chunkLast) newlinesBeforeContentEnd = newlines;
+      }
+      if (chunkLast >= 0) {
+        lastContent = offset + chunkLast;
+        // Every newline of this chunk before its last content byte, plus all earlier ones.
+      }
+      offset += bytesRead;
+    }
+    if (lastContent < 0) throw new StreamFallback("empty");
+    const tailStart = Math.max(0, lastContent + 1 - 65536);
+    const tail = new Uint8Array(lastContent + 1 - tailStart);
+    await handle.read(tail, 0, tail.length, tailStart);
+    const tailText = new TextDecoder().decode(tail);
+    const last = tailText.slice(tailText.lastIndexOf("\n") + 1).replace(/\r$/, "");
+    const head = new Uint8Array(Math.min(size, 65536));
+    await handle.read(head, 0, head.length, 0);
+    let headText = new TextDecoder().decode(head);
+    if (headText.charCodeAt(0) === 0xfeff) headText = headText.slice(1);
+    const headLines = headText.split("\n").map((l) => l.replace(/\r$/, ""));
+    // Lines up to the last content = newlines before it + 1; data rows = lines − 1.
+    return {
+      header: headLines[0] ?? "",
+      first: headLines[1] ?? "",
+      last,
+      rows: newlinesBeforeContentEnd,
+    };
+  } finally {
+    await handle.close();
+  }
+}
 
 async function openCsvStream(
   path: string,
@@ -110,30 +190,10 @@ async function openCsvStream(
     throw new StreamFallback("delimiter");
   }
   if (options.decimal === ",") throw new StreamFallback("decimal comma");
-  // Pass 1: header, row count, first and last rows.
-  let header: string | undefined;
-  let firstRow: string | undefined;
-  let lastRow: string | undefined;
-  let rows = 0;
-  for await (const raw of lines(path)) {
-    const line = raw.endsWith("\r") ? raw.slice(0, -1) : raw;
-    if (isBlankLine(line)) continue;
-    if (header === undefined) {
-      header = line;
-      continue;
-    }
-    if (line.includes('"') || line.includes("\u0000")) {
-      throw new StreamFallback("quotes or NUL in the data");
-    }
-    if (firstRow === undefined) firstRow = line;
-    lastRow = line;
-    rows++;
-  }
-  if (header === undefined || firstRow === undefined || lastRow === undefined) {
-    throw new StreamFallback("no data");
-  }
+  const { header, first: firstRow, last: lastRow, rows } = await scanCsv(path);
+  if (rows < 1 || isBlankLine(firstRow)) throw new StreamFallback("no data or blank lines");
   if (header.includes(";") || header.includes("\t")) throw new StreamFallback("delimiter");
-  const cells = header.split(",").map((c) => parseHeaderCell(c.trim().replace(/^"(.*)"$/, "$1")));
+  const cells = header.split(",").map((c) => parseHeaderCell(c.trim()));
   const names = new Set<string>();
   for (const c of cells) {
     if (c.name === "" || names.has(c.name)) throw new StreamFallback("header");
@@ -148,9 +208,11 @@ async function openCsvStream(
     throw new StreamFallback("time unit");
   }
   const valueOf = (row: string, column: number) => {
-    const text = row.split(",")[column]?.trim() ?? "";
-    if (!DOT_NUMBER.test(text)) throw new StreamFallback("cell");
-    return Number(text);
+    const fields = row.split(",");
+    if (fields.length !== cells.length) throw new StreamFallback("ragged row");
+    const v = parseNumberAt(fields[column], 0, fields[column].length);
+    if (Number.isNaN(v)) throw new StreamFallback("cell");
+    return v;
   };
   let rate: number;
   let startTime = 0;
@@ -180,9 +242,11 @@ async function openCsvStream(
     length: rows,
     channels: transforms.map(({ factor: _f, ...meta }) => meta),
     async read(selected, onChunk) {
-      const columns = selected.map((s) => channelColumns[s]);
+      // target[c] is the output index of file column c, or −1.
+      const target = new Int32Array(width).fill(-1);
+      selected.forEach((s, j) => (target[channelColumns[s]] = j));
       const factors = selected.map((s) => transforms[s].factor);
-      let buffers = columns.map(() => new Float64Array(Math.min(CHUNK_ROWS, rows)));
+      let buffers = selected.map(() => new Float64Array(Math.min(CHUNK_ROWS, rows)));
       let filled = 0;
       let seen = 0;
       let previousTime = NaN;
@@ -191,40 +255,38 @@ async function openCsvStream(
       const head: number[] = [];
       const flush = () => {
         if (filled === 0) return;
-        const chunk = buffers.map((b, j) => {
+        onChunk(buffers.map((b, j) => {
           const part = b.subarray(0, filled);
           if (factors[j] !== 1) { for (let i = 0; i < part.length; i++) part[i] *= factors[j]; }
           return part;
-        });
-        onChunk(chunk);
-        buffers = columns.map(() => new Float64Array(Math.min(CHUNK_ROWS, rows - seen)));
+        }));
+        buffers = selected.map(() =>
+          new Float64Array(Math.max(1, Math.min(CHUNK_ROWS, rows - seen)))
+        );
         filled = 0;
       };
-      let isHeader = true;
-      for await (const raw of lines(path)) {
-        const line = raw.endsWith("\r") ? raw.slice(0, -1) : raw;
-        if (isBlankLine(line)) continue;
-        if (isHeader) {
-          isHeader = false;
-          continue;
+      const row = (text: string, start: number, end: number) => {
+        if (seen >= rows) throw new StreamFallback("more rows than counted");
+        let column = 0;
+        let fieldStart = start;
+        let time = NaN;
+        for (;;) {
+          const comma = text.indexOf(",", fieldStart);
+          const stop = comma < 0 || comma > end ? end : comma;
+          if (column >= width) throw new StreamFallback("ragged row");
+          const v = parseNumberAt(text, fieldStart, stop);
+          if (Number.isNaN(v)) throw new StreamFallback("cell");
+          const j = target[column];
+          if (j >= 0) buffers[j][filled] = v;
+          if (column === timeColumn) time = v;
+          column++;
+          if (stop === end) break;
+          fieldStart = stop + 1;
         }
-        const fields = line.split(",");
-        if (fields.length !== width) throw new StreamFallback("ragged row");
-        for (let c = 0; c < width; c++) {
-          const text = fields[c].trim();
-          if (!DOT_NUMBER.test(text)) throw new StreamFallback("cell");
-          fields[c] = text;
-        }
-        for (let j = 0; j < columns.length; j++) {
-          const v = Number(fields[columns[j]]);
-          if (!Number.isFinite(v)) throw new StreamFallback("cell");
-          buffers[j][filled] = v;
-        }
+        if (column !== width) throw new StreamFallback("ragged row");
         if (timeColumn >= 0) {
-          const t = Number(fields[timeColumn]);
-          if (!Number.isFinite(t)) throw new StreamFallback("cell");
           if (seen > 0) {
-            const dt = t - previousTime;
+            const dt = time - previousTime;
             if (!(dt > 0)) throw new StreamFallback("time");
             if (Number.isNaN(reference)) {
               // The reference is the median of the first steps, as in csv_reader.ts.
@@ -241,12 +303,42 @@ async function openCsvStream(
               throw new StreamFallback("time step");
             }
           }
-          previousTime = t;
+          previousTime = time;
         }
         filled++;
         seen++;
         if (filled === buffers[0].length) flush();
+      };
+      let carry = "";
+      let headerSkipped = false;
+      for await (const piece of textChunks(path)) {
+        let text = carry + piece;
+        if (!headerSkipped) {
+          if (text.charCodeAt(0) === 0xfeff) text = text.slice(1);
+          const nl = text.indexOf("\n");
+          if (nl < 0) {
+            carry = text;
+            continue;
+          }
+          text = text.slice(nl + 1);
+          headerSkipped = true;
+        }
+        let pos = 0;
+        for (let nl = text.indexOf("\n"); nl >= 0; nl = text.indexOf("\n", pos)) {
+          const end = nl > pos && text.charCodeAt(nl - 1) === 13 ? nl - 1 : nl;
+          if (seen < rows) {
+            if (end === pos) throw new StreamFallback("blank line"); // the whole-file reader handles those
+            row(text, pos, end);
+          } else if (end > pos && text.slice(pos, end).trim() !== "") {
+            throw new StreamFallback("more rows than counted");
+          }
+          pos = nl + 1;
+        }
+        carry = text.slice(pos);
       }
+      const last = carry.replace(/\r$/, "");
+      if (last.trim() !== "") row(last, 0, last.length);
+      if (seen !== rows) throw new StreamFallback("row count");
       flush();
     },
   };

@@ -273,6 +273,10 @@ export interface RunOptions {
   progress?: Progress;
   /** Writes the report; called when the plan has a `report` section. */
   report?: (outDir: string, manifest: Manifest, plan: Plan) => Promise<string>;
+  /** Steps run at once, each as soon as the steps it needs are done. Default 1. */
+  jobs?: number;
+  /** Runs one step; default: the command's `run` in this process (a pool passes its own). */
+  execute?: (command: string, argv: readonly string[]) => Promise<void>;
 }
 
 /**
@@ -290,8 +294,12 @@ export async function runPlan(planFile: string, options: RunOptions): Promise<Ma
   await mkdir(outDir, { recursive: true });
   const progress = options.progress ?? createProgress(steps.length);
   const failed = new Set<string>();
-  const results: Manifest["steps"][number][] = [];
-  for (const [i, step] of steps.entries()) {
+  const done = new Set<string>();
+  const results: Manifest["steps"][number][] = new Array(steps.length);
+  const execute = options.execute ??
+    ((command: string, argv: readonly string[]) => options.commands[command].run(argv));
+  const runStep = async (i: number): Promise<void> => {
+    const step = steps[i];
     const label = `${step.command} ${step.id}`;
     const begin = performance.now();
     progress.start(i + 1, label);
@@ -299,57 +307,54 @@ export async function runPlan(planFile: string, options: RunOptions): Promise<Ma
     const inputs = await Promise.all(
       step.inputs.filter((p) => existsSync(p)).map((p) => record(p, outDir)),
     );
+    const base = { id: step.id, kind: step.kind, command: step.command, argv: step.argv, inputs };
     if (blocked !== undefined) {
       failed.add(step.id);
       progress.end(i + 1, label, false, 0, `skipped: "${blocked}" failed`);
-      results.push({
-        id: step.id,
-        kind: step.kind,
-        command: step.command,
-        argv: step.argv,
-        inputs,
+      results[i] = {
+        ...base,
         outputs: {},
         status: "skipped",
         error: `needs "${blocked}", which failed`,
         seconds: 0,
-      });
-      continue;
+      };
+      return;
     }
     try {
-      await options.commands[step.command].run(step.argv);
+      await execute(step.command, step.argv);
       const outputs: Record<string, FileRecord> = {};
       for (const [key, path] of Object.entries(step.outputs)) {
         if (existsSync(path) && statSync(path).isFile()) outputs[key] = await record(path, outDir);
       }
       const seconds = (performance.now() - begin) / 1000;
       progress.end(i + 1, label, true, seconds);
-      results.push({
-        id: step.id,
-        kind: step.kind,
-        command: step.command,
-        argv: step.argv,
-        inputs,
-        outputs,
-        status: "ok",
-        seconds,
-      });
+      results[i] = { ...base, outputs, status: "ok", seconds };
     } catch (error) {
       failed.add(step.id);
       const message = error instanceof Error ? error.message : String(error);
       const seconds = (performance.now() - begin) / 1000;
       progress.end(i + 1, label, false, seconds, message);
-      results.push({
-        id: step.id,
-        kind: step.kind,
-        command: step.command,
-        argv: step.argv,
-        inputs,
-        outputs: {},
-        status: "failed",
-        error: message,
-        seconds,
-      });
+      results[i] = { ...base, outputs: {}, status: "failed", error: message, seconds };
     }
+  };
+  // Steps start in plan order as soon as what they need is done, up to `jobs` at once.
+  const jobs = Math.max(1, options.jobs ?? 1);
+  const running = new Map<number, Promise<number>>();
+  const waiting = steps.map((_, i) => i);
+  while (waiting.length > 0 || running.size > 0) {
+    for (let w = 0; w < waiting.length && running.size < jobs;) {
+      const i = waiting[w];
+      if (steps[i].needs.every((n) => done.has(n))) {
+        waiting.splice(w, 1);
+        running.set(i, runStep(i).then(() => i));
+      } else {
+        w++;
+      }
+    }
+    if (running.size === 0) break; // cannot happen: needs always name earlier steps
+    const finished = await Promise.race(running.values());
+    running.delete(finished);
+    done.add(steps[finished].id);
   }
   const targets = await evaluateTargets(plan, outDir, failed);
   const planBytes = new TextEncoder().encode(text);

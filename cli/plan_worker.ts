@@ -1,0 +1,28 @@
+/**
+ * A worker of the campaign pool: runs one plan step's command per message
+ * and answers `{ ok: true }` or `{ ok: false, error }`.
+ *
+ * @module
+ */
+import { PLAN_COMMAND_TABLE } from "./plan_commands.ts";
+
+/** A step to run. */
+export interface StepMessage {
+  readonly command: string;
+  readonly argv: string[];
+}
+
+const scope = self as unknown as {
+  onmessage: ((event: MessageEvent<StepMessage>) => void) | null;
+  postMessage(message: unknown): void;
+};
+
+scope.onmessage = async (event) => {
+  const { command, argv } = event.data;
+  try {
+    await PLAN_COMMAND_TABLE[command].run(argv);
+    scope.postMessage({ ok: true });
+  } catch (error) {
+    scope.postMessage({ ok: false, error: error instanceof Error ? error.message : String(error) });
+  }
+};
