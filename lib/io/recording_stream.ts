@@ -26,7 +26,7 @@ import { type ChannelTransform, parseChannelSetup, setupTransforms } from "./cha
 import { parseHeaderCell, REFERENCE_STEPS, TIME_NAMES } from "./csv_reader.ts";
 import type { ReadRecordingOptions } from "./read_recording.ts";
 import type { ChannelRole } from "./recording.ts";
-import { looksLikeWav, parseWav } from "./wav.ts";
+import { decodeWavFrames, looksLikeWav, parseWav } from "./wav.ts";
 import { readFile } from "node:fs/promises";
 
 /** Thrown when a file needs the in-memory reader after all. */
@@ -49,6 +49,7 @@ export interface RecordingStream {
   readonly channels: readonly { name: string; unit: string; role?: ChannelRole }[];
   /**
    * Reads the channels with the given indices in order, chunk by chunk.
+   * A chunk's arrays are valid during the callback only: they are reused.
    *
    * @throws {StreamFallback} when the file turns out to need the in-memory reader.
    */
@@ -57,7 +58,7 @@ export interface RecordingStream {
 
 /** Rows (frames) per chunk. */
 export const CHUNK_ROWS = 65536;
-const READ_BYTES = 1 << 22;
+const READ_BYTES = 1 << 20;
 
 async function transformsFor(
   channels: { name: string; unit: string }[],
@@ -246,7 +247,9 @@ async function openCsvStream(
       const target = new Int32Array(width).fill(-1);
       selected.forEach((s, j) => (target[channelColumns[s]] = j));
       const factors = selected.map((s) => transforms[s].factor);
-      let buffers = selected.map(() => new Float64Array(Math.min(CHUNK_ROWS, rows)));
+      // One array per channel, reused for every chunk.
+      const chunkRows = Math.min(CHUNK_ROWS, rows);
+      const buffers = selected.map(() => new Float64Array(chunkRows));
       let filled = 0;
       let seen = 0;
       let previousTime = NaN;
@@ -260,9 +263,6 @@ async function openCsvStream(
           if (factors[j] !== 1) { for (let i = 0; i < part.length; i++) part[i] *= factors[j]; }
           return part;
         }));
-        buffers = selected.map(() =>
-          new Float64Array(Math.max(1, Math.min(CHUNK_ROWS, rows - seen)))
-        );
         filled = 0;
       };
       const row = (text: string, start: number, end: number) => {
@@ -307,7 +307,7 @@ async function openCsvStream(
         }
         filled++;
         seen++;
-        if (filled === buffers[0].length) flush();
+        if (filled === chunkRows) flush();
       };
       let carry = "";
       let headerSkipped = false;
@@ -410,29 +410,19 @@ async function openWavStream(
       async read(selected, onChunk) {
         const h = await open(path, "r");
         try {
+          // One byte buffer and one sample array per channel, reused for every chunk.
+          const rows = Math.min(CHUNK_ROWS, frames);
+          const bytes = new Uint8Array(rows * f.blockAlign);
+          const view = new DataView(bytes.buffer);
+          const samples = Array.from({ length: f.channels }, () => new Float64Array(rows));
+          const factors = selected.map((s) => transforms[s].factor);
           for (let first = 0; first < frames; first += CHUNK_ROWS) {
             const count = Math.min(CHUNK_ROWS, frames - first);
-            const bytes = new Uint8Array(44 + count * f.blockAlign);
-            // A minimal WAV around this block, decoded by the one WAV decoder.
-            const v = new DataView(bytes.buffer);
-            bytes.set([82, 73, 70, 70], 0);
-            v.setUint32(4, bytes.length - 8, true);
-            bytes.set([87, 65, 86, 69, 102, 109, 116, 32], 8);
-            v.setUint32(16, 16, true);
-            v.setUint16(20, f.code, true);
-            v.setUint16(22, f.channels, true);
-            v.setUint32(24, f.rate, true);
-            v.setUint32(28, f.rate * f.blockAlign, true);
-            v.setUint16(32, f.blockAlign, true);
-            v.setUint16(34, f.bits, true);
-            bytes.set([100, 97, 116, 97], 36);
-            v.setUint32(40, count * f.blockAlign, true);
-            await h.read(bytes, 44, count * f.blockAlign, dataStart + first * f.blockAlign);
-            const block = parseWav(bytes.subarray(0, 44 + count * f.blockAlign), path);
-            onChunk(selected.map((s) => {
-              const factor = transforms[s].factor;
-              const d = block.channels[s].data;
-              if (factor !== 1) { for (let i = 0; i < d.length; i++) d[i] *= factor; }
+            await h.read(bytes, 0, count * f.blockAlign, dataStart + first * f.blockAlign);
+            decodeWavFrames(view, 0, count, f, samples);
+            onChunk(selected.map((s, j) => {
+              const d = samples[s].subarray(0, count);
+              if (factors[j] !== 1) { for (let i = 0; i < d.length; i++) d[i] *= factors[j]; }
               return d;
             }));
           }

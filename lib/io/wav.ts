@@ -130,20 +130,40 @@ function checkFormat(
   }
 }
 
-function decodeFrames(
+/** The sample format of a WAV file's data chunk. */
+export interface WavFormat {
+  /** 1 integer PCM, 3 IEEE float. */
+  readonly code: number;
+  readonly channels: number;
+  readonly rate: number;
+  readonly blockAlign: number;
+  readonly bits: number;
+}
+
+/**
+ * Decodes `frames` frames starting at byte `start` of `view` into `out`
+ * (one array per channel, each at least `frames` long), as fractions of full
+ * scale. Allocates nothing: the chunked reader reuses its arrays.
+ */
+export function decodeWavFrames(
   view: DataView,
   start: number,
   frames: number,
-  f: { code: number; channels: number; rate: number; blockAlign: number; bits: number },
-): Recording {
+  f: WavFormat,
+  out: readonly Float64Array[],
+): void {
   const bytesPerSample = f.bits / 8;
-  const data = Array.from({ length: f.channels }, () => new Float64Array(frames));
   for (let i = 0; i < frames; i++) {
     for (let c = 0; c < f.channels; c++) {
       const at = start + i * f.blockAlign + c * bytesPerSample;
-      data[c][i] = readSample(view, at, f.code, f.bits);
+      out[c][i] = readSample(view, at, f.code, f.bits);
     }
   }
+}
+
+function decodeFrames(view: DataView, start: number, frames: number, f: WavFormat): Recording {
+  const data = Array.from({ length: f.channels }, () => new Float64Array(frames));
+  decodeWavFrames(view, start, frames, f, data);
   return {
     rate: f.rate,
     startTime: 0,

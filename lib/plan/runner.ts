@@ -15,7 +15,7 @@
  */
 import { createHash } from "node:crypto";
 import { existsSync, statSync } from "node:fs";
-import { mkdir, readFile } from "node:fs/promises";
+import { mkdir, open, readFile } from "node:fs/promises";
 import { dirname, isAbsolute, join, relative, resolve } from "node:path";
 import { QuiverError } from "../errors.ts";
 import { writeFileAtomic } from "../io/atomic_write.ts";
@@ -254,13 +254,31 @@ export function planSteps(
   return steps;
 }
 
+// Hashes by path, size and modification time: a recording used by several
+// steps of a run is hashed once.
+const hashCache = new Map<string, string>();
+
 async function record(path: string, outDir: string): Promise<FileRecord> {
-  const bytes = await readFile(path);
-  return {
-    path: relative(outDir, path) || path,
-    bytes: bytes.length,
-    sha256: createHash("sha256").update(bytes).digest("hex"),
-  };
+  const stat = statSync(path);
+  const key = `${path}\u0000${stat.size}\u0000${stat.mtimeMs}`;
+  let sha256 = hashCache.get(key);
+  if (sha256 === undefined) {
+    const hash = createHash("sha256");
+    const handle = await open(path, "r");
+    try {
+      const buffer = new Uint8Array(1 << 22);
+      for (;;) {
+        const { bytesRead } = await handle.read(buffer, 0, buffer.length, null);
+        if (bytesRead === 0) break;
+        hash.update(buffer.subarray(0, bytesRead));
+      }
+    } finally {
+      await handle.close();
+    }
+    sha256 = hash.digest("hex");
+    hashCache.set(key, sha256);
+  }
+  return { path: relative(outDir, path) || path, bytes: stat.size, sha256 };
 }
 
 /** Options of {@linkcode runPlan}. */

@@ -1,0 +1,217 @@
+/**
+ * `deno task bench`: quiver's throughput and memory figures, side by side
+ * with the peer a practitioner would write instead (tests/bench/peer_welch.py:
+ * pandas.read_csv + scipy.signal.welch + DataFrame.to_csv, run with Debian's
+ * /usr/bin/python3). Ours and the peer run alternately on the same generated
+ * files; medians are reported. Benchmarks, not tests: nothing here asserts.
+ *
+ * Needs /usr/bin/time (GNU time) for peak RSS and, for the peer figures,
+ * `apt-get install -y python3-pandas python3-scipy`.
+ */
+import { spawnSync } from "node:child_process";
+import { existsSync, statSync } from "node:fs";
+import { mkdir, writeFile } from "node:fs/promises";
+import os from "node:os";
+import process from "node:process";
+import { fileURLToPath } from "node:url";
+import { spectralEstimate } from "../../lib/dsp/spectral_core.ts";
+import { openRecordingStream } from "../../lib/io/recording_stream.ts";
+import { encodeWav } from "../../lib/io/wav.ts";
+
+const DIR = "out/bench";
+const MAIN = fileURLToPath(new URL("../../cli/main.ts", import.meta.url));
+const PEER = fileURLToPath(new URL("./peer_welch.py", import.meta.url));
+const RUNS = 5;
+const BLOCK = 8192; // 4096 lines
+const median = (v: number[]) => v.slice().sort((a, b) => a - b)[Math.floor(v.length / 2)];
+
+function seeded(seed: number): () => number {
+  let s = seed >>> 0;
+  return () => {
+    s = (s + 0x6d2b79f5) >>> 0;
+    let t = Math.imul(s ^ (s >>> 15), s | 1);
+    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
+    return ((t ^ (t >>> 14)) >>> 0) / 4294967296 - 0.5;
+  };
+}
+
+async function writeCsv(path: string, samples: number): Promise<void> {
+  if (existsSync(path)) return;
+  const r = seeded(samples);
+  const rows: string[] = ["time_s,wheel_hub_z [m/s^2],seat_rail_z [m/s^2]"];
+  for (let i = 0; i < samples; i++) {
+    rows.push(`${i / 51200},${r().toPrecision(9)},${r().toPrecision(9)}`);
+  }
+  await writeFile(path, rows.join("\n") + "\n");
+}
+
+/** Runs a command under GNU time; returns seconds and peak RSS in MB. */
+function timed(command: string, args: string[]): { seconds: number; rssMb: number } {
+  const r = spawnSync("/usr/bin/time", ["-f", "%e %M", command, ...args], { encoding: "utf8" });
+  if (r.status !== 0) throw new Error(`${command} failed: ${r.stderr}`);
+  const [seconds, kb] = r.stderr.trim().split("\n").pop()!.split(" ").map(Number);
+  return { seconds, rssMb: kb / 1024 };
+}
+
+const deno = process.execPath;
+const quiver = (args: string[]) => timed(deno, ["run", "-A", MAIN, ...args]);
+const peerAvailable = spawnSync("/usr/bin/python3", ["-c", "import pandas, scipy"]).status === 0;
+
+await mkdir(DIR, { recursive: true });
+console.log(
+  `machine: ${os.cpus().length} × ${os.cpus()[0]?.model ?? "cpu"}, ${
+    (os.totalmem() / 2 ** 30).toFixed(0)
+  } GiB; deno ${Deno.version.deno}`,
+);
+console.log(
+  peerAvailable
+    ? "peer: /usr/bin/python3 with pandas and scipy"
+    : "peer: not installed (apt-get install -y python3-pandas python3-scipy); peer figures skipped",
+);
+
+// 1. End to end: CSV → averaged PSD → CSV, 2 channels × 2^21 samples.
+const csv = `${DIR}/two_channels_2e21.csv`;
+await writeCsv(csv, 2 ** 21);
+const ours: { seconds: number; rssMb: number }[] = [];
+const peer: { seconds: number; rssMb: number }[] = [];
+for (let i = 0; i < RUNS; i++) {
+  ours.push(
+    quiver([
+      "spectrum",
+      csv,
+      "--block",
+      String(BLOCK),
+      "--window",
+      "hann",
+      "--overlap",
+      "0.5",
+      "--out",
+      `${DIR}/ours.csv`,
+    ]),
+  );
+  if (peerAvailable) {
+    peer.push(timed("/usr/bin/python3", [PEER, csv, `${DIR}/peer.csv`, String(BLOCK)]));
+  }
+}
+const ourTime = median(ours.map((r) => r.seconds));
+const ourRss = Math.max(...ours.map((r) => r.rssMb));
+console.log(
+  `\nCSV → PSD, 2 × 2^21 samples (${
+    (statSync(csv).size / 1e6).toFixed(0)
+  } MB), Hann, 4096 lines, 50 %:`,
+);
+console.log(`  quiver: ${ourTime.toFixed(2)} s median, peak RSS ${ourRss.toFixed(0)} MB`);
+if (peerAvailable) {
+  const peerTime = median(peer.map((r) => r.seconds));
+  const peerRss = Math.max(...peer.map((r) => r.rssMb));
+  console.log(`  peer:   ${peerTime.toFixed(2)} s median, peak RSS ${peerRss.toFixed(0)} MB`);
+  console.log(
+    `  time ratio quiver/peer ${(ourTime / peerTime).toFixed(2)} (target ≤ 1.0), memory ratio ${
+      (ourRss / peerRss).toFixed(2)
+    } (target ≤ 1.0)`,
+  );
+}
+
+// 2. The spectral core alone, in memory.
+const n = 2 ** 21;
+const r = seeded(3);
+const a = new Float64Array(n).map(() => r()), b = new Float64Array(n).map(() => r());
+const coreRuns: number[] = [];
+for (let i = 0; i < RUNS; i++) {
+  const t0 = performance.now();
+  spectralEstimate([a, b], { rate: 51200, block: BLOCK });
+  coreRuns.push((2 * n) / ((performance.now() - t0) / 1000));
+}
+const coreRate = median(coreRuns);
+console.log(
+  `\nSpectral core in memory, 2 × 2^21 samples: ${(coreRate / 1e6).toFixed(1)} M samples/s`,
+);
+if (peerAvailable) {
+  const welch = Number(
+    spawnSync("/usr/bin/python3", [PEER, "--core", String(n), String(BLOCK)], { encoding: "utf8" })
+      .stdout,
+  );
+  console.log(
+    `  scipy.signal.welch: ${(welch / 1e6).toFixed(1)} M samples/s; ratio ${
+      (coreRate / welch).toFixed(2)
+    } (target ≥ 0.67)`,
+  );
+}
+
+// 3. Ingest: the chunked CSV reader alone.
+{
+  const t0 = performance.now();
+  const stream = await openRecordingStream(csv);
+  await stream.read([0, 1], () => {});
+  const s = (performance.now() - t0) / 1000;
+  console.log(
+    `\nCSV ingest (chunked fast path): ${(statSync(csv).size / 1e6 / s).toFixed(0)} MB/s`,
+  );
+}
+
+// 4. Memory against record length: WAV recordings of 2^20 and 2^24 samples (2 channels).
+const wavRss: number[] = [];
+for (const exponent of [20, 24]) {
+  const path = `${DIR}/two_channels_2e${exponent}.wav`;
+  if (!existsSync(path)) {
+    const rr = seeded(exponent);
+    const channels = [0, 1].map((c) => ({
+      name: `ch${c + 1}`,
+      unit: "FS",
+      data: new Float64Array(2 ** exponent).map(() => 0.5 * rr()),
+    }));
+    await writeFile(path, encodeWav({ rate: 51200, startTime: 0, channels }, "float32"));
+  }
+  wavRss.push(
+    Math.max(
+      ...[0, 1, 2].map(() =>
+        quiver(["spectrum", path, "--block", String(BLOCK), "--out", `${DIR}/wav.csv`]).rssMb
+      ),
+    ),
+  );
+}
+console.log(
+  `\nPeak RSS, spectrum of a 2-channel WAV: 2^20 samples ${wavRss[0].toFixed(0)} MB, 2^24 samples ${
+    wavRss[1].toFixed(0)
+  } MB; ratio ${(wavRss[1] / wavRss[0]).toFixed(2)} (target ≤ 1.25)`,
+);
+
+// 5. A campaign of 8 recordings: --jobs 1 against --jobs 2.
+const campaign = {
+  quiver_plan: 1,
+  title: "bench campaign",
+  recordings: Object.fromEntries(
+    Array.from({ length: 8 }, (_, i) => [`r${i}`, { file: "two_channels_2e21.csv" }]),
+  ),
+  analyses: Array.from(
+    { length: 8 },
+    (_, i) => ({
+      id: `psd${i}`,
+      command: "spectrum",
+      recording: `r${i}`,
+      options: { block: BLOCK },
+    }),
+  ),
+};
+await writeFile(`${DIR}/campaign.json`, JSON.stringify(campaign));
+const campaignTimes: Record<string, number[]> = { 1: [], 2: [] };
+for (let i = 0; i < 3; i++) {
+  for (const jobs of [1, 2]) {
+    campaignTimes[jobs].push(
+      quiver([
+        "run",
+        `${DIR}/campaign.json`,
+        "--out-dir",
+        `${DIR}/campaign_${jobs}`,
+        "--jobs",
+        String(jobs),
+      ]).seconds,
+    );
+  }
+}
+const c1 = median(campaignTimes[1]), c2 = median(campaignTimes[2]);
+console.log(
+  `\nCampaign of 8 recordings: --jobs 1 ${c1.toFixed(2)} s, --jobs 2 ${c2.toFixed(2)} s; speed-up ${
+    (c1 / c2).toFixed(2)
+  } (target ≥ 1.7 on 2 cores)`,
+);
