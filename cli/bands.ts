@@ -5,12 +5,10 @@
  */
 import process from "node:process";
 import { z } from "zod";
-import { BAND_METHODS, bandLevels } from "../lib/acoustics/band_analysis.ts";
+import { BAND_METHODS, bandLevels, bandLevelsStream } from "../lib/acoustics/band_analysis.ts";
 import { BAND_FRACTIONS } from "../lib/acoustics/bands.ts";
 import { WEIGHTINGS } from "../lib/acoustics/weighting.ts";
-import { readRecordingFile } from "../lib/io/read_recording.ts";
 import {
-  inFile,
   integerOption,
   listOption,
   numberOption,
@@ -20,6 +18,7 @@ import {
 } from "./args.ts";
 import { writeResult } from "./output.ts";
 import {
+  analyseRecording,
   RECORDING_HELP,
   RECORDING_OPTIONS,
   recordingOptionsShape,
@@ -106,21 +105,25 @@ export async function run(argv: readonly string[]): Promise<void> {
   const { positionals, values } = parseCommandArgs(argv, options, schema);
   if (positionals.length !== 1) usageError(`bands takes one recording, got ${positionals.length}`);
   const [input] = positionals;
-  const recording = await readRecordingFile(input, toReadOptions(values));
-  const result = inFile(input, () =>
-    bandLevels(recording, {
-      channels: values.channels,
-      fraction: values.fraction === undefined
-        ? undefined
-        : Number(values.fraction) as 1 | 3 | 6 | 12 | 24,
-      weighting: values.weighting,
-      method: values.method,
-      reference: values.reference,
-      minHz: values["min-hz"],
-      maxHz: values["max-hz"],
-      block: values.block,
-      resolution: values.resolution,
-    }));
+  const analysis = {
+    channels: values.channels,
+    fraction: values.fraction === undefined
+      ? undefined
+      : Number(values.fraction) as 1 | 3 | 6 | 12 | 24,
+    weighting: values.weighting,
+    method: values.method,
+    reference: values.reference,
+    minHz: values["min-hz"],
+    maxHz: values["max-hz"],
+    block: values.block,
+    resolution: values.resolution,
+  };
+  const result = await analyseRecording(
+    input,
+    toReadOptions(values),
+    (stream) => bandLevelsStream(stream, analysis),
+    (recording) => bandLevels(recording, analysis),
+  );
   await writeResult(result.table, input, values);
   for (const w of result.warnings) process.stderr.write(`quiver bands: warning: ${w}\n`);
   for (const o of result.overall) {

@@ -7,11 +7,11 @@ import process from "node:process";
 import { z } from "zod";
 import { ESTIMATORS } from "../lib/frf/estimators.ts";
 import { FRF_FORMS } from "../lib/frf/forms.ts";
-import { frequencyResponse } from "../lib/frf/frf_analysis.ts";
-import { readRecordingFile } from "../lib/io/read_recording.ts";
-import { inFile, listOption, type OptionSpec, parseCommandArgs, usageError } from "./args.ts";
+import { frequencyResponse, frequencyResponseStream } from "../lib/frf/frf_analysis.ts";
+import { listOption, type OptionSpec, parseCommandArgs, usageError } from "./args.ts";
 import { writeResult } from "./output.ts";
 import {
+  analyseRecording,
   RECORDING_HELP,
   RECORDING_OPTIONS,
   recordingOptionsShape,
@@ -86,19 +86,23 @@ export async function run(argv: readonly string[]): Promise<void> {
   const { positionals, values } = parseCommandArgs(argv, options, schema);
   if (positionals.length !== 1) usageError(`frf takes one recording, got ${positionals.length}`);
   const [input] = positionals;
-  const recording = await readRecordingFile(input, toReadOptions(values));
-  const { table, warnings } = inFile(input, () =>
-    frequencyResponse(recording, {
-      input: values.input,
-      outputs: values.outputs,
-      estimator: values.estimator,
-      form: values.form,
-      block: values.block,
-      resolution: values.resolution,
-      overlap: values.overlap,
-      window: values.window,
-      detrend: values.detrend,
-    }));
+  const analysis = {
+    input: values.input,
+    outputs: values.outputs,
+    estimator: values.estimator,
+    form: values.form,
+    block: values.block,
+    resolution: values.resolution,
+    overlap: values.overlap,
+    window: values.window,
+    detrend: values.detrend,
+  };
+  const { table, warnings } = await analyseRecording(
+    input,
+    toReadOptions(values),
+    (stream) => frequencyResponseStream(stream, analysis),
+    (recording) => frequencyResponse(recording, analysis),
+  );
   await writeResult(table, input, values);
   for (const warning of warnings) process.stderr.write(`quiver frf: warning: ${warning}\n`);
   const m = table.metadata;

@@ -4,8 +4,15 @@
  * @module
  */
 import { z } from "zod";
-import type { ReadRecordingOptions } from "../lib/io/read_recording.ts";
-import { numberOption, type OptionSpec } from "./args.ts";
+import { readRecordingFile, type ReadRecordingOptions } from "../lib/io/read_recording.ts";
+import {
+  openRecordingStream,
+  type RecordingStream,
+  StreamFallback,
+} from "../lib/io/recording_stream.ts";
+import type { Recording } from "../lib/io/recording.ts";
+import { QuiverError } from "../lib/errors.ts";
+import { inFile, inFileAsync, numberOption, type OptionSpec } from "./args.ts";
 
 /** parseArgs spec of the recording options. */
 export const RECORDING_OPTIONS: OptionSpec = {
@@ -46,4 +53,25 @@ export function toReadOptions(values: {
     delimiter: delimiters[values.delimiter ?? "auto"],
     decimal: decimals[values.decimal ?? "auto"],
   };
+}
+
+/**
+ * Runs an analysis on the recording read in chunks when the file allows it,
+ * else (or when the chunked path refuses anything) on the whole file, whose
+ * reader then reports the first fault in file order. Both give the same numbers.
+ */
+export async function analyseRecording<T>(
+  input: string,
+  options: ReadRecordingOptions,
+  streamed: (stream: RecordingStream) => Promise<T>,
+  whole: (recording: Recording) => T,
+): Promise<T> {
+  try {
+    const stream = await openRecordingStream(input, options);
+    return await inFileAsync(input, () => streamed(stream));
+  } catch (error) {
+    if (!(error instanceof StreamFallback) && !(error instanceof QuiverError)) throw error;
+    const recording = await readRecordingFile(input, options);
+    return inFile(input, () => whole(recording));
+  }
 }

@@ -7,21 +7,11 @@ import process from "node:process";
 import { z } from "zod";
 import { AVERAGING_MODES } from "../lib/dsp/spectral_core.ts";
 import { averagedSpectrum, averagedSpectrumStream } from "../lib/dsp/averaged_spectrum.ts";
-import { openRecordingStream, StreamFallback } from "../lib/io/recording_stream.ts";
-import { QuiverError } from "../lib/errors.ts";
 import { SPECTRUM_KINDS } from "../lib/dsp/spectrum_kinds.ts";
-import { readRecordingFile } from "../lib/io/read_recording.ts";
-import {
-  inFile,
-  inFileAsync,
-  listOption,
-  numberOption,
-  type OptionSpec,
-  parseCommandArgs,
-  usageError,
-} from "./args.ts";
+import { listOption, numberOption, type OptionSpec, parseCommandArgs, usageError } from "./args.ts";
 import { writeResult } from "./output.ts";
 import {
+  analyseRecording,
   RECORDING_HELP,
   RECORDING_OPTIONS,
   recordingOptionsShape,
@@ -107,18 +97,12 @@ export async function run(argv: readonly string[]): Promise<void> {
     average: values.average,
     tau: values.tau,
   };
-  const readOptions = toReadOptions(values);
-  let table;
-  try {
-    // Chunked reading keeps memory to one chunk; unusual files fall back to the whole-file reader.
-    const stream = await openRecordingStream(input, readOptions);
-    table = await inFileAsync(input, () => averagedSpectrumStream(stream, analysis));
-  } catch (error) {
-    // Any refusal is left to the whole-file reader, which reports the first fault in file order.
-    if (!(error instanceof StreamFallback) && !(error instanceof QuiverError)) throw error;
-    const recording = await readRecordingFile(input, readOptions);
-    table = inFile(input, () => averagedSpectrum(recording, analysis));
-  }
+  const table = await analyseRecording(
+    input,
+    toReadOptions(values),
+    (stream) => averagedSpectrumStream(stream, analysis),
+    (recording) => averagedSpectrum(recording, analysis),
+  );
   await writeResult(table, input, values);
   for (const w of table.metadata.warnings as string[]) {
     process.stderr.write(`quiver spectrum: warning: ${w}\n`);

@@ -19,10 +19,16 @@
  *
  * @module
  */
-import { type Recording, recordingLength, selectChannels } from "../io/recording.ts";
+import {
+  channelIndices,
+  type Recording,
+  recordingLength,
+  selectChannels,
+} from "../io/recording.ts";
 import type { Table, TableColumn } from "../io/table.ts";
-import { resolveBlock, spectralEstimate } from "../dsp/spectral_core.ts";
-import { channelsWarnings } from "../io/signal_checks.ts";
+import { resolveBlock, SpectralAccumulator, type SpectralEstimate } from "../dsp/spectral_core.ts";
+import { type RecordingStream, StreamFallback } from "../io/recording_stream.ts";
+import { ChannelStatistics, channelsWarnings } from "../io/signal_checks.ts";
 import { type Band, type BandFraction, bandsInRange } from "./bands.ts";
 import { bandPowersFromDensity } from "./band_synthesis.ts";
 import { filterBankPowers } from "./filter_bank.ts";
@@ -77,57 +83,19 @@ export const MIN_LINES_PER_BAND = 5;
  * record shorter than the block; RangeError for bad options.
  */
 export function bandLevels(recording: Recording, options: BandLevelOptions = {}): BandLevelResult {
-  const fraction = options.fraction ?? 3;
-  const weighting = options.weighting ?? "Z";
-  const method = options.method ?? "fft";
   const channels = selectChannels(recording, options.channels);
-  const references = channels.map((c) => levelReference(c.unit, options.reference));
-  const rate = recording.rate;
-  const minHz = options.minHz ?? 20;
-  const candidates = bandsInRange(fraction, minHz, options.maxHz ?? Math.min(20000, 0.45 * rate));
-  const bands: Band[] = candidates.filter((b) => b.upperHz < 0.45 * rate);
-  if (bands.length === 0) {
-    throw new RangeError(`no band between ${minHz} Hz and the rate's limit of ${0.45 * rate} Hz`);
-  }
-  const warnings: string[] = channelsWarnings(channels);
-  if (bands.length < candidates.length) {
-    warnings.push(
-      `bands above ${
-        bands[bands.length - 1].nominalHz
-      } Hz are left out: they reach beyond 0.45 of the sample rate`,
-    );
-  }
+  const plan = bandPlan(channels, recording.rate, options, channelsWarnings(channels));
+  const { bands, weighting, warnings, metadata } = plan;
   let powers: Float64Array[];
-  const metadata: Record<string, unknown> = {};
-  if (method === "fft") {
-    const length = recordingLength(recording);
-    const defaultBlock = 2 ** Math.floor(Math.log2(Math.max(8, length / 4)));
-    const block = resolveBlock(rate, length, {
-      block: options.block ?? (options.resolution === undefined ? defaultBlock : undefined),
-      resolution: options.resolution,
+  if (plan.method === "fft") {
+    const accumulator = new SpectralAccumulator(channels.length, {
+      rate: recording.rate,
+      block: fftBlock(recording.rate, recordingLength(recording), options),
     });
-    const estimate = spectralEstimate(channels.map((c) => c.data), { rate, block });
-    powers = estimate.auto.map((density) =>
-      bandPowersFromDensity(estimate.frequencies, density, estimate.df, bands, weighting).power
-    );
-    const few = bands.filter((b) => (b.upperHz - b.lowerHz) / estimate.df < MIN_LINES_PER_BAND);
-    if (few.length > 0) {
-      warnings.push(
-        `${few.length} band(s) up to ${
-          few[few.length - 1].nominalHz
-        } Hz span fewer than ${MIN_LINES_PER_BAND} lines ` +
-          `at df ${estimate.df} Hz; their levels are unreliable (use a longer block or --method filter)`,
-      );
-    }
-    Object.assign(metadata, {
-      block,
-      df_hz: estimate.df,
-      averages: estimate.averages,
-      window: estimate.window,
-      overlap_samples: estimate.overlapSamples,
-    });
+    accumulator.push(channels.map((c) => c.data));
+    powers = fftBandPowers(accumulator.finish(), plan);
   } else {
-    const results = channels.map((c) => filterBankPowers(c.data, rate, bands));
+    const results = channels.map((c) => filterBankPowers(c.data, recording.rate, bands));
     powers = results.map((r) => {
       // Weighting at each band's mid-band frequency (common practice for band spectra).
       return r.power.map((p, i) => p * 10 ** (weightingDb(weighting, bands[i].centerHz) / 10));
@@ -143,6 +111,117 @@ export function bandLevels(recording: Recording, options: BandLevelOptions = {})
       band_rates_hz: Array.from(results[0].bandRate),
     });
   }
+  return bandResult(channels, recording.rate, plan, powers);
+}
+
+/**
+ * The fft method on a recording read in chunks (memory for one chunk), with
+ * exactly the numbers of {@linkcode bandLevels}. The filter method needs the
+ * whole record: it throws {@linkcode StreamFallback}.
+ */
+export async function bandLevelsStream(
+  stream: RecordingStream,
+  options: BandLevelOptions = {},
+): Promise<BandLevelResult> {
+  if ((options.method ?? "fft") !== "fft") {
+    throw new StreamFallback("the filter bank reads the whole record");
+  }
+  const indices = channelIndices(stream.channels, options.channels);
+  const channels = indices.map((i) => stream.channels[i]);
+  const accumulator = new SpectralAccumulator(channels.length, {
+    rate: stream.rate,
+    block: fftBlock(stream.rate, stream.length, options),
+  });
+  const plan = bandPlan(channels, stream.rate, options, []);
+  const statistics = channels.map(() => new ChannelStatistics());
+  await stream.read(indices, (chunk) => {
+    accumulator.push(chunk);
+    chunk.forEach((c, i) => statistics[i].push(c));
+  });
+  plan.warnings.unshift(...channels.flatMap((c, i) => statistics[i].warnings(c)));
+  return bandResult(channels, stream.rate, plan, fftBandPowers(accumulator.finish(), plan));
+}
+
+interface BandPlan {
+  fraction: BandFraction;
+  weighting: Weighting;
+  method: BandMethod;
+  references: number[];
+  bands: Band[];
+  warnings: string[];
+  metadata: Record<string, unknown>;
+}
+
+function bandPlan(
+  channels: readonly { name: string; unit: string }[],
+  rate: number,
+  options: BandLevelOptions,
+  signalWarnings: string[],
+): BandPlan {
+  const fraction = options.fraction ?? 3;
+  const minHz = options.minHz ?? 20;
+  const candidates = bandsInRange(fraction, minHz, options.maxHz ?? Math.min(20000, 0.45 * rate));
+  const bands: Band[] = candidates.filter((b) => b.upperHz < 0.45 * rate);
+  if (bands.length === 0) {
+    throw new RangeError(`no band between ${minHz} Hz and the rate's limit of ${0.45 * rate} Hz`);
+  }
+  const warnings = [...signalWarnings];
+  if (bands.length < candidates.length) {
+    warnings.push(
+      `bands above ${
+        bands[bands.length - 1].nominalHz
+      } Hz are left out: they reach beyond 0.45 of the sample rate`,
+    );
+  }
+  return {
+    fraction,
+    weighting: options.weighting ?? "Z",
+    method: options.method ?? "fft",
+    references: channels.map((c) => levelReference(c.unit, options.reference)),
+    bands,
+    warnings,
+    metadata: {},
+  };
+}
+
+function fftBlock(rate: number, length: number, options: BandLevelOptions): number {
+  const defaultBlock = 2 ** Math.floor(Math.log2(Math.max(8, length / 4)));
+  return resolveBlock(rate, length, {
+    block: options.block ?? (options.resolution === undefined ? defaultBlock : undefined),
+    resolution: options.resolution,
+  });
+}
+
+function fftBandPowers(estimate: SpectralEstimate, plan: BandPlan): Float64Array[] {
+  const { bands, weighting, warnings, metadata } = plan;
+  const few = bands.filter((b) => (b.upperHz - b.lowerHz) / estimate.df < MIN_LINES_PER_BAND);
+  if (few.length > 0) {
+    warnings.push(
+      `${few.length} band(s) up to ${
+        few[few.length - 1].nominalHz
+      } Hz span fewer than ${MIN_LINES_PER_BAND} lines ` +
+        `at df ${estimate.df} Hz; their levels are unreliable (use a longer block or --method filter)`,
+    );
+  }
+  Object.assign(metadata, {
+    block: estimate.block,
+    df_hz: estimate.df,
+    averages: estimate.averages,
+    window: estimate.window,
+    overlap_samples: estimate.overlapSamples,
+  });
+  return estimate.auto.map((density) =>
+    bandPowersFromDensity(estimate.frequencies, density, estimate.df, bands, weighting).power
+  );
+}
+
+function bandResult(
+  channels: readonly { name: string; unit: string }[],
+  rate: number,
+  plan: BandPlan,
+  powers: Float64Array[],
+): BandLevelResult {
+  const { bands, weighting, references, warnings, method, fraction, metadata } = plan;
   const overall = channels.map((c, i) => {
     const total = powers[i].reduce((s, p) => s + p, 0);
     return {

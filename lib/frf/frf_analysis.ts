@@ -6,12 +6,18 @@
  * @module
  */
 import { QuiverError } from "../errors.ts";
-import { type Channel, type Recording, recordingLength, selectChannels } from "../io/recording.ts";
+import {
+  channelIndices,
+  type Recording,
+  recordingLength,
+  selectChannels,
+} from "../io/recording.ts";
 import type { Table, TableColumn } from "../io/table.ts";
-import { resolveBlock, type SpectralEstimate, spectralEstimate } from "../dsp/spectral_core.ts";
+import { resolveBlock, SpectralAccumulator, type SpectralEstimate } from "../dsp/spectral_core.ts";
 import type { DetrendMode } from "../dsp/detrend.ts";
 import { WINDOW_DEFINITIONS, type WindowName } from "../dsp/windows.ts";
-import { channelsWarnings } from "../io/signal_checks.ts";
+import { ChannelStatistics, channelsWarnings } from "../io/signal_checks.ts";
+import type { RecordingStream } from "../io/recording_stream.ts";
 import { coherence, type Estimator, frfEstimate } from "./estimators.ts";
 import {
   convertFrfForm,
@@ -72,8 +78,8 @@ export interface FrfTableParts {
  */
 export function frfTableParts(
   estimate: SpectralEstimate,
-  input: Channel,
-  outputs: readonly Channel[],
+  input: { name: string; unit: string },
+  outputs: readonly { name: string; unit: string }[],
   estimator: Estimator,
   form: FrfForm | undefined,
 ): FrfTableParts {
@@ -189,27 +195,75 @@ export const SINGLE_AVERAGE_WARNING =
  * ```
  */
 export function frequencyResponse(recording: Recording, options: FrfOptions): FrfResult {
+  checkFrfOptions(options);
+  const channels = selectChannels(recording, [options.input, ...options.outputs]);
+  const length = recordingLength(recording);
+  const accumulator = frfAccumulator(recording.rate, length, channels.length, options);
+  accumulator.push(channels.map((c) => c.data));
+  return frfResult(accumulator.finish(), channels, options, length, channelsWarnings(channels));
+}
+
+/**
+ * The same analysis on a recording read in chunks (memory for one chunk),
+ * with exactly the numbers of {@linkcode frequencyResponse}.
+ *
+ * @throws {StreamFallback} when the file needs the in-memory reader after all.
+ */
+export async function frequencyResponseStream(
+  stream: RecordingStream,
+  options: FrfOptions,
+): Promise<FrfResult> {
+  checkFrfOptions(options);
+  const indices = channelIndices(stream.channels, [options.input, ...options.outputs]);
+  const channels = indices.map((i) => stream.channels[i]);
+  const accumulator = frfAccumulator(stream.rate, stream.length, channels.length, options);
+  const statistics = channels.map(() => new ChannelStatistics());
+  await stream.read(indices, (chunk) => {
+    accumulator.push(chunk);
+    chunk.forEach((c, i) => statistics[i].push(c));
+  });
+  const warnings = channels.flatMap((c, i) => statistics[i].warnings(c));
+  return frfResult(accumulator.finish(), channels, options, stream.length, warnings);
+}
+
+function checkFrfOptions(options: FrfOptions): void {
   if (options.outputs.length === 0) {
     throw new RangeError("name at least one response channel");
   }
   if (options.outputs.includes(options.input)) {
     throw new QuiverError(`"${options.input}" is both input and response`, {}, "usage");
   }
-  const [input, ...outputs] = selectChannels(recording, [options.input, ...options.outputs]);
-  const block = resolveBlock(recording.rate, recordingLength(recording), options);
-  const estimator = options.estimator ?? "h1";
-  const estimate = spectralEstimate([input.data, ...outputs.map((o) => o.data)], {
-    rate: recording.rate,
-    block,
+}
+
+function frfAccumulator(
+  rate: number,
+  length: number,
+  channelCount: number,
+  options: FrfOptions,
+): SpectralAccumulator {
+  return new SpectralAccumulator(channelCount, {
+    rate,
+    block: resolveBlock(rate, length, options),
     overlap: options.overlap,
     window: options.window,
     detrend: options.detrend,
-    pairs: outputs.map((_, i) => [0, i + 1] as const),
+    pairs: Array.from({ length: channelCount - 1 }, (_, i) => [0, i + 1] as const),
   });
+}
+
+function frfResult(
+  estimate: SpectralEstimate,
+  channels: readonly { name: string; unit: string }[],
+  options: FrfOptions,
+  length: number,
+  signalWarnings: string[],
+): FrfResult {
+  const [input, ...outputs] = channels;
+  const estimator = options.estimator ?? "h1";
   const parts = frfTableParts(estimate, input, outputs, estimator, options.form);
   const warnings = [
     ...(estimate.averages === 1 ? [SINGLE_AVERAGE_WARNING] : []),
-    ...channelsWarnings([input, ...outputs]),
+    ...signalWarnings,
     ...(estimate.averages > 1 ? lowCoherenceWarnings(parts.columns) : []),
   ];
   return {
@@ -228,7 +282,7 @@ export function frequencyResponse(recording: Recording, options: FrfOptions): Fr
         window: estimate.window,
         window_source: WINDOW_DEFINITIONS[estimate.window].source,
         detrend: estimate.detrend,
-        record_samples: recordingLength(recording),
+        record_samples: length,
         warnings,
       },
     },

@@ -2,6 +2,8 @@ import { readFileSync } from "node:fs";
 import { mkdtemp, writeFile } from "node:fs/promises";
 import { describe, expect, test } from "vitest";
 import { averagedSpectrum, averagedSpectrumStream } from "../../lib/dsp/averaged_spectrum.ts";
+import { bandLevels, bandLevelsStream } from "../../lib/acoustics/band_analysis.ts";
+import { frequencyResponse, frequencyResponseStream } from "../../lib/frf/frf_analysis.ts";
 import { parseCsvRecording } from "../../lib/io/csv_reader.ts";
 import { readRecordingFile } from "../../lib/io/read_recording.ts";
 import { CHUNK_ROWS, openRecordingStream, StreamFallback } from "../../lib/io/recording_stream.ts";
@@ -61,6 +63,31 @@ describe("chunked reading", () => {
         expect(Array.from(c.values)).toEqual(Array.from(whole.columns[i].values))
       );
     }
+  });
+
+  test("streamed FRF and band levels equal their whole-file results exactly", async () => {
+    const dir = await mkdtemp("/tmp/quiver-stream-");
+    const n = 2 * CHUNK_ROWS + 777;
+    const f = gaussianNoise(3, n), noise = gaussianNoise(4, n);
+    const y = f.map((v, i) => 0.7 * v + 0.2 * (f[i - 1] ?? 0) + 0.1 * noise[i]);
+    const rows = Array.from({ length: n }, (_, i) => `${i / 4096},${f[i]},${y[i]}`);
+    await writeFile(`${dir}/shaker.csv`, `time_s,force [N],acc [m/s^2]\n${rows.join("\n")}\n`);
+    const path = `${dir}/shaker.csv`;
+    const whole = await readRecordingFile(path);
+    const frfOptions = { input: "force", outputs: ["acc"], block: 1024 };
+    const a = await frequencyResponseStream(await openRecordingStream(path), frfOptions);
+    const b = frequencyResponse(whole, frfOptions);
+    expect(a.table.metadata).toEqual(b.table.metadata);
+    a.table.columns.forEach((c, i) =>
+      expect(Array.from(c.values)).toEqual(Array.from(b.table.columns[i].values))
+    );
+    const bandOptions = { channels: ["acc"], weighting: "A" as const };
+    const c = await bandLevelsStream(await openRecordingStream(path), bandOptions);
+    const d = bandLevels(whole, bandOptions);
+    expect(c.table.metadata).toEqual(d.table.metadata);
+    c.table.columns.forEach((col, i) =>
+      expect(Array.from(col.values)).toEqual(Array.from(d.table.columns[i].values))
+    );
   });
 
   test("unusual files give way to the whole-file reader", async () => {
