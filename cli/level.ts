@@ -5,20 +5,13 @@
  */
 import process from "node:process";
 import { z } from "zod";
-import { levelHistory } from "../lib/acoustics/level_analysis.ts";
+import { levelHistory, levelHistoryStream } from "../lib/acoustics/level_analysis.ts";
 import { TIME_WEIGHTINGS } from "../lib/acoustics/time_weighting.ts";
 import { WEIGHTINGS } from "../lib/acoustics/weighting.ts";
-import { readRecordingFile } from "../lib/io/read_recording.ts";
-import {
-  inFile,
-  listOption,
-  numberOption,
-  type OptionSpec,
-  parseCommandArgs,
-  usageError,
-} from "./args.ts";
+import { listOption, numberOption, type OptionSpec, parseCommandArgs, usageError } from "./args.ts";
 import { writeResult } from "./output.ts";
 import {
+  analyseRecording,
   RECORDING_HELP,
   RECORDING_OPTIONS,
   recordingOptionsShape,
@@ -81,15 +74,19 @@ export async function run(argv: readonly string[]): Promise<void> {
   const { positionals, values } = parseCommandArgs(argv, options, schema);
   if (positionals.length !== 1) usageError(`level takes one recording, got ${positionals.length}`);
   const [input] = positionals;
-  const recording = await readRecordingFile(input, toReadOptions(values));
-  const result = inFile(input, () =>
-    levelHistory(recording, {
-      channels: values.channels,
-      weighting: values.weighting,
-      timeWeighting: values["time-weighting"],
-      step: values.step,
-      reference: values.reference,
-    }));
+  const analysis = {
+    channels: values.channels,
+    weighting: values.weighting,
+    timeWeighting: values["time-weighting"],
+    step: values.step,
+    reference: values.reference,
+  };
+  const result = await analyseRecording(
+    input,
+    toReadOptions(values),
+    (stream) => levelHistoryStream(stream, analysis),
+    (recording) => levelHistory(recording, analysis),
+  );
   await writeResult(result.table, input, values);
   for (const w of result.warnings) process.stderr.write(`quiver level: warning: ${w}\n`);
   for (const s of result.summary) {

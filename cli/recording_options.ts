@@ -70,7 +70,9 @@ export async function analyseRecording<T>(
     const stream = await openRecordingStream(input, options);
     return await inFileAsync(input, () => streamed(stream));
   } catch (error) {
-    if (!(error instanceof StreamFallback) && !(error instanceof QuiverError)) throw error;
+    const refusal = error instanceof StreamFallback || error instanceof QuiverError ||
+      error instanceof RangeError;
+    if (!refusal) throw error;
     const recording = await readRecordingFile(input, options);
     return inFile(input, () => whole(recording));
   }

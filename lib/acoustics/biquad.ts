@@ -21,6 +21,38 @@ export interface Complex {
 }
 
 /**
+ * A cascade with its state, for filtering a signal chunk by chunk: the
+ * chunks come out exactly as the whole signal would.
+ */
+export class CascadeFilter {
+  readonly #sections: readonly Biquad[];
+  readonly #state: Float64Array;
+
+  constructor(sections: readonly Biquad[]) {
+    this.#sections = sections;
+    this.#state = new Float64Array(2 * sections.length);
+  }
+
+  /** Filters `x` in place and returns it. */
+  process(x: Float64Array): Float64Array {
+    this.#sections.forEach(({ b0, b1, b2, a1, a2 }, k) => {
+      let s1 = this.#state[2 * k];
+      let s2 = this.#state[2 * k + 1];
+      for (let n = 0; n < x.length; n++) {
+        const input = x[n];
+        const output = b0 * input + s1;
+        s1 = b1 * input - a1 * output + s2;
+        s2 = b2 * input - a2 * output;
+        x[n] = output;
+      }
+      this.#state[2 * k] = s1;
+      this.#state[2 * k + 1] = s2;
+    });
+    return x;
+  }
+}
+
+/**
  * Filters `x` through the cascade (transposed direct form II), starting at
  * rest. Returns a new array.
  *
@@ -32,19 +64,7 @@ export interface Complex {
  * ```
  */
 export function filterCascade(x: Float64Array, sections: readonly Biquad[]): Float64Array {
-  const y = x.slice();
-  for (const { b0, b1, b2, a1, a2 } of sections) {
-    let s1 = 0;
-    let s2 = 0;
-    for (let n = 0; n < y.length; n++) {
-      const input = y[n];
-      const output = b0 * input + s1;
-      s1 = b1 * input - a1 * output + s2;
-      s2 = b2 * input - a2 * output;
-      y[n] = output;
-    }
-  }
-  return y;
+  return new CascadeFilter(sections).process(x.slice());
 }
 
 /**

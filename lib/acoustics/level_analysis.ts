@@ -7,15 +7,16 @@
  *
  * @module
  */
-import { type Recording, selectChannels } from "../io/recording.ts";
+import { channelIndices, type Recording, selectChannels } from "../io/recording.ts";
 import type { Table, TableColumn } from "../io/table.ts";
-import { channelsWarnings } from "../io/signal_checks.ts";
-import { filterCascade } from "./biquad.ts";
+import { ChannelStatistics, channelsWarnings } from "../io/signal_checks.ts";
+import type { RecordingStream } from "../io/recording_stream.ts";
+import { CascadeFilter } from "./biquad.ts";
 import { levelDb, levelReference, levelUnit } from "./levels.ts";
 import {
   type LevelStatistics,
   levelStatistics,
-  timeWeightedMeanSquare,
+  TimeWeightedMeter,
   type TimeWeighting,
 } from "./time_weighting.ts";
 import { type Weighting, weightingFilter, weightingFilterLimitHz } from "./weighting.ts";
@@ -50,34 +51,86 @@ export interface LevelResult {
  * @throws {RangeError} for a rate too low for the weighting filter or a bad step.
  */
 export function levelHistory(recording: Recording, options: LevelOptions = {}): LevelResult {
+  const channels = selectChannels(recording, options.channels);
+  const meters = levelMeters(channels, recording.rate, options);
+  meters.forEach((m, i) => m.push(channels[i].data.slice()));
+  return levelResult(
+    channels,
+    recording.rate,
+    recording.startTime,
+    options,
+    meters,
+    channelsWarnings(channels),
+  );
+}
+
+/**
+ * The same analysis on a recording read in chunks (memory for one chunk and
+ * the readings), with exactly the numbers of {@linkcode levelHistory}.
+ */
+export async function levelHistoryStream(
+  stream: RecordingStream,
+  options: LevelOptions = {},
+): Promise<LevelResult> {
+  const indices = channelIndices(stream.channels, options.channels);
+  const channels = indices.map((i) => stream.channels[i]);
+  const meters = levelMeters(channels, stream.rate, options);
+  const statistics = channels.map(() => new ChannelStatistics());
+  await stream.read(indices, (chunk) => {
+    chunk.forEach((c, i) => {
+      statistics[i].push(c);
+      meters[i].push(c.slice());
+    });
+  });
+  const warnings = channels.flatMap((c, i) => statistics[i].warnings(c));
+  return levelResult(channels, stream.rate, stream.startTime, options, meters, warnings);
+}
+
+/** A weighting filter and a time-weighted meter for one channel. */
+interface ChannelMeter {
+  push(x: Float64Array): void;
+  finish(): { readings: Float64Array; meanSquare: number };
+}
+
+function levelMeters(
+  channels: readonly { name: string; unit: string }[],
+  rate: number,
+  options: LevelOptions,
+): ChannelMeter[] {
+  const stepSeconds = options.step ?? 0.1;
+  const step = Math.round(stepSeconds * rate);
+  if (step < 1) throw new RangeError(`the step of ${stepSeconds} s is shorter than one sample`);
+  const sections = weightingFilter(options.weighting ?? "A", rate);
+  for (const c of channels) levelReference(c.unit, options.reference); // refuse before the work
+  return channels.map(() => {
+    const filter = new CascadeFilter(sections);
+    const meter = new TimeWeightedMeter(rate, options.timeWeighting ?? "fast", step);
+    return { push: (x) => meter.push(filter.process(x)), finish: () => meter.finish() };
+  });
+}
+
+function levelResult(
+  channels: readonly { name: string; unit: string }[],
+  rate: number,
+  startTime: number,
+  options: LevelOptions,
+  meters: readonly ChannelMeter[],
+  warnings: string[],
+): LevelResult {
   const weighting = options.weighting ?? "A";
   const timeWeighting = options.timeWeighting ?? "fast";
-  const stepSeconds = options.step ?? 0.1;
-  const step = Math.round(stepSeconds * recording.rate);
-  if (step < 1) throw new RangeError(`the step of ${stepSeconds} s is shorter than one sample`);
-  const channels = selectChannels(recording, options.channels);
-  const sections = weightingFilter(weighting, recording.rate);
+  const step = Math.round((options.step ?? 0.1) * rate);
   const columns: TableColumn[] = [];
-  const summary = channels.map((c) => {
+  const summary = channels.map((c, i) => {
     const reference = levelReference(c.unit, options.reference);
-    const weighted = filterCascade(c.data, sections);
-    const meanSquares = timeWeightedMeanSquare(weighted, recording.rate, timeWeighting, step);
-    const levels = meanSquares.map((m) => levelDb(m, reference));
+    const { readings, meanSquare } = meters[i].finish();
+    const levels = readings.map((m) => levelDb(m, reference));
     const unit = levelUnit(weighting, reference, c.unit);
     columns.push({ name: c.name, unit, values: levels });
-    let total = 0;
-    for (let n = 0; n < weighted.length; n++) total += weighted[n] * weighted[n];
-    return {
-      channel: c.name,
-      unit,
-      ...levelStatistics(levelDb(total / weighted.length, reference), levels),
-    };
+    return { channel: c.name, unit, ...levelStatistics(levelDb(meanSquare, reference), levels) };
   });
   const count = columns[0]?.values.length ?? 0;
-  const time = new Float64Array(count).map((_, j) =>
-    recording.startTime + ((j + 1) * step) / recording.rate
-  );
-  const warnings = channelsWarnings(channels);
+  const time = new Float64Array(count).map((_, j) => startTime + ((j + 1) * step) / rate);
   return {
     warnings,
     summary,
@@ -87,9 +140,9 @@ export function levelHistory(recording: Recording, options: LevelOptions = {}): 
         analysis: "level",
         weighting,
         time_weighting: timeWeighting,
-        step_s: step / recording.rate,
-        rate_hz: recording.rate,
-        weighting_filter_within_0_5_db_up_to_hz: weightingFilterLimitHz(weighting, recording.rate),
+        step_s: step / rate,
+        rate_hz: rate,
+        weighting_filter_within_0_5_db_up_to_hz: weightingFilterLimitHz(weighting, rate),
         summary: summary.map((s) => ({
           channel: s.channel,
           unit: s.unit,

@@ -34,6 +34,96 @@ export function parseTimeWeighting(name: string): TimeWeighting {
 }
 
 /**
+ * The time-weighted mean square of a signal fed in chunks, read at the end
+ * of every `step` samples (for `none`: the mean square over each step), and
+ * the mean square of the whole signal for Leq. Feeding the whole signal at
+ * once or in chunks gives the same readings.
+ */
+export class TimeWeightedMeter {
+  readonly #weighting: TimeWeighting;
+  readonly #step: number;
+  readonly #alpha: number;
+  readonly #warm: Float64Array;
+  #warmFilled = 0;
+  #started = false;
+  #y = 0;
+  #n = 0;
+  #stepSum = 0;
+  #total = 0;
+  readonly #readings: number[] = [];
+
+  /**
+   * @throws {RangeError} for a step below one sample.
+   */
+  constructor(rate: number, weighting: TimeWeighting, step: number) {
+    if (!Number.isInteger(step) || step < 1) {
+      throw new RangeError(`step must be at least one sample, got ${step}`);
+    }
+    this.#weighting = weighting;
+    this.#step = step;
+    const tau = weighting === "none" ? 0 : TIME_CONSTANTS_S[weighting];
+    this.#alpha = weighting === "none" ? 0 : 1 - Math.exp(-1 / (tau * rate));
+    this.#warm = new Float64Array(weighting === "none" ? 0 : Math.max(1, Math.round(tau * rate)));
+  }
+
+  /** Adds the next samples. */
+  push(x: Float64Array): void {
+    for (let i = 0; i < x.length; i++) this.#total += x[i] * x[i];
+    if (this.#weighting === "none") {
+      for (let i = 0; i < x.length; i++) {
+        this.#stepSum += x[i] * x[i];
+        if (++this.#n % this.#step === 0) {
+          this.#readings.push(this.#stepSum / this.#step);
+          this.#stepSum = 0;
+        }
+      }
+      return;
+    }
+    let i = 0;
+    if (!this.#started) {
+      const take = Math.min(x.length, this.#warm.length - this.#warmFilled);
+      this.#warm.set(x.subarray(0, take), this.#warmFilled);
+      this.#warmFilled += take;
+      i = take;
+      if (this.#warmFilled < this.#warm.length) return;
+      this.#start(this.#warm);
+    }
+    this.#run(x.subarray(i));
+  }
+
+  #start(first: Float64Array): void {
+    this.#started = true;
+    let y = 0;
+    for (let n = 0; n < first.length; n++) y += (first[n] * first[n]) / first.length;
+    this.#y = y;
+    this.#run(first);
+  }
+
+  #run(x: Float64Array): void {
+    let y = this.#y;
+    for (let i = 0; i < x.length; i++) {
+      y += this.#alpha * (x[i] * x[i] - y);
+      if (++this.#n % this.#step === 0) this.#readings.push(y);
+    }
+    this.#y = y;
+  }
+
+  /** The readings, and the mean square of everything pushed. */
+  finish(): { readings: Float64Array; meanSquare: number; samples: number } {
+    // A record shorter than the warm-up window warms up on what there is.
+    if (this.#weighting !== "none" && !this.#started && this.#warmFilled > 0) {
+      this.#start(this.#warm.subarray(0, this.#warmFilled));
+    }
+    const samples = this.#n;
+    return {
+      readings: new Float64Array(this.#readings),
+      meanSquare: this.#total / samples,
+      samples,
+    };
+  }
+}
+
+/**
  * The time-weighted mean square of `x`, sampled at the end of every `step`
  * samples (for `none`: the mean square over each step).
  *
@@ -53,29 +143,9 @@ export function timeWeightedMeanSquare(
   weighting: TimeWeighting,
   step: number,
 ): Float64Array {
-  if (!Number.isInteger(step) || step < 1) {
-    throw new RangeError(`step must be at least one sample, got ${step}`);
-  }
-  const count = Math.floor(x.length / step);
-  const out = new Float64Array(count);
-  if (weighting === "none") {
-    for (let j = 0; j < count; j++) {
-      let sum = 0;
-      for (let n = j * step; n < (j + 1) * step; n++) sum += x[n] * x[n];
-      out[j] = sum / step;
-    }
-    return out;
-  }
-  const tau = TIME_CONSTANTS_S[weighting];
-  const alpha = 1 - Math.exp(-1 / (tau * rate));
-  const warm = Math.max(1, Math.min(x.length, Math.round(tau * rate)));
-  let y = 0;
-  for (let n = 0; n < warm; n++) y += (x[n] * x[n]) / warm;
-  for (let n = 0; n < count * step; n++) {
-    y += alpha * (x[n] * x[n] - y);
-    if ((n + 1) % step === 0) out[(n + 1) / step - 1] = y;
-  }
-  return out;
+  const meter = new TimeWeightedMeter(rate, weighting, step);
+  meter.push(x);
+  return meter.finish().readings;
 }
 
 /** Summary statistics of a level history. */

@@ -3,6 +3,7 @@ import { mkdtemp, writeFile } from "node:fs/promises";
 import { describe, expect, test } from "vitest";
 import { averagedSpectrum, averagedSpectrumStream } from "../../lib/dsp/averaged_spectrum.ts";
 import { bandLevels, bandLevelsStream } from "../../lib/acoustics/band_analysis.ts";
+import { levelHistory, levelHistoryStream } from "../../lib/acoustics/level_analysis.ts";
 import { frequencyResponse, frequencyResponseStream } from "../../lib/frf/frf_analysis.ts";
 import { parseCsvRecording } from "../../lib/io/csv_reader.ts";
 import { readRecordingFile } from "../../lib/io/read_recording.ts";
@@ -88,6 +89,20 @@ describe("chunked reading", () => {
     c.table.columns.forEach((col, i) =>
       expect(Array.from(col.values)).toEqual(Array.from(d.table.columns[i].values))
     );
+    for (const timeWeighting of ["fast", "slow", "none"] as const) {
+      const levelOptions = {
+        channels: ["acc"],
+        weighting: "Z" as const,
+        timeWeighting,
+        reference: 1,
+      };
+      const e = await levelHistoryStream(await openRecordingStream(path), levelOptions);
+      const g = levelHistory(whole, levelOptions);
+      expect(e.table.metadata).toEqual(g.table.metadata);
+      e.table.columns.forEach((col, i) =>
+        expect(Array.from(col.values)).toEqual(Array.from(g.table.columns[i].values))
+      );
+    }
   });
 
   test("unusual files give way to the whole-file reader", async () => {
