@@ -397,9 +397,21 @@ export class SpectralAccumulator {
     const scratch = this.#scratch;
     const window = this.#window;
     for (let c = 0; c < this.#channelCount; c++) {
-      scratch.set(source[c]);
-      detrendInPlace(scratch, detrend);
-      for (let i = 0; i < scratch.length; i++) scratch[i] *= window[i];
+      const x = source[c];
+      const n = scratch.length;
+      if (detrend === "linear") {
+        scratch.set(x);
+        detrendInPlace(scratch, detrend);
+        for (let i = 0; i < n; i++) scratch[i] *= window[i];
+      } else {
+        // Mean removal and window in one pass: the same operations, (x − mean)·w.
+        let mean = 0;
+        if (detrend === "mean") {
+          for (let i = 0; i < n; i++) mean += x[i];
+          mean /= n;
+        }
+        for (let i = 0; i < n; i++) scratch[i] = (x[i] - mean) * window[i];
+      }
       this.#plan.forward(scratch, this.#re[c], this.#im[c]);
     }
     const first = this.#segments === 0;
