@@ -98,7 +98,6 @@ function axes(
   y: ReturnType<typeof makeScale>,
   xAxis: Axis,
   yAxis: Axis,
-  width: number,
   height: number,
 ): string {
   const [x0, x1] = x.range();
@@ -139,7 +138,6 @@ function axes(
       (y0 + y1) / 2
     }) rotate(-90)" text-anchor="middle" fill="#22313f">${escapeXml(yAxis.label)}</text>`,
   );
-  void width;
   return parts.join("\n");
 }
 
@@ -214,7 +212,7 @@ export function linePlot(plot: LinePlot): string {
     width,
     height,
     plot.title,
-    `${axes(x, y, plot.x, plot.y, width, height)}\n${paths.join("\n")}\n${
+    `${axes(x, y, plot.x, plot.y, height)}\n${paths.join("\n")}\n${
       legend(plot.series, width - MARGIN.right, MARGIN.top)
     }`,
   );
