@@ -27,8 +27,8 @@ import {
 } from "../io/recording.ts";
 import type { Table, TableColumn } from "../io/table.ts";
 import { resolveBlock, SpectralAccumulator, type SpectralEstimate } from "../dsp/spectral_core.ts";
-import { type RecordingStream, StreamFallback } from "../io/recording_stream.ts";
-import { ChannelStatistics, channelsWarnings } from "../io/signal_checks.ts";
+import { readChecked, type RecordingStream, StreamFallback } from "../io/recording_stream.ts";
+import { channelsWarnings } from "../io/signal_checks.ts";
 import { type Band, type BandFraction, bandsInRange } from "./bands.ts";
 import { bandPowersFromDensity } from "./band_synthesis.ts";
 import { filterBankPowers } from "./filter_bank.ts";
@@ -133,12 +133,8 @@ export async function bandLevelsStream(
     block: fftBlock(stream.rate, stream.length, options),
   });
   const plan = bandPlan(channels, stream.rate, options, []);
-  const statistics = channels.map(() => new ChannelStatistics());
-  await stream.read(indices, (chunk) => {
-    accumulator.push(chunk);
-    chunk.forEach((c, i) => statistics[i].push(c));
-  });
-  plan.warnings.unshift(...channels.flatMap((c, i) => statistics[i].warnings(c)));
+  const warnings = await readChecked(stream, indices, (chunk) => accumulator.push(chunk));
+  plan.warnings.unshift(...warnings);
   return bandResult(channels, stream.rate, plan, fftBandPowers(accumulator.finish(), plan));
 }
 

@@ -9,8 +9,8 @@
  */
 import { channelIndices, type Recording, selectChannels } from "../io/recording.ts";
 import type { Table, TableColumn } from "../io/table.ts";
-import { ChannelStatistics, channelsWarnings } from "../io/signal_checks.ts";
-import type { RecordingStream } from "../io/recording_stream.ts";
+import { channelsWarnings } from "../io/signal_checks.ts";
+import { readChecked, type RecordingStream } from "../io/recording_stream.ts";
 import { CascadeFilter } from "./biquad.ts";
 import { levelDb, levelReference, levelUnit } from "./levels.ts";
 import {
@@ -75,14 +75,12 @@ export async function levelHistoryStream(
   const indices = channelIndices(stream.channels, options.channels);
   const channels = indices.map((i) => stream.channels[i]);
   const meters = levelMeters(channels, stream.rate, options);
-  const statistics = channels.map(() => new ChannelStatistics());
-  await stream.read(indices, (chunk) => {
-    chunk.forEach((c, i) => {
-      statistics[i].push(c);
-      meters[i].push(c.slice());
-    });
-  });
-  const warnings = channels.flatMap((c, i) => statistics[i].warnings(c));
+  // The chunks are the reader's reused buffers: filtering them in place copies nothing.
+  const warnings = await readChecked(
+    stream,
+    indices,
+    (chunk) => chunk.forEach((c, i) => meters[i].push(c)),
+  );
   return levelResult(channels, stream.rate, stream.startTime, options, meters, warnings);
 }
 

@@ -11,8 +11,8 @@ import {
   selectChannels,
 } from "../io/recording.ts";
 import type { Table, TableColumn } from "../io/table.ts";
-import { ChannelStatistics, channelsWarnings } from "../io/signal_checks.ts";
-import type { RecordingStream } from "../io/recording_stream.ts";
+import { channelsWarnings } from "../io/signal_checks.ts";
+import { readChecked, type RecordingStream } from "../io/recording_stream.ts";
 import {
   resolveBlock,
   SpectralAccumulator,
@@ -84,12 +84,7 @@ export async function averagedSpectrumStream(
   const indices = channelIndices(stream.channels, options.channels);
   const channels = indices.map((i) => stream.channels[i]);
   const accumulator = spectrumAccumulator(stream.rate, stream.length, channels.length, options);
-  const statistics = channels.map(() => new ChannelStatistics());
-  await stream.read(indices, (chunk) => {
-    accumulator.push(chunk);
-    chunk.forEach((c, i) => statistics[i].push(c));
-  });
-  const warnings = channels.flatMap((c, i) => statistics[i].warnings(c));
+  const warnings = await readChecked(stream, indices, (chunk) => accumulator.push(chunk));
   return spectrumTable(
     accumulator.finish(),
     channels,

@@ -16,8 +16,8 @@ import type { Table, TableColumn } from "../io/table.ts";
 import { resolveBlock, SpectralAccumulator, type SpectralEstimate } from "../dsp/spectral_core.ts";
 import type { DetrendMode } from "../dsp/detrend.ts";
 import { WINDOW_DEFINITIONS, type WindowName } from "../dsp/windows.ts";
-import { ChannelStatistics, channelsWarnings } from "../io/signal_checks.ts";
-import type { RecordingStream } from "../io/recording_stream.ts";
+import { channelsWarnings } from "../io/signal_checks.ts";
+import { readChecked, type RecordingStream } from "../io/recording_stream.ts";
 import { coherence, type Estimator, frfEstimate } from "./estimators.ts";
 import {
   convertFrfForm,
@@ -217,12 +217,7 @@ export async function frequencyResponseStream(
   const indices = channelIndices(stream.channels, [options.input, ...options.outputs]);
   const channels = indices.map((i) => stream.channels[i]);
   const accumulator = frfAccumulator(stream.rate, stream.length, channels.length, options);
-  const statistics = channels.map(() => new ChannelStatistics());
-  await stream.read(indices, (chunk) => {
-    accumulator.push(chunk);
-    chunk.forEach((c, i) => statistics[i].push(c));
-  });
-  const warnings = channels.flatMap((c, i) => statistics[i].warnings(c));
+  const warnings = await readChecked(stream, indices, (chunk) => accumulator.push(chunk));
   return frfResult(accumulator.finish(), channels, options, stream.length, warnings);
 }
 

@@ -27,6 +27,7 @@ import { parseHeaderCell, REFERENCE_STEPS, TIME_NAMES } from "./csv_reader.ts";
 import type { ReadRecordingOptions } from "./read_recording.ts";
 import type { ChannelRole } from "./recording.ts";
 import { decodeWavFrames, looksLikeWav, parseWav } from "./wav.ts";
+import { ChannelStatistics } from "./signal_checks.ts";
 import { readFile } from "node:fs/promises";
 
 /** Thrown when a file needs the in-memory reader after all. */
@@ -434,6 +435,26 @@ async function openWavStream(
   } finally {
     await handle.close();
   }
+}
+
+/**
+ * Reads the channels with the given indices through `onChunk` and returns
+ * their signal warnings (signal_checks.ts). The statistics see each chunk
+ * before `onChunk`, which may then change it in place.
+ *
+ * @throws {StreamFallback} as {@linkcode RecordingStream.read} does.
+ */
+export async function readChecked(
+  stream: RecordingStream,
+  indices: readonly number[],
+  onChunk: (chunk: Float64Array[]) => void,
+): Promise<string[]> {
+  const statistics = indices.map(() => new ChannelStatistics());
+  await stream.read(indices, (chunk) => {
+    chunk.forEach((c, i) => statistics[i].push(c));
+    onChunk(chunk);
+  });
+  return indices.flatMap((channel, i) => statistics[i].warnings(stream.channels[channel]));
 }
 
 /**

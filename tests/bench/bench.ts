@@ -17,6 +17,7 @@ import { fileURLToPath } from "node:url";
 import { spectralEstimate } from "../../lib/dsp/spectral_core.ts";
 import { openRecordingStream } from "../../lib/io/recording_stream.ts";
 import { encodeWav } from "../../lib/io/wav.ts";
+import { uniformGenerator } from "../helpers/random.ts";
 
 const DIR = "out/bench";
 const MAIN = fileURLToPath(new URL("../../cli/main.ts", import.meta.url));
@@ -25,14 +26,10 @@ const RUNS = 5;
 const BLOCK = 8192; // 4096 lines
 const median = (v: number[]) => v.slice().sort((a, b) => a - b)[Math.floor(v.length / 2)];
 
+/** Uniform noise on [−0.5, 0.5) from a seed (tests/helpers/random.ts). */
 function seeded(seed: number): () => number {
-  let s = seed >>> 0;
-  return () => {
-    s = (s + 0x6d2b79f5) >>> 0;
-    let t = Math.imul(s ^ (s >>> 15), s | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296 - 0.5;
-  };
+  const uniform = uniformGenerator(seed);
+  return () => uniform() - 0.5;
 }
 
 async function writeCsv(path: string, samples: number): Promise<void> {

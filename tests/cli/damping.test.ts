@@ -1,32 +1,30 @@
 import { mkdtemp, readFile, writeFile } from "node:fs/promises";
 import { beforeAll, describe, expect, test } from "vitest";
 import { runQuiver } from "../helpers/cli.ts";
+import { recordingCsv } from "../helpers/csv.ts";
 import { RATE, sixHits } from "../helpers/hammer_recording.ts";
 import { type Mode, receptance } from "../helpers/modal.ts";
 
 describe("quiver damping", () => {
   let dir: string;
-  beforeAll(async () => {
-    dir = await mkdtemp("/tmp/quiver-damping-");
-    const rec = sixHits();
-    const lines = Array.from(
-      rec.channels[0].data,
-      (_, i) => rec.channels.map((c) => c.data[i]).join(","),
-    );
-    await writeFile(
-      `${dir}/impact.csv`,
-      `hammer [N],bracket_a [m],bracket_b [m]\n${lines.join("\n")}\n`,
-    );
-  });
-
-  test("reads a hammer FRF with its sidecar and corrects the exponential window", async () => {
-    const h = runQuiver([
+  /** quiver hammer on the six-hit recording, with more arguments. */
+  const hammer = (args: string[]) =>
+    runQuiver([
       "hammer",
       `${dir}/impact.csv`,
       "--rate",
       String(RATE),
       "--force",
       "hammer",
+      ...args,
+    ]);
+  beforeAll(async () => {
+    dir = await mkdtemp("/tmp/quiver-damping-");
+    await writeFile(`${dir}/impact.csv`, recordingCsv(sixHits()));
+  });
+
+  test("reads a hammer FRF with its sidecar and corrects the exponential window", async () => {
+    const h = hammer([
       "--outputs",
       "bracket_a",
       "--exp-window",

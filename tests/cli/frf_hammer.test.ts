@@ -6,6 +6,7 @@ import { parseCsvRecording } from "../../lib/io/csv_reader.ts";
 import { formatCsv } from "../../lib/io/table.ts";
 import { assertClose } from "../helpers/assert_close.ts";
 import { runQuiver } from "../helpers/cli.ts";
+import { recordingCsv } from "../helpers/csv.ts";
 import { fixturePath } from "../helpers/fixtures.ts";
 import { RATE, sixHits } from "../helpers/hammer_recording.ts";
 
@@ -133,25 +134,24 @@ describe("quiver frf", () => {
 
 describe("quiver hammer", () => {
   let dir: string;
-  beforeAll(async () => {
-    dir = await mkdtemp("/tmp/quiver-hammer-");
-    const rec = sixHits();
-    const rows = rec.channels[0].data.map((_, i) => i);
-    const lines = Array.from(rows, (i) => rec.channels.map((c) => c.data[i]).join(","));
-    await writeFile(
-      `${dir}/impact.csv`,
-      `hammer [N],bracket_a [m],bracket_b [m]\n${lines.join("\n")}\n`,
-    );
-  });
-
-  test("classifies the hits, logs them and averages the accepted ones", async () => {
-    const r = runQuiver([
+  /** quiver hammer on the six-hit recording, with more arguments. */
+  const hammer = (args: string[]) =>
+    runQuiver([
       "hammer",
       `${dir}/impact.csv`,
       "--rate",
       String(RATE),
       "--force",
       "hammer",
+      ...args,
+    ]);
+  beforeAll(async () => {
+    dir = await mkdtemp("/tmp/quiver-hammer-");
+    await writeFile(`${dir}/impact.csv`, recordingCsv(sixHits()));
+  });
+
+  test("classifies the hits, logs them and averages the accepted ones", async () => {
+    const r = hammer([
       "--outputs",
       "bracket_a,bracket_b",
       "--exp-window",
@@ -180,13 +180,7 @@ describe("quiver hammer", () => {
   });
 
   test("a CSV result gets a metadata sidecar carrying the exponential window", async () => {
-    const r = runQuiver([
-      "hammer",
-      `${dir}/impact.csv`,
-      "--rate",
-      String(RATE),
-      "--force",
-      "hammer",
+    const r = hammer([
       "--outputs",
       "bracket_a",
       "--exp-end",
@@ -201,13 +195,7 @@ describe("quiver hammer", () => {
   });
 
   test("--exp-window and --exp-end together are refused", () => {
-    const r = runQuiver([
-      "hammer",
-      `${dir}/impact.csv`,
-      "--rate",
-      String(RATE),
-      "--force",
-      "hammer",
+    const r = hammer([
       "--outputs",
       "bracket_a",
       "--exp-window",

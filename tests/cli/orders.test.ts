@@ -1,6 +1,7 @@
 import { mkdtemp, readFile, writeFile } from "node:fs/promises";
 import { beforeAll, describe, expect, test } from "vitest";
 import { runQuiver } from "../helpers/cli.ts";
+import { recordingCsv } from "../helpers/csv.ts";
 import {
   linearProfile,
   type OrderContent,
@@ -25,11 +26,7 @@ describe("quiver orders", () => {
   beforeAll(async () => {
     dir = await mkdtemp("/tmp/quiver-orders-");
     const rec = runUpRecording(profile, RATE, 20, 2, CONTENT, { noise: 0.02 });
-    const lines = Array.from(
-      rec.channels[0].data,
-      (_, i) => `${rec.channels[0].data[i]},${rec.channels[1].data[i]}`,
-    );
-    await writeFile(`${dir}/runup.csv`, `tacho [V],mount_acc [m/s^2]\n${lines.join("\n")}\n`);
+    await writeFile(`${dir}/runup.csv`, recordingCsv(rec));
   });
 
   test("a 900→4800 rpm run-up with a 2-pulse TTL tacho: rpm within 0.5 %, cuts within 0.5 and 1 dB", async () => {

@@ -12,6 +12,12 @@ export function uniformGenerator(seed: number): () => number {
   };
 }
 
+/** A standard-normal generator from a 32-bit seed (Box–Muller, one value per call). */
+export function gaussianGenerator(seed: number): () => number {
+  const uniform = uniformGenerator(seed);
+  return () => Math.sqrt(-2 * Math.log(1 - uniform())) * Math.cos(2 * Math.PI * uniform());
+}
+
 /** `length` standard-normal samples from `seed`. */
 export function gaussianNoise(seed: number, length: number): Float64Array {
   const uniform = uniformGenerator(seed);
