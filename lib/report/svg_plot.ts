@@ -218,6 +218,27 @@ export function linePlot(plot: LinePlot): string {
   );
 }
 
+/** The plot area's outline and the two axis labels, for a plot area ending at `right` px from the edge. */
+function plotFrame(
+  width: number,
+  height: number,
+  right: number,
+  xLabel: string,
+  yLabel: string,
+): string {
+  return [
+    `<rect x="${MARGIN.left}" y="${MARGIN.top}" width="${width - right - MARGIN.left}" height="${
+      height - MARGIN.top - MARGIN.bottom
+    }" fill="none" stroke="#5b6b7b"/>`,
+    `<text x="${(MARGIN.left + width - right) / 2}" y="${
+      height - 8
+    }" text-anchor="middle" fill="#22313f">${escapeXml(xLabel)}</text>`,
+    `<text transform="translate(16 ${
+      (height - MARGIN.bottom + MARGIN.top) / 2
+    }) rotate(-90)" text-anchor="middle" fill="#22313f">${escapeXml(yLabel)}</text>`,
+  ].join("\n");
+}
+
 /** A bar spectrum (e.g. one-third-octave levels). */
 export interface BarPlot {
   readonly title: string;
@@ -293,21 +314,7 @@ export function barPlot(plot: BarPlot): string {
       );
     });
   });
-  parts.push(
-    `<rect x="${MARGIN.left}" y="${MARGIN.top}" width="${
-      width - MARGIN.left - MARGIN.right
-    }" height="${height - MARGIN.top - MARGIN.bottom}" fill="none" stroke="#5b6b7b"/>`,
-  );
-  parts.push(
-    `<text x="${(MARGIN.left + width - MARGIN.right) / 2}" y="${
-      height - 8
-    }" text-anchor="middle" fill="#22313f">${escapeXml(plot.xLabel)}</text>`,
-  );
-  parts.push(
-    `<text transform="translate(16 ${
-      (height - MARGIN.bottom + MARGIN.top) / 2
-    }) rotate(-90)" text-anchor="middle" fill="#22313f">${escapeXml(plot.yLabel)}</text>`,
-  );
+  parts.push(plotFrame(width, height, MARGIN.right, plot.xLabel, plot.yLabel));
   return frame(
     width,
     height,
@@ -421,20 +428,6 @@ export function heatMap(plot: HeatMap): string {
   parts.push(
     `<text x="${barX}" y="${MARGIN.top - 6}" fill="#22313f">${escapeXml(plot.zLabel)}</text>`,
   );
-  parts.push(
-    `<rect x="${MARGIN.left}" y="${MARGIN.top}" width="${width - right - MARGIN.left}" height="${
-      height - MARGIN.top - MARGIN.bottom
-    }" fill="none" stroke="#5b6b7b"/>`,
-  );
-  parts.push(
-    `<text x="${(MARGIN.left + width - right) / 2}" y="${
-      height - 8
-    }" text-anchor="middle" fill="#22313f">${escapeXml(plot.xLabel)}</text>`,
-  );
-  parts.push(
-    `<text transform="translate(16 ${
-      (height - MARGIN.bottom + MARGIN.top) / 2
-    }) rotate(-90)" text-anchor="middle" fill="#22313f">${escapeXml(plot.yLabel)}</text>`,
-  );
+  parts.push(plotFrame(width, height, right, plot.xLabel, plot.yLabel));
   return frame(width, height, plot.title, parts.join("\n"));
 }

@@ -1,26 +1,15 @@
 import { mkdtemp, readFile, writeFile } from "node:fs/promises";
 import { beforeAll, describe, expect, test } from "vitest";
-import { runQuiver } from "../helpers/cli.ts";
-import { recordingCsv } from "../helpers/csv.ts";
-import { RATE, sixHits } from "../helpers/hammer_recording.ts";
+import { type CliResult, runQuiver } from "../helpers/cli.ts";
+import { sixHitsCli } from "../helpers/hammer_recording.ts";
 import { type Mode, receptance } from "../helpers/modal.ts";
 
 describe("quiver damping", () => {
   let dir: string;
-  /** quiver hammer on the six-hit recording, with more arguments. */
-  const hammer = (args: string[]) =>
-    runQuiver([
-      "hammer",
-      `${dir}/impact.csv`,
-      "--rate",
-      String(RATE),
-      "--force",
-      "hammer",
-      ...args,
-    ]);
+  let hammer: (args: string[]) => CliResult;
   beforeAll(async () => {
     dir = await mkdtemp("/tmp/quiver-damping-");
-    await writeFile(`${dir}/impact.csv`, recordingCsv(sixHits()));
+    hammer = await sixHitsCli(dir);
   });
 
   test("reads a hammer FRF with its sidecar and corrects the exponential window", async () => {

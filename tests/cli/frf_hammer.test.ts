@@ -5,10 +5,9 @@ import { frequencyResponse } from "../../lib/frf/frf_analysis.ts";
 import { parseCsvRecording } from "../../lib/io/csv_reader.ts";
 import { formatCsv } from "../../lib/io/table.ts";
 import { assertClose } from "../helpers/assert_close.ts";
-import { runQuiver } from "../helpers/cli.ts";
-import { recordingCsv } from "../helpers/csv.ts";
+import { type CliResult, runQuiver } from "../helpers/cli.ts";
 import { fixturePath } from "../helpers/fixtures.ts";
-import { RATE, sixHits } from "../helpers/hammer_recording.ts";
+import { sixHitsCli } from "../helpers/hammer_recording.ts";
 
 const shaker = fixturePath("recordings/shaker_random_3ch.csv");
 const shakerArgs = [
@@ -134,20 +133,10 @@ describe("quiver frf", () => {
 
 describe("quiver hammer", () => {
   let dir: string;
-  /** quiver hammer on the six-hit recording, with more arguments. */
-  const hammer = (args: string[]) =>
-    runQuiver([
-      "hammer",
-      `${dir}/impact.csv`,
-      "--rate",
-      String(RATE),
-      "--force",
-      "hammer",
-      ...args,
-    ]);
+  let hammer: (args: string[]) => CliResult;
   beforeAll(async () => {
     dir = await mkdtemp("/tmp/quiver-hammer-");
-    await writeFile(`${dir}/impact.csv`, recordingCsv(sixHits()));
+    hammer = await sixHitsCli(dir);
   });
 
   test("classifies the hits, logs them and averages the accepted ones", async () => {

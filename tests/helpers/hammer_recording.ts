@@ -1,5 +1,8 @@
 /** A synthesised impact test on our own two-mode bracket (invented for the tests). */
+import { writeFile } from "node:fs/promises";
 import type { Recording } from "../../lib/io/recording.ts";
+import { type CliResult, runQuiver } from "./cli.ts";
+import { recordingCsv } from "./csv.ts";
 import { gaussianNoise } from "./random.ts";
 import { type Mode, simulateReceptance } from "./modal.ts";
 
@@ -49,4 +52,22 @@ export function sixHits(): Recording {
       },
     ],
   };
+}
+
+/**
+ * Writes the six-hit recording as CSV into `dir` and returns a runner of
+ * `quiver hammer` on it with more arguments (for CLI tests).
+ */
+export async function sixHitsCli(dir: string): Promise<(args: string[]) => CliResult> {
+  await writeFile(`${dir}/impact.csv`, recordingCsv(sixHits()));
+  return (args) =>
+    runQuiver([
+      "hammer",
+      `${dir}/impact.csv`,
+      "--rate",
+      String(RATE),
+      "--force",
+      "hammer",
+      ...args,
+    ]);
 }
