@@ -10,7 +10,7 @@ describe("quiver run", () => {
   beforeAll(async () => {
     dir = await demoFolder();
     plan = JSON.parse(await readFile(`${dir}/tamarack_b2_plan.json`, "utf8"));
-  }, 60_000);
+  });
 
   const variant = async (name: string, change: (p: Record<string, unknown>) => void) => {
     const copy = structuredClone(plan);
