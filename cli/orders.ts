@@ -52,7 +52,8 @@ Analysis:
                        revolutions; orders stay on their lines (default; for
                        real run-ups) | time: time blocks at each rpm step, order
                        k at k*rpm/60 Hz (fast sweeps smear orders; for slow ones)
-  --amplitude A        rms | peak                                  (default rms)
+  --amplitude A        rms | peak, for the cuts and the map (default rms);
+                       the overall is always RMS
   --revolutions R      angle: revolutions per block; order resolution 1/R (default 16)
   --samples-per-rev S  angle: power of two       (default >= 4 x highest order, >= 64)
   --block N            time: samples per block   (default: 1/4-order resolution at rpm-min)
@@ -62,7 +63,8 @@ ${RECORDING_HELP}
 ${OUTPUT_HELP}
   --rpm-out FILE       rpm profile: time_s, rpm
   --map-out FILE       map, tidy: one row per (rpm, order) for angle or (rpm,
-                       frequency_hz) for time, then one RMS-per-line column per channel
+                       frequency_hz) for time, then one column per channel: RMS
+                       (or peak) per line, scaled as spectrum --kind rms (or peak)
 
 Cut columns: rpm, then <channel>_order<k> per channel and order, then
 <channel>_overall (RMS over the same stretch of time), in the channel's unit.

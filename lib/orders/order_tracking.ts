@@ -17,8 +17,11 @@
  * window's main lobe around it (±1 line for `angle`, ±2 lines for `time`,
  * Hann), which is the window's power correction: exact for a steady order
  * on a line and insensitive to where between lines it falls. Amplitudes are
- * RMS in the channel's unit (`peak`: √2 × RMS). `overall` is the RMS of the
- * channel over the same stretch of time, mean removed.
+ * RMS in the channel's unit (`peak`: √2 × RMS). The map's lines are the
+ * `rms` (or `peak`) spectrum kind of the spectral core, so a steady order on
+ * a line reads the same in the cut, the map and `spectrum --kind rms`.
+ * `overall` is always the RMS of the channel over the same stretch of time,
+ * mean removed.
  *
  * Memory: both methods need the whole record of one channel at a time (the
  * angle method resamples across the record).
@@ -29,6 +32,7 @@ import { QuiverError } from "../errors.ts";
 import { type Channel, type Recording, selectChannels } from "../io/recording.ts";
 import type { Table, TableColumn } from "../io/table.ts";
 import { SpectralAccumulator } from "../dsp/spectral_core.ts";
+import { autoSpectrum } from "../dsp/spectrum_kinds.ts";
 import { channelsWarnings } from "../io/signal_checks.ts";
 import { inverseAngle, resampleToAngle } from "./angle_resample.ts";
 import { motionFromPulses, motionFromRpm, type ShaftMotion, tachoPulses } from "./tacho.ts";
@@ -273,10 +277,10 @@ export function trackOrders(recording: Recording, options: OrderOptions): OrderR
         return amplitudeFactor * Math.sqrt(energy);
       })
     );
-    const overall = channels.map((c) => amplitudeFactor * rmsOver(c.data, first, last));
-    const line = estimate.auto.map((g) =>
-      g.map((v) => amplitudeFactor * Math.sqrt(v * estimate.df))
-    );
+    // The overall level is an RMS whatever `amplitude` says: a broadband sum has no peak of its own.
+    const overall = channels.map((c) => rmsOver(c.data, first, last));
+    // The map's lines are scaled by the spectral core's one rule (spectrum kinds), as `spectrum` does.
+    const line = channels.map((_, c) => autoSpectrum(estimate, c, amplitude));
     rows.push({ rpm: r, time: t, cut, overall, line });
   }
   if (rows.length === 0) {

@@ -1,6 +1,9 @@
 import { describe, expect, test } from "vitest";
 import { trackOrders } from "../../lib/orders/order_tracking.ts";
 import { QuiverError } from "../../lib/errors.ts";
+import { spectralEstimate } from "../../lib/dsp/spectral_core.ts";
+import { autoSpectrum } from "../../lib/dsp/spectrum_kinds.ts";
+import { assertClose } from "../helpers/assert_close.ts";
 import type { Table } from "../../lib/io/table.ts";
 import {
   linearProfile,
@@ -131,6 +134,51 @@ describe("order tracking of a run-up", () => {
     });
     for (const v of col(cuts, "mount_acc_order2")) expect(Math.abs(db(v, 0.5))).toBeLessThan(0.5);
     expect(map.columns[1].name).toBe("frequency_hz");
+  });
+
+  test("a steady order of 1.0 RMS on a line reads 1.0 in the cut, the map and spectrum --kind rms", () => {
+    // Analytic: a sinusoid of RMS A on a line of a Hann-windowed block has autopower A²
+    // per line (scipy.signal.welch(scaling="spectrum") convention); the map is documented
+    // as RMS per line, like `spectrum --kind rms`. Order 3 with 16 revolutions per block
+    // is on line 48 exactly (angle method).
+    const rec = runUpRecording(linearProfile(1500, 2500, 10), RATE, 10, 1, [
+      { order: 3, rms: () => 1 },
+    ]);
+    for (const amplitude of ["rms", "peak"] as const) {
+      const { cuts, map } = trackOrders(rec, {
+        tacho: "tacho",
+        ppr: 1,
+        channels: ["mount_acc"],
+        orders: [3],
+        revolutions: 16,
+        rpmStep: 250,
+        amplitude,
+      });
+      const expected = amplitude === "peak" ? Math.SQRT2 : 1; // a sinusoid's peak is √2·RMS
+      for (const v of col(cuts, "mount_acc_order3")) {
+        assertClose(v, expected, { relative: 0.01, absolute: 0 }, `${amplitude} cut`);
+      }
+      const order = col(map, "order");
+      const values = col(map, "mount_acc");
+      let seen = 0;
+      order.forEach((k, i) => {
+        if (Math.abs(k - 3) < 1e-9) {
+          seen++;
+          assertClose(values[i], expected, { relative: 0.01, absolute: 0 }, `${amplitude} map`);
+        }
+      });
+      expect(seen).toBe(col(cuts, "rpm").length);
+      // The overall is RMS whatever the amplitude option: 1.0 for this single order.
+      for (const v of col(cuts, "mount_acc_overall")) {
+        assertClose(v, 1, { relative: 0.01, absolute: 0 }, "overall");
+      }
+    }
+    // spectrum --kind rms on a 1.0 RMS tone on line 64 of a 4096 block, Hann window.
+    const tone = new Float64Array(8 * 4096).map((_, i) =>
+      Math.SQRT2 * Math.sin(2 * Math.PI * 64 * i / 4096)
+    );
+    const estimate = spectralEstimate([tone], { rate: 4096, block: 4096, window: "hann" });
+    assertClose(autoSpectrum(estimate, 0, "rms")[64], 1, { relative: 1e-9, absolute: 0 }, "rms");
   });
 
   test("a requested range beyond the recorded speeds is refused", () => {
