@@ -87,7 +87,7 @@ export async function levelHistoryStream(
 /** A weighting filter and a time-weighted meter for one channel. */
 interface ChannelMeter {
   push(x: Float64Array): void;
-  finish(): { readings: Float64Array; meanSquare: number };
+  finish(): { readings: Float64Array; meanSquare: number; highest: number; lowest: number };
 }
 
 function levelMeters(
@@ -121,11 +121,16 @@ function levelResult(
   const columns: TableColumn[] = [];
   const summary = channels.map((c, i) => {
     const reference = levelReference(c.unit, options.reference);
-    const { readings, meanSquare } = meters[i].finish();
+    const { readings, meanSquare, highest, lowest } = meters[i].finish();
     const levels = readings.map((m) => levelDb(m, reference));
     const unit = levelUnit(weighting, reference, c.unit);
     columns.push({ name: c.name, unit, values: levels });
-    return { channel: c.name, unit, ...levelStatistics(levelDb(meanSquare, reference), levels) };
+    const extremes = { lmax: levelDb(highest, reference), lmin: levelDb(lowest, reference) };
+    return {
+      channel: c.name,
+      unit,
+      ...levelStatistics(levelDb(meanSquare, reference), levels, extremes),
+    };
   });
   const count = columns[0]?.values.length ?? 0;
   const time = new Float64Array(count).map((_, j) => startTime + ((j + 1) * step) / rate);

@@ -50,6 +50,8 @@ export class TimeWeightedMeter {
   #n = 0;
   #stepSum = 0;
   #total = 0;
+  #highest = -Infinity;
+  #lowest = Infinity;
   readonly #readings: number[] = [];
 
   /**
@@ -73,7 +75,10 @@ export class TimeWeightedMeter {
       for (let i = 0; i < x.length; i++) {
         this.#stepSum += x[i] * x[i];
         if (++this.#n % this.#step === 0) {
-          this.#readings.push(this.#stepSum / this.#step);
+          const reading = this.#stepSum / this.#step;
+          this.#readings.push(reading);
+          if (reading > this.#highest) this.#highest = reading;
+          if (reading < this.#lowest) this.#lowest = reading;
           this.#stepSum = 0;
         }
       }
@@ -100,16 +105,33 @@ export class TimeWeightedMeter {
   }
 
   #run(x: Float64Array): void {
+    // The extremes are tracked at every sample, not at the readings: IEC 61672-1
+    // defines Lmax as the maximum of the continuously time-weighted level.
     let y = this.#y;
+    let highest = this.#highest, lowest = this.#lowest;
     for (let i = 0; i < x.length; i++) {
       y += this.#alpha * (x[i] * x[i] - y);
+      if (y > highest) highest = y;
+      if (y < lowest) lowest = y;
       if (++this.#n % this.#step === 0) this.#readings.push(y);
     }
     this.#y = y;
+    this.#highest = highest;
+    this.#lowest = lowest;
   }
 
-  /** The readings, and the mean square of everything pushed. */
-  finish(): { readings: Float64Array; meanSquare: number; samples: number } {
+  /**
+   * The readings, the mean square of everything pushed, and the highest and
+   * lowest time-weighted mean square (for Fast and Slow at every sample; for
+   * `none` over the step readings).
+   */
+  finish(): {
+    readings: Float64Array;
+    meanSquare: number;
+    samples: number;
+    highest: number;
+    lowest: number;
+  } {
     // A record shorter than the warm-up window warms up on what there is.
     if (this.#weighting !== "none" && !this.#started && this.#warmFilled > 0) {
       this.#start(this.#warm.subarray(0, this.#warmFilled));
@@ -119,6 +141,8 @@ export class TimeWeightedMeter {
       readings: new Float64Array(this.#readings),
       meanSquare: this.#total / samples,
       samples,
+      highest: this.#highest,
+      lowest: this.#lowest,
     };
   }
 }
@@ -165,18 +189,26 @@ export interface LevelStatistics {
 }
 
 /**
- * Leq from the whole record's mean square, and Lmax, Lmin and the exceedance
- * levels from the sampled levels (L_N is the level exceeded N % of the time:
- * the (100 − N)th percentile, linearly interpolated; common practice).
+ * Leq from the whole record's mean square, the exceedance levels from the
+ * sampled levels (L_N is the level exceeded N % of the time: the (100 − N)th
+ * percentile, linearly interpolated; common practice), and Lmax and Lmin from
+ * `extremes` (the continuously tracked levels, see
+ * {@linkcode TimeWeightedMeter.finish}) or, without it, from the sampled levels.
  *
  * @example
  * ```ts
  * import { levelStatistics } from "./time_weighting.ts";
  * const s = levelStatistics(1, new Float64Array([60, 70, 80, 90, 100]));
  * if (s.l50 !== 80 || s.l10 !== 96 || s.lmax !== 100) throw new Error();
+ * const t = levelStatistics(1, new Float64Array([60, 70]), { lmax: 72.5, lmin: 59 });
+ * if (t.lmax !== 72.5 || t.lmin !== 59) throw new Error();
  * ```
  */
-export function levelStatistics(leqDb: number, levels: Float64Array): LevelStatistics {
+export function levelStatistics(
+  leqDb: number,
+  levels: Float64Array,
+  extremes?: { lmax: number; lmin: number },
+): LevelStatistics {
   const sorted = levels.slice().sort();
   const percentile = (p: number) => {
     const at = (p / 100) * (sorted.length - 1);
@@ -186,8 +218,8 @@ export function levelStatistics(leqDb: number, levels: Float64Array): LevelStati
   };
   return {
     leq: leqDb,
-    lmax: sorted[sorted.length - 1],
-    lmin: sorted[0],
+    lmax: extremes?.lmax ?? sorted[sorted.length - 1],
+    lmin: extremes?.lmin ?? sorted[0],
     l10: percentile(90),
     l50: percentile(50),
     l90: percentile(10),

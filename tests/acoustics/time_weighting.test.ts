@@ -1,6 +1,8 @@
 import { describe, expect, test } from "vitest";
 import { levelHistory } from "../../lib/acoustics/level_analysis.ts";
-import { TIME_CONSTANTS_S } from "../../lib/acoustics/time_weighting.ts";
+
+// IEC 61672-1:2013, 3.9 and 5.8: the time constants, typed here from the standard.
+const TAU_S = { fast: 0.125, slow: 1 } as const;
 
 const RATE = 8000;
 
@@ -16,11 +18,11 @@ function burst() {
 
 describe("Fast and Slow time weighting", () => {
   for (const weighting of ["fast", "slow"] as const) {
-    test(`${weighting}: the burst's level rises and decays with τ = ${TIME_CONSTANTS_S[weighting]} s`, () => {
+    test(`${weighting}: the burst's level rises and decays with τ = ${TAU_S[weighting]} s`, () => {
       // IEC 61672-1:2013, 3.9/5.8: exponential time weighting. Analytic response of
       // dy/dt = (x² − y)/τ: y = ms·(1 − e^(−t/τ)) after the onset, and a decay of
       // 10·log10(e)/τ dB per second after the end.
-      const tau = TIME_CONSTANTS_S[weighting];
+      const tau = TAU_S[weighting];
       const step = 0.005;
       const { table, summary } = levelHistory(burst(), {
         weighting: "Z",
@@ -58,4 +60,45 @@ describe("Fast and Slow time weighting", () => {
       expect(Math.abs(summary[0][key] - expected), key).toBeLessThan(0.05);
     }
   });
+});
+
+describe("Lmax of tone bursts (IEC 61672-1:2013, Table 4)", () => {
+  // A 4 kHz tone burst of duration Tb, in silence, against the steady tone of the same
+  // amplitude: the maximum time-weighted level lies δ = 10·lg(1 − e^(−Tb/τ)) dB below the
+  // steady level (IEC 61672-1:2013, equation for Table 4). The rounded table values are
+  // from memory and agree with the equation to 0.05 dB.
+  const cases = [
+    { weighting: "fast", tbMs: 200, table: -1.0 },
+    { weighting: "fast", tbMs: 50, table: -4.8 },
+    { weighting: "fast", tbMs: 10, table: -11.1 },
+    { weighting: "fast", tbMs: 2, table: -18.0 },
+    { weighting: "slow", tbMs: 500, table: -4.1 },
+    { weighting: "slow", tbMs: 200, table: -7.4 },
+    { weighting: "slow", tbMs: 50, table: -13.1 },
+  ] as const;
+  const rate = 48000;
+  for (const { weighting, tbMs, table } of cases) {
+    test(`${weighting}, ${tbMs} ms burst: Lmax ${table} dB re the steady level`, () => {
+      const tau = TAU_S[weighting];
+      const start = Math.round(2 * tau * rate);
+      const length = Math.round((tbMs / 1000) * rate); // whole cycles of 4 kHz at 48 kHz
+      const data = new Float64Array(start + length + Math.round(2 * tau * rate)).map((
+        _,
+        i,
+      ) => (i >= start && i < start + length
+        ? Math.SQRT2 * Math.sin(2 * Math.PI * 4000 * i / rate)
+        : 0)
+      );
+      // The default step of 0.1 s: Lmax must not depend on when readings are taken.
+      const { summary } = levelHistory({
+        rate,
+        startTime: 0,
+        channels: [{ name: "mic", unit: "Pa", data }],
+      }, { weighting: "Z", timeWeighting: weighting });
+      const steady = 20 * Math.log10(1 / 20e-6); // 1 Pa rms re 20 µPa (ISO 1683)
+      const delta = 10 * Math.log10(1 - Math.exp(-(tbMs / 1000) / tau));
+      expect(Math.abs(delta - table)).toBeLessThan(0.05);
+      expect(Math.abs(summary[0].lmax - steady - delta)).toBeLessThan(0.1);
+    });
+  }
 });
