@@ -214,6 +214,8 @@ export function levelStatistics(
     const at = (p / 100) * (sorted.length - 1);
     const lo = Math.floor(at);
     const hi = Math.min(sorted.length - 1, lo + 1);
+    // Equal neighbours (−∞ of a dead channel among them) need no interpolation: ∞ − ∞ is NaN.
+    if (sorted[hi] === sorted[lo]) return sorted[lo];
     return sorted[lo] + (at - lo) * (sorted[hi] - sorted[lo]);
   };
   return {

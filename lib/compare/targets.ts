@@ -15,6 +15,7 @@
  *
  * @module
  */
+import { formatNumber } from "../format_number.ts";
 
 /** A checked target. */
 export interface TargetResult {
@@ -54,6 +55,9 @@ export function checkValue(
   limit: number,
   unit: string,
 ): TargetResult {
+  if (!Number.isFinite(value)) {
+    throw new RangeError(`the value of "${id}" is ${value}, not a finite number: not checked`);
+  }
   const margin = kind === "min" ? value - limit : limit - value;
   return { id, description, pass: margin >= 0, margin, unit, value, limit };
 }
@@ -113,7 +117,12 @@ export function checkCurve(
   let worst: TargetResult | undefined;
   frequencies.forEach((f, k) => {
     const limit = limitAt(points, f);
-    if (limit === undefined || !Number.isFinite(levels[k])) return;
+    if (limit === undefined) return;
+    if (!Number.isFinite(levels[k])) {
+      throw new RangeError(
+        `the level at ${formatNumber(f)} Hz is missing or not finite: "${id}" cannot be checked`,
+      );
+    }
     const margin = kind === "min" ? levels[k] - limit : limit - levels[k];
     if (worst === undefined || margin < worst.margin) {
       worst = {

@@ -26,7 +26,13 @@ import { type ChannelTransform, parseChannelSetup, setupTransforms } from "./cha
 import { parseHeaderCell, REFERENCE_STEPS, TIME_NAMES } from "./csv_reader.ts";
 import type { ReadRecordingOptions } from "./read_recording.ts";
 import type { ChannelRole } from "./recording.ts";
-import { decodeWavFrames, looksLikeWav, parseWav } from "./wav.ts";
+import {
+  decodeWavFrames,
+  FORMAT_FLOAT,
+  looksLikeWav,
+  parseWav,
+  refuseNonFiniteSamples,
+} from "./wav.ts";
 import { ChannelStatistics } from "./signal_checks.ts";
 import { readFile } from "node:fs/promises";
 
@@ -421,6 +427,7 @@ async function openWavStream(
             const count = Math.min(CHUNK_ROWS, frames - first);
             await h.read(bytes, 0, count * f.blockAlign, dataStart + first * f.blockAlign);
             decodeWavFrames(view, 0, count, f, samples);
+            if (f.code === FORMAT_FLOAT) refuseNonFiniteSamples(samples, count, first, path);
             onChunk(selected.map((s, j) => {
               const d = samples[s].subarray(0, count);
               if (factors[j] !== 1) { for (let i = 0; i < d.length; i++) d[i] *= factors[j]; }

@@ -18,7 +18,8 @@ export type WavEncoding = "pcm16" | "pcm24" | "pcm32" | "float32";
 export const FULL_SCALE_UNIT = "FS";
 
 const FORMAT_PCM = 1;
-const FORMAT_FLOAT = 3;
+/** The WAV format code of IEEE float samples. */
+export const FORMAT_FLOAT = 3;
 const FORMAT_EXTENSIBLE = 0xfffe;
 
 /**
@@ -99,7 +100,7 @@ export function parseWav(bytes: Uint8Array, file?: string): Recording {
       if (size % f.blockAlign !== 0) {
         fail(`data chunk of ${size} bytes is not a whole number of ${f.blockAlign}-byte frames`);
       }
-      return decodeFrames(view, start, size / f.blockAlign, f);
+      return decodeFrames(view, start, size / f.blockAlign, f, file);
     }
     offset = start + size + (size % 2);
   }
@@ -161,9 +162,51 @@ export function decodeWavFrames(
   }
 }
 
-function decodeFrames(view: DataView, start: number, frames: number, f: WavFormat): Recording {
+/**
+ * Refuses a NaN or infinite sample among the first `frames` of `decoded`
+ * (only float WAV files can hold them), naming the channel and the sample
+ * (0-based, counted from `firstFrame`), as the CSV reader refuses such cells.
+ *
+ * @throws {QuiverError} at the first such sample in file order.
+ *
+ * @example
+ * ```ts
+ * import { refuseNonFiniteSamples } from "./wav.ts";
+ * let message = "";
+ * try { refuseNonFiniteSamples([new Float64Array([0, 0.5]), new Float64Array([0, NaN])], 2, 10); }
+ * catch (e) { message = (e as Error).message; }
+ * if (!message.includes("ch2") || !message.includes("sample 11")) throw new Error(message);
+ * ```
+ */
+export function refuseNonFiniteSamples(
+  decoded: readonly Float64Array[],
+  frames: number,
+  firstFrame = 0,
+  file?: string,
+): void {
+  for (let i = 0; i < frames; i++) {
+    for (let c = 0; c < decoded.length; c++) {
+      const v = decoded[c][i];
+      if (v - v !== 0) {
+        throw new QuiverError(
+          `channel ch${c + 1}, sample ${firstFrame + i}: ${v} is not a finite number`,
+          { file },
+        );
+      }
+    }
+  }
+}
+
+function decodeFrames(
+  view: DataView,
+  start: number,
+  frames: number,
+  f: WavFormat,
+  file?: string,
+): Recording {
   const data = Array.from({ length: f.channels }, () => new Float64Array(frames));
   decodeWavFrames(view, start, frames, f, data);
+  if (f.code === FORMAT_FLOAT) refuseNonFiniteSamples(data, frames, 0, file);
   return {
     rate: f.rate,
     startTime: 0,

@@ -25,7 +25,23 @@ export type TargetOutcome = (TargetResult & { status: "checked" }) | {
 
 interface ResultJson {
   metadata: Record<string, unknown>;
-  columns: { name: string; unit: string; values: number[] }[];
+  columns: { name: string; unit: string; values: (number | null)[] }[];
+}
+
+/**
+ * A result value as a number, refusing what JSON holds for a value that is
+ * missing or was not finite (`null`, from NaN or ±∞): such a target cannot be
+ * checked, and reading it as 0 would give a verdict on nothing.
+ */
+function finiteValue(value: unknown, what: string): number {
+  if (typeof value !== "number" || !Number.isFinite(value)) {
+    throw new Error(
+      `${what} is ${
+        value === null || value === undefined ? "missing" : String(value)
+      } in the result (not a finite number: a dead channel or a failed estimate?)`,
+    );
+  }
+  return value;
 }
 
 function describe(t: PlanTarget): string {
@@ -50,7 +66,7 @@ function quantityOf(t: Extract<PlanTarget, { type: "min" | "max" }>, json: Resul
       .sort((a, b) => a.frequencyHz - b.frequencyHz);
     const pick = quantity === "first_mode_hz" ? chosen[0] : chosen[(mode ?? 1) - 1];
     if (pick === undefined) throw new Error("no such mode in the result");
-    return pick.frequencyHz;
+    return finiteValue(pick.frequencyHz, "the mode frequency");
   }
   if (quantity === "overall_db") {
     const overall = (m.overall as { channel: string; level_db: number }[] | undefined) ?? [];
@@ -58,13 +74,13 @@ function quantityOf(t: Extract<PlanTarget, { type: "min" | "max" }>, json: Resul
     if (o === undefined) {
       throw new Error("no overall level for that channel (is it a bands result?)");
     }
-    return o.level_db;
+    return finiteValue(o.level_db, "the overall level");
   }
   const summary =
     (m.summary as { channel: string; leq_db: number; lmax_db: number }[] | undefined) ?? [];
   const s = summary.find((x) => channel === undefined || x.channel === channel);
   if (s === undefined) throw new Error("no level summary for that channel (is it a level result?)");
-  return quantity === "leq_db" ? s.leq_db : s.lmax_db;
+  return finiteValue(quantity === "leq_db" ? s.leq_db : s.lmax_db, quantity);
 }
 
 /** Checks every target; a target whose result is missing is reported as not checked. */
@@ -92,13 +108,15 @@ export async function evaluateTargets(
       if (t.type === "limit_curve") {
         const column = json.columns.find((c) => c.name === t.of.channel);
         if (column === undefined) throw new Error(`no column "${t.of.channel}" in the result`);
-        const x = new Float64Array(json.columns[0].values);
+        // null (a value that was not finite) becomes NaN, never 0; checkCurve refuses it.
+        const numbers = (values: (number | null)[]) =>
+          Float64Array.from(values, (v) => typeof v === "number" ? v : NaN);
         outcomes.push({
           ...checkCurve(
             t.id,
             description,
-            x,
-            new Float64Array(column.values),
+            numbers(json.columns[0].values),
+            numbers(column.values),
             t.limit,
             t.points,
             t.unit || column.unit,

@@ -6,6 +6,7 @@
  *
  * @module
  */
+import { formatFixed, formatNumber } from "../format_number.ts";
 import { mkdir, readFile } from "node:fs/promises";
 import { join } from "node:path";
 import { writeFileAtomic } from "../io/atomic_write.ts";
@@ -119,10 +120,10 @@ function modeTable(r: ResultJson): string {
   }[]) ?? [];
   const rows = modes.map((m) =>
     `<tr><td>${escapeXml(m.channel)}</td><td>${m.mode}</td><td>${
-      m.frequencyHz.toFixed(2)
-    }</td><td>${(100 * m.dampingRatio).toFixed(2)}</td><td>${
-      m.halfPower !== undefined ? (100 * m.halfPower.dampingRatio).toFixed(2) : "–"
-    }</td><td>${m.qFactor.toFixed(1)}</td><td>${escapeXml(m.method)}</td><td>${
+      formatFixed(m.frequencyHz, 2)
+    }</td><td>${formatFixed(100 * m.dampingRatio, 2)}</td><td>${
+      m.halfPower !== undefined ? formatFixed(100 * m.halfPower.dampingRatio, 2) : "–"
+    }</td><td>${formatFixed(m.qFactor, 1)}</td><td>${escapeXml(m.method)}</td><td>${
       escapeXml(m.flags.join(", "))
     }</td></tr>`
   ).join("\n");
@@ -231,7 +232,7 @@ function comparisonFigures(
     {
       name: `${id}_overlay`,
       svg: linePlot({
-        title: `${title}: test and simulation (FRAC ${m.frac.toFixed(3)})`,
+        title: `${title}: test and simulation (FRAC ${formatFixed(m.frac, 3)})`,
         x: { label: "Frequency [Hz]", log: true },
         y: { label: withUnit("Magnitude", r.columns[1].unit), log: true },
         series: [
@@ -252,11 +253,11 @@ function comparisonFigures(
     },
   ];
   const rows = m.peaks.map((p) =>
-    `<tr><td>${p.test_hz.toFixed(2)}</td><td>${p.simulation_hz.toFixed(2)}</td><td>${
-      p.shift_percent.toFixed(2)
-    }</td><td>${p.level_difference_db.toFixed(2)}</td></tr>`
+    `<tr><td>${formatFixed(p.test_hz, 2)}</td><td>${formatFixed(p.simulation_hz, 2)}</td><td>${
+      formatFixed(p.shift_percent, 2)
+    }</td><td>${formatFixed(p.level_difference_db, 2)}</td></tr>`
   ).join("");
-  const html = `<p>FRAC ${m.frac.toFixed(4)} (on ${
+  const html = `<p>FRAC ${formatFixed(m.frac, 4)} (on ${
     escapeXml(m.frac_on)
   } data), common grid of ${m.grid.lines} lines from the ${
     escapeXml(m.grid.from)
@@ -274,7 +275,7 @@ function targetTable(targets: readonly TargetOutcome[]): string {
         escapeXml(t.reason)
       }</td><td class="verdict">—</td></tr>`;
     }
-    const fmt = (v: number) => Number(v.toPrecision(4)).toString();
+    const fmt = (v: number) => formatNumber(v);
     return `<tr class="${t.pass ? "pass" : "fail"}"><td>${escapeXml(t.id)}</td><td>${
       escapeXml(t.description)
     }</td><td>${fmt(t.value)} ${escapeXml(t.unit)}${
@@ -355,7 +356,9 @@ export async function writeReport(outDir: string, manifest: Manifest, plan: Plan
       case "bands": {
         const overall =
           (r.metadata.overall as { channel: string; level_db: number; unit: string }[])
-            .map((o) => `${escapeXml(o.channel)}: ${o.level_db.toFixed(1)} ${escapeXml(o.unit)}`)
+            .map((o) =>
+              `${escapeXml(o.channel)}: ${formatFixed(o.level_db, 1)} ${escapeXml(o.unit)}`
+            )
             .join("; ");
         sections.push({
           heading: title,

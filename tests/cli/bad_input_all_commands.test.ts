@@ -1,6 +1,7 @@
 import { mkdtemp, readdir, readFile, writeFile } from "node:fs/promises";
 import { beforeAll, describe, expect, test } from "vitest";
 import { runQuiver } from "../helpers/cli.ts";
+import { encodeWav } from "../../lib/io/wav.ts";
 
 // The reader-level bad inputs, through every command that reads a recording
 // (the spectrum command's own, fuller matrix is in spectrum.test.ts).
@@ -62,4 +63,49 @@ describe("every command refuses bad recordings the same way and writes nothing",
     expect(r.code).toBe(0);
     expect(r.stdout.split("\n")[0]).toMatch(/^frequency_hz,a_re/);
   });
+});
+
+/** A float WAV of two channels with one non-finite sample (past the first read chunk for NaN). */
+function floatWavWith(channel: number, sample: number, value: number): Uint8Array {
+  const n = 80_000;
+  const channels = [0, 1].map((c) => ({
+    name: `ch${c + 1}`,
+    unit: "FS",
+    data: new Float64Array(n).map((_, i) => 0.3 * Math.sin(i / (5 + c))),
+  }));
+  channels[channel].data[sample] = value;
+  return encodeWav({ rate: 8000, startTime: 0, channels }, "float32");
+}
+
+describe("a float WAV holding NaN or ±Inf is refused by every command, naming channel and sample", () => {
+  const WAV_COMMANDS: Record<string, string[]> = {
+    spectrum: [],
+    frf: ["--input", "ch1", "--outputs", "ch2"],
+    hammer: ["--force", "ch1", "--outputs", "ch2"],
+    bands: [],
+    level: ["--reference", "1", "--weighting", "Z"],
+    orders: ["--tacho", "ch1", "--ppr", "1", "--channels", "ch2"],
+  };
+  let dir: string;
+  beforeAll(async () => {
+    dir = await mkdtemp("/tmp/quiver-bad-wav-");
+    await writeFile(`${dir}/nan.wav`, floatWavWith(1, 70_000, NaN));
+    await writeFile(`${dir}/inf.wav`, floatWavWith(0, 3, -Infinity));
+  });
+  for (const [command, args] of Object.entries(WAV_COMMANDS)) {
+    for (
+      const [file, pattern] of [
+        ["nan.wav", /nan\.wav: channel ch2, sample 70000: NaN is not a finite number/],
+        ["inf.wav", /inf\.wav: channel ch1, sample 3: -Infinity is not a finite number/],
+      ] as const
+    ) {
+      test(`${command}: ${file}`, async () => {
+        await writeFile(`${dir}/out.json`, "previous\n");
+        const r = runQuiver([command, file, ...args, "--out", "out.json"], dir);
+        expect(r.code).toBe(1);
+        expect(r.stderr).toMatch(pattern);
+        expect(await readFile(`${dir}/out.json`, "utf8")).toBe("previous\n");
+      });
+    }
+  }
 });

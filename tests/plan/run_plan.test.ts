@@ -82,7 +82,6 @@ describe("quiver run", () => {
       expect(html).not.toMatch(/(src|href)="https?:/);
       expect(existsSync(`${dir}/out/figures/bracket_vs_sim_overlay.svg`)).toBe(true);
     },
-    60_000,
   );
 
   test(
@@ -100,6 +99,5 @@ describe("quiver run", () => {
       expect(orders.error).toMatch(/broken\.csv:3: row has 2 fields/);
       expect(manifest.steps.filter((s: { status: string }) => s.status === "ok")).toHaveLength(6);
     },
-    60_000,
   );
 });

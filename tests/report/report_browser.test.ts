@@ -63,6 +63,5 @@ describe("the HTML report in a browser", () => {
         await context.close();
       }
     },
-    60_000,
   );
 });
