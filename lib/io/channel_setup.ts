@@ -25,7 +25,9 @@
  * - `description`: free text (e.g. sensor position).
  *
  * Unknown fields, unknown channels, and a unit that contradicts the file's
- * own header are errors, never silently ignored.
+ * own header are errors, never silently ignored. Every channel's unit, with
+ * or without a set-up, ends in its SI base unit when quiver knows it
+ * (units.ts): a column in [g] is read in m/s^2, one in [mm/s] in m/s.
  *
  * @module
  */
@@ -33,6 +35,7 @@ import { z } from "zod";
 import { QuiverError } from "../errors.ts";
 import { type Channel, CHANNEL_ROLES, type ChannelRole, type Recording } from "./recording.ts";
 import { FULL_SCALE_UNIT } from "./wav.ts";
+import { baseUnit, sameQuantity } from "./units.ts";
 
 const channelEntrySchema = z.strictObject({
   name: z.string().trim().min(1).optional(),
@@ -139,7 +142,7 @@ export function setupTransforms(
       factor: 1,
       ...(channel.role !== undefined ? { role: channel.role } : {}),
     };
-    if (entry === undefined) return keep;
+    if (entry === undefined) return inBaseUnit(keep);
     const where = `set-up entry "${channel.name}"`;
     let volts: number | undefined;
     if (channel.unit === FULL_SCALE_UNIT) {
@@ -159,7 +162,8 @@ export function setupTransforms(
         );
       }
       const headerUnit = channel.unit === "" ? entry.input_unit : channel.unit;
-      volts = headerUnit === "V" ? 1 : headerUnit === "mV" ? 1e-3 : undefined;
+      const base = headerUnit === undefined ? undefined : baseUnit(headerUnit);
+      volts = base?.unit === "V" ? base.factor : undefined;
     }
     let factor = 1;
     let unit = channel.unit;
@@ -185,20 +189,24 @@ export function setupTransforms(
       factor = volts;
       unit = "V";
     } else if (entry.unit !== undefined) {
-      if (channel.unit !== "" && channel.unit !== entry.unit) {
+      if (
+        channel.unit !== "" && channel.unit !== entry.unit &&
+        !sameQuantity(channel.unit, entry.unit)
+      ) {
         fail(
           `${where}: unit [${entry.unit}] contradicts the file's unit [${channel.unit}]; give a sensitivity to convert`,
         );
       }
-      unit = entry.unit;
+      // Units of one quantity ([g] in the file, m/s^2 in the set-up) both go to the base unit below.
+      unit = channel.unit === "" ? entry.unit : channel.unit;
     }
     const role = entry.role ?? channel.role;
-    return {
+    return inBaseUnit({
       name: entry.name ?? channel.name,
       unit,
       factor,
       ...(role !== undefined ? { role } : {}),
-    };
+    });
   });
   const names = new Set<string>();
   for (const t of transforms) {
@@ -206,6 +214,13 @@ export function setupTransforms(
     names.add(t.name);
   }
   return transforms;
+}
+
+/** The transform with its unit converted to the SI base unit (units.ts), when quiver knows it. */
+function inBaseUnit(transform: ChannelTransform): ChannelTransform {
+  const base = baseUnit(transform.unit);
+  if (base === undefined || base.unit === transform.unit) return transform;
+  return { ...transform, unit: base.unit, factor: transform.factor * base.factor };
 }
 
 /**

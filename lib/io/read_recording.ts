@@ -78,7 +78,8 @@ export async function readRecordingFile(
     }
     recording = parseCsvRecording(text, { ...options, file: path });
   }
-  if (options.setup === undefined) return recording;
+  // Without a set-up the channels still go to their SI base units (units.ts).
+  if (options.setup === undefined) return applyChannelSetup(recording, { channels: {} });
   const setupText = new TextDecoder().decode(await readBytes(options.setup));
   return applyChannelSetup(
     recording,

@@ -71,7 +71,8 @@ async function transformsFor(
   channels: { name: string; unit: string }[],
   options: ReadRecordingOptions,
 ): Promise<ChannelTransform[]> {
-  if (options.setup === undefined) return channels.map((c) => ({ ...c, factor: 1 }));
+  // Without a set-up the transforms still convert units to their SI base (units.ts).
+  if (options.setup === undefined) return setupTransforms(channels, { channels: {} });
   let text: string;
   try {
     text = await readFile(options.setup, "utf8");
