@@ -14,6 +14,7 @@ import { type BandFraction, bandsInRange } from "../acoustics/bands.ts";
 import { alignCurves } from "./align.ts";
 import type { Curve } from "./curve_input.ts";
 import { frac } from "./frac.ts";
+import { matchUnits } from "./unit_match.ts";
 import { matchPeaks, type PeakMatch } from "./peak_match.ts";
 
 /** Options of {@linkcode compareCurves}. */
@@ -54,9 +55,10 @@ export interface ComparisonResult {
 }
 
 /**
- * Compares a test curve with a simulation.
+ * Compares a test curve with a simulation, after putting the simulation in
+ * the test's unit (unit_match.ts).
  *
- * @throws {QuiverError} when the curves barely overlap.
+ * @throws {QuiverError} when the curves barely overlap or are different quantities.
  *
  * @example
  * ```ts
@@ -68,10 +70,11 @@ export interface ComparisonResult {
  * ```
  */
 export function compareCurves(
-  test: Curve,
-  simulation: Curve,
+  testAsRead: Curve,
+  simulationAsRead: Curve,
   options: CompareOptions = {},
 ): ComparisonResult {
+  const { test, simulation, conversion } = matchUnits(testAsRead, simulationAsRead);
   const aligned = alignCurves(test, simulation, options.minHz, options.maxHz);
   const perDecade = test.quantity === "power" ? 10 : 20;
   const f = aligned.frequencies;
@@ -144,6 +147,7 @@ export function compareCurves(
         analysis: "compare",
         test_column: test.column,
         simulation_column: simulation.column,
+        ...(conversion !== undefined ? { unit_conversion: conversion } : {}),
         ...summary,
       },
     },
