@@ -108,7 +108,7 @@ export async function run(argv: readonly string[]): Promise<void> {
   const m = table.metadata;
   process.stderr.write(
     `frf: ${values.outputs.length} response(s) against ${values.input}, ${m.estimator}, ` +
-      `${m.averages} average(s) of ${m.block} samples, df ${m.df_hz} Hz` +
+      `${m.averages} average(s) of ${m.block} samples, df ${formatNumber(m.df_hz, 6)} Hz` +
       `${values.out !== undefined ? ` -> ${values.out}` : ""}\n`,
   );
 }

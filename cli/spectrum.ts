@@ -112,7 +112,7 @@ export async function run(argv: readonly string[]): Promise<void> {
     `spectrum: ${
       table.columns.length - 1
     } channel(s), ${m.kind}, ${m.averages} average(s) of ${m.block} samples, ` +
-      `df ${m.df_hz} Hz, ${m.window} window${
+      `df ${formatNumber(m.df_hz, 6)} Hz, ${m.window} window${
         values.out !== undefined ? ` -> ${values.out}` : ""
       }\n`,
   );

@@ -196,7 +196,9 @@ function fftBandPowers(estimate: SpectralEstimate, plan: BandPlan): Float64Array
       `${few.length} band(s) up to ${
         few[few.length - 1].nominalHz
       } Hz span fewer than ${MIN_LINES_PER_BAND} lines ` +
-        `at df ${estimate.df} Hz; their levels are unreliable (use a longer block or --method filter)`,
+        `at df ${
+          formatNumber(estimate.df, 6)
+        } Hz; their levels are unreliable (use a longer block or --method filter)`,
     );
   }
   Object.assign(metadata, {

@@ -10,6 +10,8 @@
  *
  * @module
  */
+import { nominalRate } from "./time_axis.ts";
+import { formatNumber } from "../format_number.ts";
 import { QuiverError } from "../errors.ts";
 import type { Channel, Recording } from "./recording.ts";
 import { type CsvTableOptions, parseNumericCsv } from "./csv_table.ts";
@@ -99,7 +101,9 @@ export function parseCsvRecording(
     if (options.rate !== undefined) {
       if (Math.abs(derived - options.rate) > 1e-3 * options.rate) {
         throw new QuiverError(
-          `the time column gives a rate of ${derived} Hz, but ${options.rate} Hz was given`,
+          `the time column gives a rate of ${
+            formatNumber(derived, 8)
+          } Hz, but ${options.rate} Hz was given`,
           { file },
           "usage",
         );
@@ -129,7 +133,7 @@ export function parseCsvRecording(
   return { rate, startTime, channels };
 }
 
-/** Checks uniform, increasing time and returns the rate it implies. */
+/** Checks uniform, increasing time and returns the (nominal) rate it implies. */
 function checkTimeColumn(
   time: Float64Array,
   lines: readonly number[],
@@ -186,6 +190,6 @@ function checkTimeColumn(
     }
   }
   // Every step agrees with the median, so the end points give the most
-  // precise mean interval.
-  return (n - 1) / total;
+  // precise mean interval; rounding of the printed times is undone (time_axis.ts).
+  return nominalRate(n, total, decimals);
 }

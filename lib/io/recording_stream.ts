@@ -20,6 +20,7 @@
  *
  * @module
  */
+import { decimalsWritten, nominalRate } from "./time_axis.ts";
 import { open } from "node:fs/promises";
 import { QuiverError } from "../errors.ts";
 import { type ChannelTransform, parseChannelSetup, setupTransforms } from "./channel_setup.ts";
@@ -230,7 +231,14 @@ async function openCsvStream(
     startTime = valueOf(firstRow, timeColumn);
     const total = valueOf(lastRow, timeColumn) - startTime;
     if (!(total > 0)) throw new StreamFallback("time");
-    const derived = (rows - 1) / total;
+    const timeCell = (row: string) => row.split(",")[timeColumn].trim();
+    const decimals = Math.max(
+      decimalsWritten(timeCell(firstRow)),
+      decimalsWritten(timeCell(lastRow)),
+    );
+    // The same rule as the whole-file reader (time_axis.ts); the stream checks
+    // the steps in between as it reads.
+    const derived = nominalRate(rows, total, decimals);
     if (options.rate !== undefined) {
       if (Math.abs(derived - options.rate) > 1e-3 * options.rate) throw new StreamFallback("rate");
       rate = options.rate;

@@ -51,8 +51,9 @@ function spectrumFigures(id: string, title: string, r: ResultJson): Figure[] {
   return [{
     name: `${id}_spectrum`,
     svg: linePlot({
-      title:
-        `${title}: ${kind}, df ${r.metadata.df_hz} Hz, ${r.metadata.averages} averages, ${r.metadata.window}`,
+      title: `${title}: ${kind}, df ${
+        formatNumber(r.metadata.df_hz, 6)
+      } Hz, ${r.metadata.averages} averages, ${r.metadata.window}`,
       x: { label: "Frequency [Hz]", log: true, domain: [Math.max(fx[1], 1), fx[fx.length - 1]] },
       y: { label: withUnit(kind.toUpperCase(), channels[0]?.unit ?? ""), log: true },
       series,
