@@ -3,6 +3,7 @@
  *
  * @module
  */
+import { formatNumber } from "../lib/format_number.ts";
 import process from "node:process";
 import { z } from "zod";
 import { ESTIMATORS } from "../lib/frf/estimators.ts";

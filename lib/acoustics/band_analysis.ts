@@ -19,6 +19,7 @@
  *
  * @module
  */
+import { formatNumber } from "../format_number.ts";
 import {
   channelIndices,
   type Recording,
