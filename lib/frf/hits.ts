@@ -12,8 +12,9 @@
  *
  * Classification of each hit's record (pretrigger + record length):
  * - `short`: the record runs off either end of the file;
- * - `overload`: a flat top (3 or more consecutive samples equal to the peak,
- *   as clipped converters write) or a peak at or above the stated range;
+ * - `overload`: a flat top at the peak (a plateau within the noise, see
+ *   `plateauAtPeak`; exactly equal samples as a clipped converter writes
+ *   are the noise-free case) or a peak at or above the stated range;
  * - `double`: another trigger crossing inside the record, the classic rebound;
  * - `accepted`: none of these.
  * The first that applies, in this order, is the hit's status.
@@ -76,6 +77,37 @@ function median(values: Float64Array): number {
   const sorted = values.slice().sort();
   const mid = Math.floor(sorted.length / 2);
   return sorted.length % 2 === 1 ? sorted[mid] : (sorted[mid - 1] + sorted[mid]) / 2;
+}
+
+/**
+ * Whether the pulse around `peakSample` of `s` (baseline removed, positive)
+ * has a flat top. A converter that clips holds its top code, and the
+ * conditioning chain after an overloaded stage adds a little noise to that
+ * plateau, so samples count as "at the top" within 4 σ of the noise
+ * (`sigma`) of the peak. A smooth pulse also has a few such samples, more
+ * the wider the pulse: near its peak a half-sine of half-height width W
+ * falls as cos(π·t/(1.5·W)), so within a tolerance δ of its peak P it has
+ * about 1 + 2·(1.5·W/π)·acos(1 − δ/P) samples. The top is flat when it holds
+ * at least 3 samples and at least twice that many.
+ */
+function plateauAtPeak(
+  s: Float64Array,
+  peakSample: number,
+  sigma: number,
+): { flat: boolean; samples: number; tolerance: number; smooth: number } {
+  const peak = s[peakSample];
+  const tolerance = Math.max(4 * sigma, 1e-9 * peak);
+  const widthAbove = (level: number) => {
+    let w = 1;
+    for (let i = peakSample + 1; i < s.length && s[i] >= level; i++) w++;
+    for (let i = peakSample - 1; i >= 0 && s[i] >= level; i--) w++;
+    return w;
+  };
+  const samples = widthAbove(peak - tolerance);
+  const halfWidth = widthAbove(peak / 2);
+  const smooth = 1 +
+    2 * (1.5 * halfWidth / Math.PI) * Math.acos(Math.max(-1, 1 - tolerance / peak));
+  return { flat: samples >= Math.max(3, 2 * smooth), samples, tolerance, smooth };
 }
 
 /**
@@ -160,9 +192,7 @@ export function findHits(force: Float64Array, options: HitOptions): HitDetection
     let next = c + 1;
     while (next < crossings.length && crossings[next].sample < end) next++;
     const peak = s[crossing.peakSample];
-    let flat = 1;
-    for (let i = crossing.peakSample + 1; i < n && s[i] >= peak * (1 - 1e-9); i++) flat++;
-    for (let i = crossing.peakSample - 1; i >= 0 && s[i] >= peak * (1 - 1e-9); i--) flat++;
+    const plateau = plateauAtPeak(s, crossing.peakSample, sigma);
     let status: HitStatus = "accepted";
     let reason: string | undefined;
     if (start < 0 || end > n) {
@@ -170,10 +200,14 @@ export function findHits(force: Float64Array, options: HitOptions): HitDetection
       reason = start < 0
         ? "the pre-trigger starts before the file"
         : "the record runs past the end of the file";
-    } else if (flat >= 3 || (options.range !== undefined && peak >= options.range)) {
+    } else if (plateau.flat || (options.range !== undefined && peak >= options.range)) {
       status = "overload";
-      reason = flat >= 3
-        ? `flat top of ${flat} equal samples at the peak`
+      reason = plateau.flat
+        ? `flat top of ${plateau.samples} samples within ${
+          Number(plateau.tolerance.toPrecision(2))
+        } of the peak, where a smooth pulse of this width has ${
+          Number(plateau.smooth.toPrecision(2))
+        }`
         : `peak ${peak} at or above the range ${options.range}`;
     } else if (next > c + 1) {
       status = "double";

@@ -3,9 +3,16 @@
  * an analysis but can make its numbers wrong.
  *
  * - constant: every sample equal (a dead or disconnected channel);
- * - clipped: 3 or more consecutive samples at the channel's maximum or
- *   minimum, together at least 0.1 % of the record (flat tops at the
- *   converter's limits);
+ * - clipped: the waveform is cut flat at the channel's extreme values (its
+ *   rails). A sample run counts as clipping when it is 3 or more samples
+ *   long at the rail and the waveform enters and leaves it continuously:
+ *   the samples either side lie within half the channel's range of the
+ *   rail. A clean two-level signal (a TTL tacho) jumps onto its levels
+ *   instead, so it is not clipping. A rail that holds half the record or
+ *   more is a resting level (a force channel on an exact-zero baseline),
+ *   not clipping either. The warning needs such runs to make up at least
+ *   0.1 % of the record (and 3 samples), and states the true count of
+ *   samples at the rails;
  * - DC offset: |mean| above 3 × the standard deviation (an offset large
  *   against the signal; the default mean detrend removes it per segment, but
  *   it often means a wrong zero or a saturated amplifier).
@@ -16,6 +23,18 @@
  * @module
  */
 import type { Channel } from "./recording.ts";
+
+/** What is known of one rail (the channel's highest or lowest value so far). */
+interface Rail {
+  /** Samples exactly at the rail. */
+  count: number;
+  /** Samples in runs of 3 or more at the rail, entered and left continuously. */
+  cutSamples: number;
+  /** Such runs. */
+  cutRuns: number;
+}
+
+const emptyRail = (): Rail => ({ count: 0, cutSamples: 0, cutRuns: 0 });
 
 /**
  * Running statistics of one channel over chunks, for the warnings above:
@@ -28,11 +47,12 @@ export class ChannelStatistics {
   #sumSquares = 0;
   #min = Infinity;
   #max = -Infinity;
-  // Runs of equal consecutive values, kept per distinct value: only the final
-  // extremes matter, but they are known only at the end.
+  #high = emptyRail();
+  #low = emptyRail();
+  // The run of equal values in progress and the sample before it.
   #runValue = NaN;
   #runLength = 0;
-  readonly #flatRuns = new Map<number, number>();
+  #beforeRun = NaN;
 
   /** Adds the next samples. */
   push(x: Float64Array): void {
@@ -41,23 +61,41 @@ export class ChannelStatistics {
       this.#n++;
       this.#sum += v;
       this.#sumSquares += v * v;
-      if (v < this.#min) this.#min = v;
-      if (v > this.#max) this.#max = v;
+      if (v > this.#max) {
+        this.#max = v;
+        this.#high = emptyRail();
+      }
+      if (v < this.#min) {
+        this.#min = v;
+        this.#low = emptyRail();
+      }
+      if (v === this.#max) this.#high.count++;
+      if (v === this.#min) this.#low.count++;
       if (v === this.#runValue) this.#runLength++;
       else {
-        this.#closeRun();
+        this.#closeRun(v);
+        this.#beforeRun = this.#runValue;
         this.#runValue = v;
         this.#runLength = 1;
       }
     }
   }
 
-  #closeRun(): void {
-    if (this.#runLength >= 3) {
-      this.#flatRuns.set(
-        this.#runValue,
-        (this.#flatRuns.get(this.#runValue) ?? 0) + this.#runLength,
-      );
+  /**
+   * Ends the run in progress at the sample `after` (NaN at the record's end).
+   * The range used is the range so far: it only grows, so a run judged early
+   * is judged at most more strictly.
+   */
+  #closeRun(after: number): void {
+    if (this.#runLength < 3) return;
+    const v = this.#runValue;
+    const rail = v === this.#max ? this.#high : v === this.#min ? this.#low : undefined;
+    if (rail === undefined) return;
+    const half = 0.5 * (this.#max - this.#min);
+    const near = (u: number) => Number.isNaN(u) || Math.abs(u - v) < half;
+    if (near(this.#beforeRun) && near(after)) {
+      rail.cutSamples += this.#runLength;
+      rail.cutRuns++;
     }
   }
 
@@ -71,15 +109,23 @@ export class ChannelStatistics {
         `channel "${channel.name}" is constant (${min}) over the whole record: dead or disconnected?`,
       ];
     }
-    const runs = new Map(this.#flatRuns);
-    if (this.#runLength >= 3) {
-      runs.set(this.#runValue, (runs.get(this.#runValue) ?? 0) + this.#runLength);
-    }
-    const flat = (runs.get(max) ?? 0) + (runs.get(min) ?? 0);
+    // Close the run in progress on copies, so that more samples can still follow.
+    const high = { ...this.#high }, low = { ...this.#low };
+    const saved = [this.#high, this.#low];
+    this.#high = high;
+    this.#low = low;
+    this.#closeRun(NaN);
+    [this.#high, this.#low] = saved;
     const warnings: string[] = [];
-    if (flat >= Math.max(3, 0.001 * n)) {
+    const clipping = [high, low].filter((r) => r.count < 0.5 * n);
+    const cut = clipping.reduce((a, r) => a + r.cutSamples, 0);
+    if (cut >= Math.max(3, 0.001 * n)) {
+      const atRails = clipping.reduce((a, r) => a + r.count, 0);
+      const runs = clipping.reduce((a, r) => a + r.cutRuns, 0);
       warnings.push(
-        `channel "${channel.name}" looks clipped: ${flat} samples sit in flat tops at its extremes (${min}, ${max} ${channel.unit})`,
+        `channel "${channel.name}" looks clipped: ${atRails} samples (${
+          Number((100 * atRails / n).toPrecision(2))
+        } %) sit at its extremes (${min}, ${max} ${channel.unit}), ${cut} of them in ${runs} flat run(s) that cut the waveform`,
       );
     }
     const mean = this.#sum / n;

@@ -3,6 +3,7 @@ import { hammerFrf } from "../../lib/frf/hammer.ts";
 import { findHits } from "../../lib/frf/hits.ts";
 import { QuiverError } from "../../lib/errors.ts";
 import { MODES_A, RATE, sixHits } from "../helpers/hammer_recording.ts";
+import { gaussianNoise } from "../helpers/random.ts";
 
 describe("hammer test", () => {
   const rec = sixHits();
@@ -79,5 +80,33 @@ describe("hammer test", () => {
   test("refuses a recording with no accepted hit", () => {
     expect(() => hammerFrf(rec, { force: "hammer", outputs: ["bracket_a"], range: 100 }))
       .toThrow(QuiverError);
+  });
+
+  test("an overload plateau carrying noise from the conditioning chain is found; clean pulses are not", () => {
+    // Five half-sine hits of 2 ms at 51.2 kHz (102 samples), peaks 400 N; hit 3 passes an
+    // input stage that saturates at 320 N, and the chain after it adds noise of 0.3 N rms
+    // to every sample, the plateau included, so no two plateau samples are equal.
+    // Common practice: an overloaded hit has a flattened top and is rejected.
+    const rate = 51200;
+    const n = 6 * rate;
+    const noise = gaussianNoise(303, n);
+    const force = new Float64Array(n);
+    for (let h = 0; h < 5; h++) {
+      const start = Math.round((0.5 + h) * rate);
+      for (let i = 0; i < 102; i++) {
+        const v = 400 * Math.sin(Math.PI * (i + 0.5) / 102);
+        force[start + i] = h === 2 ? Math.min(v, 320) : v;
+      }
+    }
+    const measured = force.map((v, i) => v + 0.3 * noise[i]);
+    const d = findHits(measured, { pretriggerSamples: 100 });
+    expect(d.hits.map((h) => h.status)).toEqual([
+      "accepted",
+      "accepted",
+      "overload",
+      "accepted",
+      "accepted",
+    ]);
+    expect(d.hits[2].reason).toMatch(/flat top/);
   });
 });

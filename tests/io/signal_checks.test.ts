@@ -11,13 +11,46 @@ describe("signal-level warnings", () => {
     expect(channelWarnings(channel(new Float64Array(500)))[0]).toMatch(/constant/);
   });
 
-  test("clipping: flat tops at the extremes", () => {
-    // An overdriven sine: a converter holding its last code at ±2 for every sample beyond.
+  test("clipping: flat tops at the extremes, with the true count of samples at the rails", () => {
+    // An overdriven sine: a converter holding ±2 for every sample beyond (3·sin clipped at 2).
     const x = new Float64Array(20000).map((_, i) =>
       Math.max(-2, Math.min(2, 3 * Math.sin(2 * Math.PI * i / 200)))
     );
-    expect(channelWarnings(channel(x)).join()).toMatch(/clipped/);
+    // The count, from the signal's definition: samples where |3·sin| ≥ 2.
+    let atRails = 0;
+    for (let i = 0; i < 20000; i++) {
+      if (Math.abs(3 * Math.sin(2 * Math.PI * i / 200)) >= 2) atRails++;
+    }
+    const warning = channelWarnings(channel(x)).join();
+    expect(warning).toMatch(/clipped/);
+    expect(warning).toContain(`${atRails} samples`);
     expect(channelWarnings(channel(gaussianNoise(3, 20000))).join()).not.toMatch(/clipped/);
+  });
+
+  test("a clean TTL tacho is a two-level signal, not clipping", () => {
+    // 0/5 V, 40 % duty, 25 samples per pulse (common practice: TTL tachometer output).
+    const tacho = new Float64Array(50000).map((_, i) => (i % 25 < 10 ? 5 : 0));
+    expect(channelWarnings({ name: "tacho", unit: "V", data: tacho }).join()).not.toMatch(
+      /clipped/,
+    );
+  });
+
+  test("a force channel resting on an exact-zero baseline is not clipping", () => {
+    // Half-sine hits of 1 ms at 8192 Hz every 0.5 s, zero in between.
+    const force = new Float64Array(8192 * 5).map((_, i) => {
+      const t = (i % 4096) / 8192;
+      return t < 0.001 ? 200 * Math.sin(Math.PI * t / 0.001) : 0;
+    });
+    expect(channelWarnings({ name: "hammer", unit: "N", data: force }).join()).not.toMatch(
+      /clipped/,
+    );
+  });
+
+  test("a clipped noise-like accelerometer is found: flat runs that cut the waveform", () => {
+    // Road vibration, noise-like, overdriving a ±1 input: flat runs entered continuously.
+    const raw = gaussianNoise(9, 40000);
+    const x = raw.map((v) => Math.max(-1, Math.min(1, 0.8 * v)));
+    expect(channelWarnings(channel(x)).join()).toMatch(/clipped/);
   });
 
   test("a DC offset large against the signal", () => {
