@@ -236,25 +236,16 @@ export function motionFromPulses(times: Float64Array, ppr: number): ShaftMotion 
   const smoothed = new Float64Array(n);
   const rpm = new Float64Array(n);
   for (let j = 0; j < n; j++) {
-    const lo = Math.max(0, j - half);
-    const hi = Math.min(n - 1, j + half);
-    // Normal equations of t ≈ a + b·u + c·u², u = θ − θ_j.
-    let s0 = 0, s1 = 0, s2 = 0, s3 = 0, s4 = 0, t0 = 0, t1 = 0, t2 = 0;
-    for (let i = lo; i <= hi; i++) {
-      const u = angle[i] - angle[j];
-      const u2 = u * u;
-      s0 += 1;
-      s1 += u;
-      s2 += u2;
-      s3 += u2 * u;
-      s4 += u2 * u2;
-      t0 += times[i];
-      t1 += times[i] * u;
-      t2 += times[i] * u2;
-    }
-    const [a, b] = hi - lo >= 2
-      ? solve3([[s0, s1, s2], [s1, s2, s3], [s2, s3, s4]], [t0, t1, t2])
-      : [times[j], (times[hi] - times[lo]) / (angle[hi] - angle[lo])];
+    // A window of 2·half + 1 pulses, shifted rather than cut at the ends of the record: a
+    // one-sided fit over half the pulses reads the end speeds off by the edge-time noise
+    // (a TTL edge's time is known to ±½ sample). A cubic at the ends was tried: its lower
+    // bias is lost to more noise.
+    const lo = Math.max(0, Math.min(j - half, n - 1 - 2 * half));
+    const hi = Math.min(n - 1, lo + 2 * half);
+    const degree = Math.min(hi - lo, 2);
+    const [a, b] = degree < 1
+      ? [times[j], NaN]
+      : polynomialFit(times, angle, lo, hi, angle[j], degree);
     smoothed[j] = a;
     rpm[j] = 60 / b;
   }
@@ -274,15 +265,48 @@ export function motionFromPulses(times: Float64Array, ppr: number): ShaftMotion 
   };
 }
 
-/** Solves a 3×3 linear system by Cramer's rule (well conditioned here: centred angles). */
-function solve3(m: number[][], v: number[]): [number, number, number] {
-  const det = (a: number[][]) =>
-    a[0][0] * (a[1][1] * a[2][2] - a[1][2] * a[2][1]) -
-    a[0][1] * (a[1][0] * a[2][2] - a[1][2] * a[2][0]) +
-    a[0][2] * (a[1][0] * a[2][1] - a[1][1] * a[2][0]);
-  const d = det(m);
-  const replaced = (col: number) => m.map((row, r) => row.map((x, c) => (c === col ? v[r] : x)));
-  return [det(replaced(0)) / d, det(replaced(1)) / d, det(replaced(2)) / d];
+/**
+ * Least-squares polynomial t ≈ Σ c_k·u^k (k ≤ degree), u = θ − θ₀, over
+ * pulses lo…hi; returns the coefficients (c₀ is the smoothed time at θ₀,
+ * c₁ = dt/dθ there). Normal equations, solved by Gaussian elimination with
+ * partial pivoting (well conditioned: u is centred on the window's pulses).
+ */
+function polynomialFit(
+  times: Float64Array,
+  angle: Float64Array,
+  lo: number,
+  hi: number,
+  origin: number,
+  degree: number,
+): number[] {
+  const m = degree + 1;
+  const a = Array.from({ length: m }, () => new Float64Array(m + 1));
+  for (let i = lo; i <= hi; i++) {
+    const u = angle[i] - origin;
+    const powers = new Float64Array(2 * m - 1);
+    powers[0] = 1;
+    for (let k = 1; k < powers.length; k++) powers[k] = powers[k - 1] * u;
+    for (let r = 0; r < m; r++) {
+      for (let c = 0; c < m; c++) a[r][c] += powers[r + c];
+      a[r][m] += times[i] * powers[r];
+    }
+  }
+  for (let col = 0; col < m; col++) {
+    let pivot = col;
+    for (let r = col + 1; r < m; r++) if (Math.abs(a[r][col]) > Math.abs(a[pivot][col])) pivot = r;
+    [a[col], a[pivot]] = [a[pivot], a[col]];
+    for (let r = col + 1; r < m; r++) {
+      const f = a[r][col] / a[col][col];
+      for (let c = col; c <= m; c++) a[r][c] -= f * a[col][c];
+    }
+  }
+  const x = new Array<number>(m).fill(0);
+  for (let r = m - 1; r >= 0; r--) {
+    let sum = a[r][m];
+    for (let c = r + 1; c < m; c++) sum -= a[r][c] * x[c];
+    x[r] = sum / a[r][r];
+  }
+  return x;
 }
 
 /**

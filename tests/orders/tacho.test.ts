@@ -25,6 +25,24 @@ describe("rpm from a tacho", () => {
     });
   }
 
+  for (const [label, r0, r1] of [["run-up", 900, 4800], ["run-down", 4800, 900]] as const) {
+    test(`${label}, 2 pulses per revolution at 8192 Hz: rpm at the first and last pulses`, () => {
+      // Truth: the analytic linear profile. A TTL edge's time is known to ±½ sample, so a fit
+      // over half a window at the record's ends read the end speeds 0.3 % off.
+      const profile = linearProfile(r0, r1, 20);
+      const rate = 8192;
+      const pulses = tachoPulses(ttlTacho(profile, rate, 20, 2), rate, { ppr: 2 });
+      const motion = motionFromPulses(pulses.times, 2);
+      const n = motion.times.length;
+      // The high-speed end within 0.1 %; the low-speed end, where the speed changes most
+      // over the fit's window of pulses, within 0.3 %.
+      const [high, low] = r1 > r0 ? [n - 1, 0] : [0, n - 1];
+      const error = (j: number) => Math.abs(motion.rpm[j] / profile.rpm(motion.times[j]) - 1);
+      expect(error(high), "high-speed end").toBeLessThan(0.001);
+      expect(error(low), "low-speed end").toBeLessThan(0.003);
+    });
+  }
+
   test("an extra (spurious) pulse is removed", () => {
     const profile = linearProfile(1200, 1200, 5);
     const signal = ttlTacho(profile, RATE, 5, 1);
