@@ -1,8 +1,9 @@
 /**
  * Levels in decibels against the trade's reference values: 20 µPa for sound
  * pressure (ISO 1683), 1e-6 m/s² for acceleration and 1e-9 m/s for velocity
- * (ISO 1683); 1e-12 m for displacement (ISO 1683); anything else needs a
- * reference from the user.
+ * (ISO 1683); 1e-12 m for displacement and 1e-6 N for force (ISO 1683);
+ * anything else needs a reference from the user. Channels arrive in SI base
+ * units (io/units.ts), so a channel recorded in g or mm/s finds its reference.
  *
  * @module
  */
@@ -13,6 +14,7 @@ const REFERENCES: Readonly<Record<string, number>> = {
   "m/s^2": 1e-6,
   "m/s": 1e-9,
   m: 1e-12,
+  N: 1e-6, // ISO 1683:2015, force level re 1 µN (from memory)
 };
 
 /**
