@@ -6,6 +6,7 @@
  *
  * @module
  */
+import { indexOfMin } from "../extent.ts";
 
 /** Options of {@linkcode minimise}. */
 export interface MinimiseOptions {
@@ -84,6 +85,6 @@ export function minimise(
       }
     }
   }
-  const best = values.indexOf(Math.min(...values));
+  const best = indexOfMin(values);
   return { x: simplex[best], value: values[best], iterations };
 }

@@ -28,6 +28,7 @@
  *
  * @module
  */
+import { maxOf } from "../extent.ts";
 import { QuiverError } from "../errors.ts";
 import { type Channel, type Recording, selectChannels } from "../io/recording.ts";
 import type { Table, TableColumn } from "../io/table.ts";
@@ -192,7 +193,7 @@ export function trackOrders(recording: Recording, options: OrderOptions): OrderR
   }
   const steps: number[] = [];
   for (let r = rpmMin; r <= rpmMax + 1e-9; r += step) steps.push(r);
-  const maxOrder = Math.max(...orders);
+  const maxOrder = maxOf(orders);
   const revolutions = options.revolutions ?? 16;
   const samplesPerRev = options.samplesPerRev ??
     Math.max(64, 2 ** Math.ceil(Math.log2(4 * maxOrder)));

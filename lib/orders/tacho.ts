@@ -19,6 +19,7 @@
  *
  * @module
  */
+import { minOf } from "../extent.ts";
 import { QuiverError } from "../errors.ts";
 
 /** Options of {@linkcode tachoPulses}. */
@@ -135,7 +136,7 @@ export function tachoPulses(
   }
   let inserted = 0;
   const intervals = times.slice(1).map((t, i) => t - times[i]);
-  const shortest = Math.min(...intervals.map((_, i) => localMedian(intervals, i)));
+  const shortest = minOf(intervals.map((_, i) => localMedian(intervals, i)));
   if (shortest * rate < 3) {
     throw new QuiverError(
       `tacho pulses come only ${

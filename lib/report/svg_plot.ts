@@ -7,6 +7,7 @@
  *
  * @module
  */
+import { maxOf, minOf } from "../extent.ts";
 import { scaleLinear, scaleLog } from "d3-scale";
 
 /** quiver's line palette. */
@@ -58,8 +59,8 @@ export function escapeXml(text: string): string {
 function extent(values: number[], log: boolean): [number, number] {
   const usable = values.filter((v) => Number.isFinite(v) && (!log || v > 0));
   if (usable.length === 0) return log ? [1, 10] : [0, 1];
-  let lo = Math.min(...usable);
-  let hi = Math.max(...usable);
+  let lo = minOf(usable);
+  let hi = maxOf(usable);
   if (lo === hi) {
     lo = log ? lo / 2 : lo - 1;
     hi = log ? hi * 2 : hi + 1;
@@ -266,8 +267,8 @@ export function barPlot(plot: BarPlot): string {
   const width = plot.width ?? 720;
   const height = plot.height ?? 360;
   const values = plot.groups.flatMap((g) => Array.from(g.values)).filter(Number.isFinite);
-  const lo = Math.min(...values);
-  const hi = Math.max(...values);
+  const lo = minOf(values);
+  const hi = maxOf(values);
   const y = scaleLinear().domain([Math.floor((lo - 10) / 10) * 10, Math.ceil((hi + 5) / 10) * 10])
     .range([
       height - MARGIN.bottom,
@@ -368,8 +369,8 @@ export function heatMap(plot: HeatMap): string {
   const height = plot.height ?? 380;
   const right = MARGIN.right + 60;
   const all = plot.z.flatMap((col) => Array.from(col)).filter(Number.isFinite);
-  const max = Math.max(...all);
-  const domain = plot.zDomain ?? [Math.max(Math.min(...all), max - 50), max];
+  const max = maxOf(all);
+  const domain = plot.zDomain ?? [Math.max(minOf(all), max - 50), max];
   const x = scaleLinear().domain([0, plot.x.length]).range([MARGIN.left, width - right]);
   const y = scaleLinear().domain([0, plot.y.length]).range([height - MARGIN.bottom, MARGIN.top]);
   const parts: string[] = [];

@@ -8,6 +8,7 @@
  * Needs /usr/bin/time (GNU time) for peak RSS and, for the peer figures,
  * `apt-get install -y python3-pandas python3-scipy`.
  */
+import { maxOf } from "../../lib/extent.ts";
 import { spawnSync } from "node:child_process";
 import { existsSync, statSync } from "node:fs";
 import { mkdir, writeFile } from "node:fs/promises";
@@ -91,7 +92,7 @@ for (let i = 0; i < RUNS; i++) {
   }
 }
 const ourTime = median(ours.map((r) => r.seconds));
-const ourRss = Math.max(...ours.map((r) => r.rssMb));
+const ourRss = maxOf(ours.map((r) => r.rssMb));
 console.log(
   `\nCSV → PSD, 2 × 2^21 samples (${
     (statSync(csv).size / 1e6).toFixed(0)
@@ -100,7 +101,7 @@ console.log(
 console.log(`  quiver: ${ourTime.toFixed(2)} s median, peak RSS ${ourRss.toFixed(0)} MB`);
 if (peerAvailable) {
   const peerTime = median(peer.map((r) => r.seconds));
-  const peerRss = Math.max(...peer.map((r) => r.rssMb));
+  const peerRss = maxOf(peer.map((r) => r.rssMb));
   console.log(`  peer:   ${peerTime.toFixed(2)} s median, peak RSS ${peerRss.toFixed(0)} MB`);
   console.log(
     `  time ratio quiver/peer ${(ourTime / peerTime).toFixed(2)} (target ≤ 1.0), memory ratio ${

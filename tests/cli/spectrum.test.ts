@@ -1,3 +1,4 @@
+import { maxOf } from "../../lib/extent.ts";
 import { readFileSync } from "node:fs";
 import { mkdtemp, readdir, readFile, writeFile } from "node:fs/promises";
 import { beforeAll, describe, expect, test } from "vitest";
@@ -138,7 +139,7 @@ describe("quiver spectrum", () => {
     const lines = r.stdout.trim().split("\n");
     expect(lines[0]).toBe("frequency_hz,driver_ear [Pa]");
     // 0.5 FS · 2 V/FS = 1 V peak; at 50 mV/Pa that is 20 Pa peak (definition of sensitivity).
-    const peak = Math.max(...lines.slice(1).map((l) => Number(l.split(",")[1])));
+    const peak = maxOf(lines.slice(1).map((l) => Number(l.split(",")[1])));
     assertClose(peak, 20, { relative: 0.005, absolute: 0 });
   });
 

@@ -1,3 +1,4 @@
+import { maxOf } from "../../lib/extent.ts";
 import { readFileSync } from "node:fs";
 import { describe, expect, test } from "vitest";
 import { averagedSpectrum } from "../../lib/dsp/averaged_spectrum.ts";
@@ -124,7 +125,7 @@ describe("flat-top amplitude", () => {
       );
       const e = spectralEstimate([x], { rate, block, window: "flattop" });
       const peak = autoSpectrum(e, 0, "peak");
-      const read = Math.max(...peak.subarray(95, 107));
+      const read = maxOf(peak.subarray(95, 107));
       expect(Math.abs(20 * Math.log10(read / amplitude))).toBeLessThan(0.1);
       expect(Math.abs(read / amplitude - 1)).toBeLessThan(0.005);
     }

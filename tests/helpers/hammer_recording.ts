@@ -1,4 +1,5 @@
 /** A synthesised impact test on our own two-mode bracket (invented for the tests). */
+import { maxOf } from "../../lib/extent.ts";
 import { writeFile } from "node:fs/promises";
 import type { Recording } from "../../lib/io/recording.ts";
 import { type CliResult, runQuiver } from "./cli.ts";
@@ -38,7 +39,7 @@ export function sixHits(): Recording {
   const a = simulateReceptance(MODES_A, force, RATE);
   const b = simulateReceptance(MODES_B, force, RATE);
   const na = gaussianNoise(78, force.length);
-  const scale = 1e-4 * Math.max(...a.map(Math.abs));
+  const scale = 1e-4 * maxOf(a.map(Math.abs));
   return {
     rate: RATE,
     startTime: 0,

@@ -1,3 +1,4 @@
+import { maxOf } from "../../lib/extent.ts";
 import { describe, expect, test } from "vitest";
 import { modalDamping } from "../../lib/modal/damping_analysis.ts";
 import type { FrfData } from "../../lib/modal/frf_input.ts";
@@ -152,7 +153,7 @@ describe("the half-power method's own bias", () => {
         const h = receptance([{ frequencyHz: fn, damping: zeta, residue: 1 }], v);
         return Math.hypot(h.re, h.im);
       });
-      const hp = halfPower(f, mag, mag.indexOf(Math.max(...mag)))!;
+      const hp = halfPower(f, mag, mag.indexOf(maxOf(mag)))!;
       const root = 2 * zeta * Math.sqrt(1 - zeta * zeta);
       const expected =
         (Math.sqrt(1 - 2 * zeta * zeta + root) - Math.sqrt(1 - 2 * zeta * zeta - root)) /

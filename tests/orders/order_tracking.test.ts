@@ -1,3 +1,4 @@
+import { maxOf } from "../../lib/extent.ts";
 import { describe, expect, test } from "vitest";
 import { trackOrders } from "../../lib/orders/order_tracking.ts";
 import { QuiverError } from "../../lib/errors.ts";
@@ -57,7 +58,7 @@ describe("order tracking of a run-up", () => {
         expect(Math.abs(db(o6[i], CONTENT[1].rms(s))), `order 6 at ${s} rpm`).toBeLessThan(1);
       });
       // The resonance is crossed by order 6 at 3200 rpm.
-      expect(steps[o6.indexOf(Math.max(...o6))]).toBe(3200);
+      expect(steps[o6.indexOf(maxOf(o6))]).toBe(3200);
       // Overall level: both orders and the noise, as RMS.
       const overall = col(cuts, "mount_acc_overall");
       const at3200 = steps.indexOf(3200);

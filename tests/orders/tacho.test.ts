@@ -43,6 +43,17 @@ describe("rpm from a tacho", () => {
     });
   }
 
+  test("a long encoder record (60 pulses/rev, 50 s at 51.2 kHz, ~225 000 pulses) is read", () => {
+    // Crashed with "Maximum call stack size exceeded" from Math.min(...intervals).
+    // Pulse count from the analytic angle: (3000·50 + 3000·50/2)/60 rev × 60 = 225 000.
+    const profile = linearProfile(3000, 6000, 50);
+    const pulses = tachoPulses(ttlTacho(profile, RATE, 50, 60), RATE, { ppr: 60 });
+    expect(Math.abs(pulses.times.length - 225_000)).toBeLessThanOrEqual(1);
+    const motion = motionFromPulses(pulses.times, 60);
+    const mid = motion.times.length >> 1;
+    expect(Math.abs(motion.rpm[mid] / profile.rpm(motion.times[mid]) - 1)).toBeLessThan(0.005);
+  });
+
   test("an extra (spurious) pulse is removed", () => {
     const profile = linearProfile(1200, 1200, 5);
     const signal = ttlTacho(profile, RATE, 5, 1);
