@@ -3,6 +3,7 @@
  *
  * @module
  */
+import { formatFixed } from "../lib/format_number.ts";
 import process from "node:process";
 import { z } from "zod";
 import { FRF_FORMS } from "../lib/frf/forms.ts";
@@ -126,7 +127,7 @@ export async function run(argv: readonly string[]): Promise<void> {
   for (const m of result.modes) {
     process.stderr.write(
       `${m.channel} mode ${m.mode}: ${m.frequencyHz.toFixed(3)} Hz, damping ${
-        (100 * m.dampingRatio).toFixed(3)
+        formatFixed(100 * m.dampingRatio, 3)
       } % ` +
         `(${m.method})${m.flags.length > 0 ? ` [${m.flags.join(", ")}]` : ""}\n`,
     );

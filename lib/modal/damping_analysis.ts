@@ -14,6 +14,10 @@
  *   to separate with single-mode methods.
  * - `disagree`: half-power and fit damping differ by more than 20 %.
  * - `poor_fit`: the fit's RMS misfit exceeds 10 % of the data.
+ * - `no_fit`: the SDOF fit could not be made (too few lines around the peak,
+ *   or it did not converge to a pole with positive frequency and damping).
+ *   With no estimate at all the mode is still reported, at its peak line,
+ *   with empty damping cells: one poor peak never fails the analysis.
  * - `magnitude_only`: no phase in the table; the fit used |H| alone.
  * - `form_assumed`: the FRF form is unknown and receptance was assumed.
  * - `window_dominates`: the exponential window's added damping is more than
@@ -120,6 +124,7 @@ const LOW_COHERENCE = 0.9;
 const DISAGREEMENT = 0.2;
 const POOR_FIT = 0.1;
 const MANY_PEAKS = 20;
+const USABLE_COHERENCE = 0.8;
 
 /** Each FRF's own maximum within 2 lines of every peak of the summed |H|. */
 function peaksOnSum(
@@ -160,8 +165,13 @@ function analyseChannel(
     low: i === 0 ? 0 : Math.ceil((peaks[i - 1].index + p.index) / 2),
     high: i === peaks.length - 1 ? n - 1 : Math.floor((p.index + peaks[i + 1].index) / 2),
   }));
+  // An estimate that came out non-finite or non-positive (a poor peak) counts as none.
+  const usable = (e: HalfPowerEstimate | undefined) =>
+    e !== undefined && e.frequencyHz > 0 && e.dampingRatio > 0 && Number.isFinite(e.dampingRatio)
+      ? e
+      : undefined;
   const halfPowers: (HalfPowerEstimate | undefined)[] = peaks.map((p, i) =>
-    halfPower(frequencies, channel.magnitude, p.index, limits[i].low, limits[i].high, power)
+    usable(halfPower(frequencies, channel.magnitude, p.index, limits[i].low, limits[i].high, power))
   );
   return peaks.map((peak: Peak, i): ModeEstimate => {
     const flags: string[] = [];
@@ -196,9 +206,10 @@ function analyseChannel(
       while (
         hi < limits[i].high && (frequencies[hi] < peakHz + 1.5 * bandwidth || hi - peak.index < 3)
       ) hi++;
-      if (hi - lo + 1 >= 4) {
+      const start = Math.max(hp?.dampingRatio ?? bandwidth / (2 * peakHz), 1e-5);
+      if (hi - lo + 1 >= 4 && peakHz > 0 && Number.isFinite(start)) {
         const slice = (a: Float64Array | undefined) => a?.slice(lo, hi + 1);
-        fit = fitSdof(
+        const candidate = fitSdof(
           {
             frequencies: frequencies.slice(lo, hi + 1),
             re: slice(channel.re),
@@ -207,12 +218,18 @@ function analyseChannel(
             power,
           },
           peakHz,
-          Math.max(hp?.dampingRatio ?? bandwidth / (2 * peakHz), 1e-5),
+          start,
         );
-        if (!fit.complex) flags.push("magnitude_only");
-        if (fit.relativeMisfit > POOR_FIT) flags.push("poor_fit");
+        // A fit that wandered to a non-physical pole is no estimate.
+        if (candidate.frequencyHz > 0 && candidate.dampingRatio > 0) {
+          fit = candidate;
+          if (!fit.complex) flags.push("magnitude_only");
+          if (fit.relativeMisfit > POOR_FIT) flags.push("poor_fit");
+        } else {
+          flags.push("no_fit");
+        }
       } else {
-        flags.push("poor_fit");
+        flags.push("no_fit");
       }
     }
     const primaryHz = fit?.frequencyHz ?? peakHz;
@@ -235,6 +252,7 @@ function analyseChannel(
     const primary = fitCorrected ?? hpCorrected;
     const measured = (fit?.dampingRatio ?? hp?.dampingRatio) ?? NaN;
     if (windowCorrection > 0.5 * measured) flags.push("window_dominates");
+    // No estimate: the mode is still reported, at its peak line, with empty damping cells.
     const damping = primary?.dampingRatio ?? NaN;
     return {
       channel: channel.name,
@@ -298,8 +316,37 @@ export function modalDamping(data: FrfData, options: DampingOptions = {}): Dampi
         minHz: options.minHz,
         maxHz: options.maxHz,
       });
-  const modes = chosen.flatMap((c) => analyseChannel(data.frequencies, c, options, tau, pick(c)));
   const warnings: string[] = [];
+  // Without a stated range, peaks are looked for only where the FRF is usable: the mean
+  // coherence over the peak's line and two lines either side at least USABLE_COHERENCE
+  // (common practice). Below it a peak is mostly noise; a hammer FRF's coherence falls
+  // where the force spectrum has run out.
+  const rangeGiven = options.minHz !== undefined || options.maxHz !== undefined;
+  const usablePeaks = (c: FrfChannel): Peak[] => {
+    const peaks = pick(c);
+    const coherence = c.coherence;
+    if (rangeGiven || coherence === undefined) return peaks;
+    const near = (k: number) => {
+      let sum = 0, count = 0;
+      for (let j = Math.max(0, k - 2); j <= Math.min(coherence.length - 1, k + 2); j++) {
+        sum += coherence[j];
+        count++;
+      }
+      return sum / count;
+    };
+    const kept = peaks.filter((p) => near(p.index) >= USABLE_COHERENCE);
+    if (kept.length < peaks.length) {
+      warnings.push(
+        `${
+          peaks.length - kept.length
+        } peak(s) of "${c.name}" where the coherence around them is below ${USABLE_COHERENCE} were left out as noise; give a range (min/max Hz) to look there`,
+      );
+    }
+    return kept;
+  };
+  const modes = chosen.flatMap((c) =>
+    analyseChannel(data.frequencies, c, options, tau, usablePeaks(c))
+  );
   for (const c of chosen) {
     const count = modes.filter((m) => m.channel === c.name).length;
     if (count === 0) warnings.push(`no peak found in "${c.name}" in the range`);
@@ -341,8 +388,8 @@ export function modalDamping(data: FrfData, options: DampingOptions = {}): Dampi
       column("channel", modes.map((m) => m.channel)),
       column("mode", new Float64Array(modes.map((m) => m.mode))),
       column("frequency_hz", new Float64Array(modes.map((m) => m.frequencyHz))),
-      column("damping_ratio", new Float64Array(modes.map((m) => m.dampingRatio))),
-      column("q_factor", new Float64Array(modes.map((m) => m.qFactor))),
+      column("damping_ratio", modes.map((m) => text(m.dampingRatio))),
+      column("q_factor", modes.map((m) => text(m.qFactor))),
       column("method", modes.map((m) => m.method)),
       column("flags", modes.map((m) => m.flags.join(";"))),
       column("half_power_frequency_hz", modes.map((m) => text(m.halfPower?.frequencyHz))),
@@ -359,6 +406,9 @@ export function modalDamping(data: FrfData, options: DampingOptions = {}): Dampi
       prominence_db: options.prominenceDb ?? 6,
       peaks_from: options.peaks ?? "each",
       min_hz: options.minHz ?? null,
+      peaks_where_coherence_at_least: options.minHz !== undefined || options.maxHz !== undefined
+        ? null
+        : USABLE_COHERENCE,
       max_hz: options.maxHz ?? null,
       exponential_window_tau_s: tau ?? null,
       modes,

@@ -219,3 +219,29 @@ function toFrfData(table: Table): Omit<FrfData, "frequencies"> {
   const { frequencies: _f, ...rest } = frfFromColumns(table.columns, table.metadata);
   return rest;
 }
+
+describe("a mode that cannot be estimated", () => {
+  test("is reported at its peak line with a flag and empty damping cells, never NaN or a failure", () => {
+    // Two modes of equal residue at 50 and 54 Hz with ζ = 4 % (analytic receptance, Ewins
+    // eq. 2.37): the dip between them is shallower than 3 dB, so neither peak has both
+    // half-power points before its neighbour. Picked with a 0.1 dB prominence.
+    const f = new Float64Array(201).map((_, k) => 0.5 * k);
+    const modes: Mode[] = [
+      { frequencyHz: 50, damping: 0.04, residue: 1 },
+      { frequencyHz: 54, damping: 0.04, residue: 1 },
+    ];
+    const h = Array.from(f, (v) => receptance(modes, v));
+    const re = new Float64Array(h.map((x) => x.re)), im = new Float64Array(h.map((x) => x.im));
+    const magnitude = re.map((r, k) => Math.hypot(r, im[k]));
+    const { modes: found, table } = modalDamping({
+      frequencies: f,
+      channels: [{ name: "pair", unit: "m/N", form: "receptance", re, im, magnitude }],
+    }, { method: "half-power", prominenceDb: 0.1 });
+    const unestimated = found.filter((m) => m.flags.includes("no_half_power"));
+    expect(unestimated.length).toBeGreaterThan(0);
+    const damping = table.columns.find((c) => c.name === "damping_ratio")!.values;
+    found.forEach((m, i) => {
+      if (m.flags.includes("no_half_power")) expect(damping[i]).toBe("");
+    });
+  });
+});
