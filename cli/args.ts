@@ -52,17 +52,21 @@ export function parseCommandArgs<S extends z.ZodType>(
       strict: true,
     });
   } catch (error) {
-    usageError(error instanceof Error ? error.message.split("\n")[0] : String(error));
+    usageError(optionProblem(error, Object.keys({ ...COMMON_OPTIONS, ...spec })));
   }
   const { help: _help, debug: _debug, ...rest } = parsed.values;
   const result = schema.safeParse(rest);
   if (!result.success) {
-    const issue = result.error.issues[0];
-    const name = issue.path.map(String).join(".");
-    if (name !== "" && (rest as Record<string, unknown>)[name] === undefined) {
-      usageError(`--${name} is required`);
-    }
-    usageError(name === "" ? issue.message : `--${name}: ${issue.message}`);
+    // Every problem at once, so that one correction round fixes them all.
+    usageError(
+      result.error.issues.map((issue) => {
+        const name = issue.path.map(String).join(".");
+        if (name !== "" && (rest as Record<string, unknown>)[name] === undefined) {
+          return `--${name} is required`;
+        }
+        return name === "" ? issue.message : `--${name}: ${issue.message}`;
+      }).join("; "),
+    );
   }
   return { positionals: parsed.positionals, values: result.data };
 }
@@ -141,4 +145,71 @@ export async function inFileAsync<T>(file: string, step: () => Promise<T>): Prom
   } catch (error) {
     throw withFile(error, file);
   }
+}
+
+/**
+ * parseArgs' complaint in quiver's words: an unknown option with the nearest
+ * valid one, an option without its value, a flag given a value.
+ */
+function optionProblem(error: unknown, known: readonly string[]): string {
+  const message = error instanceof Error ? error.message : String(error);
+  const code = (error as { code?: string }).code;
+  // Node names an option as '--block <value>' or '-h, --help': keep the long form.
+  const option = /'(?:-\w, )?(-{1,2}[^' ]+)/.exec(message)?.[1] ?? "";
+  if (code === "ERR_PARSE_ARGS_UNKNOWN_OPTION") {
+    const name = option.replace(/^-+/, "");
+    const near = nearestName(name, known);
+    return `unknown option ${option}${near === undefined ? "" : `; did you mean --${near}?`}` +
+      " (--help lists the options)";
+  }
+  if (code === "ERR_PARSE_ARGS_INVALID_OPTION_VALUE") {
+    if (/ambiguous/.test(message)) {
+      return `${option} needs a value; for one that starts with "-" write ${option}=VALUE`;
+    }
+    return /argument missing/.test(message)
+      ? `${option} needs a value`
+      : `${option} takes no value`;
+  }
+  return message.split("\n")[0];
+}
+
+/**
+ * The known name closest to `name` by edit distance, when it is close enough
+ * to be a slip (at most a third of the name's length, and at least 1).
+ *
+ * @example
+ * ```ts
+ * import { nearestName } from "./args.ts";
+ * if (nearestName("windwo", ["window", "overlap"]) !== "window") throw new Error();
+ * if (nearestName("zzzz", ["window"]) !== undefined) throw new Error();
+ * ```
+ */
+export function nearestName(name: string, known: readonly string[]): string | undefined {
+  let best: string | undefined;
+  let bestDistance = Infinity;
+  for (const candidate of known) {
+    const d = editDistance(name.toLowerCase(), candidate.toLowerCase());
+    if (d < bestDistance) {
+      best = candidate;
+      bestDistance = d;
+    }
+  }
+  return bestDistance <= Math.max(1, Math.floor(name.length / 3)) ? best : undefined;
+}
+
+/** Levenshtein distance (insert, delete, substitute), one row of the table at a time. */
+function editDistance(a: string, b: string): number {
+  let previous = Array.from({ length: b.length + 1 }, (_, j) => j);
+  for (let i = 1; i <= a.length; i++) {
+    const current = [i];
+    for (let j = 1; j <= b.length; j++) {
+      current[j] = Math.min(
+        previous[j] + 1,
+        current[j - 1] + 1,
+        previous[j - 1] + (a[i - 1] === b[j - 1] ? 0 : 1),
+      );
+    }
+    previous = current;
+  }
+  return previous[b.length];
 }

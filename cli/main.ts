@@ -8,6 +8,7 @@
  */
 import process from "node:process";
 import { QuiverError } from "../lib/errors.ts";
+import { QUIVER_VERSION } from "../lib/version.ts";
 import * as bands from "./bands.ts";
 import * as calibrate from "./calibrate.ts";
 import * as compare from "./compare.ts";
@@ -48,6 +49,7 @@ Commands:
 ${Object.entries(COMMANDS).map(([name, c]) => `  ${name.padEnd(12)} ${c.summary}`).join("\n")}
 
 Every command takes --help, and --debug to show a stack trace on error.
+quiver --version prints the version.
 Exit codes: 0 done, 1 bad data, 2 wrong usage, 3 internal error.
 `;
 
@@ -58,6 +60,10 @@ export async function main(argv: readonly string[]): Promise<number> {
   if (name === undefined || name === "--help" || name === "-h" || name === "help") {
     process.stdout.write(MAIN_HELP);
     return name === undefined ? 2 : 0;
+  }
+  if (name === "--version" || name === "-V" || name === "version") {
+    process.stdout.write(`quiver ${QUIVER_VERSION}\n`);
+    return 0;
   }
   const command = COMMANDS[name];
   if (command === undefined) {

@@ -27,7 +27,8 @@ import type { Curve } from "./curve_input.ts";
  */
 export function frac(test: Curve, simulation: Curve): { value: number; complex: boolean } {
   const n = test.magnitude.length;
-  if (simulation.magnitude.length !== n) throw new RangeError("FRAC needs both curves on one grid");
+  // The curves come from the alignment, never from the user: a mismatch is a bug of ours.
+  if (simulation.magnitude.length !== n) throw new Error("FRAC needs both curves on one grid");
   const complex = test.re !== undefined && test.im !== undefined && simulation.re !== undefined &&
     simulation.im !== undefined;
   let crossRe = 0, crossIm = 0, tt = 0, ss = 0;

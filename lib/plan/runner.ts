@@ -95,21 +95,31 @@ export async function loadPlan(path: string): Promise<{ plan: Plan; text: string
   }
   const parsed = planSchema.safeParse(json);
   if (!parsed.success) {
-    const issue = parsed.error.issues[0];
-    const path_ = keyPath(issue.path);
-    const hint = issue.code === "unrecognized_keys" ? ` (${issue.keys.join(", ")})` : "";
-    throw new QuiverError(
-      `plan key ${path_ === "" ? "(top level)" : path_}: ${issue.message}${hint}`,
-      { file: path },
-      "usage",
+    throw planProblems(
+      parsed.error.issues.map((issue) => {
+        const path_ = keyPath(issue.path);
+        const hint = issue.code === "unrecognized_keys" ? ` (${issue.keys.join(", ")})` : "";
+        return `plan key ${path_ === "" ? "(top level)" : path_}: ${issue.message}${hint}`;
+      }),
+      path,
     );
   }
   return { plan: parsed.data, text };
 }
 
-const planError = (file: string, where: string, detail: string): never => {
-  throw new QuiverError(`plan key ${where}: ${detail}`, { file }, "usage");
-};
+/** Thrown inside plan validation to skip the rest of one item once a problem is noted. */
+const SKIP = Symbol("skip");
+
+/** One usage error naming every problem of a plan, one per line after the first. */
+function planProblems(problems: readonly string[], file: string): QuiverError {
+  return new QuiverError(
+    problems.length === 1
+      ? problems[0]
+      : `the plan has ${problems.length} problems:\n  ${problems.join("\n  ")}`,
+    { file },
+    "usage",
+  );
+}
 
 /**
  * The steps of a plan with their arguments and output paths, after checking
@@ -121,136 +131,149 @@ export function planSteps(
   outDir: string,
   commands: Readonly<Record<string, PlanCommand>>,
 ): PlanStep[] {
+  // Every problem is collected, so that one run of validation names them all.
+  const problems: string[] = [];
+  const fail = (where: string, detail: string): never => {
+    problems.push(`plan key ${where}: ${detail}`);
+    throw SKIP;
+  };
+  const each = (check: () => void) => {
+    try {
+      check();
+    } catch (error) {
+      if (error !== SKIP) throw error;
+    }
+  };
   const base = dirname(planFile);
   const at = (p: string) => (isAbsolute(p) ? p : join(base, p));
   const steps: PlanStep[] = [];
   const known = new Map<string, string>(); // id → command
   for (const [name, rec] of Object.entries(plan.recordings)) {
-    if (!existsSync(at(rec.file))) {
-      planError(planFile, `recordings.${name}.file`, `no such file: ${rec.file}`);
-    }
-    if (rec.setup !== undefined && !existsSync(at(rec.setup))) {
-      planError(planFile, `recordings.${name}.setup`, `no such file: ${rec.setup}`);
-    }
+    each(() => {
+      if (!existsSync(at(rec.file))) fail(`recordings.${name}.file`, `no such file: ${rec.file}`);
+    });
+    each(() => {
+      if (rec.setup !== undefined && !existsSync(at(rec.setup))) {
+        fail(`recordings.${name}.setup`, `no such file: ${rec.setup}`);
+      }
+    });
   }
   const check = (where: string, command: string, argv: string[]) => {
     const c = commands[command];
-    if (c === undefined) planError(planFile, where, `unknown command "${command}"`);
+    if (c === undefined) fail(where, `unknown command "${command}"`);
     try {
       c.validate(argv);
     } catch (error) {
       const message = error instanceof Error ? error.message : String(error);
       const option = /--([a-z0-9-]+)/i.exec(message)?.[1];
-      planError(
-        planFile,
-        option !== undefined ? `${where}.options.${option}` : `${where}.options`,
-        message,
-      );
+      fail(option !== undefined ? `${where}.options.${option}` : `${where}.options`, message);
     }
   };
-  plan.analyses.forEach((a, i) => {
-    const where = `analyses[${i}]`;
-    if (known.has(a.id)) planError(planFile, `${where}.id`, `"${a.id}" is used twice`);
-    const argv: string[] = [];
-    const inputs: string[] = [];
-    const needs: string[] = [];
-    if (a.command === "damping") {
-      if (a.input === undefined) {
-        planError(planFile, `${where}.input`, "damping needs the id of an frf or hammer analysis");
+  plan.analyses.forEach((a, i) =>
+    each(() => {
+      const where = `analyses[${i}]`;
+      if (known.has(a.id)) fail(`${where}.id`, `"${a.id}" is used twice`);
+      const argv: string[] = [];
+      const inputs: string[] = [];
+      const needs: string[] = [];
+      if (a.command === "damping") {
+        if (a.input === undefined) {
+          fail(`${where}.input`, "damping needs the id of an frf or hammer analysis");
+        }
+        const source = known.get(a.input as string);
+        if (source !== "frf" && source !== "hammer") {
+          fail(`${where}.input`, `"${a.input}" is not an earlier frf or hammer analysis`);
+        }
+        const path = join(outDir, `${a.input}.json`);
+        argv.push(path);
+        inputs.push(path);
+        needs.push(a.input as string);
+      } else {
+        if (a.recording === undefined) {
+          fail(`${where}.recording`, `${a.command} needs a recording`);
+        }
+        const rec = plan.recordings[a.recording as string];
+        if (rec === undefined) {
+          fail(`${where}.recording`, `no recording "${a.recording}" in recordings`);
+        }
+        argv.push(at(rec.file));
+        inputs.push(at(rec.file));
+        if (rec.setup !== undefined) {
+          argv.push("--setup", at(rec.setup));
+          inputs.push(at(rec.setup));
+        }
+        if (rec.rate !== undefined) argv.push("--rate", String(rec.rate));
       }
-      const source = known.get(a.input as string);
-      if (source !== "frf" && source !== "hammer") {
-        planError(
-          planFile,
-          `${where}.input`,
-          `"${a.input}" is not an earlier frf or hammer analysis`,
-        );
+      const outputs: Record<string, string> = { out: join(outDir, `${a.id}.json`) };
+      if (a.command === "hammer") outputs["hits-out"] = join(outDir, `${a.id}_hits.csv`);
+      if (a.command === "orders") {
+        outputs["rpm-out"] = join(outDir, `${a.id}_rpm.json`);
+        outputs["map-out"] = join(outDir, `${a.id}_map.json`);
       }
-      const path = join(outDir, `${a.input}.json`);
-      argv.push(path);
-      inputs.push(path);
-      needs.push(a.input as string);
-    } else {
-      if (a.recording === undefined) {
-        planError(planFile, `${where}.recording`, `${a.command} needs a recording`);
+      for (const key of Object.keys(outputs)) {
+        if (key in a.options || "format" in a.options) {
+          fail(
+            `${where}.options.${key in a.options ? key : "format"}`,
+            "outputs are set by the plan runner",
+          );
+        }
       }
-      const rec = plan.recordings[a.recording as string];
-      if (rec === undefined) {
-        planError(planFile, `${where}.recording`, `no recording "${a.recording}" in recordings`);
+      argv.push(...optionsToArgv(a.options));
+      for (const [key, path] of Object.entries(outputs)) argv.push(`--${key}`, path);
+      check(where, a.command, argv);
+      known.set(a.id, a.command);
+      steps.push({
+        id: a.id,
+        kind: "analysis",
+        command: a.command,
+        argv,
+        inputs,
+        outputs,
+        needs,
+        where,
+      });
+    })
+  );
+  plan.comparisons.forEach((c, i) =>
+    each(() => {
+      const where = `comparisons[${i}]`;
+      if (known.has(c.id)) fail(`${where}.id`, `"${c.id}" is used twice`);
+      if (!known.has(c.test)) fail(`${where}.test`, `no analysis "${c.test}"`);
+      const sim = at(c.simulation.file);
+      if (!existsSync(sim)) {
+        fail(`${where}.simulation.file`, `no such file: ${c.simulation.file}`);
       }
-      argv.push(at(rec.file));
-      inputs.push(at(rec.file));
-      if (rec.setup !== undefined) {
-        argv.push("--setup", at(rec.setup));
-        inputs.push(at(rec.setup));
+      const test = join(outDir, `${c.test}.json`);
+      const outputs = {
+        out: join(outDir, `${c.id}.json`),
+        "summary-out": join(outDir, `${c.id}_summary.json`),
+      };
+      const argv = [test, sim, ...optionsToArgv(c.options)];
+      if (c.test_column !== undefined) argv.push("--test-column", c.test_column);
+      if (c.simulation.column !== undefined) argv.push("--sim-column", c.simulation.column);
+      for (const [key, path] of Object.entries(outputs)) argv.push(`--${key}`, path);
+      check(where, "compare", argv);
+      known.set(c.id, "compare");
+      steps.push({
+        id: c.id,
+        kind: "comparison",
+        command: "compare",
+        argv,
+        inputs: [test, sim],
+        outputs,
+        needs: [c.test],
+        where,
+      });
+    })
+  );
+  plan.targets.forEach((t, i) =>
+    each(() => {
+      if (!known.has(t.of.analysis)) {
+        fail(`targets[${i}].of.analysis`, `no analysis "${t.of.analysis}"`);
       }
-      if (rec.rate !== undefined) argv.push("--rate", String(rec.rate));
-    }
-    const outputs: Record<string, string> = { out: join(outDir, `${a.id}.json`) };
-    if (a.command === "hammer") outputs["hits-out"] = join(outDir, `${a.id}_hits.csv`);
-    if (a.command === "orders") {
-      outputs["rpm-out"] = join(outDir, `${a.id}_rpm.json`);
-      outputs["map-out"] = join(outDir, `${a.id}_map.json`);
-    }
-    for (const key of Object.keys(outputs)) {
-      if (key in a.options || "format" in a.options) {
-        planError(
-          planFile,
-          `${where}.options.${key in a.options ? key : "format"}`,
-          "outputs are set by the plan runner",
-        );
-      }
-    }
-    argv.push(...optionsToArgv(a.options));
-    for (const [key, path] of Object.entries(outputs)) argv.push(`--${key}`, path);
-    check(where, a.command, argv);
-    known.set(a.id, a.command);
-    steps.push({
-      id: a.id,
-      kind: "analysis",
-      command: a.command,
-      argv,
-      inputs,
-      outputs,
-      needs,
-      where,
-    });
-  });
-  plan.comparisons.forEach((c, i) => {
-    const where = `comparisons[${i}]`;
-    if (known.has(c.id)) planError(planFile, `${where}.id`, `"${c.id}" is used twice`);
-    if (!known.has(c.test)) planError(planFile, `${where}.test`, `no analysis "${c.test}"`);
-    const sim = at(c.simulation.file);
-    if (!existsSync(sim)) {
-      planError(planFile, `${where}.simulation.file`, `no such file: ${c.simulation.file}`);
-    }
-    const test = join(outDir, `${c.test}.json`);
-    const outputs = {
-      out: join(outDir, `${c.id}.json`),
-      "summary-out": join(outDir, `${c.id}_summary.json`),
-    };
-    const argv = [test, sim, ...optionsToArgv(c.options)];
-    if (c.test_column !== undefined) argv.push("--test-column", c.test_column);
-    if (c.simulation.column !== undefined) argv.push("--sim-column", c.simulation.column);
-    for (const [key, path] of Object.entries(outputs)) argv.push(`--${key}`, path);
-    check(where, "compare", argv);
-    known.set(c.id, "compare");
-    steps.push({
-      id: c.id,
-      kind: "comparison",
-      command: "compare",
-      argv,
-      inputs: [test, sim],
-      outputs,
-      needs: [c.test],
-      where,
-    });
-  });
-  plan.targets.forEach((t, i) => {
-    if (!known.has(t.of.analysis)) {
-      planError(planFile, `targets[${i}].of.analysis`, `no analysis "${t.of.analysis}"`);
-    }
-  });
+    })
+  );
+  if (problems.length > 0) throw planProblems(problems, planFile);
   return steps;
 }
 
