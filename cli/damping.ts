@@ -3,6 +3,7 @@
  *
  * @module
  */
+import { TARGETS_NOT_MET_EXIT } from "./exit_codes.ts";
 import { formatFixed } from "../lib/format_number.ts";
 import process from "node:process";
 import { z } from "zod";
@@ -48,6 +49,7 @@ Options:
   --form F             ${FRF_FORMS.join(" | ")}, when the table does not say
                        (default: receptance, flagged form_assumed)
   --target-hz F        check that the first mode is at or above F Hz
+  --require-targets    exit with code 4 when that target fails (default: report, exit 0)
   --delimiter D, --decimal M   as for recordings (auto)
 
 ${OUTPUT_HELP}
@@ -74,6 +76,7 @@ export const schema = z.strictObject({
   "exp-tau": positive("seconds").optional(),
   form: z.enum(FRF_FORMS).optional(),
   "target-hz": positive("Hz").optional(),
+  "require-targets": z.boolean().optional(),
   delimiter: z.enum(["auto", "comma", "semicolon", "tab"]).optional(),
   decimal: z.enum(["auto", "point", "comma"]).optional(),
   ...outputOptionsShape,
@@ -92,6 +95,7 @@ export const options: OptionSpec = {
   "exp-tau": text,
   form: text,
   "target-hz": text,
+  "require-targets": { type: "boolean" },
   delimiter: text,
   decimal: text,
   ...OUTPUT_OPTIONS,
@@ -142,5 +146,6 @@ export async function run(argv: readonly string[]): Promise<void> {
             t.marginPercent!.toFixed(1)
           } %)\n`,
     );
+    if (!t.pass && values["require-targets"] === true) process.exitCode = TARGETS_NOT_MET_EXIT;
   }
 }

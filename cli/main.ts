@@ -1,7 +1,8 @@
 /**
  * The quiver command line: `deno run -A cli/main.ts <command> [options]`.
  *
- * Exit codes: 0 success, 1 bad data, 2 wrong usage, 3 internal error.
+ * Exit codes: 0 success, 1 bad data, 2 wrong usage, 3 internal error,
+ * 4 targets not met (only when asked for with --require-targets).
  * Errors print one line without a stack trace unless `--debug` is given.
  *
  * @module
@@ -50,7 +51,8 @@ ${Object.entries(COMMANDS).map(([name, c]) => `  ${name.padEnd(12)} ${c.summary}
 
 Every command takes --help, and --debug to show a stack trace on error.
 quiver --version prints the version.
-Exit codes: 0 done, 1 bad data, 2 wrong usage, 3 internal error.
+Exit codes: 0 done, 1 bad data, 2 wrong usage, 3 internal error,
+4 targets not met (run and damping, only with --require-targets).
 `;
 
 /** Runs quiver with the given arguments and returns the exit code. */

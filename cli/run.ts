@@ -9,6 +9,7 @@ import { z } from "zod";
 import { writeReport } from "../lib/report/html_report.ts";
 import { runPlan } from "../lib/plan/runner.ts";
 import { integerOption, type OptionSpec, parseCommandArgs, usageError } from "./args.ts";
+import { TARGETS_NOT_MET_EXIT } from "./exit_codes.ts";
 import { WorkerPool } from "./worker_pool.ts";
 import { PLAN_COMMAND_TABLE } from "./plan_commands.ts";
 
@@ -30,6 +31,11 @@ the key path), references between steps, input files, and every step's
 options against its command. A step that fails is recorded in the manifest;
 the others still run, and the exit code is 1.
 
+--require-targets makes a run whose targets are not all met (a FAIL, or a
+target that could not be checked) exit with code 4, for scripts and CI; the
+plan key "require_targets": true does the same. Without either, targets are
+reported and the exit code is 0. A failed step exits 1 first.
+
 --jobs N runs up to N independent steps at once, each in its own worker
 (default: the number of CPU cores); --jobs 1 runs them one after another in
 this process.
@@ -38,12 +44,17 @@ The plan format is described in DEVELOPERS.md and lib/plan/schema.ts.
 `;
 
 /** parseArgs spec of the options. */
-export const options: OptionSpec = { "out-dir": { type: "string" }, jobs: { type: "string" } };
+export const options: OptionSpec = {
+  "out-dir": { type: "string" },
+  jobs: { type: "string" },
+  "require-targets": { type: "boolean" },
+};
 
 /** zod schema of the options. */
 export const schema = z.strictObject({
   "out-dir": z.string().min(1).optional(),
   jobs: integerOption().optional(),
+  "require-targets": z.boolean().optional(),
 });
 
 /** Runs the command; sets the exit code to 1 when a step failed. */
@@ -62,6 +73,7 @@ export async function run(argv: readonly string[]): Promise<void> {
       commands: PLAN_COMMAND_TABLE,
       report: writeReport,
       jobs,
+      requireTargets: values["require-targets"] === true,
       ...(pool !== undefined
         ? { execute: (command: string, argv: readonly string[]) => pool.run(command, argv) }
         : {}),
@@ -83,5 +95,10 @@ export async function run(argv: readonly string[]): Promise<void> {
   if (failed.length > 0) {
     for (const f of failed) process.stderr.write(`  ${f.id}: ${f.status}: ${f.error ?? ""}\n`);
     process.exitCode = 1;
+  } else if (manifest.require_targets && passed < targets.length) {
+    for (const t of targets.filter((t) => t.pass !== true)) {
+      process.stderr.write(`  target ${t.id}: ${t.status === "checked" ? "FAIL" : t.status}\n`);
+    }
+    process.exitCode = TARGETS_NOT_MET_EXIT;
   }
 }

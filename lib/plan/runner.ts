@@ -72,6 +72,8 @@ export interface Manifest {
     seconds: number;
   }[];
   readonly targets: readonly unknown[];
+  /** Whether unmet targets make the run exit with its own code (plan or `--require-targets`). */
+  readonly require_targets: boolean;
   readonly report?: string;
 }
 
@@ -316,6 +318,8 @@ export interface RunOptions {
   report?: (outDir: string, manifest: Manifest, plan: Plan) => Promise<string>;
   /** Steps run at once, each as soon as the steps it needs are done. Default 1. */
   jobs?: number;
+  /** Unmet targets make the run exit with its own code, whatever the plan says. Default false. */
+  requireTargets?: boolean;
   /** Runs one step; default: the command's `run` in this process (a pool passes its own). */
   execute?: (command: string, argv: readonly string[]) => Promise<void>;
 }
@@ -413,6 +417,7 @@ export async function runPlan(planFile: string, options: RunOptions): Promise<Ma
     status: results.some((r) => r.status !== "ok") ? "failed" : "ok",
     steps: results,
     targets,
+    require_targets: plan.require_targets || options.requireTargets === true,
   };
   if (plan.report !== undefined && options.report !== undefined) {
     const reportPath = await options.report(outDir, manifest, plan);

@@ -29,7 +29,9 @@
  * `"power": true`) and are checked by the command's own schema before any
  * work starts. A recording's `setup` and `rate` are passed to every analysis
  * of it. `damping` takes `input` (an `frf` or `hammer` analysis) instead of
- * a recording.
+ * a recording. `"require_targets": true` makes a run whose targets are not all
+ * met (failed or not checked) exit with code 4, for scripts and CI; the
+ * default reports them and exits 0.
  *
  * @module
  */
@@ -112,6 +114,8 @@ export const planSchema = z.strictObject({
   analyses: z.array(analysis).min(1),
   comparisons: z.array(comparison).default([]),
   targets: z.array(z.union([valueTarget, curveTarget])).default([]),
+  /** When true, a failed or unchecked target makes `run` exit with TARGETS_NOT_MET_EXIT. */
+  require_targets: z.boolean().default(false),
   report: z.strictObject({ title: z.string().optional(), file: z.string().default("report.html") })
     .optional(),
 });

@@ -71,4 +71,21 @@ describe("damping on a short, coarse shaker FRF with default settings", () => {
       expect(Math.abs(frequencies[1] - 173)).toBeLessThan(4);
     });
   }
+
+  test("--target-hz: a failed target exits 0 by default and 4 with --require-targets", () => {
+    // The first mode is near 61 Hz (the simulated arm), below a 100 Hz minimum.
+    const plain = runQuiver(["damping", "frf.csv", "--target-hz", "100", "--out", "t1.csv"], dir);
+    expect(plain.code).toBe(0);
+    expect(plain.stderr).toMatch(/target: first mode >= 100 Hz: FAIL/);
+    const strict = runQuiver(
+      ["damping", "frf.csv", "--target-hz", "100", "--require-targets", "--out", "t2.csv"],
+      dir,
+    );
+    expect(strict.code).toBe(4);
+    const met = runQuiver(
+      ["damping", "frf.csv", "--target-hz", "50", "--require-targets", "--out", "t3.csv"],
+      dir,
+    );
+    expect(met.code).toBe(0);
+  });
 });
