@@ -1,4 +1,5 @@
 import { describe, expect, test } from "vitest";
+import { iecA } from "../helpers/iec_weighting.ts";
 import { cascadeResponse } from "../../lib/acoustics/biquad.ts";
 import {
   weightingDb,
@@ -127,6 +128,15 @@ describe("frequency weightings", () => {
         .toBeLessThanOrEqual(0.05);
       expect(Math.abs(weightingDb("C", exact(i)) - TABLE_C[i]), `C at ${nominal} Hz`)
         .toBeLessThanOrEqual(0.05);
+    });
+  });
+
+  test("the tests' own typed A formula (tests/helpers/iec_weighting.ts) reproduces Table 3", () => {
+    NOMINAL.forEach((nominal, i) => {
+      // Table 3 is rounded to 0.1 dB (±0.05), and A1000 = −2.000 dB is itself rounded.
+      expect(Math.abs(iecA(exact(i)) - TABLE_A[i]), `A at ${nominal} Hz`).toBeLessThanOrEqual(
+        0.051,
+      );
     });
   });
 

@@ -1,6 +1,6 @@
 import { mkdtemp, readFile, writeFile } from "node:fs/promises";
 import { beforeAll, describe, expect, test } from "vitest";
-import { weightingDb } from "../../lib/acoustics/weighting.ts";
+import { iecA } from "../helpers/iec_weighting.ts";
 import { encodeWav } from "../../lib/io/wav.ts";
 import { runQuiver } from "../helpers/cli.ts";
 import { gaussianNoise } from "../helpers/random.ts";
@@ -47,7 +47,7 @@ describe("quiver bands, level and calibrate", () => {
     let total = 0;
     for (const tone of TONES) {
       // IEC 61672-1 A-weighting at the tone frequency.
-      const expected = level(tone.rms) + weightingDb("A", tone.f);
+      const expected = level(tone.rms) + iecA(tone.f);
       total += 10 ** (expected / 10);
       expect(Math.abs(levels[nominal.indexOf(tone.f)] - expected), `${tone.f} Hz`).toBeLessThan(
         0.2,
