@@ -42,6 +42,9 @@ const COMMANDS: Readonly<Record<string, Command>> = {
   report: reportCommand,
 };
 
+/** The command names, in the order of `quiver --help` and README's command table. */
+export const COMMAND_NAMES: readonly string[] = Object.keys(COMMANDS);
+
 const MAIN_HELP = `quiver: NVH test data from raw time histories to trustworthy numbers
 
 Usage: quiver <command> [options]      (quiver <command> --help for details)

@@ -34,7 +34,8 @@ export const recordingOptionsShape = {
 export const RECORDING_HELP = `Reading the recording:
   --rate HZ            sample rate, needed when the CSV has no time_s/time column
                        (checked against the column when it has one; WAV states its own)
-  --setup FILE.json    channel set-up: units, sensitivities, roles (see DEVELOPERS.md)
+  --setup FILE.json    channel set-up: units, sensitivities, roles (README.md,
+                       "Channel set-up")
   --delimiter D        auto | comma | semicolon | tab            (default auto)
   --decimal M          auto | point | comma                      (default auto)`;
 

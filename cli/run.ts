@@ -40,7 +40,8 @@ reported and the exit code is 0. A failed step exits 1 first.
 (default: the number of CPU cores); --jobs 1 runs them one after another in
 this process.
 
-The plan format is described in DEVELOPERS.md and lib/plan/schema.ts.
+The plan file (every key, with an example) is described in README.md,
+"The plan file".
 `;
 
 /** parseArgs spec of the options. */

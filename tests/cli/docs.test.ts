@@ -1,0 +1,49 @@
+import { readFileSync } from "node:fs";
+import { fileURLToPath } from "node:url";
+import { describe, expect, test } from "vitest";
+import { COMMAND_NAMES } from "../../cli/main.ts";
+import { runQuiver } from "../helpers/cli.ts";
+
+const README = readFileSync(fileURLToPath(new URL("../../README.md", import.meta.url)), "utf8");
+
+describe("README agrees with the command line", () => {
+  test("the command table is one table with a row per command, in order", () => {
+    // A blank line inside a Markdown table ends it; deno fmt then folds the rest into a
+    // paragraph. The rows must be consecutive lines.
+    const start = README.indexOf("| command ");
+    expect(start).toBeGreaterThan(0);
+    const lines = README.slice(start).split("\n");
+    const rows = [];
+    for (const line of lines.slice(2)) {
+      if (!line.startsWith("|")) break;
+      rows.push(/^\|\s*`([a-z]+)`/.exec(line)?.[1]);
+    }
+    expect(rows).toEqual([...COMMAND_NAMES]);
+  });
+
+  test("every --help that points to README points to a section that exists", () => {
+    for (const name of COMMAND_NAMES) {
+      const help = runQuiver([name, "--help"]).stdout;
+      expect(help, name).not.toMatch(/DEVELOPERS\.md/);
+      for (const [, section] of help.matchAll(/README\.md,\s+"([^"]+)"/g)) {
+        expect(README, `${name} --help points to "${section}"`).toContain(section);
+      }
+    }
+  });
+
+  test("the plan keys in README are the schema's keys", () => {
+    for (
+      const key of [
+        "quiver_plan",
+        "recordings.NAME.setup",
+        "analyses[].input",
+        "comparisons[].simulation.column",
+        "targets[].of.quantity",
+        "require_targets",
+        "report.file",
+      ]
+    ) {
+      expect(README).toContain(`\`${key}\``);
+    }
+  });
+});
