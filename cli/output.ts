@@ -6,6 +6,7 @@
 import process from "node:process";
 import { QuiverError } from "../lib/errors.ts";
 import { writeFileAtomic } from "../lib/io/atomic_write.ts";
+import { writeCsvPair } from "../lib/io/table_file.ts";
 import { type ColumnValues, formatCsv, formatJson, type Table } from "../lib/io/table.ts";
 
 /** Output formats of table-writing commands. */
@@ -28,16 +29,11 @@ export function resolveFormat(
   return out !== undefined && out.toLowerCase().endsWith(".json") ? "json" : "csv";
 }
 
-/** Path of the metadata sidecar written beside a CSV output. */
-export function sidecarPath(out: string): string {
-  return `${out}.meta.json`;
-}
-
 /**
  * Writes the table to `out` atomically, or to stdout when `out` is undefined.
- * A CSV file gets a sidecar `<out>.meta.json` holding the metadata and the
- * column names and units, so that a CSV result stays traceable (JSON output
- * carries its metadata inside).
+ * A CSV file gets a sidecar `<out>.meta.json` holding the metadata, the
+ * column names and units and the CSV's hash, written as a pair (table_file.ts),
+ * so that a CSV result stays traceable (JSON output carries its metadata inside).
  */
 export async function writeTable(
   table: Table<ColumnValues>,
@@ -50,13 +46,10 @@ export async function writeTable(
     return;
   }
   try {
-    await writeFileAtomic(out, text);
     if (format === "csv") {
-      const columns = table.columns.map((c) => ({ name: c.name, unit: c.unit }));
-      await writeFileAtomic(
-        sidecarPath(out),
-        JSON.stringify({ metadata: table.metadata, columns }, null, 2) + "\n",
-      );
+      await writeCsvPair(out, text, table.columns, table.metadata);
+    } else {
+      await writeFileAtomic(out, text);
     }
   } catch (error) {
     const code = (error as { code?: string }).code;

@@ -18,6 +18,7 @@
  *
  * @module
  */
+import { readSidecar } from "../io/table_file.ts";
 import { readFile } from "node:fs/promises";
 import { QuiverError } from "../errors.ts";
 import { type CsvTableOptions, parseNumericCsv } from "../io/csv_table.ts";
@@ -205,12 +206,7 @@ export async function readCurveFile(
     return curveFromColumns(columns, { ...options, metadata: json.metadata, file: path });
   }
   const table = parseNumericCsv(text, { ...options, file: path });
-  let metadata: Record<string, unknown> | undefined;
-  try {
-    metadata = JSON.parse(await readFile(`${path}.meta.json`, "utf8")).metadata;
-  } catch {
-    metadata = undefined;
-  }
+  const metadata = (await readSidecar(path, text, table.header))?.metadata;
   const columns = table.header.map((h, i) => ({
     name: h.name,
     unit: h.unit,

@@ -8,6 +8,7 @@
  *
  * @module
  */
+import { readSidecar } from "../io/table_file.ts";
 import { readFile } from "node:fs/promises";
 import { QuiverError } from "../errors.ts";
 import { type CsvTableOptions, type HeaderCell, parseNumericCsv } from "../io/csv_table.ts";
@@ -232,17 +233,7 @@ export async function readFrfFile(path: string, options: CsvTableOptions = {}): 
     return frfFromColumns(columns, json.metadata, path);
   }
   const table = parseNumericCsv(text, { ...options, file: path });
-  const sidecar = await readText(`${path}.meta.json`);
-  let metadata: Record<string, unknown> | undefined;
-  if (sidecar !== undefined) {
-    try {
-      metadata = (JSON.parse(sidecar) as { metadata?: Record<string, unknown> }).metadata;
-    } catch (error) {
-      throw new QuiverError(`not valid JSON: ${(error as Error).message}`, {
-        file: `${path}.meta.json`,
-      });
-    }
-  }
+  const metadata = (await readSidecar(path, text, table.header))?.metadata;
   const columns = table.header.map((h: HeaderCell, i) => ({
     name: h.name,
     unit: h.unit,
