@@ -8,6 +8,7 @@ import { parseArgs, type ParseArgsConfig } from "node:util";
 import { z } from "zod";
 import { QuiverError, withFile } from "../lib/errors.ts";
 import { parseDecimal } from "../lib/io/numbers.ts";
+import { refuseClashingOutputs } from "../lib/io/output_paths.ts";
 
 /** Option definitions in parseArgs form. */
 export type OptionSpec = NonNullable<ParseArgsConfig["options"]>;
@@ -68,6 +69,16 @@ export function parseCommandArgs<S extends z.ZodType>(
       }).join("; "),
     );
   }
+  // Before any work: no result may overwrite an input, and no two results one file.
+  const values = result.data as Record<string, unknown>;
+  const outputs = Object.entries(values)
+    .filter(([name, value]) =>
+      (name === "out" || name.endsWith("-out")) && typeof value === "string"
+    )
+    .map(([name, value]) => ({ option: `--${name}`, path: value as string }));
+  const inputs = [...parsed.positionals];
+  if (typeof values.setup === "string") inputs.push(values.setup);
+  refuseClashingOutputs(outputs, inputs);
   return { positionals: parsed.positionals, values: result.data };
 }
 

@@ -13,10 +13,11 @@
  *
  * @module
  */
+import { realPathOf } from "../io/output_paths.ts";
 import { createHash } from "node:crypto";
 import { existsSync, statSync } from "node:fs";
 import { mkdir, open, readFile } from "node:fs/promises";
-import { dirname, isAbsolute, join, relative, resolve } from "node:path";
+import { dirname, isAbsolute, join, relative, resolve, sep } from "node:path";
 import { QuiverError } from "../errors.ts";
 import { writeFileAtomic } from "../io/atomic_write.ts";
 import { QUIVER_VERSION } from "../version.ts";
@@ -275,8 +276,71 @@ export function planSteps(
       }
     })
   );
+  each(() => checkPlanOutputs(plan, planFile, outDir, steps, fail));
   if (problems.length > 0) throw planProblems(problems, planFile);
   return steps;
+}
+
+/** The files a run writes besides the steps' own results. */
+export const MANIFEST_FILE = "manifest.json";
+const FIGURES_FOLDER = "figures";
+
+/**
+ * Every file the plan writes stays inside the output folder, is none of the
+ * plan's inputs, and is written by one step only; checked before any work.
+ */
+function checkPlanOutputs(
+  plan: Plan,
+  planFile: string,
+  outDir: string,
+  steps: readonly PlanStep[],
+  fail: (where: string, detail: string) => never,
+): void {
+  const realOut = realPathOf(outDir);
+  const inside = (path: string) => {
+    const real = realPathOf(path);
+    return real === realOut || real.startsWith(realOut + sep);
+  };
+  const written = new Map<string, string>(); // real path → who writes it
+  const claim = (path: string, who: string, where: string) => {
+    if (!inside(path)) fail(where, `${path} lies outside the output folder ${outDir}`);
+    const real = realPathOf(path);
+    const other = written.get(real);
+    if (other !== undefined) fail(where, `${who} would write ${path}, which ${other} writes too`);
+    written.set(real, who);
+  };
+  claim(join(outDir, MANIFEST_FILE), "the manifest", "(output folder)");
+  for (const step of steps) {
+    for (const [key, path] of Object.entries(step.outputs)) {
+      claim(path, `step "${step.id}" (${key})`, `${step.where}.id`);
+    }
+  }
+  if (plan.report !== undefined) {
+    const file = plan.report.file;
+    if (isAbsolute(file) || file.split(/[\\/]/).includes("..") || file === "") {
+      fail("report.file", `"${file}" must be a file name inside the output folder, without ".."`);
+    }
+    if (file.split(/[\\/]/)[0] === FIGURES_FOLDER) {
+      fail("report.file", `the ${FIGURES_FOLDER}/ folder holds the report's figures`);
+    }
+    claim(join(outDir, file), "the report", "report.file");
+  }
+  const base = dirname(planFile);
+  const at = (p: string) => (isAbsolute(p) ? p : join(base, p));
+  const inputs: [string, string][] = [[planFile, "the plan itself"]];
+  for (const [name, rec] of Object.entries(plan.recordings)) {
+    inputs.push([at(rec.file), `recordings.${name}.file`]);
+    if (rec.setup !== undefined) inputs.push([at(rec.setup), `recordings.${name}.setup`]);
+  }
+  plan.comparisons.forEach((c, i) => {
+    inputs.push([at(c.simulation.file), `comparisons[${i}].simulation.file`]);
+  });
+  for (const [path, what] of inputs) {
+    for (const file of [path, `${path}.meta.json`]) {
+      const writer = written.get(realPathOf(file));
+      if (writer !== undefined) fail(what, `${writer} would overwrite this input (${path})`);
+    }
+  }
 }
 
 // Hashes by path, size and modification time: a recording used by several

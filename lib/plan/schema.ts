@@ -63,13 +63,23 @@ const recording = z.strictObject({
   description: z.string().optional(),
 });
 
+/**
+ * Option names as the command line spells them without dashes: lower case,
+ * digits and inner dashes only. Anything else (`"format=csv"`, `"--out"`,
+ * `"help"`) could smuggle a second option past the runner's checks.
+ */
+const optionName = z.string().regex(
+  /^[a-z][a-z0-9]*(-[a-z0-9]+)*$/,
+  "an option name is the command's option without dashes, e.g. rpm-step",
+).refine((name) => name !== "help" && name !== "debug", "help and debug are not plan options");
+
 const analysis = z.strictObject({
   id,
   command: z.enum(PLAN_COMMANDS),
   recording: z.string().optional(),
   input: z.string().optional(),
   title: z.string().optional(),
-  options: z.record(z.string(), optionValue).default({}),
+  options: z.record(optionName, optionValue).default({}),
 });
 
 const comparison = z.strictObject({
@@ -78,7 +88,7 @@ const comparison = z.strictObject({
   test_column: z.string().optional(),
   simulation: z.strictObject({ file: z.string().min(1), column: z.string().optional() }),
   title: z.string().optional(),
-  options: z.record(z.string(), optionValue).default({}),
+  options: z.record(optionName, optionValue).default({}),
 });
 
 const valueTarget = z.strictObject({
