@@ -3,6 +3,11 @@
  *
  * @module
  */
+import { resolve, sep } from "node:path";
+import { sha256Hex } from "../lib/io/table_file.ts";
+import { realPathOf } from "../lib/io/output_paths.ts";
+import { manifestSchema } from "../lib/plan/manifest.ts";
+import { MANIFEST_FILE } from "../lib/plan/runner.ts";
 import { readFile } from "node:fs/promises";
 import { join } from "node:path";
 import process from "node:process";
@@ -18,7 +23,9 @@ export const summary = "writes the self-contained HTML report of a finished run 
 /** The command's help text. */
 export const help = `quiver report OUT_DIR
 
-Reads OUT_DIR/manifest.json and the results beside it, and writes the
+Reads OUT_DIR/manifest.json and the results beside it, checks that the
+run finished and that every result is still the file it wrote (size and
+SHA-256), and writes the
 report named in the plan (default report.html) with its figures/ folder:
 one self-contained HTML file (inline SVG and CSS, nothing fetched), the
 targets first, then every result, then the trace of inputs and outputs.
@@ -37,9 +44,25 @@ export async function run(argv: readonly string[]): Promise<void> {
     usageError(`report takes one output folder, got ${positionals.length}`);
   }
   const [outDir] = positionals;
-  let manifest: Manifest;
+  const manifest = await verifiedManifest(outDir);
+  const { plan } = await loadPlan(manifest.plan.path);
+  const path = await writeReport(outDir, manifest, {
+    ...plan,
+    report: plan.report ?? { file: "report.html" },
+  });
+  process.stderr.write(`report: ${path}\n`);
+}
+
+/**
+ * The folder's manifest, validated by its schema, of a finished run, with
+ * every listed output still the file the run wrote (size and SHA-256).
+ *
+ * @throws {QuiverError} naming what does not hold.
+ */
+async function verifiedManifest(outDir: string): Promise<Manifest> {
+  let json: unknown;
   try {
-    manifest = JSON.parse(await readFile(join(outDir, "manifest.json"), "utf8")) as Manifest;
+    json = JSON.parse(await readFile(join(outDir, MANIFEST_FILE), "utf8"));
   } catch {
     throw new QuiverError(
       "no readable manifest.json here; run a plan first",
@@ -47,10 +70,49 @@ export async function run(argv: readonly string[]): Promise<void> {
       "usage",
     );
   }
-  const { plan } = await loadPlan(manifest.plan.path);
-  const path = await writeReport(outDir, manifest, {
-    ...plan,
-    report: plan.report ?? { file: "report.html" },
-  });
-  process.stderr.write(`report: ${path}\n`);
+  const parsed = manifestSchema.safeParse(json);
+  if (!parsed.success) {
+    const issue = parsed.error.issues[0];
+    throw new QuiverError(
+      `manifest.json is not a quiver manifest: ${
+        issue.path.join(".") || "(top level)"
+      }: ${issue.message}`,
+      { file: outDir },
+    );
+  }
+  const manifest = parsed.data;
+  if (manifest.status === "running") {
+    throw new QuiverError(
+      "the run that wrote this folder did not finish (its manifest still says running): run the plan again",
+      { file: outDir },
+    );
+  }
+  const realOut = realPathOf(outDir);
+  const problems: string[] = [];
+  for (const step of manifest.steps) {
+    for (const output of Object.values(step.outputs)) {
+      const path = resolve(outDir, output.path);
+      if (!realPathOf(path).startsWith(realOut + sep)) {
+        problems.push(`${output.path} lies outside the folder`);
+        continue;
+      }
+      let bytes: Uint8Array;
+      try {
+        bytes = await readFile(path);
+      } catch {
+        problems.push(`${output.path} is missing`);
+        continue;
+      }
+      if (bytes.length !== output.bytes || sha256Hex(bytes) !== output.sha256) {
+        problems.push(`${output.path} is not the file the run wrote (its hash differs)`);
+      }
+    }
+  }
+  if (problems.length > 0) {
+    throw new QuiverError(
+      `the results do not match the manifest, so no report is written: ${problems.join("; ")}`,
+      { file: outDir },
+    );
+  }
+  return manifest;
 }

@@ -13,10 +13,13 @@
  *
  * @module
  */
+import { type FileRecord, type Manifest, manifestSchema } from "./manifest.ts";
+export type { FileRecord, Manifest } from "./manifest.ts";
+import { acquireFolderLock } from "./folder_lock.ts";
 import { realPathOf } from "../io/output_paths.ts";
 import { createHash } from "node:crypto";
 import { existsSync, statSync } from "node:fs";
-import { mkdir, open, readFile } from "node:fs/promises";
+import { mkdir, open, readFile, rm } from "node:fs/promises";
 import { dirname, isAbsolute, join, relative, resolve, sep } from "node:path";
 import { QuiverError } from "../errors.ts";
 import { writeFileAtomic } from "../io/atomic_write.ts";
@@ -44,38 +47,6 @@ export interface PlanStep {
   readonly needs: string[];
   /** Key path of the step in the plan, for messages. */
   readonly where: string;
-}
-
-/** A file with its size and hash. */
-export interface FileRecord {
-  readonly path: string;
-  readonly bytes: number;
-  readonly sha256: string;
-}
-
-/** The manifest written to `<out>/manifest.json`. */
-export interface Manifest {
-  readonly quiver_version: string;
-  readonly plan: FileRecord & { title: string };
-  readonly out_dir: string;
-  readonly started: string;
-  readonly finished: string;
-  readonly status: "ok" | "failed";
-  readonly steps: readonly {
-    id: string;
-    kind: string;
-    command: string;
-    argv: string[];
-    inputs: FileRecord[];
-    outputs: Record<string, FileRecord>;
-    status: "ok" | "failed" | "skipped";
-    error?: string;
-    seconds: number;
-  }[];
-  readonly targets: readonly unknown[];
-  /** Whether unmet targets make the run exit with its own code (plan or `--require-targets`). */
-  readonly require_targets: boolean;
-  readonly report?: string;
 }
 
 /** Reads and validates a plan file's JSON against the schema. */
@@ -401,10 +372,99 @@ export async function runPlan(planFile: string, options: RunOptions): Promise<Ma
   const outDir = resolve(options.outDir);
   const steps = planSteps(plan, resolve(planFile), outDir, options.commands);
   await mkdir(outDir, { recursive: true });
+  const lock = await acquireFolderLock(outDir);
+  try {
+    if (lock.stale !== undefined) {
+      process.stderr.write(
+        `run: the lock of a run that was killed (process ${lock.stale.pid}, started ${lock.stale.started}) was found and taken over\n`,
+      );
+    }
+    const removed = await removePreviousRun(outDir);
+    if (removed > 0) {
+      process.stderr.write(`run: removed ${removed} result file(s) of the previous run here\n`);
+    }
+    return await runLocked(plan, text, planFile, outDir, steps, started, options);
+  } finally {
+    await lock.release();
+  }
+}
+
+/**
+ * Removes what the previous run's manifest lists (results, report, figures)
+ * and the manifest itself, so that the folder never holds results of two
+ * runs side by side. Files no manifest lists are left alone. Returns the
+ * number of files removed.
+ */
+async function removePreviousRun(outDir: string): Promise<number> {
+  let previous: unknown;
+  try {
+    previous = JSON.parse(await readFile(join(outDir, MANIFEST_FILE), "utf8"));
+  } catch {
+    return 0;
+  }
+  const parsed = manifestSchema.safeParse(previous);
+  if (!parsed.success) return 0; // not ours to interpret: left as it is
+  const realOut = realPathOf(outDir);
+  const files = parsed.data.steps.flatMap((step) =>
+    Object.values(step.outputs).flatMap((o) => [o.path, `${o.path}.meta.json`])
+  );
+  if (parsed.data.report !== undefined) files.push(parsed.data.report);
+  let removed = 0;
+  for (const file of files) {
+    const path = resolve(outDir, file);
+    const real = realPathOf(path);
+    if (!real.startsWith(realOut + sep) || !existsSync(path)) continue;
+    await rm(path, { force: true });
+    removed++;
+  }
+  await rm(join(outDir, FIGURES_FOLDER), { recursive: true, force: true });
+  await rm(join(outDir, MANIFEST_FILE), { force: true });
+  return removed;
+}
+
+async function runLocked(
+  plan: Plan,
+  text: string,
+  planFile: string,
+  outDir: string,
+  steps: readonly PlanStep[],
+  started: string,
+  options: RunOptions,
+): Promise<Manifest> {
+  const planBytes = new TextEncoder().encode(text);
+  const header = {
+    quiver_version: QUIVER_VERSION,
+    plan: {
+      path: resolve(planFile),
+      bytes: planBytes.length,
+      sha256: createHash("sha256").update(planBytes).digest("hex"),
+      title: plan.title,
+    },
+    out_dir: outDir,
+    started,
+    require_targets: plan.require_targets || options.requireTargets === true,
+  };
+  // The manifest says "running" from the start and lists each step as it ends, so a
+  // killed run leaves a manifest that says it did not finish and what it did.
+  let writing = Promise.resolve();
+  const writeManifest = (manifest: Manifest) => {
+    writing = writing.then(() =>
+      writeFileAtomic(join(outDir, MANIFEST_FILE), JSON.stringify(manifest, null, 2) + "\n")
+    );
+    return writing;
+  };
+  const progressManifest = (): Manifest => ({
+    ...header,
+    finished: null,
+    status: "running",
+    steps: results.filter((r) => r !== undefined),
+    targets: [],
+  });
+  const results: Manifest["steps"][number][] = new Array(steps.length);
+  await writeManifest(progressManifest());
   const progress = options.progress ?? createProgress(steps.length);
   const failed = new Set<string>();
   const done = new Set<string>();
-  const results: Manifest["steps"][number][] = new Array(steps.length);
   const execute = options.execute ??
     ((command: string, argv: readonly string[]) => options.commands[command].run(argv));
   const runStep = async (i: number): Promise<void> => {
@@ -464,29 +524,20 @@ export async function runPlan(planFile: string, options: RunOptions): Promise<Ma
     const finished = await Promise.race(running.values());
     running.delete(finished);
     done.add(steps[finished].id);
+    await writeManifest(progressManifest());
   }
   const targets = await evaluateTargets(plan, outDir, failed);
-  const planBytes = new TextEncoder().encode(text);
   let manifest: Manifest = {
-    quiver_version: QUIVER_VERSION,
-    plan: {
-      path: resolve(planFile),
-      bytes: planBytes.length,
-      sha256: createHash("sha256").update(planBytes).digest("hex"),
-      title: plan.title,
-    },
-    out_dir: outDir,
-    started,
+    ...header,
     finished: new Date().toISOString(),
     status: results.some((r) => r.status !== "ok") ? "failed" : "ok",
     steps: results,
     targets,
-    require_targets: plan.require_targets || options.requireTargets === true,
   };
   if (plan.report !== undefined && options.report !== undefined) {
     const reportPath = await options.report(outDir, manifest, plan);
     manifest = { ...manifest, report: relative(outDir, reportPath) };
   }
-  await writeFileAtomic(join(outDir, "manifest.json"), JSON.stringify(manifest, null, 2) + "\n");
+  await writeManifest(manifest);
   return manifest;
 }
