@@ -3,7 +3,7 @@
  *
  * @module
  */
-import process from "node:process";
+import { toStderr } from "./terminal.ts";
 import { z } from "zod";
 import { BAND_METHODS, bandLevels, bandLevelsStream } from "../lib/acoustics/band_analysis.ts";
 import { BAND_FRACTIONS } from "../lib/acoustics/bands.ts";
@@ -125,9 +125,9 @@ export async function run(argv: readonly string[]): Promise<void> {
     (recording) => bandLevels(recording, analysis),
   );
   await writeResult(result.table, input, values);
-  for (const w of result.warnings) process.stderr.write(`quiver bands: warning: ${w}\n`);
+  for (const w of result.warnings) toStderr(`quiver bands: warning: ${w}\n`);
   for (const o of result.overall) {
-    process.stderr.write(
+    toStderr(
       `${o.channel}: overall ${o.levelDb.toFixed(2)} ${o.unit} (energy sum of the bands)\n`,
     );
   }

@@ -3,6 +3,7 @@
  *
  * @module
  */
+import { toStderr } from "./terminal.ts";
 import { readFile } from "node:fs/promises";
 import process from "node:process";
 import { z } from "zod";
@@ -127,7 +128,7 @@ export async function run(argv: readonly string[]): Promise<void> {
   const target = values.out ?? values.setup;
   if (target === undefined) process.stdout.write(json);
   else await writeFileAtomic(target, json);
-  process.stderr.write(
+  toStderr(
     `${values.channel}: ${result.toneRmsVolts.toPrecision(6)} V rms at ${result.toneHz} Hz for ` +
       `${result.pressureRmsPa.toPrecision(6)} Pa rms -> sensitivity ${
         result.sensitivityMvPerPa.toPrecision(6)

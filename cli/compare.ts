@@ -3,7 +3,7 @@
  *
  * @module
  */
-import process from "node:process";
+import { toStderr } from "./terminal.ts";
 import { z } from "zod";
 import { BAND_FRACTIONS } from "../lib/acoustics/bands.ts";
 import { compareCurves } from "../lib/compare/comparison.ts";
@@ -101,7 +101,7 @@ export async function run(argv: readonly string[]): Promise<void> {
     );
   }
   const s = result.summary;
-  process.stderr.write(
+  toStderr(
     `compare: FRAC ${s.frac.toFixed(4)} (${s.frac_on}), ${s.peaks.length} matched peak(s)` +
       s.peaks.map((p) =>
         `; ${p.test_hz.toFixed(2)} Hz -> ${p.simulation_hz.toFixed(2)} Hz (${

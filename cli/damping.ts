@@ -3,6 +3,7 @@
  *
  * @module
  */
+import { toStderr } from "./terminal.ts";
 import { TARGETS_NOT_MET_EXIT } from "./exit_codes.ts";
 import { formatFixed } from "../lib/format_number.ts";
 import process from "node:process";
@@ -127,9 +128,9 @@ export async function run(argv: readonly string[]): Promise<void> {
       targetHz: values["target-hz"],
     }));
   await writeResult(result.table, input, values);
-  for (const w of result.warnings) process.stderr.write(`quiver damping: warning: ${w}\n`);
+  for (const w of result.warnings) toStderr(`quiver damping: warning: ${w}\n`);
   for (const m of result.modes) {
-    process.stderr.write(
+    toStderr(
       `${m.channel} mode ${m.mode}: ${m.frequencyHz.toFixed(3)} Hz, damping ${
         formatFixed(100 * m.dampingRatio, 3)
       } % ` +
@@ -138,7 +139,7 @@ export async function run(argv: readonly string[]): Promise<void> {
   }
   const t = result.target;
   if (t !== undefined) {
-    process.stderr.write(
+    toStderr(
       t.firstModeHz === null
         ? `target: first mode >= ${t.minimumHz} Hz: FAIL (no mode found)\n`
         : `target: first mode >= ${t.minimumHz} Hz: ${t.pass ? "PASS" : "FAIL"} ` +

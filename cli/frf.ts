@@ -3,8 +3,8 @@
  *
  * @module
  */
+import { toStderr } from "./terminal.ts";
 import { formatNumber } from "../lib/format_number.ts";
-import process from "node:process";
 import { z } from "zod";
 import { ESTIMATORS } from "../lib/frf/estimators.ts";
 import { FRF_FORMS } from "../lib/frf/forms.ts";
@@ -105,9 +105,9 @@ export async function run(argv: readonly string[]): Promise<void> {
     (recording) => frequencyResponse(recording, analysis),
   );
   await writeResult(table, input, values);
-  for (const warning of warnings) process.stderr.write(`quiver frf: warning: ${warning}\n`);
+  for (const warning of warnings) toStderr(`quiver frf: warning: ${warning}\n`);
   const m = table.metadata;
-  process.stderr.write(
+  toStderr(
     `frf: ${values.outputs.length} response(s) against ${values.input}, ${m.estimator}, ` +
       `${m.averages} average(s) of ${m.block} samples, df ${formatNumber(m.df_hz, 6)} Hz` +
       `${values.out !== undefined ? ` -> ${values.out}` : ""}\n`,

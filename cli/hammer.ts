@@ -3,7 +3,7 @@
  *
  * @module
  */
-import process from "node:process";
+import { toStderr } from "./terminal.ts";
 import { z } from "zod";
 import { FRF_FORMS } from "../lib/frf/forms.ts";
 import { hammerFrf } from "../lib/frf/hammer.ts";
@@ -136,7 +136,7 @@ export async function run(argv: readonly string[]): Promise<void> {
     await writeFileAtomic(values["hits-out"], formatCsv(result.hitLog));
   }
   for (const warning of result.warnings) {
-    process.stderr.write(`quiver hammer: warning: ${warning}\n`);
+    toStderr(`quiver hammer: warning: ${warning}\n`);
   }
-  process.stderr.write(`${result.summary}\n`);
+  toStderr(`${result.summary}\n`);
 }

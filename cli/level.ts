@@ -3,7 +3,7 @@
  *
  * @module
  */
-import process from "node:process";
+import { toStderr } from "./terminal.ts";
 import { z } from "zod";
 import { levelHistory, levelHistoryStream } from "../lib/acoustics/level_analysis.ts";
 import { TIME_WEIGHTINGS } from "../lib/acoustics/time_weighting.ts";
@@ -88,10 +88,10 @@ export async function run(argv: readonly string[]): Promise<void> {
     (recording) => levelHistory(recording, analysis),
   );
   await writeResult(result.table, input, values);
-  for (const w of result.warnings) process.stderr.write(`quiver level: warning: ${w}\n`);
+  for (const w of result.warnings) toStderr(`quiver level: warning: ${w}\n`);
   for (const s of result.summary) {
     const f = (v: number) => v.toFixed(1);
-    process.stderr.write(
+    toStderr(
       `${s.channel} [${s.unit}]: Leq ${f(s.leq)}, Lmax ${f(s.lmax)}, Lmin ${f(s.lmin)}, ` +
         `L10 ${f(s.l10)}, L50 ${f(s.l50)}, L90 ${f(s.l90)}\n`,
     );

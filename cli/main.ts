@@ -8,6 +8,7 @@
  * @module
  */
 import process from "node:process";
+import { toStderr } from "./terminal.ts";
 import { QuiverError } from "../lib/errors.ts";
 import { QUIVER_VERSION } from "../lib/version.ts";
 import * as bands from "./bands.ts";
@@ -72,7 +73,7 @@ export async function main(argv: readonly string[]): Promise<number> {
   }
   const command = COMMANDS[name];
   if (command === undefined) {
-    process.stderr.write(`quiver: unknown command "${name}"\n\n${MAIN_HELP}`);
+    toStderr(`quiver: unknown command "${name}"\n\n${MAIN_HELP}`);
     return 2;
   }
   if (rest.includes("--help") || rest.includes("-h")) {
@@ -93,17 +94,17 @@ function report(error: unknown, command: string, debug: boolean): number {
     process.stderr.write(`${error.stack}\n`);
   }
   if (error instanceof QuiverError) {
-    process.stderr.write(`quiver ${command}: ${error.message}\n`);
+    toStderr(`quiver ${command}: ${error.message}\n`);
     return error.kind === "usage" ? 2 : 1;
   }
   // Library functions throw RangeError for impossible parameters, which on
   // the command line come from options. Anything else is a bug of ours.
   if (error instanceof RangeError) {
-    process.stderr.write(`quiver ${command}: ${error.message}\n`);
+    toStderr(`quiver ${command}: ${error.message}\n`);
     return 2;
   }
   const message = error instanceof Error ? error.message : String(error);
-  process.stderr.write(
+  toStderr(
     `quiver ${command}: internal error: ${message}${
       debug ? "" : " (run with --debug for the stack trace)"
     }\n`,

@@ -3,7 +3,7 @@
  *
  * @module
  */
-import process from "node:process";
+import { toStderr } from "./terminal.ts";
 import { z } from "zod";
 import { ORDER_METHODS, trackOrders } from "../lib/orders/order_tracking.ts";
 import { readRecordingFile } from "../lib/io/read_recording.ts";
@@ -165,9 +165,9 @@ export async function run(argv: readonly string[]): Promise<void> {
   if (values["map-out"] !== undefined) {
     await writeResult(result.map, input, { out: values["map-out"] });
   }
-  for (const w of result.warnings) process.stderr.write(`quiver orders: warning: ${w}\n`);
+  for (const w of result.warnings) toStderr(`quiver orders: warning: ${w}\n`);
   const m = result.cuts.metadata;
-  process.stderr.write(
+  toStderr(
     `orders: ${
       result.cuts.columns[0].values.length
     } rpm step(s) from ${m.rpm_min} to ${m.rpm_max} rpm, ` +

@@ -3,6 +3,7 @@
  *
  * @module
  */
+import { toStderr } from "./terminal.ts";
 import { resolve, sep } from "node:path";
 import { sha256Hex } from "../lib/io/table_file.ts";
 import { realPathOf } from "../lib/io/output_paths.ts";
@@ -10,7 +11,6 @@ import { manifestSchema } from "../lib/plan/manifest.ts";
 import { MANIFEST_FILE } from "../lib/plan/runner.ts";
 import { readFile } from "node:fs/promises";
 import { join } from "node:path";
-import process from "node:process";
 import { z } from "zod";
 import { QuiverError } from "../lib/errors.ts";
 import { loadPlan, type Manifest } from "../lib/plan/runner.ts";
@@ -50,7 +50,7 @@ export async function run(argv: readonly string[]): Promise<void> {
     ...plan,
     report: plan.report ?? { file: "report.html" },
   });
-  process.stderr.write(`report: ${path}\n`);
+  toStderr(`report: ${path}\n`);
 }
 
 /**

@@ -3,6 +3,7 @@
  *
  * @module
  */
+import { toStderr } from "./terminal.ts";
 import { basename, dirname, join } from "node:path";
 import process from "node:process";
 import { z } from "zod";
@@ -85,7 +86,7 @@ export async function run(argv: readonly string[]): Promise<void> {
   const failed = manifest.steps.filter((s) => s.status !== "ok");
   const targets = manifest.targets as { id: string; status: string; pass?: boolean }[];
   const passed = targets.filter((t) => t.pass === true).length;
-  process.stderr.write(
+  toStderr(
     `run: ${
       manifest.steps.length - failed.length
     }/${manifest.steps.length} steps ok, targets ${passed}/${targets.length} passed` +
@@ -94,11 +95,11 @@ export async function run(argv: readonly string[]): Promise<void> {
       }\n`,
   );
   if (failed.length > 0) {
-    for (const f of failed) process.stderr.write(`  ${f.id}: ${f.status}: ${f.error ?? ""}\n`);
+    for (const f of failed) toStderr(`  ${f.id}: ${f.status}: ${f.error ?? ""}\n`);
     process.exitCode = 1;
   } else if (manifest.require_targets && passed < targets.length) {
     for (const t of targets.filter((t) => t.pass !== true)) {
-      process.stderr.write(`  target ${t.id}: ${t.status === "checked" ? "FAIL" : t.status}\n`);
+      toStderr(`  target ${t.id}: ${t.status === "checked" ? "FAIL" : t.status}\n`);
     }
     process.exitCode = TARGETS_NOT_MET_EXIT;
   }

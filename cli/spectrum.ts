@@ -3,8 +3,8 @@
  *
  * @module
  */
+import { toStderr } from "./terminal.ts";
 import { formatNumber } from "../lib/format_number.ts";
-import process from "node:process";
 import { z } from "zod";
 import { AVERAGING_MODES } from "../lib/dsp/spectral_core.ts";
 import { averagedSpectrum, averagedSpectrumStream } from "../lib/dsp/averaged_spectrum.ts";
@@ -106,10 +106,10 @@ export async function run(argv: readonly string[]): Promise<void> {
   );
   await writeResult(table, input, values);
   for (const w of table.metadata.warnings as string[]) {
-    process.stderr.write(`quiver spectrum: warning: ${w}\n`);
+    toStderr(`quiver spectrum: warning: ${w}\n`);
   }
   const m = table.metadata;
-  process.stderr.write(
+  toStderr(
     `spectrum: ${
       table.columns.length - 1
     } channel(s), ${m.kind}, ${m.averages} average(s) of ${m.block} samples, ` +

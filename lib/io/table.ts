@@ -39,8 +39,25 @@ export function columnHeader(column: TableColumn<ColumnValues>): string {
   return column.unit === "" ? column.name : `${column.name} [${column.unit}]`;
 }
 
+/**
+ * A text cell that a spreadsheet would run as a formula (it starts with `=`,
+ * `+`, `@`, a tab or a carriage return) gets a leading `'`, which spreadsheets
+ * show as text (common practice from spreadsheet-injection guidance, e.g.
+ * OWASP "CSV Injection"). Numbers are never text cells, so `-1.5` stays a number.
+ *
+ * @example
+ * ```ts
+ * import { neutraliseFormula } from "./table.ts";
+ * if (neutraliseFormula("=HYPERLINK(1)") !== "'=HYPERLINK(1)" || neutraliseFormula("acc") !== "acc") throw new Error();
+ * ```
+ */
+export function neutraliseFormula(text: string): string {
+  return /^[=+@\t\r]/.test(text) ? `'${text}` : text;
+}
+
 function csvCell(text: string): string {
-  return /[",\n\r]/.test(text) ? `"${text.replaceAll('"', '""')}"` : text;
+  const safe = neutraliseFormula(text);
+  return /[",\n\r]/.test(safe) ? `"${safe.replaceAll('"', '""')}"` : safe;
 }
 
 /**

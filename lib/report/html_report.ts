@@ -120,12 +120,12 @@ function modeTable(r: ResultJson): string {
     halfPower?: { dampingRatio: number };
   }[]) ?? [];
   const rows = modes.map((m) =>
-    `<tr><td>${escapeXml(m.channel)}</td><td>${m.mode}</td><td>${
+    `<tr><td>${escapeXml(m.channel)}</td><td>${escapeXml(m.mode)}</td><td>${
       formatFixed(m.frequencyHz, 2)
     }</td><td>${formatFixed(100 * m.dampingRatio, 2)}</td><td>${
       m.halfPower !== undefined ? formatFixed(100 * m.halfPower.dampingRatio, 2) : "–"
     }</td><td>${formatFixed(m.qFactor, 1)}</td><td>${escapeXml(m.method)}</td><td>${
-      escapeXml(m.flags.join(", "))
+      escapeXml(Array.isArray(m.flags) ? m.flags.join(", ") : m.flags)
     }</td></tr>`
   ).join("\n");
   return `<table><thead><tr><th>Channel</th><th>Mode</th><th>Frequency [Hz]</th><th>Damping [%]</th><th>Half-power damping [%]</th><th>Q</th><th>Primary</th><th>Flags</th></tr></thead><tbody>${rows}</tbody></table>`;
@@ -260,7 +260,7 @@ function comparisonFigures(
   ).join("");
   const html = `<p>FRAC ${formatFixed(m.frac, 4)} (on ${
     escapeXml(m.frac_on)
-  } data), common grid of ${m.grid.lines} lines from the ${
+  } data), common grid of ${escapeXml(m.grid.lines)} lines from the ${
     escapeXml(m.grid.from)
   } curve.</p><table><thead><tr><th>Test peak [Hz]</th><th>Simulation peak [Hz]</th><th>Shift [%]</th><th>Level difference [dB]</th></tr></thead><tbody>${rows}</tbody></table>`;
   return { figures, html };
@@ -358,7 +358,8 @@ export async function writeReport(outDir: string, manifest: Manifest, plan: Plan
         const overall =
           (r.metadata.overall as { channel: string; level_db: number; unit: string }[])
             .map((o) =>
-              `${escapeXml(o.channel)}: ${formatFixed(o.level_db, 1)} ${escapeXml(o.unit)}`
+              // Raw text: the note is escaped once, where it is rendered.
+              `${o.channel}: ${formatFixed(o.level_db, 1)} ${o.unit}`
             )
             .join("; ");
         sections.push({
@@ -399,10 +400,12 @@ export async function writeReport(outDir: string, manifest: Manifest, plan: Plan
     }
   }
   const trace = manifest.steps.map((s) =>
-    `<tr><td>${escapeXml(s.id)}</td><td>${escapeXml(s.command)}</td><td>${s.status}</td><td>${
+    `<tr><td>${escapeXml(s.id)}</td><td>${escapeXml(s.command)}</td><td>${
+      escapeXml(s.status)
+    }</td><td>${
       s.inputs.map((i) =>
-        `${escapeXml(i.path.split("/").pop() ?? i.path)} (${i.bytes} B, sha256 ${
-          i.sha256.slice(0, 12)
+        `${escapeXml(String(i.path).split("/").pop())} (${escapeXml(i.bytes)} B, sha256 ${
+          escapeXml(String(i.sha256).slice(0, 12))
         }…)`
       ).join("<br>")
     }</td><td>${Object.values(s.outputs).map((o) => escapeXml(o.path)).join("<br>")}</td></tr>`
@@ -421,9 +424,9 @@ export async function writeReport(outDir: string, manifest: Manifest, plan: Plan
 <p>${escapeXml(plan.description ?? "")}</p>
 <p>quiver ${escapeXml(manifest.quiver_version)} · plan ${
     escapeXml(manifest.plan.path.split("/").pop() ?? "")
-  } (sha256 ${manifest.plan.sha256.slice(0, 12)}…) · run ${
+  } (sha256 ${escapeXml(String(manifest.plan.sha256).slice(0, 12))}…) · run ${
     escapeXml(manifest.started)
-  } · status ${manifest.status}</p></header>
+  } · status ${escapeXml(manifest.status)}</p></header>
 <main>
 <p class="caveat">Levels in this report are for engineering comparison between tests, simulations and targets. quiver is not a certified sound level meter; for occupational noise exposure and hearing protection follow local regulations and use certified instruments.</p>
 <h2>Targets</h2>

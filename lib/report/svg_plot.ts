@@ -49,8 +49,10 @@ export interface LinePlot {
 const MARGIN = { top: 34, right: 18, bottom: 46, left: 70 };
 
 /** Escapes text for SVG/HTML. */
-export function escapeXml(text: string): string {
-  return text.replace(
+export function escapeXml(text: unknown): string {
+  // Any value from a file (a number, null, an object where a string was expected) is
+  // turned into text first, so that nothing reaches the page unescaped.
+  return String(text ?? "").replace(
     /[&<>"']/g,
     (c) => ({ "&": "&amp;", "<": "&lt;", ">": "&gt;", '"': "&quot;", "'": "&#39;" })[c]!,
   );
