@@ -5,11 +5,14 @@
  * @module
  */
 import { PLAN_COMMAND_TABLE } from "./plan_commands.ts";
+import { withStderrLabel } from "./terminal.ts";
 
 /** A step to run. */
 export interface StepMessage {
   readonly command: string;
   readonly argv: string[];
+  /** Put before every line the step writes to stderr. */
+  readonly label: string;
 }
 
 const scope = self as unknown as {
@@ -18,9 +21,9 @@ const scope = self as unknown as {
 };
 
 scope.onmessage = async (event) => {
-  const { command, argv } = event.data;
+  const { command, argv, label } = event.data;
   try {
-    await PLAN_COMMAND_TABLE[command].run(argv);
+    await withStderrLabel(label, () => PLAN_COMMAND_TABLE[command].run(argv));
     scope.postMessage({ ok: true });
   } catch (error) {
     scope.postMessage({ ok: false, error: error instanceof Error ? error.message : String(error) });

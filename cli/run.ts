@@ -11,6 +11,7 @@ import { writeReport } from "../lib/report/html_report.ts";
 import { runPlan } from "../lib/plan/runner.ts";
 import { integerOption, type OptionSpec, parseCommandArgs, usageError } from "./args.ts";
 import { TARGETS_NOT_MET_EXIT } from "./exit_codes.ts";
+import { withStderrLabel } from "./terminal.ts";
 import { WorkerPool } from "./worker_pool.ts";
 import { PLAN_COMMAND_TABLE } from "./plan_commands.ts";
 
@@ -38,8 +39,10 @@ plan key "require_targets": true does the same. Without either, targets are
 reported and the exit code is 0. A failed step exits 1 first.
 
 --jobs N runs up to N independent steps at once, each in its own worker
-(default: the number of CPU cores); --jobs 1 runs them one after another in
-this process.
+(default: the number of CPU cores); workers start only when a step needs one,
+after the plan has been checked, so no more start than steps can run at once.
+--jobs 1 runs the steps one after another in this process. Every line a step
+writes starts with its id.
 
 The plan file (every key, with an example) is described in README.md,
 "The plan file".
@@ -76,9 +79,11 @@ export async function run(argv: readonly string[]): Promise<void> {
       report: writeReport,
       jobs,
       requireTargets: values["require-targets"] === true,
-      ...(pool !== undefined
-        ? { execute: (command: string, argv: readonly string[]) => pool.run(command, argv) }
-        : {}),
+      // Every line a step writes carries its id, so parallel steps' logs stay apart.
+      execute: (command: string, argv: readonly string[], id: string) =>
+        pool !== undefined
+          ? pool.run(command, argv, `${id}: `)
+          : withStderrLabel(`${id}: `, () => PLAN_COMMAND_TABLE[command].run(argv)),
     });
   } finally {
     pool?.close();

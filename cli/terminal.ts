@@ -27,7 +27,27 @@ export function printable(text: string): string {
   });
 }
 
-/** Writes `text` to stderr, made {@linkcode printable}. */
+let prefix = "";
+
+/**
+ * Runs `work` with every line it writes through {@linkcode toStderr} starting
+ * with `label` (a campaign step's id), so that steps running side by side
+ * can be told apart in the log.
+ */
+export async function withStderrLabel<T>(label: string, work: () => Promise<T>): Promise<T> {
+  const previous = prefix;
+  prefix = label;
+  try {
+    return await work();
+  } finally {
+    prefix = previous;
+  }
+}
+
+/** Writes `text` to stderr, made {@linkcode printable}, each line labelled when a label is set. */
 export function toStderr(text: string): void {
-  process.stderr.write(printable(text));
+  const safe = printable(text);
+  process.stderr.write(
+    prefix === "" ? safe : safe.replace(/^(?=.)/gm, prefix),
+  );
 }

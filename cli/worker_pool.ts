@@ -12,20 +12,40 @@ export class WorkerPool {
   readonly #waiting: ((worker: Worker) => void)[] = [];
   readonly #all: Worker[] = [];
 
+  readonly #size: number;
+
+  /** A pool of at most `size` workers; none starts before a step needs one. */
   constructor(size: number) {
-    for (let i = 0; i < size; i++) {
+    if (!Number.isInteger(size) || size < 1) {
+      throw new RangeError(`a pool needs at least one worker, got ${size}`);
+    }
+    this.#size = size;
+  }
+
+  /** Workers started so far (at most the number of steps that ran at once). */
+  get started(): number {
+    return this.#all.length;
+  }
+
+  #take(): Promise<Worker> {
+    const idle = this.#idle.pop();
+    if (idle !== undefined) return Promise.resolve(idle);
+    if (this.#all.length < this.#size) {
       const worker = new Worker(new URL("./plan_worker.ts", import.meta.url).href, {
         type: "module",
       });
       this.#all.push(worker);
-      this.#idle.push(worker);
+      return Promise.resolve(worker);
     }
+    return new Promise<Worker>((resolve) => this.#waiting.push(resolve));
   }
 
-  /** Runs a command with `argv` on a free worker; rejects with the command's error message. */
-  async run(command: string, argv: readonly string[]): Promise<void> {
-    const worker = this.#idle.pop() ??
-      await new Promise<Worker>((resolve) => this.#waiting.push(resolve));
+  /**
+   * Runs a command with `argv` on a free worker, its log lines labelled with
+   * `label`; rejects with the command's error message.
+   */
+  async run(command: string, argv: readonly string[], label = ""): Promise<void> {
+    const worker = await this.#take();
     try {
       const reply = await new Promise<{ ok: boolean; error?: string }>((resolve, reject) => {
         worker.onmessage = (event) => resolve(event.data);
@@ -33,7 +53,7 @@ export class WorkerPool {
           event.preventDefault();
           reject(new Error(event.message));
         };
-        worker.postMessage({ command, argv: [...argv] });
+        worker.postMessage({ command, argv: [...argv], label });
       });
       if (!reply.ok) throw new Error(reply.error);
     } finally {

@@ -36,6 +36,12 @@ export type AveragingMode = typeof AVERAGING_MODES[number];
 /** Named scaling of a spectrum, as in scipy.signal. */
 export type Scaling = "density" | "spectrum";
 
+/**
+ * The most segments that may start within one block's length: the hop is at
+ * least block/64 (an overlap of at most 98.4 %).
+ */
+export const MAX_SEGMENTS_PER_BLOCK = 64;
+
 /** Options of the spectral core. */
 export interface SpectralOptions {
   /** Sample rate in Hz. Required. */
@@ -234,6 +240,18 @@ function resolveOptions(
     throw new RangeError(`overlap must be in [0, 1), got ${overlap}`);
   }
   const overlapSamples = Math.floor(overlap * block);
+  // Beyond ~75 % overlap a windowed estimate gains almost nothing (Welch 1967; Harris
+  // 1978), while the work grows as 1/hop: a hop of one sample turns seconds into hours.
+  const minimumHop = Math.max(1, Math.ceil(block / MAX_SEGMENTS_PER_BLOCK));
+  if (block - overlapSamples < minimumHop) {
+    throw new RangeError(
+      `an overlap of ${overlap} moves each block by ${
+        block - overlapSamples
+      } sample(s); quiver needs at least ${minimumHop} (1/${MAX_SEGMENTS_PER_BLOCK} of the ${block}-sample block, an overlap of at most ${
+        Number((1 - minimumHop / block).toFixed(4))
+      }); 0.5 to 0.75 is usual`,
+    );
+  }
   const average = options.average ?? "linear";
   const tau = options.tau ?? 1;
   if (!(tau > 0) || !Number.isFinite(tau)) {

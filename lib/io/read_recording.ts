@@ -7,6 +7,7 @@
  */
 import { readFile } from "node:fs/promises";
 import { QuiverError } from "../errors.ts";
+import { notUtf8Text } from "./text_encoding.ts";
 import { applyChannelSetup, parseChannelSetup } from "./channel_setup.ts";
 import { type CsvReadOptions, parseCsvRecording } from "./csv_reader.ts";
 import type { Recording } from "./recording.ts";
@@ -71,10 +72,7 @@ export async function readRecordingFile(
     try {
       text = new TextDecoder("utf-8", { fatal: true }).decode(bytes);
     } catch {
-      throw new QuiverError(
-        "neither a WAV file nor UTF-8 text; quiver reads CSV and WAV recordings",
-        { file: path },
-      );
+      throw notUtf8Text(path);
     }
     recording = parseCsvRecording(text, { ...options, file: path });
   }

@@ -21,6 +21,7 @@
  * @module
  */
 import { decimalsWritten, nominalRate } from "./time_axis.ts";
+import { notUtf8Text } from "./text_encoding.ts";
 import { open } from "node:fs/promises";
 import { QuiverError } from "../errors.ts";
 import { type ChannelTransform, parseChannelSetup, setupTransforms } from "./channel_setup.ts";
@@ -114,8 +115,18 @@ export function parseNumberAt(text: string, start: number, end: number): number 
   return value - value === 0 ? value : NaN; // NaN and ±Infinity fail
 }
 
-/** Reads a file chunk by chunk as text, without holding the file. */
+/** Reads a file chunk by chunk as text, without holding the file; refuses bytes that are not UTF-8. */
 async function* textChunks(path: string): AsyncGenerator<string> {
+  try {
+    yield* decodedChunks(path);
+  } catch (error) {
+    // The whole-file reader's message for the same fault: one reader, one message.
+    if (error instanceof TypeError) throw notUtf8Text(path);
+    throw error;
+  }
+}
+
+async function* decodedChunks(path: string): AsyncGenerator<string> {
   const handle = await open(path, "r");
   try {
     const decoder = new TextDecoder("utf-8", { fatal: true });

@@ -356,7 +356,7 @@ export interface RunOptions {
   /** Unmet targets make the run exit with its own code, whatever the plan says. Default false. */
   requireTargets?: boolean;
   /** Runs one step; default: the command's `run` in this process (a pool passes its own). */
-  execute?: (command: string, argv: readonly string[]) => Promise<void>;
+  execute?: (command: string, argv: readonly string[], stepId: string) => Promise<void>;
 }
 
 /**
@@ -490,7 +490,7 @@ async function runLocked(
       return;
     }
     try {
-      await execute(step.command, step.argv);
+      await execute(step.command, step.argv, step.id);
       const outputs: Record<string, FileRecord> = {};
       for (const [key, path] of Object.entries(step.outputs)) {
         if (existsSync(path) && statSync(path).isFile()) outputs[key] = await record(path, outDir);
