@@ -5,7 +5,7 @@
  */
 import { toStderr } from "./terminal.ts";
 import { z } from "zod";
-import { BAND_METHODS, bandLevels, bandLevelsStream } from "../lib/acoustics/band_analysis.ts";
+import { BAND_METHODS, bandLevelsStream } from "../lib/acoustics/band_analysis.ts";
 import { BAND_FRACTIONS } from "../lib/acoustics/bands.ts";
 import { WEIGHTINGS } from "../lib/acoustics/weighting.ts";
 import {
@@ -122,7 +122,6 @@ export async function run(argv: readonly string[]): Promise<void> {
     input,
     toReadOptions(values),
     (stream) => bandLevelsStream(stream, analysis),
-    (recording) => bandLevels(recording, analysis),
   );
   await writeResult(result.table, input, values);
   for (const w of result.warnings) toStderr(`quiver bands: warning: ${w}\n`);

@@ -8,7 +8,7 @@ import { formatNumber } from "../lib/format_number.ts";
 import { z } from "zod";
 import { ESTIMATORS } from "../lib/frf/estimators.ts";
 import { FRF_FORMS } from "../lib/frf/forms.ts";
-import { frequencyResponse, frequencyResponseStream } from "../lib/frf/frf_analysis.ts";
+import { frequencyResponseStream } from "../lib/frf/frf_analysis.ts";
 import { listOption, type OptionSpec, parseCommandArgs, usageError } from "./args.ts";
 import { writeResult } from "./output.ts";
 import {
@@ -102,7 +102,6 @@ export async function run(argv: readonly string[]): Promise<void> {
     input,
     toReadOptions(values),
     (stream) => frequencyResponseStream(stream, analysis),
-    (recording) => frequencyResponse(recording, analysis),
   );
   await writeResult(table, input, values);
   for (const warning of warnings) toStderr(`quiver frf: warning: ${warning}\n`);

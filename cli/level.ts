@@ -5,7 +5,7 @@
  */
 import { toStderr } from "./terminal.ts";
 import { z } from "zod";
-import { levelHistory, levelHistoryStream } from "../lib/acoustics/level_analysis.ts";
+import { levelHistoryStream } from "../lib/acoustics/level_analysis.ts";
 import { TIME_WEIGHTINGS } from "../lib/acoustics/time_weighting.ts";
 import { WEIGHTINGS } from "../lib/acoustics/weighting.ts";
 import { listOption, numberOption, type OptionSpec, parseCommandArgs, usageError } from "./args.ts";
@@ -85,7 +85,6 @@ export async function run(argv: readonly string[]): Promise<void> {
     input,
     toReadOptions(values),
     (stream) => levelHistoryStream(stream, analysis),
-    (recording) => levelHistory(recording, analysis),
   );
   await writeResult(result.table, input, values);
   for (const w of result.warnings) toStderr(`quiver level: warning: ${w}\n`);

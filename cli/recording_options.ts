@@ -4,15 +4,9 @@
  * @module
  */
 import { z } from "zod";
-import { readRecordingFile, type ReadRecordingOptions } from "../lib/io/read_recording.ts";
-import {
-  openRecordingStream,
-  type RecordingStream,
-  StreamFallback,
-} from "../lib/io/recording_stream.ts";
-import type { Recording } from "../lib/io/recording.ts";
-import { QuiverError } from "../lib/errors.ts";
-import { inFile, inFileAsync, numberOption, type OptionSpec } from "./args.ts";
+import type { ReadRecordingOptions } from "../lib/io/read_recording.ts";
+import { openRecordingStream, type RecordingStream } from "../lib/io/recording_stream.ts";
+import { inFileAsync, numberOption, type OptionSpec } from "./args.ts";
 
 /** parseArgs spec of the recording options. */
 export const RECORDING_OPTIONS: OptionSpec = {
@@ -57,24 +51,15 @@ export function toReadOptions(values: {
 }
 
 /**
- * Runs an analysis on the recording read in chunks when the file allows it,
- * else (or when the chunked path refuses anything) on the whole file, whose
- * reader then reports the first fault in file order. Both give the same numbers.
+ * Opens the recording for chunked reading and runs the analysis on it. The
+ * analysis decides whether it reads in chunks or collects the whole record;
+ * a fault is reported once, where the reader finds it.
  */
 export async function analyseRecording<T>(
   input: string,
   options: ReadRecordingOptions,
-  streamed: (stream: RecordingStream) => Promise<T>,
-  whole: (recording: Recording) => T,
+  analysis: (stream: RecordingStream) => Promise<T>,
 ): Promise<T> {
-  try {
-    const stream = await openRecordingStream(input, options);
-    return await inFileAsync(input, () => streamed(stream));
-  } catch (error) {
-    const refusal = error instanceof StreamFallback || error instanceof QuiverError ||
-      error instanceof RangeError;
-    if (!refusal) throw error;
-    const recording = await readRecordingFile(input, options);
-    return inFile(input, () => whole(recording));
-  }
+  const stream = await openRecordingStream(input, options);
+  return await inFileAsync(input, () => analysis(stream));
 }

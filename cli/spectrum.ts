@@ -7,7 +7,7 @@ import { toStderr } from "./terminal.ts";
 import { formatNumber } from "../lib/format_number.ts";
 import { z } from "zod";
 import { AVERAGING_MODES } from "../lib/dsp/spectral_core.ts";
-import { averagedSpectrum, averagedSpectrumStream } from "../lib/dsp/averaged_spectrum.ts";
+import { averagedSpectrumStream } from "../lib/dsp/averaged_spectrum.ts";
 import { SPECTRUM_KINDS } from "../lib/dsp/spectrum_kinds.ts";
 import { listOption, numberOption, type OptionSpec, parseCommandArgs, usageError } from "./args.ts";
 import { writeResult } from "./output.ts";
@@ -102,7 +102,6 @@ export async function run(argv: readonly string[]): Promise<void> {
     input,
     toReadOptions(values),
     (stream) => averagedSpectrumStream(stream, analysis),
-    (recording) => averagedSpectrum(recording, analysis),
   );
   await writeResult(table, input, values);
   for (const w of table.metadata.warnings as string[]) {

@@ -28,7 +28,7 @@ import {
 } from "../io/recording.ts";
 import type { Table, TableColumn } from "../io/table.ts";
 import { resolveBlock, SpectralAccumulator, type SpectralEstimate } from "../dsp/spectral_core.ts";
-import { readChecked, type RecordingStream, StreamFallback } from "../io/recording_stream.ts";
+import { collectRecording, readChecked, type RecordingStream } from "../io/recording_stream.ts";
 import { channelsWarnings } from "../io/signal_checks.ts";
 import { type Band, type BandFraction, bandsInRange } from "./bands.ts";
 import { bandPowersFromDensity } from "./band_synthesis.ts";
@@ -116,18 +116,20 @@ export function bandLevels(recording: Recording, options: BandLevelOptions = {})
 }
 
 /**
- * The fft method on a recording read in chunks (memory for one chunk), with
- * exactly the numbers of {@linkcode bandLevels}. The filter method needs the
- * whole record: it throws {@linkcode StreamFallback}.
+ * Band levels of a recording read in chunks, with exactly the numbers of
+ * {@linkcode bandLevels}: the fft method needs memory for one chunk; the
+ * filter method collects the chosen channels' whole record first.
  */
 export async function bandLevelsStream(
   stream: RecordingStream,
   options: BandLevelOptions = {},
 ): Promise<BandLevelResult> {
-  if ((options.method ?? "fft") !== "fft") {
-    throw new StreamFallback("the filter bank reads the whole record");
-  }
   const indices = channelIndices(stream.channels, options.channels);
+  if ((options.method ?? "fft") !== "fft") {
+    // The filter bank reads the whole record: collected through the same chunks.
+    const recording = await collectRecording(stream, indices);
+    return bandLevels(recording, { ...options, channels: undefined });
+  }
   const channels = indices.map((i) => stream.channels[i]);
   const accumulator = new SpectralAccumulator(channels.length, {
     rate: stream.rate,
@@ -183,7 +185,7 @@ function bandPlan(
 
 function fftBlock(rate: number, length: number, options: BandLevelOptions): number {
   const defaultBlock = 2 ** Math.floor(Math.log2(Math.max(8, length / 4)));
-  return resolveBlock(rate, length, {
+  return resolveBlock(rate, {
     block: options.block ?? (options.resolution === undefined ? defaultBlock : undefined),
     resolution: options.resolution,
   });

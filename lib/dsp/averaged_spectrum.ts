@@ -58,7 +58,7 @@ export function averagedSpectrum(
 ): Table {
   const channels = selectChannels(recording, options.channels);
   const length = recordingLength(recording);
-  const accumulator = spectrumAccumulator(recording.rate, length, channels.length, options);
+  const accumulator = spectrumAccumulator(recording.rate, channels.length, options);
   accumulator.push(channels.map((c) => c.data));
   return spectrumTable(
     accumulator.finish(),
@@ -75,7 +75,7 @@ export function averagedSpectrum(
  * whatever the recording's length, and exactly the numbers of
  * {@linkcode averagedSpectrum}.
  *
- * @throws {StreamFallback} when the file needs the in-memory reader after all.
+ * @throws {QuiverError} for a fault in the data, where the reader finds it.
  */
 export async function averagedSpectrumStream(
   stream: RecordingStream,
@@ -83,7 +83,7 @@ export async function averagedSpectrumStream(
 ): Promise<Table> {
   const indices = channelIndices(stream.channels, options.channels);
   const channels = indices.map((i) => stream.channels[i]);
-  const accumulator = spectrumAccumulator(stream.rate, stream.length, channels.length, options);
+  const accumulator = spectrumAccumulator(stream.rate, channels.length, options);
   const warnings = await readChecked(stream, indices, (chunk) => accumulator.push(chunk));
   return spectrumTable(
     accumulator.finish(),
@@ -97,11 +97,10 @@ export async function averagedSpectrumStream(
 
 function spectrumAccumulator(
   rate: number,
-  length: number,
   channelCount: number,
   options: AveragedSpectrumOptions,
 ): SpectralAccumulator {
-  const block = resolveBlock(rate, length, options);
+  const block = resolveBlock(rate, options);
   const { overlap, window, detrend, average, tau } = options;
   return new SpectralAccumulator(channelCount, {
     rate,

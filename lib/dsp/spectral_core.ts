@@ -18,6 +18,7 @@
  * @module
  */
 import { QuiverError } from "../errors.ts";
+import { formatNumber } from "../format_number.ts";
 import { type RealFftPlan, realFftPlan } from "./fft.ts";
 import { detrendInPlace, type DetrendMode } from "./detrend.ts";
 import { windowGains, type WindowName, windowSamples } from "./windows.ts";
@@ -174,37 +175,29 @@ export function blockForResolution(rate: number, resolution: number): number {
 export const DEFAULT_BLOCK = 4096;
 
 /**
- * The block an analysis uses: `block`, else ceil(rate/`resolution`), else
- * {@linkcode DEFAULT_BLOCK}, checked against the record length.
+ * The block length from a block or a resolution (default {@linkcode DEFAULT_BLOCK}).
+ * Whether the record holds a block is known only once it has been read: the
+ * accumulator says so then ({@linkcode SpectralAccumulator.finish}), after any
+ * fault in the data itself.
  *
- * @throws {RangeError} when both are given; {@linkcode QuiverError} when the
- * block is longer than the record.
+ * @throws {RangeError} when both are given.
  *
  * @example
  * ```ts
  * import { resolveBlock } from "./spectral_core.ts";
- * if (resolveBlock(2048, 10000, { resolution: 1 }) !== 2048) throw new Error();
+ * if (resolveBlock(2048, { resolution: 1 }) !== 2048) throw new Error();
  * ```
  */
 export function resolveBlock(
   rate: number,
-  recordLength: number,
   choice: { block?: number; resolution?: number },
 ): number {
   if (choice.block !== undefined && choice.resolution !== undefined) {
     throw new RangeError("give a block length or a resolution, not both");
   }
-  const block = choice.resolution !== undefined
+  return choice.resolution !== undefined
     ? blockForResolution(rate, choice.resolution)
     : choice.block ?? DEFAULT_BLOCK;
-  if (block > recordLength) {
-    throw new QuiverError(
-      `a block of ${block} samples (${
-        block / rate
-      } s) is longer than the record of ${recordLength} samples (${recordLength / rate} s)`,
-    );
-  }
-  return block;
 }
 
 /** Smallest block the core accepts. */
@@ -317,6 +310,7 @@ export class SpectralAccumulator {
   readonly #crossRe: Float64Array[];
   readonly #crossIm: Float64Array[];
   #segments = 0;
+  #samplesPushed = 0;
 
   /**
    * @param channelCount number of channels every chunk carries
@@ -371,6 +365,7 @@ export class SpectralAccumulator {
     if (chunk.some((c) => c.length !== length)) {
       throw new RangeError("every channel of a chunk must have the same length");
     }
+    this.#samplesPushed += length;
     const { block, hop } = this.#o;
     let offset = 0;
     while (offset < length) {
@@ -480,8 +475,13 @@ export class SpectralAccumulator {
   finish(): SpectralEstimate {
     const o = this.#o;
     if (this.#segments === 0) {
+      const n = this.#samplesPushed;
       throw new QuiverError(
-        `the record is shorter than one block of ${o.block} samples; choose a smaller block or a coarser resolution`,
+        `a block of ${o.block} samples (${
+          formatNumber(o.block / o.rate, 6)
+        } s) is longer than the record of ${n} samples (${
+          formatNumber(n / o.rate, 6)
+        } s); choose a smaller block or a coarser resolution`,
       );
     }
     const divisor = o.average === "linear" ? this.#segments : 1;

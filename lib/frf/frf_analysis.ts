@@ -198,7 +198,7 @@ export function frequencyResponse(recording: Recording, options: FrfOptions): Fr
   checkFrfOptions(options);
   const channels = selectChannels(recording, [options.input, ...options.outputs]);
   const length = recordingLength(recording);
-  const accumulator = frfAccumulator(recording.rate, length, channels.length, options);
+  const accumulator = frfAccumulator(recording.rate, channels.length, options);
   accumulator.push(channels.map((c) => c.data));
   return frfResult(accumulator.finish(), channels, options, length, channelsWarnings(channels));
 }
@@ -207,7 +207,7 @@ export function frequencyResponse(recording: Recording, options: FrfOptions): Fr
  * The same analysis on a recording read in chunks (memory for one chunk),
  * with exactly the numbers of {@linkcode frequencyResponse}.
  *
- * @throws {StreamFallback} when the file needs the in-memory reader after all.
+ * @throws {QuiverError} for a fault in the data, where the reader finds it.
  */
 export async function frequencyResponseStream(
   stream: RecordingStream,
@@ -216,7 +216,7 @@ export async function frequencyResponseStream(
   checkFrfOptions(options);
   const indices = channelIndices(stream.channels, [options.input, ...options.outputs]);
   const channels = indices.map((i) => stream.channels[i]);
-  const accumulator = frfAccumulator(stream.rate, stream.length, channels.length, options);
+  const accumulator = frfAccumulator(stream.rate, channels.length, options);
   const warnings = await readChecked(stream, indices, (chunk) => accumulator.push(chunk));
   return frfResult(accumulator.finish(), channels, options, stream.length, warnings);
 }
@@ -232,13 +232,12 @@ function checkFrfOptions(options: FrfOptions): void {
 
 function frfAccumulator(
   rate: number,
-  length: number,
   channelCount: number,
   options: FrfOptions,
 ): SpectralAccumulator {
   return new SpectralAccumulator(channelCount, {
     rate,
-    block: resolveBlock(rate, length, options),
+    block: resolveBlock(rate, options),
     overlap: options.overlap,
     window: options.window,
     detrend: options.detrend,

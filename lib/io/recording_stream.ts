@@ -1,33 +1,25 @@
 /**
- * Reading a recording in chunks, so that an analysis that can run on
- * chunks (the spectral core's running averages) needs memory for one chunk
- * only, however long the recording.
+ * The one way quiver reads a recording: opened for chunked reading (header
+ * first: rate, channels, length), then read chunk by chunk into an analysis,
+ * so that an analysis that can run on chunks needs memory for one chunk
+ * only, however long the recording. An analysis that needs the whole record
+ * reads it through the same chunks into arrays sized from the header
+ * ({@linkcode collectRecording}).
  *
  * WAV: the header is read, then the data chunk frame block by frame block.
- *
- * CSV, the fast path for the common clean numeric file (`,` delimiter, `.`
- * decimal mark, no quotes in the data): a first pass over the bytes counts
- * the rows and reads the last time stamp (the rate comes from the end points,
- * as in csv_reader.ts); the second pass tokenises the bytes itself and turns
- * each cell into a number with the same strict grammar as the in-memory
- * reader, so both give identical numbers.
- *
- * Anything unusual (quotes, `;` or decimal commas, a bad cell, a ragged row,
- * an irregular time step) makes the stream give up with
- * {@linkcode StreamFallback}; the caller then reads the file whole with the
- * in-memory reader (papaparse), which either reads it or raises the precise
- * error with file, line and column.
+ * CSV: the one CSV reader (csv_engine.ts) in two passes over the bytes. A
+ * fault is reported where it is found, with file, line and column; nothing
+ * is read twice to find it.
  *
  * @module
  */
-import { decimalsWritten, nominalRate } from "./time_axis.ts";
-import { notUtf8Text } from "./text_encoding.ts";
 import { open } from "node:fs/promises";
 import { QuiverError } from "../errors.ts";
 import { type ChannelTransform, parseChannelSetup, setupTransforms } from "./channel_setup.ts";
-import { parseHeaderCell, REFERENCE_STEPS, TIME_NAMES } from "./csv_reader.ts";
+import { CsvRowParser, CsvScanner } from "./csv_engine.ts";
+import { csvRecordingLayout, TimeStepCheck } from "./csv_recording.ts";
 import type { ReadRecordingOptions } from "./read_recording.ts";
-import type { ChannelRole } from "./recording.ts";
+import type { ChannelRole, Recording } from "./recording.ts";
 import {
   decodeWavFrames,
   FORMAT_FLOAT,
@@ -37,14 +29,6 @@ import {
 } from "./wav.ts";
 import { ChannelStatistics } from "./signal_checks.ts";
 import { readFile } from "node:fs/promises";
-
-/** Thrown when a file needs the in-memory reader after all. */
-export class StreamFallback extends Error {
-  constructor(reason: string) {
-    super(reason);
-    this.name = "StreamFallback";
-  }
-}
 
 /** A recording opened for chunked reading. */
 export interface RecordingStream {
@@ -60,7 +44,7 @@ export interface RecordingStream {
    * Reads the channels with the given indices in order, chunk by chunk.
    * A chunk's arrays are valid during the callback only: they are reused.
    *
-   * @throws {StreamFallback} when the file turns out to need the in-memory reader.
+   * @throws {QuiverError} for a fault in the data, naming file, line and column.
    */
   read(selected: readonly number[], onChunk: (chunk: Float64Array[]) => void): Promise<void>;
 }
@@ -78,126 +62,22 @@ async function transformsFor(
   let text: string;
   try {
     text = await readFile(options.setup, "utf8");
-  } catch {
-    throw new QuiverError("cannot read: no such file", { file: options.setup }, "usage");
+  } catch (error) {
+    throw unreadable(options.setup, error);
   }
   return setupTransforms(channels, parseChannelSetup(text, options.setup), options.setup);
 }
 
-/**
- * Parses the number in text[start, end) with the grammar of the in-memory
- * reader ([+-]digits[.digits][e[+-]digits]), or returns NaN. The conversion
- * is Number() itself, on the same characters as the in-memory reader's, so
- * both give identical doubles; the checks around it refuse what Number()
- * would accept but the grammar does not (empty cells, Infinity, hex, binary
- * and octal literals, surrounding whitespace; the in-memory reader handles
- * whitespace).
- *
- * @example
- * ```ts
- * import { parseNumberAt } from "./recording_stream.ts";
- * if (parseNumberAt("-1.25e-3", 0, 8) !== -0.00125 || !Number.isNaN(parseNumberAt("0x1f", 0, 4))) throw new Error();
- * ```
- */
-export function parseNumberAt(text: string, start: number, end: number): number {
-  if (end <= start) return NaN;
-  let k = start;
-  let c = text.charCodeAt(k);
-  if (c === 43 || c === 45) c = text.charCodeAt(++k);
-  if (!((c >= 48 && c <= 57) || c === 46)) return NaN;
-  if (c === 48 && k + 1 < end) {
-    const next = text.charCodeAt(k + 1) | 32; // lower case
-    if (next === 120 || next === 98 || next === 111) return NaN; // 0x, 0b, 0o
-  }
-  const last = text.charCodeAt(end - 1);
-  if (!((last >= 48 && last <= 57) || last === 46)) return NaN; // trailing space, sign or letter
-  const value = +text.slice(start, end);
-  return value - value === 0 ? value : NaN; // NaN and ±Infinity fail
-}
-
-/** Reads a file chunk by chunk as text, without holding the file; refuses bytes that are not UTF-8. */
-async function* textChunks(path: string): AsyncGenerator<string> {
-  try {
-    yield* decodedChunks(path);
-  } catch (error) {
-    // The whole-file reader's message for the same fault: one reader, one message.
-    if (error instanceof TypeError) throw notUtf8Text(path);
-    throw error;
-  }
-}
-
-async function* decodedChunks(path: string): AsyncGenerator<string> {
+/** Reads a file's bytes chunk by chunk into `onBytes` (one buffer, reused). */
+async function eachChunk(path: string, onBytes: (bytes: Uint8Array) => void): Promise<void> {
   const handle = await open(path, "r");
   try {
-    const decoder = new TextDecoder("utf-8", { fatal: true });
     const buffer = new Uint8Array(READ_BYTES);
     for (;;) {
       const { bytesRead } = await handle.read(buffer, 0, READ_BYTES, null);
       if (bytesRead === 0) break;
-      yield decoder.decode(buffer.subarray(0, bytesRead), { stream: true });
+      onBytes(buffer.subarray(0, bytesRead));
     }
-    const rest = decoder.decode();
-    if (rest !== "") yield rest;
-  } finally {
-    await handle.close();
-  }
-}
-
-const isBlankLine = (line: string) => /^[\s,]*$/.test(line);
-
-/** Pass 1 over the bytes: row count, header, first and last data rows. */
-async function scanCsv(
-  path: string,
-): Promise<{ header: string; first: string; last: string; rows: number }> {
-  const handle = await open(path, "r");
-  try {
-    const size = (await handle.stat()).size;
-    const buffer = new Uint8Array(READ_BYTES);
-    let newlines = 0;
-    let offset = 0;
-    let lastContent = -1; // position of the last byte that is not whitespace
-    let newlinesBeforeContentEnd = 0;
-    for (;;) {
-      const { bytesRead } = await handle.read(buffer, 0, READ_BYTES, offset);
-      if (bytesRead === 0) break;
-      const view = buffer.subarray(0, bytesRead);
-      if (view.indexOf(34) >= 0 || view.indexOf(0) >= 0) throw new StreamFallback("quotes or NUL");
-      let chunkLast = -1;
-      for (let k = bytesRead - 1; k >= 0; k--) {
-        const b = view[k];
-        if (b !== 10 && b !== 13 && b !== 32 && b !== 9) {
-          chunkLast = k;
-          break;
-        }
-      }
-      for (let at = view.indexOf(10); at >= 0; at = view.indexOf(10, at + 1)) {
-        newlines++;
-        if (at < chunkLast) newlinesBeforeContentEnd = newlines;
-      }
-      if (chunkLast >= 0) {
-        lastContent = offset + chunkLast;
-        // Every newline of this chunk before its last content byte, plus all earlier ones.
-      }
-      offset += bytesRead;
-    }
-    if (lastContent < 0) throw new StreamFallback("empty");
-    const tailStart = Math.max(0, lastContent + 1 - 65536);
-    const tail = new Uint8Array(lastContent + 1 - tailStart);
-    await handle.read(tail, 0, tail.length, tailStart);
-    const tailText = new TextDecoder().decode(tail);
-    const last = tailText.slice(tailText.lastIndexOf("\n") + 1).replace(/\r$/, "");
-    const head = new Uint8Array(Math.min(size, 65536));
-    await handle.read(head, 0, head.length, 0);
-    let headText = new TextDecoder().decode(head);
-    if (headText.charCodeAt(0) === 0xfeff) headText = headText.slice(1);
-    const headLines = headText.split("\n").map((l) => l.replace(/\r$/, ""));
-    // Lines up to the last content = newlines before it + 1; data rows = lines − 1.
-    return {
-      header: headLines[0] ?? "",
-      first: headLines[1] ?? "",
-      last,
-      rows: newlinesBeforeContentEnd,
-    };
   } finally {
     await handle.close();
   }
@@ -207,165 +87,43 @@ async function openCsvStream(
   path: string,
   options: ReadRecordingOptions,
 ): Promise<RecordingStream> {
-  if ((options.delimiter ?? "auto") !== "auto" && options.delimiter !== ",") {
-    throw new StreamFallback("delimiter");
-  }
-  if (options.decimal === ",") throw new StreamFallback("decimal comma");
-  const { header, first: firstRow, last: lastRow, rows } = await scanCsv(path);
-  if (rows < 1 || isBlankLine(firstRow)) throw new StreamFallback("no data or blank lines");
-  if (header.includes(";") || header.includes("\t")) throw new StreamFallback("delimiter");
-  const cells = header.split(",").map((c) => parseHeaderCell(c.trim()));
-  const names = new Set<string>();
-  for (const c of cells) {
-    if (c.name === "" || names.has(c.name)) throw new StreamFallback("header");
-    names.add(c.name);
-  }
-  const timeColumns = cells.map((c, i) => (TIME_NAMES.has(c.name.toLowerCase()) ? i : -1)).filter((
-    i,
-  ) => i >= 0);
-  if (timeColumns.length > 1) throw new StreamFallback("two time columns");
-  const timeColumn = timeColumns[0] ?? -1;
-  if (timeColumn >= 0 && cells[timeColumn].unit !== "" && cells[timeColumn].unit !== "s") {
-    throw new StreamFallback("time unit");
-  }
-  const valueOf = (row: string, column: number) => {
-    const fields = row.split(",");
-    if (fields.length !== cells.length) throw new StreamFallback("ragged row");
-    const v = parseNumberAt(fields[column], 0, fields[column].length);
-    if (Number.isNaN(v)) throw new StreamFallback("cell");
-    return v;
-  };
-  let rate: number;
-  let startTime = 0;
-  if (timeColumn >= 0) {
-    if (rows < 2) throw new StreamFallback("too short");
-    startTime = valueOf(firstRow, timeColumn);
-    const total = valueOf(lastRow, timeColumn) - startTime;
-    if (!(total > 0)) throw new StreamFallback("time");
-    const timeCell = (row: string) => row.split(",")[timeColumn].trim();
-    const decimals = Math.max(
-      decimalsWritten(timeCell(firstRow)),
-      decimalsWritten(timeCell(lastRow)),
-    );
-    // The same rule as the whole-file reader (time_axis.ts); the stream checks
-    // the steps in between as it reads.
-    const derived = nominalRate(rows, total, decimals);
-    if (options.rate !== undefined) {
-      if (Math.abs(derived - options.rate) > 1e-3 * options.rate) throw new StreamFallback("rate");
-      rate = options.rate;
-    } else {
-      rate = derived;
-    }
-  } else {
-    if (options.rate === undefined) throw new StreamFallback("no rate");
-    rate = options.rate;
-  }
-  const channelColumns = cells.map((_, i) => i).filter((i) => i !== timeColumn);
-  if (channelColumns.length === 0) throw new StreamFallback("no channels");
-  const transforms = await transformsFor(channelColumns.map((i) => cells[i]), options);
-  const width = cells.length;
+  const csvOptions = { ...options, file: path };
+  const scanner = new CsvScanner(csvOptions);
+  await eachChunk(path, (bytes) => scanner.push(bytes));
+  const scan = scanner.end();
+  const layout = csvRecordingLayout(scan, csvOptions);
+  const { header, timeColumn, channelColumns, length } = layout;
+  const transforms = await transformsFor(channelColumns.map((i) => header[i]), options);
   return {
-    rate,
-    startTime,
-    length: rows,
+    rate: layout.rate,
+    startTime: layout.startTime,
+    length,
     channels: transforms.map(({ factor: _f, ...meta }) => meta),
     async read(selected, onChunk) {
-      // target[c] is the output index of file column c, or −1.
-      const target = new Int32Array(width).fill(-1);
-      selected.forEach((s, j) => (target[channelColumns[s]] = j));
       const factors = selected.map((s) => transforms[s].factor);
+      const columns = selected.map((s) => channelColumns[s]);
       // One array per channel, reused for every chunk.
-      const chunkRows = Math.min(CHUNK_ROWS, rows);
+      const chunkRows = Math.min(CHUNK_ROWS, length);
       const buffers = selected.map(() => new Float64Array(chunkRows));
+      const check = timeColumn >= 0 ? new TimeStepCheck(timeColumn, csvOptions) : undefined;
       let filled = 0;
-      let seen = 0;
-      let previousTime = NaN;
-      let reference = NaN;
-      let tolerance = 0;
-      const head: number[] = [];
       const flush = () => {
         if (filled === 0) return;
-        onChunk(buffers.map((b, j) => {
-          const part = b.subarray(0, filled);
-          if (factors[j] !== 1) { for (let i = 0; i < part.length; i++) part[i] *= factors[j]; }
-          return part;
-        }));
+        onChunk(buffers.map((b) => b.subarray(0, filled)));
         filled = 0;
       };
-      const row = (text: string, start: number, end: number) => {
-        if (seen >= rows) throw new StreamFallback("more rows than counted");
-        let column = 0;
-        let fieldStart = start;
-        let time = NaN;
-        for (;;) {
-          const comma = text.indexOf(",", fieldStart);
-          const stop = comma < 0 || comma > end ? end : comma;
-          if (column >= width) throw new StreamFallback("ragged row");
-          const v = parseNumberAt(text, fieldStart, stop);
-          if (Number.isNaN(v)) throw new StreamFallback("cell");
-          const j = target[column];
-          if (j >= 0) buffers[j][filled] = v;
-          if (column === timeColumn) time = v;
-          column++;
-          if (stop === end) break;
-          fieldStart = stop + 1;
-        }
-        if (column !== width) throw new StreamFallback("ragged row");
-        if (timeColumn >= 0) {
-          if (seen > 0) {
-            const dt = time - previousTime;
-            if (!(dt > 0)) throw new StreamFallback("time");
-            if (Number.isNaN(reference)) {
-              // The reference is the median of the first steps, as in csv_reader.ts.
-              head.push(dt);
-              if (head.length === REFERENCE_STEPS || seen === rows - 1) {
-                const sorted = head.slice().sort((x, y) => x - y);
-                reference = sorted[Math.floor((sorted.length - 1) / 2)];
-                tolerance = (options.timeTolerance ?? 0.01) * reference;
-                if (head.some((d) => Math.abs(d - reference) > tolerance)) {
-                  throw new StreamFallback("time step");
-                }
-              }
-            } else if (Math.abs(dt - reference) > tolerance) {
-              throw new StreamFallback("time step");
-            }
+      const parser = new CsvRowParser(scan, header.length, {
+        row(values, line, decimals) {
+          check?.push(values[timeColumn], line, decimals[timeColumn]);
+          for (let j = 0; j < columns.length; j++) {
+            buffers[j][filled] = values[columns[j]] * factors[j];
           }
-          previousTime = time;
-        }
-        filled++;
-        seen++;
-        if (filled === chunkRows) flush();
-      };
-      let carry = "";
-      let headerSkipped = false;
-      for await (const piece of textChunks(path)) {
-        let text = carry + piece;
-        if (!headerSkipped) {
-          if (text.charCodeAt(0) === 0xfeff) text = text.slice(1);
-          const nl = text.indexOf("\n");
-          if (nl < 0) {
-            carry = text;
-            continue;
-          }
-          text = text.slice(nl + 1);
-          headerSkipped = true;
-        }
-        let pos = 0;
-        for (let nl = text.indexOf("\n"); nl >= 0; nl = text.indexOf("\n", pos)) {
-          const end = nl > pos && text.charCodeAt(nl - 1) === 13 ? nl - 1 : nl;
-          if (seen < rows) {
-            if (end === pos) throw new StreamFallback("blank line"); // the whole-file reader handles those
-            row(text, pos, end);
-          } else if (end > pos && text.slice(pos, end).trim() !== "") {
-            throw new StreamFallback("more rows than counted");
-          }
-          pos = nl + 1;
-        }
-        carry = text.slice(pos);
-      }
-      const last = carry.replace(/\r$/, "");
-      if (last.trim() !== "") row(last, 0, last.length);
-      if (seen !== rows) throw new StreamFallback("row count");
+          if (++filled === chunkRows) flush();
+        },
+      }, { ...csvOptions, decimalsOf: timeColumn >= 0 ? [timeColumn] : [] });
+      await eachChunk(path, (bytes) => parser.push(bytes));
+      parser.end();
+      check?.end();
       flush();
     },
   };
@@ -380,7 +138,7 @@ async function openWavStream(
     const size = (await handle.stat()).size;
     const head = new Uint8Array(Math.min(size, 1 << 20));
     await handle.read(head, 0, head.length, 0);
-    if (!looksLikeWav(head)) throw new StreamFallback("not WAV");
+    if (!looksLikeWav(head)) parseWav(head, path); // throws its precise message
     const view = new DataView(head.buffer);
     let offset = 12;
     let fmt:
@@ -411,14 +169,30 @@ async function openWavStream(
       }
       offset += 8 + chunkSize + (chunkSize % 2);
     }
-    if (
-      fmt === undefined || dataStart < 0 || dataStart + dataBytes > size ||
-      dataBytes % fmt.blockAlign !== 0
-    ) {
-      throw new StreamFallback("header"); // the in-memory reader names the fault
+    const fail = (detail: string, kind: "data" | "usage" = "data"): never => {
+      throw new QuiverError(detail, { file: path }, kind);
+    };
+    if (fmt === undefined || dataStart < 0) {
+      parseWav(head, path); // a missing or misplaced chunk: its precise message
+      fail("no fmt and data chunks in the first MiB of the file");
     }
-    if (options.rate !== undefined) throw new StreamFallback("rate given for WAV");
-    const f = fmt;
+    const format = fmt as NonNullable<typeof fmt>;
+    if (dataStart + dataBytes > size) {
+      fail(
+        `truncated: the data chunk declares ${dataBytes} bytes but the file holds ${
+          size - dataStart
+        } after its header`,
+      );
+    }
+    if (format.blockAlign === 0 || dataBytes % format.blockAlign !== 0) {
+      fail(
+        `data chunk of ${dataBytes} bytes is not a whole number of ${format.blockAlign}-byte frames`,
+      );
+    }
+    if (options.rate !== undefined) {
+      fail("a WAV file states its own sample rate; do not give one", "usage");
+    }
+    const f = format;
     // Validate the format with the in-memory decoder on a header-only copy.
     const probe = new Uint8Array(dataStart + f.blockAlign);
     probe.set(head.subarray(0, dataStart));
@@ -469,7 +243,7 @@ async function openWavStream(
  * their signal warnings (signal_checks.ts). The statistics see each chunk
  * before `onChunk`, which may then change it in place.
  *
- * @throws {StreamFallback} as {@linkcode RecordingStream.read} does.
+ * @throws {QuiverError} as {@linkcode RecordingStream.read} does.
  */
 export async function readChecked(
   stream: RecordingStream,
@@ -485,10 +259,11 @@ export async function readChecked(
 }
 
 /**
- * Opens a recording for chunked reading, or throws {@linkcode StreamFallback}
- * when the file needs the in-memory reader.
+ * Opens a recording (CSV or WAV, told by its first bytes) for chunked reading,
+ * with the set-up applied.
  *
- * @throws {QuiverError} for a missing file or a bad set-up.
+ * @throws {QuiverError} for a missing file, a bad header or set-up, or (CSV)
+ * any fault pass 1 finds.
  */
 export async function openRecordingStream(
   path: string,
@@ -504,14 +279,56 @@ export async function openRecordingStream(
       await h.close();
     }
   } catch (error) {
-    if (error instanceof StreamFallback) throw error;
-    throw new StreamFallback("unreadable"); // the in-memory reader says why
+    throw unreadable(path, error);
   }
   if (looksLikeWav(magic)) return await openWavStream(path, options);
-  try {
-    return await openCsvStream(path, options);
-  } catch (error) {
-    if (error instanceof QuiverError || error instanceof StreamFallback) throw error;
-    throw new StreamFallback(error instanceof Error ? error.message : String(error));
-  }
+  return await openCsvStream(path, options);
+}
+
+/** The usage error for a file that cannot be opened. */
+export function unreadable(path: string, error: unknown): QuiverError {
+  const code = (error as { code?: string }).code;
+  const why = code === "ENOENT"
+    ? "no such file"
+    : code === "EISDIR"
+    ? "is a folder, not a file"
+    : code === "EACCES"
+    ? "permission denied"
+    : error instanceof Error
+    ? error.message
+    : String(error);
+  return new QuiverError(`cannot read: ${why}`, { file: path }, "usage");
+}
+
+/**
+ * The whole recording from a stream, in arrays sized from its header (for
+ * analyses that need the whole record), with the channels at `selected`
+ * (default: all).
+ *
+ * @example
+ * ```ts
+ * import { collectRecording, openRecordingStream } from "./recording_stream.ts";
+ * import { mkdtemp, writeFile } from "node:fs/promises";
+ * const dir = await mkdtemp("/tmp/quiver-doc-");
+ * await writeFile(`${dir}/r.csv`, "time_s,a [V]\n0,1\n0.5,2\n1,3\n");
+ * const rec = await collectRecording(await openRecordingStream(`${dir}/r.csv`));
+ * if (rec.rate !== 2 || rec.channels[0].data[2] !== 3) throw new Error();
+ * ```
+ */
+export async function collectRecording(
+  stream: RecordingStream,
+  selected?: readonly number[],
+): Promise<Recording> {
+  const indices = selected ?? stream.channels.map((_, i) => i);
+  const data = indices.map(() => new Float64Array(stream.length));
+  let at = 0;
+  await stream.read(indices, (chunk) => {
+    chunk.forEach((c, j) => data[j].set(c, at));
+    at += chunk[0]?.length ?? 0;
+  });
+  return {
+    rate: stream.rate,
+    startTime: stream.startTime,
+    channels: indices.map((i, j) => ({ ...stream.channels[i], data: data[j] })),
+  };
 }

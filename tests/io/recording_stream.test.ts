@@ -7,13 +7,13 @@ import { levelHistory, levelHistoryStream } from "../../lib/acoustics/level_anal
 import { frequencyResponse, frequencyResponseStream } from "../../lib/frf/frf_analysis.ts";
 import { parseCsvRecording } from "../../lib/io/csv_reader.ts";
 import { readRecordingFile } from "../../lib/io/read_recording.ts";
-import { CHUNK_ROWS, openRecordingStream, StreamFallback } from "../../lib/io/recording_stream.ts";
+import { CHUNK_ROWS, openRecordingStream } from "../../lib/io/recording_stream.ts";
 import { encodeWav } from "../../lib/io/wav.ts";
 import { fixturePath } from "../helpers/fixtures.ts";
 import { gaussianNoise } from "../helpers/random.ts";
 
 describe("chunked reading", () => {
-  test("the fast CSV path gives exactly the numbers of the papaparse reader", async () => {
+  test("the chunked reader gives exactly the numbers of the in-memory reader", async () => {
     const path = fixturePath("recordings/bench_shaker_2ch.csv");
     const whole = parseCsvRecording(readFileSync(path, "utf8"));
     const stream = await openRecordingStream(path);
@@ -105,14 +105,20 @@ describe("chunked reading", () => {
     }
   });
 
-  test("unusual files give way to the whole-file reader", async () => {
+  test("unusual files are read by the same chunked reader, and faults named where found", async () => {
     const dir = await mkdtemp("/tmp/quiver-stream-");
     await writeFile(`${dir}/semi.csv`, "time;a\n0;1,5\n0,5;2\n1;3\n");
     await writeFile(`${dir}/quoted.csv`, 'time_s,a\n0,"1"\n0.5,2\n1,3\n');
     await writeFile(`${dir}/bad.csv`, "time_s,a\n0,1\n0.5,x\n1,3\n");
-    await expect(openRecordingStream(`${dir}/semi.csv`)).rejects.toThrow(StreamFallback);
-    await expect(openRecordingStream(`${dir}/quoted.csv`)).rejects.toThrow(StreamFallback);
-    const bad = await openRecordingStream(`${dir}/bad.csv`);
-    await expect(bad.read([0], () => {})).rejects.toThrow(StreamFallback);
+    const read = async (file: string) => {
+      const stream = await openRecordingStream(`${dir}/${file}`);
+      const out: number[] = [];
+      await stream.read([0], (chunk) => out.push(...chunk[0]));
+      return { rate: stream.rate, values: out };
+    };
+    // Decimal commas with ";": the values as written (arithmetic).
+    expect(await read("semi.csv")).toEqual({ rate: 2, values: [1.5, 2, 3] });
+    expect(await read("quoted.csv")).toEqual({ rate: 2, values: [1, 2, 3] });
+    await expect(read("bad.csv")).rejects.toThrow(/bad\.csv:3:2: "x" is not a number/);
   });
 });

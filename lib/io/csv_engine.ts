@@ -1,0 +1,646 @@
+/**
+ * The one CSV reader of quiver: bytes in, numbers out, in two passes that
+ * each take the file chunk by chunk.
+ *
+ * - Pass 1 ({@linkcode CsvScanner}) finds the header, counts the data rows,
+ *   notes the first and last data rows (for the time axis), whether any cell
+ *   is quoted, and refuses what is not CSV text (NUL bytes, bytes that are not
+ *   UTF-8, unbalanced quotes).
+ * - Pass 2 ({@linkcode CsvRowParser}) splits rows into cells and turns each
+ *   cell into a number straight from its bytes, with no string per cell.
+ *
+ * A whole file in memory and a file read from disk go through the same two
+ * classes (push the bytes, then end), so the rules exist once: delimiter and
+ * decimal mark (`auto` takes `;` or a tab as delimiter when the header holds
+ * one; with `;` or tab the decimal mark comes from the first number that has
+ * one), a UTF-8 byte-order mark, CRLF, surrounding whitespace, quoted cells
+ * and blank lines. A fault is a {@linkcode QuiverError} naming the line and
+ * column; faults are reported in file order.
+ *
+ * Numbers: a cell must match `[+-]digits[.digits][e[+-]digits]` (with the
+ * file's decimal mark). Short decimals, a mantissa of at most 15 digits and a
+ * power of ten within ±22, are converted exactly by one correctly rounded
+ * multiplication or division (Clinger 1990, "How to read floating point
+ * numbers accurately"); every other cell goes to `Number()`. Either way the
+ * value is the one `Number(text)` gives.
+ *
+ * @module
+ */
+import { QuiverError } from "../errors.ts";
+import { type DecimalMark, describeBadNumber } from "./numbers.ts";
+
+/** The delimiters the reader accepts. */
+export type CsvDelimiter = "," | ";" | "\t";
+
+/** Options of the CSV reader. */
+export interface CsvTableOptions {
+  /** File name used in error messages. Default: none. */
+  file?: string;
+  /** Field delimiter. Default `"auto"`. */
+  delimiter?: CsvDelimiter | "auto";
+  /** Decimal mark. Default `"auto"` (see the module notes). */
+  decimal?: DecimalMark | "auto";
+}
+
+/** The name and unit parsed from a header cell. */
+export interface HeaderCell {
+  /** Channel name. */
+  readonly name: string;
+  /** Unit from the brackets, "" when there are none. */
+  readonly unit: string;
+}
+
+/**
+ * Splits `name [unit]` into its parts.
+ *
+ * @example
+ * ```ts
+ * import { parseHeaderCell } from "./csv_engine.ts";
+ * const h = parseHeaderCell(" seat_rail_z [m/s^2] ");
+ * if (h.name !== "seat_rail_z" || h.unit !== "m/s^2") throw new Error();
+ * ```
+ */
+export function parseHeaderCell(cell: string): HeaderCell {
+  const text = unquote(cell);
+  const match = /^(.*?)\s*\[([^\]]*)\]$/.exec(text);
+  if (match === null) return { name: text, unit: "" };
+  return { name: match[1].trim(), unit: match[2].trim() };
+}
+
+/** Trims a cell and removes quotes around it (also after whitespace, as exports write). */
+function unquote(cell: string): string {
+  const text = cell.trim();
+  if (text.length >= 2 && text.startsWith('"') && text.endsWith('"')) {
+    return text.slice(1, -1).replaceAll('""', '"').trim();
+  }
+  return text;
+}
+
+const LF = 10, CR = 13, SPACE = 32, TAB = 9, QUOTE = 34, COMMA = 44, SEMICOLON = 59, DOT = 46;
+const PLUS = 43, MINUS = 45, ZERO = 48, NINE = 57, LOWER_E = 101, UPPER_E = 69;
+const POWERS_OF_TEN = Array.from({ length: 23 }, (_, k) => 10 ** k); // exact up to 1e22
+
+const isSpace = (b: number) => b === SPACE || b === TAB || b === CR;
+
+/**
+ * The number in `bytes[start, end)` written with decimal mark `mark` (the
+ * byte `.` or `,`), or NaN when the cell is not such a number. The value is
+ * the one `Number()` gives for the same text (with `,` read as `.`).
+ *
+ * @example
+ * ```ts
+ * import { parseNumberBytes } from "./csv_engine.ts";
+ * const b = new TextEncoder().encode("-1.25e-3|0,5|1e999|abc");
+ * if (parseNumberBytes(b, 0, 8, 46) !== -0.00125) throw new Error();
+ * if (parseNumberBytes(b, 9, 12, 44) !== 0.5) throw new Error();
+ * if (parseNumberBytes(b, 13, 18, 46) !== Infinity) throw new Error();
+ * if (!Number.isNaN(parseNumberBytes(b, 19, 22, 46))) throw new Error();
+ * ```
+ */
+export function parseNumberBytes(
+  bytes: Uint8Array,
+  start: number,
+  end: number,
+  mark: number,
+): number {
+  let k = start;
+  let negative = false;
+  if (k < end && (bytes[k] === PLUS || bytes[k] === MINUS)) negative = bytes[k++] === MINUS;
+  let mantissa = 0;
+  let significant = 0;
+  let scale = 0; // the mantissa is mantissa·10^scale before the exponent
+  let long = false; // more than 15 significant digits: not exact in the fast path
+  let digits = 0;
+  while (k < end && bytes[k] >= ZERO && bytes[k] <= NINE) {
+    const d = bytes[k++] - ZERO;
+    digits++;
+    if (mantissa === 0 && d === 0) continue;
+    if (significant < 15) {
+      mantissa = mantissa * 10 + d;
+      significant++;
+    } else long = true;
+  }
+  if (k < end && bytes[k] === mark) {
+    k++;
+    while (k < end && bytes[k] >= ZERO && bytes[k] <= NINE) {
+      const d = bytes[k++] - ZERO;
+      digits++;
+      if (mantissa === 0 && d === 0) {
+        scale--;
+        continue;
+      }
+      if (significant < 15) {
+        mantissa = mantissa * 10 + d;
+        significant++;
+        scale--;
+      } else long = true;
+    }
+  }
+  if (digits === 0) return NaN;
+  let exponent = 0;
+  if (k < end && (bytes[k] === LOWER_E || bytes[k] === UPPER_E)) {
+    k++;
+    let expNegative = false;
+    if (k < end && (bytes[k] === PLUS || bytes[k] === MINUS)) expNegative = bytes[k++] === MINUS;
+    const first = k;
+    while (k < end && bytes[k] >= ZERO && bytes[k] <= NINE) {
+      if (exponent < 100000) exponent = exponent * 10 + (bytes[k] - ZERO);
+      k++;
+    }
+    if (k === first) return NaN;
+    if (expNegative) exponent = -exponent;
+  }
+  if (k !== end) return NaN;
+  if (!long) {
+    if (mantissa === 0) return negative ? -0 : 0;
+    const power = scale + exponent;
+    const m = negative ? -mantissa : mantissa;
+    // One correctly rounded operation on two exact doubles (Clinger's fast path).
+    if (power >= 0 && power <= 22) return m * POWERS_OF_TEN[power];
+    if (power < 0 && power >= -22) return m / POWERS_OF_TEN[-power];
+  }
+  // Long or extreme: the text itself, through Number().
+  let out = "";
+  for (let i = start; i < end; i++) out += String.fromCharCode(bytes[i] === COMMA ? DOT : bytes[i]);
+  return Number(out);
+}
+
+/** Decimals written in `bytes[start, end)`, Infinity with an exponent. */
+function decimalsIn(bytes: Uint8Array, start: number, end: number, mark: number): number {
+  let at = -1;
+  for (let k = start; k < end; k++) {
+    const b = bytes[k];
+    if (b === LOWER_E || b === UPPER_E) return Infinity;
+    if (b === mark) at = k;
+  }
+  return at < 0 ? 0 : end - at - 1;
+}
+
+const decoder = new TextDecoder();
+const text = (bytes: Uint8Array, start: number, end: number) =>
+  decoder.decode(bytes.subarray(start, end));
+
+/** What pass 1 learns of a file. */
+export interface CsvScan {
+  /** The header row's text (without line end). */
+  readonly headerText: string;
+  /** Its 1-based line. */
+  readonly headerLine: number;
+  /** Data rows (non-blank rows after the header). */
+  readonly rows: number;
+  /** The first and last data rows' text and lines; undefined without data rows. */
+  readonly first?: { text: string; line: number };
+  readonly last?: { text: string; line: number };
+  /** Whether any quote character occurs after the header. */
+  readonly quotes: boolean;
+  /** The delimiter in use. */
+  readonly delimiter: CsvDelimiter;
+}
+
+/**
+ * Pass 1 over a CSV file's bytes, pushed chunk by chunk in order.
+ */
+export class CsvScanner {
+  readonly #file?: string;
+  readonly #delimiterOption: CsvDelimiter | "auto";
+  #delimiter = -1; // byte, once the header is known
+  #line = 1; // line of the next record's first byte
+  #started = false;
+  #pending: Uint8Array = new Uint8Array(0); // the incomplete record carried to the next chunk
+  #quotes = false;
+  #header?: { text: string; line: number };
+  #first?: { text: string; line: number };
+  #last?: { text: string; line: number };
+  #rows = 0;
+  #anyContent = false;
+  #utf8?: TextDecoder;
+
+  constructor(options: CsvTableOptions = {}) {
+    this.#file = options.file;
+    this.#delimiterOption = options.delimiter ?? "auto";
+  }
+
+  #fail(detail: string, line?: number): never {
+    throw new QuiverError(detail, { file: this.#file, line });
+  }
+
+  /** Adds the next bytes. */
+  push(chunk: Uint8Array): void {
+    if (this.#utf8 !== undefined || hasHighByte(chunk)) {
+      this.#utf8 ??= new TextDecoder("utf-8", { fatal: true });
+      try {
+        this.#utf8.decode(chunk, { stream: true });
+      } catch {
+        throw notUtf8(this.#file);
+      }
+    }
+    if (chunk.indexOf(0) >= 0) {
+      this.#fail("the file holds NUL bytes; it is binary, not a CSV table");
+    }
+    let bytes = chunk;
+    if (!this.#started && bytes.length > 0) {
+      this.#started = true;
+      if (bytes.length >= 3 && bytes[0] === 0xef && bytes[1] === 0xbb && bytes[2] === 0xbf) {
+        bytes = bytes.subarray(3);
+      }
+    }
+    const buffer = concat(this.#pending, bytes);
+    const quoted = buffer.indexOf(QUOTE) >= 0;
+    let pos = 0;
+    let last: { start: number; end: number; line: number } | undefined;
+    for (;;) {
+      const end = quoted ? recordEnd(buffer, pos) : buffer.indexOf(LF, pos);
+      if (end < 0) break;
+      const line = this.#line;
+      const kept = this.#record(buffer, pos, end, quoted);
+      if (kept) last = { start: pos, end, line };
+      pos = end + 1;
+    }
+    if (last !== undefined && this.#header !== undefined && this.#rows > 0) {
+      this.#last = { text: rowText(buffer, last.start, last.end), line: last.line };
+    }
+    if (buffer.length - pos > 64 * 1024 * 1024) {
+      this.#fail("a row longer than 64 MiB: unbalanced quotes?", this.#line);
+    }
+    this.#pending = buffer.slice(pos);
+  }
+
+  /** One record bytes[start, end); returns whether it is a data row. */
+  #record(bytes: Uint8Array, start: number, end: number, quoted: boolean): boolean {
+    const line = this.#line;
+    if (quoted) { for (let k = start; k < end; k++) if (bytes[k] === LF) this.#line++; }
+    this.#line++;
+    const delimiter = this.#delimiter;
+    let blank = true;
+    for (let k = start; k < end; k++) {
+      const b = bytes[k];
+      if (isSpace(b) || b === LF) continue;
+      this.#anyContent = true;
+      if (b === delimiter || (delimiter < 0 && (b === COMMA || b === SEMICOLON))) continue;
+      blank = false;
+      break;
+    }
+    if (blank) return false;
+    if (this.#header === undefined) {
+      const text = rowText(bytes, start, end);
+      this.#header = { text, line };
+      const detected = this.#delimiterOption === "auto"
+        ? detectDelimiter(text)
+        : this.#delimiterOption;
+      this.#delimiter = detected.charCodeAt(0);
+      return false;
+    }
+    if (quoted && !this.#quotes && bytes.subarray(start, end).indexOf(QUOTE) >= 0) {
+      this.#quotes = true;
+    }
+    this.#rows++;
+    if (this.#first === undefined) this.#first = { text: rowText(bytes, start, end), line };
+    return true;
+  }
+
+  /** Ends pass 1. @throws {QuiverError} for an empty file, no header or no data rows. */
+  end(): CsvScan {
+    if (this.#utf8 !== undefined) {
+      try {
+        this.#utf8.decode();
+      } catch {
+        throw notUtf8(this.#file);
+      }
+    }
+    const rest = this.#pending;
+    if (rest.length > 0) {
+      let inQuote = false;
+      for (let k = 0; k < rest.length; k++) if (rest[k] === QUOTE) inQuote = !inQuote;
+      if (inQuote) {
+        this.#fail("unbalanced quotes: a quoted field starting here never ends", this.#line);
+      }
+      const line = this.#line;
+      if (this.#record(rest, 0, rest.length, rest.indexOf(QUOTE) >= 0) && this.#rows > 0) {
+        this.#last = { text: rowText(rest, 0, rest.length), line };
+      }
+      this.#pending = new Uint8Array(0);
+    }
+    if (this.#header === undefined) {
+      this.#fail(
+        this.#anyContent
+          ? "no header row: the file holds only blank cells"
+          : "the file is empty; expected a header row and data rows",
+      );
+    }
+    const header = this.#header as { text: string; line: number };
+    if (this.#rows === 0) this.#fail("the file has a header but no data rows", header.line);
+    return {
+      headerText: header.text,
+      headerLine: header.line,
+      rows: this.#rows,
+      ...(this.#first !== undefined ? { first: this.#first } : {}),
+      ...(this.#last !== undefined ? { last: this.#last } : {}),
+      quotes: this.#quotes,
+      delimiter: String.fromCharCode(this.#delimiter) as CsvDelimiter,
+    };
+  }
+}
+
+/** A row's text without its line end. */
+function rowText(bytes: Uint8Array, start: number, end: number): string {
+  return decoder.decode(
+    bytes.subarray(start, end > start && bytes[end - 1] === CR ? end - 1 : end),
+  );
+}
+
+/** `a` then `b`, copying only when `a` holds anything. */
+function concat(a: Uint8Array, b: Uint8Array): Uint8Array {
+  if (a.length === 0) return b;
+  const out = new Uint8Array(a.length + b.length);
+  out.set(a);
+  out.set(b, a.length);
+  return out;
+}
+
+function hasHighByte(bytes: Uint8Array): boolean {
+  for (let k = 0; k < bytes.length; k++) if (bytes[k] >= 0x80) return true;
+  return false;
+}
+
+function detectDelimiter(headerLine: string): CsvDelimiter {
+  if (headerLine.includes(";")) return ";";
+  if (headerLine.includes("\t")) return "\t";
+  return ",";
+}
+
+/** The error for bytes that are not UTF-8 text. */
+export function notUtf8(file?: string): QuiverError {
+  return new QuiverError(
+    "neither a WAV file nor UTF-8 text; quiver reads CSV and WAV recordings (save a CSV as UTF-8: a header in Latin-1 or Windows-1252, e.g. with µ or °, is not UTF-8)",
+    { file },
+  );
+}
+
+/**
+ * Splits a header row into cells (respecting quotes) and checks the names.
+ *
+ * @throws {QuiverError} for an empty or repeated name.
+ */
+export function parseHeaderRow(
+  headerText: string,
+  delimiter: CsvDelimiter,
+  line: number,
+  file?: string,
+): HeaderCell[] {
+  const header = splitQuoted(headerText, delimiter).map(parseHeaderCell);
+  const seen = new Map<string, number>();
+  header.forEach((cell, i) => {
+    if (cell.name === "") {
+      throw new QuiverError("empty column name in the header", { file, line, column: i + 1 });
+    }
+    const previous = seen.get(cell.name);
+    if (previous !== undefined) {
+      throw new QuiverError(
+        `duplicate column name "${cell.name}" (also column ${previous + 1})`,
+        { file, line, column: i + 1 },
+      );
+    }
+    seen.set(cell.name, i);
+  });
+  return header;
+}
+
+/** Splits one row (which may hold quoted cells) into raw cells, RFC 4180 style. */
+function splitQuoted(row: string, delimiter: string): string[] {
+  const cells: string[] = [];
+  let cell = "";
+  let inQuote = false;
+  for (let i = 0; i < row.length; i++) {
+    const c = row[i];
+    if (inQuote) {
+      if (c === '"') {
+        if (row[i + 1] === '"') {
+          cell += '"';
+          i++;
+        } else inQuote = false;
+      } else cell += c;
+    } else if (c === '"' && cell.trim() === "") {
+      cell = "";
+      inQuote = true;
+    } else if (c === delimiter) {
+      cells.push(cell);
+      cell = "";
+    } else cell += c;
+  }
+  cells.push(cell);
+  return cells;
+}
+
+/** Receives parsed rows: the values of one data row, its line and (for the time column) its decimals. */
+export interface RowSink {
+  /** Called once per data row, in order; `values` is reused between calls. */
+  row(values: Float64Array, line: number, decimals: Float64Array): void;
+}
+
+/**
+ * Pass 2: splits the data rows into cells and converts them to numbers,
+ * pushed chunk by chunk in order.
+ */
+export class CsvRowParser {
+  readonly #file?: string;
+  readonly #width: number;
+  readonly #delimiter: number;
+  readonly #quotes: boolean;
+  readonly #headerLine: number;
+  readonly #sink: RowSink;
+  readonly #values: Float64Array;
+  readonly #decimals: Float64Array;
+  readonly #wantDecimals: Int8Array;
+  #mark: number; // decimal mark byte, or −1 until known
+  #line = 1;
+  #carry: Uint8Array = new Uint8Array(0);
+  #bom = true;
+
+  constructor(
+    scan: CsvScan,
+    width: number,
+    sink: RowSink,
+    options: CsvTableOptions & { decimalsOf?: readonly number[] } = {},
+  ) {
+    this.#file = options.file;
+    this.#width = width;
+    this.#delimiter = scan.delimiter.charCodeAt(0);
+    this.#quotes = scan.quotes;
+    this.#headerLine = scan.headerLine;
+    this.#sink = sink;
+    this.#values = new Float64Array(width);
+    this.#decimals = new Float64Array(width);
+    this.#wantDecimals = new Int8Array(width);
+    for (const c of options.decimalsOf ?? []) this.#wantDecimals[c] = 1;
+    const decimal = options.decimal ?? "auto";
+    this.#mark = decimal === "auto" ? (scan.delimiter === "," ? DOT : -1) : decimal.charCodeAt(0);
+  }
+
+  /** The decimal mark in use, once known. */
+  get mark(): DecimalMark | undefined {
+    return this.#mark < 0 ? undefined : String.fromCharCode(this.#mark) as DecimalMark;
+  }
+
+  /** Adds the next bytes. */
+  push(chunk: Uint8Array): void {
+    let bytes = chunk;
+    if (this.#bom) {
+      if (bytes.length >= 3 && bytes[0] === 0xef && bytes[1] === 0xbb && bytes[2] === 0xbf) {
+        bytes = bytes.subarray(3);
+      }
+      if (chunk.length > 0) this.#bom = false;
+    }
+    if (this.#carry.length > 0) {
+      const joined = new Uint8Array(this.#carry.length + bytes.length);
+      joined.set(this.#carry);
+      joined.set(bytes, this.#carry.length);
+      bytes = joined;
+    }
+    let start = 0;
+    for (;;) {
+      const end = this.#quotes ? recordEnd(bytes, start) : bytes.indexOf(LF, start);
+      if (end < 0) break;
+      this.#record(bytes, start, end);
+      start = end + 1;
+    }
+    this.#carry = bytes.slice(start);
+  }
+
+  /** Ends pass 2 with the last row, if it has no line end. */
+  end(): void {
+    if (this.#carry.length > 0) {
+      const rest = this.#carry;
+      this.#carry = new Uint8Array(0);
+      this.#record(rest, 0, rest.length);
+    }
+  }
+
+  #fail(detail: string, line: number, column?: number): never {
+    throw new QuiverError(detail, { file: this.#file, line, column });
+  }
+
+  /** One record: bytes[start, end), end at its LF (or the end of the data). */
+  #record(bytes: Uint8Array, start: number, end: number): void {
+    const line = this.#line;
+    let lines = 1;
+    if (this.#quotes) { for (let k = start; k < end; k++) if (bytes[k] === LF) lines++; }
+    this.#line += lines;
+    if (line <= this.#headerLine) return; // the header and what stands before it
+    let stop = end;
+    if (stop > start && bytes[stop - 1] === CR) stop--;
+    if (this.#quotes && bytes.subarray(start, stop).indexOf(QUOTE) >= 0) {
+      this.#quotedRecord(text(bytes, start, stop), line);
+      return;
+    }
+    // Fields, split at the delimiter; a row of blank cells is a blank line.
+    const delimiter = this.#delimiter;
+    let fields = 1;
+    let blank = true;
+    for (let k = start; k < stop; k++) {
+      const b = bytes[k];
+      if (b === delimiter) fields++;
+      else if (!isSpace(b)) blank = false;
+    }
+    if (blank) return;
+    if (fields !== this.#width) {
+      this.#fail(`row has ${fields} fields, the header has ${this.#width}`, line);
+    }
+    let column = 0;
+    let cellStart = start;
+    for (let k = start; k <= stop; k++) {
+      if (k < stop && bytes[k] !== delimiter) continue;
+      let a = cellStart, b = k;
+      while (a < b && isSpace(bytes[a])) a++;
+      while (b > a && isSpace(bytes[b - 1])) b--;
+      this.#cell(bytes, a, b, column, line);
+      column++;
+      cellStart = k + 1;
+    }
+    this.#sink.row(this.#values, line, this.#decimals);
+  }
+
+  #cell(bytes: Uint8Array, a: number, b: number, column: number, line: number): void {
+    if (this.#mark < 0) {
+      for (let k = a; k < b; k++) {
+        if (bytes[k] === COMMA || bytes[k] === DOT) {
+          this.#mark = bytes[k];
+          break;
+        }
+      }
+    }
+    const mark = this.#mark < 0 ? DOT : this.#mark;
+    const v = parseNumberBytes(bytes, a, b, mark);
+    if (v - v !== 0) {
+      this.#fail(
+        describeBadNumber(text(bytes, a, b), String.fromCharCode(mark) as DecimalMark),
+        line,
+        column + 1,
+      );
+    }
+    this.#values[column] = v;
+    if (this.#wantDecimals[column] === 1) this.#decimals[column] = decimalsIn(bytes, a, b, mark);
+  }
+
+  #quotedRecord(row: string, line: number): void {
+    const cells = splitQuoted(row, String.fromCharCode(this.#delimiter)).map((c) => c.trim());
+    if (cells.every((c) => c === "")) return;
+    if (cells.length !== this.#width) {
+      this.#fail(`row has ${cells.length} fields, the header has ${this.#width}`, line);
+    }
+    const encoder = new TextEncoder();
+    cells.forEach((cell, column) => {
+      const bytes = encoder.encode(cell);
+      this.#cell(bytes, 0, bytes.length, column, line);
+    });
+    this.#sink.row(this.#values, line, this.#decimals);
+  }
+}
+
+/** The LF that ends the record starting at `start`, outside quotes; −1 when not in `bytes`. */
+function recordEnd(bytes: Uint8Array, start: number): number {
+  let inQuote = false;
+  for (let k = start; k < bytes.length; k++) {
+    const b = bytes[k];
+    if (b === QUOTE) inQuote = !inQuote;
+    else if (b === LF && !inQuote) return k;
+  }
+  return -1;
+}
+
+/**
+ * The text of cell `column` of a data row (quotes and surrounding whitespace
+ * removed), for the rows pass 1 keeps.
+ */
+export function cellOfRow(row: string, delimiter: CsvDelimiter, column: number): string {
+  return unquote(splitQuoted(row, delimiter)[column] ?? "");
+}
+
+/** The decimal mark the first cell of `row` holding `.` or `,` shows, if any. */
+export function markOfRow(row: string, delimiter: CsvDelimiter): DecimalMark | undefined {
+  for (const cell of splitQuoted(row, delimiter)) {
+    if (cell.includes(",")) return ",";
+    if (cell.includes(".")) return ".";
+  }
+  return undefined;
+}
+
+/**
+ * One cell's text as a number with the reader's rules, and its decimals.
+ *
+ * @throws {QuiverError} naming `line` and `column` (1-based) when it is not a finite number.
+ */
+export function parseCellText(
+  cell: string,
+  mark: DecimalMark,
+  line: number,
+  column: number,
+  file?: string,
+): { value: number; decimals: number } {
+  const bytes = new TextEncoder().encode(cell);
+  const m = mark.charCodeAt(0);
+  const value = parseNumberBytes(bytes, 0, bytes.length, m);
+  if (value - value !== 0) {
+    throw new QuiverError(describeBadNumber(cell, mark), { file, line, column });
+  }
+  return { value, decimals: decimalsIn(bytes, 0, bytes.length, m) };
+}

@@ -1,0 +1,238 @@
+/**
+ * A CSV file as a recording: the time column, the sample rate and the
+ * channels, on top of the one CSV reader (csv_engine.ts). The same code
+ * serves a file read in chunks and text held in memory.
+ *
+ * Time: a column named `time_s` or `time` (any case, unit `s` or none) is
+ * the time axis. The rate comes from its first and last values (the nominal
+ * rate of a rounded column, time_axis.ts); every step is checked against the
+ * median of the first 1001 steps (1 % by default), so a gap, jump or jitter
+ * is named by its line. Without a time column the rate must be given.
+ *
+ * @module
+ */
+import { QuiverError } from "../errors.ts";
+import { formatNumber } from "../format_number.ts";
+import {
+  cellOfRow,
+  type CsvScan,
+  type CsvTableOptions,
+  type HeaderCell,
+  markOfRow,
+  parseCellText,
+  parseHeaderRow,
+} from "./csv_engine.ts";
+import { nominalRate } from "./time_axis.ts";
+
+/** Names of the time column (any case). */
+export const TIME_NAMES: ReadonlySet<string> = new Set(["time_s", "time"]);
+
+/** Steps whose median is the reference step of the time column check. */
+export const REFERENCE_STEPS = 1001;
+
+/** Options of reading a CSV recording. */
+export interface CsvReadOptions extends CsvTableOptions {
+  /**
+   * Sample rate in Hz. Required when there is no time column; when there is
+   * one, it must agree with the column within 0.1 % and is then used as the
+   * exact rate. Default: derived from the time column.
+   */
+  rate?: number;
+  /**
+   * Largest allowed deviation of one time step from the median step, as a
+   * fraction of that step. Default 0.01 (1 %).
+   */
+  timeTolerance?: number;
+}
+
+/** What a CSV recording's header and end rows say. */
+export interface CsvRecordingLayout {
+  readonly header: readonly HeaderCell[];
+  /** Column of the time axis, −1 when none. */
+  readonly timeColumn: number;
+  /** File columns of the channels, in order. */
+  readonly channelColumns: readonly number[];
+  readonly rate: number;
+  readonly startTime: number;
+  /** Data rows = samples per channel. */
+  readonly length: number;
+}
+
+/**
+ * The layout of a CSV recording from pass 1.
+ *
+ * @throws {QuiverError} for a bad header, a time column that cannot give a
+ * rate, or a rate that is missing or contradicts the column.
+ */
+export function csvRecordingLayout(
+  scan: CsvScan,
+  options: CsvReadOptions = {},
+): CsvRecordingLayout {
+  const file = options.file;
+  const header = parseHeaderRow(scan.headerText, scan.delimiter, scan.headerLine, file);
+  const fail = (detail: string, line?: number, column?: number): never => {
+    throw new QuiverError(detail, { file, line, column });
+  };
+  let timeColumn = -1;
+  header.forEach((cell, i) => {
+    if (!TIME_NAMES.has(cell.name.toLowerCase())) return;
+    if (timeColumn >= 0) {
+      fail(
+        `two time columns ("${header[timeColumn].name}" in column ${
+          timeColumn + 1
+        } and "${cell.name}")`,
+        scan.headerLine,
+        i + 1,
+      );
+    }
+    if (cell.unit !== "" && cell.unit !== "s") {
+      fail(
+        `time column "${cell.name}" is in [${cell.unit}]; quiver expects seconds [s]`,
+        scan.headerLine,
+        i + 1,
+      );
+    }
+    timeColumn = i;
+  });
+  const channelColumns = header.map((_, i) => i).filter((i) => i !== timeColumn);
+  if (channelColumns.length === 0) fail("the header names no channel columns", scan.headerLine);
+  let rate: number;
+  let startTime = 0;
+  if (timeColumn >= 0) {
+    const first = scan.first as { text: string; line: number };
+    const last = scan.last as { text: string; line: number };
+    if (scan.rows < 2) {
+      fail("one data row is not enough to derive a sample rate from the time column", first.line);
+    }
+    const given = options.decimal === undefined || options.decimal === "auto"
+      ? undefined
+      : options.decimal;
+    const markOf = (row: string) =>
+      given ?? (scan.delimiter === "," ? "." : markOfRow(first.text, scan.delimiter) ??
+        markOfRow(row, scan.delimiter) ?? ".");
+    const time = (row: { text: string; line: number }) =>
+      parseCellText(
+        cellOfRow(row.text, scan.delimiter, timeColumn),
+        markOf(row.text),
+        row.line,
+        timeColumn + 1,
+        file,
+      );
+    const t0 = time(first);
+    const t1 = time(last);
+    const total = t1.value - t0.value;
+    if (!(total > 0)) {
+      fail(
+        `time does not increase from the first row (${t0.value}) to the last (${t1.value})`,
+        last.line,
+        timeColumn + 1,
+      );
+    }
+    const derived = nominalRate(scan.rows, total, Math.max(t0.decimals, t1.decimals));
+    startTime = t0.value;
+    if (options.rate !== undefined) {
+      if (Math.abs(derived - options.rate) > 1e-3 * options.rate) {
+        throw new QuiverError(
+          `the time column gives a rate of ${
+            formatNumber(derived, 8)
+          } Hz, but ${options.rate} Hz was given`,
+          { file },
+          "usage",
+        );
+      }
+      rate = options.rate;
+    } else {
+      rate = derived;
+    }
+  } else {
+    if (options.rate === undefined) {
+      throw new QuiverError(
+        `no time column ("time_s" or "time") in the header; give the sample rate`,
+        { file, line: scan.headerLine },
+        "usage",
+      );
+    }
+    rate = options.rate;
+  }
+  if (!(rate > 0) || !Number.isFinite(rate)) {
+    throw new RangeError(`sample rate must be a positive number, got ${rate}`);
+  }
+  return { header, timeColumn, channelColumns, rate, startTime, length: scan.rows };
+}
+
+/**
+ * Checks the time column row by row: increasing, and every step within the
+ * tolerance of the median of the first {@linkcode REFERENCE_STEPS} steps.
+ */
+export class TimeStepCheck {
+  readonly #tolerance: number;
+  readonly #column: number;
+  readonly #file?: string;
+  #previous = NaN;
+  #reference = NaN;
+  #decimals = 0;
+  readonly #head: { dt: number; line: number; from: number; to: number }[] = [];
+
+  constructor(column: number, options: CsvReadOptions = {}) {
+    this.#column = column;
+    this.#tolerance = options.timeTolerance ?? 0.01;
+    this.#file = options.file;
+  }
+
+  /** The next row's time, line and decimals written. @throws {QuiverError} at a bad step. */
+  push(time: number, line: number, decimals: number): void {
+    if (decimals > this.#decimals) this.#decimals = decimals;
+    const previous = this.#previous;
+    this.#previous = time;
+    if (Number.isNaN(previous)) return;
+    const dt = time - previous;
+    if (dt <= 0) {
+      this.#fail(`time goes backwards or stands still (${previous} s, then ${time} s)`, line);
+    }
+    if (Number.isNaN(this.#reference)) {
+      this.#head.push({ dt, line, from: previous, to: time });
+      if (this.#head.length === REFERENCE_STEPS) this.#settle();
+      return;
+    }
+    this.#judge(dt, line);
+  }
+
+  /** Ends the check (judges the steps held back when there were few). */
+  end(): void {
+    if (Number.isNaN(this.#reference) && this.#head.length > 0) this.#settle();
+  }
+
+  #settle(): void {
+    const sorted = this.#head.map((h) => h.dt).sort((a, b) => a - b);
+    this.#reference = sorted[Math.floor((sorted.length - 1) / 2)];
+    for (const h of this.#head) this.#judge(h.dt, h.line);
+    this.#head.length = 0;
+  }
+
+  #judge(dt: number, line: number): void {
+    const step = this.#reference;
+    const tolerance = this.#tolerance;
+    const deviation = Math.abs(dt - step);
+    if (deviation <= tolerance * step) return;
+    // Rounding the printed times to d places moves a step by up to one quantum; a
+    // deviation that rounding alone explains means too few digits.
+    const decimals = this.#decimals;
+    const quantum = Number.isFinite(decimals) ? 10 ** -decimals : 0;
+    this.#fail(
+      deviation <= quantum * (1 + 1e-6)
+        ? `the time column is written with ${decimals} decimals, too few for a sample interval of ${step} s ` +
+          `(rate ${1 / step} Hz): steps vary by more than ${tolerance * 100} %; write at least ` +
+          `${
+            Math.ceil(-Math.log10(tolerance * step))
+          } decimals, or drop the column and give the rate`
+        : `time step of ${dt} s differs from the mean step ${step} s by more than ${
+          tolerance * 100
+        } %: a gap, jump or jitter in the time column`,
+      line,
+    );
+  }
+
+  #fail(detail: string, line: number): never {
+    throw new QuiverError(detail, { file: this.#file, line, column: this.#column + 1 });
+  }
+}
