@@ -103,54 +103,74 @@ export function parseNumberBytes(
   end: number,
   mark: number,
 ): number {
+  const value = scanNumber(bytes, start, end, mark);
+  return scannedEnd === end ? value : NaN;
+}
+
+/** Where the last {@linkcode scanNumber} stopped (a module variable: no object per cell). */
+let scannedEnd = 0;
+
+/**
+ * Reads the longest prefix of bytes[start, limit) that the number grammar
+ * accepts and returns its value (NaN when there is none); the position after
+ * it is left in `scannedEnd`.
+ */
+function scanNumber(bytes: Uint8Array, start: number, limit: number, mark: number): number {
   let k = start;
   let negative = false;
-  if (k < end && (bytes[k] === PLUS || bytes[k] === MINUS)) negative = bytes[k++] === MINUS;
+  if (k < limit && (bytes[k] === PLUS || bytes[k] === MINUS)) negative = bytes[k++] === MINUS;
   let mantissa = 0;
   let significant = 0;
-  let scale = 0; // the mantissa is mantissa·10^scale before the exponent
+  let scale = 0; // the value is mantissa·10^scale before the exponent
   let long = false; // more than 15 significant digits: not exact in the fast path
   let digits = 0;
-  while (k < end && bytes[k] >= ZERO && bytes[k] <= NINE) {
-    const d = bytes[k++] - ZERO;
+  let b = 0;
+  while (k < limit && (b = bytes[k] - ZERO) >= 0 && b <= 9) {
+    k++;
     digits++;
-    if (mantissa === 0 && d === 0) continue;
     if (significant < 15) {
-      mantissa = mantissa * 10 + d;
-      significant++;
+      if (mantissa !== 0 || b !== 0) {
+        mantissa = mantissa * 10 + b;
+        significant++;
+      }
     } else long = true;
   }
-  if (k < end && bytes[k] === mark) {
+  if (k < limit && bytes[k] === mark) {
     k++;
-    while (k < end && bytes[k] >= ZERO && bytes[k] <= NINE) {
-      const d = bytes[k++] - ZERO;
+    while (k < limit && (b = bytes[k] - ZERO) >= 0 && b <= 9) {
+      k++;
       digits++;
-      if (mantissa === 0 && d === 0) {
-        scale--;
-        continue;
-      }
       if (significant < 15) {
-        mantissa = mantissa * 10 + d;
-        significant++;
+        if (mantissa !== 0 || b !== 0) {
+          mantissa = mantissa * 10 + b;
+          significant++;
+        }
         scale--;
       } else long = true;
     }
   }
-  if (digits === 0) return NaN;
+  if (digits === 0) {
+    scannedEnd = start;
+    return NaN;
+  }
   let exponent = 0;
-  if (k < end && (bytes[k] === LOWER_E || bytes[k] === UPPER_E)) {
-    k++;
+  if (k < limit && (bytes[k] === LOWER_E || bytes[k] === UPPER_E)) {
+    let e = k + 1;
     let expNegative = false;
-    if (k < end && (bytes[k] === PLUS || bytes[k] === MINUS)) expNegative = bytes[k++] === MINUS;
-    const first = k;
-    while (k < end && bytes[k] >= ZERO && bytes[k] <= NINE) {
-      if (exponent < 100000) exponent = exponent * 10 + (bytes[k] - ZERO);
-      k++;
+    if (e < limit && (bytes[e] === PLUS || bytes[e] === MINUS)) expNegative = bytes[e++] === MINUS;
+    const first = e;
+    while (e < limit && (b = bytes[e] - ZERO) >= 0 && b <= 9) {
+      if (exponent < 100000) exponent = exponent * 10 + b;
+      e++;
     }
-    if (k === first) return NaN;
+    if (e === first) {
+      scannedEnd = k; // "1e" is not a number: stop before the e
+      return NaN;
+    }
+    k = e;
     if (expNegative) exponent = -exponent;
   }
-  if (k !== end) return NaN;
+  scannedEnd = k;
   if (!long) {
     if (mantissa === 0) return negative ? -0 : 0;
     const power = scale + exponent;
@@ -160,9 +180,8 @@ export function parseNumberBytes(
     if (power < 0 && power >= -22) return m / POWERS_OF_TEN[-power];
   }
   // Long or extreme: the text itself, through Number().
-  let out = "";
-  for (let i = start; i < end; i++) out += String.fromCharCode(bytes[i] === COMMA ? DOT : bytes[i]);
-  return Number(out);
+  const written = decoder.decode(bytes.subarray(start, k));
+  return Number(mark === COMMA ? written.replace(",", ".") : written);
 }
 
 /** Decimals written in `bytes[start, end)`, Infinity with an exponent. */
@@ -244,6 +263,21 @@ export class CsvScanner {
         bytes = bytes.subarray(3);
       }
     }
+    if (
+      this.#header !== undefined && this.#first !== undefined && bytes.indexOf(QUOTE) < 0 &&
+      this.#pending.indexOf(QUOTE) < 0
+    ) {
+      // The row split by the chunk boundary first (a small copy), then the rest in place.
+      const split = bytes.indexOf(LF);
+      if (split < 0) {
+        this.#pending = concat(this.#pending, bytes);
+        return;
+      }
+      const rest = this.#countRows(concat(this.#pending, bytes.subarray(0, split + 1)));
+      if (rest.length > 0) throw new Error("a row boundary was lost"); // cannot happen
+      this.#pending = this.#countRows(bytes.subarray(split + 1));
+      return;
+    }
     const buffer = concat(this.#pending, bytes);
     const quoted = buffer.indexOf(QUOTE) >= 0;
     let pos = 0;
@@ -263,6 +297,48 @@ export class CsvScanner {
       this.#fail("a row longer than 64 MiB: unbalanced quotes?", this.#line);
     }
     this.#pending = buffer.slice(pos);
+  }
+
+  /**
+   * The common case, after the first data row, with no quotes in sight: count
+   * the rows in one loop over the bytes; a row whose first byte could start a
+   * blank row is looked at whole. Returns the incomplete last row.
+   */
+  #countRows(buffer: Uint8Array): Uint8Array {
+    const delimiter = this.#delimiter;
+    const n = buffer.length;
+    let rowStart = 0;
+    let lastStart = -1, lastEnd = -1, lastLine = 0;
+    let line = this.#line;
+    let rows = 0;
+    for (let k = buffer.indexOf(LF); k >= 0; k = buffer.indexOf(LF, k + 1)) {
+      const first = buffer[rowStart];
+      let blank = rowStart === k || isSpace(first) || first === delimiter;
+      if (blank) {
+        for (let j = rowStart; j < k; j++) {
+          const b = buffer[j];
+          if (!(isSpace(b) || b === delimiter)) {
+            blank = false;
+            break;
+          }
+        }
+      }
+      if (!blank) {
+        rows++;
+        lastStart = rowStart;
+        lastEnd = k;
+        lastLine = line;
+      }
+      line++;
+      rowStart = k + 1;
+    }
+    this.#rows += rows;
+    this.#line = line;
+    if (lastStart >= 0) {
+      this.#anyContent = true;
+      this.#last = { text: rowText(buffer, lastStart, lastEnd), line: lastLine };
+    }
+    return rowStart < n ? buffer.slice(rowStart) : new Uint8Array(0);
   }
 
   /** One record bytes[start, end); returns whether it is a data row. */
@@ -358,7 +434,14 @@ function concat(a: Uint8Array, b: Uint8Array): Uint8Array {
 }
 
 function hasHighByte(bytes: Uint8Array): boolean {
-  for (let k = 0; k < bytes.length; k++) if (bytes[k] >= 0x80) return true;
+  // Four bytes at a time where the chunk is aligned (a file chunk always is).
+  let k = 0;
+  if (bytes.byteOffset % 4 === 0) {
+    const words = new Uint32Array(bytes.buffer, bytes.byteOffset, bytes.length >> 2);
+    for (let w = 0; w < words.length; w++) if ((words[w] & 0x80808080) !== 0) return true;
+    k = words.length << 2;
+  }
+  for (; k < bytes.length; k++) if (bytes[k] >= 0x80) return true;
   return false;
 }
 
@@ -490,12 +573,25 @@ export class CsvRowParser {
       }
       if (chunk.length > 0) this.#bom = false;
     }
-    if (this.#carry.length > 0) {
-      const joined = new Uint8Array(this.#carry.length + bytes.length);
-      joined.set(this.#carry);
-      joined.set(bytes, this.#carry.length);
-      bytes = joined;
+    if (this.#carry.length > 0 && !this.#quotes) {
+      // The row split by the chunk boundary first (a small copy), then the rest in place.
+      const split = bytes.indexOf(LF);
+      if (split < 0) {
+        this.#carry = concat(this.#carry, bytes);
+        return;
+      }
+      const joined = concat(this.#carry, bytes.subarray(0, split + 1));
+      this.#carry = new Uint8Array(0);
+      this.#records(joined);
+      bytes = bytes.subarray(split + 1);
+    } else if (this.#carry.length > 0) {
+      bytes = concat(this.#carry, bytes);
     }
+    this.#carry = this.#records(bytes);
+  }
+
+  /** Every complete record of `bytes`; returns a copy of the incomplete rest. */
+  #records(bytes: Uint8Array): Uint8Array {
     let start = 0;
     for (;;) {
       const end = this.#quotes ? recordEnd(bytes, start) : bytes.indexOf(LF, start);
@@ -503,7 +599,7 @@ export class CsvRowParser {
       this.#record(bytes, start, end);
       start = end + 1;
     }
-    this.#carry = bytes.slice(start);
+    return bytes.slice(start);
   }
 
   /** Ends pass 2 with the last row, if it has no line end. */
@@ -532,34 +628,64 @@ export class CsvRowParser {
       this.#quotedRecord(text(bytes, start, stop), line);
       return;
     }
-    // Fields, split at the delimiter; a row of blank cells is a blank line.
+    if (this.#mark >= 0 && this.#fastRecord(bytes, start, stop, line)) return;
+    // One pass: cells are converted as they are split; the field count is judged
+    // first when the row turns out wrong, as a ragged row explains a bad cell.
     const delimiter = this.#delimiter;
-    let fields = 1;
-    let blank = true;
-    for (let k = start; k < stop; k++) {
-      const b = bytes[k];
-      if (b === delimiter) fields++;
-      else if (!isSpace(b)) blank = false;
-    }
-    if (blank) return;
-    if (fields !== this.#width) {
-      this.#fail(`row has ${fields} fields, the header has ${this.#width}`, line);
-    }
+    const width = this.#width;
     let column = 0;
     let cellStart = start;
+    let blank = true;
+    let bad = -1; // column of the first bad cell
     for (let k = start; k <= stop; k++) {
       if (k < stop && bytes[k] !== delimiter) continue;
       let a = cellStart, b = k;
       while (a < b && isSpace(bytes[a])) a++;
       while (b > a && isSpace(bytes[b - 1])) b--;
-      this.#cell(bytes, a, b, column, line);
+      if (b > a) blank = false;
+      if (column < width && bad < 0 && !this.#cell(bytes, a, b, column)) bad = column;
       column++;
       cellStart = k + 1;
     }
+    if (blank) return;
+    if (column !== width) this.#fail(`row has ${column} fields, the header has ${width}`, line);
+    if (bad >= 0) this.#badCell(bytes, start, stop, bad, line);
     this.#sink.row(this.#values, line, this.#decimals);
   }
 
-  #cell(bytes: Uint8Array, a: number, b: number, column: number, line: number): void {
+  /**
+   * The clean row, in one pass: each cell a number, optionally padded with
+   * spaces, between delimiters, as many as the header has. Returns false for
+   * anything else (a blank row, a bad cell, a wrong field count), which the
+   * general path then handles and names.
+   */
+  #fastRecord(bytes: Uint8Array, start: number, stop: number, line: number): boolean {
+    const delimiter = this.#delimiter;
+    const mark = this.#mark;
+    const width = this.#width;
+    const values = this.#values;
+    let k = start;
+    for (let column = 0; column < width; column++) {
+      while (k < stop && (bytes[k] === SPACE || (bytes[k] === TAB && delimiter !== TAB))) k++;
+      const a = k;
+      const v = scanNumber(bytes, a, stop, mark);
+      k = scannedEnd;
+      if (k === a || v - v !== 0) return false;
+      if (this.#wantDecimals[column] === 1) this.#decimals[column] = decimalsIn(bytes, a, k, mark);
+      values[column] = v;
+      while (k < stop && (bytes[k] === SPACE || (bytes[k] === TAB && delimiter !== TAB))) k++;
+      if (column < width - 1) {
+        if (k >= stop || bytes[k] !== delimiter) return false;
+        k++;
+      }
+    }
+    if (k !== stop) return false;
+    this.#sink.row(values, line, this.#decimals);
+    return true;
+  }
+
+  /** Converts one cell into values[column]; false when it is not a finite number. */
+  #cell(bytes: Uint8Array, a: number, b: number, column: number): boolean {
     if (this.#mark < 0) {
       for (let k = a; k < b; k++) {
         if (bytes[k] === COMMA || bytes[k] === DOT) {
@@ -570,15 +696,18 @@ export class CsvRowParser {
     }
     const mark = this.#mark < 0 ? DOT : this.#mark;
     const v = parseNumberBytes(bytes, a, b, mark);
-    if (v - v !== 0) {
-      this.#fail(
-        describeBadNumber(text(bytes, a, b), String.fromCharCode(mark) as DecimalMark),
-        line,
-        column + 1,
-      );
-    }
+    if (v - v !== 0) return false;
     this.#values[column] = v;
     if (this.#wantDecimals[column] === 1) this.#decimals[column] = decimalsIn(bytes, a, b, mark);
+    return true;
+  }
+
+  /** Throws the message for the bad cell `column` of the row bytes[start, stop). */
+  #badCell(bytes: Uint8Array, start: number, stop: number, column: number, line: number): never {
+    const delimiter = String.fromCharCode(this.#delimiter);
+    const cell = text(bytes, start, stop).split(delimiter)[column].trim();
+    const mark = (this.#mark < 0 ? "." : String.fromCharCode(this.#mark)) as DecimalMark;
+    this.#fail(describeBadNumber(cell, mark), line, column + 1);
   }
 
   #quotedRecord(row: string, line: number): void {
@@ -590,7 +719,9 @@ export class CsvRowParser {
     const encoder = new TextEncoder();
     cells.forEach((cell, column) => {
       const bytes = encoder.encode(cell);
-      this.#cell(bytes, 0, bytes.length, column, line);
+      if (!this.#cell(bytes, 0, bytes.length, column)) {
+        this.#badCell(bytes, 0, bytes.length, 0, line);
+      }
     });
     this.#sink.row(this.#values, line, this.#decimals);
   }
