@@ -77,7 +77,7 @@ function unquote(cell: string): string {
 }
 
 const LF = 10, CR = 13, SPACE = 32, TAB = 9, QUOTE = 34, COMMA = 44, SEMICOLON = 59, DOT = 46;
-const PLUS = 43, MINUS = 45, ZERO = 48, NINE = 57, LOWER_E = 101, UPPER_E = 69;
+const PLUS = 43, MINUS = 45, ZERO = 48, LOWER_E = 101, UPPER_E = 69;
 const POWERS_OF_TEN = Array.from({ length: 23 }, (_, k) => 10 ** k); // exact up to 1e22
 
 const isSpace = (b: number) => b === SPACE || b === TAB || b === CR;
