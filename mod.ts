@@ -11,8 +11,8 @@
  * import { averagedSpectrum, parseCsvRecording } from "./mod.ts";
  * const rows = Array.from({ length: 1024 }, (_, i) => `${i / 1024},${Math.sin(2 * Math.PI * 64 * i / 1024)}`);
  * const recording = parseCsvRecording(`time_s,mount_acc [m/s^2]\n${rows.join("\n")}\n`);
- * const table = averagedSpectrum(recording, { block: 256, kind: "peak", window: "flattop" });
- * const peak = Math.max(...table.columns[1].values);
+ * const table = await averagedSpectrum(recording, { block: 256, kind: "peak", window: "flattop" });
+ * const peak = table.columns[1].values.reduce((a, v) => Math.max(a, v), 0);
  * if (Math.abs(peak - 1) > 0.005) throw new Error();
  * ```
  *

@@ -5,7 +5,7 @@
  */
 import { toStderr } from "./terminal.ts";
 import { z } from "zod";
-import { BAND_METHODS, bandLevelsStream } from "../lib/acoustics/band_analysis.ts";
+import { BAND_METHODS, bandLevels } from "../lib/acoustics/band_analysis.ts";
 import { BAND_FRACTIONS } from "../lib/acoustics/bands.ts";
 import { WEIGHTINGS } from "../lib/acoustics/weighting.ts";
 import {
@@ -121,7 +121,7 @@ export async function run(argv: readonly string[]): Promise<void> {
   const result = await analyseRecording(
     input,
     toReadOptions(values),
-    (stream) => bandLevelsStream(stream, analysis),
+    (stream) => bandLevels(stream, analysis),
   );
   await writeResult(result.table, input, values);
   for (const w of result.warnings) toStderr(`quiver bands: warning: ${w}\n`);

@@ -8,7 +8,7 @@ import { formatNumber } from "../lib/format_number.ts";
 import { z } from "zod";
 import { ESTIMATORS } from "../lib/frf/estimators.ts";
 import { FRF_FORMS } from "../lib/frf/forms.ts";
-import { frequencyResponseStream } from "../lib/frf/frf_analysis.ts";
+import { frequencyResponse } from "../lib/frf/frf_analysis.ts";
 import { listOption, type OptionSpec, parseCommandArgs, usageError } from "./args.ts";
 import { writeResult } from "./output.ts";
 import {
@@ -101,7 +101,7 @@ export async function run(argv: readonly string[]): Promise<void> {
   const { table, warnings } = await analyseRecording(
     input,
     toReadOptions(values),
-    (stream) => frequencyResponseStream(stream, analysis),
+    (stream) => frequencyResponse(stream, analysis),
   );
   await writeResult(table, input, values);
   for (const warning of warnings) toStderr(`quiver frf: warning: ${warning}\n`);

@@ -5,7 +5,7 @@
  */
 import { toStderr } from "./terminal.ts";
 import { z } from "zod";
-import { levelHistoryStream } from "../lib/acoustics/level_analysis.ts";
+import { levelHistory } from "../lib/acoustics/level_analysis.ts";
 import { TIME_WEIGHTINGS } from "../lib/acoustics/time_weighting.ts";
 import { WEIGHTINGS } from "../lib/acoustics/weighting.ts";
 import { listOption, numberOption, type OptionSpec, parseCommandArgs, usageError } from "./args.ts";
@@ -84,7 +84,7 @@ export async function run(argv: readonly string[]): Promise<void> {
   const result = await analyseRecording(
     input,
     toReadOptions(values),
-    (stream) => levelHistoryStream(stream, analysis),
+    (stream) => levelHistory(stream, analysis),
   );
   await writeResult(result.table, input, values);
   for (const w of result.warnings) toStderr(`quiver level: warning: ${w}\n`);

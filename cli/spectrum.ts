@@ -7,7 +7,7 @@ import { toStderr } from "./terminal.ts";
 import { formatNumber } from "../lib/format_number.ts";
 import { z } from "zod";
 import { AVERAGING_MODES } from "../lib/dsp/spectral_core.ts";
-import { averagedSpectrumStream } from "../lib/dsp/averaged_spectrum.ts";
+import { averagedSpectrum } from "../lib/dsp/averaged_spectrum.ts";
 import { SPECTRUM_KINDS } from "../lib/dsp/spectrum_kinds.ts";
 import { listOption, numberOption, type OptionSpec, parseCommandArgs, usageError } from "./args.ts";
 import { writeResult } from "./output.ts";
@@ -101,7 +101,7 @@ export async function run(argv: readonly string[]): Promise<void> {
   const table = await analyseRecording(
     input,
     toReadOptions(values),
-    (stream) => averagedSpectrumStream(stream, analysis),
+    (stream) => averagedSpectrum(stream, analysis),
   );
   await writeResult(table, input, values);
   for (const w of table.metadata.warnings as string[]) {

@@ -20,15 +20,15 @@
  * @module
  */
 import { formatNumber } from "../format_number.ts";
-import {
-  channelIndices,
-  type Recording,
-  recordingLength,
-  selectChannels,
-} from "../io/recording.ts";
+import { channelIndices, type Recording } from "../io/recording.ts";
 import type { Table, TableColumn } from "../io/table.ts";
 import { resolveBlock, SpectralAccumulator, type SpectralEstimate } from "../dsp/spectral_core.ts";
-import { collectRecording, readChecked, type RecordingStream } from "../io/recording_stream.ts";
+import {
+  asStream,
+  collectRecording,
+  readChecked,
+  type RecordingSource,
+} from "../io/recording_stream.ts";
 import { channelsWarnings } from "../io/signal_checks.ts";
 import { type Band, type BandFraction, bandsInRange } from "./bands.ts";
 import { bandPowersFromDensity } from "./band_synthesis.ts";
@@ -83,52 +83,15 @@ export const MIN_LINES_PER_BAND = 5;
  * @throws {QuiverError} for unknown channels, units without a reference, or a
  * record shorter than the block; RangeError for bad options.
  */
-export function bandLevels(recording: Recording, options: BandLevelOptions = {}): BandLevelResult {
-  const channels = selectChannels(recording, options.channels);
-  const plan = bandPlan(channels, recording.rate, options, channelsWarnings(channels));
-  const { bands, weighting, warnings, metadata } = plan;
-  let powers: Float64Array[];
-  if (plan.method === "fft") {
-    const accumulator = new SpectralAccumulator(channels.length, {
-      rate: recording.rate,
-      block: fftBlock(recording.rate, recordingLength(recording), options),
-    });
-    accumulator.push(channels.map((c) => c.data));
-    powers = fftBandPowers(accumulator.finish(), plan);
-  } else {
-    const results = channels.map((c) => filterBankPowers(c.data, recording.rate, bands));
-    powers = results.map((r) => {
-      // Weighting at each band's mid-band frequency (common practice for band spectra).
-      return r.power.map((p, i) => p * 10 ** (weightingDb(weighting, bands[i].centerHz) / 10));
-    });
-    const short = results[0].shortRecord;
-    if (short.length > 0) {
-      warnings.push(
-        `${short.length} low band(s) spent over half the record settling; their levels are unreliable`,
-      );
-    }
-    Object.assign(metadata, {
-      filter: "Butterworth order 3 band-pass, bilinear with pre-warped edges",
-      band_rates_hz: Array.from(results[0].bandRate),
-    });
-  }
-  return bandResult(channels, recording.rate, plan, powers);
-}
-
-/**
- * Band levels of a recording read in chunks, with exactly the numbers of
- * {@linkcode bandLevels}: the fft method needs memory for one chunk; the
- * filter method collects the chosen channels' whole record first.
- */
-export async function bandLevelsStream(
-  stream: RecordingStream,
+export async function bandLevels(
+  source: RecordingSource,
   options: BandLevelOptions = {},
 ): Promise<BandLevelResult> {
+  const stream = asStream(source);
   const indices = channelIndices(stream.channels, options.channels);
   if ((options.method ?? "fft") !== "fft") {
     // The filter bank reads the whole record: collected through the same chunks.
-    const recording = await collectRecording(stream, indices);
-    return bandLevels(recording, { ...options, channels: undefined });
+    return filterBankLevels(await collectRecording(stream, indices), options);
   }
   const channels = indices.map((i) => stream.channels[i]);
   const accumulator = new SpectralAccumulator(channels.length, {
@@ -139,6 +102,29 @@ export async function bandLevelsStream(
   const warnings = await readChecked(stream, indices, (chunk) => accumulator.push(chunk));
   plan.warnings.unshift(...warnings);
   return bandResult(channels, stream.rate, plan, fftBandPowers(accumulator.finish(), plan));
+}
+
+/** The filter method on a whole record (its chosen channels only). */
+function filterBankLevels(recording: Recording, options: BandLevelOptions): BandLevelResult {
+  const channels = recording.channels;
+  const plan = bandPlan(channels, recording.rate, options, channelsWarnings(channels));
+  const { bands, weighting, warnings, metadata } = plan;
+  const results = channels.map((c) => filterBankPowers(c.data, recording.rate, bands));
+  // Weighting at each band's mid-band frequency (common practice for band spectra).
+  const powers = results.map((r) =>
+    r.power.map((p, i) => p * 10 ** (weightingDb(weighting, bands[i].centerHz) / 10))
+  );
+  const short = results[0].shortRecord;
+  if (short.length > 0) {
+    warnings.push(
+      `${short.length} low band(s) spent over half the record settling; their levels are unreliable`,
+    );
+  }
+  Object.assign(metadata, {
+    filter: "Butterworth order 3 band-pass, bilinear with pre-warped edges",
+    band_rates_hz: Array.from(results[0].bandRate),
+  });
+  return bandResult(channels, recording.rate, plan, powers);
 }
 
 interface BandPlan {

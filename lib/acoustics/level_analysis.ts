@@ -7,10 +7,9 @@
  *
  * @module
  */
-import { channelIndices, type Recording, selectChannels } from "../io/recording.ts";
+import { channelIndices } from "../io/recording.ts";
 import type { Table, TableColumn } from "../io/table.ts";
-import { channelsWarnings } from "../io/signal_checks.ts";
-import { readChecked, type RecordingStream } from "../io/recording_stream.ts";
+import { asStream, readChecked, type RecordingSource } from "../io/recording_stream.ts";
 import { CascadeFilter } from "./biquad.ts";
 import { levelDb, levelReference, levelUnit } from "./levels.ts";
 import {
@@ -50,28 +49,11 @@ export interface LevelResult {
  *
  * @throws {RangeError} for a rate too low for the weighting filter or a bad step.
  */
-export function levelHistory(recording: Recording, options: LevelOptions = {}): LevelResult {
-  const channels = selectChannels(recording, options.channels);
-  const meters = levelMeters(channels, recording.rate, options);
-  meters.forEach((m, i) => m.push(channels[i].data.slice()));
-  return levelResult(
-    channels,
-    recording.rate,
-    recording.startTime,
-    options,
-    meters,
-    channelsWarnings(channels),
-  );
-}
-
-/**
- * The same analysis on a recording read in chunks (memory for one chunk and
- * the readings), with exactly the numbers of {@linkcode levelHistory}.
- */
-export async function levelHistoryStream(
-  stream: RecordingStream,
+export async function levelHistory(
+  source: RecordingSource,
   options: LevelOptions = {},
 ): Promise<LevelResult> {
+  const stream = asStream(source);
   const indices = channelIndices(stream.channels, options.channels);
   const channels = indices.map((i) => stream.channels[i]);
   const meters = levelMeters(channels, stream.rate, options);

@@ -4,15 +4,9 @@
  *
  * @module
  */
-import {
-  channelIndices,
-  type Recording,
-  recordingLength,
-  selectChannels,
-} from "../io/recording.ts";
+import { channelIndices } from "../io/recording.ts";
 import type { Table, TableColumn } from "../io/table.ts";
-import { channelsWarnings } from "../io/signal_checks.ts";
-import { readChecked, type RecordingStream } from "../io/recording_stream.ts";
+import { asStream, readChecked, type RecordingSource } from "../io/recording_stream.ts";
 import {
   resolveBlock,
   SpectralAccumulator,
@@ -47,40 +41,16 @@ export interface AveragedSpectrumOptions extends Omit<SpectralOptions, "rate" | 
  * ```ts
  * import { averagedSpectrum } from "./averaged_spectrum.ts";
  * const data = new Float64Array(2048).map((_, i) => Math.sin(2 * Math.PI * 100 * i / 1024));
- * const table = averagedSpectrum({ rate: 1024, startTime: 0, channels: [{ name: "a", unit: "V", data }] },
+ * const table = await averagedSpectrum({ rate: 1024, startTime: 0, channels: [{ name: "a", unit: "V", data }] },
  *   { block: 256, kind: "rms" });
  * if (table.columns[1].unit !== "V" || table.metadata.averages !== 15) throw new Error();
  * ```
  */
-export function averagedSpectrum(
-  recording: Recording,
-  options: AveragedSpectrumOptions = {},
-): Table {
-  const channels = selectChannels(recording, options.channels);
-  const length = recordingLength(recording);
-  const accumulator = spectrumAccumulator(recording.rate, channels.length, options);
-  accumulator.push(channels.map((c) => c.data));
-  return spectrumTable(
-    accumulator.finish(),
-    channels,
-    options,
-    length,
-    recording.startTime,
-    channelsWarnings(channels),
-  );
-}
-
-/**
- * The same analysis on a recording read in chunks: memory for one chunk,
- * whatever the recording's length, and exactly the numbers of
- * {@linkcode averagedSpectrum}.
- *
- * @throws {QuiverError} for a fault in the data, where the reader finds it.
- */
-export async function averagedSpectrumStream(
-  stream: RecordingStream,
+export async function averagedSpectrum(
+  source: RecordingSource,
   options: AveragedSpectrumOptions = {},
 ): Promise<Table> {
+  const stream = asStream(source);
   const indices = channelIndices(stream.channels, options.channels);
   const channels = indices.map((i) => stream.channels[i]);
   const accumulator = spectrumAccumulator(stream.rate, channels.length, options);

@@ -6,18 +6,12 @@
  * @module
  */
 import { QuiverError } from "../errors.ts";
-import {
-  channelIndices,
-  type Recording,
-  recordingLength,
-  selectChannels,
-} from "../io/recording.ts";
+import { channelIndices } from "../io/recording.ts";
 import type { Table, TableColumn } from "../io/table.ts";
 import { resolveBlock, SpectralAccumulator, type SpectralEstimate } from "../dsp/spectral_core.ts";
 import type { DetrendMode } from "../dsp/detrend.ts";
 import { WINDOW_DEFINITIONS, type WindowName } from "../dsp/windows.ts";
-import { channelsWarnings } from "../io/signal_checks.ts";
-import { readChecked, type RecordingStream } from "../io/recording_stream.ts";
+import { asStream, readChecked, type RecordingSource } from "../io/recording_stream.ts";
 import { coherence, type Estimator, frfEstimate } from "./estimators.ts";
 import {
   convertFrfForm,
@@ -189,30 +183,16 @@ export const SINGLE_AVERAGE_WARNING =
  * const y = x.map((v) => 2.5 * v);
  * const rec = { rate: 1000, startTime: 0, channels: [
  *   { name: "force", unit: "N", data: x }, { name: "acc", unit: "m/s^2", data: y }] };
- * const { table } = frequencyResponse(rec, { input: "force", outputs: ["acc"], block: 512 });
+ * const { table } = await frequencyResponse(rec, { input: "force", outputs: ["acc"], block: 512 });
  * const mag = table.columns.find((c) => c.name === "acc_mag")!;
  * if (Math.abs(mag.values[60] - 2.5) > 1e-9) throw new Error();
  * ```
  */
-export function frequencyResponse(recording: Recording, options: FrfOptions): FrfResult {
-  checkFrfOptions(options);
-  const channels = selectChannels(recording, [options.input, ...options.outputs]);
-  const length = recordingLength(recording);
-  const accumulator = frfAccumulator(recording.rate, channels.length, options);
-  accumulator.push(channels.map((c) => c.data));
-  return frfResult(accumulator.finish(), channels, options, length, channelsWarnings(channels));
-}
-
-/**
- * The same analysis on a recording read in chunks (memory for one chunk),
- * with exactly the numbers of {@linkcode frequencyResponse}.
- *
- * @throws {QuiverError} for a fault in the data, where the reader finds it.
- */
-export async function frequencyResponseStream(
-  stream: RecordingStream,
+export async function frequencyResponse(
+  source: RecordingSource,
   options: FrfOptions,
 ): Promise<FrfResult> {
+  const stream = asStream(source);
   checkFrfOptions(options);
   const indices = channelIndices(stream.channels, [options.input, ...options.outputs]);
   const channels = indices.map((i) => stream.channels[i]);

@@ -332,3 +332,53 @@ export async function collectRecording(
     channels: indices.map((i, j) => ({ ...stream.channels[i], data: data[j] })),
   };
 }
+
+/** What an analysis reads: a recording opened from a file, or one held in memory. */
+export type RecordingSource = RecordingStream | Recording;
+
+/**
+ * A recording held in memory as a stream: the simplest source. Its chunks are
+ * copies in reused buffers, as a file's are, so an analysis that works on a
+ * chunk in place never changes the recording.
+ *
+ * @throws {RangeError} for channels of different lengths.
+ *
+ * @example
+ * ```ts
+ * import { recordingSource } from "./recording_stream.ts";
+ * const s = recordingSource({ rate: 10, startTime: 0, channels: [{ name: "a", unit: "V", data: new Float64Array(5).fill(2) }] });
+ * let sum = 0;
+ * await s.read([0], (chunk) => { for (const v of chunk[0]) sum += v; chunk[0].fill(0); });
+ * if (s.length !== 5 || sum !== 10) throw new Error();
+ * ```
+ */
+export function recordingSource(recording: Recording): RecordingStream {
+  const length = recording.channels[0]?.data.length ?? 0;
+  if (recording.channels.some((c) => c.data.length !== length)) {
+    throw new RangeError("every channel of a recording must have the same length");
+  }
+  return {
+    rate: recording.rate,
+    startTime: recording.startTime,
+    length,
+    channels: recording.channels.map(({ data: _d, ...meta }) => meta),
+    read(selected, onChunk) {
+      const rows = Math.min(CHUNK_ROWS, length);
+      const buffers = selected.map(() => new Float64Array(rows));
+      for (let first = 0; first < length; first += CHUNK_ROWS) {
+        const count = Math.min(CHUNK_ROWS, length - first);
+        onChunk(selected.map((s, j) => {
+          const b = buffers[j].subarray(0, count);
+          b.set(recording.channels[s].data.subarray(first, first + count));
+          return b;
+        }));
+      }
+      return Promise.resolve();
+    },
+  };
+}
+
+/** The source as a stream (a recording in memory through {@linkcode recordingSource}). */
+export function asStream(source: RecordingSource): RecordingStream {
+  return "read" in source ? source : recordingSource(source);
+}

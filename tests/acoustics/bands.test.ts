@@ -94,9 +94,9 @@ const level = (ms: number) => 10 * Math.log10(ms / (20e-6) ** 2);
 
 describe("band levels", () => {
   for (const method of ["fft", "filter"] as const) {
-    test(`${method}: a tone at a band centre reads its level plus the weighting within 0.1 dB`, () => {
+    test(`${method}: a tone at a band centre reads its level plus the weighting within 0.1 dB`, async () => {
       const f = band(-7, 3).centerHz; // ≈ 199.5 Hz
-      const result = bandLevels(tones([{ f, rms: 0.2 }]), { method, weighting: "A" });
+      const result = await bandLevels(tones([{ f, rms: 0.2 }]), { method, weighting: "A" });
       const row = result.table.columns[0].values.findIndex((c) => Math.abs(c - f) < 1e-6);
       const read = result.table.columns[4].values[row];
       // IEC 61672-1 A-weighting at the tone's frequency, added to 20·log10(0.2/20 µPa).
@@ -104,11 +104,11 @@ describe("band levels", () => {
     });
   }
 
-  test("fft: a tone exactly on a band edge splits half and half (−3.01 dB each)", () => {
+  test("fft: a tone exactly on a band edge splits half and half (−3.01 dB each)", async () => {
     // By the documented rule: a line's power is shared by the part of its bin in each band.
     const edge = band(0, 3).upperHz;
     const rec = tones([{ f: edge, rms: 0.5 }]);
-    const result = bandLevels(rec, { resolution: RATE / 65536 * 4 });
+    const result = await bandLevels(rec, { resolution: RATE / 65536 * 4 });
     const cols = result.table.columns;
     const lower = cols[4].values[cols[1].values.indexOf(1000)];
     const upper = cols[4].values[cols[1].values.indexOf(1250)];
@@ -116,24 +116,24 @@ describe("band levels", () => {
     expect(Math.abs(upper - (level(0.25) - 3.0103))).toBeLessThan(0.1);
   });
 
-  test("fft: the energy sum of the bands equals the overall level of the signal within 0.1 dB", () => {
+  test("fft: the energy sum of the bands equals the overall level of the signal within 0.1 dB", async () => {
     const list = [40, 180, 700, 1500, 3200].map((f, i) => ({ f, rms: 0.05 * (i + 1) }));
-    const result = bandLevels(tones(list), {});
+    const result = await bandLevels(tones(list), {});
     const expected = level(list.reduce((s, t) => s + rms2(t.rms), 0)); // Parseval: tones are orthogonal
     expect(Math.abs(result.overall[0].levelDb - expected)).toBeLessThan(0.1);
   });
 
-  test("fft and filter bank agree on broadband noise within 0.5 dB per band", () => {
+  test("fft and filter bank agree on broadband noise within 0.5 dB per band", async () => {
     const rec = tones([], 0.3);
-    const fft = bandLevels(rec, { minHz: 50, maxHz: 5000 });
-    const filter = bandLevels(rec, { minHz: 50, maxHz: 5000, method: "filter" });
+    const fft = await bandLevels(rec, { minHz: 50, maxHz: 5000 });
+    const filter = await bandLevels(rec, { minHz: 50, maxHz: 5000, method: "filter" });
     const a = fft.table.columns[4].values;
     const b = filter.table.columns[4].values;
     for (let i = 0; i < a.length; i++) expect(Math.abs(a[i] - b[i]), `band ${i}`).toBeLessThan(0.5);
   });
 
-  test("warns about bands holding too few lines", () => {
-    const result = bandLevels(tones([{ f: 1000, rms: 1 }]), { block: 1024 });
+  test("warns about bands holding too few lines", async () => {
+    const result = await bandLevels(tones([{ f: 1000, rms: 1 }]), { block: 1024 });
     expect(result.warnings.join()).toMatch(/fewer than 5 lines/);
   });
 });

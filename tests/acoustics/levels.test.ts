@@ -19,14 +19,18 @@ const CASES: [string, number, number][] = [
 
 describe("levels re the ISO 1683 reference of each unit", () => {
   for (const [unit, rms, expected] of CASES) {
-    test(`${rms} ${unit} rms reads ${expected.toFixed(2)} dB`, () => {
+    test(`${rms} ${unit} rms reads ${expected.toFixed(2)} dB`, async () => {
       const rate = 8000;
       const rows = [`x [${unit}]`];
       for (let i = 0; i < 4 * rate; i++) {
         rows.push(String(rms * Math.SQRT2 * Math.sin(2 * Math.PI * 250 * i / rate)));
       }
       const rec = applyChannelSetup(parseCsvRecording(rows.join("\n"), { rate }), { channels: {} });
-      const { summary } = levelHistory(rec, { weighting: "Z", timeWeighting: "none", step: 0.5 });
+      const { summary } = await levelHistory(rec, {
+        weighting: "Z",
+        timeWeighting: "none",
+        step: 0.5,
+      });
       expect(Math.abs(summary[0].leq - expected)).toBeLessThan(0.01);
     });
   }

@@ -18,13 +18,13 @@ function burst() {
 
 describe("Fast and Slow time weighting", () => {
   for (const weighting of ["fast", "slow"] as const) {
-    test(`${weighting}: the burst's level rises and decays with τ = ${TAU_S[weighting]} s`, () => {
+    test(`${weighting}: the burst's level rises and decays with τ = ${TAU_S[weighting]} s`, async () => {
       // IEC 61672-1:2013, 3.9/5.8: exponential time weighting. Analytic response of
       // dy/dt = (x² − y)/τ: y = ms·(1 − e^(−t/τ)) after the onset, and a decay of
       // 10·log10(e)/τ dB per second after the end.
       const tau = TAU_S[weighting];
       const step = 0.005;
-      const { table, summary } = levelHistory(burst(), {
+      const { table, summary } = await levelHistory(burst(), {
         weighting: "Z",
         timeWeighting: weighting,
         step,
@@ -44,11 +44,11 @@ describe("Fast and Slow time weighting", () => {
     });
   }
 
-  test("Leq, Lmax, Lmin and exceedance levels of a steady tone", () => {
+  test("Leq, Lmax, Lmin and exceedance levels of a steady tone", async () => {
     const data = new Float64Array(10 * RATE).map((_, i) =>
       0.5 * Math.SQRT2 * Math.sin(2 * Math.PI * 250 * i / RATE)
     );
-    const { summary } = levelHistory({
+    const { summary } = await levelHistory({
       rate: RATE,
       startTime: 0,
       channels: [{ name: "mic", unit: "Pa", data }],
@@ -78,7 +78,7 @@ describe("Lmax of tone bursts (IEC 61672-1:2013, Table 4)", () => {
   ] as const;
   const rate = 48000;
   for (const { weighting, tbMs, table } of cases) {
-    test(`${weighting}, ${tbMs} ms burst: Lmax ${table} dB re the steady level`, () => {
+    test(`${weighting}, ${tbMs} ms burst: Lmax ${table} dB re the steady level`, async () => {
       const tau = TAU_S[weighting];
       const start = Math.round(2 * tau * rate);
       const length = Math.round((tbMs / 1000) * rate); // whole cycles of 4 kHz at 48 kHz
@@ -90,7 +90,7 @@ describe("Lmax of tone bursts (IEC 61672-1:2013, Table 4)", () => {
         : 0)
       );
       // The default step of 0.1 s: Lmax must not depend on when readings are taken.
-      const { summary } = levelHistory({
+      const { summary } = await levelHistory({
         rate,
         startTime: 0,
         channels: [{ name: "mic", unit: "Pa", data }],

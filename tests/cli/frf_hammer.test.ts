@@ -21,11 +21,11 @@ const shakerArgs = [
 ];
 
 describe("quiver frf", () => {
-  test("writes the library's FRF table with the documented columns", () => {
+  test("writes the library's FRF table with the documented columns", async () => {
     const r = runQuiver(["frf", ...shakerArgs, "--block", "256"]);
     expect(r.code).toBe(0);
     const rec = parseCsvRecording(readFileSync(shaker, "utf8"), { rate: 1024 });
-    const { table } = frequencyResponse(rec, {
+    const { table } = await frequencyResponse(rec, {
       input: "table_force",
       outputs: ["arm_acc", "bracket_acc"],
       block: 256,

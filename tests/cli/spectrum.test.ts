@@ -29,11 +29,11 @@ function mulawWav(): Uint8Array {
 }
 
 describe("quiver spectrum", () => {
-  test("writes the same table as the library, to stdout by default", () => {
+  test("writes the same table as the library, to stdout by default", async () => {
     const r = runQuiver(["spectrum", shaker, "--block", "256", "--kind", "rms"]);
     expect(r.code).toBe(0);
     const rec = parseCsvRecording(readFileSync(shaker, "utf8"));
-    expect(r.stdout).toBe(formatCsv(averagedSpectrum(rec, { block: 256, kind: "rms" })));
+    expect(r.stdout).toBe(formatCsv(await averagedSpectrum(rec, { block: 256, kind: "rms" })));
     expect(r.stdout.split("\n")[0]).toBe("frequency_hz,drive_force [N],mount_acc [m/s^2]");
     expect(r.stderr).toMatch(/31 average\(s\) of 256 samples/);
   });

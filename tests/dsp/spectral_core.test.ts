@@ -39,8 +39,8 @@ describe("spectra equal scipy.signal's Welch estimate", () => {
   // Reference: scipy.signal.welch/spectrogram, fixtures/reference/welch_reference.json
   // (tests/reference/make_welch_reference.py). Lines below 1e-10 of the peak are negligible.
   for (const c of reference.cases) {
-    test(`${c.name}: ${c.kind}, ${c.window}, block ${c.block}, ${c.average} average`, () => {
-      const table = averagedSpectrum(recording, {
+    test(`${c.name}: ${c.kind}, ${c.window}, block ${c.block}, ${c.average} average`, async () => {
+      const table = await averagedSpectrum(recording, {
         block: c.block,
         overlap: c.overlap,
         window: c.window,

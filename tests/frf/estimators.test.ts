@@ -29,8 +29,8 @@ describe("FRF estimators equal their definitions evaluated with scipy.signal", (
   // Reference: fixtures/reference/frf_reference.json (tests/reference/make_frf_reference.py):
   // H1 = csd(x,y)/welch(x), H2 = welch(y)/csd(y,x), coherence = scipy.signal.coherence.
   for (const estimator of ["h1", "h2", "hv"] as const) {
-    test(`${estimator} and coherence to 1e-4 relative`, () => {
-      const { table } = frequencyResponse(shaker, {
+    test(`${estimator} and coherence to 1e-4 relative`, async () => {
+      const { table } = await frequencyResponse(shaker, {
         input: "table_force",
         outputs: ["arm_acc", "bracket_acc"],
         estimator,
@@ -64,18 +64,19 @@ describe("FRF estimators equal their definitions evaluated with scipy.signal", (
     });
   }
 
-  test("|H1| ≤ |Hv| ≤ |H2| on every line (Hv lies between the two)", () => {
-    const mags = (["h1", "hv", "h2"] as const).map((estimator) =>
-      column(
-        frequencyResponse(shaker, {
+  test("|H1| ≤ |Hv| ≤ |H2| on every line (Hv lies between the two)", async () => {
+    const mags = [];
+    for (const estimator of ["h1", "hv", "h2"] as const) {
+      mags.push(column(
+        (await frequencyResponse(shaker, {
           input: "table_force",
           outputs: ["bracket_acc"],
           estimator,
           block: 256,
-        }).table,
+        })).table,
         "bracket_acc_mag",
-      )
-    );
+      ));
+    }
     for (let k = 0; k < mags[0].length; k++) {
       expect(mags[0][k]).toBeLessThanOrEqual(mags[1][k] * (1 + 1e-12));
       expect(mags[1][k]).toBeLessThanOrEqual(mags[2][k] * (1 + 1e-12));
@@ -96,7 +97,7 @@ describe("coherence", () => {
     ],
   });
 
-  test("is 1 for a noise-free linear system", () => {
+  test("is 1 for a noise-free linear system", async () => {
     // Bendat & Piersol, Random Data, eq. 6.38: γ² = 1 for a noise-free constant-parameter
     // linear system. Periodic-random excitation (common practice): each block's response
     // is the steady state, a circular convolution, so Y = H·X holds exactly per line.
@@ -106,7 +107,7 @@ describe("coherence", () => {
       const start = i - (i % block);
       return taps.reduce((sum, t, j) => sum + t * x[start + ((i - start - j + block) % block)], 0);
     });
-    const { table } = frequencyResponse(rec(circular), {
+    const { table } = await frequencyResponse(rec(circular), {
       input: "force",
       outputs: ["acc"],
       block,
@@ -119,11 +120,11 @@ describe("coherence", () => {
     expect(maxAbs(column(table, "acc_random_error"))).toBeLessThan(1e-6);
   });
 
-  test("falls to S/(S+N) where uncorrelated noise is added", () => {
+  test("falls to S/(S+N) where uncorrelated noise is added", async () => {
     // Bendat & Piersol, Random Data, eq. 9.57: γ² = Gvv/(Gvv + Gnn) with output noise n.
     const noise = gaussianNoise(102, x.length);
     const noisy = y.map((v, i) => v + noise[i]);
-    const { table } = frequencyResponse(rec(noisy), {
+    const { table } = await frequencyResponse(rec(noisy), {
       input: "force",
       outputs: ["acc"],
       block: 512,
@@ -142,7 +143,7 @@ describe("coherence", () => {
     }
   });
 
-  test("warns that one average makes coherence meaningless", () => {
+  test("warns that one average makes coherence meaningless", async () => {
     const short = {
       rate: 1000,
       startTime: 0,
@@ -151,7 +152,7 @@ describe("coherence", () => {
         { name: "acc", unit: "m/s^2", data: y.subarray(0, 512) },
       ],
     };
-    const { warnings, table } = frequencyResponse(short, {
+    const { warnings, table } = await frequencyResponse(short, {
       input: "force",
       outputs: ["acc"],
       block: 512,

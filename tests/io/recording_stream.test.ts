@@ -1,10 +1,10 @@
 import { readFileSync } from "node:fs";
 import { mkdtemp, writeFile } from "node:fs/promises";
 import { describe, expect, test } from "vitest";
-import { averagedSpectrum, averagedSpectrumStream } from "../../lib/dsp/averaged_spectrum.ts";
-import { bandLevels, bandLevelsStream } from "../../lib/acoustics/band_analysis.ts";
-import { levelHistory, levelHistoryStream } from "../../lib/acoustics/level_analysis.ts";
-import { frequencyResponse, frequencyResponseStream } from "../../lib/frf/frf_analysis.ts";
+import { averagedSpectrum } from "../../lib/dsp/averaged_spectrum.ts";
+import { bandLevels } from "../../lib/acoustics/band_analysis.ts";
+import { levelHistory } from "../../lib/acoustics/level_analysis.ts";
+import { frequencyResponse } from "../../lib/frf/frf_analysis.ts";
 import { parseCsvRecording } from "../../lib/io/csv_reader.ts";
 import { readRecordingFile } from "../../lib/io/read_recording.ts";
 import { CHUNK_ROWS, openRecordingStream } from "../../lib/io/recording_stream.ts";
@@ -51,11 +51,11 @@ describe("chunked reading", () => {
       ]] as const
     ) {
       const spectrumOptions = { block: 4096, overlap: 0.6, kind: "rms" as const };
-      const streamed = await averagedSpectrumStream(
+      const streamed = await averagedSpectrum(
         await openRecordingStream(`${dir}/${file}`, options),
         spectrumOptions,
       );
-      const whole = averagedSpectrum(
+      const whole = await averagedSpectrum(
         await readRecordingFile(`${dir}/${file}`, options),
         spectrumOptions,
       );
@@ -76,15 +76,15 @@ describe("chunked reading", () => {
     const path = `${dir}/shaker.csv`;
     const whole = await readRecordingFile(path);
     const frfOptions = { input: "force", outputs: ["acc"], block: 1024 };
-    const a = await frequencyResponseStream(await openRecordingStream(path), frfOptions);
-    const b = frequencyResponse(whole, frfOptions);
+    const a = await frequencyResponse(await openRecordingStream(path), frfOptions);
+    const b = await frequencyResponse(whole, frfOptions);
     expect(a.table.metadata).toEqual(b.table.metadata);
     a.table.columns.forEach((c, i) =>
       expect(Array.from(c.values)).toEqual(Array.from(b.table.columns[i].values))
     );
     const bandOptions = { channels: ["acc"], weighting: "A" as const };
-    const c = await bandLevelsStream(await openRecordingStream(path), bandOptions);
-    const d = bandLevels(whole, bandOptions);
+    const c = await bandLevels(await openRecordingStream(path), bandOptions);
+    const d = await bandLevels(whole, bandOptions);
     expect(c.table.metadata).toEqual(d.table.metadata);
     c.table.columns.forEach((col, i) =>
       expect(Array.from(col.values)).toEqual(Array.from(d.table.columns[i].values))
@@ -96,8 +96,8 @@ describe("chunked reading", () => {
         timeWeighting,
         reference: 1,
       };
-      const e = await levelHistoryStream(await openRecordingStream(path), levelOptions);
-      const g = levelHistory(whole, levelOptions);
+      const e = await levelHistory(await openRecordingStream(path), levelOptions);
+      const g = await levelHistory(whole, levelOptions);
       expect(e.table.metadata).toEqual(g.table.metadata);
       e.table.columns.forEach((col, i) =>
         expect(Array.from(col.values)).toEqual(Array.from(g.table.columns[i].values))

@@ -58,14 +58,15 @@ describe("signal-level warnings", () => {
     expect(channelWarnings(channel(x)).join()).toMatch(/DC offset of 10/);
   });
 
-  test("the warnings travel with a spectrum's metadata", () => {
+  test("the warnings travel with a spectrum's metadata", async () => {
     const rec = { rate: 1000, startTime: 0, channels: [channel(new Float64Array(4096).fill(1))] };
-    expect((averagedSpectrum(rec, { block: 512 }).metadata.warnings as string[]).join()).toMatch(
-      /constant/,
-    );
+    expect(((await averagedSpectrum(rec, { block: 512 })).metadata.warnings as string[]).join())
+      .toMatch(
+        /constant/,
+      );
   });
 
-  test("an FRF band with low coherence is warned about", () => {
+  test("an FRF band with low coherence is warned about", async () => {
     // The response is mostly uncorrelated noise: γ² = S/(S + N) ≈ 2e-4 (Bendat & Piersol eq. 9.57).
     const x = gaussianNoise(5, 32768);
     const noise = gaussianNoise(7, x.length);
@@ -79,7 +80,11 @@ describe("signal-level warnings", () => {
         data: response,
       }],
     };
-    const { warnings } = frequencyResponse(rec, { input: "force", outputs: ["acc"], block: 256 });
+    const { warnings } = await frequencyResponse(rec, {
+      input: "force",
+      outputs: ["acc"],
+      block: 256,
+    });
     expect(warnings.join()).toMatch(/coherence of "acc" is below 0\.5/);
   });
 });
