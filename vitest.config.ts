@@ -7,6 +7,12 @@
 import { defineConfig } from "vitest/config";
 
 export default defineConfig({
+  resolve: {
+    // The library imports its npm packages as `npm:name@version`, so that a Deno script
+    // outside the project can import mod.ts by path; Vite resolves them by name from
+    // node_modules, where the same versions are installed.
+    alias: [{ find: /^npm:((?:@[^/@]+\/)?[^/@]+)@[^/]+(\/.*)?$/, replacement: "$1$2" }],
+  },
   test: {
     include: ["tests/**/*.test.ts"],
     testTimeout: 240_000,

@@ -5,7 +5,7 @@
  * @module
  */
 import { parseArgs, type ParseArgsConfig } from "node:util";
-import { z } from "zod";
+import { z } from "npm:zod@4.6.7";
 import { QuiverError, withFile } from "../lib/errors.ts";
 import { parseDecimal } from "../lib/io/numbers.ts";
 import { refuseClashingOutputs } from "../lib/io/output_paths.ts";

@@ -4,7 +4,7 @@
  * @module
  */
 import { toStderr } from "./terminal.ts";
-import { z } from "zod";
+import { z } from "npm:zod@4.6.7";
 import { BAND_METHODS, bandLevels } from "../lib/acoustics/band_analysis.ts";
 import { BAND_FRACTIONS } from "../lib/acoustics/bands.ts";
 import { WEIGHTINGS } from "../lib/acoustics/weighting.ts";

@@ -6,7 +6,7 @@
 import { toStderr } from "./terminal.ts";
 import { readFile } from "node:fs/promises";
 import process from "node:process";
-import { z } from "zod";
+import { z } from "npm:zod@4.6.7";
 import { calibrateMicrophone } from "../lib/acoustics/calibration.ts";
 import { QuiverError } from "../lib/errors.ts";
 import { writeFileAtomic } from "../lib/io/atomic_write.ts";

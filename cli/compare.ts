@@ -4,7 +4,7 @@
  * @module
  */
 import { toStderr } from "./terminal.ts";
-import { z } from "zod";
+import { z } from "npm:zod@4.6.7";
 import { BAND_FRACTIONS } from "../lib/acoustics/bands.ts";
 import { compareCurves } from "../lib/compare/comparison.ts";
 import { readCurveFile } from "../lib/compare/curve_input.ts";

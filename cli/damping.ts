@@ -7,7 +7,7 @@ import { toStderr } from "./terminal.ts";
 import { TARGETS_NOT_MET_EXIT } from "./exit_codes.ts";
 import { formatFixed } from "../lib/format_number.ts";
 import process from "node:process";
-import { z } from "zod";
+import { z } from "npm:zod@4.6.7";
 import { FRF_FORMS } from "../lib/frf/forms.ts";
 import { DAMPING_METHODS, modalDamping } from "../lib/modal/damping_analysis.ts";
 import { readFrfFile } from "../lib/modal/frf_input.ts";

@@ -5,7 +5,7 @@
  */
 import { toStderr } from "./terminal.ts";
 import { formatNumber } from "../lib/format_number.ts";
-import { z } from "zod";
+import { z } from "npm:zod@4.6.7";
 import { ESTIMATORS } from "../lib/frf/estimators.ts";
 import { FRF_FORMS } from "../lib/frf/forms.ts";
 import { frequencyResponse } from "../lib/frf/frf_analysis.ts";

@@ -4,7 +4,7 @@
  * @module
  */
 import { toStderr } from "./terminal.ts";
-import { z } from "zod";
+import { z } from "npm:zod@4.6.7";
 import { FRF_FORMS } from "../lib/frf/forms.ts";
 import { hammerFrf } from "../lib/frf/hammer.ts";
 import { readRecordingFile } from "../lib/io/read_recording.ts";

@@ -4,7 +4,7 @@
  * @module
  */
 import { toStderr } from "./terminal.ts";
-import { z } from "zod";
+import { z } from "npm:zod@4.6.7";
 import { levelHistory } from "../lib/acoustics/level_analysis.ts";
 import { TIME_WEIGHTINGS } from "../lib/acoustics/time_weighting.ts";
 import { WEIGHTINGS } from "../lib/acoustics/weighting.ts";

@@ -4,7 +4,7 @@
  * @module
  */
 import { toStderr } from "./terminal.ts";
-import { z } from "zod";
+import { z } from "npm:zod@4.6.7";
 import { ORDER_METHODS, trackOrders } from "../lib/orders/order_tracking.ts";
 import { readRecordingFile } from "../lib/io/read_recording.ts";
 import {

@@ -14,7 +14,7 @@ import * as hammer from "./hammer.ts";
 import * as level from "./level.ts";
 import * as orders from "./orders.ts";
 import * as spectrum from "./spectrum.ts";
-import type { z } from "zod";
+import type { z } from "npm:zod@4.6.7";
 
 interface CommandModule {
   options: OptionSpec;

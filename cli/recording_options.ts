@@ -3,7 +3,7 @@
  *
  * @module
  */
-import { z } from "zod";
+import { z } from "npm:zod@4.6.7";
 import type { ReadRecordingOptions } from "../lib/io/read_recording.ts";
 import { openRecordingStream, type RecordingStream } from "../lib/io/recording_stream.ts";
 import { inFileAsync, numberOption, type OptionSpec } from "./args.ts";

@@ -11,7 +11,7 @@ import { manifestSchema } from "../lib/plan/manifest.ts";
 import { MANIFEST_FILE } from "../lib/plan/runner.ts";
 import { readFile } from "node:fs/promises";
 import { join } from "node:path";
-import { z } from "zod";
+import { z } from "npm:zod@4.6.7";
 import { QuiverError } from "../lib/errors.ts";
 import { loadPlan, type Manifest } from "../lib/plan/runner.ts";
 import { writeReport } from "../lib/report/html_report.ts";

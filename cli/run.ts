@@ -6,7 +6,7 @@
 import { toStderr } from "./terminal.ts";
 import { basename, dirname, join } from "node:path";
 import process from "node:process";
-import { z } from "zod";
+import { z } from "npm:zod@4.6.7";
 import { writeReport } from "../lib/report/html_report.ts";
 import { runPlan } from "../lib/plan/runner.ts";
 import { integerOption, type OptionSpec, parseCommandArgs, usageError } from "./args.ts";

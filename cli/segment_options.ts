@@ -5,7 +5,7 @@
  *
  * @module
  */
-import { z } from "zod";
+import { z } from "npm:zod@4.6.7";
 import { DETREND_MODES } from "../lib/dsp/detrend.ts";
 import { DEFAULT_BLOCK } from "../lib/dsp/spectral_core.ts";
 import { WINDOW_NAMES } from "../lib/dsp/windows.ts";

@@ -5,7 +5,7 @@
  */
 import { toStderr } from "./terminal.ts";
 import { formatNumber } from "../lib/format_number.ts";
-import { z } from "zod";
+import { z } from "npm:zod@4.6.7";
 import { AVERAGING_MODES } from "../lib/dsp/spectral_core.ts";
 import { averagedSpectrum } from "../lib/dsp/averaged_spectrum.ts";
 import { SPECTRUM_KINDS } from "../lib/dsp/spectrum_kinds.ts";

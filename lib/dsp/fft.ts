@@ -9,7 +9,7 @@
  *
  * @module
  */
-import FFT from "fft.js";
+import FFT from "npm:fft.js@4.0.4";
 
 /** A reusable real-input DFT of one fixed size. */
 export interface RealFftPlan {

@@ -31,7 +31,7 @@
  *
  * @module
  */
-import { z } from "zod";
+import { z } from "npm:zod@4.6.7";
 import { QuiverError } from "../errors.ts";
 import { type Channel, CHANNEL_ROLES, type ChannelRole, type Recording } from "./recording.ts";
 import { FULL_SCALE_UNIT } from "./wav.ts";

@@ -35,7 +35,7 @@
  *
  * @module
  */
-import { z } from "zod";
+import { z } from "npm:zod@4.6.7";
 
 /** The analysis commands a plan can run. */
 export const PLAN_COMMANDS = [

@@ -8,7 +8,8 @@
  * @module
  */
 import { maxOf, minOf } from "../extent.ts";
-import { scaleLinear, scaleLog } from "d3-scale";
+// @ts-types="npm:@types/d3-scale@4.0.9"
+import { scaleLinear, scaleLog } from "npm:d3-scale@4.0.3";
 
 /** quiver's line palette. */
 export const PALETTE = ["#1d4e89", "#d1495b", "#2e8b57", "#edae49", "#6a4c93"] as const;
