@@ -11,10 +11,17 @@ import { calibrateMicrophone } from "../lib/acoustics/calibration.ts";
 import { QuiverError } from "../lib/errors.ts";
 import { writeFileAtomic } from "../lib/io/atomic_write.ts";
 import { type ChannelSetup, parseChannelSetup } from "../lib/io/channel_setup.ts";
-import { readRecordingFile } from "../lib/io/read_recording.ts";
-import { selectChannels } from "../lib/io/recording.ts";
+import { openRecordingStream } from "../lib/io/recording_stream.ts";
+import { channelIndices } from "../lib/io/recording.ts";
 import { FULL_SCALE_UNIT } from "../lib/io/wav.ts";
-import { inFile, numberOption, type OptionSpec, parseCommandArgs, usageError } from "./args.ts";
+import {
+  inFile,
+  inFileAsync,
+  numberOption,
+  type OptionSpec,
+  parseCommandArgs,
+  usageError,
+} from "./args.ts";
 
 /** One-line summary for the command list. */
 export const summary =
@@ -80,13 +87,14 @@ export async function run(argv: readonly string[]): Promise<void> {
     if (textContent !== undefined) setup = parseChannelSetup(textContent, values.setup);
   }
   // The raw recording: the calibration must see volts, not an older sensitivity's output.
-  const recording = await readRecordingFile(
+  const stream = await openRecordingStream(
     input,
     values.rate !== undefined ? { rate: values.rate } : {},
   );
   const key = Object.entries(setup.channels).find(([, e]) => e.name === values.channel)?.[0] ??
     values.channel;
-  const [channel] = inFile(input, () => selectChannels(recording, [key]));
+  const [index] = inFile(input, () => channelIndices(stream.channels, [key]));
+  const channel = stream.channels[index];
   const entry = setup.channels[key] ?? {};
   const voltsPerUnit = channel.unit === "V"
     ? 1
@@ -106,11 +114,12 @@ export async function run(argv: readonly string[]): Promise<void> {
       "usage",
     );
   }
-  const volts = channel.data.map((v) => v * voltsPerUnit);
-  const result = inFile(
-    input,
-    () => calibrateMicrophone(volts, recording.rate, values.level ?? 94, values.frequency ?? 1000),
-  );
+  const result = await inFileAsync(input, () =>
+    calibrateMicrophone(stream, index, {
+      levelDb: values.level ?? 94,
+      frequencyHz: values.frequency ?? 1000,
+      voltsPerUnit,
+    }));
   const updated: ChannelSetup = {
     ...setup,
     channels: {

@@ -94,11 +94,11 @@ export async function bandLevels(
     return filterBankLevels(await collectRecording(stream, indices), options);
   }
   const channels = indices.map((i) => stream.channels[i]);
+  const plan = bandPlan(channels, stream.rate, options, []);
   const accumulator = new SpectralAccumulator(channels.length, {
     rate: stream.rate,
-    block: fftBlock(stream.rate, stream.length, options),
+    block: fftBlock(stream.rate, stream.length, plan.bands[0], options),
   });
-  const plan = bandPlan(channels, stream.rate, options, []);
   const warnings = await readChecked(stream, indices, (chunk) => accumulator.push(chunk));
   plan.warnings.unshift(...warnings);
   return bandResult(channels, stream.rate, plan, fftBandPowers(accumulator.finish(), plan));
@@ -169,8 +169,18 @@ function bandPlan(
   };
 }
 
-function fftBlock(rate: number, length: number, options: BandLevelOptions): number {
-  const defaultBlock = 2 ** Math.floor(Math.log2(Math.max(8, length / 4)));
+/**
+ * The fft method's block: given, or from a resolution, or by default the
+ * power of two that puts {@linkcode MIN_LINES_PER_BAND} lines into the lowest
+ * band asked for (so memory follows the bands, not the record's length),
+ * but no longer than a quarter of the record, so that there are averages.
+ */
+function fftBlock(rate: number, length: number, lowest: Band, options: BandLevelOptions): number {
+  const forLowestBand = 2 ** Math.ceil(
+    Math.log2((MIN_LINES_PER_BAND * rate) / (lowest.upperHz - lowest.lowerHz)),
+  );
+  const quarter = 2 ** Math.floor(Math.log2(Math.max(8, length / 4)));
+  const defaultBlock = Math.max(8, Math.min(forLowestBand, quarter));
   return resolveBlock(rate, {
     block: options.block ?? (options.resolution === undefined ? defaultBlock : undefined),
     resolution: options.resolution,

@@ -7,7 +7,8 @@
  * @module
  */
 import { QuiverError } from "../errors.ts";
-import { spectralEstimate } from "../dsp/spectral_core.ts";
+import { SpectralAccumulator } from "../dsp/spectral_core.ts";
+import { asStream, type RecordingSource } from "../io/recording_stream.ts";
 import { autoSpectrum } from "../dsp/spectrum_kinds.ts";
 
 /** The result of a calibration. */
@@ -22,9 +23,20 @@ export interface Calibration {
   readonly toneHz: number;
 }
 
+/** What a calibration needs to know besides the tone. */
+export interface CalibrationOptions {
+  /** Calibrator level, dB re 20 µPa. Default 94. */
+  levelDb?: number;
+  /** Calibrator frequency, Hz. Default 1000. */
+  frequencyHz?: number;
+  /** Volts per unit of the channel as read (1 for V). Default 1. */
+  voltsPerUnit?: number;
+}
+
 /**
- * The sensitivity of the microphone that recorded `volts` (the calibrator
- * tone, in volts) at `rate`, for a calibrator of `levelDb` at `frequencyHz`.
+ * The sensitivity of the microphone on channel `channel` of `source` (the
+ * calibrator tone, in volts times `voltsPerUnit`), read in chunks through
+ * the flat-top window: memory for one chunk and one block.
  *
  * @throws {QuiverError} when no tone stands out near the frequency or the record is too short.
  *
@@ -32,29 +44,39 @@ export interface Calibration {
  * ```ts
  * import { calibrateMicrophone } from "./calibration.ts";
  * const p = 20e-6 * 10 ** (94 / 20), s = 0.05; // 50 mV/Pa
- * const v = new Float64Array(48000).map((_, i) => s * p * Math.SQRT2 * Math.sin(2 * Math.PI * 1000 * i / 48000));
- * const c = calibrateMicrophone(v, 48000, 94, 1000);
+ * const data = new Float64Array(48000).map((_, i) => s * p * Math.SQRT2 * Math.sin(2 * Math.PI * 1000 * i / 48000));
+ * const rec = { rate: 48000, startTime: 0, channels: [{ name: "mic", unit: "V", data }] };
+ * const c = await calibrateMicrophone(rec, 0);
  * if (Math.abs(c.sensitivityMvPerPa / 50 - 1) > 1e-3) throw new Error();
  * ```
  */
-export function calibrateMicrophone(
-  volts: Float64Array,
-  rate: number,
-  levelDb: number,
-  frequencyHz: number,
-): Calibration {
+export async function calibrateMicrophone(
+  source: RecordingSource,
+  channel: number,
+  options: CalibrationOptions = {},
+): Promise<Calibration> {
+  const stream = asStream(source);
+  const rate = stream.rate;
+  const levelDb = options.levelDb ?? 94;
+  const frequencyHz = options.frequencyHz ?? 1000;
+  const scale = options.voltsPerUnit ?? 1;
   if (!(frequencyHz > 0 && frequencyHz < rate / 2)) {
     throw new RangeError(
       `the calibrator frequency must lie below ${rate / 2} Hz, got ${frequencyHz}`,
     );
   }
-  const block = Math.min(2 ** Math.floor(Math.log2(volts.length)), 2 ** 16);
+  const block = Math.min(2 ** Math.floor(Math.log2(stream.length)), 2 ** 16);
   if (block < 1024) {
     throw new QuiverError(
-      `a calibration needs at least 1024 samples; the record has ${volts.length}`,
+      `a calibration needs at least 1024 samples; the record has ${stream.length}`,
     );
   }
-  const estimate = spectralEstimate([volts], { rate, block, window: "flattop" });
+  const accumulator = new SpectralAccumulator(1, { rate, block, window: "flattop" });
+  await stream.read([channel], ([chunk]) => {
+    if (scale !== 1) { for (let i = 0; i < chunk.length; i++) chunk[i] *= scale; }
+    accumulator.push([chunk]);
+  });
+  const estimate = accumulator.finish();
   const power = autoSpectrum(estimate, 0, "power");
   const f = estimate.frequencies;
   let best = -1;

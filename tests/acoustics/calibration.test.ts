@@ -14,7 +14,7 @@ describe("microphone calibration", () => {
   for (const level of [94, 114]) {
     for (const fraction of [0, 0.25, 0.5, 0.75]) {
       const f = 1000 + fraction * (rate / 65536);
-      test(`${level} dB at ${f.toFixed(4)} Hz: sensitivity within 0.1 %`, () => {
+      test(`${level} dB at ${f.toFixed(4)} Hz: sensitivity within 0.1 %`, async () => {
         const p = 20e-6 * 10 ** (level / 20);
         const sensitivity = 12.5; // mV/Pa, our invented microphone
         const noise = gaussianNoise(17, rate * seconds);
@@ -22,7 +22,12 @@ describe("microphone calibration", () => {
           (sensitivity / 1000) * p * Math.SQRT2 * Math.sin(2 * Math.PI * f * i / rate) +
           1e-5 * noise[i]
         );
-        const c = calibrateMicrophone(volts, rate, level, 1000);
+        const recording = {
+          rate,
+          startTime: 0,
+          channels: [{ name: "mic", unit: "V", data: volts }],
+        };
+        const c = await calibrateMicrophone(recording, 0, { levelDb: level, frequencyHz: 1000 });
         expect(Math.abs(c.pressureRmsPa / p - 1)).toBeLessThan(1e-12);
         expect(Math.abs(c.sensitivityMvPerPa / sensitivity - 1)).toBeLessThan(0.001);
       });
