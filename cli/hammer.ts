@@ -7,7 +7,8 @@ import { toStderr } from "./terminal.ts";
 import { z } from "npm:zod@4.6.7";
 import { FRF_FORMS } from "../lib/frf/forms.ts";
 import { hammerFrf } from "../lib/frf/hammer.ts";
-import { readRecordingFile } from "../lib/io/read_recording.ts";
+import { collectRecording, openRecordingStream } from "../lib/io/recording_stream.ts";
+import { channelIndices } from "../lib/io/recording.ts";
 import { formatCsv } from "../lib/io/table.ts";
 import { writeFileAtomic } from "../lib/io/atomic_write.ts";
 import {
@@ -117,7 +118,13 @@ export async function run(argv: readonly string[]): Promise<void> {
     usageError("--out and --hits-out name the same file");
   }
   const [input] = positionals;
-  const recording = await readRecordingFile(input, toReadOptions(values));
+  // Only the channels the analysis needs are held in memory, read through the chunked reader.
+  const stream = await openRecordingStream(input, toReadOptions(values));
+  const needed = inFile(
+    input,
+    () => channelIndices(stream.channels, [values.force, ...values.outputs]),
+  );
+  const recording = await collectRecording(stream, needed);
   const result = inFile(input, () =>
     hammerFrf(recording, {
       force: values.force,

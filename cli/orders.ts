@@ -6,7 +6,8 @@
 import { toStderr } from "./terminal.ts";
 import { z } from "npm:zod@4.6.7";
 import { ORDER_METHODS, trackOrders } from "../lib/orders/order_tracking.ts";
-import { readRecordingFile } from "../lib/io/read_recording.ts";
+import { collectRecording, openRecordingStream } from "../lib/io/recording_stream.ts";
+import { channelIndices } from "../lib/io/recording.ts";
 import {
   inFile,
   integerOption,
@@ -139,7 +140,18 @@ export async function run(argv: readonly string[]): Promise<void> {
     usageError("--out, --rpm-out and --map-out must name different files");
   }
   const [input] = positionals;
-  const recording = await readRecordingFile(input, toReadOptions(values));
+  // Only the channels the analysis needs are held in memory, read through the chunked reader.
+  const stream = await openRecordingStream(input, toReadOptions(values));
+  const needed = inFile(
+    input,
+    () =>
+      channelIndices(stream.channels, [
+        ...(values.tacho !== undefined ? [values.tacho] : []),
+        ...(values["rpm-channel"] !== undefined ? [values["rpm-channel"]] : []),
+        ...values.channels,
+      ]),
+  );
+  const recording = await collectRecording(stream, needed);
   const result = inFile(input, () =>
     trackOrders(recording, {
       tacho: values.tacho,

@@ -58,3 +58,59 @@ export function indexOfMin(values: ArrayLike<number>): number {
   for (let i = 0; i < values.length; i++) if (best < 0 || values[i] < values[best]) best = i;
   return best;
 }
+
+/**
+ * The median (the mean of the two middle values for an even count), by
+ * selection (Hoare's quickselect with median-of-three pivots) on a copy:
+ * O(n) on average instead of a sort's O(n log n). NaN for an empty array.
+ *
+ * @example
+ * ```ts
+ * import { medianOf } from "./extent.ts";
+ * if (medianOf([5, 1, 4, 2, 3]) !== 3 || medianOf([4, 1, 3, 2]) !== 2.5) throw new Error();
+ * ```
+ */
+export function medianOf(values: ArrayLike<number>): number {
+  const n = values.length;
+  if (n === 0) return NaN;
+  const a = Float64Array.from(values);
+  const upper = select(a, n >> 1);
+  if (n % 2 === 1) return upper;
+  // The lower middle is the largest value left of the upper one after selection.
+  let lower = -Infinity;
+  for (let i = 0; i < n >> 1; i++) if (a[i] > lower) lower = a[i];
+  return (lower + upper) / 2;
+}
+
+/** Puts the k-th smallest value at a[k], smaller ones before it, and returns it. */
+function select(a: Float64Array, k: number): number {
+  let lo = 0, hi = a.length - 1;
+  while (hi > lo) {
+    const mid = (lo + hi) >> 1;
+    // Median of three as the pivot, so sorted or constant input stays linear.
+    if (a[mid] < a[lo]) swap(a, mid, lo);
+    if (a[hi] < a[lo]) swap(a, hi, lo);
+    if (a[hi] < a[mid]) swap(a, hi, mid);
+    const pivot = a[mid];
+    let i = lo, j = hi;
+    while (i <= j) {
+      while (a[i] < pivot) i++;
+      while (a[j] > pivot) j--;
+      if (i <= j) {
+        swap(a, i, j);
+        i++;
+        j--;
+      }
+    }
+    if (k <= j) hi = j;
+    else if (k >= i) lo = i;
+    else break;
+  }
+  return a[k];
+}
+
+function swap(a: Float64Array, i: number, j: number): void {
+  const t = a[i];
+  a[i] = a[j];
+  a[j] = t;
+}

@@ -22,6 +22,7 @@
  * @module
  */
 import { QuiverError } from "../errors.ts";
+import { medianOf } from "../extent.ts";
 
 /** What became of a hit. */
 export type HitStatus = "accepted" | "double" | "overload" | "short";
@@ -73,12 +74,6 @@ export interface HitDetection {
   readonly recordSamples: number;
 }
 
-function median(values: Float64Array): number {
-  const sorted = values.slice().sort();
-  const mid = Math.floor(sorted.length / 2);
-  return sorted.length % 2 === 1 ? sorted[mid] : (sorted[mid - 1] + sorted[mid]) / 2;
-}
-
 /**
  * Whether the pulse around `peakSample` of `s` (baseline removed, positive)
  * has a flat top. A converter that clips holds its top code, and the
@@ -127,7 +122,7 @@ function plateauAtPeak(
  */
 export function findHits(force: Float64Array, options: HitOptions): HitDetection {
   const n = force.length;
-  const baseline = median(force);
+  const baseline = medianOf(force);
   let max = -Infinity;
   let min = Infinity;
   for (let i = 0; i < n; i++) {
@@ -136,7 +131,7 @@ export function findHits(force: Float64Array, options: HitOptions): HitDetection
   }
   const polarity: 1 | -1 = max >= -min ? 1 : -1;
   const s = force.map((v) => polarity * (v - baseline));
-  const sigma = 1.4826 * median(s.map(Math.abs));
+  const sigma = 1.4826 * medianOf(s.map(Math.abs));
   const trigger = options.trigger ?? Math.max(0.05 * Math.max(max, -min), 5 * sigma);
   if (!(trigger > 0) || !Number.isFinite(trigger)) {
     throw new RangeError(`trigger level must be a positive number, got ${trigger}`);
@@ -170,7 +165,7 @@ export function findHits(force: Float64Array, options: HitOptions): HitDetection
         "usage",
       );
     }
-    const spacing = median(
+    const spacing = medianOf(
       new Float64Array(crossings.slice(1).map((c, i) => c.sample - crossings[i].sample)),
     );
     const room = Math.floor(0.9 * spacing) - options.pretriggerSamples;
