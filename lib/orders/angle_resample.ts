@@ -16,6 +16,12 @@
 
 /** Options of {@linkcode resampleToAngle}. */
 export interface AngleResampleOptions {
+  /** Sample rate of the signals, Hz. Required. */
+  rate: number;
+  /** Inverse of the shaft angle: time in s at angle θ (revolutions). Required. */
+  timeOfAngle: (rev: number) => number;
+  /** Shaft speed at a time, rpm. Required. */
+  rpmAtTime: (time: number) => number;
   /** Samples per revolution. Required. */
   samplesPerRev: number;
   /** First angle, revolutions. Required. */
@@ -26,31 +32,55 @@ export interface AngleResampleOptions {
   halfWidth?: number;
 }
 
+/** Points of a kernel table over u ∈ [−1, 1]: linear interpolation errs by under 1e-6. */
+const TABLE_POINTS = 1 << 14;
+const kernels = new Map<number, Float64Array>();
+
 /**
- * The signal at equal angle steps of 1/samplesPerRev revolution.
- *
- * @param timeOfAngle inverse of the shaft angle: time in s at angle θ (revolutions)
- * @param rpmAtTime shaft speed at a time, rpm
+ * The kernel sinc(zeros·u)·Blackman(u) tabulated over u ∈ [−1, 1] (u is the
+ * distance from the output instant in units of the kernel's reach), made
+ * once per kernel width and shared by every channel and call.
+ */
+function kernelTable(zeros: number): Float64Array {
+  let table = kernels.get(zeros);
+  if (table === undefined) {
+    table = new Float64Array(TABLE_POINTS + 2);
+    for (let i = 0; i <= TABLE_POINTS; i++) {
+      const u = -1 + (2 * i) / TABLE_POINTS;
+      const x = zeros * u;
+      const sinc = x === 0 ? 1 : Math.sin(Math.PI * x) / (Math.PI * x);
+      table[i] = sinc * (0.42 + 0.5 * Math.cos(Math.PI * u) + 0.08 * Math.cos(2 * Math.PI * u));
+    }
+    table[TABLE_POINTS + 1] = table[TABLE_POINTS];
+    kernels.set(zeros, table);
+  }
+  return table;
+}
+
+/**
+ * The signals at equal angle steps of 1/samplesPerRev revolution. The kernel
+ * weights of each output instant are computed once for all signals.
  *
  * @example
  * ```ts
  * import { resampleToAngle } from "./angle_resample.ts";
  * // 1200 rpm (20 rev/s), sampled at 4 kHz; order 3 becomes 3 cycles per revolution.
  * const x = new Float64Array(8000).map((_, i) => Math.cos(2 * Math.PI * 3 * 20 * i / 4000));
- * const y = resampleToAngle(x, 4000, (rev) => rev / 20, () => 1200, { samplesPerRev: 32, startRev: 4, count: 64 });
- * if (Math.abs(y[0] - 1) > 1e-3 || Math.abs(y[16] + 1) > 1e-3) throw new Error(); // half a rev: cos(3π) = −1
+ * const [y] = resampleToAngle([x], { rate: 4000, timeOfAngle: (rev) => rev / 20, rpmAtTime: () => 1200, samplesPerRev: 32, startRev: 4, count: 64 });
+ * // At angle 4 + j/32 the order-3 cosine is cos(2π·3·j/32).
+ * if (Math.abs(y[5] - Math.cos(2 * Math.PI * 3 * 5 / 32)) > 1e-3) throw new Error();
  * ```
  */
 export function resampleToAngle(
-  signal: Float64Array,
-  rate: number,
-  timeOfAngle: (rev: number) => number,
-  rpmAtTime: (time: number) => number,
+  signals: readonly Float64Array[],
   options: AngleResampleOptions,
-): Float64Array {
-  const { samplesPerRev, startRev, count } = options;
+): Float64Array[] {
+  const { rate, timeOfAngle, rpmAtTime, samplesPerRev, startRev, count } = options;
   const zeros = options.halfWidth ?? 8;
-  const out = new Float64Array(count);
+  const table = kernelTable(zeros);
+  const length = signals[0]?.length ?? 0;
+  const outs = signals.map(() => new Float64Array(count));
+  const sums = new Float64Array(signals.length);
   for (let j = 0; j < count; j++) {
     const t = timeOfAngle(startRev + j / samplesPerRev);
     const outputRate = (rpmAtTime(t) / 60) * samplesPerRev;
@@ -58,22 +88,20 @@ export function resampleToAngle(
     const reach = zeros / (2 * cutoff); // seconds either side
     const centre = t * rate;
     const first = Math.max(0, Math.ceil(centre - reach * rate));
-    const last = Math.min(signal.length - 1, Math.floor(centre + reach * rate));
-    let sum = 0;
+    const last = Math.min(length - 1, Math.floor(centre + reach * rate));
+    const step = TABLE_POINTS / (2 * reach * rate); // table points per input sample
+    sums.fill(0);
     let weight = 0;
     for (let n = first; n <= last; n++) {
-      const tau = (n - centre) / rate;
-      const x = 2 * cutoff * tau;
-      const sinc = x === 0 ? 1 : Math.sin(Math.PI * x) / (Math.PI * x);
-      const u = tau / reach; // −1 … 1
-      const blackman = 0.42 + 0.5 * Math.cos(Math.PI * u) + 0.08 * Math.cos(2 * Math.PI * u);
-      const h = sinc * blackman;
-      sum += h * signal[n];
+      const at = (n - centre + reach * rate) * step; // 0 … TABLE_POINTS
+      const i = Math.floor(at);
+      const h = table[i] + (at - i) * (table[i + 1] - table[i]);
+      for (let c = 0; c < signals.length; c++) sums[c] += h * signals[c][n];
       weight += h;
     }
-    out[j] = weight === 0 ? 0 : sum / weight;
+    for (let c = 0; c < signals.length; c++) outs[c][j] = weight === 0 ? 0 : sums[c] / weight;
   }
-  return out;
+  return outs;
 }
 
 /**

@@ -242,13 +242,14 @@ export function trackOrders(recording: Recording, options: OrderOptions): OrderR
       }
       first = Math.ceil(t0 * recording.rate);
       last = Math.floor(t1 * recording.rate);
-      blocks = channels.map((c: Channel) =>
-        resampleToAngle(c.data, recording.rate, timeOf, motion.rpmAt, {
-          samplesPerRev,
-          startRev,
-          count: block,
-        })
-      );
+      blocks = resampleToAngle(channels.map((c: Channel) => c.data), {
+        rate: recording.rate,
+        timeOfAngle: timeOf,
+        rpmAtTime: motion.rpmAt,
+        samplesPerRev,
+        startRev,
+        count: block,
+      });
     } else {
       block = timeBlock;
       rate = recording.rate;
