@@ -20,19 +20,13 @@
  * @module
  */
 import { formatNumber } from "../format_number.ts";
-import { channelIndices, type Recording } from "../io/recording.ts";
+import { channelIndices } from "../io/recording.ts";
 import type { Table, TableColumn } from "../io/table.ts";
 import { resolveBlock, SpectralAccumulator, type SpectralEstimate } from "../dsp/spectral_core.ts";
-import {
-  asStream,
-  collectRecording,
-  readChecked,
-  type RecordingSource,
-} from "../io/recording_stream.ts";
-import { channelsWarnings } from "../io/signal_checks.ts";
+import { asStream, readChecked, type RecordingSource } from "../io/recording_stream.ts";
 import { type Band, type BandFraction, bandsInRange } from "./bands.ts";
 import { bandPowersFromDensity } from "./band_synthesis.ts";
-import { filterBankPowers } from "./filter_bank.ts";
+import { FilterBankMeter, type FilterBankPowers } from "./filter_bank.ts";
 import { levelDb, levelReference, levelUnit } from "./levels.ts";
 import { type Weighting, weightingDb } from "./weighting.ts";
 
@@ -90,8 +84,17 @@ export async function bandLevels(
   const stream = asStream(source);
   const indices = channelIndices(stream.channels, options.channels);
   if ((options.method ?? "fft") !== "fft") {
-    // The filter bank reads the whole record: collected through the same chunks.
-    return filterBankLevels(await collectRecording(stream, indices), options);
+    const channels = indices.map((i) => stream.channels[i]);
+    const plan = bandPlan(channels, stream.rate, options, []);
+    const meters = channels.map(() => new FilterBankMeter(stream.rate, stream.length, plan.bands));
+    // The chunks are the reader's reused buffers: the meters may filter them in place.
+    const warnings = await readChecked(
+      stream,
+      indices,
+      (chunk) => chunk.forEach((c, i) => meters[i].push(c)),
+    );
+    plan.warnings.unshift(...warnings);
+    return filterBankLevels(channels, stream.rate, plan, meters.map((m) => m.finish()));
   }
   const channels = indices.map((i) => stream.channels[i]);
   const plan = bandPlan(channels, stream.rate, options, []);
@@ -104,12 +107,14 @@ export async function bandLevels(
   return bandResult(channels, stream.rate, plan, fftBandPowers(accumulator.finish(), plan));
 }
 
-/** The filter method on a whole record (its chosen channels only). */
-function filterBankLevels(recording: Recording, options: BandLevelOptions): BandLevelResult {
-  const channels = recording.channels;
-  const plan = bandPlan(channels, recording.rate, options, channelsWarnings(channels));
+/** The filter method's band levels from the channels' filter-bank powers. */
+function filterBankLevels(
+  channels: readonly { name: string; unit: string }[],
+  rate: number,
+  plan: BandPlan,
+  results: readonly FilterBankPowers[],
+): BandLevelResult {
   const { bands, weighting, warnings, metadata } = plan;
-  const results = channels.map((c) => filterBankPowers(c.data, recording.rate, bands));
   // Weighting at each band's mid-band frequency (common practice for band spectra).
   const powers = results.map((r) =>
     r.power.map((p, i) => p * 10 ** (weightingDb(weighting, bands[i].centerHz) / 10))
@@ -124,7 +129,7 @@ function filterBankLevels(recording: Recording, options: BandLevelOptions): Band
     filter: "Butterworth order 3 band-pass, bilinear with pre-warped edges",
     band_rates_hz: Array.from(results[0].bandRate),
   });
-  return bandResult(channels, recording.rate, plan, powers);
+  return bandResult(channels, rate, plan, powers);
 }
 
 interface BandPlan {

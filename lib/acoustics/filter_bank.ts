@@ -16,7 +16,7 @@
  * @module
  */
 import type { Band } from "./bands.ts";
-import { type Biquad, filterCascade, normaliseCascade } from "./biquad.ts";
+import { type Biquad, CascadeFilter, normaliseCascade } from "./biquad.ts";
 
 interface Complex {
   re: number;
@@ -138,47 +138,138 @@ export interface FilterBankPowers {
  * Mean square of `signal` in each band, through the filter bank.
  *
  * @throws {RangeError} when a band lies above 0.45 of the rate.
+ *
+ * @example
+ * ```ts
+ * import { filterBankPowers } from "./filter_bank.ts";
+ * import { band } from "./bands.ts";
+ * // A 1 kHz tone of 1 rms in the 1 kHz one-third octave (IEC 61260-1 band 0).
+ * const x = new Float64Array(48000).map((_, i) => Math.SQRT2 * Math.sin(2 * Math.PI * 1000 * i / 48000));
+ * const { power } = filterBankPowers(x, 48000, [band(0, 3)]);
+ * if (Math.abs(power[0] - 1) > 0.01) throw new Error();
+ * ```
  */
 export function filterBankPowers(
   signal: Float64Array,
   rate: number,
   bands: readonly Band[],
 ): FilterBankPowers {
-  const levels: Float64Array[] = [signal];
-  const rates = [rate];
-  const levelOf = (b: Band) => {
-    let d = 0;
-    while (b.upperHz < 0.1 * (rates[d] / 2) && levels[d].length >= 64) {
-      if (levels[d + 1] === undefined) {
-        const smooth = filterCascade(levels[d], butterworthLowPass(0.2 * rates[d], rates[d]));
-        levels.push(smooth.filter((_, i) => i % 2 === 0));
-        rates.push(rates[d] / 2);
+  const meter = new FilterBankMeter(rate, signal.length, bands);
+  meter.push(signal.slice());
+  return meter.finish();
+}
+
+/**
+ * The filter bank fed in chunks: memory for one chunk per rate level,
+ * whatever the record's length, and exactly the numbers of one pass over the
+ * whole record (every filter keeps its state between chunks, and halving the
+ * rate keeps the samples of even index of the whole record).
+ */
+export class FilterBankMeter {
+  readonly #levels: {
+    rate: number;
+    length: number;
+    index: number; // samples of this level seen so far
+    lowPass?: CascadeFilter; // to the next level
+    scratch: Float64Array; // a band's filtered copy of a chunk
+    down: Float64Array; // the chunk handed to the next level
+  }[] = [];
+  readonly #bands: {
+    level: number;
+    filter: CascadeFilter;
+    settle: number;
+    sum: number;
+  }[];
+
+  /**
+   * @throws {RangeError} when a band lies above 0.45 of the rate.
+   */
+  constructor(rate: number, length: number, bands: readonly Band[]) {
+    const rates = [rate], lengths = [length];
+    const levelOf = (b: Band) => {
+      let d = 0;
+      while (b.upperHz < 0.1 * (rates[d] / 2) && lengths[d] >= 64) {
+        if (rates[d + 1] === undefined) {
+          rates.push(rates[d] / 2);
+          lengths.push(Math.ceil(lengths[d] / 2));
+        }
+        d++;
       }
-      d++;
-    }
-    return d;
-  };
-  const power = new Float64Array(bands.length);
-  const bandRate = new Float64Array(bands.length);
-  const shortRecord: number[] = [];
-  bands.forEach((b, i) => {
-    if (b.upperHz >= 0.45 * rate) {
-      throw new RangeError(
-        `band ${b.nominalHz} Hz reaches ${b.upperHz} Hz, too close to the Nyquist frequency`,
+      return d;
+    };
+    this.#bands = bands.map((b) => {
+      if (b.upperHz >= 0.45 * rate) {
+        throw new RangeError(
+          `band ${b.nominalHz} Hz reaches ${b.upperHz} Hz, too close to the Nyquist frequency`,
+        );
+      }
+      const level = levelOf(b);
+      const settle = Math.min(
+        lengths[level] - 1,
+        Math.ceil((10 / (Math.PI * (b.upperHz - b.lowerHz))) * rates[level]),
       );
+      return {
+        level,
+        filter: new CascadeFilter(butterworthBandPass(b.lowerHz, b.upperHz, rates[level])),
+        settle,
+        sum: 0,
+      };
+    });
+    for (let d = 0; d < rates.length; d++) {
+      this.#levels.push({
+        rate: rates[d],
+        length: lengths[d],
+        index: 0,
+        ...(d + 1 < rates.length
+          ? { lowPass: new CascadeFilter(butterworthLowPass(0.2 * rates[d], rates[d])) }
+          : {}),
+        scratch: new Float64Array(0),
+        down: new Float64Array(0),
+      });
     }
-    const d = levelOf(b);
-    const x = levels[d];
-    const y = filterCascade(x, butterworthBandPass(b.lowerHz, b.upperHz, rates[d]));
-    const settle = Math.min(
-      x.length - 1,
-      Math.ceil((10 / (Math.PI * (b.upperHz - b.lowerHz))) * rates[d]),
-    );
-    if (settle > x.length / 2) shortRecord.push(i);
-    let sum = 0;
-    for (let n = settle; n < y.length; n++) sum += y[n] * y[n];
-    power[i] = sum / (y.length - settle);
-    bandRate[i] = rates[d];
-  });
-  return { power, bandRate, shortRecord };
+  }
+
+  /** Adds the next samples (changed in place: pass a copy to keep them). */
+  push(chunk: Float64Array): void {
+    this.#push(0, chunk);
+  }
+
+  #push(d: number, chunk: Float64Array): void {
+    const level = this.#levels[d];
+    const start = level.index;
+    for (const band of this.#bands) {
+      if (band.level !== d) continue;
+      if (level.scratch.length < chunk.length) level.scratch = new Float64Array(chunk.length);
+      const y = level.scratch.subarray(0, chunk.length);
+      y.set(chunk);
+      band.filter.process(y);
+      let sum = band.sum;
+      for (let n = Math.max(0, band.settle - start); n < y.length; n++) sum += y[n] * y[n];
+      band.sum = sum;
+    }
+    level.index += chunk.length;
+    if (level.lowPass === undefined || chunk.length === 0) return;
+    // The next level: low-passed, then the samples of even index in this level's count.
+    level.lowPass.process(chunk);
+    const firstEven = start % 2 === 0 ? 0 : 1;
+    const count = Math.ceil((chunk.length - firstEven) / 2);
+    if (level.down.length < count) level.down = new Float64Array(count);
+    const next = level.down.subarray(0, Math.max(0, count));
+    for (let i = 0; i < next.length; i++) next[i] = chunk[firstEven + 2 * i];
+    this.#push(d + 1, next);
+  }
+
+  /** The band powers, rates and short-record bands of everything pushed. */
+  finish(): FilterBankPowers {
+    const power = new Float64Array(this.#bands.length);
+    const bandRate = new Float64Array(this.#bands.length);
+    const shortRecord: number[] = [];
+    this.#bands.forEach((band, i) => {
+      const { length, rate } = this.#levels[band.level];
+      if (band.settle > length / 2) shortRecord.push(i);
+      power[i] = band.sum / (length - band.settle);
+      bandRate[i] = rate;
+    });
+    return { power, bandRate, shortRecord };
+  }
 }
