@@ -72,8 +72,18 @@ async function removeStaleTemporaries(path: string): Promise<void> {
   }
 }
 
-/** Whether a process with this id runs (signal 0 tests without sending anything). */
-function processRuns(pid: number): boolean {
+/**
+ * Whether a process with this id runs on this machine (signal 0 tests
+ * without sending anything; EPERM means it runs as another user).
+ *
+ * @example
+ * ```ts
+ * import { processRuns } from "./atomic_write.ts";
+ * import process from "node:process";
+ * if (!processRuns(process.pid) || processRuns(999999999)) throw new Error();
+ * ```
+ */
+export function processRuns(pid: number): boolean {
   try {
     process.kill(pid, 0);
     return true;

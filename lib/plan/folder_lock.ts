@@ -12,6 +12,7 @@ import { hostname } from "node:os";
 import { join } from "node:path";
 import process from "node:process";
 import { QuiverError } from "../errors.ts";
+import { processRuns } from "../io/atomic_write.ts";
 
 /** The lock file's name inside the output folder. */
 export const LOCK_FILE = ".quiver-lock.json";
@@ -29,15 +30,6 @@ export interface FolderLock {
   readonly stale?: LockInfo;
   /** Removes the lock file. */
   release(): Promise<void>;
-}
-
-function runs(pid: number): boolean {
-  try {
-    process.kill(pid, 0);
-    return true;
-  } catch (error) {
-    return (error as { code?: string }).code === "EPERM";
-  }
 }
 
 /**
@@ -82,7 +74,7 @@ export async function acquireFolderLock(folder: string): Promise<FolderLock> {
     } catch {
       holder = undefined; // unreadable: a write killed half-way; treat as stale
     }
-    if (holder !== undefined && (holder.host !== mine.host || runs(holder.pid))) {
+    if (holder !== undefined && (holder.host !== mine.host || processRuns(holder.pid))) {
       throw new QuiverError(
         `another quiver run (process ${holder.pid} on ${holder.host}, started ${holder.started}) is writing this folder; wait for it to finish${
           holder.host !== mine.host ? `, or remove ${LOCK_FILE} if that run is gone` : ""
