@@ -133,6 +133,12 @@ export function findHits(force: Float64Array, options: HitOptions): HitDetection
   const s = force.map((v) => polarity * (v - baseline));
   const sigma = 1.4826 * medianOf(s.map(Math.abs));
   const trigger = options.trigger ?? Math.max(0.05 * Math.max(max, -min), 5 * sigma);
+  if (options.trigger === undefined && !(trigger > 0)) {
+    // A derived level of 0 is a fact of the data (a flat force channel), not of the options.
+    throw new QuiverError(
+      "the force channel is flat: nothing rises above its baseline to trigger on",
+    );
+  }
   if (!(trigger > 0) || !Number.isFinite(trigger)) {
     throw new RangeError(`trigger level must be a positive number, got ${trigger}`);
   }

@@ -138,4 +138,10 @@ describe("hammer test", () => {
       }
     }
   });
+
+  test("a flat force channel is bad data (exit 1 on the command line), not a usage error", () => {
+    // A disconnected hammer: every sample 0. Nothing to trigger on; the fault is the data's.
+    expect(() => findHits(new Float64Array(4096), { pretriggerSamples: 10 })).toThrow(QuiverError);
+    expect(() => findHits(new Float64Array(4096), { pretriggerSamples: 10 })).toThrow(/flat/);
+  });
 });
