@@ -213,7 +213,11 @@ function fftBandPowers(estimate: SpectralEstimate, plan: BandPlan): Float64Array
     overlap_samples: estimate.overlapSamples,
   });
   return estimate.auto.map((density) =>
-    bandPowersFromDensity(estimate.frequencies, density, estimate.df, bands, weighting).power
+    bandPowersFromDensity(
+      { frequencies: estimate.frequencies, density, df: estimate.df },
+      bands,
+      weighting,
+    ).power
   );
 }
 

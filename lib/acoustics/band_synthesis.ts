@@ -28,17 +28,23 @@ export interface BandPowers {
  * import { bandPowersFromDensity } from "./band_synthesis.ts";
  * // White density 2 unit²/Hz: the 1 kHz third-octave (231.6 Hz wide) holds 463.2 unit².
  * const f = new Float64Array(4001).map((_, k) => k);
- * const p = bandPowersFromDensity(f, f.map(() => 2), 1, [band(0, 3)], "Z");
+ * const p = bandPowersFromDensity({ frequencies: f, density: f.map(() => 2), df: 1 }, [band(0, 3)], "Z");
  * if (Math.abs(p.power[0] - 2 * (band(0, 3).upperHz - band(0, 3).lowerHz)) > 1e-9) throw new Error();
  * ```
  */
 export function bandPowersFromDensity(
-  frequencies: Float64Array,
-  density: Float64Array,
-  df: number,
+  spectrum: {
+    /** Line frequencies, Hz, evenly spaced from 0. */
+    frequencies: Float64Array;
+    /** One-sided density per line, unit²/Hz. */
+    density: Float64Array;
+    /** Line spacing, Hz. */
+    df: number;
+  },
   bands: readonly Band[],
   weighting: Weighting,
 ): BandPowers {
+  const { frequencies, density, df } = spectrum;
   const power = new Float64Array(bands.length);
   const lines = new Float64Array(bands.map((b) => (b.upperHz - b.lowerHz) / df));
   const gain = frequencies.map((f) => weightingPowerGain(weighting, f));

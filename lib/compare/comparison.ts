@@ -94,7 +94,7 @@ export function compareCurves(
   };
   const [tf, tm] = inRange(test);
   const [sf, sm] = inRange(simulation);
-  const peaks = matchPeaks(tf, tm, sf, sm, {
+  const peaks = matchPeaks({ frequencies: tf, magnitude: tm }, { frequencies: sf, magnitude: sm }, {
     prominenceDb: options.prominenceDb,
     dbPerDecade: perDecade,
   });

@@ -5,7 +5,7 @@
  * @example
  * ```ts
  * import { checkValue } from "./mod.ts";
- * const r = checkValue("first_mode", "first mode", 41.2, "min", 38, "Hz");
+ * const r = checkValue({ id: "first_mode", description: "first mode", value: 41.2, kind: "min", limit: 38, unit: "Hz" });
  * if (!r.pass || Math.abs(r.margin - 3.2) > 1e-12) throw new Error();
  * ```
  *

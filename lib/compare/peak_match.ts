@@ -42,17 +42,17 @@ export interface PeakMatchOptions {
  * import { matchPeaks } from "./peak_match.ts";
  * const f = new Float64Array(400).map((_, k) => k * 0.25);
  * const peak = (f0: number) => f.map((v) => 1 / Math.hypot(1 - (v / f0) ** 2, 0.04 * v / f0));
- * const [m] = matchPeaks(f, peak(50), f, peak(48.5));
+ * const [m] = matchPeaks({ frequencies: f, magnitude: peak(50) }, { frequencies: f, magnitude: peak(48.5) });
  * if (Math.abs(m.shift_percent + 3) > 0.05) throw new Error();
  * ```
  */
 export function matchPeaks(
-  testFrequencies: Float64Array,
-  testMagnitude: Float64Array,
-  simFrequencies: Float64Array,
-  simMagnitude: Float64Array,
+  testCurve: { frequencies: Float64Array; magnitude: Float64Array },
+  simulation: { frequencies: Float64Array; magnitude: Float64Array },
   options: PeakMatchOptions = {},
 ): PeakMatch[] {
+  const { frequencies: testFrequencies, magnitude: testMagnitude } = testCurve;
+  const { frequencies: simFrequencies, magnitude: simMagnitude } = simulation;
   const tolerance = (options.tolerancePercent ?? 15) / 100;
   const perDecade = options.dbPerDecade ?? 20;
   const locate = (f: Float64Array, m: Float64Array) =>

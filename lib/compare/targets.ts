@@ -43,18 +43,25 @@ export interface TargetResult {
  * @example
  * ```ts
  * import { checkValue } from "./targets.ts";
- * const r = checkValue("first_mode", "first mode", 41.2, "min", 38, "Hz");
+ * const r = checkValue({ id: "first_mode", description: "first mode", value: 41.2, kind: "min", limit: 38, unit: "Hz" });
  * if (!r.pass || Math.abs(r.margin - 3.2) > 1e-12) throw new Error();
  * ```
  */
-export function checkValue(
-  id: string,
-  description: string,
-  value: number,
-  kind: "min" | "max",
-  limit: number,
-  unit: string,
-): TargetResult {
+export function checkValue(target: {
+  /** The target's id. */
+  id: string;
+  /** What is checked, in words. */
+  description: string;
+  /** The result's value. */
+  value: number;
+  /** `min`: the value must reach the limit; `max`: it must not exceed it. */
+  kind: "min" | "max";
+  /** The limit. */
+  limit: number;
+  /** Unit of value and limit. */
+  unit: string;
+}): TargetResult {
+  const { id, description, value, kind, limit, unit } = target;
   if (!Number.isFinite(value)) {
     throw new RangeError(`the value of "${id}" is ${value}, not a finite number: not checked`);
   }
@@ -96,19 +103,28 @@ export function limitAt(
  * @example
  * ```ts
  * import { checkCurve } from "./targets.ts";
- * const r = checkCurve("cabin", "cabin thirds", new Float64Array([100, 200]), new Float64Array([58, 61]), "max", [[50, 62], [400, 62]], "dB");
+ * const r = checkCurve({ id: "cabin", description: "cabin thirds", frequencies: new Float64Array([100, 200]),
+ *   levels: new Float64Array([58, 61]), kind: "max", points: [[50, 62], [400, 62]], unit: "dB" });
  * if (!r.pass || r.atHz !== 200 || Math.abs(r.margin - 1) > 1e-12) throw new Error();
  * ```
  */
-export function checkCurve(
-  id: string,
-  description: string,
-  frequencies: Float64Array,
-  levels: Float64Array,
-  kind: "min" | "max",
-  points: readonly (readonly [number, number])[],
-  unit: string,
-): TargetResult {
+export function checkCurve(target: {
+  /** The target's id. */
+  id: string;
+  /** What is checked, in words. */
+  description: string;
+  /** The result's frequencies (or band centres, or rpm). */
+  frequencies: Float64Array;
+  /** The result's levels on those lines. */
+  levels: Float64Array;
+  /** `max`: the levels must stay under the curve; `min`: above it. */
+  kind: "min" | "max";
+  /** The limit curve's (frequency, level) points, frequencies rising. */
+  points: readonly (readonly [number, number])[];
+  /** Unit of the levels. */
+  unit: string;
+}): TargetResult {
+  const { id, description, frequencies, levels, kind, points, unit } = target;
   for (let i = 1; i < points.length; i++) {
     if (!(points[i][0] > points[i - 1][0]) || !(points[i - 1][0] > 0)) {
       throw new RangeError(`the limit curve of "${id}" must have positive, increasing frequencies`);

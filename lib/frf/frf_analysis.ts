@@ -72,11 +72,18 @@ export interface FrfTableParts {
  */
 export function frfTableParts(
   estimate: SpectralEstimate,
-  input: { name: string; unit: string },
-  outputs: readonly { name: string; unit: string }[],
-  estimator: Estimator,
-  form: FrfForm | undefined,
+  channels: {
+    /** The input (reference) channel, the estimate's channel 0. */
+    input: { name: string; unit: string };
+    /** The responses, the estimate's channels 1…. */
+    outputs: readonly { name: string; unit: string }[];
+    /** The estimator. */
+    estimator: Estimator;
+    /** The form to convert to; undefined keeps the measured one. */
+    form: FrfForm | undefined;
+  },
 ): FrfTableParts {
+  const { input, outputs, estimator, form } = channels;
   const measured = outputs.map((o) => formOfResponseUnit(o.unit));
   const responses: ResponseFrf[] = outputs.map((output, i) => {
     const cross = estimate.cross[i];
@@ -234,7 +241,7 @@ function frfResult(
 ): FrfResult {
   const [input, ...outputs] = channels;
   const estimator = options.estimator ?? "h1";
-  const parts = frfTableParts(estimate, input, outputs, estimator, options.form);
+  const parts = frfTableParts(estimate, { input, outputs, estimator, form: options.form });
   const warnings = [
     ...(estimate.averages === 1 ? [SINGLE_AVERAGE_WARNING] : []),
     ...signalWarnings,

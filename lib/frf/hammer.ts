@@ -178,7 +178,12 @@ export function hammerFrf(recording: Recording, options: HammerOptions): HammerR
     accumulator.pushSegment(records);
   }
   const estimate = accumulator.finish();
-  const parts = frfTableParts(estimate, force, outputs, "h1", options.form);
+  const parts = frfTableParts(estimate, {
+    input: force,
+    outputs,
+    estimator: "h1",
+    form: options.form,
+  });
   const warnings = [
     ...(accepted.length === 1 ? [SINGLE_AVERAGE_WARNING] : []),
     ...channelsWarnings(outputs),

@@ -762,11 +762,17 @@ export function markOfRow(row: string, delimiter: CsvDelimiter): DecimalMark | u
  */
 export function parseCellText(
   cell: string,
-  mark: DecimalMark,
-  line: number,
-  column: number,
-  file?: string,
+  where: {
+    /** The file's decimal mark. */
+    mark: DecimalMark;
+    /** 1-based line and column, for the message. */
+    line: number;
+    column: number;
+    /** File name, for the message. */
+    file?: string;
+  },
 ): { value: number; decimals: number } {
+  const { mark, line, column, file } = where;
   const bytes = new TextEncoder().encode(cell);
   const m = mark.charCodeAt(0);
   const value = parseNumberBytes(bytes, 0, bytes.length, m);

@@ -111,13 +111,12 @@ export function csvRecordingLayout(
       given ?? (scan.delimiter === "," ? "." : markOfRow(first.text, scan.delimiter) ??
         markOfRow(row, scan.delimiter) ?? ".");
     const time = (row: { text: string; line: number }) =>
-      parseCellText(
-        cellOfRow(row.text, scan.delimiter, timeColumn),
-        markOf(row.text),
-        row.line,
-        timeColumn + 1,
+      parseCellText(cellOfRow(row.text, scan.delimiter, timeColumn), {
+        mark: markOf(row.text),
+        line: row.line,
+        column: timeColumn + 1,
         file,
-      );
+      });
     const t0 = time(first);
     const t1 = time(last);
     const total = t1.value - t0.value;

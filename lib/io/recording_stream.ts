@@ -220,7 +220,7 @@ async function openWavStream(
           for (let first = 0; first < frames; first += CHUNK_ROWS) {
             const count = Math.min(CHUNK_ROWS, frames - first);
             await h.read(bytes, 0, count * f.blockAlign, dataStart + first * f.blockAlign);
-            decodeWavFrames(view, 0, count, f, samples);
+            decodeWavFrames(view, { start: 0, count, format: f, out: samples });
             if (f.code === FORMAT_FLOAT) refuseNonFiniteSamples(samples, count, first, path);
             onChunk(selected.map((s, j) => {
               const d = samples[s].subarray(0, count);

@@ -148,13 +148,20 @@ export interface WavFormat {
  */
 export function decodeWavFrames(
   view: DataView,
-  start: number,
-  frames: number,
-  f: WavFormat,
-  out: readonly Float64Array[],
+  frames: {
+    /** Byte offset of the first frame in `view`. */
+    start: number;
+    /** Frames to decode. */
+    count: number;
+    /** The file's format. */
+    format: WavFormat;
+    /** One array per channel, each at least `count` long. */
+    out: readonly Float64Array[];
+  },
 ): void {
+  const { start, count, format: f, out } = frames;
   const bytesPerSample = f.bits / 8;
-  for (let i = 0; i < frames; i++) {
+  for (let i = 0; i < count; i++) {
     for (let c = 0; c < f.channels; c++) {
       const at = start + i * f.blockAlign + c * bytesPerSample;
       out[c][i] = readSample(view, at, f.code, f.bits);
@@ -205,7 +212,7 @@ function decodeFrames(
   file?: string,
 ): Recording {
   const data = Array.from({ length: f.channels }, () => new Float64Array(frames));
-  decodeWavFrames(view, start, frames, f, data);
+  decodeWavFrames(view, { start, count: frames, format: f, out: data });
   if (f.code === FORMAT_FLOAT) refuseNonFiniteSamples(data, frames, 0, file);
   return {
     rate: f.rate,

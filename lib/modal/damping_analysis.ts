@@ -171,7 +171,13 @@ function analyseChannel(
       ? e
       : undefined;
   const halfPowers: (HalfPowerEstimate | undefined)[] = peaks.map((p, i) =>
-    usable(halfPower(frequencies, channel.magnitude, p.index, limits[i].low, limits[i].high, power))
+    usable(
+      halfPower(frequencies, channel.magnitude, p.index, {
+        lowLimit: limits[i].low,
+        highLimit: limits[i].high,
+        power,
+      }),
+    )
   );
   return peaks.map((peak: Peak, i): ModeEstimate => {
     const flags: string[] = [];

@@ -102,10 +102,18 @@ export function halfPower(
   frequencies: Float64Array,
   magnitude: Float64Array,
   peakIndex: number,
-  lowLimit = 0,
-  highLimit = magnitude.length - 1,
-  power = 1,
+  options: {
+    /** Lowest line the search may reach. Default 0. */
+    lowLimit?: number;
+    /** Highest line the search may reach. Default the last. */
+    highLimit?: number;
+    /** The FRF form's power of jω (0 receptance, 1 mobility, 2 accelerance). Default 1. */
+    power?: number;
+  } = {},
 ): HalfPowerEstimate | undefined {
+  const lowLimit = options.lowLimit ?? 0;
+  const highLimit = options.highLimit ?? magnitude.length - 1;
+  const power = options.power ?? 1;
   const k = peakIndex;
   if (k <= lowLimit || k >= highLimit) return undefined;
   const inv = (i: number) => 1 / (magnitude[i] * magnitude[i]);

@@ -112,20 +112,27 @@ export async function evaluateTargets(
         const numbers = (values: (number | null)[]) =>
           Float64Array.from(values, (v) => typeof v === "number" ? v : NaN);
         outcomes.push({
-          ...checkCurve(
-            t.id,
+          ...checkCurve({
+            id: t.id,
             description,
-            numbers(json.columns[0].values),
-            numbers(column.values),
-            t.limit,
-            t.points,
-            t.unit || column.unit,
-          ),
+            frequencies: numbers(json.columns[0].values),
+            levels: numbers(column.values),
+            kind: t.limit,
+            points: t.points,
+            unit: t.unit || column.unit,
+          }),
           status: "checked",
         });
       } else {
         outcomes.push({
-          ...checkValue(t.id, description, quantityOf(t, json), t.type, t.value, t.unit),
+          ...checkValue({
+            id: t.id,
+            description,
+            value: quantityOf(t, json),
+            kind: t.type,
+            limit: t.value,
+            unit: t.unit,
+          }),
           status: "checked",
         });
       }

@@ -66,11 +66,25 @@ describe("FRAC", () => {
 
 describe("targets", () => {
   test("a minimum and a maximum value report pass or fail with the margin", () => {
-    expect(checkValue("m", "first mode", 36.5, "min", 38, "Hz")).toMatchObject({
+    expect(checkValue({
+      id: "m",
+      description: "first mode",
+      value: 36.5,
+      kind: "min",
+      limit: 38,
+      unit: "Hz",
+    })).toMatchObject({
       pass: false,
       margin: -1.5,
     });
-    expect(checkValue("l", "overall", 68, "max", 72, "dB(A)")).toMatchObject({
+    expect(checkValue({
+      id: "l",
+      description: "overall",
+      value: 68,
+      kind: "max",
+      limit: 72,
+      unit: "dB(A)",
+    })).toMatchObject({
       pass: true,
       margin: 4,
     });
@@ -78,10 +92,15 @@ describe("targets", () => {
 
   test("a limit curve is interpolated in log-frequency and the worst line reported", () => {
     const f = new Float64Array([100, 316.2278, 1000]);
-    const r = checkCurve("c", "cabin", f, new Float64Array([60, 56, 49]), "max", [[100, 60], [
-      1000,
-      50,
-    ]], "dB");
+    const r = checkCurve({
+      id: "c",
+      description: "cabin",
+      frequencies: f,
+      levels: new Float64Array([60, 56, 49]),
+      kind: "max",
+      points: [[100, 60], [1000, 50]],
+      unit: "dB",
+    });
     // At √(100·1000) ≈ 316 Hz the limit is 55 dB: the curve's 56 dB exceeds it by 1 dB.
     expect(r.pass).toBe(false);
     expect(r.atHz).toBeCloseTo(316.2278, 4);
