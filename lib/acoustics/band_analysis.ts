@@ -76,6 +76,17 @@ export const MIN_LINES_PER_BAND = 5;
  *
  * @throws {QuiverError} for unknown channels, units without a reference, or a
  * record shorter than the block; RangeError for bad options.
+ *
+ * @example
+ * ```ts
+ * import { bandLevels } from "./band_analysis.ts";
+ * // A 1 kHz tone of 1 Pa rms: 93.98 dB re 20 µPa in the 1 kHz one-third octave (ISO 1683).
+ * const data = new Float64Array(48000).map((_, i) => Math.SQRT2 * Math.sin(2 * Math.PI * 1000 * i / 48000));
+ * const r = await bandLevels({ rate: 48000, startTime: 0, channels: [{ name: "mic", unit: "Pa", data }] },
+ *   { weighting: "Z", minHz: 500, maxHz: 2000 });
+ * const row = r.table.columns[1].values.indexOf(1000);
+ * if (Math.abs(r.table.columns[4].values[row] - 93.98) > 0.1) throw new Error();
+ * ```
  */
 export async function bandLevels(
   source: RecordingSource,

@@ -48,6 +48,16 @@ export interface LevelResult {
  * Frequency- and time-weighted levels of the chosen channels.
  *
  * @throws {RangeError} for a rate too low for the weighting filter or a bad step.
+ *
+ * @example
+ * ```ts
+ * import { levelHistory } from "./level_analysis.ts";
+ * // 1 Pa rms at 250 Hz, Z-weighted, Leq per 0.5 s: 93.98 dB re 20 µPa (ISO 1683).
+ * const data = new Float64Array(8000 * 2).map((_, i) => Math.SQRT2 * Math.sin(2 * Math.PI * 250 * i / 8000));
+ * const { summary } = await levelHistory({ rate: 8000, startTime: 0, channels: [{ name: "mic", unit: "Pa", data }] },
+ *   { weighting: "Z", timeWeighting: "none", step: 0.5 });
+ * if (Math.abs(summary[0].leq - 93.98) > 0.01) throw new Error();
+ * ```
  */
 export async function levelHistory(
   source: RecordingSource,

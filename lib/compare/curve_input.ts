@@ -176,6 +176,16 @@ export function curveFromColumns(
  * Reads a curve from a quiver table (CSV + sidecar, or JSON) or a plain CSV.
  *
  * @throws {QuiverError} for unreadable or unsuitable files.
+ *
+ * @example
+ * ```ts
+ * import { readCurveFile } from "./curve_input.ts";
+ * import { mkdtemp, writeFile } from "node:fs/promises";
+ * const dir = await mkdtemp("/tmp/quiver-doc-");
+ * await writeFile(`${dir}/sim.csv`, "frequency_hz,mag [m/N],phase_deg\n10,2,0\n20,1,90\n");
+ * const c = await readCurveFile(`${dir}/sim.csv`);
+ * if (c.unit !== "m/N" || Math.abs(c.im![1] - 1) > 1e-12) throw new Error();
+ * ```
  */
 export async function readCurveFile(
   path: string,

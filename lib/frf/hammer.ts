@@ -87,6 +87,20 @@ function forceWindowSamples(size: number, length: number): Float64Array {
  *
  * @throws {QuiverError} when no hit is accepted or channels are unknown;
  * RangeError for impossible options.
+ *
+ * @example
+ * ```ts
+ * import { hammerFrf } from "./hammer.ts";
+ * // Four half-sine hits on a force channel; the response is 0.5 × the force (a pure gain).
+ * const rate = 4096, force = new Float64Array(4 * rate);
+ * for (const at of [0.5, 1.5, 2.5, 3.5]) {
+ *   for (let i = 0; i < 10; i++) force[Math.round(at * rate) + i] = 100 * Math.sin(Math.PI * (i + 0.5) / 10);
+ * }
+ * const r = hammerFrf({ rate, startTime: 0, channels: [{ name: "hammer", unit: "N", data: force },
+ *   { name: "tip", unit: "m/s^2", data: force.map((v) => 0.5 * v) }] }, { force: "hammer", outputs: ["tip"] });
+ * const mag = r.table.columns.find((c) => c.name === "tip_mag")!.values;
+ * if (r.table.metadata.averages !== 4 || Math.abs(mag[10] - 0.5) > 1e-9) throw new Error();
+ * ```
  */
 export function hammerFrf(recording: Recording, options: HammerOptions): HammerResult {
   if (options.outputs.length === 0) throw new RangeError("name at least one response channel");

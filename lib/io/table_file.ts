@@ -95,6 +95,19 @@ export async function writeCsvPair(
  *
  * @throws {QuiverError} when the sidecar is not valid, does not carry the
  * CSV's hash, or does not match the CSV's bytes or header.
+ *
+ * @example
+ * ```ts
+ * import { readSidecar, writeCsvPair } from "./table_file.ts";
+ * import { mkdtemp, readFile, writeFile } from "node:fs/promises";
+ * const dir = await mkdtemp("/tmp/quiver-doc-");
+ * const columns = [{ name: "frequency_hz", unit: "" }, { name: "a", unit: "V" }];
+ * await writeCsvPair(`${dir}/t.csv`, "frequency_hz,a [V]\n0,1\n", columns, { kind: "rms" });
+ * await writeFile(`${dir}/t.csv`, "frequency_hz,a [V]\n0,2\n"); // the CSV changed: the pair no longer holds
+ * let refused = false;
+ * try { await readSidecar(`${dir}/t.csv`, await readFile(`${dir}/t.csv`), columns); } catch { refused = true; }
+ * if (!refused) throw new Error();
+ * ```
  */
 export async function readSidecar(
   path: string,

@@ -203,6 +203,16 @@ async function readText(path: string): Promise<string | undefined> {
  * there is one.
  *
  * @throws {QuiverError} for unreadable or malformed files.
+ *
+ * @example
+ * ```ts
+ * import { readFrfFile } from "./frf_input.ts";
+ * import { mkdtemp, writeFile } from "node:fs/promises";
+ * const dir = await mkdtemp("/tmp/quiver-doc-");
+ * await writeFile(`${dir}/solver.csv`, "frequency_hz,re [m/N],im [m/N]\n1,0.5,0\n2,0,-1\n");
+ * const data = await readFrfFile(`${dir}/solver.csv`);
+ * if (data.channels[0].magnitude[1] !== 1 || data.channels[0].form !== "receptance") throw new Error();
+ * ```
  */
 export async function readFrfFile(path: string, options: CsvTableOptions = {}): Promise<FrfData> {
   const text = await readText(path);

@@ -163,6 +163,24 @@ function rmsOver(data: Float64Array, first: number, last: number): number {
  *
  * @throws {QuiverError} when the rpm never spans the requested range, or no
  * rpm step has a whole block inside the record; RangeError for bad options.
+ *
+ * @example
+ * ```ts
+ * import { trackOrders } from "./order_tracking.ts";
+ * // A channel that holds rpm (1200 → 2400 in 10 s) and order 2 of 1 rms.
+ * const rate = 4096, n = 10 * rate;
+ * let angle = 0;
+ * const rpm = new Float64Array(n), acc = new Float64Array(n);
+ * for (let i = 0; i < n; i++) {
+ *   rpm[i] = 1200 + 120 * i / rate;
+ *   acc[i] = Math.SQRT2 * Math.sin(2 * Math.PI * 2 * angle);
+ *   angle += rpm[i] / 60 / rate;
+ * }
+ * const { cuts } = trackOrders({ rate, startTime: 0, channels: [{ name: "speed", unit: "rpm", data: rpm },
+ *   { name: "acc", unit: "m/s^2", data: acc }] }, { rpmChannel: "speed", channels: ["acc"], orders: [2], rpmStep: 200 });
+ * const o2 = cuts.columns.find((c) => c.name === "acc_order2")!.values;
+ * if (o2.some((v) => Math.abs(v - 1) > 0.05)) throw new Error();
+ * ```
  */
 export function trackOrders(recording: Recording, options: OrderOptions): OrderResult {
   if (options.channels.length === 0) throw new RangeError("name at least one response channel");
