@@ -23,6 +23,15 @@ export interface Complex {
 /**
  * A cascade with its state, for filtering a signal chunk by chunk: the
  * chunks come out exactly as the whole signal would.
+ *
+ * @example
+ * ```ts
+ * import { CascadeFilter } from "./biquad.ts";
+ * // y[n] = 0.5·x[n] + 0.5·x[n−1], fed in two chunks: the state carries over.
+ * const f = new CascadeFilter([{ b0: 0.5, b1: 0.5, b2: 0, a1: 0, a2: 0 }]);
+ * const a = f.process(new Float64Array([2, 4])), b = f.process(new Float64Array([6]));
+ * if (a[0] !== 1 || a[1] !== 3 || b[0] !== 5) throw new Error();
+ * ```
  */
 export class CascadeFilter {
   readonly #sections: readonly Biquad[];

@@ -164,6 +164,17 @@ export function filterBankPowers(
  * whatever the record's length, and exactly the numbers of one pass over the
  * whole record (every filter keeps its state between chunks, and halving the
  * rate keeps the samples of even index of the whole record).
+ *
+ * @example
+ * ```ts
+ * import { FilterBankMeter } from "./filter_bank.ts";
+ * import { band } from "./bands.ts";
+ * // A 1 kHz tone of 1 rms fed in chunks: mean square 1 in the 1 kHz one-third octave.
+ * const x = new Float64Array(48000).map((_, i) => Math.SQRT2 * Math.sin(2 * Math.PI * 1000 * i / 48000));
+ * const meter = new FilterBankMeter(48000, x.length, [band(0, 3)]);
+ * for (let at = 0; at < x.length; at += 4096) meter.push(x.slice(at, at + 4096));
+ * if (Math.abs(meter.finish().power[0] - 1) > 0.01) throw new Error();
+ * ```
  */
 export class FilterBankMeter {
   readonly #levels: {

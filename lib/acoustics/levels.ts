@@ -59,7 +59,13 @@ export function levelDb(meanSquare: number, reference: number): number {
   return 10 * Math.log10(meanSquare / (reference * reference));
 }
 
-/** The label of a level unit, e.g. `dB(A) re 2e-05 Pa`. */
+/** The label of a level unit, e.g. `dB(A) re 2e-05 Pa`. *
+ * @example
+ * ```ts
+ * import { levelUnit } from "./levels.ts";
+ * if (levelUnit("A", 2e-5, "Pa") !== "dB(A) re 0.00002 Pa" || levelUnit("Z", 1, "V") !== "dB re 1 V") throw new Error();
+ * ```
+ */
 export function levelUnit(weighting: string, reference: number, unit: string): string {
   return `dB${weighting === "Z" ? "" : `(${weighting})`} re ${reference} ${unit}`;
 }

@@ -38,6 +38,16 @@ export function parseTimeWeighting(name: string): TimeWeighting {
  * of every `step` samples (for `none`: the mean square over each step), and
  * the mean square of the whole signal for Leq. Feeding the whole signal at
  * once or in chunks gives the same readings.
+ *
+ * @example
+ * ```ts
+ * import { TimeWeightedMeter } from "./time_weighting.ts";
+ * // Leq per step ("none"): a constant 2 has mean square 4 in every step.
+ * const m = new TimeWeightedMeter(100, "none", 50);
+ * m.push(new Float64Array(100).fill(2));
+ * const r = m.finish();
+ * if (r.readings.length !== 2 || r.readings[1] !== 4 || r.meanSquare !== 4) throw new Error();
+ * ```
  */
 export class TimeWeightedMeter {
   readonly #weighting: TimeWeighting;

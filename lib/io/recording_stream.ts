@@ -264,6 +264,19 @@ export async function readChecked(
  *
  * @throws {QuiverError} for a missing file, a bad header or set-up, or (CSV)
  * any fault pass 1 finds.
+ *
+ * @example
+ * ```ts
+ * import { openRecordingStream } from "./recording_stream.ts";
+ * import { mkdtemp, writeFile } from "node:fs/promises";
+ * const dir = await mkdtemp("/tmp/quiver-doc-");
+ * await writeFile(`${dir}/r.csv`, "time_s,acc [g]\n0,1\n0.001,2\n0.002,3\n");
+ * const s = await openRecordingStream(`${dir}/r.csv`);
+ * let sum = 0;
+ * await s.read([0], ([chunk]) => { for (const v of chunk) sum += v; });
+ * // Read in m/s^2: (1 + 2 + 3) g × 9.80665 (ISO 80000-3).
+ * if (s.rate !== 1000 || s.channels[0].unit !== "m/s^2" || Math.abs(sum - 6 * 9.80665) > 1e-12) throw new Error();
+ * ```
  */
 export async function openRecordingStream(
   path: string,

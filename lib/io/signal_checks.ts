@@ -157,7 +157,14 @@ export function channelWarnings(channel: Channel): string[] {
   return stats.warnings(channel);
 }
 
-/** Warnings for several channels. */
+/** Warnings for several channels. *
+ * @example
+ * ```ts
+ * import { channelsWarnings } from "./signal_checks.ts";
+ * const w = channelsWarnings([{ name: "dead", unit: "V", data: new Float64Array(10) }]);
+ * if (w.length !== 1 || !w[0].includes("constant")) throw new Error();
+ * ```
+ */
 export function channelsWarnings(channels: readonly Channel[]): string[] {
   return channels.flatMap(channelWarnings);
 }

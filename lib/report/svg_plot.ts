@@ -49,7 +49,13 @@ export interface LinePlot {
 
 const MARGIN = { top: 34, right: 18, bottom: 46, left: 70 };
 
-/** Escapes text for SVG/HTML. */
+/** Escapes text for SVG/HTML. *
+ * @example
+ * ```ts
+ * import { escapeXml } from "./svg_plot.ts";
+ * if (escapeXml("<b>&") !== "&lt;b&gt;&amp;" || escapeXml(5) !== "5" || escapeXml(null) !== "") throw new Error();
+ * ```
+ */
 export function escapeXml(text: unknown): string {
   // Any value from a file (a number, null, an object where a string was expected) is
   // turned into text first, so that nothing reaches the page unescaped.
