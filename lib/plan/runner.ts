@@ -295,6 +295,11 @@ function checkPlanOutputs(
       fail("report.file", `the ${FIGURES_FOLDER}/ folder holds the report's figures`);
     }
     claim(join(outDir, file), "the report", "report.file");
+    // The report's figures go into figures/: a link there must not lead out either.
+    const figure = join(outDir, FIGURES_FOLDER, "figure.svg");
+    if (!inside(figure)) {
+      fail("report", `${join(outDir, FIGURES_FOLDER)} leads outside the output folder ${outDir}`);
+    }
   }
   const base = dirname(planFile);
   const at = (p: string) => (isAbsolute(p) ? p : join(base, p));

@@ -71,6 +71,13 @@ describe("a plan cannot write outside its folder, over its inputs, or twice to o
     expect(await readdir(`${dir}/elsewhere`)).toEqual([]);
   });
 
+  test("a figures/ folder that is a link leading out of the output folder", async () => {
+    await mkdir(`${dir}/out7`);
+    await symlink(`${dir}/elsewhere`, `${dir}/out7/figures`);
+    await refused("figs", { ...base, report: {} }, `${dir}/out7`, /figures leads outside/);
+    expect(await readdir(`${dir}/elsewhere`)).toEqual([]);
+  });
+
   test("two steps that write one file (orders mo writes mo_rpm.json; a step is called mo_rpm)", async () => {
     const plan = {
       ...base,
