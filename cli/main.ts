@@ -9,6 +9,7 @@
  */
 import process from "node:process";
 import { toStderr } from "./terminal.ts";
+import { EXIT_DATA, EXIT_DONE, EXIT_INTERNAL, EXIT_USAGE } from "./exit_codes.ts";
 import { QuiverError } from "../lib/errors.ts";
 import { QUIVER_VERSION } from "../lib/version.ts";
 import * as bands from "./bands.ts";
@@ -65,25 +66,25 @@ export async function main(argv: readonly string[]): Promise<number> {
   const [name, ...rest] = argv;
   if (name === undefined || name === "--help" || name === "-h" || name === "help") {
     process.stdout.write(MAIN_HELP);
-    return name === undefined ? 2 : 0;
+    return name === undefined ? EXIT_USAGE : EXIT_DONE;
   }
   if (name === "--version" || name === "-V" || name === "version") {
     process.stdout.write(`quiver ${QUIVER_VERSION}\n`);
-    return 0;
+    return EXIT_DONE;
   }
   const command = COMMANDS[name];
   if (command === undefined) {
     toStderr(`quiver: unknown command "${name}"\n\n${MAIN_HELP}`);
-    return 2;
+    return EXIT_USAGE;
   }
   if (rest.includes("--help") || rest.includes("-h")) {
     process.stdout.write(command.help);
-    return 0;
+    return EXIT_DONE;
   }
   try {
     await command.run(rest);
     // A command that finished but must report failure (e.g. a campaign step) sets the exit code.
-    return typeof process.exitCode === "number" ? process.exitCode : 0;
+    return typeof process.exitCode === "number" ? process.exitCode : EXIT_DONE;
   } catch (error) {
     return report(error, name, debug);
   }
@@ -95,13 +96,13 @@ function report(error: unknown, command: string, debug: boolean): number {
   }
   if (error instanceof QuiverError) {
     toStderr(`quiver ${command}: ${error.message}\n`);
-    return error.kind === "usage" ? 2 : 1;
+    return error.kind === "usage" ? EXIT_USAGE : EXIT_DATA;
   }
   // Library functions throw RangeError for impossible parameters, which on
   // the command line come from options. Anything else is a bug of ours.
   if (error instanceof RangeError) {
     toStderr(`quiver ${command}: ${error.message}\n`);
-    return 2;
+    return EXIT_USAGE;
   }
   const message = error instanceof Error ? error.message : String(error);
   toStderr(
@@ -109,7 +110,7 @@ function report(error: unknown, command: string, debug: boolean): number {
       debug ? "" : " (run with --debug for the stack trace)"
     }\n`,
   );
-  return 3;
+  return EXIT_INTERNAL;
 }
 
 if (import.meta.main) {

@@ -39,19 +39,3 @@ export function nominalRate(rows: number, span: number, decimals: number): numbe
   }
   return measured;
 }
-
-/**
- * Decimals written in a plain decimal cell, Infinity when it uses an exponent.
- *
- * @example
- * ```ts
- * import { decimalsWritten } from "./time_axis.ts";
- * if (decimalsWritten("1.250") !== 3 || decimalsWritten("12") !== 0) throw new Error();
- * if (decimalsWritten("1e-3") !== Infinity) throw new Error();
- * ```
- */
-export function decimalsWritten(cell: string): number {
-  if (/[eE]/.test(cell)) return Infinity;
-  const dot = cell.indexOf(".");
-  return dot < 0 ? 0 : cell.trim().length - dot - 1;
-}
