@@ -42,6 +42,7 @@ the microphone sensitivity in mV/Pa, and writes it into the channel set-up.
   --out FILE           where to write the updated set-up (default: --setup's
                        file; without either, the set-up goes to stdout)
   --rate HZ            sample rate, for a CSV without a time column
+  --start S, --end S   use only the samples at times S_start <= t < S_end (default: all)
 
 A calibrator at 94 dB (1 Pa rms) and 1 kHz is common practice. quiver's
 levels are for engineering comparison, not certified measurements.
@@ -55,6 +56,8 @@ export const schema = z.strictObject({
   setup: z.string().min(1).optional(),
   out: z.string().min(1).optional(),
   rate: numberOption().pipe(z.number().positive("must be a positive number of Hz")).optional(),
+  start: numberOption().optional(),
+  end: numberOption().optional(),
 });
 
 const text = { type: "string" } as const;
@@ -67,6 +70,8 @@ export const options: OptionSpec = {
   setup: text,
   out: text,
   rate: text,
+  start: text,
+  end: text,
 };
 
 /** Runs the command. */
@@ -89,7 +94,11 @@ export async function run(argv: readonly string[]): Promise<void> {
   // The raw recording: the calibration must see volts, not an older sensitivity's output.
   const stream = await openRecordingStream(
     input,
-    values.rate !== undefined ? { rate: values.rate } : {},
+    {
+      ...(values.rate !== undefined ? { rate: values.rate } : {}),
+      ...(values.start !== undefined ? { start: values.start } : {}),
+      ...(values.end !== undefined ? { end: values.end } : {}),
+    },
   );
   const key = Object.entries(setup.channels).find(([, e]) => e.name === values.channel)?.[0] ??
     values.channel;

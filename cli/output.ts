@@ -74,8 +74,11 @@ export async function writeTable(
 export async function writeResult(
   table: Table<ColumnValues>,
   source: string,
-  values: { format?: TableFormat; out?: string },
+  values: { format?: TableFormat; out?: string; start?: number; end?: number },
 ): Promise<void> {
-  const traced = { ...table, metadata: { source, ...table.metadata } };
+  const slice = values.start !== undefined || values.end !== undefined
+    ? { slice_s: { start: values.start ?? null, end: values.end ?? null } }
+    : {};
+  const traced = { ...table, metadata: { source, ...slice, ...table.metadata } };
   await writeTable(traced, resolveFormat(values.format, values.out), values.out);
 }

@@ -12,6 +12,8 @@ import { inFileAsync, numberOption, type OptionSpec } from "./args.ts";
 export const RECORDING_OPTIONS: OptionSpec = {
   rate: { type: "string" },
   setup: { type: "string" },
+  start: { type: "string" },
+  end: { type: "string" },
   delimiter: { type: "string" },
   decimal: { type: "string" },
 };
@@ -20,6 +22,8 @@ export const RECORDING_OPTIONS: OptionSpec = {
 export const recordingOptionsShape = {
   rate: numberOption().pipe(z.number().positive("must be a positive number of Hz")).optional(),
   setup: z.string().optional(),
+  start: numberOption().optional(),
+  end: numberOption().optional(),
   delimiter: z.enum(["auto", "comma", "semicolon", "tab"]).optional(),
   decimal: z.enum(["auto", "point", "comma"]).optional(),
 };
@@ -28,6 +32,8 @@ export const recordingOptionsShape = {
 export const RECORDING_HELP = `Reading the recording:
   --rate HZ            sample rate, needed when the CSV has no time_s/time column
                        (checked against the column when it has one; WAV states its own)
+  --start S, --end S   analyse only the samples at times S_start <= t < S_end, in s on
+                       the recording's own time axis               (default: all)
   --setup FILE.json    channel set-up: units, sensitivities, roles (README.md,
                        "Channel set-up")
   --delimiter D        auto | comma | semicolon | tab            (default auto)
@@ -37,6 +43,8 @@ export const RECORDING_HELP = `Reading the recording:
 export function toReadOptions(values: {
   rate?: number;
   setup?: string;
+  start?: number;
+  end?: number;
   delimiter?: "auto" | "comma" | "semicolon" | "tab";
   decimal?: "auto" | "point" | "comma";
 }): ReadRecordingOptions {
@@ -45,6 +53,8 @@ export function toReadOptions(values: {
   return {
     ...(values.rate !== undefined ? { rate: values.rate } : {}),
     ...(values.setup !== undefined ? { setup: values.setup } : {}),
+    ...(values.start !== undefined ? { start: values.start } : {}),
+    ...(values.end !== undefined ? { end: values.end } : {}),
     delimiter: delimiters[values.delimiter ?? "auto"],
     decimal: decimals[values.decimal ?? "auto"],
   };

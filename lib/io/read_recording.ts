@@ -14,6 +14,10 @@ import { collectRecording, openRecordingStream } from "./recording_stream.ts";
 export interface ReadRecordingOptions extends Omit<CsvReadOptions, "file"> {
   /** Path of a channel set-up JSON file. Default: none. */
   setup?: string;
+  /** Start of the stretch to read, s on the recording's own time axis. Default: its start. */
+  start?: number;
+  /** End of the stretch to read (exclusive), s. Default: its end. */
+  end?: number;
 }
 
 /**

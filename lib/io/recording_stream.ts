@@ -15,6 +15,7 @@
  */
 import { open } from "node:fs/promises";
 import { QuiverError } from "../errors.ts";
+import { formatNumber } from "../format_number.ts";
 import { type ChannelTransform, parseChannelSetup, setupTransforms } from "./channel_setup.ts";
 import { CsvRowParser, CsvScanner } from "./csv_engine.ts";
 import { csvRecordingLayout, TimeStepCheck } from "./csv_recording.ts";
@@ -294,8 +295,68 @@ export async function openRecordingStream(
   } catch (error) {
     throw unreadable(path, error);
   }
-  if (looksLikeWav(magic)) return await openWavStream(path, options);
-  return await openCsvStream(path, options);
+  const stream = looksLikeWav(magic)
+    ? await openWavStream(path, options)
+    : await openCsvStream(path, options);
+  return options.start === undefined && options.end === undefined
+    ? stream
+    : sliceStream(stream, options.start, options.end, path);
+}
+
+/**
+ * The samples of `stream` whose times t = startTime + i/rate lie in
+ * [start, end): a time slice, read through the same chunks.
+ *
+ * @throws {QuiverError} (usage) for a slice that is empty or reaches outside
+ * the record, naming both.
+ *
+ * @example
+ * ```ts
+ * import { recordingSource, sliceStream } from "./recording_stream.ts";
+ * const data = new Float64Array(100).map((_, i) => i);
+ * const s = sliceStream(recordingSource({ rate: 10, startTime: 0, channels: [{ name: "a", unit: "V", data }] }), 2, 3.5);
+ * const seen: number[] = [];
+ * await s.read([0], ([c]) => seen.push(...c));
+ * if (s.length !== 15 || s.startTime !== 2 || seen[0] !== 20 || seen[14] !== 34) throw new Error();
+ * ```
+ */
+export function sliceStream(
+  stream: RecordingStream,
+  start: number | undefined,
+  end: number | undefined,
+  file?: string,
+): RecordingStream {
+  const { rate, startTime, length } = stream;
+  const recordEnd = startTime + length / rate;
+  const from = start ?? startTime, to = end ?? recordEnd;
+  const span = `the record spans ${formatNumber(startTime, 8)}–${formatNumber(recordEnd, 8)} s`;
+  const fail = (detail: string): never => {
+    throw new QuiverError(detail, { file }, "usage");
+  };
+  if (!(to > from)) fail(`the slice ${from}–${to} s is empty`);
+  // Half a sample of slack: times written to the file's precision still count as inside.
+  const slack = 0.5 / rate;
+  if (from < startTime - slack || to > recordEnd + slack) {
+    fail(`the slice ${from}–${to} s reaches outside the record: ${span}`);
+  }
+  const first = Math.max(0, Math.ceil((from - startTime) * rate - 1e-9));
+  const last = Math.min(length, Math.ceil((to - startTime) * rate - 1e-9)); // exclusive
+  if (last <= first) fail(`the slice ${from}–${to} s holds no sample: ${span}`);
+  return {
+    rate,
+    startTime: startTime + first / rate,
+    length: last - first,
+    channels: stream.channels,
+    async read(selected, onChunk) {
+      let at = 0; // index of the chunk's first sample in the whole record
+      await stream.read(selected, (chunk) => {
+        const n = chunk[0]?.length ?? 0;
+        const a = Math.max(first, at), b = Math.min(last, at + n);
+        if (b > a) onChunk(chunk.map((c) => c.subarray(a - at, b - at)));
+        at += n;
+      });
+    },
+  };
 }
 
 /** The usage error for a file that cannot be opened. */

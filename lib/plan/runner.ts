@@ -177,6 +177,11 @@ export function planSteps(
           inputs.push(at(rec.setup));
         }
         if (rec.rate !== undefined) argv.push("--rate", String(rec.rate));
+        // A slice of the recording; an analysis may narrow it with its own start/end options.
+        if (rec.start !== undefined && !("start" in a.options)) {
+          argv.push("--start", String(rec.start));
+        }
+        if (rec.end !== undefined && !("end" in a.options)) argv.push("--end", String(rec.end));
       }
       const outputs: Record<string, string> = { out: join(outDir, `${a.id}.json`) };
       if (a.command === "hammer") outputs["hits-out"] = join(outDir, `${a.id}_hits.csv`);

@@ -60,6 +60,9 @@ const recording = z.strictObject({
   file: z.string().min(1),
   setup: z.string().min(1).optional(),
   rate: z.number().positive().optional(),
+  /** A time slice of the recording, s on its own time axis, for every analysis of it. */
+  start: z.number().optional(),
+  end: z.number().optional(),
   description: z.string().optional(),
 });
 
