@@ -23,6 +23,7 @@ import * as orders from "./orders.ts";
 import * as reportCommand from "./report.ts";
 import * as runPlanCommand from "./run.ts";
 import * as spectrum from "./spectrum.ts";
+import * as spectrogramCommand from "./spectrogram.ts";
 
 interface Command {
   summary: string;
@@ -32,6 +33,7 @@ interface Command {
 
 const COMMANDS: Readonly<Record<string, Command>> = {
   spectrum,
+  spectrogram: spectrogramCommand,
   frf,
   hammer,
   damping,

@@ -24,5 +24,6 @@ export {
 } from "./spectral_core.ts";
 export { autoSpectrum, SPECTRUM_KINDS, type SpectrumKind, spectrumUnit } from "./spectrum_kinds.ts";
 export { averagedSpectrum, type AveragedSpectrumOptions } from "./averaged_spectrum.ts";
+export { spectrogram, type SpectrogramOptions } from "./spectrogram.ts";
 export { WINDOW_NAMES, windowGains, type WindowName, windowSamples } from "./windows.ts";
 export { DETREND_MODES, type DetrendMode } from "./detrend.ts";

@@ -64,6 +64,16 @@ export interface SpectralOptions {
    * wanted. Default none.
    */
   pairs?: readonly (readonly [number, number])[];
+  /**
+   * Frames for a spectrogram: after every `segments` segments the average of
+   * those segments is handed to `onFrame` (with the index of its first
+   * segment, counted from 0) and a new average starts. Default: none (one
+   * average of everything, from `finish`).
+   */
+  frames?: {
+    segments: number;
+    onFrame: (estimate: SpectralEstimate, firstSegment: number) => void;
+  };
 }
 
 /** One cross spectrum Gxy between reference channel x and response channel y. */
@@ -311,6 +321,8 @@ export class SpectralAccumulator {
   readonly #crossIm: Float64Array[];
   #segments = 0;
   #samplesPushed = 0;
+  #segmentsBefore = 0; // segments in frames already handed on
+  readonly #frames: SpectralOptions["frames"];
 
   /**
    * @param channelCount number of channels every chunk carries
@@ -325,6 +337,13 @@ export class SpectralAccumulator {
     }
     this.#o = resolveOptions(channelCount, options);
     this.#channelCount = channelCount;
+    if (
+      options.frames !== undefined &&
+      !(Number.isInteger(options.frames.segments) && options.frames.segments >= 1)
+    ) {
+      throw new RangeError(`a frame needs at least one segment, got ${options.frames.segments}`);
+    }
+    this.#frames = options.frames;
     const { block, rate } = this.#o;
     this.#plan = realFftPlan(block);
     this.#window = windowSamples(this.#o.window, block);
@@ -465,6 +484,12 @@ export class SpectralAccumulator {
       }
     }
     this.#segments++;
+    const frames = this.#frames;
+    if (frames !== undefined && this.#segments === frames.segments) {
+      frames.onFrame(this.#estimate(), this.#segmentsBefore);
+      this.#segmentsBefore += this.#segments;
+      this.#segments = 0; // the next segment starts a new average
+    }
   }
 
   /**
@@ -474,7 +499,7 @@ export class SpectralAccumulator {
    */
   finish(): SpectralEstimate {
     const o = this.#o;
-    if (this.#segments === 0) {
+    if (this.#segments === 0 && this.#segmentsBefore === 0) {
       const n = this.#samplesPushed;
       throw new QuiverError(
         `a block of ${o.block} samples (${
@@ -484,6 +509,12 @@ export class SpectralAccumulator {
         } s); choose a smaller block or a coarser resolution`,
       );
     }
+    return this.#estimate();
+  }
+
+  /** The average of the segments since the start or the last frame. */
+  #estimate(): SpectralEstimate {
+    const o = this.#o;
     const divisor = o.average === "linear" ? this.#segments : 1;
     const div = (a: Float64Array) => divisor === 1 ? a : a.map((v) => v / divisor);
     const frequencies = new Float64Array(this.#plan.lines).map((_, k) => k * o.rate / o.block);
