@@ -14,6 +14,7 @@ import * as hammer from "./hammer.ts";
 import * as level from "./level.ts";
 import * as orders from "./orders.ts";
 import * as spectrum from "./spectrum.ts";
+import * as spectrogram from "./spectrogram.ts";
 import type { z } from "npm:zod@4.6.7";
 
 interface CommandModule {
@@ -36,5 +37,6 @@ export const PLAN_COMMAND_TABLE: Readonly<Record<string, PlanCommand>> = {
   bands: asPlanCommand(bands),
   level: asPlanCommand(level),
   orders: asPlanCommand(orders),
+  spectrogram: asPlanCommand(spectrogram),
   compare: asPlanCommand(compare as unknown as CommandModule),
 };

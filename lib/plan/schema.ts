@@ -46,6 +46,7 @@ export const PLAN_COMMANDS = [
   "bands",
   "level",
   "orders",
+  "spectrogram",
 ] as const;
 
 const id = z.string().regex(/^[A-Za-z0-9_-]+$/, "ids use letters, digits, _ and - only");

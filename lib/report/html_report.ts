@@ -32,7 +32,9 @@ interface Section {
   readonly html?: string;
 }
 
-const numbers = (c: { values: (number | string)[] }) => c.values.map(Number);
+// null in a result (a value that was not finite, e.g. −∞ dB) is NaN, never 0: plots skip it.
+const numbers = (c: { values: (number | string | null)[] }) =>
+  c.values.map((v) => (v === null ? NaN : Number(v)));
 const withUnit = (label: string, unit: string) => (unit === "" ? label : `${label} [${unit}]`);
 
 async function readJson(path: string): Promise<ResultJson | undefined> {
@@ -158,6 +160,38 @@ function levelFigures(id: string, title: string, r: ResultJson): Figure[] {
       series: r.columns.slice(1).map((c) => ({ name: c.name, x: t, y: numbers(c) })),
     }),
   }];
+}
+
+/** One colour map per channel of a tidy spectrogram: time across, frequency up, level as colour. */
+function spectrogramFigures(id: string, title: string, r: ResultJson): Figure[] {
+  const time = numbers(r.columns[0]);
+  const frequency = numbers(r.columns[1]);
+  const lines = time.lastIndexOf(time[0]) + 1; // rows of the first frame
+  const frames = lines === 0 ? 0 : time.length / lines;
+  const x = Array.from({ length: frames }, (_, j) => time[j * lines]);
+  const y = frequency.slice(0, lines);
+  const amplitude = r.metadata.kind === "rms" || r.metadata.kind === "peak";
+  return r.columns.slice(2).map((c) => {
+    const v = numbers(c);
+    const inDb = r.metadata.db === true;
+    const z = x.map((_, j) =>
+      v.slice(j * lines, (j + 1) * lines).map((value) =>
+        inDb ? value : (amplitude ? 20 : 10) * Math.log10(value)
+      )
+    );
+    return {
+      name: `${id}_${c.name}_spectrogram`,
+      svg: heatMap({
+        title: `${title}: ${c.name}`,
+        xLabel: "Time [s]",
+        yLabel: "Frequency [Hz]",
+        zLabel: inDb ? c.unit : `dB re 1 ${c.unit}`,
+        x,
+        y,
+        z,
+      }),
+    };
+  });
 }
 
 async function orderFigures(
@@ -371,6 +405,9 @@ export async function writeReport(outDir: string, manifest: Manifest, plan: Plan
       }
       case "level":
         sections.push({ heading: title, note, figures: levelFigures(step.id, title, r) });
+        break;
+      case "spectrogram":
+        sections.push({ heading: title, note, figures: spectrogramFigures(step.id, title, r) });
         break;
       case "orders":
         sections.push({

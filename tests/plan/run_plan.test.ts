@@ -32,7 +32,7 @@ describe("quiver run", () => {
     ],
     [
       "an unknown analysis",
-      (p) => ((p.analyses as Record<string, unknown>[])[0].command = "spectrogram"),
+      (p) => ((p.analyses as Record<string, unknown>[])[0].command = "no_such_analysis"),
       /plan key analyses\[0\]\.command/,
     ],
     [
@@ -66,10 +66,10 @@ describe("quiver run", () => {
     async () => {
       const r = runQuiver(["run", `${dir}/tamarack_b2_plan.json`, "--out-dir", `${dir}/out`]);
       expect(r.code).toBe(0);
-      expect(r.stderr).toMatch(/\[7\/7\] compare bracket_vs_sim: ok/);
+      expect(r.stderr).toMatch(/\[8\/8\] compare bracket_vs_sim: ok/);
       const manifest = JSON.parse(await readFile(`${dir}/out/manifest.json`, "utf8"));
       expect(manifest.status).toBe("ok");
-      expect(manifest.steps).toHaveLength(7);
+      expect(manifest.steps).toHaveLength(8);
       const hammer = manifest.steps.find((s: { id: string }) => s.id === "bracket_frf");
       expect(hammer.inputs[0].sha256).toMatch(/^[0-9a-f]{64}$/);
       expect(hammer.outputs["hits-out"].path).toBe("bracket_frf_hits.csv");
@@ -81,6 +81,10 @@ describe("quiver run", () => {
       expect((html.match(/<svg /g) ?? []).length).toBeGreaterThanOrEqual(6);
       expect(html).not.toMatch(/(src|href)="https?:/);
       expect(existsSync(`${dir}/out/figures/bracket_vs_sim_overlay.svg`)).toBe(true);
+      // The cabin spectrogram, A-weighted in dB, as a colour map.
+      expect(existsSync(`${dir}/out/figures/cabin_spectrogram_driver_ear_spectrogram.svg`)).toBe(
+        true,
+      );
     },
   );
 
@@ -97,7 +101,7 @@ describe("quiver run", () => {
       const orders = manifest.steps.find((s: { id: string }) => s.id === "mount_orders");
       expect(orders.status).toBe("failed");
       expect(orders.error).toMatch(/broken\.csv:3: row has 2 fields/);
-      expect(manifest.steps.filter((s: { status: string }) => s.status === "ok")).toHaveLength(6);
+      expect(manifest.steps.filter((s: { status: string }) => s.status === "ok")).toHaveLength(7);
     },
   );
 });
