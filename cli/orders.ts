@@ -5,6 +5,7 @@
  */
 import { toStderr } from "./terminal.ts";
 import { z } from "npm:zod@4.6.7";
+import { WEIGHTINGS } from "../lib/acoustics/weighting.ts";
 import { ORDER_METHODS, trackOrders } from "../lib/orders/order_tracking.ts";
 import { collectRecording, openRecordingStream } from "../lib/io/recording_stream.ts";
 import { channelIndices } from "../lib/io/recording.ts";
@@ -53,6 +54,11 @@ Analysis:
                        revolutions; orders stay on their lines (default; for
                        real run-ups) | time: time blocks at each rpm step, order
                        k at k*rpm/60 Hz (fast sweeps smear orders; for slow ones)
+  --weighting W        A | C | Z: each cut weighted at its own frequency k*rpm/60 (IEC
+                       61672-1); the overall then is the energy of the weighted
+                       spectrum of each block                        (default Z)
+  --db                 cuts and overall in dB re the unit's ISO 1683 reference
+  --reference R        level reference for --db
   --amplitude A        rms | peak, for the cuts and the map (default rms);
                        the overall is always RMS
   --revolutions R      angle: revolutions per block; order resolution 1/R (default 16)
@@ -95,6 +101,9 @@ export const schema = z.strictObject({
   "rpm-step": positive("rpm").optional(),
   method: z.enum(ORDER_METHODS).optional(),
   amplitude: z.enum(["rms", "peak"]).optional(),
+  weighting: z.enum(WEIGHTINGS).optional(),
+  db: z.boolean().optional(),
+  reference: numberOption().pipe(z.number().positive("must be a positive number")).optional(),
   revolutions: integerOption().optional(),
   "samples-per-rev": integerOption().optional(),
   block: integerOption().optional(),
@@ -122,6 +131,9 @@ export const options: OptionSpec = {
   "rpm-step": text,
   method: text,
   amplitude: text,
+  weighting: text,
+  db: { type: "boolean" },
+  reference: text,
   revolutions: text,
   "samples-per-rev": text,
   block: text,
@@ -166,6 +178,9 @@ export async function run(argv: readonly string[]): Promise<void> {
       rpmStep: values["rpm-step"],
       method: values.method,
       amplitude: values.amplitude,
+      weighting: values.weighting,
+      db: values.db,
+      reference: values.reference,
       revolutions: values.revolutions,
       samplesPerRev: values["samples-per-rev"],
       block: values.block,

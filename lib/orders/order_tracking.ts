@@ -34,6 +34,8 @@ import { type Channel, type Recording, selectChannels } from "../io/recording.ts
 import type { Table, TableColumn } from "../io/table.ts";
 import { SpectralAccumulator } from "../dsp/spectral_core.ts";
 import { autoSpectrum } from "../dsp/spectrum_kinds.ts";
+import { levelReference, levelUnit } from "../acoustics/levels.ts";
+import { type Weighting, weightingPowerGain } from "../acoustics/weighting.ts";
 import { channelsWarnings } from "../io/signal_checks.ts";
 import { inverseAngle, resampleToAngle } from "./angle_resample.ts";
 import { motionFromPulses, motionFromRpm, type ShaftMotion, tachoPulses } from "./tacho.ts";
@@ -76,6 +78,17 @@ export interface OrderOptions {
   samplesPerRev?: number;
   /** time method: samples per block. Default: the power of two giving ¼-order resolution at the lowest rpm. */
   block?: number;
+  /**
+   * Frequency weighting (IEC 61672-1): each cut is weighted at its own
+   * frequency k·rpm/60, and the overall becomes the energy of the weighted
+   * spectrum of the same block. Default `"Z"`: no weighting, and the overall
+   * is the RMS of the time data over the block's stretch.
+   */
+  weighting?: Weighting;
+  /** Cuts and overall in dB re the unit's ISO 1683 reference (or `reference`). Default false. */
+  db?: boolean;
+  /** Level reference for `db`. Default: from the unit (ISO 1683). */
+  reference?: number;
 }
 
 /** Order cuts, rpm profile, map and warnings. */
@@ -191,6 +204,8 @@ export function trackOrders(recording: Recording, options: OrderOptions): OrderR
   const method = options.method ?? "angle";
   const amplitude = options.amplitude ?? "rms";
   const amplitudeFactor = amplitude === "peak" ? Math.SQRT2 : 1;
+  const weighting = options.weighting ?? "Z";
+  const db = options.db ?? false;
   const channels = selectChannels(recording, options.channels);
   const { motion, notes } = motionOf(recording, options);
   const warnings = [...notes, ...channelsWarnings(channels)];
@@ -285,6 +300,7 @@ export function trackOrders(recording: Recording, options: OrderOptions): OrderR
     const estimate = accumulator.finish();
     lineSpacing = estimate.df;
     lines = estimate.frequencies.length;
+    const weightAt = (frequency: number) => Math.sqrt(weightingPowerGain(weighting, frequency));
     const cut = channels.map((_, c) =>
       orders.map((k) => {
         const centreLine = method === "angle" ? k * revolutions : (k * r) / 60 / estimate.df;
@@ -294,11 +310,22 @@ export function trackOrders(recording: Recording, options: OrderOptions): OrderR
           method === "angle" ? 1 : 2,
           estimate.df,
         );
-        return amplitudeFactor * Math.sqrt(energy);
+        return amplitudeFactor * Math.sqrt(energy) * weightAt((k * r) / 60);
       })
     );
-    // The overall level is an RMS whatever `amplitude` says: a broadband sum has no peak of its own.
-    const overall = channels.map((c) => rmsOver(c.data, first, last));
+    // The overall level is an RMS whatever `amplitude` says: a broadband sum has no peak of its
+    // own. Weighted, it is the energy of the weighted spectrum of the block (a line of the angle
+    // method at order j·Δ lies at j·Δ·rpm/60 Hz).
+    const overall = channels.map((ch, c) => {
+      if (weighting === "Z") return rmsOver(ch.data, first, last);
+      const density = estimate.auto[c];
+      let energy = 0;
+      for (let j = 1; j < density.length; j++) {
+        const hz = method === "angle" ? (j * estimate.df * r) / 60 : j * estimate.df;
+        energy += density[j] * estimate.df * weightingPowerGain(weighting, hz);
+      }
+      return Math.sqrt(energy);
+    });
     // The map's lines are scaled by the spectral core's one rule (spectrum kinds), as `spectrum` does.
     const line = channels.map((_, c) => autoSpectrum(estimate, c, amplitude));
     rows.push({ rpm: r, time: t, cut, overall, line });
@@ -320,20 +347,25 @@ export function trackOrders(recording: Recording, options: OrderOptions): OrderR
     unit: "rpm",
     values: new Float64Array(rows.map((x) => x.rpm)),
   }];
+  // In dB: 20·lg(amplitude / reference), the reference of the unit (ISO 1683) or given.
+  const references = db ? channels.map((c) => levelReference(c.unit, options.reference)) : [];
+  const level = (ci: number, v: number) => db ? 20 * Math.log10(v / references[ci]) : v;
+  const unitOf = (ci: number) =>
+    db ? levelUnit(weighting, references[ci], channels[ci].unit) : channels[ci].unit;
   channels.forEach((c, ci) => {
     orders.forEach((k, ki) => {
       columns.push({
         name: `${c.name}_order${orderLabel(k)}`,
-        unit: c.unit,
-        values: new Float64Array(rows.map((x) => x.cut[ci][ki])),
+        unit: unitOf(ci),
+        values: new Float64Array(rows.map((x) => level(ci, x.cut[ci][ki]))),
       });
     });
   });
   channels.forEach((c, ci) => {
     columns.push({
       name: `${c.name}_overall`,
-      unit: c.unit,
-      values: new Float64Array(rows.map((x) => x.overall[ci])),
+      unit: unitOf(ci),
+      values: new Float64Array(rows.map((x) => level(ci, x.overall[ci]))),
     });
   });
   // The map keeps orders (or frequencies) up to 0.45 of the block's sampling, where the data are valid.
@@ -368,6 +400,12 @@ export function trackOrders(recording: Recording, options: OrderOptions): OrderR
     analysis: "orders",
     method,
     amplitude,
+    weighting,
+    overall: weighting === "Z"
+      ? "RMS of the time data over each block's stretch"
+      : "energy of the weighted spectrum of each block",
+    db,
+    ...(db ? { references } : {}),
     orders,
     rpm_min: rpmMin,
     rpm_max: rpmMax,

@@ -5,6 +5,7 @@ import { QuiverError } from "../../lib/errors.ts";
 import { spectralEstimate } from "../../lib/dsp/spectral_core.ts";
 import { autoSpectrum } from "../../lib/dsp/spectrum_kinds.ts";
 import { assertClose } from "../helpers/assert_close.ts";
+import { iecA } from "../helpers/iec_weighting.ts";
 import type { Table } from "../../lib/io/table.ts";
 import {
   linearProfile,
@@ -194,5 +195,41 @@ describe("order tracking of a run-up", () => {
       })
     )
       .toThrow(QuiverError);
+  });
+});
+
+describe("A-weighted order cuts in dB", () => {
+  test("order 2 of a cabin microphone at 0.1 Pa rms reads 20·lg(0.1/20 µPa) + A(2·rpm/60) within 0.3 dB", () => {
+    // Analytic: a constant 0.1 Pa rms order, weighted at its own frequency by the
+    // IEC 61672-1 A-weighting (formula typed into tests/helpers/iec_weighting.ts), in dB re
+    // 20 µPa (ISO 1683).
+    const rec = runUpRecording(linearProfile(900, 4800, 20), RATE, 20, 2, [
+      { order: 2, rms: () => 0.1 },
+    ]);
+    const mic = { ...rec.channels[1], name: "cabin_mic", unit: "Pa" };
+    const { cuts } = trackOrders({ ...rec, channels: [rec.channels[0], mic] }, {
+      tacho: "tacho",
+      ppr: 2,
+      channels: ["cabin_mic"],
+      orders: [2],
+      rpmMin: 1000,
+      rpmMax: 4700,
+      rpmStep: 100,
+      weighting: "A",
+      db: true,
+    });
+    const steps = col(cuts, "rpm");
+    const o2 = col(cuts, "cabin_mic_order2");
+    expect(cuts.columns[1].unit).toBe("dB(A) re 0.00002 Pa");
+    steps.forEach((r, i) => {
+      const expected = 20 * Math.log10(0.1 / 20e-6) + iecA((2 * r) / 60);
+      expect(Math.abs(o2[i] - expected), `${r} rpm`).toBeLessThan(0.3);
+    });
+    // The weighted overall of a single order is that order's weighted level (energy sum).
+    const overall = col(cuts, "cabin_mic_overall");
+    steps.forEach((r, i) => {
+      const expected = 20 * Math.log10(0.1 / 20e-6) + iecA((2 * r) / 60);
+      expect(Math.abs(overall[i] - expected), `overall at ${r} rpm`).toBeLessThan(0.3);
+    });
   });
 });
