@@ -509,6 +509,10 @@ export class SpectralAccumulator {
         } s); choose a smaller block or a coarser resolution`,
       );
     }
+    if (this.#segments === 0) {
+      // In frames mode every segment already went into a frame: an average of none is no estimate.
+      throw new RangeError("every segment went into a frame; finish() has nothing left to average");
+    }
     return this.#estimate();
   }
 

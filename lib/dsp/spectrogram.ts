@@ -140,7 +140,12 @@ export async function spectrogram(
     },
   });
   const warnings = await readChecked(stream, indices, (chunk) => accumulator.push(chunk));
-  if (frame === 0) accumulator.finish(); // throws: the record is shorter than one segment
+  if (frame === 0) {
+    if (accumulator.segments === 0) accumulator.finish(); // throws: shorter than one segment
+    throw new QuiverError(
+      `the record holds ${accumulator.segments} segment(s) of ${block} samples, fewer than one frame of ${perFrame}; use fewer segments per frame or a smaller block`,
+    );
+  }
   const unit = (c: { unit: string }, i: number) =>
     db
       ? `dB${weighting === "Z" ? "" : `(${weighting})`} re ${references[i]} ${

@@ -705,7 +705,11 @@ export class CsvRowParser {
   /** Throws the message for the bad cell `column` of the row bytes[start, stop). */
   #badCell(bytes: Uint8Array, start: number, stop: number, column: number, line: number): never {
     const delimiter = String.fromCharCode(this.#delimiter);
-    const cell = text(bytes, start, stop).split(delimiter)[column].trim();
+    this.#badCellText(text(bytes, start, stop).split(delimiter)[column].trim(), column, line);
+  }
+
+  /** Throws the message for a bad cell's text at (line, column), column 0-based. */
+  #badCellText(cell: string, column: number, line: number): never {
     const mark = (this.#mark < 0 ? "." : String.fromCharCode(this.#mark)) as DecimalMark;
     this.#fail(describeBadNumber(cell, mark), line, column + 1);
   }
@@ -719,9 +723,7 @@ export class CsvRowParser {
     const encoder = new TextEncoder();
     cells.forEach((cell, column) => {
       const bytes = encoder.encode(cell);
-      if (!this.#cell(bytes, 0, bytes.length, column)) {
-        this.#badCell(bytes, 0, bytes.length, 0, line);
-      }
+      if (!this.#cell(bytes, 0, bytes.length, column)) this.#badCellText(cell, column, line);
     });
     this.#sink.row(this.#values, line, this.#decimals);
   }

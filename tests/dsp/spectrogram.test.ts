@@ -53,6 +53,13 @@ describe("spectrogram against time", () => {
     expect(table.columns[2].unit).toBe("dB(A) re 0.00002 Pa/√Hz");
   });
 
+  test("a record with fewer segments than one frame is refused, not written empty", async () => {
+    // 6144 samples hold (6144 − 4096)/2048 + 1 = 2 segments of 4096 at 50 % overlap.
+    await expect(spectrogram(recording, { block: 4096, frames: 4 })).rejects.toThrow(
+      /holds 2 segment\(s\) of 4096 samples, fewer than one frame of 4/,
+    );
+  });
+
   test("an output over the cell limit is refused with the count and how to coarsen", async () => {
     await expect(spectrogram(recording, { block: 256, maxCells: 1000 })).rejects.toThrow(
       /would hold \d+ cells .* coarsen it/,

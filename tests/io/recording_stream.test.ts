@@ -120,5 +120,10 @@ describe("chunked reading", () => {
     expect(await read("semi.csv")).toEqual({ rate: 2, values: [1.5, 2, 3] });
     expect(await read("quoted.csv")).toEqual({ rate: 2, values: [1, 2, 3] });
     await expect(read("bad.csv")).rejects.toThrow(/bad\.csv:3:2: "x" is not a number/);
+    // A bad cell in a row with quoted cells is named at its own column.
+    await writeFile(`${dir}/bad_quoted.csv`, 'time_s,a,b\n0,"1","2"\n0.5,"3","x"\n1,5,6\n');
+    await expect(read("bad_quoted.csv")).rejects.toThrow(
+      /bad_quoted\.csv:3:3: "x" is not a number/,
+    );
   });
 });
