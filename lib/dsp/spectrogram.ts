@@ -17,7 +17,7 @@ import type { Table, TableColumn } from "../io/table.ts";
 import { levelReference } from "../acoustics/levels.ts";
 import { type Weighting, weightingPowerGain } from "../acoustics/weighting.ts";
 import type { DetrendMode } from "./detrend.ts";
-import { resolveBlock, SpectralAccumulator } from "./spectral_core.ts";
+import { resolveBlock, SpectralAccumulator, type SpectralEstimate } from "./spectral_core.ts";
 import { autoSpectrum, type SpectrumKind, spectrumUnit } from "./spectrum_kinds.ts";
 import type { WindowName } from "./windows.ts";
 
@@ -25,7 +25,7 @@ import type { WindowName } from "./windows.ts";
 export const MAX_SPECTROGRAM_CELLS = 5_000_000;
 
 /** Options of {@linkcode spectrogram}. */
-export interface SpectrogramOptions {
+export interface SpectrogramOptions extends FrameScalingOptions {
   /** Channels. Default: all. */
   channels?: readonly string[];
   /** Samples per segment. Default 4096 (or from `resolution`). */
@@ -38,16 +38,8 @@ export interface SpectrogramOptions {
   window?: WindowName;
   /** Detrend per segment. Default `"mean"`. */
   detrend?: DetrendMode;
-  /** Spectrum kind. Default `"psd"`. */
-  kind?: SpectrumKind;
   /** Segments averaged per frame. Default 1. */
   frames?: number;
-  /** Frequency weighting per line (IEC 61672-1). Default `"Z"` (none). */
-  weighting?: Weighting;
-  /** Values in dB re the unit's ISO 1683 reference (or `reference`). Default false. */
-  db?: boolean;
-  /** Level reference for `db`. Default: from the unit (ISO 1683). */
-  reference?: number;
   /** Largest number of cells (frames × lines × channels). Default {@linkcode MAX_SPECTROGRAM_CELLS}. */
   maxCells?: number;
 }
@@ -82,9 +74,7 @@ export async function spectrogram(
   const block = resolveBlock(rate, options);
   const kind = options.kind ?? "psd";
   const perFrame = options.frames ?? 1;
-  const weighting = options.weighting ?? "Z";
-  const db = options.db ?? false;
-  const references = db ? channels.map((c) => levelReference(c.unit, options.reference)) : [];
+  const scaling = new FrameScaling(channels, options);
   const overlapSamples = Math.floor((options.overlap ?? 0.5) * block);
   const hop = block - overlapSamples;
   const segments = stream.length >= block ? Math.floor((stream.length - block) / hop) + 1 : 0;
@@ -102,9 +92,6 @@ export async function spectrogram(
   const time = new Float64Array(frameCount * lines);
   const frequency = new Float64Array(frameCount * lines);
   const values = channels.map(() => new Float64Array(frameCount * lines));
-  // A line's weighting as a power gain; amplitude kinds take its square root.
-  const amplitude = kind === "rms" || kind === "peak";
-  let gain: Float64Array | undefined;
   let frame = 0;
   const accumulator = new SpectralAccumulator(channels.length, {
     rate,
@@ -116,10 +103,6 @@ export async function spectrogram(
       segments: perFrame,
       onFrame(estimate, firstSegment) {
         if (frame >= frameCount) return;
-        gain ??= estimate.frequencies.map((f) => {
-          const g = weightingPowerGain(weighting, f);
-          return amplitude ? Math.sqrt(g) : g;
-        });
         const centre = stream.startTime +
           (firstSegment * hop + ((perFrame - 1) * hop + block) / 2) / rate;
         const offset = frame * lines;
@@ -127,14 +110,7 @@ export async function spectrogram(
           time[offset + k] = centre;
           frequency[offset + k] = estimate.frequencies[k];
         }
-        channels.forEach((_, c) => {
-          const spectrum = autoSpectrum(estimate, c, kind);
-          const out = values[c];
-          for (let k = 0; k < lines; k++) {
-            const v = spectrum[k] * (gain as Float64Array)[k];
-            out[offset + k] = db ? dbOf(v, kind, references[c]) : v;
-          }
-        });
+        scaling.write(estimate, values, offset);
         frame++;
       },
     },
@@ -146,16 +122,10 @@ export async function spectrogram(
       `the record holds ${accumulator.segments} segment(s) of ${block} samples, fewer than one frame of ${perFrame}; use fewer segments per frame or a smaller block`,
     );
   }
-  const unit = (c: { unit: string }, i: number) =>
-    db
-      ? `dB${weighting === "Z" ? "" : `(${weighting})`} re ${references[i]} ${
-        kind === "psd" ? `${c.unit}/√Hz` : c.unit
-      }`
-      : spectrumUnit(c.unit, kind);
   const columns: TableColumn[] = [
     { name: "time_s", unit: "", values: time },
     { name: "frequency_hz", unit: "", values: frequency },
-    ...channels.map((c, i) => ({ name: c.name, unit: unit(c, i), values: values[i] })),
+    ...channels.map((c, i) => ({ name: c.name, unit: scaling.units[i], values: values[i] })),
   ];
   return {
     columns,
@@ -171,17 +141,103 @@ export async function spectrogram(
       kind,
       segments_per_frame: perFrame,
       frames: frameCount,
-      weighting,
-      db,
-      ...(db ? { references } : {}),
+      ...scaling.metadata(),
       warnings,
     },
   };
 }
 
-/** A value of the given kind in dB re `reference` (power kinds 10·lg, amplitude kinds 20·lg). */
-function dbOf(value: number, kind: SpectrumKind, reference: number): number {
-  return kind === "rms" || kind === "peak"
-    ? 20 * Math.log10(value / reference)
-    : 10 * Math.log10(value / (reference * reference));
+/** How a frame's lines become a spectrogram's values: spectrum kind, weighting, dB. */
+export interface FrameScalingOptions {
+  /** Spectrum kind. Default `"psd"`. */
+  kind?: SpectrumKind;
+  /** Frequency weighting per line (IEC 61672-1). Default `"Z"` (none). */
+  weighting?: Weighting;
+  /** Values in dB re the unit's ISO 1683 reference (or `reference`). Default false. */
+  db?: boolean;
+  /** Level reference for `db`. Default: from the unit (ISO 1683). */
+  reference?: number;
+}
+
+/**
+ * The one rule by which every spectrogram (against time or rpm) turns a
+ * frame's estimate into values: the spectrum kind of the spectral core,
+ * times the weighting's gain at each line (power kinds take the power gain,
+ * amplitude kinds its square root), then optionally in dB (power kinds
+ * 10·lg(v/ref²), amplitude kinds 20·lg(v/ref)).
+ *
+ * @example
+ * ```ts
+ * import { FrameScaling } from "./spectrogram.ts";
+ * import { SpectralAccumulator } from "./spectral_core.ts";
+ * const acc = new SpectralAccumulator(1, { rate: 64, block: 64, window: "rectangular", detrend: "none" });
+ * acc.push([new Float64Array(64).map((_, i) => Math.SQRT2 * Math.cos(2 * Math.PI * 8 * i / 64))]); // 1 Pa rms at 8 Hz
+ * const scaling = new FrameScaling([{ unit: "Pa" }], { kind: "rms", db: true });
+ * const out = [new Float64Array(33)];
+ * scaling.write(acc.finish(), out, 0);
+ * if (Math.abs(out[0][8] - 93.9794) > 1e-4 || scaling.units[0] !== "dB re 0.00002 Pa") throw new Error();
+ * ```
+ */
+export class FrameScaling {
+  /** Column unit per channel. */
+  readonly units: readonly string[];
+  readonly #kind: SpectrumKind;
+  readonly #weighting: Weighting;
+  readonly #db: boolean;
+  readonly #references: readonly number[];
+  #gain: Float64Array | undefined;
+
+  /**
+   * @param channels the channels' units, in output order
+   * @param options kind, weighting and dB
+   * @throws {QuiverError} with `db` for a unit without a level reference.
+   */
+  constructor(channels: readonly { unit: string }[], options: FrameScalingOptions = {}) {
+    this.#kind = options.kind ?? "psd";
+    this.#weighting = options.weighting ?? "Z";
+    this.#db = options.db ?? false;
+    this.#references = this.#db
+      ? channels.map((c) => levelReference(c.unit, options.reference))
+      : [];
+    const kind = this.#kind;
+    this.units = channels.map((c, i) =>
+      this.#db
+        ? `dB${this.#weighting === "Z" ? "" : `(${this.#weighting})`} re ${this.#references[i]} ${
+          kind === "psd" ? `${c.unit}/√Hz` : c.unit
+        }`
+        : spectrumUnit(c.unit, kind)
+    );
+  }
+
+  /** Writes every channel's scaled lines of `estimate` into `out[c]` from `offset`. */
+  write(estimate: SpectralEstimate, out: readonly Float64Array[], offset: number): void {
+    const amplitude = this.#kind === "rms" || this.#kind === "peak";
+    const weighting = this.#weighting;
+    const gain = this.#gain ??= estimate.frequencies.map((f) => {
+      const g = weightingPowerGain(weighting, f);
+      return amplitude ? Math.sqrt(g) : g;
+    });
+    for (let c = 0; c < out.length; c++) {
+      const spectrum = autoSpectrum(estimate, c, this.#kind);
+      const values = out[c];
+      const reference = this.#references[c];
+      for (let k = 0; k < spectrum.length; k++) {
+        const v = spectrum[k] * gain[k];
+        values[offset + k] = !this.#db
+          ? v
+          : amplitude
+          ? 20 * Math.log10(v / reference)
+          : 10 * Math.log10(v / (reference * reference));
+      }
+    }
+  }
+
+  /** The scaling as written into a result's metadata. */
+  metadata(): Record<string, unknown> {
+    return {
+      weighting: this.#weighting,
+      db: this.#db,
+      ...(this.#db ? { references: this.#references } : {}),
+    };
+  }
 }

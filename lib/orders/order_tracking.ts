@@ -38,7 +38,14 @@ import { levelReference, levelUnit } from "../acoustics/levels.ts";
 import { type Weighting, weightingPowerGain } from "../acoustics/weighting.ts";
 import { channelsWarnings } from "../io/signal_checks.ts";
 import { inverseAngle, resampleToAngle } from "./angle_resample.ts";
-import { motionFromPulses, motionFromRpm, type ShaftMotion, tachoPulses } from "./tacho.ts";
+import {
+  type RpmStepOptions,
+  rpmSteps,
+  shaftMotion,
+  type SpeedSource,
+  speedSourceMetadata,
+  timeAtRpm,
+} from "./speed.ts";
 
 /** The order-tracking methods. */
 export const ORDER_METHODS = ["angle", "time"] as const;
@@ -47,27 +54,11 @@ export const ORDER_METHODS = ["angle", "time"] as const;
 export type OrderMethod = typeof ORDER_METHODS[number];
 
 /** Options of {@linkcode trackOrders}. */
-export interface OrderOptions {
-  /** Tacho pulse channel; give this or `rpmChannel`. */
-  tacho?: string;
-  /** Channel that holds rpm directly; give this or `tacho`. */
-  rpmChannel?: string;
-  /** Pulses per revolution of the tacho. Required with `tacho`. */
-  ppr?: number;
-  /** Tacho switching level. Default: automatic (see tacho.ts). */
-  tachoLevel?: number;
-  /** Tacho hysteresis. Default: automatic. */
-  tachoHysteresis?: number;
+export interface OrderOptions extends SpeedSource, RpmStepOptions {
   /** Response channels. Required. */
   channels: readonly string[];
   /** Orders to cut. Default 1, 2, 4. */
   orders?: readonly number[];
-  /** Lowest rpm step. Default: the recording's lowest rpm rounded up to a step. */
-  rpmMin?: number;
-  /** Highest rpm step. Default: the recording's highest rpm rounded down to a step. */
-  rpmMax?: number;
-  /** rpm between steps. Default 50. */
-  rpmStep?: number;
   /** Method. Default `"angle"`. */
   method?: OrderMethod;
   /** `rms` or `peak`. Default `"rms"`. */
@@ -106,47 +97,6 @@ export interface OrderResult {
 /** The label of order k in column names: as written, e.g. 2 → "2", 6.5 → "6.5". */
 export function orderLabel(order: number): string {
   return String(order);
-}
-
-function motionOf(
-  recording: Recording,
-  options: OrderOptions,
-): { motion: ShaftMotion; notes: string[] } {
-  if ((options.tacho === undefined) === (options.rpmChannel === undefined)) {
-    throw new RangeError(
-      "give a tacho channel (with pulses per revolution) or an rpm channel, not both",
-    );
-  }
-  if (options.rpmChannel !== undefined) {
-    const [c] = selectChannels(recording, [options.rpmChannel]);
-    return { motion: motionFromRpm(c.data, recording.rate), notes: [] };
-  }
-  const ppr = options.ppr;
-  if (ppr === undefined || !Number.isInteger(ppr) || ppr < 1) {
-    throw new RangeError(`pulses per revolution must be a positive integer, got ${ppr}`);
-  }
-  const [tacho] = selectChannels(recording, [options.tacho as string]);
-  const pulses = tachoPulses(tacho.data, recording.rate, {
-    ppr,
-    ...(options.tachoLevel !== undefined ? { level: options.tachoLevel } : {}),
-    ...(options.tachoHysteresis !== undefined ? { hysteresis: options.tachoHysteresis } : {}),
-  });
-  const notes: string[] = [];
-  if (pulses.inserted > 0) notes.push(`${pulses.inserted} missing tacho pulse(s) filled in`);
-  if (pulses.removed > 0) notes.push(`${pulses.removed} extra tacho pulse(s) removed`);
-  return { motion: motionFromPulses(pulses.times, ppr), notes };
-}
-
-/** First time at which the speed passes `rpm`, or undefined. */
-function timeAtRpm(motion: ShaftMotion, rpm: number): number | undefined {
-  const { times, rpm: r } = motion;
-  for (let i = 1; i < r.length; i++) {
-    if ((r[i - 1] - rpm) * (r[i] - rpm) <= 0 && r[i] !== r[i - 1]) {
-      return times[i - 1] + ((rpm - r[i - 1]) / (r[i] - r[i - 1])) * (times[i] - times[i - 1]);
-    }
-    if (r[i] === rpm) return times[i];
-  }
-  return undefined;
 }
 
 function energyAround(
@@ -199,33 +149,18 @@ export function trackOrders(recording: Recording, options: OrderOptions): OrderR
   if (options.channels.length === 0) throw new RangeError("name at least one response channel");
   const orders = options.orders ?? [1, 2, 4];
   if (orders.some((k) => !(k > 0))) throw new RangeError("orders must be positive numbers");
-  const step = options.rpmStep ?? 50;
-  if (!(step > 0)) throw new RangeError(`the rpm step must be positive, got ${step}`);
   const method = options.method ?? "angle";
   const amplitude = options.amplitude ?? "rms";
   const amplitudeFactor = amplitude === "peak" ? Math.SQRT2 : 1;
   const weighting = options.weighting ?? "Z";
   const db = options.db ?? false;
   const channels = selectChannels(recording, options.channels);
-  const { motion, notes } = motionOf(recording, options);
+  const { motion, notes } = shaftMotion(recording, options);
   const warnings = [...notes, ...channelsWarnings(channels)];
-  let lowest = Infinity, highest = -Infinity;
-  for (const r of motion.rpm) {
-    lowest = Math.min(lowest, r);
-    highest = Math.max(highest, r);
-  }
-  const rpmMin = options.rpmMin ?? Math.ceil(lowest / step) * step;
-  const rpmMax = options.rpmMax ?? Math.floor(highest / step) * step;
-  if (!(rpmMax > rpmMin)) throw new RangeError(`the rpm range ${rpmMin}–${rpmMax} is empty`);
-  if (rpmMin < lowest || rpmMax > highest) {
-    throw new QuiverError(
-      `the recording's speed spans ${lowest.toFixed(1)}–${
-        highest.toFixed(1)
-      } rpm, which does not cover the requested ${rpmMin}–${rpmMax} rpm`,
-    );
-  }
-  const steps: number[] = [];
-  for (let r = rpmMin; r <= rpmMax + 1e-9; r += step) steps.push(r);
+  const { steps, rpmMin, rpmMax, rpmStep: step, recorded: [lowest, highest] } = rpmSteps(
+    motion,
+    options,
+  );
   const maxOrder = maxOf(orders);
   const revolutions = options.revolutions ?? 16;
   const samplesPerRev = options.samplesPerRev ??
@@ -410,9 +345,7 @@ export function trackOrders(recording: Recording, options: OrderOptions): OrderR
     rpm_min: rpmMin,
     rpm_max: rpmMax,
     rpm_step: step,
-    speed_source: options.tacho !== undefined
-      ? { tacho: options.tacho, ppr: options.ppr }
-      : { rpm_channel: options.rpmChannel },
+    speed_source: speedSourceMetadata(options),
     ...(method === "angle"
       ? {
         revolutions_per_block: revolutions,

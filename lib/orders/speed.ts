@@ -1,0 +1,167 @@
+/**
+ * The shaft speed of a run-up as every rpm-based analysis sees it: from a
+ * tacho channel (pulses, tacho.ts) or from a channel that holds rpm, the
+ * time at which the speed first passes each rpm step, and the steps
+ * themselves. `orders` and the spectrogram against rpm share it, so their
+ * frames sit at the same instants.
+ *
+ * @module
+ */
+import { QuiverError } from "../errors.ts";
+import { type Recording, selectChannels } from "../io/recording.ts";
+import { motionFromPulses, motionFromRpm, type ShaftMotion, tachoPulses } from "./tacho.ts";
+
+/** Where the speed comes from. Give `tacho` (with `ppr`) or `rpmChannel`. */
+export interface SpeedSource {
+  /** Tacho pulse channel; give this or `rpmChannel`. */
+  tacho?: string;
+  /** Channel that holds rpm directly; give this or `tacho`. */
+  rpmChannel?: string;
+  /** Pulses per revolution of the tacho. Required with `tacho`. */
+  ppr?: number;
+  /** Tacho switching level. Default: automatic (see tacho.ts). */
+  tachoLevel?: number;
+  /** Tacho hysteresis. Default: automatic. */
+  tachoHysteresis?: number;
+}
+
+/** The rpm steps to analyse. */
+export interface RpmStepOptions {
+  /** Lowest rpm step. Default: the recording's lowest rpm rounded up to a step. */
+  rpmMin?: number;
+  /** Highest rpm step. Default: the recording's highest rpm rounded down to a step. */
+  rpmMax?: number;
+  /** rpm between steps. Default 50. */
+  rpmStep?: number;
+}
+
+/** The speed channel's name: the tacho or the rpm channel. */
+export function speedChannelName(source: SpeedSource): string {
+  if ((source.tacho === undefined) === (source.rpmChannel === undefined)) {
+    throw new RangeError(
+      "give a tacho channel (with pulses per revolution) or an rpm channel, not both",
+    );
+  }
+  return (source.tacho ?? source.rpmChannel) as string;
+}
+
+/**
+ * The shaft's motion from the recording's tacho or rpm channel, with notes on
+ * repaired pulses.
+ *
+ * @throws {RangeError} for neither or both sources, or a bad `ppr`;
+ * QuiverError when the tacho has too few pulses.
+ *
+ * @example
+ * ```ts
+ * import { shaftMotion } from "./speed.ts";
+ * const rpm = new Float64Array(1001).fill(1200); // 1200 rpm for 10 s at 100 Hz
+ * const { motion } = shaftMotion({ rate: 100, startTime: 0, channels: [{ name: "n", unit: "rpm", data: rpm }] }, { rpmChannel: "n" });
+ * if (Math.abs(motion.angleAt(10) - 200) > 1e-9) throw new Error();
+ * ```
+ */
+export function shaftMotion(
+  recording: Recording,
+  source: SpeedSource,
+): { motion: ShaftMotion; notes: string[] } {
+  const name = speedChannelName(source);
+  const [channel] = selectChannels(recording, [name]);
+  if (source.rpmChannel !== undefined) {
+    return { motion: motionFromRpm(channel.data, recording.rate), notes: [] };
+  }
+  const ppr = source.ppr;
+  if (ppr === undefined || !Number.isInteger(ppr) || ppr < 1) {
+    throw new RangeError(`pulses per revolution must be a positive integer, got ${ppr}`);
+  }
+  const pulses = tachoPulses(channel.data, recording.rate, {
+    ppr,
+    ...(source.tachoLevel !== undefined ? { level: source.tachoLevel } : {}),
+    ...(source.tachoHysteresis !== undefined ? { hysteresis: source.tachoHysteresis } : {}),
+  });
+  const notes: string[] = [];
+  if (pulses.inserted > 0) notes.push(`${pulses.inserted} missing tacho pulse(s) filled in`);
+  if (pulses.removed > 0) notes.push(`${pulses.removed} extra tacho pulse(s) removed`);
+  return { motion: motionFromPulses(pulses.times, ppr), notes };
+}
+
+/**
+ * First time (s from the first sample) at which the speed passes `rpm`, or
+ * undefined when it never does.
+ *
+ * @example
+ * ```ts
+ * import { timeAtRpm } from "./speed.ts";
+ * import { motionFromRpm } from "./tacho.ts";
+ * const ramp = new Float64Array(101).map((_, i) => 1000 + 10 * i); // 1000 → 2000 rpm in 1 s
+ * if (Math.abs(timeAtRpm(motionFromRpm(ramp, 100), 1500)! - 0.5) > 1e-9) throw new Error();
+ * ```
+ */
+export function timeAtRpm(motion: ShaftMotion, rpm: number): number | undefined {
+  const { times, rpm: r } = motion;
+  for (let i = 1; i < r.length; i++) {
+    if ((r[i - 1] - rpm) * (r[i] - rpm) <= 0 && r[i] !== r[i - 1]) {
+      return times[i - 1] + ((rpm - r[i - 1]) / (r[i] - r[i - 1])) * (times[i] - times[i - 1]);
+    }
+    if (r[i] === rpm) return times[i];
+  }
+  return undefined;
+}
+
+/** rpm steps and the recorded speed range. */
+export interface RpmSteps {
+  /** The steps, rpm, rising. */
+  readonly steps: readonly number[];
+  /** Lowest step. */
+  readonly rpmMin: number;
+  /** Highest step. */
+  readonly rpmMax: number;
+  /** rpm between steps. */
+  readonly rpmStep: number;
+  /** Lowest and highest recorded speed, rpm. */
+  readonly recorded: readonly [number, number];
+}
+
+/**
+ * The rpm steps inside the recorded speed range.
+ *
+ * @throws {RangeError} for a step that is not positive or an empty range;
+ * QuiverError when the recorded speed does not cover the asked range.
+ *
+ * @example
+ * ```ts
+ * import { rpmSteps } from "./speed.ts";
+ * import { motionFromRpm } from "./tacho.ts";
+ * const ramp = new Float64Array(101).map((_, i) => 1010 + 10 * i); // 1010 → 2010 rpm
+ * const s = rpmSteps(motionFromRpm(ramp, 100), { rpmStep: 250 });
+ * if (s.steps.join() !== "1250,1500,1750,2000") throw new Error();
+ * ```
+ */
+export function rpmSteps(motion: ShaftMotion, options: RpmStepOptions = {}): RpmSteps {
+  const step = options.rpmStep ?? 50;
+  if (!(step > 0)) throw new RangeError(`the rpm step must be positive, got ${step}`);
+  let lowest = Infinity, highest = -Infinity;
+  for (const r of motion.rpm) {
+    lowest = Math.min(lowest, r);
+    highest = Math.max(highest, r);
+  }
+  const rpmMin = options.rpmMin ?? Math.ceil(lowest / step) * step;
+  const rpmMax = options.rpmMax ?? Math.floor(highest / step) * step;
+  if (!(rpmMax > rpmMin)) throw new RangeError(`the rpm range ${rpmMin}–${rpmMax} is empty`);
+  if (rpmMin < lowest || rpmMax > highest) {
+    throw new QuiverError(
+      `the recording's speed spans ${lowest.toFixed(1)}–${
+        highest.toFixed(1)
+      } rpm, which does not cover the requested ${rpmMin}–${rpmMax} rpm`,
+    );
+  }
+  const steps: number[] = [];
+  for (let r = rpmMin; r <= rpmMax + 1e-9; r += step) steps.push(r);
+  return { steps, rpmMin, rpmMax, rpmStep: step, recorded: [lowest, highest] };
+}
+
+/** The speed source as written into a result's metadata. */
+export function speedSourceMetadata(source: SpeedSource): Record<string, unknown> {
+  return source.tacho !== undefined
+    ? { tacho: source.tacho, ppr: source.ppr }
+    : { rpm_channel: source.rpmChannel };
+}
