@@ -26,6 +26,15 @@ import {
   toReadOptions,
 } from "./recording_options.ts";
 import { OUTPUT_HELP, OUTPUT_OPTIONS, outputOptionsShape } from "./segment_options.ts";
+import {
+  oneSpeedSource,
+  positiveListOption,
+  pprWithTacho,
+  SPEED_HELP,
+  SPEED_OPTIONS,
+  speedOptionsShape,
+  toSpeedOptions,
+} from "./speed_options.ts";
 
 /** One-line summary for the command list. */
 export const summary = "order cuts, rpm and rpm maps of run-ups and run-downs from a tacho";
@@ -38,18 +47,11 @@ pulses (Schmitt trigger with automatic level and hysteresis, sub-sample
 edges, missing and extra pulses repaired, speed from a local fit) or from a
 channel that already holds rpm.
 
-Speed:
-  --tacho CH           tacho pulse channel (analogue or TTL)
-  --ppr N              pulses per revolution                   (with --tacho)
-  --tacho-level L      switching level          (default: mid 2nd-98th percentile)
-  --tacho-hysteresis H hysteresis width         (default: 20 % of that span)
-  --rpm-channel CH     a channel holding rpm, instead of a tacho
+${SPEED_HELP}
 
 Analysis:
   --channels a,b       response channels                          (required)
   --orders 2,4,6.5     orders to cut                               (default 1,2,4)
-  --rpm-min R, --rpm-max R   rpm range      (default: the recorded range, in steps)
-  --rpm-step R         rpm between cuts                            (default 50)
   --method M           angle: resample to equal angle steps, FFT over R
                        revolutions; orders stay on their lines (default; for
                        real run-ups) | time: time blocks at each rpm step, order
@@ -77,28 +79,11 @@ Cut columns: rpm, then <channel>_order<k> per channel and order, then
 <channel>_overall (RMS over the same stretch of time), in the channel's unit.
 `;
 
-const positive = (what: string) =>
-  numberOption().pipe(z.number().positive(`must be a positive number of ${what}`));
-
 /** zod schema of the options. */
 export const schema = z.strictObject({
-  tacho: z.string().min(1).optional(),
-  ppr: integerOption().optional(),
-  "tacho-level": numberOption().optional(),
-  "tacho-hysteresis": positive("channel units").optional(),
-  "rpm-channel": z.string().min(1).optional(),
+  ...speedOptionsShape,
   channels: listOption(),
-  orders: listOption().pipe(z.array(z.string())).transform((list, context) => {
-    const values = list.map(Number);
-    if (values.some((v) => !(v > 0) || !Number.isFinite(v))) {
-      context.addIssue({ code: "custom", message: "orders must be positive numbers" });
-      return z.NEVER;
-    }
-    return values;
-  }).optional(),
-  "rpm-min": positive("rpm").optional(),
-  "rpm-max": positive("rpm").optional(),
-  "rpm-step": positive("rpm").optional(),
+  orders: positiveListOption("orders").optional(),
   method: z.enum(ORDER_METHODS).optional(),
   amplitude: z.enum(["rms", "peak"]).optional(),
   weighting: z.enum(WEIGHTINGS).optional(),
@@ -111,24 +96,17 @@ export const schema = z.strictObject({
   "map-out": z.string().min(1).optional(),
   ...outputOptionsShape,
   ...recordingOptionsShape,
-}).refine((v) => (v.tacho === undefined) !== (v["rpm-channel"] === undefined), {
+}).refine(oneSpeedSource, {
   message: "give --tacho (with --ppr) or --rpm-channel, one of them",
-}).refine((v) => v.tacho === undefined || v.ppr !== undefined, { message: "--tacho needs --ppr" });
+}).refine(pprWithTacho, { message: "--tacho needs --ppr" });
 
 const text = { type: "string" } as const;
 
 /** parseArgs spec of the options. */
 export const options: OptionSpec = {
-  tacho: text,
-  ppr: text,
-  "tacho-level": text,
-  "tacho-hysteresis": text,
-  "rpm-channel": text,
+  ...SPEED_OPTIONS,
   channels: text,
   orders: text,
-  "rpm-min": text,
-  "rpm-max": text,
-  "rpm-step": text,
   method: text,
   amplitude: text,
   weighting: text,
@@ -166,16 +144,9 @@ export async function run(argv: readonly string[]): Promise<void> {
   const recording = await collectRecording(stream, needed);
   const result = inFile(input, () =>
     trackOrders(recording, {
-      tacho: values.tacho,
-      ppr: values.ppr,
-      tachoLevel: values["tacho-level"],
-      tachoHysteresis: values["tacho-hysteresis"],
-      rpmChannel: values["rpm-channel"],
+      ...toSpeedOptions(values),
       channels: values.channels,
       orders: values.orders,
-      rpmMin: values["rpm-min"],
-      rpmMax: values["rpm-max"],
-      rpmStep: values["rpm-step"],
       method: values.method,
       amplitude: values.amplitude,
       weighting: values.weighting,

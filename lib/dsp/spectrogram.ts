@@ -131,6 +131,7 @@ export async function spectrogram(
     columns,
     metadata: {
       analysis: "spectrogram",
+      against: "time",
       layout: "tidy: one row per (frame, line)",
       rate_hz: rate,
       block,
