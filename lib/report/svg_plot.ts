@@ -7,9 +7,11 @@
  *
  * @module
  */
+import { Buffer } from "node:buffer";
 import { maxOf, minOf } from "../extent.ts";
+import { encodePng } from "./png.ts";
 // @ts-types="npm:@types/d3-scale@4.0.9"
-import { scaleLinear, scaleLog } from "npm:d3-scale@4.0.3";
+import { type ScaleLinear, scaleLinear, scaleLog } from "npm:d3-scale@4.0.3";
 
 /** quiver's line palette. */
 export const PALETTE = ["#1d4e89", "#d1495b", "#2e8b57", "#edae49", "#6a4c93"] as const;
@@ -333,16 +335,90 @@ export function barPlot(plot: BarPlot): string {
   );
 }
 
-/** quiver's colour ramp for maps: deep blue → teal → sand → brick (own choice). */
-const RAMP = ["#16324f", "#1f6f78", "#7fb685", "#f2d492", "#c8553d"];
+/**
+ * quiver's colour ramp for maps (own choice): night indigo → violet → lake
+ * blue → sea green → lime → pale straw. Its CIE L* rises steadily from about
+ * 8 to 92 along the ramp, so a map reads in greyscale and without telling
+ * red from green.
+ */
+const RAMP = ["#1a1038", "#3a2c7a", "#2d6a8e", "#2f9a7c", "#86c35a", "#f1ea9c"];
 
-function rampColour(u: number): string {
+/**
+ * The map colour at u in [0, 1] (clamped: values outside the colour bar's
+ * range take its end colours, as the colour bar shows).
+ *
+ * @example
+ * ```ts
+ * import { mapColour } from "./svg_plot.ts";
+ * if (mapColour(0) !== "rgb(26,16,56)" || mapColour(1) !== "rgb(241,234,156)") throw new Error();
+ * ```
+ */
+export function mapColour(u: number): string {
+  return `rgb(${mapRgb(u).join(",")})`;
+}
+
+const RAMP_RGB = RAMP.map((h) => [1, 3, 5].map((k) => parseInt(h.slice(k, k + 2), 16)));
+
+/** The map colour at u in [0, 1] as 8-bit red, green, blue (clamped as {@linkcode mapColour}). */
+function mapRgb(u: number): [number, number, number] {
   const t = Math.min(1, Math.max(0, u)) * (RAMP.length - 1);
   const i = Math.min(RAMP.length - 2, Math.floor(t));
   const f = t - i;
-  const parse = (h: string) => [1, 3, 5].map((k) => parseInt(h.slice(k, k + 2), 16));
-  const a = parse(RAMP[i]), b = parse(RAMP[i + 1]);
-  return `rgb(${a.map((v, k) => Math.round(v + f * (b[k] - v))).join(",")})`;
+  const a = RAMP_RGB[i], b = RAMP_RGB[i + 1];
+  return [0, 1, 2].map((k) => Math.round(a[k] + f * (b[k] - a[k]))) as [number, number, number];
+}
+
+/** Most image pixels a colour map keeps across and up; beyond, cells merge. */
+export const MAP_PIXELS = { across: 720, up: 400 } as const;
+
+/**
+ * The cells of a map as one PNG image in a clipping viewport. Where the grid
+ * has more cells than {@linkcode MAP_PIXELS}, neighbouring cells merge and a
+ * pixel shows the highest of them, so a narrow peak (an order, a tone) is
+ * never averaged away. Non-finite cells are white.
+ */
+function mapImage(
+  z: readonly ArrayLike<number>[],
+  rows: number,
+  domain: readonly [number, number],
+  area: { x: number; y: number; width: number; height: number },
+): string {
+  const columns = z.length;
+  const fx = Math.ceil(columns / MAP_PIXELS.across);
+  const fy = Math.ceil(rows / MAP_PIXELS.up);
+  const across = Math.ceil(columns / fx), up = Math.ceil(rows / fy);
+  const rgb = new Uint8Array(across * up * 3);
+  for (let a = 0; a < across; a++) {
+    for (let b = 0; b < up; b++) {
+      let best = -Infinity;
+      for (let i = a * fx; i < Math.min(columns, (a + 1) * fx); i++) {
+        for (let j = b * fy; j < Math.min(rows, (b + 1) * fy); j++) {
+          if (Number.isFinite(z[i][j]) && z[i][j] > best) best = z[i][j];
+        }
+      }
+      // Image rows run from the top: block b of rows is pixel row up − 1 − b.
+      const at = ((up - 1 - b) * across + a) * 3;
+      rgb.set(
+        best === -Infinity ? [255, 255, 255] : mapRgb((best - domain[0]) / (domain[1] - domain[0])),
+        at,
+      );
+    }
+  }
+  const png = encodeBase64(encodePng(across, up, rgb));
+  // viewBox in cells (y down); the last, partly filled block may overhang and is clipped.
+  return `<svg class="map" x="${area.x.toFixed(1)}" y="${area.y.toFixed(1)}" width="${
+    area.width.toFixed(1)
+  }" height="${
+    area.height.toFixed(1)
+  }" viewBox="0 0 ${columns} ${rows}" preserveAspectRatio="none" overflow="hidden"><image x="0" y="${
+    rows - up * fy
+  }" width="${across * fx}" height="${
+    up * fy
+  }" preserveAspectRatio="none" style="image-rendering:pixelated" href="data:image/png;base64,${png}"/></svg>`;
+}
+
+function encodeBase64(bytes: Uint8Array): string {
+  return Buffer.from(bytes.buffer, bytes.byteOffset, bytes.byteLength).toString("base64");
 }
 
 /** A colour map of z over a regular (x, y) grid, e.g. level against rpm and order. */
@@ -359,6 +435,8 @@ export interface HeatMap {
   readonly z: readonly (ArrayLike<number>)[];
   /** Colour range; default: the top 50 units of the data (for dB). */
   readonly zDomain?: readonly [number, number];
+  /** Lines drawn over the map in data units (e.g. order lines), clipped to the map. */
+  readonly lines?: readonly { name: string; x: ArrayLike<number>; y: ArrayLike<number> }[];
   readonly width?: number;
   readonly height?: number;
 }
@@ -370,33 +448,31 @@ export interface HeatMap {
  * ```ts
  * import { heatMap } from "./svg_plot.ts";
  * const svg = heatMap({ title: "map", xLabel: "rpm", yLabel: "order", zLabel: "dB", x: [1000, 1100], y: [0, 1, 2], z: [[1, 2, 3], [3, 2, 1]] });
- * if ((svg.match(/<rect class="cell"/g) ?? []).length !== 6) throw new Error();
+ * if (!svg.includes('viewBox="0 0 2 3"') || !svg.includes("data:image/png;base64,iVBORw0KGgo")) throw new Error();
  * ```
  */
 export function heatMap(plot: HeatMap): string {
   const width = plot.width ?? 720;
   const height = plot.height ?? 380;
-  const right = MARGIN.right + 60;
-  const all = plot.z.flatMap((col) => Array.from(col)).filter(Number.isFinite);
-  const max = maxOf(all);
-  const domain = plot.zDomain ?? [Math.max(minOf(all), max - 50), max];
+  const right = MARGIN.right + 66;
+  let lowest = Infinity, highest = -Infinity;
+  for (const col of plot.z) {
+    for (let j = 0; j < col.length; j++) {
+      if (Number.isFinite(col[j])) {
+        lowest = Math.min(lowest, col[j]);
+        highest = Math.max(highest, col[j]);
+      }
+    }
+  }
+  const domain = plot.zDomain ?? [Math.max(lowest, highest - 50), highest];
   const x = scaleLinear().domain([0, plot.x.length]).range([MARGIN.left, width - right]);
   const y = scaleLinear().domain([0, plot.y.length]).range([height - MARGIN.bottom, MARGIN.top]);
-  const parts: string[] = [];
-  const cw = x(1) - x(0);
-  const ch = y(0) - y(1);
-  plot.z.forEach((col, i) => {
-    for (let j = 0; j < plot.y.length; j++) {
-      const u = (col[j] - domain[0]) / (domain[1] - domain[0]);
-      parts.push(
-        `<rect class="cell" x="${x(i).toFixed(1)}" y="${y(j + 1).toFixed(1)}" width="${
-          (cw + 0.5).toFixed(1)
-        }" height="${(ch + 0.5).toFixed(1)}" fill="${
-          Number.isFinite(col[j]) ? rampColour(u) : "#ffffff"
-        }"/>`,
-      );
-    }
-  });
+  const parts: string[] = [mapImage(plot.z, plot.y.length, domain, {
+    x: x(0),
+    y: y(plot.y.length),
+    width: x(plot.x.length) - x(0),
+    height: y(0) - y(plot.y.length),
+  })];
   const xs = scaleLinear().domain([plot.x[0], plot.x[plot.x.length - 1]]).range([
     x(0.5),
     x(plot.x.length - 0.5),
@@ -419,7 +495,7 @@ export function heatMap(plot: HeatMap): string {
       }</text>`,
     );
   }
-  const barX = width - right + 18;
+  const barX = width - right + 10;
   const zs = scaleLinear().domain(domain as [number, number]).range([
     height - MARGIN.bottom,
     MARGIN.top,
@@ -429,15 +505,60 @@ export function heatMap(plot: HeatMap): string {
     parts.push(
       `<rect x="${barX}" y="${y0.toFixed(1)}" width="14" height="${
         ((height - MARGIN.bottom - MARGIN.top) / 40 + 0.5).toFixed(1)
-      }" fill="${rampColour(1 - k / 40)}"/>`,
+      }" fill="${mapColour(1 - k / 40)}"/>`,
     );
   }
   for (const t of zs.ticks(5)) {
     parts.push(`<text x="${barX + 18}" y="${zs(t) + 4}" fill="#3d4b59">${tickLabel(t)}</text>`);
   }
+  // The colour bar's title runs up beside its tick labels, so a long unit fits the margin.
   parts.push(
-    `<text x="${barX}" y="${MARGIN.top - 6}" fill="#22313f">${escapeXml(plot.zLabel)}</text>`,
+    `<text transform="translate(${width - 6} ${
+      (height - MARGIN.bottom + MARGIN.top) / 2
+    }) rotate(-90)" text-anchor="middle" fill="#22313f">${escapeXml(plot.zLabel)}</text>`,
   );
+  for (const line of plot.lines ?? []) parts.push(overlayLine(line, xs, ys));
   parts.push(plotFrame(width, height, right, plot.xLabel, plot.yLabel));
   return frame(width, height, plot.title, parts.join("\n"));
+}
+
+/**
+ * A polyline over a map, clipped to the map's y range (linear between
+ * points) and labelled at its last point inside.
+ */
+function overlayLine(
+  line: { name: string; x: ArrayLike<number>; y: ArrayLike<number> },
+  xs: (v: number) => number,
+  ys: ScaleLinear<number, number>,
+): string {
+  const [lo, hi] = ys.domain() as [number, number];
+  const points: [number, number][] = [];
+  for (let k = 0; k < line.x.length; k++) {
+    const x = line.x[k], y = line.y[k];
+    const inside = y >= lo && y <= hi;
+    if (k > 0) {
+      // Where the segment from the previous point crosses an edge, a point on the edge.
+      const px = line.x[k - 1], py = line.y[k - 1];
+      for (const edge of [lo, hi]) {
+        if ((py - edge) * (y - edge) < 0) {
+          points.push([px + ((edge - py) / (y - py)) * (x - px), edge]);
+        }
+      }
+    }
+    if (inside) points.push([x, y]);
+  }
+  if (points.length < 2) return "";
+  const d = points.map(([x, y], i) =>
+    `${i === 0 ? "M" : "L"}${xs(x).toFixed(1)},${ys(y).toFixed(1)}`
+  )
+    .join("");
+  const [lx, ly] = points[points.length - 1];
+  // Thin and dashed, so the ridge it marks stays visible under it.
+  return `<g class="overlay"><path d="${d}" fill="none" stroke="#ffffff" stroke-width="1" stroke-opacity="0.8" stroke-dasharray="3 5"/><text x="${
+    (xs(lx) - 4).toFixed(1)
+  }" y="${
+    (ys(ly) + 12).toFixed(1)
+  }" text-anchor="end" fill="#ffffff" stroke="#1a1038" stroke-width="0.6" paint-order="stroke">${
+    escapeXml(line.name)
+  }</text></g>`;
 }
