@@ -32,8 +32,8 @@ import {
   type RpmStepOptions,
   rpmSteps,
   shaftMotion,
-  type SpeedSource,
   speedChannelName,
+  type SpeedSource,
   speedSourceMetadata,
   timeAtRpm,
 } from "./speed.ts";

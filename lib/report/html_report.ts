@@ -162,15 +162,23 @@ function levelFigures(id: string, title: string, r: ResultJson): Figure[] {
   }];
 }
 
-/** One colour map per channel of a tidy spectrogram: time across, frequency up, level as colour. */
+/**
+ * One colour map per channel of a tidy spectrogram: time or rpm across,
+ * frequency up, level as colour; over an rpm map, the order lines the
+ * analysis names (f = k·rpm/60).
+ */
 function spectrogramFigures(id: string, title: string, r: ResultJson): Figure[] {
-  const time = numbers(r.columns[0]);
+  const across = numbers(r.columns[0]);
   const frequency = numbers(r.columns[1]);
-  const lines = time.lastIndexOf(time[0]) + 1; // rows of the first frame
-  const frames = lines === 0 ? 0 : time.length / lines;
-  const x = Array.from({ length: frames }, (_, j) => time[j * lines]);
+  const againstRpm = r.columns[0].name === "rpm";
+  const lines = across.lastIndexOf(across[0]) + 1; // rows of the first frame
+  const frames = lines === 0 ? 0 : across.length / lines;
+  const x = Array.from({ length: frames }, (_, j) => across[j * lines]);
   const y = frequency.slice(0, lines);
   const amplitude = r.metadata.kind === "rms" || r.metadata.kind === "peak";
+  const orderLines = againstRpm && Array.isArray(r.metadata.order_lines)
+    ? (r.metadata.order_lines as unknown[]).filter((k): k is number => typeof k === "number")
+    : [];
   return r.columns.slice(2).map((c) => {
     const v = numbers(c);
     const inDb = r.metadata.db === true;
@@ -183,12 +191,17 @@ function spectrogramFigures(id: string, title: string, r: ResultJson): Figure[] 
       name: `${id}_${c.name}_spectrogram`,
       svg: heatMap({
         title: `${title}: ${c.name}`,
-        xLabel: "Time [s]",
+        xLabel: againstRpm ? "Speed [rpm]" : "Time [s]",
         yLabel: "Frequency [Hz]",
         zLabel: inDb ? c.unit : `dB re 1 ${c.unit}`,
         x,
         y,
         z,
+        lines: orderLines.map((k) => ({
+          name: `order ${k}`,
+          x,
+          y: x.map((rpm) => (k * rpm) / 60),
+        })),
       }),
     };
   });
@@ -205,9 +218,17 @@ async function orderFigures(
   const figures: Figure[] = [{
     name: `${id}_cuts`,
     svg: linePlot({
-      title: `${title}: order cuts (${r.metadata.amplitude}, ${r.metadata.method} method)`,
+      title:
+        `${title}: order cuts and overall (${r.metadata.amplitude}, ${r.metadata.method} method${
+          r.metadata.weighting !== undefined && r.metadata.weighting !== "Z"
+            ? `, ${r.metadata.weighting}-weighted`
+            : ""
+        })`,
       x: { label: "Speed [rpm]" },
-      y: { label: withUnit("Amplitude", cuts[0]?.unit ?? ""), log: true },
+      // Levels in dB on a linear axis; amplitudes on a logarithmic one.
+      y: r.metadata.db === true
+        ? { label: withUnit("Level", cuts[0]?.unit ?? "") }
+        : { label: withUnit("Amplitude", cuts[0]?.unit ?? ""), log: true },
       series: cuts.map((c) => ({
         name: c.name,
         x: rpm,
@@ -451,7 +472,9 @@ export async function writeReport(outDir: string, manifest: Manifest, plan: Plan
   const body = sections.map((s) =>
     `<section><h2>${escapeXml(s.heading)}</h2>${
       s.note !== undefined ? `<p class="note">${escapeXml(s.note)}</p>` : ""
-    }${s.figures.map((f) => `<figure>${f.svg}</figure>`).join("\n")}${s.html ?? ""}</section>`
+    }${
+      s.figures.map((f) => `<figure id="figure-${escapeXml(f.name)}">${f.svg}</figure>`).join("\n")
+    }${s.html ?? ""}</section>`
   ).join("\n");
   const html = `<!DOCTYPE html>
 <html lang="en"><head><meta charset="utf-8"><title>${escapeXml(title)}</title>

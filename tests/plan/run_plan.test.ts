@@ -66,10 +66,10 @@ describe("quiver run", () => {
     async () => {
       const r = runQuiver(["run", `${dir}/tamarack_b2_plan.json`, "--out-dir", `${dir}/out`]);
       expect(r.code).toBe(0);
-      expect(r.stderr).toMatch(/\[8\/8\] compare bracket_vs_sim: ok/);
+      expect(r.stderr).toMatch(/\[10\/10\] compare bracket_vs_sim: ok/);
       const manifest = JSON.parse(await readFile(`${dir}/out/manifest.json`, "utf8"));
       expect(manifest.status).toBe("ok");
-      expect(manifest.steps).toHaveLength(8);
+      expect(manifest.steps).toHaveLength(10);
       const hammer = manifest.steps.find((s: { id: string }) => s.id === "bracket_frf");
       expect(hammer.inputs[0].sha256).toMatch(/^[0-9a-f]{64}$/);
       expect(hammer.outputs["hits-out"].path).toBe("bracket_frf_hits.csv");
@@ -85,6 +85,16 @@ describe("quiver run", () => {
       expect(existsSync(`${dir}/out/figures/cabin_spectrogram_driver_ear_spectrogram.svg`)).toBe(
         true,
       );
+      // The run-up's cabin microphone against rpm with its two order lines, and its A-weighted
+      // order cuts in dB on a linear axis.
+      const map = await readFile(
+        `${dir}/out/figures/runup_spectrogram_cabin_mic_spectrogram.svg`,
+        "utf8",
+      );
+      expect(map).toMatch(/>Speed \[rpm\]</);
+      expect((map.match(/<g class="overlay">/g) ?? []).length).toBe(2);
+      const cuts = await readFile(`${dir}/out/figures/cabin_orders_cuts.svg`, "utf8");
+      expect(cuts).toMatch(/>Level \[dB\(A\) re 0\.00002 Pa\]</);
     },
   );
 

@@ -54,6 +54,27 @@ describe("the HTML report in a browser", () => {
         const firstBox = await page.locator("figure svg").first().boundingBox();
         expect(firstBox!.width).toBeGreaterThan(300);
         expect(await page.locator("table.targets tr.pass").count()).toBeGreaterThan(0);
+        // The new views (issue: run-ups and cabin noise): colour maps against time and rpm,
+        // order lines over the rpm map, the A-weighted order cuts; each drawn with a real size.
+        for (
+          const name of [
+            "cabin_spectrogram_driver_ear_spectrogram",
+            "runup_spectrogram_cabin_mic_spectrogram",
+            "cabin_orders_cuts",
+          ]
+        ) {
+          const box = await page.locator(`#figure-${name} > svg`).boundingBox();
+          expect(box, name).not.toBeNull();
+          expect(box!.width, name).toBeGreaterThan(300);
+          expect(box!.height, name).toBeGreaterThan(200);
+        }
+        expect(
+          await page.locator("#figure-runup_spectrogram_cabin_mic_spectrogram g.overlay").count(),
+        ).toBe(2);
+        // The map's cells are one raster image; the browser decodes it to its full size.
+        const image = page.locator("#figure-runup_spectrogram_cabin_mic_spectrogram svg.map image");
+        expect(await image.count()).toBe(1);
+        expect((await image.boundingBox())!.width).toBeGreaterThan(300);
         const shot = await page.screenshot({ fullPage: true, path: `${profile}/report.png` });
         expect(shot.length).toBeGreaterThan(10_000);
         expect(errors).toEqual([]);
