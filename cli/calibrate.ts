@@ -4,6 +4,8 @@
  * @module
  */
 import { toStderr } from "./terminal.ts";
+import { commandHelp, libraryOptions, option, shapeOf, specOf } from "./option_table.ts";
+import { RECORDING_TABLE } from "./recording_options.ts";
 import { readFile } from "node:fs/promises";
 import process from "node:process";
 import { z } from "npm:zod@4.6.7";
@@ -14,65 +16,64 @@ import { type ChannelSetup, parseChannelSetup } from "../lib/io/channel_setup.ts
 import { openRecordingStream } from "../lib/io/recording_stream.ts";
 import { channelIndices } from "../lib/io/recording.ts";
 import { FULL_SCALE_UNIT } from "../lib/io/wav.ts";
-import {
-  inFile,
-  inFileAsync,
-  numberOption,
-  type OptionSpec,
-  parseCommandArgs,
-  usageError,
-} from "./args.ts";
+import { inFile, inFileAsync, numberOption, parseCommandArgs, usageError } from "./args.ts";
 
 /** One-line summary for the command list. */
 export const summary =
   "microphone sensitivity from an acoustic calibrator recording; updates the set-up";
 
+const ANALYSIS = {
+  level: option(numberOption().pipe(z.number().positive("must be a positive number of dB")), {
+    value: "DB",
+    help: "calibrator level, dB re 20 uPa",
+    default: "94",
+    feeds: "levelDb",
+  }),
+  frequency: option(numberOption().pipe(z.number().positive("must be a positive number of Hz")), {
+    value: "HZ",
+    help: "calibrator frequency",
+    default: "1000",
+    feeds: "frequencyHz",
+  }),
+};
+
+const TABLE = {
+  channel: option(z.string().min(1), {
+    value: "CH",
+    help: "the microphone channel, by its name in the file or in\nthe set-up",
+    required: true,
+  }),
+  ...ANALYSIS,
+  setup: option(z.string().min(1), {
+    value: "FILE",
+    help: "set-up to read (for full_scale_volts) and to update",
+  }),
+  out: option(z.string().min(1), {
+    value: "FILE",
+    help:
+      "where to write the updated set-up (default: --setup's\nfile; without either, the set-up goes to stdout)",
+  }),
+  rate: RECORDING_TABLE.rate,
+  start: RECORDING_TABLE.start,
+  end: RECORDING_TABLE.end,
+};
+
 /** The command's help text. */
-export const help = `quiver calibrate IN --channel CH [options]
-
-Reads the calibrator tone on channel CH of IN (raw volts: a CSV column in
+export const help = commandHelp({
+  usage: "quiver calibrate IN --channel CH [options]",
+  about: `Reads the calibrator tone on channel CH of IN (raw volts: a CSV column in
 [V] or [mV], or a WAV channel with full_scale_volts in the set-up), reports
-the microphone sensitivity in mV/Pa, and writes it into the channel set-up.
-
-  --channel CH         the microphone channel, by its name in the file or in
-                       the set-up                                   (required)
-  --level DB           calibrator level, dB re 20 uPa               (default 94)
-  --frequency HZ       calibrator frequency                         (default 1000)
-  --setup FILE         set-up to read (for full_scale_volts) and to update
-  --out FILE           where to write the updated set-up (default: --setup's
-                       file; without either, the set-up goes to stdout)
-  --rate HZ            sample rate, for a CSV without a time column
-  --start S, --end S   use only the samples at times S_start <= t < S_end (default: all)
-
-A calibrator at 94 dB (1 Pa rms) and 1 kHz is common practice. quiver's
-levels are for engineering comparison, not certified measurements.
-`;
-
-/** zod schema of the options. */
-export const schema = z.strictObject({
-  channel: z.string().min(1),
-  level: numberOption().pipe(z.number().positive("must be a positive number of dB")).optional(),
-  frequency: numberOption().pipe(z.number().positive("must be a positive number of Hz")).optional(),
-  setup: z.string().min(1).optional(),
-  out: z.string().min(1).optional(),
-  rate: numberOption().pipe(z.number().positive("must be a positive number of Hz")).optional(),
-  start: numberOption().optional(),
-  end: numberOption().optional(),
+the microphone sensitivity in mV/Pa, and writes it into the channel set-up.`,
+  groups: [[undefined, TABLE]],
+  notes: `A calibrator at 94 dB (1 Pa rms) and 1 kHz is common practice. quiver's
+levels are for engineering comparison, not certified measurements.`,
 });
 
-const text = { type: "string" } as const;
+/** zod schema of the options. */
+export const schema = z.strictObject(shapeOf(TABLE));
 
 /** parseArgs spec of the options. */
-export const options: OptionSpec = {
-  channel: text,
-  level: text,
-  frequency: text,
-  setup: text,
-  out: text,
-  rate: text,
-  start: text,
-  end: text,
-};
+export const options = specOf(TABLE);
 
 /** Runs the command. */
 export async function run(argv: readonly string[]): Promise<void> {
@@ -123,12 +124,10 @@ export async function run(argv: readonly string[]): Promise<void> {
       "usage",
     );
   }
-  const result = await inFileAsync(input, () =>
-    calibrateMicrophone(stream, index, {
-      levelDb: values.level ?? 94,
-      frequencyHz: values.frequency ?? 1000,
-      voltsPerUnit,
-    }));
+  const result = await inFileAsync(
+    input,
+    () => calibrateMicrophone(stream, index, { ...libraryOptions(ANALYSIS, values), voltsPerUnit }),
+  );
   const updated: ChannelSetup = {
     ...setup,
     channels: {

@@ -5,69 +5,92 @@
  */
 import { toStderr } from "./terminal.ts";
 import { z } from "npm:zod@4.6.7";
-import { BAND_FRACTIONS } from "../lib/acoustics/bands.ts";
+import { BAND_FRACTIONS, type BandFraction } from "../lib/acoustics/bands.ts";
 import { compareCurves } from "../lib/compare/comparison.ts";
 import { readCurveFile } from "../lib/compare/curve_input.ts";
 import { writeFileAtomic } from "../lib/io/atomic_write.ts";
 import { inFile, numberOption, parseCommandArgs, usageError } from "./args.ts";
 import { resolveFormat, writeTable } from "./output.ts";
-import { OUTPUT_HELP, OUTPUT_OPTIONS, outputOptionsShape } from "./segment_options.ts";
+import { OUTPUT_TABLE } from "./segment_options.ts";
+import { commandHelp, libraryOptions, option, shapeOf, specOf } from "./option_table.ts";
 
 /** One-line summary for the command list. */
 export const summary =
   "test against simulation: common grid, dB difference, FRAC, peak shifts, bands";
 
-/** The command's help text. */
-export const help = `quiver compare TEST SIM [options]
+const CURVES = {
+  "test-column": option(z.string().min(1), {
+    value: "C",
+    help: "curve in TEST (C, C_re/C_im, C_mag or C_mag_db)",
+    default: "first",
+  }),
+  "sim-column": option(z.string().min(1), {
+    value: "C",
+    help: "curve in SIM",
+    default: "first",
+  }),
+  power: option(z.boolean(), {
+    flag: true,
+    help:
+      "the curves are power quantities (dB = 10 log10); default from\nthe metadata (psd/power spectra), else amplitudes (20 log10)",
+  }),
+};
 
-Lays a test curve against a simulation. Either file may be what quiver
+const ANALYSIS = {
+  "min-hz": option(numberOption().pipe(z.number().min(0, "must be at least 0")), {
+    value: "F",
+    help: "frequency range",
+    helpWith: "max-hz",
+  }),
+  "max-hz": option(numberOption().pipe(z.number().positive("must be positive")), {
+    value: "F",
+    help: "highest frequency",
+  }),
+  bands: option(
+    z.enum(BAND_FRACTIONS.map(String) as [string, ...string[]]).transform((b) =>
+      Number(b) as BandFraction
+    ),
+    { value: "B", help: `per-band level differences, 1/B octave (${BAND_FRACTIONS.join(", ")})` },
+  ),
+  prominence: option(numberOption().pipe(z.number().positive("must be positive")), {
+    value: "DB",
+    help: "peak prominence for peak matching",
+    default: "6",
+    feeds: "prominenceDb",
+  }),
+};
+
+const OUTPUTS = {
+  ...OUTPUT_TABLE,
+  "summary-out": option(z.string().min(1), {
+    value: "FILE",
+    help:
+      "JSON summary: frac, peaks (test_hz, simulation_hz,\nshift_percent, level_difference_db), bands, grid",
+  }),
+};
+
+const TABLE = { ...CURVES, ...ANALYSIS, ...OUTPUTS };
+
+/** The command's help text. */
+export const help = commandHelp({
+  usage: "quiver compare TEST SIM [options]",
+  about: `Lays a test curve against a simulation. Either file may be what quiver
 wrote (CSV with its .meta.json sidecar, or JSON) or a plain table from a
 solver: frequency_hz plus re and im, or mag (linear, optional phase_deg),
 or a dB column (name ending in _db, or a unit starting with "dB").
 
 Both go on the coarser of the two grids over the range both cover; the
 other is interpolated linearly (in re/im when it has phase, else in
-magnitude).
-
-  --test-column C      curve in TEST (C, C_re/C_im, C_mag or C_mag_db)   (default: first)
-  --sim-column C       curve in SIM                                     (default: first)
-  --power              the curves are power quantities (dB = 10 log10); default from
-                       the metadata (psd/power spectra), else amplitudes (20 log10)
-  --min-hz F, --max-hz F   frequency range
-  --bands B            per-band level differences, 1/B octave (${BAND_FRACTIONS.join(", ")})
-  --prominence DB      peak prominence for peak matching              (default 6)
-${OUTPUT_HELP}
-  --summary-out FILE   JSON summary: frac, peaks (test_hz, simulation_hz,
-                       shift_percent, level_difference_db), bands, grid
-
-CSV columns: frequency_hz, test, simulation, difference_db (simulation - test).
-`;
+magnitude).`,
+  groups: [["Curves", CURVES], ["Analysis", ANALYSIS], ["Output", OUTPUTS]],
+  notes: "CSV columns: frequency_hz, test, simulation, difference_db (simulation - test).",
+});
 
 /** parseArgs spec. */
-export const options = {
-  "test-column": { type: "string" },
-  "sim-column": { type: "string" },
-  power: { type: "boolean" },
-  "min-hz": { type: "string" },
-  "max-hz": { type: "string" },
-  bands: { type: "string" },
-  prominence: { type: "string" },
-  "summary-out": { type: "string" },
-  ...OUTPUT_OPTIONS,
-} as const;
+export const options = specOf(TABLE);
 
 /** zod schema of the options. */
-export const schema = z.strictObject({
-  "test-column": z.string().min(1).optional(),
-  "sim-column": z.string().min(1).optional(),
-  power: z.boolean().optional(),
-  "min-hz": numberOption().pipe(z.number().min(0, "must be at least 0")).optional(),
-  "max-hz": numberOption().pipe(z.number().positive("must be positive")).optional(),
-  bands: z.enum(BAND_FRACTIONS.map(String) as [string, ...string[]]).optional(),
-  prominence: numberOption().pipe(z.number().positive("must be positive")).optional(),
-  "summary-out": z.string().min(1).optional(),
-  ...outputOptionsShape,
-});
+export const schema = z.strictObject(shapeOf(TABLE));
 
 /** Runs the command. */
 export async function run(argv: readonly string[]): Promise<void> {
@@ -82,13 +105,10 @@ export async function run(argv: readonly string[]): Promise<void> {
     column: values["sim-column"],
     quantity: quantity ?? test.quantity,
   });
-  const result = inFile(testPath, () =>
-    compareCurves(test, simulation, {
-      minHz: values["min-hz"],
-      maxHz: values["max-hz"],
-      bands: values.bands === undefined ? undefined : Number(values.bands) as 1 | 3 | 6 | 12 | 24,
-      prominenceDb: values.prominence,
-    }));
+  const result = inFile(
+    testPath,
+    () => compareCurves(test, simulation, libraryOptions(ANALYSIS, values)),
+  );
   const traced = {
     ...result.table,
     metadata: { test: testPath, simulation: simPath, ...result.table.metadata },

@@ -11,96 +11,105 @@ import { z } from "npm:zod@4.6.7";
 import { FRF_FORMS } from "../lib/frf/forms.ts";
 import { DAMPING_METHODS, modalDamping } from "../lib/modal/damping_analysis.ts";
 import { readFrfFile } from "../lib/modal/frf_input.ts";
-import {
-  inFile,
-  listOption,
-  numberOption,
-  type OptionSpec,
-  parseCommandArgs,
-  usageError,
-} from "./args.ts";
+import { inFile, listOption, numberOption, parseCommandArgs, usageError } from "./args.ts";
 import { writeResult } from "./output.ts";
-import { OUTPUT_HELP, OUTPUT_OPTIONS, outputOptionsShape } from "./segment_options.ts";
+import { OUTPUT_TABLE } from "./segment_options.ts";
+import { RECORDING_TABLE } from "./recording_options.ts";
+import { commandHelp, libraryOptions, option, shapeOf, specOf } from "./option_table.ts";
 
 /** One-line summary for the command list. */
 export const summary =
   "mode frequencies, damping ratios and Q from an FRF table, with quality flags";
 
-/** The command's help text. */
-export const help = `quiver damping FRF [options]
+const positive = (what: string) =>
+  numberOption().pipe(z.number().positive(`must be a positive number of ${what}`));
 
-Finds the modes of an FRF table and estimates each one's frequency and
+const ANALYSIS = {
+  channel: option(listOption(), {
+    value: "R[,S]",
+    help: "FRF(s) to analyse",
+    default: "all",
+    feeds: "channels",
+  }),
+  "min-hz": option(numberOption().pipe(z.number().min(0, "must be at least 0")), {
+    value: "F",
+    help: "frequency range for peaks",
+    default: "all",
+    helpWith: "max-hz",
+  }),
+  "max-hz": option(positive("Hz"), { value: "F", help: "highest frequency for peaks" }),
+  method: option(z.enum(DAMPING_METHODS), {
+    value: "M",
+    help: `${
+      DAMPING_METHODS.join(" | ")
+    }: with both, the fit is the\nprimary value and half-power the second`,
+    default: "both",
+  }),
+  prominence: option(positive("dB"), {
+    value: "DB",
+    help: "smallest peak prominence, dB",
+    default: "6",
+    feeds: "prominenceDb",
+  }),
+  "peaks-from": option(z.enum(["each", "sum"]), {
+    value: "P",
+    help:
+      "each (every FRF's own peaks) | sum (peaks of the summed\n|H|, so every FRF reports the same modes)",
+    default: "each",
+    feeds: "peaks",
+  }),
+  "exp-tau": option(positive("seconds"), {
+    value: "S",
+    help: "exponential window time constant to correct for",
+    default: "from the table's metadata",
+  }),
+  form: option(z.enum(FRF_FORMS), {
+    value: "F",
+    help: `${FRF_FORMS.join(" | ")}, when the table does not say`,
+    default: "receptance, flagged form_assumed",
+  }),
+  "target-hz": option(positive("Hz"), {
+    value: "F",
+    help: "check that the first mode is at or above F Hz",
+  }),
+};
+
+const CHECKS = {
+  "require-targets": option(z.boolean(), {
+    flag: true,
+    help: "exit with code 4 when that target fails",
+    default: "report, exit 0",
+  }),
+  delimiter: RECORDING_TABLE.delimiter,
+  decimal: RECORDING_TABLE.decimal,
+};
+
+const TABLE = { ...ANALYSIS, ...CHECKS, ...OUTPUT_TABLE };
+
+/** The command's help text. */
+export const help = commandHelp({
+  usage: "quiver damping FRF [options]",
+  about: `Finds the modes of an FRF table and estimates each one's frequency and
 damping twice: by the half-power bandwidth (peak and -3 dB points
 interpolated between lines) and by a single-mode fit around the peak
 (complex when the table has phase, with a constant residual for the other
 modes). FRF is what quiver frf or quiver hammer wrote (CSV with its
 .meta.json sidecar, or JSON), or a plain table: frequency_hz plus re and im,
-or mag (linear) with optional phase_deg, or mag_db.
-
-Options:
-  --channel R[,S]      FRF(s) to analyse                           (default all)
-  --min-hz F, --max-hz F   frequency range for peaks              (default all)
-  --method M           ${DAMPING_METHODS.join(" | ")}: with both, the fit is the
-                       primary value and half-power the second   (default both)
-  --prominence DB      smallest peak prominence, dB                (default 6)
-  --peaks-from P       each (every FRF's own peaks) | sum (peaks of the summed
-                       |H|, so every FRF reports the same modes)   (default each)
-  --exp-tau S          exponential window time constant to correct for
-                       (default: from the table's metadata)
-  --form F             ${FRF_FORMS.join(" | ")}, when the table does not say
-                       (default: receptance, flagged form_assumed)
-  --target-hz F        check that the first mode is at or above F Hz
-  --require-targets    exit with code 4 when that target fails (default: report, exit 0)
-  --delimiter D, --decimal M   as for recordings (auto)
-
-${OUTPUT_HELP}
-
-CSV columns: channel, mode, frequency_hz, damping_ratio, q_factor, method,
+or mag (linear) with optional phase_deg, or mag_db.`,
+  groups: [["Analysis", ANALYSIS], ["Checks and reading", CHECKS], ["Output", OUTPUT_TABLE]],
+  notes: `CSV columns: channel, mode, frequency_hz, damping_ratio, q_factor, method,
 flags, half_power_frequency_hz, half_power_damping_ratio,
 lines_in_half_power_band, fit_frequency_hz, fit_damping_ratio,
 peak_coherence, window_correction. Empty cells mean "not estimated".
 Flags: few_lines, no_half_power, low_coherence, close_modes, disagree,
-poor_fit, magnitude_only, form_assumed, window_dominates (see README).
-`;
-
-const positive = (what: string) =>
-  numberOption().pipe(z.number().positive(`must be a positive number of ${what}`));
-
-/** zod schema of the options. */
-export const schema = z.strictObject({
-  channel: listOption().optional(),
-  "min-hz": numberOption().pipe(z.number().min(0, "must be at least 0")).optional(),
-  "max-hz": positive("Hz").optional(),
-  method: z.enum(DAMPING_METHODS).optional(),
-  prominence: positive("dB").optional(),
-  "peaks-from": z.enum(["each", "sum"]).optional(),
-  "exp-tau": positive("seconds").optional(),
-  form: z.enum(FRF_FORMS).optional(),
-  "target-hz": positive("Hz").optional(),
-  "require-targets": z.boolean().optional(),
-  delimiter: z.enum(["auto", "comma", "semicolon", "tab"]).optional(),
-  decimal: z.enum(["auto", "point", "comma"]).optional(),
-  ...outputOptionsShape,
+poor_fit, magnitude_only, form_assumed, window_dominates (see README).`,
 });
 
-const text = { type: "string" } as const;
+/** zod schema of the options. */
+export const schema = z.strictObject(shapeOf(TABLE));
 
 /** parseArgs spec of the options. */
-export const options: OptionSpec = {
-  channel: text,
-  "min-hz": text,
-  "max-hz": text,
-  method: text,
-  prominence: text,
-  "peaks-from": text,
-  "exp-tau": text,
-  form: text,
-  "target-hz": text,
-  "require-targets": { type: "boolean" },
-  delimiter: text,
-  decimal: text,
-  ...OUTPUT_OPTIONS,
-};
+export const options = specOf(TABLE);
 
 /** Runs the command. */
 export async function run(argv: readonly string[]): Promise<void> {
@@ -115,18 +124,7 @@ export async function run(argv: readonly string[]): Promise<void> {
     delimiter: delimiters[values.delimiter ?? "auto"],
     decimal: decimals[values.decimal ?? "auto"],
   });
-  const result = inFile(input, () =>
-    modalDamping(data, {
-      channels: values.channel,
-      minHz: values["min-hz"],
-      maxHz: values["max-hz"],
-      method: values.method,
-      prominenceDb: values.prominence,
-      peaks: values["peaks-from"],
-      expTau: values["exp-tau"],
-      form: values.form,
-      targetHz: values["target-hz"],
-    }));
+  const result = inFile(input, () => modalDamping(data, libraryOptions(ANALYSIS, values)));
   await writeResult(result.table, input, values);
   for (const w of result.warnings) toStderr(`quiver damping: warning: ${w}\n`);
   for (const m of result.modes) {

@@ -12,18 +12,7 @@ import { toStderr } from "./terminal.ts";
 import { EXIT_DATA, EXIT_DONE, EXIT_INTERNAL, EXIT_USAGE } from "./exit_codes.ts";
 import { QuiverError } from "../lib/errors.ts";
 import { QUIVER_VERSION } from "../lib/version.ts";
-import * as bands from "./bands.ts";
-import * as calibrate from "./calibrate.ts";
-import * as compare from "./compare.ts";
-import * as damping from "./damping.ts";
-import * as frf from "./frf.ts";
-import * as hammer from "./hammer.ts";
-import * as level from "./level.ts";
-import * as orders from "./orders.ts";
-import * as reportCommand from "./report.ts";
-import * as runPlanCommand from "./run.ts";
-import * as spectrum from "./spectrum.ts";
-import * as spectrogramCommand from "./spectrogram.ts";
+import { COMMANDS as COMMAND_MODULES } from "./commands.ts";
 
 interface Command {
   summary: string;
@@ -31,20 +20,7 @@ interface Command {
   run(argv: readonly string[]): Promise<void>;
 }
 
-const COMMANDS: Readonly<Record<string, Command>> = {
-  spectrum,
-  spectrogram: spectrogramCommand,
-  frf,
-  hammer,
-  damping,
-  bands,
-  level,
-  calibrate,
-  orders,
-  compare,
-  run: runPlanCommand,
-  report: reportCommand,
-};
+const COMMANDS: Readonly<Record<string, Command>> = COMMAND_MODULES;
 
 /** The command names, in the order of `quiver --help` and README's command table. */
 export const COMMAND_NAMES: readonly string[] = Object.keys(COMMANDS);

@@ -1,42 +1,26 @@
 /**
  * The commands a plan can run, as the plan runner sees them: a dry check of
- * the arguments (each command's own option schema) and the run itself.
+ * the arguments (each command's own option schema) and the run itself. The
+ * names are the plan schema's (lib/plan/schema.ts) plus `compare` for
+ * comparisons; the modules come from the one command list (commands.ts), so
+ * a plan command without a command fails to compile.
  *
  * @module
  */
 import type { PlanCommand } from "../lib/plan/runner.ts";
-import { type OptionSpec, parseCommandArgs } from "./args.ts";
-import * as bands from "./bands.ts";
-import * as compare from "./compare.ts";
-import * as damping from "./damping.ts";
-import * as frf from "./frf.ts";
-import * as hammer from "./hammer.ts";
-import * as level from "./level.ts";
-import * as orders from "./orders.ts";
-import * as spectrum from "./spectrum.ts";
-import * as spectrogram from "./spectrogram.ts";
-import type { z } from "npm:zod@4.6.7";
+import { PLAN_COMMANDS } from "../lib/plan/schema.ts";
+import { parseCommandArgs } from "./args.ts";
+import { COMMANDS } from "./commands.ts";
 
-interface CommandModule {
-  options: OptionSpec;
-  schema: z.ZodType;
-  run(argv: readonly string[]): Promise<void>;
+/** The plan runner's command table (built when asked for: commands.ts imports `run`, which imports this). */
+export function planCommandTable(): Readonly<Record<string, PlanCommand>> {
+  const names = [...PLAN_COMMANDS, "compare"] as const;
+  return Object.fromEntries(names.map((name) => {
+    const command = COMMANDS[name];
+    return [name, {
+      validate: (argv: readonly string[]) =>
+        void parseCommandArgs(argv, command.options, command.schema),
+      run: command.run,
+    }];
+  }));
 }
-
-const asPlanCommand = (m: CommandModule): PlanCommand => ({
-  validate: (argv) => void parseCommandArgs(argv, m.options, m.schema),
-  run: m.run,
-});
-
-/** The plan runner's command table. */
-export const PLAN_COMMAND_TABLE: Readonly<Record<string, PlanCommand>> = {
-  spectrum: asPlanCommand(spectrum),
-  frf: asPlanCommand(frf),
-  hammer: asPlanCommand(hammer),
-  damping: asPlanCommand(damping),
-  bands: asPlanCommand(bands),
-  level: asPlanCommand(level),
-  orders: asPlanCommand(orders),
-  spectrogram: asPlanCommand(spectrogram),
-  compare: asPlanCommand(compare as unknown as CommandModule),
-};

@@ -4,7 +4,7 @@
  *
  * @module
  */
-import { PLAN_COMMAND_TABLE } from "./plan_commands.ts";
+import { planCommandTable } from "./plan_commands.ts";
 import { withStderrLabel } from "./terminal.ts";
 
 /** A step to run. */
@@ -20,10 +20,12 @@ const scope = self as unknown as {
   postMessage(message: unknown): void;
 };
 
+const commands = planCommandTable();
+
 scope.onmessage = async (event) => {
   const { command, argv, label } = event.data;
   try {
-    await withStderrLabel(label, () => PLAN_COMMAND_TABLE[command].run(argv));
+    await withStderrLabel(label, () => commands[command].run(argv));
     scope.postMessage({ ok: true });
   } catch (error) {
     scope.postMessage({ ok: false, error: error instanceof Error ? error.message : String(error) });

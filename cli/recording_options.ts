@@ -6,38 +6,42 @@
 import { z } from "npm:zod@4.6.7";
 import type { ReadRecordingOptions } from "../lib/io/read_recording.ts";
 import { openRecordingStream, type RecordingStream } from "../lib/io/recording_stream.ts";
-import { inFileAsync, numberOption, type OptionSpec } from "./args.ts";
+import { inFileAsync, numberOption } from "./args.ts";
+import { option } from "./option_table.ts";
 
-/** parseArgs spec of the recording options. */
-export const RECORDING_OPTIONS: OptionSpec = {
-  rate: { type: "string" },
-  setup: { type: "string" },
-  start: { type: "string" },
-  end: { type: "string" },
-  delimiter: { type: "string" },
-  decimal: { type: "string" },
+/** The options of reading a recording. */
+export const RECORDING_TABLE = {
+  rate: option(numberOption().pipe(z.number().positive("must be a positive number of Hz")), {
+    value: "HZ",
+    help:
+      "sample rate, needed when the CSV has no time_s/time column\n(checked against the column when it has one; WAV states its own)",
+  }),
+  start: option(numberOption(), {
+    value: "S",
+    help:
+      "analyse only the samples at times S_start <= t < S_end, in s on\nthe recording's own time axis",
+    default: "all",
+    helpWith: "end",
+  }),
+  end: option(numberOption(), { value: "S", help: "end of the time slice, s" }),
+  setup: option(z.string(), {
+    value: "FILE.json",
+    help: 'channel set-up: units, sensitivities, roles (README.md,\n"Channel set-up")',
+  }),
+  delimiter: option(z.enum(["auto", "comma", "semicolon", "tab"]), {
+    value: "D",
+    help: "auto | comma | semicolon | tab",
+    default: "auto",
+  }),
+  decimal: option(z.enum(["auto", "point", "comma"]), {
+    value: "M",
+    help: "auto | point | comma",
+    default: "auto",
+  }),
 };
 
-/** zod shape of the recording options. */
-export const recordingOptionsShape = {
-  rate: numberOption().pipe(z.number().positive("must be a positive number of Hz")).optional(),
-  setup: z.string().optional(),
-  start: numberOption().optional(),
-  end: numberOption().optional(),
-  delimiter: z.enum(["auto", "comma", "semicolon", "tab"]).optional(),
-  decimal: z.enum(["auto", "point", "comma"]).optional(),
-};
-
-/** Help lines for the recording options. */
-export const RECORDING_HELP = `Reading the recording:
-  --rate HZ            sample rate, needed when the CSV has no time_s/time column
-                       (checked against the column when it has one; WAV states its own)
-  --start S, --end S   analyse only the samples at times S_start <= t < S_end, in s on
-                       the recording's own time axis               (default: all)
-  --setup FILE.json    channel set-up: units, sensitivities, roles (README.md,
-                       "Channel set-up")
-  --delimiter D        auto | comma | semicolon | tab            (default auto)
-  --decimal M          auto | point | comma                      (default auto)`;
+/** The heading of the recording options' help. */
+export const RECORDING_HEADING = "Reading the recording";
 
 /** Converts validated recording options to reader options. */
 export function toReadOptions(values: {

@@ -9,11 +9,12 @@ import process from "node:process";
 import { z } from "npm:zod@4.6.7";
 import { writeReport } from "../lib/report/html_report.ts";
 import { runPlan } from "../lib/plan/runner.ts";
-import { integerOption, type OptionSpec, parseCommandArgs, usageError } from "./args.ts";
+import { integerOption, parseCommandArgs, usageError } from "./args.ts";
+import { option, shapeOf, specOf } from "./option_table.ts";
 import { TARGETS_NOT_MET_EXIT } from "./exit_codes.ts";
 import { withStderrLabel } from "./terminal.ts";
 import { WorkerPool } from "./worker_pool.ts";
-import { PLAN_COMMAND_TABLE } from "./plan_commands.ts";
+import { planCommandTable } from "./plan_commands.ts";
 
 /** One-line summary for the command list. */
 export const summary =
@@ -48,19 +49,17 @@ The plan file (every key, with an example) is described in README.md,
 "The plan file".
 `;
 
-/** parseArgs spec of the options. */
-export const options: OptionSpec = {
-  "out-dir": { type: "string" },
-  jobs: { type: "string" },
-  "require-targets": { type: "boolean" },
+const TABLE = {
+  "out-dir": option(z.string().min(1), { value: "DIR", help: "where the results go" }),
+  jobs: option(integerOption(), { value: "N", help: "steps at once" }),
+  "require-targets": option(z.boolean(), { flag: true, help: "exit 4 when a target is not met" }),
 };
 
+/** parseArgs spec of the options. */
+export const options = specOf(TABLE);
+
 /** zod schema of the options. */
-export const schema = z.strictObject({
-  "out-dir": z.string().min(1).optional(),
-  jobs: integerOption().optional(),
-  "require-targets": z.boolean().optional(),
-});
+export const schema = z.strictObject(shapeOf(TABLE));
 
 /** Runs the command; sets the exit code to 1 when a step failed. */
 export async function run(argv: readonly string[]): Promise<void> {
@@ -71,11 +70,12 @@ export async function run(argv: readonly string[]): Promise<void> {
     join(dirname(planFile), "out", basename(planFile).replace(/\.json$/i, ""));
   const jobs = values.jobs ?? navigator.hardwareConcurrency ?? 1;
   const pool = jobs > 1 ? new WorkerPool(jobs) : undefined;
+  const commands = planCommandTable();
   let manifest;
   try {
     manifest = await runPlan(planFile, {
       outDir,
-      commands: PLAN_COMMAND_TABLE,
+      commands,
       report: writeReport,
       jobs,
       requireTargets: values["require-targets"] === true,
@@ -83,7 +83,7 @@ export async function run(argv: readonly string[]): Promise<void> {
       execute: (command: string, argv: readonly string[], id: string) =>
         pool !== undefined
           ? pool.run(command, argv, `${id}: `)
-          : withStderrLabel(`${id}: `, () => PLAN_COMMAND_TABLE[command].run(argv)),
+          : withStderrLabel(`${id}: `, () => commands[command].run(argv)),
     });
   } finally {
     pool?.close();

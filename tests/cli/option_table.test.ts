@@ -1,0 +1,27 @@
+import { describe, expect, test } from "vitest";
+import { COMMANDS } from "../../cli/commands.ts";
+import { PLAN_COMMANDS } from "../../lib/plan/schema.ts";
+
+describe("the one command table", () => {
+  test("every option a command parses is in its --help, and nothing else is", () => {
+    for (const [name, command] of Object.entries(COMMANDS)) {
+      const parsed = Object.keys(command.options);
+      const shown = new Set([...command.help.matchAll(/--([a-z][a-z-]*)/g)].map((m) => m[1]));
+      for (const option of parsed) expect(shown, `${name} --${option}`).toContain(option);
+      // Options the help names that the parser would refuse (apart from the commands' own
+      // cross-references such as "as quiver spectrum --kind rms").
+      const foreign = [...shown].filter((o) => !parsed.includes(o) && o !== "help");
+      expect(foreign.filter((o) => !["kind"].includes(o)), name).toEqual([]);
+    }
+  });
+
+  test("every plan command is a command with an option schema", () => {
+    for (const name of PLAN_COMMANDS) {
+      const command = COMMANDS[name];
+      expect(typeof command.schema.safeParse, name).toBe("function");
+      // The plan runner validates plan options with the command's own schema: an unknown
+      // option is refused there as on the command line.
+      expect(command.schema.safeParse({ "no-such-option": "1" }).success, name).toBe(false);
+    }
+  });
+});
