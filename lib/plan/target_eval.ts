@@ -10,8 +10,9 @@
  *
  * @module
  */
-import { readFile } from "node:fs/promises";
 import { join } from "node:path";
+import { numericColumn, readResultFile, type ResultTable } from "../io/result_file.ts";
+import { resultMetadata } from "../io/result_metadata.ts";
 import { checkCurve, checkValue, type TargetResult } from "../compare/targets.ts";
 import type { Plan, PlanTarget } from "./schema.ts";
 
@@ -22,11 +23,6 @@ export type TargetOutcome = (TargetResult & { status: "checked" }) | {
   status: "not_checked";
   reason: string;
 };
-
-interface ResultJson {
-  metadata: Record<string, unknown>;
-  columns: { name: string; unit: string; values: (number | null)[] }[];
-}
 
 /**
  * A result value as a number, refusing what JSON holds for a value that is
@@ -56,30 +52,26 @@ function describe(t: PlanTarget): string {
   } in ${t.of.analysis} ${t.type === "min" ? "≥" : "≤"} ${t.value} ${t.unit}`;
 }
 
-function quantityOf(t: Extract<PlanTarget, { type: "min" | "max" }>, json: ResultJson): number {
+function quantityOf(t: Extract<PlanTarget, { type: "min" | "max" }>, result: ResultTable): number {
   const { quantity, channel, mode } = t.of;
-  const m = json.metadata;
   if (quantity === "first_mode_hz" || quantity === "mode_hz") {
-    const modes =
-      (m.modes as { channel: string; frequencyHz: number; mode: number }[] | undefined) ?? [];
+    const modes = resultMetadata(result, "damping").modes;
+    // A mode whose frequency is missing sorts last and is refused by finiteValue if picked.
     const chosen = modes.filter((x) => channel === undefined || x.channel === channel)
-      .sort((a, b) => a.frequencyHz - b.frequencyHz);
+      .sort((a, b) => (a.frequencyHz ?? Infinity) - (b.frequencyHz ?? Infinity));
     const pick = quantity === "first_mode_hz" ? chosen[0] : chosen[(mode ?? 1) - 1];
     if (pick === undefined) throw new Error("no such mode in the result");
     return finiteValue(pick.frequencyHz, "the mode frequency");
   }
   if (quantity === "overall_db") {
-    const overall = (m.overall as { channel: string; level_db: number }[] | undefined) ?? [];
+    const overall = resultMetadata(result, "bands").overall;
     const o = overall.find((x) => channel === undefined || x.channel === channel);
-    if (o === undefined) {
-      throw new Error("no overall level for that channel (is it a bands result?)");
-    }
+    if (o === undefined) throw new Error("no overall level for that channel");
     return finiteValue(o.level_db, "the overall level");
   }
-  const summary =
-    (m.summary as { channel: string; leq_db: number; lmax_db: number }[] | undefined) ?? [];
+  const summary = resultMetadata(result, "level").summary;
   const s = summary.find((x) => channel === undefined || x.channel === channel);
-  if (s === undefined) throw new Error("no level summary for that channel (is it a level result?)");
+  if (s === undefined) throw new Error("no level summary for that channel");
   return finiteValue(quantity === "leq_db" ? s.leq_db : s.lmax_db, quantity);
 }
 
@@ -102,21 +94,23 @@ export async function evaluateTargets(
       continue;
     }
     try {
-      const json = JSON.parse(
-        await readFile(join(outDir, `${t.of.analysis}.json`), "utf8"),
-      ) as ResultJson;
+      const result = await readResultFile(join(outDir, `${t.of.analysis}.json`));
       if (t.type === "limit_curve") {
-        const column = json.columns.find((c) => c.name === t.of.channel);
-        if (column === undefined) throw new Error(`no column "${t.of.channel}" in the result`);
-        // null (a value that was not finite) becomes NaN, never 0; checkCurve refuses it.
-        const numbers = (values: (number | null)[]) =>
-          Float64Array.from(values, (v) => typeof v === "number" ? v : NaN);
+        const column = numericColumn(result, t.of.channel);
+        const first = result.columns[0];
+        if (column === undefined) {
+          throw new Error(`no numeric column "${t.of.channel}" in the result`);
+        }
+        if (!(first?.values instanceof Float64Array)) {
+          throw new Error("the result's first column is not numeric");
+        }
+        // Values that were not finite read as NaN, never 0; checkCurve refuses them.
         outcomes.push({
           ...checkCurve({
             id: t.id,
             description,
-            frequencies: numbers(json.columns[0].values),
-            levels: numbers(column.values),
+            frequencies: first.values,
+            levels: column.values,
             kind: t.limit,
             points: t.points,
             unit: t.unit || column.unit,
@@ -128,7 +122,7 @@ export async function evaluateTargets(
           ...checkValue({
             id: t.id,
             description,
-            value: quantityOf(t, json),
+            value: quantityOf(t, result),
             kind: t.type,
             limit: t.value,
             unit: t.unit,

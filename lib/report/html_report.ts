@@ -7,18 +7,19 @@
  * @module
  */
 import { formatFixed, formatNumber } from "../format_number.ts";
-import { mkdir, readFile } from "node:fs/promises";
+import { mkdir } from "node:fs/promises";
 import { join } from "node:path";
 import { writeFileAtomic } from "../io/atomic_write.ts";
+import { QuiverError } from "../errors.ts";
+import { numericColumn, readResultFile, type ResultTable } from "../io/result_file.ts";
+import { commonMetadata, resultMetadata } from "../io/result_metadata.ts";
+import type { ColumnValues, TableColumn } from "../io/table.ts";
 import type { Manifest } from "../plan/runner.ts";
 import type { Plan } from "../plan/schema.ts";
 import type { TargetOutcome } from "../plan/target_eval.ts";
 import { barPlot, escapeXml, heatMap, linePlot, type Series } from "./svg_plot.ts";
 
-interface ResultJson {
-  metadata: Record<string, unknown>;
-  columns: { name: string; unit: string; values: (number | string)[] }[];
-}
+type ResultJson = ResultTable;
 
 interface Figure {
   readonly name: string;
@@ -32,30 +33,33 @@ interface Section {
   readonly html?: string;
 }
 
-// null in a result (a value that was not finite, e.g. −∞ dB) is NaN, never 0: plots skip it.
-const numbers = (c: { values: (number | string | null)[] }) =>
-  c.values.map((v) => (v === null ? NaN : Number(v)));
+// The reader gives NaN, never 0, for a value that was not finite (e.g. −∞ dB): plots skip it.
+const numbers = (c: TableColumn<ColumnValues>): Float64Array =>
+  c.values instanceof Float64Array ? c.values : Float64Array.from(c.values, Number);
 const withUnit = (label: string, unit: string) => (unit === "" ? label : `${label} [${unit}]`);
 
-async function readJson(path: string): Promise<ResultJson | undefined> {
+/** A step's result, or what kept it from being read. */
+async function readJson(path: string): Promise<ResultTable | QuiverError> {
   try {
-    return JSON.parse(await readFile(path, "utf8")) as ResultJson;
-  } catch {
-    return undefined;
+    return await readResultFile(path);
+  } catch (error) {
+    if (error instanceof QuiverError) return error;
+    throw error;
   }
 }
 
 function spectrumFigures(id: string, title: string, r: ResultJson): Figure[] {
   const [f, ...channels] = r.columns;
-  const kind = String(r.metadata.kind ?? "psd");
+  const m = resultMetadata(r, "spectrum");
+  const kind = m.kind;
   const fx = numbers(f);
   const series: Series[] = channels.map((c) => ({ name: c.name, x: fx, y: numbers(c) }));
   return [{
     name: `${id}_spectrum`,
     svg: linePlot({
       title: `${title}: ${kind}, df ${
-        formatNumber(r.metadata.df_hz, 6)
-      } Hz, ${r.metadata.averages} averages, ${r.metadata.window}`,
+        formatNumber(m.df_hz, 6)
+      } Hz, ${m.averages} averages, ${m.window}`,
       x: { label: "Frequency [Hz]", log: true, domain: [Math.max(fx[1], 1), fx[fx.length - 1]] },
       y: { label: withUnit(kind.toUpperCase(), channels[0]?.unit ?? ""), log: true },
       series,
@@ -64,19 +68,26 @@ function spectrumFigures(id: string, title: string, r: ResultJson): Figure[] {
 }
 
 function frfFigures(id: string, title: string, r: ResultJson): Figure[] {
+  const m = resultMetadata(r, "frf");
   const f = numbers(r.columns[0]);
-  const byEnd = (end: string) => r.columns.filter((c) => c.name.endsWith(end));
-  const label = (c: { name: string }, end: string) => c.name.slice(0, -end.length);
+  // Each response's columns by their exact names, from the responses the metadata lists.
+  const part = (suffix: string) =>
+    m.responses.flatMap((response) => {
+      const column = numericColumn(r, `${response.name}_${suffix}`);
+      return column === undefined ? [] : [{ name: response.name, column }];
+    });
   const domain: [number, number] = [Math.max(f[0] || f[1], 1), f[f.length - 1]];
-  const mags = byEnd("_mag");
+  const mags = part("mag");
+  const plotOf = (parts: ReturnType<typeof part>) =>
+    parts.map(({ name, column }) => ({ name, x: f, y: column.values }));
   return [
     {
       name: `${id}_magnitude`,
       svg: linePlot({
-        title: `${title}: |H| (${r.metadata.estimator}, ${r.metadata.averages} averages)`,
+        title: `${title}: |H| (${m.estimator}, ${m.averages} averages)`,
         x: { label: "Frequency [Hz]", log: true, domain },
-        y: { label: withUnit("|H|", mags[0]?.unit ?? ""), log: true },
-        series: mags.map((c) => ({ name: label(c, "_mag"), x: f, y: numbers(c) })),
+        y: { label: withUnit("|H|", mags[0]?.column.unit ?? ""), log: true },
+        series: plotOf(mags),
       }),
     },
     {
@@ -85,11 +96,7 @@ function frfFigures(id: string, title: string, r: ResultJson): Figure[] {
         title: `${title}: phase`,
         x: { label: "Frequency [Hz]", log: true, domain },
         y: { label: "Phase [deg]", domain: [-180, 180] },
-        series: byEnd("_phase_deg").map((c) => ({
-          name: label(c, "_phase_deg"),
-          x: f,
-          y: numbers(c),
-        })),
+        series: plotOf(part("phase_deg")),
         height: 240,
       }),
     },
@@ -99,11 +106,7 @@ function frfFigures(id: string, title: string, r: ResultJson): Figure[] {
         title: `${title}: ordinary coherence`,
         x: { label: "Frequency [Hz]", log: true, domain },
         y: { label: "Coherence γ² [-]", domain: [0, 1] },
-        series: byEnd("_coherence").map((c) => ({
-          name: label(c, "_coherence"),
-          x: f,
-          y: numbers(c),
-        })),
+        series: plotOf(part("coherence")),
         height: 240,
       }),
     },
@@ -111,21 +114,17 @@ function frfFigures(id: string, title: string, r: ResultJson): Figure[] {
 }
 
 function modeTable(r: ResultJson): string {
-  const modes = (r.metadata.modes as {
-    channel: string;
-    mode: number;
-    frequencyHz: number;
-    dampingRatio: number;
-    qFactor: number;
-    method: string;
-    flags: string[];
-    halfPower?: { dampingRatio: number };
-  }[]) ?? [];
+  const modes = resultMetadata(r, "damping").modes;
   const rows = modes.map((m) =>
     `<tr><td>${escapeXml(m.channel)}</td><td>${escapeXml(m.mode)}</td><td>${
       formatFixed(m.frequencyHz, 2)
-    }</td><td>${formatFixed(100 * m.dampingRatio, 2)}</td><td>${
-      m.halfPower !== undefined ? formatFixed(100 * m.halfPower.dampingRatio, 2) : "–"
+    }</td><td>${formatFixed(m.dampingRatio === null ? null : 100 * m.dampingRatio, 2)}</td><td>${
+      m.halfPower !== undefined
+        ? formatFixed(
+          m.halfPower.dampingRatio === null ? null : 100 * m.halfPower.dampingRatio,
+          2,
+        )
+        : "–"
     }</td><td>${formatFixed(m.qFactor, 1)}</td><td>${escapeXml(m.method)}</td><td>${
       escapeXml(Array.isArray(m.flags) ? m.flags.join(", ") : m.flags)
     }</td></tr>`
@@ -134,13 +133,14 @@ function modeTable(r: ResultJson): string {
 }
 
 function bandFigures(id: string, title: string, r: ResultJson): Figure[] {
+  const m = resultMetadata(r, "bands");
   const nominal = r.columns.find((c) => c.name === "nominal_hz")!;
   const channels = r.columns.slice(4);
   return [{
     name: `${id}_bands`,
     svg: barPlot({
-      title: `${title}: 1/${r.metadata.fraction}-octave bands, ${r.metadata.weighting}-weighted`,
-      labels: numbers(nominal).map((v) => String(v)),
+      title: `${title}: 1/${m.fraction}-octave bands, ${m.weighting}-weighted`,
+      labels: Array.from(numbers(nominal), String),
       groups: channels.map((c) => ({ name: c.name, values: numbers(c) })),
       xLabel: "Band nominal frequency [Hz]",
       yLabel: withUnit("Level", channels[0]?.unit ?? ""),
@@ -149,12 +149,12 @@ function bandFigures(id: string, title: string, r: ResultJson): Figure[] {
 }
 
 function levelFigures(id: string, title: string, r: ResultJson): Figure[] {
+  const m = resultMetadata(r, "level");
   const t = numbers(r.columns[0]);
   return [{
     name: `${id}_level`,
     svg: linePlot({
-      title:
-        `${title}: ${r.metadata.weighting}-weighted, ${r.metadata.time_weighting} time weighting`,
+      title: `${title}: ${m.weighting}-weighted, ${m.time_weighting} time weighting`,
       x: { label: "Time [s]" },
       y: { label: withUnit("Level", r.columns[1]?.unit ?? "") },
       series: r.columns.slice(1).map((c) => ({ name: c.name, x: t, y: numbers(c) })),
@@ -168,20 +168,19 @@ function levelFigures(id: string, title: string, r: ResultJson): Figure[] {
  * analysis names (f = k·rpm/60).
  */
 function spectrogramFigures(id: string, title: string, r: ResultJson): Figure[] {
+  const m = resultMetadata(r, "spectrogram");
   const across = numbers(r.columns[0]);
   const frequency = numbers(r.columns[1]);
-  const againstRpm = r.columns[0].name === "rpm";
+  const againstRpm = m.against === "rpm";
   const lines = across.lastIndexOf(across[0]) + 1; // rows of the first frame
   const frames = lines === 0 ? 0 : across.length / lines;
   const x = Array.from({ length: frames }, (_, j) => across[j * lines]);
-  const y = frequency.slice(0, lines);
-  const amplitude = r.metadata.kind === "rms" || r.metadata.kind === "peak";
-  const orderLines = againstRpm && Array.isArray(r.metadata.order_lines)
-    ? (r.metadata.order_lines as unknown[]).filter((k): k is number => typeof k === "number")
-    : [];
+  const y = Array.from(frequency.subarray(0, lines));
+  const amplitude = m.kind === "rms" || m.kind === "peak";
+  const orderLines = againstRpm ? m.order_lines ?? [] : [];
   return r.columns.slice(2).map((c) => {
     const v = numbers(c);
-    const inDb = r.metadata.db === true;
+    const inDb = m.db;
     const z = x.map((_, j) =>
       v.slice(j * lines, (j + 1) * lines).map((value) =>
         inDb ? value : (amplitude ? 20 : 10) * Math.log10(value)
@@ -213,20 +212,18 @@ async function orderFigures(
   r: ResultJson,
   outDir: string,
 ): Promise<Figure[]> {
+  const m = resultMetadata(r, "orders");
   const rpm = numbers(r.columns[0]);
   const cuts = r.columns.slice(1);
   const figures: Figure[] = [{
     name: `${id}_cuts`,
     svg: linePlot({
-      title:
-        `${title}: order cuts and overall (${r.metadata.amplitude}, ${r.metadata.method} method${
-          r.metadata.weighting !== undefined && r.metadata.weighting !== "Z"
-            ? `, ${r.metadata.weighting}-weighted`
-            : ""
-        })`,
+      title: `${title}: order cuts and overall (${m.amplitude}, ${m.method} method${
+        m.weighting !== "Z" ? `, ${m.weighting}-weighted` : ""
+      })`,
       x: { label: "Speed [rpm]" },
       // Levels in dB on a linear axis; amplitudes on a logarithmic one.
-      y: r.metadata.db === true
+      y: m.db
         ? { label: withUnit("Level", cuts[0]?.unit ?? "") }
         : { label: withUnit("Amplitude", cuts[0]?.unit ?? ""), log: true },
       series: cuts.map((c) => ({
@@ -238,13 +235,13 @@ async function orderFigures(
     }),
   }];
   const map = await readJson(join(outDir, `${id}_map.json`));
-  if (map !== undefined && map.columns.length >= 3) {
+  if (!(map instanceof QuiverError) && map.columns.length >= 3) {
     const mr = numbers(map.columns[0]);
     const axis = numbers(map.columns[1]);
     const values = numbers(map.columns[2]);
     const steps = [...new Set(mr)];
     const perStep = axis.length / steps.length;
-    const y = axis.slice(0, perStep);
+    const y = Array.from(axis.subarray(0, perStep));
     const z = steps.map((_, i) =>
       values.slice(i * perStep, (i + 1) * perStep).map((v) => 20 * Math.log10(v))
     );
@@ -273,17 +270,8 @@ function comparisonFigures(
   r: ResultJson,
 ): { figures: Figure[]; html: string } {
   const f = numbers(r.columns[0]);
-  const m = r.metadata as {
-    frac: number;
-    frac_on: string;
-    peaks: {
-      test_hz: number;
-      simulation_hz: number;
-      shift_percent: number;
-      level_difference_db: number;
-    }[];
-    grid: { from: string; lines: number };
-  };
+  const m = resultMetadata(r, "compare");
+
   const figures = [
     {
       name: `${id}_overlay`,
@@ -386,69 +374,82 @@ export async function writeReport(outDir: string, manifest: Manifest, plan: Plan
       continue;
     }
     const r = await readJson(join(outDir, `${step.id}.json`));
-    if (r === undefined) continue;
-    const source = String(r.metadata.source ?? r.metadata.test ?? "");
-    const warnings = (r.metadata.warnings as string[] | undefined) ?? [];
+    if (r instanceof QuiverError) {
+      sections.push({ heading: title, note: `cannot show the result: ${r.message}`, figures: [] });
+      continue;
+    }
+    const common = commonMetadata(r);
+    const source = common.source ?? common.test ?? "";
+    const warnings = common.warnings ?? [];
     const note = `${step.command} of ${source.split("/").pop()}${
       warnings.length > 0 ? `. Warnings: ${warnings.join("; ")}` : ""
     }`;
-    switch (step.command) {
-      case "spectrum":
-        sections.push({ heading: title, note, figures: spectrumFigures(step.id, title, r) });
-        break;
-      case "frf":
-      case "hammer":
-        sections.push({
-          heading: title,
-          note: `${note}${
-            r.metadata.hits_summary !== undefined ? `; ${r.metadata.hits_summary}` : ""
-          }`,
-          figures: frfFigures(step.id, title, r),
-        });
-        break;
-      case "damping":
-        sections.push({ heading: title, note, figures: [], html: modeTable(r) });
-        break;
-      case "bands": {
-        const overall =
-          (r.metadata.overall as { channel: string; level_db: number; unit: string }[])
+    // A result whose metadata is not what its command writes is named, not drawn from guesses.
+    try {
+      switch (step.command) {
+        case "spectrum":
+          sections.push({ heading: title, note, figures: spectrumFigures(step.id, title, r) });
+          break;
+        case "frf":
+        case "hammer": {
+          const hits = resultMetadata(r, "frf").hits_summary;
+          sections.push({
+            heading: title,
+            note: hits === undefined ? note : `${note}; ${hits}`,
+            figures: frfFigures(step.id, title, r),
+          });
+          break;
+        }
+        case "damping":
+          sections.push({ heading: title, note, figures: [], html: modeTable(r) });
+          break;
+        case "bands": {
+          const overall = resultMetadata(r, "bands").overall
             .map((o) =>
               // Raw text: the note is escaped once, where it is rendered.
               `${o.channel}: ${formatFixed(o.level_db, 1)} ${o.unit}`
             )
             .join("; ");
-        sections.push({
-          heading: title,
-          note: `${note}; overall ${overall}`,
-          figures: bandFigures(step.id, title, r),
-        });
-        break;
+          sections.push({
+            heading: title,
+            note: `${note}; overall ${overall}`,
+            figures: bandFigures(step.id, title, r),
+          });
+          break;
+        }
+        case "level":
+          sections.push({ heading: title, note, figures: levelFigures(step.id, title, r) });
+          break;
+        case "spectrogram":
+          sections.push({ heading: title, note, figures: spectrogramFigures(step.id, title, r) });
+          break;
+        case "orders":
+          sections.push({
+            heading: title,
+            note,
+            figures: await orderFigures(step.id, title, r, outDir),
+          });
+          break;
+        case "compare": {
+          const { figures, html } = comparisonFigures(step.id, title, r);
+          sections.push({
+            heading: title,
+            note: `test ${(resultMetadata(r, "compare").test ?? "").split("/").pop()} against ${
+              (resultMetadata(r, "compare").simulation ?? "").split("/").pop()
+            }`,
+            figures,
+            html,
+          });
+          break;
+        }
       }
-      case "level":
-        sections.push({ heading: title, note, figures: levelFigures(step.id, title, r) });
-        break;
-      case "spectrogram":
-        sections.push({ heading: title, note, figures: spectrogramFigures(step.id, title, r) });
-        break;
-      case "orders":
-        sections.push({
-          heading: title,
-          note,
-          figures: await orderFigures(step.id, title, r, outDir),
-        });
-        break;
-      case "compare": {
-        const { figures, html } = comparisonFigures(step.id, title, r);
-        sections.push({
-          heading: title,
-          note: `test ${String(r.metadata.test ?? "").split("/").pop()} against ${
-            String(r.metadata.simulation ?? "").split("/").pop()
-          }`,
-          figures,
-          html,
-        });
-        break;
-      }
+    } catch (error) {
+      if (!(error instanceof QuiverError)) throw error;
+      sections.push({
+        heading: title,
+        note: `cannot show the result: ${error.message}`,
+        figures: [],
+      });
     }
   }
   await mkdir(join(outDir, "figures"), { recursive: true });
