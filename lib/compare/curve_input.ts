@@ -18,10 +18,10 @@
  *
  * @module
  */
-import { readSidecar } from "../io/table_file.ts";
-import { readFile } from "node:fs/promises";
 import { QuiverError } from "../errors.ts";
-import { type CsvTableOptions, parseNumericCsv } from "../io/csv_table.ts";
+import type { CsvTableOptions } from "../io/csv_table.ts";
+import { readResultFile } from "../io/result_file.ts";
+import { RESULT_METADATA } from "../io/result_metadata.ts";
 
 /** A curve: frequency and value, complex when phase is known. */
 export interface Curve {
@@ -80,7 +80,10 @@ export function curveFromColumns(
   for (let k = 1; k < f.length; k++) {
     if (!(f[k] > f[k - 1])) fail(`frequencies must increase, but ${f[k]} follows ${f[k - 1]} Hz`);
   }
-  const kind = options.metadata?.kind;
+  // quiver's own results say what they hold; a foreign table is read by its column names.
+  const spectrum = RESULT_METADATA.spectrum.safeParse(options.metadata ?? {});
+  const frfResult = RESULT_METADATA.frf.safeParse(options.metadata ?? {});
+  const kind = spectrum.success ? spectrum.data.kind : undefined;
   const quantity = options.quantity ?? (kind === "psd" || kind === "power" ? "power" : "amplitude");
   const isDb = (c: NamedColumn) => /(^|_)db$/i.test(c.name) || /^dB/.test(c.unit);
   const fromDb = (v: Float64Array) => v.map((x) => 10 ** (x / (quantity === "power" ? 10 : 20)));
@@ -129,6 +132,21 @@ export function curveFromColumns(
     }
     return undefined;
   };
+  if (frfResult.success) {
+    // An FRF quiver wrote: a response by the name its metadata lists (default the first).
+    const names = frfResult.data.responses.map((r) => r.name);
+    const name = options.column ?? names[0];
+    if (names.includes(name)) {
+      const curve = build(name);
+      if (curve === undefined) fail(`response "${name}" lacks its ${name}_re/${name}_im columns`);
+      return curve as Curve;
+    }
+    if (get(name) === undefined) {
+      fail(
+        `no response or column "${name}" in this FRF result; its responses are ${names.join(", ")}`,
+      );
+    }
+  }
   if (options.column !== undefined) {
     const curve = build(options.column);
     if (curve !== undefined) return curve;
@@ -191,36 +209,9 @@ export async function readCurveFile(
   path: string,
   options: { column?: string; quantity?: "power" | "amplitude" } & CsvTableOptions = {},
 ): Promise<Curve> {
-  let text: string;
-  try {
-    text = await readFile(path, "utf8");
-  } catch {
-    throw new QuiverError("cannot read: no such file", { file: path }, "usage");
-  }
-  if (text.trimStart().startsWith("{")) {
-    let json: {
-      metadata?: Record<string, unknown>;
-      columns?: { name: string; unit?: string; values: number[] }[];
-    };
-    try {
-      json = JSON.parse(text);
-    } catch (error) {
-      throw new QuiverError(`not valid JSON: ${(error as Error).message}`, { file: path });
-    }
-    if (!Array.isArray(json.columns)) {
-      throw new QuiverError("JSON without a columns array", { file: path });
-    }
-    const columns = json.columns
-      .filter((c) => Array.isArray(c.values) && c.values.every((v) => typeof v === "number"))
-      .map((c) => ({ name: c.name, unit: c.unit ?? "", values: new Float64Array(c.values) }));
-    return curveFromColumns(columns, { ...options, metadata: json.metadata, file: path });
-  }
-  const table = parseNumericCsv(text, { ...options, file: path });
-  const metadata = (await readSidecar(path, text, table.header))?.metadata;
-  const columns = table.header.map((h, i) => ({
-    name: h.name,
-    unit: h.unit,
-    values: table.columns[i],
-  }));
-  return curveFromColumns(columns, { ...options, metadata, file: path });
+  const table = await readResultFile(path, options);
+  const columns = table.columns.flatMap((c) =>
+    c.values instanceof Float64Array ? [{ name: c.name, unit: c.unit, values: c.values }] : []
+  );
+  return curveFromColumns(columns, { ...options, metadata: table.metadata, file: path });
 }

@@ -22,6 +22,7 @@ import {
   responseUnitOfForm,
 } from "./forms.ts";
 import { responseColumns, type ResponseFrf } from "./frf_table.ts";
+import type { FrfData } from "./frf_data.ts";
 
 /** Options of {@linkcode frequencyResponse}. */
 export interface FrfOptions {
@@ -45,8 +46,10 @@ export interface FrfOptions {
   form?: FrfForm;
 }
 
-/** An FRF table and the warnings that travel with it. */
+/** The FRFs, their table and the warnings that travel with them. */
 export interface FrfResult {
+  /** The FRFs, typed. */
+  readonly frf: FrfData;
   /** The table (see frf_table.ts for its columns). */
   readonly table: Table;
   /** Warnings, also in `table.metadata.warnings`. */
@@ -59,6 +62,8 @@ export interface FrfTableParts {
   readonly columns: TableColumn[];
   /** estimator, input, responses (with forms and units), first_line_dropped. */
   readonly metadata: Readonly<Record<string, unknown>>;
+  /** The same FRFs, typed (without the 0 Hz line when it was dropped). */
+  readonly frf: FrfData;
 }
 
 /**
@@ -120,7 +125,25 @@ export function frfTableParts(
     { name: "frequency_hz", unit: "", values: estimate.frequencies },
     ...responses.flatMap((r) => responseColumns(r, estimate.averages)),
   ];
+  const from = dividedAtDc ? 1 : 0;
+  const frf: FrfData = {
+    frequencies: estimate.frequencies.subarray(from),
+    channels: responses.map((r, i) => {
+      const re = r.h.re.subarray(from), im = r.h.im.subarray(from);
+      const responseForm = form ?? measured[i];
+      return {
+        name: r.name,
+        unit: r.unit,
+        re,
+        im,
+        magnitude: re.map((v, k) => Math.hypot(v, im[k])),
+        coherence: r.coherence.subarray(from),
+        ...(responseForm !== undefined ? { form: responseForm } : {}),
+      };
+    }),
+  };
   return {
+    frf,
     columns: dividedAtDc ? columns.map((c) => ({ ...c, values: c.values.subarray(1) })) : columns,
     metadata: {
       estimator,
@@ -248,6 +271,7 @@ function frfResult(
     ...(estimate.averages > 1 ? lowCoherenceWarnings(parts.columns) : []),
   ];
   return {
+    frf: parts.frf,
     warnings,
     table: {
       columns: parts.columns,

@@ -21,6 +21,7 @@ import type { Table } from "../io/table.ts";
 import { SpectralAccumulator } from "../dsp/spectral_core.ts";
 import type { FrfForm } from "./forms.ts";
 import { frfTableParts, SINGLE_AVERAGE_WARNING } from "./frf_analysis.ts";
+import type { FrfData } from "./frf_data.ts";
 import { findHits, type Hit } from "./hits.ts";
 import { channelsWarnings } from "../io/signal_checks.ts";
 
@@ -50,6 +51,8 @@ export interface HammerOptions {
 
 /** The averaged FRF, the hit log and the warnings. */
 export interface HammerResult {
+  /** The FRFs, typed, with the exponential window's time constant when one was applied. */
+  readonly frf: FrfData;
   /** FRF table, the same layout as `frf`'s. */
   readonly table: Table;
   /** Hit log: `hit`, `time_s`, `peak`, `status`. */
@@ -240,5 +243,6 @@ export function hammerFrf(recording: Recording, options: HammerOptions): HammerR
     ],
     metadata: { analysis: "hammer hits", force: force.name, force_unit: force.unit, summary },
   };
-  return { table, hitLog, hits, warnings, summary };
+  const frf: FrfData = { ...parts.frf, ...(tau !== undefined ? { expTau: tau } : {}) };
+  return { frf, table, hitLog, hits, warnings, summary };
 }

@@ -16,5 +16,6 @@
 export { coherence, type Estimator, ESTIMATORS, frfEstimate } from "./estimators.ts";
 export { convertFrfForm, FRF_FORMS, type FrfForm, frfUnit } from "./forms.ts";
 export { frequencyResponse, type FrfOptions, type FrfResult } from "./frf_analysis.ts";
+export type { FrfChannel, FrfData } from "./frf_data.ts";
 export { hammerFrf, type HammerOptions, type HammerResult } from "./hammer.ts";
 export { findHits, type Hit, type HitOptions, type HitStatus } from "./hits.ts";

@@ -136,7 +136,7 @@ export type ResultMetadata<A extends ResultAnalysis> = z.infer<typeof RESULT_MET
  * @example
  * ```ts
  * import { resultMetadata } from "./result_metadata.ts";
- * const table = { file: "b.json", columns: [], metadata: { analysis: "bands", overall: [{ channel: "mic", level_db: 71.2, unit: "dB(A)" }] } };
+ * const table = { file: "b.json", columns: [], metadata: { analysis: "bands", fraction: 3, weighting: "A", overall: [{ channel: "mic", level_db: 71.2, unit: "dB(A)" }] } };
  * if (resultMetadata(table, "bands").overall[0].level_db !== 71.2) throw new Error();
  * ```
  */

@@ -1,48 +1,26 @@
 /**
- * Reading FRF tables for modal analysis: the CSV or JSON that `frf` and
- * `hammer` write (columns `R_re`, `R_im`, `R_mag`, `R_phase_deg`,
- * `R_coherence` per response R, metadata in the JSON or in the CSV's
- * `.meta.json` sidecar), or a plain table from elsewhere such as a solver
- * export: `frequency_hz` plus `re` and `im`, or `mag` (linear) with an
- * optional `phase_deg`, or `mag_db` (20·log10|H|).
+ * Reading FRF tables for modal analysis.
+ *
+ * - What `frf` and `hammer` write (JSON, or CSV with its `.meta.json`
+ *   sidecar): the metadata lists the responses with their forms
+ *   (result_metadata.ts), and each response R's columns are read by their
+ *   exact names `R_re`, `R_im`, `R_coherence`.
+ * - A plain table from elsewhere, such as a solver export, without quiver
+ *   metadata: `frequency_hz` plus `re` and `im`, or `mag` (linear) with an
+ *   optional `phase_deg`, or `mag_db` (20·log10|H|); several FRFs as
+ *   `R_re`/`R_im` (or `R_mag`, `R_mag_db`, `R_phase_deg`) per name R. This
+ *   naming convention is the only thing a foreign table can tell us.
  *
  * @module
  */
-import { readSidecar } from "../io/table_file.ts";
-import { readFile } from "node:fs/promises";
 import { QuiverError } from "../errors.ts";
-import { type CsvTableOptions, type HeaderCell, parseNumericCsv } from "../io/csv_table.ts";
+import type { CsvTableOptions } from "../io/csv_table.ts";
+import { readResultFile } from "../io/result_file.ts";
+import { RESULT_METADATA } from "../io/result_metadata.ts";
 import { formOfResponseUnit, type FrfForm } from "../frf/forms.ts";
 
-/** One FRF of the table. */
-export interface FrfChannel {
-  /** Response name (`frf` for a plain table). */
-  readonly name: string;
-  /** Unit of H as given, "" when unknown. */
-  readonly unit: string;
-  /** Real part, when the table has phase. */
-  readonly re?: Float64Array;
-  /** Imaginary part, when the table has phase. */
-  readonly im?: Float64Array;
-  /** |H|. */
-  readonly magnitude: Float64Array;
-  /** Ordinary coherence, when the table has it. */
-  readonly coherence?: Float64Array;
-  /** The FRF form, from the metadata or the unit; undefined when neither says. */
-  readonly form?: FrfForm;
-}
-
-/** An FRF table ready for modal analysis. */
-export interface FrfData {
-  /** Frequencies, strictly increasing, Hz. */
-  readonly frequencies: Float64Array;
-  /** The FRFs. */
-  readonly channels: readonly FrfChannel[];
-  /** Exponential window time constant applied to the records, s, when known. */
-  readonly expTau?: number;
-  /** The table's own metadata, when it had any. */
-  readonly metadata?: Readonly<Record<string, unknown>>;
-}
+export type { FrfChannel, FrfData } from "../frf/frf_data.ts";
+import type { FrfChannel, FrfData } from "../frf/frf_data.ts";
 
 /** A column as found in a file. */
 interface NamedColumn {
@@ -102,20 +80,26 @@ export function frfFromColumns(
     }
   }
   const byName = new Map(columns.map((c) => [c.name, c]));
-  const prefixes: string[] = [];
-  for (const c of columns) {
-    const suffix = SUFFIXES.find((s) => c.name.endsWith(s) && c.name.length > s.length);
-    if (suffix === undefined) continue;
-    const prefix = c.name.slice(0, -suffix.length);
-    if (!prefixes.includes(prefix)) prefixes.push(prefix);
-  }
+  const quiver = RESULT_METADATA.frf.safeParse(metadata ?? {});
   const responseForms = new Map<string, FrfForm>();
-  const responses = metadata?.responses;
-  if (Array.isArray(responses)) {
-    for (const r of responses) {
-      if (typeof r?.name === "string" && typeof r?.form === "string") {
-        responseForms.set(r.name, r.form);
+  let names: string[];
+  if (quiver.success) {
+    // quiver's own FRF: the responses and their forms are listed; their columns have fixed names.
+    names = quiver.data.responses.map((r) => r.name);
+    for (const r of quiver.data.responses) if (r.form !== null) responseForms.set(r.name, r.form);
+    for (const name of names) {
+      if (!byName.has(`${name}_re`) || !byName.has(`${name}_im`)) {
+        fail(`the metadata lists response "${name}" but the table lacks ${name}_re or ${name}_im`);
       }
+    }
+  } else {
+    // A foreign table: FRFs by the naming convention R_re/R_im, R_mag, R_mag_db.
+    names = [];
+    for (const c of columns) {
+      const suffix = SUFFIXES.find((s) => c.name.endsWith(s) && c.name.length > s.length);
+      if (suffix === undefined) continue;
+      const prefix = c.name.slice(0, -suffix.length);
+      if (!names.includes(prefix)) names.push(prefix);
     }
   }
   const build = (
@@ -156,11 +140,11 @@ export function frfFromColumns(
     };
   };
   const channels: FrfChannel[] = [];
-  for (const prefix of prefixes) {
+  for (const prefix of names) {
     const channel = build(prefix, (part) => byName.get(`${prefix}_${part}`));
     if (channel !== undefined) channels.push(channel);
   }
-  if (channels.length === 0) {
+  if (channels.length === 0 && !quiver.success) {
     const plain = build("frf", (part) => byName.get(part));
     if (plain !== undefined) channels.push(plain);
   }
@@ -169,33 +153,13 @@ export function frfFromColumns(
       'no FRF columns: expected R_re/R_im (or R_mag) per response, or plain "re"/"im", "mag" or "mag_db"',
     );
   }
-  const tau = metadata?.exponential_window_tau_s;
+  const tau = quiver.success ? quiver.data.exponential_window_tau_s : undefined;
   return {
     frequencies: f,
     channels,
     ...(typeof tau === "number" ? { expTau: tau } : {}),
     ...(metadata !== undefined ? { metadata } : {}),
   };
-}
-
-interface JsonTable {
-  metadata?: Record<string, unknown>;
-  columns: { name: string; unit?: string; values: number[] }[];
-}
-
-function isJsonTable(value: unknown): value is JsonTable {
-  const v = value as JsonTable;
-  return typeof v === "object" && v !== null && Array.isArray(v.columns) &&
-    v.columns.every((c) => typeof c?.name === "string" && Array.isArray(c.values));
-}
-
-async function readText(path: string): Promise<string | undefined> {
-  try {
-    return await readFile(path, "utf8");
-  } catch (error) {
-    if ((error as { code?: string }).code === "ENOENT") return undefined;
-    throw new QuiverError(`cannot read: ${(error as Error).message}`, { file: path }, "usage");
-  }
 }
 
 /**
@@ -215,39 +179,14 @@ async function readText(path: string): Promise<string | undefined> {
  * ```
  */
 export async function readFrfFile(path: string, options: CsvTableOptions = {}): Promise<FrfData> {
-  const text = await readText(path);
-  if (text === undefined) {
-    throw new QuiverError("cannot read: no such file", { file: path }, "usage");
-  }
-  if (text.trimStart().startsWith("{")) {
-    let json: unknown;
-    try {
-      json = JSON.parse(text);
-    } catch (error) {
-      throw new QuiverError(`not valid JSON: ${(error as Error).message}`, { file: path });
+  const table = await readResultFile(path, options);
+  const columns = table.columns.map((c, i) => {
+    if (!(c.values instanceof Float64Array)) {
+      throw new QuiverError(`column ${i + 1} ("${c.name}") holds text, not numbers`, {
+        file: path,
+      });
     }
-    if (!isJsonTable(json)) {
-      throw new QuiverError("JSON without a columns array of {name, values}", { file: path });
-    }
-    const columns = json.columns.map((c, i) => {
-      if (!c.values.every((v) => typeof v === "number" && Number.isFinite(v))) {
-        throw new QuiverError(
-          `column ${i + 1} ("${c.name}") holds values that are not finite numbers`,
-          {
-            file: path,
-          },
-        );
-      }
-      return { name: c.name, unit: c.unit ?? "", values: new Float64Array(c.values) };
-    });
-    return frfFromColumns(columns, json.metadata, path);
-  }
-  const table = parseNumericCsv(text, { ...options, file: path });
-  const metadata = (await readSidecar(path, text, table.header))?.metadata;
-  const columns = table.header.map((h: HeaderCell, i) => ({
-    name: h.name,
-    unit: h.unit,
-    values: table.columns[i],
-  }));
-  return frfFromColumns(columns, metadata, path, table.lines);
+    return { name: c.name, unit: c.unit, values: c.values };
+  });
+  return frfFromColumns(columns, table.metadata, path, table.lines);
 }

@@ -5,7 +5,7 @@
  * @example
  * ```ts
  * import { frequencyResponse } from "../frf/mod.ts";
- * import { frfFromColumns, modalDamping } from "./mod.ts";
+ * import { modalDamping } from "./mod.ts";
  * // A 40 Hz mode (ζ 2 %) under random force: its displacement by the exact recursion.
  * const rate = 1024, n = 1 << 18, w = 2 * Math.PI * 40, zeta = 0.02, T = 1 / rate;
  * let seed = 7;
@@ -13,8 +13,8 @@
  * const wd = w * Math.sqrt(1 - zeta * zeta), r = Math.exp(-zeta * w * T), tip = new Float64Array(n);
  * for (let i = 2; i < n; i++) tip[i] = 2 * r * Math.cos(wd * T) * tip[i - 1] - r * r * tip[i - 2] + (T / wd) * r * Math.sin(wd * T) * force[i - 1];
  * const rec = { rate, startTime: 0, channels: [{ name: "force", unit: "N", data: force }, { name: "tip", unit: "m", data: tip }] };
- * const { table } = await frequencyResponse(rec, { input: "force", outputs: ["tip"], block: 4096 });
- * const [mode] = modalDamping(frfFromColumns(table.columns, table.metadata), { minHz: 20, maxHz: 80 }).modes;
+ * const { frf } = await frequencyResponse(rec, { input: "force", outputs: ["tip"], block: 4096 });
+ * const [mode] = modalDamping(frf, { minHz: 20, maxHz: 80 }).modes;
  * if (Math.abs(mode.frequencyHz - 40) > 0.1 || Math.abs(mode.dampingRatio / zeta - 1) > 0.1) throw new Error();
  * ```
  *

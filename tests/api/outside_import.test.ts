@@ -13,15 +13,15 @@ test("a Deno script outside the project imports mod.ts by path and gets an H1 FR
   const dir = await mkdtemp("/tmp/quiver-outside-");
   await writeFile(
     `${dir}/script.ts`,
-    `import { frequencyResponse, frfFromColumns, modalDamping } from "${MOD}";
+    `import { frequencyResponse, modalDamping } from "${MOD}";
 const rate = 1024, n = 1 << 18, w = 2 * Math.PI * 40, zeta = 0.02, T = 1 / rate;
 let seed = 7;
 const force = new Float64Array(n).map(() => (seed = (seed * 16807) % 2147483647) / 2147483647 - 0.5);
 const wd = w * Math.sqrt(1 - zeta * zeta), r = Math.exp(-zeta * w * T), tip = new Float64Array(n);
 for (let i = 2; i < n; i++) tip[i] = 2 * r * Math.cos(wd * T) * tip[i - 1] - r * r * tip[i - 2] + (T / wd) * r * Math.sin(wd * T) * force[i - 1];
 const rec = { rate, startTime: 0, channels: [{ name: "force", unit: "N", data: force }, { name: "tip", unit: "m", data: tip }] };
-const { table } = await frequencyResponse(rec, { input: "force", outputs: ["tip"], block: 4096 });
-const [mode] = modalDamping(frfFromColumns(table.columns, table.metadata), { minHz: 20, maxHz: 80 }).modes;
+const { frf } = await frequencyResponse(rec, { input: "force", outputs: ["tip"], block: 4096 });
+const [mode] = modalDamping(frf, { minHz: 20, maxHz: 80 }).modes;
 console.log(JSON.stringify({ hz: mode.frequencyHz, zeta: mode.dampingRatio }));
 `,
   );
