@@ -30,7 +30,15 @@ import { FilterBankMeter, type FilterBankPowers } from "./filter_bank.ts";
 import { levelDb, levelReference, levelUnit } from "./levels.ts";
 import { type Weighting, weightingDb } from "./weighting.ts";
 
-/** How band levels are computed. */
+/**
+ * How band levels are computed.
+ *
+ * @example
+ * ```ts
+ * import { BAND_METHODS } from "./band_analysis.ts";
+ * if (!BAND_METHODS.includes("filter")) throw new Error();
+ * ```
+ */
 export const BAND_METHODS = ["fft", "filter"] as const;
 
 /** One of {@linkcode BAND_METHODS}. */

@@ -16,7 +16,15 @@
  */
 import { parseChoice } from "../choices.ts";
 
-/** The bandwidth designators quiver offers. */
+/**
+ * The bandwidth designators quiver offers.
+ *
+ * @example
+ * ```ts
+ * import { BAND_FRACTIONS } from "./bands.ts";
+ * if (BAND_FRACTIONS[1] !== 3) throw new Error(); // one-third octaves
+ * ```
+ */
 export const BAND_FRACTIONS = [1, 3, 6, 12, 24] as const;
 
 /** One of {@linkcode BAND_FRACTIONS}. */

@@ -11,7 +11,15 @@
  */
 import { parseChoice } from "../choices.ts";
 
-/** The time weightings. */
+/**
+ * The time weightings.
+ *
+ * @example
+ * ```ts
+ * import { TIME_WEIGHTINGS } from "./time_weighting.ts";
+ * if (TIME_WEIGHTINGS.join() !== "fast,slow,none") throw new Error();
+ * ```
+ */
 export const TIME_WEIGHTINGS = ["fast", "slow", "none"] as const;
 
 /** One of {@linkcode TIME_WEIGHTINGS}; `none` gives Leq over each step. */

@@ -27,7 +27,15 @@
 import { parseChoice } from "../choices.ts";
 import { type Biquad, cascadeResponse, normaliseCascade, sectionFromRoots } from "./biquad.ts";
 
-/** The frequency weightings. */
+/**
+ * The frequency weightings.
+ *
+ * @example
+ * ```ts
+ * import { WEIGHTINGS } from "./weighting.ts";
+ * if (!WEIGHTINGS.includes("A")) throw new Error();
+ * ```
+ */
 export const WEIGHTINGS = ["A", "C", "Z"] as const;
 
 /** One of {@linkcode WEIGHTINGS}. */

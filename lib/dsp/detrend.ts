@@ -5,7 +5,15 @@
  */
 import { parseChoice } from "../choices.ts";
 
-/** What to remove from each segment before windowing. */
+/**
+ * What to remove from each segment before windowing.
+ *
+ * @example
+ * ```ts
+ * import { DETREND_MODES } from "./detrend.ts";
+ * if (!DETREND_MODES.includes("linear")) throw new Error();
+ * ```
+ */
 export const DETREND_MODES = ["none", "mean", "linear"] as const;
 
 /** `none`, `mean` (remove the segment mean) or `linear` (least-squares line). */

@@ -23,7 +23,15 @@ import { type RealFftPlan, realFftPlan } from "./fft.ts";
 import { detrendInPlace, type DetrendMode } from "./detrend.ts";
 import { windowGains, type WindowName, windowSamples } from "./windows.ts";
 
-/** How successive segment spectra are combined. */
+/**
+ * How successive segment spectra are combined.
+ *
+ * @example
+ * ```ts
+ * import { AVERAGING_MODES } from "./spectral_core.ts";
+ * if (AVERAGING_MODES[0] !== "linear") throw new Error(); // Welch's mean, the default
+ * ```
+ */
 export const AVERAGING_MODES = ["linear", "exponential", "max"] as const;
 
 /**

@@ -18,7 +18,15 @@
 import { parseChoice } from "../choices.ts";
 import { oneSidedWeights, scaleFactor, type SpectralEstimate } from "./spectral_core.ts";
 
-/** The spectrum kinds. */
+/**
+ * The spectrum kinds.
+ *
+ * @example
+ * ```ts
+ * import { SPECTRUM_KINDS } from "./spectrum_kinds.ts";
+ * if (!SPECTRUM_KINDS.includes("psd")) throw new Error();
+ * ```
+ */
 export const SPECTRUM_KINDS = ["psd", "power", "rms", "peak"] as const;
 
 /** One of {@linkcode SPECTRUM_KINDS}. */

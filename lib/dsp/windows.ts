@@ -10,7 +10,15 @@
  */
 import { parseChoice } from "../choices.ts";
 
-/** The windows quiver offers. */
+/**
+ * The windows quiver offers.
+ *
+ * @example
+ * ```ts
+ * import { WINDOW_NAMES } from "./windows.ts";
+ * if (!WINDOW_NAMES.includes("hann") || !WINDOW_NAMES.includes("flattop")) throw new Error();
+ * ```
+ */
 export const WINDOW_NAMES = [
   "rectangular",
   "hann",

@@ -16,7 +16,15 @@
  */
 import { parseChoice } from "../choices.ts";
 
-/** The FRF estimators. */
+/**
+ * The FRF estimators.
+ *
+ * @example
+ * ```ts
+ * import { ESTIMATORS } from "./estimators.ts";
+ * if (ESTIMATORS.join() !== "h1,h2,hv") throw new Error();
+ * ```
+ */
 export const ESTIMATORS = ["h1", "h2", "hv"] as const;
 
 /** One of {@linkcode ESTIMATORS}. */

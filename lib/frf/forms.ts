@@ -12,7 +12,15 @@
 import { parseChoice } from "../choices.ts";
 import type { ComplexSpectrum } from "./estimators.ts";
 
-/** The FRF forms, ordered by the power of jω relative to receptance. */
+/**
+ * The FRF forms, ordered by the power of jω relative to receptance.
+ *
+ * @example
+ * ```ts
+ * import { FRF_FORMS } from "./forms.ts";
+ * if (FRF_FORMS.indexOf("accelerance") - FRF_FORMS.indexOf("receptance") !== 2) throw new Error(); // (jω)²
+ * ```
+ */
 export const FRF_FORMS = ["receptance", "mobility", "accelerance"] as const;
 
 /** One of {@linkcode FRF_FORMS}. */

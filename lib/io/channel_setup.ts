@@ -47,7 +47,16 @@ const channelEntrySchema = z.strictObject({
   description: z.string().optional(),
 });
 
-/** The zod schema of a channel set-up file. */
+/**
+ * The zod schema of a channel set-up file.
+ *
+ * @example
+ * ```ts
+ * import { channelSetupSchema } from "./channel_setup.ts";
+ * const ok = channelSetupSchema.safeParse({ channels: { ch1: { name: "driver_ear", unit: "Pa", sensitivity_mv_per_unit: 50 } } });
+ * if (!ok.success) throw new Error();
+ * ```
+ */
 export const channelSetupSchema = z.strictObject({
   description: z.string().optional(),
   channels: z.record(z.string(), channelEntrySchema),

@@ -41,4 +41,11 @@ export { type BaseUnit, baseUnit, STANDARD_GRAVITY } from "./units.ts";
 export { channelWarnings } from "./signal_checks.ts";
 export { formatCsv, formatJson, type Table, type TableColumn } from "./table.ts";
 export { readSidecar, type Sidecar, writeCsvPair } from "./table_file.ts";
+export { numericColumn, readResultFile, type ResultTable } from "./result_file.ts";
+export {
+  RESULT_METADATA,
+  type ResultAnalysis,
+  type ResultMetadata,
+  resultMetadata,
+} from "./result_metadata.ts";
 export { writeFileAtomic } from "./atomic_write.ts";

@@ -5,7 +5,15 @@
  */
 import { QuiverError } from "../errors.ts";
 
-/** What a channel measures, as the channel set-up declares it. */
+/**
+ * What a channel measures, as the channel set-up declares it.
+ *
+ * @example
+ * ```ts
+ * import { CHANNEL_ROLES } from "./recording.ts";
+ * if (!CHANNEL_ROLES.includes("force")) throw new Error();
+ * ```
+ */
 export const CHANNEL_ROLES = [
   "force",
   "response",

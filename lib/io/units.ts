@@ -20,7 +20,15 @@
  * @module
  */
 
-/** Standard acceleration of gravity, m/s² (ISO 80000-3:2019). */
+/**
+ * Standard acceleration of gravity, m/s² (ISO 80000-3:2019).
+ *
+ * @example
+ * ```ts
+ * import { STANDARD_GRAVITY } from "./units.ts";
+ * if (STANDARD_GRAVITY !== 9.80665) throw new Error();
+ * ```
+ */
 export const STANDARD_GRAVITY = 9.80665;
 
 /** A unit's SI base unit and the factor from the unit to it. */

@@ -33,7 +33,15 @@ import { halfPower, type HalfPowerEstimate } from "./half_power.ts";
 import { findPeaks, type Peak } from "./peaks.ts";
 import { fitSdof, type SdofFit } from "./sdof_fit.ts";
 
-/** Which estimates to make. */
+/**
+ * Which estimates to make.
+ *
+ * @example
+ * ```ts
+ * import { DAMPING_METHODS } from "./damping_analysis.ts";
+ * if (!DAMPING_METHODS.includes("both")) throw new Error();
+ * ```
+ */
 export const DAMPING_METHODS = ["half-power", "sdof-fit", "both"] as const;
 
 /** One of {@linkcode DAMPING_METHODS}. */

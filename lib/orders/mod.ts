@@ -19,3 +19,11 @@ export {
   trackOrders,
 } from "./order_tracking.ts";
 export { motionFromPulses, motionFromRpm, type ShaftMotion, tachoPulses } from "./tacho.ts";
+export { type RpmSpectrogramOptions, spectrogramAgainstRpm } from "./rpm_spectrogram.ts";
+export {
+  type RpmStepOptions,
+  rpmSteps,
+  shaftMotion,
+  type SpeedSource,
+  timeAtRpm,
+} from "./speed.ts";

@@ -47,7 +47,15 @@ import {
   timeAtRpm,
 } from "./speed.ts";
 
-/** The order-tracking methods. */
+/**
+ * The order-tracking methods.
+ *
+ * @example
+ * ```ts
+ * import { ORDER_METHODS } from "./order_tracking.ts";
+ * if (ORDER_METHODS[0] !== "angle") throw new Error(); // the default
+ * ```
+ */
 export const ORDER_METHODS = ["angle", "time"] as const;
 
 /** One of {@linkcode ORDER_METHODS}. */

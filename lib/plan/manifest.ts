@@ -29,7 +29,15 @@ const step = z.strictObject({
   seconds: z.number(),
 });
 
-/** The zod schema of a manifest. */
+/**
+ * The zod schema of a manifest.
+ *
+ * @example
+ * ```ts
+ * import { manifestSchema } from "./manifest.ts";
+ * if (manifestSchema.safeParse({ status: "ok" }).success) throw new Error(); // far from complete
+ * ```
+ */
 export const manifestSchema = z.strictObject({
   quiver_version: z.string(),
   plan: fileRecord.extend({ title: z.string() }),

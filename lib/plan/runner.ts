@@ -375,6 +375,25 @@ export interface RunOptions {
  *
  * @throws {QuiverError} (usage) for a plan that fails validation; step
  * failures are recorded in the manifest instead.
+ *
+ * @example
+ * ```ts
+ * import { runPlan } from "./runner.ts";
+ * import { mkdtemp, writeFile } from "node:fs/promises";
+ * const dir = await mkdtemp("/tmp/quiver-doc-");
+ * await writeFile(`${dir}/run.csv`, "time_s,mic [Pa]\n0,0\n0.5,1\n1,0\n");
+ * await writeFile(`${dir}/plan.json`, JSON.stringify({ quiver_plan: 1, title: "doc",
+ *   recordings: { r: { file: "run.csv" } }, analyses: [{ id: "s", command: "spectrum", recording: "r", options: {} }],
+ *   report: { title: "doc" } }));
+ * // A stand-in command writing a two-line spectrum; quiver's own commands come from cli/commands.ts.
+ * const spectrum = { validate() {}, async run(argv: readonly string[]) {
+ *   await writeFile(argv[argv.indexOf("--out") + 1], JSON.stringify({
+ *     metadata: { analysis: "spectrum", kind: "rms", df_hz: 1, averages: 1, window: "hann" },
+ *     columns: [{ name: "frequency_hz", unit: "", values: [0, 1] }, { name: "mic", unit: "Pa", values: [0, 0.5] }] }));
+ * } };
+ * const manifest = await runPlan(`${dir}/plan.json`, { outDir: `${dir}/out`, commands: { spectrum }, progress: { start() {}, end() {} } });
+ * if (manifest.status !== "ok" || manifest.steps[0].outputs.out.sha256.length !== 64) throw new Error();
+ * ```
  */
 export async function runPlan(planFile: string, options: RunOptions): Promise<Manifest> {
   const started = new Date().toISOString();

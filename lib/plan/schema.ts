@@ -119,7 +119,17 @@ const curveTarget = z.strictObject({
   points: z.array(z.tuple([z.number().positive(), z.number()])).min(2),
 });
 
-/** The zod schema of a plan file. */
+/**
+ * The zod schema of a plan file.
+ *
+ * @example
+ * ```ts
+ * import { planSchema } from "./schema.ts";
+ * const plan = planSchema.parse({ quiver_plan: 1, title: "t", recordings: { r: { file: "r.csv" } },
+ *   analyses: [{ id: "s", command: "spectrum", recording: "r", options: { kind: "rms" } }] });
+ * if (plan.analyses[0].command !== "spectrum") throw new Error();
+ * ```
+ */
 export const planSchema = z.strictObject({
   quiver_plan: z.literal(1),
   title: z.string().min(1),

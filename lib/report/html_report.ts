@@ -355,6 +355,26 @@ tr.unchecked td { color: #6b7785; }
 /**
  * Writes `<outDir>/<file>` and `<outDir>/figures/*.svg` from a finished run.
  * Returns the report's path.
+ *
+ * @example
+ * ```ts
+ * import { writeReport } from "./html_report.ts";
+ * import { runPlan } from "../plan/runner.ts";
+ * import { mkdtemp, readFile, writeFile } from "node:fs/promises";
+ * const dir = await mkdtemp("/tmp/quiver-doc-");
+ * await writeFile(`${dir}/run.csv`, "time_s,mic [Pa]\n0,0\n0.5,1\n1,0\n");
+ * await writeFile(`${dir}/plan.json`, JSON.stringify({ quiver_plan: 1, title: "doc",
+ *   recordings: { r: { file: "run.csv" } }, analyses: [{ id: "s", command: "spectrum", recording: "r", options: {} }],
+ *   report: { title: "doc" } }));
+ * // A stand-in command writing a two-line spectrum; quiver's own commands come from cli/commands.ts.
+ * const spectrum = { validate() {}, async run(argv: readonly string[]) {
+ *   await writeFile(argv[argv.indexOf("--out") + 1], JSON.stringify({
+ *     metadata: { analysis: "spectrum", kind: "rms", df_hz: 1, averages: 1, window: "hann" },
+ *     columns: [{ name: "frequency_hz", unit: "", values: [0, 1] }, { name: "mic", unit: "Pa", values: [0, 0.5] }] }));
+ * } };
+ * await runPlan(`${dir}/plan.json`, { outDir: `${dir}/out`, commands: { spectrum }, progress: { start() {}, end() {} }, report: writeReport });
+ * if (!(await readFile(`${dir}/out/report.html`, "utf8")).includes("<svg")) throw new Error();
+ * ```
  */
 export async function writeReport(outDir: string, manifest: Manifest, plan: Plan): Promise<string> {
   const sections: Section[] = [];
