@@ -7,13 +7,16 @@ import { toStderr } from "./terminal.ts";
 import { z } from "npm:zod@4.6.7";
 import { FRF_FORMS } from "../lib/frf/forms.ts";
 import { hammerFrf } from "../lib/frf/hammer.ts";
-import { collectRecording, openRecordingStream } from "../lib/io/recording_stream.ts";
-import { channelIndices } from "../lib/io/recording.ts";
 import { formatCsv } from "../lib/io/table.ts";
 import { writeFileAtomic } from "../lib/io/atomic_write.ts";
-import { inFile, listOption, numberOption, parseCommandArgs, usageError } from "./args.ts";
+import { listOption, numberOption, parseCommandArgs, usageError } from "./args.ts";
 import { writeResult } from "./output.ts";
-import { RECORDING_HEADING, RECORDING_TABLE, toReadOptions } from "./recording_options.ts";
+import {
+  analyseRecording,
+  RECORDING_HEADING,
+  RECORDING_TABLE,
+  toReadOptions,
+} from "./recording_options.ts";
 import { OUTPUT_TABLE } from "./segment_options.ts";
 import { commandHelp, libraryOptions, option, shapeOf, specOf } from "./option_table.ts";
 
@@ -126,15 +129,9 @@ export async function run(argv: readonly string[]): Promise<void> {
     usageError("--out and --hits-out name the same file");
   }
   const [input] = positionals;
-  // Only the channels the analysis needs are held in memory, read through the chunked reader.
-  const stream = await openRecordingStream(input, toReadOptions(values));
-  const needed = inFile(
-    input,
-    () => channelIndices(stream.channels, [values.force, ...values.outputs]),
-  );
-  const recording = await collectRecording(stream, needed);
-  const result = inFile(input, () =>
-    hammerFrf(recording, {
+  // The analysis spools the channels it needs once through the chunked reader: flat memory.
+  const result = await analyseRecording(input, toReadOptions(values), (stream) =>
+    hammerFrf(stream, {
       ...libraryOptions(CHANNELS, values),
       ...libraryOptions(HITS, values),
       ...libraryOptions(WINDOWS, values),

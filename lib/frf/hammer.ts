@@ -16,7 +16,9 @@
  * @module
  */
 import { QuiverError } from "../errors.ts";
-import { type Recording, selectChannels } from "../io/recording.ts";
+import { channelIndices, type Recording } from "../io/recording.ts";
+import { asStream, type RecordingSource } from "../io/recording_stream.ts";
+import { memorySeries, type SampleSeries, spoolChannels } from "../io/sample_series.ts";
 import type { Table } from "../io/table.ts";
 import { SpectralAccumulator } from "../dsp/spectral_core.ts";
 import type { FrfForm } from "./forms.ts";
@@ -99,13 +101,16 @@ function forceWindowSamples(size: number, length: number): Float64Array {
  * for (const at of [0.5, 1.5, 2.5, 3.5]) {
  *   for (let i = 0; i < 10; i++) force[Math.round(at * rate) + i] = 100 * Math.sin(Math.PI * (i + 0.5) / 10);
  * }
- * const r = hammerFrf({ rate, startTime: 0, channels: [{ name: "hammer", unit: "N", data: force },
+ * const r = await hammerFrf({ rate, startTime: 0, channels: [{ name: "hammer", unit: "N", data: force },
  *   { name: "tip", unit: "m/s^2", data: force.map((v) => 0.5 * v) }] }, { force: "hammer", outputs: ["tip"] });
  * const mag = r.table.columns.find((c) => c.name === "tip_mag")!.values;
  * if (r.table.metadata.averages !== 4 || Math.abs(mag[10] - 0.5) > 1e-9) throw new Error();
  * ```
  */
-export function hammerFrf(recording: Recording, options: HammerOptions): HammerResult {
+export async function hammerFrf(
+  source: RecordingSource,
+  options: HammerOptions,
+): Promise<HammerResult> {
   if (options.outputs.length === 0) throw new RangeError("name at least one response channel");
   if (options.expTau !== undefined && options.expEnd !== undefined) {
     throw new RangeError(
@@ -137,10 +142,45 @@ export function hammerFrf(recording: Recording, options: HammerOptions): HammerR
   if (options.outputs.includes(options.force)) {
     throw new QuiverError(`"${options.force}" is both force and response`, {}, "usage");
   }
-  const [force, ...outputs] = selectChannels(recording, [options.force, ...options.outputs]);
-  const rate = recording.rate;
+  const stream = asStream(source);
+  const indices = channelIndices(stream.channels, [options.force, ...options.outputs]);
+  const [force, ...outputs] = indices.map((i) => stream.channels[i]);
+  // A recording in memory is used as it is; one read from a file is spooled once, so memory
+  // stays flat however long the test ran (sample_series.ts).
+  const spool = "read" in source ? await spoolChannels(stream, indices) : undefined;
+  try {
+    const series = spool?.series ??
+      indices.map((i) => memorySeries((source as Recording).channels[i].data));
+    const signalWarnings = spool !== undefined
+      ? spool.warnings.slice(1).flat()
+      : channelsWarnings(indices.slice(1).map((i) => (source as Recording).channels[i]));
+    return analyseHits(series, {
+      rate: stream.rate,
+      startTime: stream.startTime,
+      force,
+      outputs,
+      signalWarnings,
+    }, options);
+  } finally {
+    spool?.close();
+  }
+}
+
+/** The hammer analysis on the channels' series (force first). */
+function analyseHits(
+  series: readonly SampleSeries[],
+  channelInfo: {
+    rate: number;
+    startTime: number;
+    force: { name: string; unit: string };
+    outputs: readonly { name: string; unit: string }[];
+    signalWarnings: readonly string[];
+  },
+  options: HammerOptions,
+): HammerResult {
+  const { rate, startTime, force, outputs } = channelInfo;
   const pretriggerSamples = Math.round((options.pretrigger ?? 0.01) * rate);
-  const detection = findHits(force.data, {
+  const detection = findHits(series[0], {
     pretriggerSamples,
     ...(options.record !== undefined ? { recordSamples: Math.round(options.record * rate) } : {}),
     ...(options.trigger !== undefined ? { trigger: options.trigger } : {}),
@@ -170,7 +210,7 @@ export function hammerFrf(recording: Recording, options: HammerOptions): HammerR
     tau === undefined ? 1 : Math.exp(-i / (rate * tau))
   );
   const channels = [force, ...outputs];
-  const accumulator = new SpectralAccumulator(channels.length, {
+  const accumulator = new SpectralAccumulator(series.length, {
     rate,
     block: recordSamples,
     overlap: 0,
@@ -182,9 +222,9 @@ export function hammerFrf(recording: Recording, options: HammerOptions): HammerR
   const records = channels.map(() => new Float64Array(recordSamples));
   for (const hit of accepted) {
     const start = hit.sample - pretriggerSamples;
-    channels.forEach((channel, c) => {
+    series.forEach((channel, c) => {
       const record = records[c];
-      record.set(channel.data.subarray(start, start + recordSamples));
+      record.set(channel.read(start, start + recordSamples));
       let offset = 0;
       for (let i = 0; i < baselineSamples; i++) offset += record[i];
       offset /= baselineSamples;
@@ -203,10 +243,10 @@ export function hammerFrf(recording: Recording, options: HammerOptions): HammerR
   });
   const warnings = [
     ...(accepted.length === 1 ? [SINGLE_AVERAGE_WARNING] : []),
-    ...channelsWarnings(outputs),
+    ...channelInfo.signalWarnings,
     ...hits.filter((h) => h.status !== "accepted").map((h) =>
       `hit ${h.hit} at ${
-        (recording.startTime + h.sample / rate).toFixed(4)
+        (startTime + h.sample / rate).toFixed(4)
       } s left out: ${h.status} (${h.reason})`
     ),
   ];
@@ -236,7 +276,7 @@ export function hammerFrf(recording: Recording, options: HammerOptions): HammerR
       {
         name: "time_s",
         unit: "",
-        values: new Float64Array(hits.map((h) => recording.startTime + h.sample / rate)),
+        values: new Float64Array(hits.map((h) => startTime + h.sample / rate)),
       },
       { name: "peak", unit: "", values: new Float64Array(hits.map((h) => h.peak)) },
       { name: "status", unit: "", values: hits.map((h) => h.status) },

@@ -23,6 +23,7 @@
  */
 import { QuiverError } from "../errors.ts";
 import { medianOf } from "../extent.ts";
+import { kthSmallest, memorySeries, type SampleSeries } from "../io/sample_series.ts";
 
 /** What became of a hit. */
 export type HitStatus = "accepted" | "double" | "overload" | "short";
@@ -86,16 +87,31 @@ export interface HitDetection {
  * at least 3 samples and at least twice that many.
  */
 function plateauAtPeak(
-  s: Float64Array,
+  s: (from: number, to: number) => Float64Array,
+  n: number,
   peakSample: number,
   sigma: number,
 ): { flat: boolean; samples: number; tolerance: number; smooth: number } {
-  const peak = s[peakSample];
+  const peak = s(peakSample, peakSample + 1)[0];
   const tolerance = Math.max(4 * sigma, 1e-9 * peak);
+  // Samples at or above `level` either side of the peak, read a stretch at a time.
   const widthAbove = (level: number) => {
     let w = 1;
-    for (let i = peakSample + 1; i < s.length && s[i] >= level; i++) w++;
-    for (let i = peakSample - 1; i >= 0 && s[i] >= level; i--) w++;
+    const STEP = 4096;
+    outer: for (let at = peakSample + 1; at < n; at += STEP) {
+      const part = s(at, Math.min(n, at + STEP));
+      for (let j = 0; j < part.length; j++) {
+        if (part[j] < level) break outer;
+        w++;
+      }
+    }
+    outer: for (let end = peakSample; end > 0; end -= STEP) {
+      const part = s(Math.max(0, end - STEP), end);
+      for (let j = part.length - 1; j >= 0; j--) {
+        if (part[j] < level) break outer;
+        w++;
+      }
+    }
     return w;
   };
   const samples = widthAbove(peak - tolerance);
@@ -120,18 +136,35 @@ function plateauAtPeak(
  * if (d.hits.length !== 3 || d.hits.some((h) => h.status !== "accepted")) throw new Error();
  * ```
  */
-export function findHits(force: Float64Array, options: HitOptions): HitDetection {
-  const n = force.length;
-  const baseline = medianOf(force);
+export function findHits(
+  force: Float64Array | SampleSeries,
+  options: HitOptions,
+): HitDetection {
+  const series = force instanceof Float64Array ? memorySeries(force) : force;
+  const n = series.length;
+  if (n === 0) throw new QuiverError("the force channel is empty");
+  // The median, exactly as a sort of the whole record gives it (even n: mean of the middle two).
+  const baseline = n % 2 === 1
+    ? kthSmallest(series, n >> 1)
+    : (kthSmallest(series, (n >> 1) - 1) + kthSmallest(series, n >> 1)) / 2;
   let max = -Infinity;
   let min = Infinity;
-  for (let i = 0; i < n; i++) {
-    max = Math.max(max, force[i] - baseline);
-    min = Math.min(min, force[i] - baseline);
-  }
+  series.scan((chunk) => {
+    for (let i = 0; i < chunk.length; i++) {
+      max = Math.max(max, chunk[i] - baseline);
+      min = Math.min(min, chunk[i] - baseline);
+    }
+  });
   const polarity: 1 | -1 = max >= -min ? 1 : -1;
-  const s = force.map((v) => polarity * (v - baseline));
-  const sigma = 1.4826 * medianOf(s.map(Math.abs));
+  // The force with the baseline removed and the hits made positive, computed where read.
+  const shifted = (v: number) => polarity * (v - baseline);
+  const s = (from: number, to: number) => series.read(from, to).map(shifted);
+  const deviation = (v: number) => Math.abs(shifted(v));
+  const sigma = 1.4826 *
+    (n % 2 === 1
+      ? kthSmallest(series, n >> 1, deviation)
+      : (kthSmallest(series, (n >> 1) - 1, deviation) + kthSmallest(series, n >> 1, deviation)) /
+        2);
   const trigger = options.trigger ?? Math.max(0.05 * Math.max(max, -min), 5 * sigma);
   if (options.trigger === undefined && !(trigger > 0)) {
     // A derived level of 0 is a fact of the data (a flat force channel), not of the options.
@@ -143,21 +176,28 @@ export function findHits(force: Float64Array, options: HitOptions): HitDetection
     throw new RangeError(`trigger level must be a positive number, got ${trigger}`);
   }
 
-  const crossings: { sample: number; rearm: number; peakSample: number }[] = [];
+  const crossings: { sample: number; rearm: number; peakSample: number; peak: number }[] = [];
   let armed = true;
-  for (let i = 0; i < n; i++) {
-    if (armed && s[i] >= trigger) {
-      armed = false;
-      crossings.push({ sample: i, rearm: n, peakSample: i });
-    } else if (!armed) {
-      const current = crossings[crossings.length - 1];
-      if (s[i] > s[current.peakSample]) current.peakSample = i;
-      if (s[i] < trigger / 2) {
-        armed = true;
-        current.rearm = i;
+  series.scan((chunk, offset) => {
+    for (let j = 0; j < chunk.length; j++) {
+      const i = offset + j;
+      const value = shifted(chunk[j]);
+      if (armed && value >= trigger) {
+        armed = false;
+        crossings.push({ sample: i, rearm: n, peakSample: i, peak: value });
+      } else if (!armed) {
+        const current = crossings[crossings.length - 1];
+        if (value > current.peak) {
+          current.peakSample = i;
+          current.peak = value;
+        }
+        if (value < trigger / 2) {
+          armed = true;
+          current.rearm = i;
+        }
       }
     }
-  }
+  });
   if (crossings.length === 0) {
     throw new QuiverError(`no hit reaches the trigger level of ${trigger} above the baseline`);
   }
@@ -192,8 +232,8 @@ export function findHits(force: Float64Array, options: HitOptions): HitDetection
     const end = start + recordSamples;
     let next = c + 1;
     while (next < crossings.length && crossings[next].sample < end) next++;
-    const peak = s[crossing.peakSample];
-    const plateau = plateauAtPeak(s, crossing.peakSample, sigma);
+    const peak = crossing.peak;
+    const plateau = plateauAtPeak(s, n, crossing.peakSample, sigma);
     let status: HitStatus = "accepted";
     let reason: string | undefined;
     if (start < 0 || end > n) {

@@ -21,6 +21,7 @@
  */
 import { minOf } from "../extent.ts";
 import { QuiverError } from "../errors.ts";
+import { kthSmallest, memorySeries, type SampleSeries } from "../io/sample_series.ts";
 
 /** Options of {@linkcode tachoPulses}. */
 export interface TachoOptions {
@@ -46,10 +47,10 @@ export interface TachoPulses {
   readonly hysteresis: number;
 }
 
-function percentile(sorted: Float64Array, p: number): number {
-  return sorted[
-    Math.min(sorted.length - 1, Math.max(0, Math.round((p / 100) * (sorted.length - 1))))
-  ];
+/** The p-th percentile as the value at rank round(p/100·(n − 1)) of the sorted record, exactly. */
+function percentile(series: SampleSeries, p: number): number {
+  const n = series.length;
+  return kthSmallest(series, Math.min(n - 1, Math.max(0, Math.round((p / 100) * (n - 1)))));
 }
 
 function localMedian(values: number[], i: number, half = 5): number {
@@ -75,13 +76,14 @@ function localMedian(values: number[], i: number, half = 5): number {
  * ```
  */
 export function tachoPulses(
-  signal: Float64Array,
+  signal: Float64Array | SampleSeries,
   rate: number,
   options: TachoOptions,
 ): TachoPulses {
-  const sorted = signal.slice().sort();
-  const low = percentile(sorted, 2);
-  const high = percentile(sorted, 98);
+  const series = signal instanceof Float64Array ? memorySeries(signal) : signal;
+  if (series.length < 2) throw new QuiverError("the tacho channel is flat: no pulses to find");
+  const low = percentile(series, 2);
+  const high = percentile(series, 98);
   const level = options.level ?? (low + high) / 2;
   const hysteresis = options.hysteresis ?? 0.2 * (high - low);
   if (!(hysteresis > 0)) {
@@ -90,19 +92,31 @@ export function tachoPulses(
   const upper = level + hysteresis / 2;
   const lower = level - hysteresis / 2;
   const raw: number[] = [];
-  let armed = signal[0] < lower;
+  let armed = false;
   let lastCross = NaN;
-  for (let i = 1; i < signal.length; i++) {
-    if (signal[i - 1] < level && signal[i] >= level) {
-      lastCross = (i - 1 + (level - signal[i - 1]) / (signal[i] - signal[i - 1])) / rate;
+  let previous = NaN;
+  // A Schmitt trigger over the record chunk by chunk; `previous` carries the last sample across.
+  series.scan((chunk, offset) => {
+    for (let j = 0; j < chunk.length; j++) {
+      const i = offset + j;
+      const value = chunk[j];
+      if (i === 0) {
+        armed = value < lower;
+        previous = value;
+        continue;
+      }
+      if (previous < level && value >= level) {
+        lastCross = (i - 1 + (level - previous) / (value - previous)) / rate;
+      }
+      if (armed && value >= upper) {
+        raw.push(Number.isNaN(lastCross) ? i / rate : lastCross);
+        armed = false;
+      } else if (!armed && value <= lower) {
+        armed = true;
+      }
+      previous = value;
     }
-    if (armed && signal[i] >= upper) {
-      raw.push(Number.isNaN(lastCross) ? i / rate : lastCross);
-      armed = false;
-    } else if (!armed && signal[i] <= lower) {
-      armed = true;
-    }
-  }
+  });
   if (raw.length < 3) {
     throw new QuiverError(
       `only ${raw.length} tacho pulse(s) found; check the channel, level and hysteresis`,

@@ -1,6 +1,7 @@
 import { describe, expect, test } from "vitest";
 import { hammerFrf } from "../../lib/frf/hammer.ts";
 import { findHits } from "../../lib/frf/hits.ts";
+import { recordingSource } from "../../lib/io/recording_stream.ts";
 import { QuiverError } from "../../lib/errors.ts";
 import { MODES_A, MODES_B, RATE, sixHits } from "../helpers/hammer_recording.ts";
 import { receptance } from "../helpers/modal.ts";
@@ -24,8 +25,8 @@ describe("hammer test", () => {
     expect(d.recordSamples).toBe(4096); // 90 % of 2 s less the pre-trigger → 2^12 samples
   });
 
-  test("averages the accepted hits only and puts both modes within one line", () => {
-    const result = hammerFrf(rec, { force: "hammer", outputs: ["bracket_a", "bracket_b"] });
+  test("averages the accepted hits only and puts both modes within one line", async () => {
+    const result = await hammerFrf(rec, { force: "hammer", outputs: ["bracket_a", "bracket_b"] });
     expect(result.summary).toBe("6 hits: 4 accepted, 1 double, 1 overload");
     expect(result.table.metadata.averages).toBe(4);
     expect(result.table.metadata.hits_accepted).toEqual([1, 2, 4, 6]);
@@ -72,15 +73,28 @@ describe("hammer test", () => {
     expect(d.hits.at(-1)!.status).toBe("short");
   });
 
-  test("the exponential window's time constant is recorded for damping correction", () => {
-    const result = hammerFrf(rec, { force: "hammer", outputs: ["bracket_a"], expEnd: 0.05 });
+  test("a recording read as a stream (spooled to a temporary file) gives the same numbers as in memory", async () => {
+    const inMemory = await hammerFrf(rec, { force: "hammer", outputs: ["bracket_a", "bracket_b"] });
+    const streamed = await hammerFrf(recordingSource(rec), {
+      force: "hammer",
+      outputs: ["bracket_a", "bracket_b"],
+    });
+    expect(streamed.summary).toBe(inMemory.summary);
+    expect(streamed.warnings).toEqual(inMemory.warnings);
+    streamed.table.columns.forEach((c, i) => {
+      expect(Array.from(c.values), c.name).toEqual(Array.from(inMemory.table.columns[i].values));
+    });
+  });
+
+  test("the exponential window's time constant is recorded for damping correction", async () => {
+    const result = await hammerFrf(rec, { force: "hammer", outputs: ["bracket_a"], expEnd: 0.05 });
     // exp(−T/τ) = 0.05 at the record end T = 1 s → τ = 1/ln(20).
     expect(result.table.metadata.exponential_window_tau_s).toBeCloseTo(1 / Math.log(20), 12);
   });
 
-  test("refuses a recording with no accepted hit", () => {
-    expect(() => hammerFrf(rec, { force: "hammer", outputs: ["bracket_a"], range: 100 }))
-      .toThrow(QuiverError);
+  test("refuses a recording with no accepted hit", async () => {
+    await expect(hammerFrf(rec, { force: "hammer", outputs: ["bracket_a"], range: 100 }))
+      .rejects.toThrow(QuiverError);
   });
 
   test("an overload plateau carrying noise from the conditioning chain is found; clean pulses are not", () => {
@@ -111,12 +125,12 @@ describe("hammer test", () => {
     expect(d.hits[2].reason).toMatch(/flat top/);
   });
 
-  test("the H1 FRF equals the analytic receptance of the structure", () => {
+  test("the H1 FRF equals the analytic receptance of the structure", async () => {
     // Truth: the closed-form receptance of the simulated bracket (Ewins, Modal Testing, 2nd
     // ed., eq. 2.37), evaluated line by line. A factor of 2 anywhere in the force window,
     // averaging or scaling would show here, and so would a sign or phase error (the error is
     // complex), over 10–300 Hz (the 2.5 ms half-sine pulse's first spectral zero is at 600 Hz).
-    const result = hammerFrf(rec, { force: "hammer", outputs: ["bracket_a", "bracket_b"] });
+    const result = await hammerFrf(rec, { force: "hammer", outputs: ["bracket_a", "bracket_b"] });
     const col = (name: string) => result.table.columns.find((c) => c.name === name)!.values;
     const f = col("frequency_hz");
     for (const [name, modes] of [["bracket_a", MODES_A], ["bracket_b", MODES_B]] as const) {

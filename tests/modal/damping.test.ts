@@ -168,7 +168,7 @@ describe("the half-power method's own bias", () => {
 });
 
 describe("the exponential-window correction", () => {
-  test("recovers the true damping of a lightly damped decay cut short by the record", () => {
+  test("recovers the true damping of a lightly damped decay cut short by the record", async () => {
     // Ewins, Modal Testing, sec. 3.11: exp(−t/τ) adds 1/(τ·ωₙ) to the apparent damping.
     const zeta = 0.005;
     const mode: Mode = { frequencyHz: 40.3, damping: zeta, residue: 1e4 };
@@ -186,7 +186,12 @@ describe("the exponential-window correction", () => {
       ],
     };
     // A 1 s record: the 0.5 % decay has fallen only to exp(−ζωₙ·1 s) ≈ 28 %, so leakage is large.
-    const windowed = hammerFrf(rec, { force: "hammer", outputs: ["tip"], record: 1, expEnd: 0.01 });
+    const windowed = await hammerFrf(rec, {
+      force: "hammer",
+      outputs: ["tip"],
+      record: 1,
+      expEnd: 0.01,
+    });
     const frf = { frequencies: windowed.table.columns[0].values, ...toFrfData(windowed.table) };
     const corrected = modalDamping(frf).modes[0];
     const uncorrected = modalDamping(frf, { expTau: 1e12 }).modes[0];
@@ -197,8 +202,8 @@ describe("the exponential-window correction", () => {
 });
 
 describe("hammer test to damping, end to end", () => {
-  test("both modes of the synthesised six-hit test within 10 % of the simulated damping", () => {
-    const result = hammerFrf(sixHits(), { force: "hammer", outputs: ["bracket_a"] });
+  test("both modes of the synthesised six-hit test within 10 % of the simulated damping", async () => {
+    const result = await hammerFrf(sixHits(), { force: "hammer", outputs: ["bracket_a"] });
     const { modes } = modalDamping(
       { frequencies: result.table.columns[0].values, ...toFrfData(result.table) },
       { maxHz: 250 }, // above it the impact no longer excites the structure: 4 averages of noise

@@ -1,0 +1,245 @@
+/**
+ * One channel's samples for an analysis that needs the whole record (hit
+ * detection, tacho pulses, angle resampling) without holding it in memory:
+ * a recording read through the chunked reader is spooled once to a
+ * temporary file of raw float64 samples and read back by ranges; a
+ * recording already in memory is used as it is. Memory stays flat in the
+ * record's length; the spool lives in the system's temporary folder and is
+ * removed when the analysis closes it, also after an error.
+ *
+ * Order statistics (median, percentiles) of a series are exact
+ * ({@linkcode kthSmallest}): successive histograms narrow the range that
+ * holds the k-th value until it can be sorted in memory, so they equal what
+ * a sort of the whole record gives.
+ *
+ * @module
+ */
+import { closeSync, mkdtempSync, openSync, readSync, rmSync, writeSync } from "node:fs";
+import { tmpdir } from "node:os";
+import { join } from "node:path";
+import type { RecordingStream } from "./recording_stream.ts";
+import { ChannelStatistics } from "./signal_checks.ts";
+
+/** Samples read back in chunks while a series is scanned. */
+export const SERIES_CHUNK = 1 << 16;
+
+/** One channel's samples, read by ranges or scanned chunk by chunk. */
+export interface SampleSeries {
+  /** Number of samples. */
+  readonly length: number;
+  /**
+   * Samples [from, to) (clipped to the series). The array may be a view of
+   * the series (in memory) or a new array (spooled); do not change it.
+   */
+  read(from: number, to: number): Float64Array;
+  /** Calls `visit` with consecutive chunks and the index of each chunk's first sample. */
+  scan(visit: (chunk: Float64Array, offset: number) => void): void;
+}
+
+/**
+ * A series over an array in memory.
+ *
+ * @example
+ * ```ts
+ * import { memorySeries } from "./sample_series.ts";
+ * const s = memorySeries(new Float64Array([1, 2, 3, 4]));
+ * let sum = 0;
+ * s.scan((chunk) => { for (const v of chunk) sum += v; });
+ * if (sum !== 10 || s.read(1, 3).join() !== "2,3") throw new Error();
+ * ```
+ */
+export function memorySeries(data: Float64Array): SampleSeries {
+  return {
+    length: data.length,
+    read: (from, to) => data.subarray(Math.max(0, from), Math.min(data.length, to)),
+    scan(visit) {
+      for (let at = 0; at < data.length; at += SERIES_CHUNK) {
+        visit(data.subarray(at, Math.min(data.length, at + SERIES_CHUNK)), at);
+      }
+    },
+  };
+}
+
+/** Spooled channels: their series, their signal warnings, and how to remove the spool. */
+export interface Spool {
+  /** One series per channel asked for, in that order. */
+  readonly series: readonly SampleSeries[];
+  /** The signal checks' warnings per channel (signal_checks.ts). */
+  readonly warnings: readonly string[][];
+  /** Removes the temporary files. Safe to call twice. */
+  close(): void;
+}
+
+/**
+ * Reads the channels once through the stream into temporary files of raw
+ * float64 samples, checking each channel's signal on the way.
+ *
+ * @throws {QuiverError} for a fault the reader finds, naming file, line and column.
+ *
+ * @example
+ * ```ts
+ * import { spoolChannels } from "./sample_series.ts";
+ * import { recordingSource } from "./recording_stream.ts";
+ * const data = new Float64Array(100_000).map((_, i) => i);
+ * const spool = await spoolChannels(recordingSource({ rate: 10, startTime: 0, channels: [{ name: "a", unit: "V", data }] }), [0]);
+ * try {
+ *   if (spool.series[0].length !== 100_000 || spool.series[0].read(70_000, 70_002).join() !== "70000,70001") throw new Error();
+ * } finally {
+ *   spool.close();
+ * }
+ * ```
+ */
+export async function spoolChannels(
+  stream: RecordingStream,
+  indices: readonly number[],
+): Promise<Spool> {
+  const dir = mkdtempSync(join(tmpdir(), "quiver-spool-"));
+  const descriptors: number[] = [];
+  let closed = false;
+  const close = () => {
+    if (closed) return;
+    closed = true;
+    for (const fd of descriptors) closeSync(fd);
+    rmSync(dir, { recursive: true, force: true });
+  };
+  try {
+    indices.forEach((_, j) => descriptors.push(openSync(join(dir, `${j}.f64`), "w+")));
+    const statistics = indices.map(() => new ChannelStatistics());
+    let length = 0;
+    await stream.read(indices, (chunk) => {
+      chunk.forEach((values, j) => {
+        statistics[j].push(values);
+        writeSync(
+          descriptors[j],
+          new Uint8Array(values.buffer, values.byteOffset, values.byteLength),
+        );
+      });
+      length += chunk[0]?.length ?? 0;
+    });
+    const series = descriptors.map((fd) => fileSeries(fd, length));
+    const warnings = indices.map((channel, j) => statistics[j].warnings(stream.channels[channel]));
+    return { series, warnings, close };
+  } catch (error) {
+    close();
+    throw error;
+  }
+}
+
+function fileSeries(fd: number, length: number): SampleSeries {
+  const readInto = (target: Float64Array, from: number) => {
+    const bytes = new Uint8Array(target.buffer, target.byteOffset, target.byteLength);
+    let done = 0;
+    while (done < bytes.length) {
+      const got = readSync(fd, bytes, done, bytes.length - done, from * 8 + done);
+      if (got === 0) throw new Error("the spool file ended early");
+      done += got;
+    }
+  };
+  const buffer = new Float64Array(Math.min(SERIES_CHUNK, length));
+  return {
+    length,
+    read(from, to) {
+      const a = Math.max(0, from), b = Math.min(length, to);
+      const out = new Float64Array(Math.max(0, b - a));
+      if (out.length > 0) readInto(out, a);
+      return out;
+    },
+    scan(visit) {
+      for (let at = 0; at < length; at += SERIES_CHUNK) {
+        const chunk = buffer.subarray(0, Math.min(SERIES_CHUNK, length - at));
+        readInto(chunk, at);
+        visit(chunk, at);
+      }
+    },
+  };
+}
+
+const BINS = 4096;
+const SORT_LIMIT = 1 << 16;
+
+/**
+ * The k-th smallest (0-based) of `map(v)` over the series, exactly: the
+ * value a numeric sort of the whole record would put at index k. Each pass
+ * counts the values of the current range in 4096 bins and keeps the bin
+ * that holds the k-th; once a bin holds few enough values (or one value),
+ * they are sorted in memory.
+ *
+ * @throws {RangeError} for k outside the series, or a value that is not a
+ * finite number.
+ *
+ * @example
+ * ```ts
+ * import { kthSmallest, memorySeries } from "./sample_series.ts";
+ * const data = new Float64Array(100_001).map((_, i) => (i * 7919) % 100_001); // 0 … 100 000, shuffled
+ * const s = memorySeries(data);
+ * if (kthSmallest(s, 50_000) !== 50_000 || kthSmallest(s, 3, (v) => -v) !== -99_997) throw new Error();
+ * ```
+ */
+export function kthSmallest(
+  series: SampleSeries,
+  k: number,
+  map: (value: number) => number = (v) => v,
+): number {
+  if (!Number.isInteger(k) || k < 0 || k >= series.length) {
+    throw new RangeError(`k must be an index of the ${series.length} samples, got ${k}`);
+  }
+  // The chain of bins chosen so far: a value is in range when every level puts it in its bin.
+  const levels: { lo: number; width: number; bin: number }[] = [];
+  const binOf = (v: number, level: { lo: number; width: number }) =>
+    level.width > 0
+      ? Math.min(BINS - 1, Math.max(0, Math.floor((v - level.lo) / level.width)))
+      : (v > level.lo ? 1 : 0);
+  const inRange = (v: number) => {
+    for (const level of levels) if (binOf(v, level) !== level.bin) return false;
+    return true;
+  };
+  let lo = Infinity, hi = -Infinity;
+  series.scan((chunk) => {
+    for (let i = 0; i < chunk.length; i++) {
+      const v = map(chunk[i]);
+      if (!Number.isFinite(v)) {
+        throw new RangeError(`order statistics need finite values, found ${v}`);
+      }
+      if (v < lo) lo = v;
+      if (v > hi) hi = v;
+    }
+  });
+  let below = 0; // values before the current range
+  let count = series.length;
+  for (;;) {
+    if (lo === hi) return lo;
+    if (count <= SORT_LIMIT) {
+      const values = new Float64Array(count);
+      let n = 0;
+      series.scan((chunk) => {
+        for (let i = 0; i < chunk.length; i++) {
+          const v = map(chunk[i]);
+          if (inRange(v)) values[n++] = v;
+        }
+      });
+      if (n !== count) throw new Error("the series changed between passes");
+      return values.sort()[k - below];
+    }
+    const level = { lo, width: (hi - lo) / BINS, bin: -1 };
+    const counts = new Float64Array(BINS);
+    const mins = new Float64Array(BINS).fill(Infinity);
+    const maxs = new Float64Array(BINS).fill(-Infinity);
+    series.scan((chunk) => {
+      for (let i = 0; i < chunk.length; i++) {
+        const v = map(chunk[i]);
+        if (!inRange(v)) continue;
+        const b = binOf(v, level);
+        counts[b]++;
+        if (v < mins[b]) mins[b] = v;
+        if (v > maxs[b]) maxs[b] = v;
+      }
+    });
+    let b = 0;
+    while (below + counts[b] <= k) below += counts[b++];
+    level.bin = b;
+    levels.push(level);
+    count = counts[b];
+    lo = mins[b];
+    hi = maxs[b];
+  }
+}
