@@ -130,12 +130,16 @@ export async function run(argv: readonly string[]): Promise<void> {
   }
   const [input] = positionals;
   // The analysis spools the channels it needs once through the chunked reader: flat memory.
-  const result = await analyseRecording(input, toReadOptions(values), (stream) =>
-    hammerFrf(stream, {
-      ...libraryOptions(CHANNELS, values),
-      ...libraryOptions(HITS, values),
-      ...libraryOptions(WINDOWS, values),
-    }));
+  const result = await analyseRecording(
+    input,
+    toReadOptions(values),
+    (stream) =>
+      hammerFrf(stream, {
+        ...libraryOptions(CHANNELS, values),
+        ...libraryOptions(HITS, values),
+        ...libraryOptions(WINDOWS, values),
+      }),
+  );
   await writeResult(result.table, input, values);
   if (values["hits-out"] !== undefined) {
     await writeFileAtomic(values["hits-out"], formatCsv(result.hitLog));

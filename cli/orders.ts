@@ -7,18 +7,14 @@ import { toStderr } from "./terminal.ts";
 import { z } from "npm:zod@4.6.7";
 import { WEIGHTINGS } from "../lib/acoustics/weighting.ts";
 import { ORDER_METHODS, trackOrders } from "../lib/orders/order_tracking.ts";
-import { collectRecording, openRecordingStream } from "../lib/io/recording_stream.ts";
-import { channelIndices } from "../lib/io/recording.ts";
-import {
-  inFile,
-  integerOption,
-  listOption,
-  numberOption,
-  parseCommandArgs,
-  usageError,
-} from "./args.ts";
+import { integerOption, listOption, numberOption, parseCommandArgs, usageError } from "./args.ts";
 import { writeResult } from "./output.ts";
-import { RECORDING_HEADING, RECORDING_TABLE, toReadOptions } from "./recording_options.ts";
+import {
+  analyseRecording,
+  RECORDING_HEADING,
+  RECORDING_TABLE,
+  toReadOptions,
+} from "./recording_options.ts";
 import { OUTPUT_TABLE } from "./segment_options.ts";
 import { commandHelp, libraryOptions, option, shapeOf, specOf } from "./option_table.ts";
 import {
@@ -129,23 +125,16 @@ export async function run(argv: readonly string[]): Promise<void> {
     usageError("--out, --rpm-out and --map-out must name different files");
   }
   const [input] = positionals;
-  // Only the channels the analysis needs are held in memory, read through the chunked reader.
-  const stream = await openRecordingStream(input, toReadOptions(values));
-  const needed = inFile(
+  // The analysis spools the channels it needs once through the chunked reader: flat memory.
+  const result = await analyseRecording(
     input,
-    () =>
-      channelIndices(stream.channels, [
-        ...(values.tacho !== undefined ? [values.tacho] : []),
-        ...(values["rpm-channel"] !== undefined ? [values["rpm-channel"]] : []),
-        ...values.channels,
-      ]),
+    toReadOptions(values),
+    (stream) =>
+      trackOrders(stream, {
+        ...libraryOptions(SPEED_TABLE, values),
+        ...libraryOptions(ANALYSIS, values),
+      }),
   );
-  const recording = await collectRecording(stream, needed);
-  const result = inFile(input, () =>
-    trackOrders(recording, {
-      ...libraryOptions(SPEED_TABLE, values),
-      ...libraryOptions(ANALYSIS, values),
-    }));
   await writeResult(result.cuts, input, values);
   if (values["rpm-out"] !== undefined) {
     await writeResult(result.rpm, input, { out: values["rpm-out"] });

@@ -30,6 +30,13 @@ export interface AngleResampleOptions {
   count: number;
   /** Zero crossings of the kernel either side. Default 8. */
   halfWidth?: number;
+  /**
+   * Index in the whole record of the signals' first sample, when they hold a
+   * stretch of it. Default 0.
+   */
+  offset?: number;
+  /** Samples in the whole record, for its ends. Default: the signals' length. */
+  recordLength?: number;
 }
 
 /** Points of a kernel table over u ∈ [−1, 1]: linear interpolation errs by under 1e-6. */
@@ -78,7 +85,9 @@ export function resampleToAngle(
   const { rate, timeOfAngle, rpmAtTime, samplesPerRev, startRev, count } = options;
   const zeros = options.halfWidth ?? 8;
   const table = kernelTable(zeros);
-  const length = signals[0]?.length ?? 0;
+  const offset = options.offset ?? 0;
+  const held = signals[0]?.length ?? 0;
+  const length = options.recordLength ?? held;
   const outs = signals.map(() => new Float64Array(count));
   const sums = new Float64Array(signals.length);
   for (let j = 0; j < count; j++) {
@@ -89,6 +98,14 @@ export function resampleToAngle(
     const centre = t * rate;
     const first = Math.max(0, Math.ceil(centre - reach * rate));
     const last = Math.min(length - 1, Math.floor(centre + reach * rate));
+    if (first < offset || last >= offset + held) {
+      // The caller's stretch must hold every tap; reading past it would be a bug of ours.
+      throw new Error(
+        `the stretch ${offset}–${
+          offset + held - 1
+        } lacks samples ${first}–${last} for the resampler`,
+      );
+    }
     const step = TABLE_POINTS / (2 * reach * rate); // table points per input sample
     sums.fill(0);
     let weight = 0;
@@ -96,7 +113,7 @@ export function resampleToAngle(
       const at = (n - centre + reach * rate) * step; // 0 … TABLE_POINTS
       const i = Math.floor(at);
       const h = table[i] + (at - i) * (table[i + 1] - table[i]);
-      for (let c = 0; c < signals.length; c++) sums[c] += h * signals[c][n];
+      for (let c = 0; c < signals.length; c++) sums[c] += h * signals[c][n - offset];
       weight += h;
     }
     for (let c = 0; c < signals.length; c++) outs[c][j] = weight === 0 ? 0 : sums[c] / weight;

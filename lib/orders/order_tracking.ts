@@ -23,14 +23,18 @@
  * `overall` is always the RMS of the channel over the same stretch of time,
  * mean removed.
  *
- * Memory: both methods need the whole record of one channel at a time (the
- * angle method resamples across the record).
+ * Memory: read from a file, the speed and response channels are spooled
+ * once to temporary files (sample_series.ts); each rpm step reads back only
+ * the stretch its block and the resampler's taps reach. Memory is flat in
+ * the record's length (an rpm channel, unlike a tacho, is read whole).
  *
  * @module
  */
 import { maxOf } from "../extent.ts";
 import { QuiverError } from "../errors.ts";
-import { type Channel, type Recording, selectChannels } from "../io/recording.ts";
+import { channelIndices, type Recording } from "../io/recording.ts";
+import { asStream, type RecordingSource } from "../io/recording_stream.ts";
+import { memorySeries, type SampleSeries, spoolChannels } from "../io/sample_series.ts";
 import type { Table, TableColumn } from "../io/table.ts";
 import { SpectralAccumulator } from "../dsp/spectral_core.ts";
 import { autoSpectrum } from "../dsp/spectrum_kinds.ts";
@@ -39,9 +43,11 @@ import { type Weighting, weightingPowerGain } from "../acoustics/weighting.ts";
 import { channelsWarnings } from "../io/signal_checks.ts";
 import { inverseAngle, resampleToAngle } from "./angle_resample.ts";
 import {
+  lowestRpmBetween,
+  motionOfSeries,
   type RpmStepOptions,
   rpmSteps,
-  shaftMotion,
+  speedChannelName,
   type SpeedSource,
   speedSourceMetadata,
   timeAtRpm,
@@ -120,13 +126,13 @@ function energyAround(
   return sum;
 }
 
-function rmsOver(data: Float64Array, first: number, last: number): number {
+function rmsOver(data: Float64Array): number {
   let mean = 0;
-  for (let n = first; n <= last; n++) mean += data[n];
-  mean /= last - first + 1;
+  for (let n = 0; n < data.length; n++) mean += data[n];
+  mean /= data.length;
   let sum = 0;
-  for (let n = first; n <= last; n++) sum += (data[n] - mean) ** 2;
-  return Math.sqrt(sum / (last - first + 1));
+  for (let n = 0; n < data.length; n++) sum += (data[n] - mean) ** 2;
+  return Math.sqrt(sum / data.length);
 }
 
 /**
@@ -147,14 +153,52 @@ function rmsOver(data: Float64Array, first: number, last: number): number {
  *   acc[i] = Math.SQRT2 * Math.sin(2 * Math.PI * 2 * angle);
  *   angle += rpm[i] / 60 / rate;
  * }
- * const { cuts } = trackOrders({ rate, startTime: 0, channels: [{ name: "speed", unit: "rpm", data: rpm },
+ * const { cuts } = await trackOrders({ rate, startTime: 0, channels: [{ name: "speed", unit: "rpm", data: rpm },
  *   { name: "acc", unit: "m/s^2", data: acc }] }, { rpmChannel: "speed", channels: ["acc"], orders: [2], rpmStep: 200 });
  * const o2 = cuts.columns.find((c) => c.name === "acc_order2")!.values;
  * if (o2.some((v) => Math.abs(v - 1) > 0.05)) throw new Error();
  * ```
  */
-export function trackOrders(recording: Recording, options: OrderOptions): OrderResult {
+export async function trackOrders(
+  source: RecordingSource,
+  options: OrderOptions,
+): Promise<OrderResult> {
   if (options.channels.length === 0) throw new RangeError("name at least one response channel");
+  const stream = asStream(source);
+  const indices = channelIndices(stream.channels, [speedChannelName(options), ...options.channels]);
+  // A recording in memory is used as it is; one read from a file is spooled once, so memory
+  // stays flat in the record's length (sample_series.ts).
+  const spool = "read" in source ? await spoolChannels(stream, indices) : undefined;
+  try {
+    const series = spool?.series ??
+      indices.map((i) => memorySeries((source as Recording).channels[i].data));
+    const signalWarnings = spool !== undefined
+      ? spool.warnings.slice(1).flat()
+      : channelsWarnings(indices.slice(1).map((i) => (source as Recording).channels[i]));
+    return ordersOfSeries(series, {
+      rate: stream.rate,
+      startTime: stream.startTime,
+      channels: indices.slice(1).map((i) => stream.channels[i]),
+      signalWarnings,
+    }, options);
+  } finally {
+    spool?.close();
+  }
+}
+
+/** Order tracking on the series of the speed channel (first) and the responses. */
+function ordersOfSeries(
+  series: readonly SampleSeries[],
+  recording: {
+    rate: number;
+    startTime: number;
+    channels: readonly { name: string; unit: string }[];
+    signalWarnings: readonly string[];
+  },
+  options: OrderOptions,
+): OrderResult {
+  const [speedSeries, ...responses] = series;
+  const recordLength = speedSeries.length;
   const orders = options.orders ?? [1, 2, 4];
   if (orders.some((k) => !(k > 0))) throw new RangeError("orders must be positive numbers");
   const method = options.method ?? "angle";
@@ -162,9 +206,9 @@ export function trackOrders(recording: Recording, options: OrderOptions): OrderR
   const amplitudeFactor = amplitude === "peak" ? Math.SQRT2 : 1;
   const weighting = options.weighting ?? "Z";
   const db = options.db ?? false;
-  const channels = selectChannels(recording, options.channels);
-  const { motion, notes } = shaftMotion(recording, options);
-  const warnings = [...notes, ...channelsWarnings(channels)];
+  const channels = recording.channels;
+  const { motion, notes } = motionOfSeries(speedSeries, recording.rate, options);
+  const warnings = [...notes, ...recording.signalWarnings];
   const { steps, rpmMin, rpmMax, rpmStep: step, recorded: [lowest, highest] } = rpmSteps(
     motion,
     options,
@@ -211,14 +255,23 @@ export function trackOrders(recording: Recording, options: OrderOptions): OrderR
       if (
         startRev < motion.angleAt(motion.span[0]) || endRev > motion.angleAt(motion.span[1]) ||
         t0 < 0 ||
-        t1 * recording.rate > recording.channels[0].data.length - 1
+        t1 * recording.rate > recordLength - 1
       ) {
         skipped.push(r);
         continue;
       }
       first = Math.ceil(t0 * recording.rate);
       last = Math.floor(t1 * recording.rate);
-      blocks = resampleToAngle(channels.map((c: Channel) => c.data), {
+      // The stretch every tap of the resampler reaches: its kernel is widest where the shaft
+      // turns slowest (angle_resample.ts: 8 zero crossings of a cutoff at 0.45 of the rates).
+      const slowest = lowestRpmBetween(motion, t0, t1);
+      const cutoff = Math.min(0.45 * (slowest / 60) * samplesPerRev, 0.45 * recording.rate);
+      const reach = cutoff > 0 ? 8 / (2 * cutoff) : Infinity;
+      const lo = Math.max(0, Math.floor((t0 - reach) * recording.rate) - 1);
+      const hi = Math.min(recordLength - 1, Math.ceil((t1 + reach) * recording.rate) + 1);
+      blocks = resampleToAngle(responses.map((r) => r.read(lo, hi + 1)), {
+        offset: lo,
+        recordLength,
         rate: recording.rate,
         timeOfAngle: timeOf,
         rpmAtTime: motion.rpmAt,
@@ -232,11 +285,11 @@ export function trackOrders(recording: Recording, options: OrderOptions): OrderR
       const centre = Math.round(t * recording.rate);
       first = centre - block / 2;
       last = first + block - 1;
-      if (first < 0 || last >= recording.channels[0].data.length) {
+      if (first < 0 || last >= recordLength) {
         skipped.push(r);
         continue;
       }
-      blocks = channels.map((c) => c.data.slice(first, last + 1));
+      blocks = responses.map((r) => Float64Array.from(r.read(first, last + 1)));
     }
     const accumulator = new SpectralAccumulator(channels.length, { rate, block, window: "hann" });
     accumulator.pushSegment(blocks);
@@ -259,8 +312,8 @@ export function trackOrders(recording: Recording, options: OrderOptions): OrderR
     // The overall level is an RMS whatever `amplitude` says: a broadband sum has no peak of its
     // own. Weighted, it is the energy of the weighted spectrum of the block (a line of the angle
     // method at order j·Δ lies at j·Δ·rpm/60 Hz).
-    const overall = channels.map((ch, c) => {
-      if (weighting === "Z") return rmsOver(ch.data, first, last);
+    const overall = channels.map((_, c) => {
+      if (weighting === "Z") return rmsOver(responses[c].read(first, last + 1));
       const density = estimate.auto[c];
       let energy = 0;
       for (let j = 1; j < density.length; j++) {

@@ -5,22 +5,19 @@
  * spectral core scaled by the same rule as the spectrogram against time
  * ({@linkcode FrameScaling}).
  *
- * Memory: the speed channel is held whole (the tacho needs the whole record
- * to clean its pulses); the response channels stream, and only the frames
- * whose stretch the current chunk overlaps hold an accumulator.
+ * Memory: the speed channel is spooled to a temporary file and scanned (the
+ * tacho's level needs its whole record); the response channels stream, and
+ * only the frames whose stretch the current chunk overlaps hold an
+ * accumulator.
  *
  * Output, tidy: `rpm`, `frequency_hz`, then one column per channel.
  *
  * @module
  */
 import { QuiverError } from "../errors.ts";
-import { channelIndices } from "../io/recording.ts";
-import {
-  asStream,
-  collectRecording,
-  readChecked,
-  type RecordingSource,
-} from "../io/recording_stream.ts";
+import { channelIndices, type Recording } from "../io/recording.ts";
+import { asStream, readChecked, type RecordingSource } from "../io/recording_stream.ts";
+import { memorySeries, spoolChannels } from "../io/sample_series.ts";
 import type { Table, TableColumn } from "../io/table.ts";
 import { resolveBlock, SpectralAccumulator } from "../dsp/spectral_core.ts";
 import {
@@ -29,9 +26,9 @@ import {
   type SpectrogramOptions,
 } from "../dsp/spectrogram.ts";
 import {
+  motionOfSeries,
   type RpmStepOptions,
   rpmSteps,
-  shaftMotion,
   speedChannelName,
   type SpeedSource,
   speedSourceMetadata,
@@ -96,8 +93,19 @@ export async function spectrogramAgainstRpm(
   const scaling = new FrameScaling(channels, options);
 
   const speedIndex = channelIndices(stream.channels, [speedName]);
-  const speed = await collectRecording(stream, speedIndex);
-  const { motion, notes } = shaftMotion(speed, options);
+  // The speed channel is spooled (or used in memory) and scanned: flat memory (sample_series.ts).
+  const spool = "read" in source ? await spoolChannels(stream, speedIndex) : undefined;
+  let speed;
+  try {
+    speed = motionOfSeries(
+      spool?.series[0] ?? memorySeries((source as Recording).channels[speedIndex[0]].data),
+      rate,
+      options,
+    );
+  } finally {
+    spool?.close();
+  }
+  const { motion, notes } = speed;
   const steps = rpmSteps(motion, options);
 
   // Each step's stretch, centred on the instant the speed passes it.

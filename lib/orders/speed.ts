@@ -9,6 +9,7 @@
  */
 import { QuiverError } from "../errors.ts";
 import { type Recording, selectChannels } from "../io/recording.ts";
+import { memorySeries, type SampleSeries } from "../io/sample_series.ts";
 import { motionFromPulses, motionFromRpm, type ShaftMotion, tachoPulses } from "./tacho.ts";
 
 /** Where the speed comes from. Give `tacho` (with `ppr`) or `rpmChannel`. */
@@ -64,16 +65,40 @@ export function shaftMotion(
   recording: Recording,
   source: SpeedSource,
 ): { motion: ShaftMotion; notes: string[] } {
-  const name = speedChannelName(source);
-  const [channel] = selectChannels(recording, [name]);
+  const [channel] = selectChannels(recording, [speedChannelName(source)]);
+  return motionOfSeries(memorySeries(channel.data), recording.rate, source);
+}
+
+/**
+ * The shaft's motion from the speed channel's samples, in memory or spooled
+ * ({@linkcode shaftMotion} for a recording in memory). A tacho is scanned
+ * chunk by chunk; an rpm channel is read whole.
+ *
+ * @throws {RangeError} for neither or both sources, or a bad `ppr`;
+ * QuiverError when the tacho has too few pulses.
+ *
+ * @example
+ * ```ts
+ * import { motionOfSeries } from "./speed.ts";
+ * import { memorySeries } from "../io/sample_series.ts";
+ * const { motion } = motionOfSeries(memorySeries(new Float64Array(1001).fill(600)), 100, { rpmChannel: "n" });
+ * if (Math.abs(motion.angleAt(10) - 100) > 1e-9) throw new Error();
+ * ```
+ */
+export function motionOfSeries(
+  series: SampleSeries,
+  rate: number,
+  source: SpeedSource,
+): { motion: ShaftMotion; notes: string[] } {
+  speedChannelName(source);
   if (source.rpmChannel !== undefined) {
-    return { motion: motionFromRpm(channel.data, recording.rate), notes: [] };
+    return { motion: motionFromRpm(series.read(0, series.length), rate), notes: [] };
   }
   const ppr = source.ppr;
   if (ppr === undefined || !Number.isInteger(ppr) || ppr < 1) {
     throw new RangeError(`pulses per revolution must be a positive integer, got ${ppr}`);
   }
-  const pulses = tachoPulses(channel.data, recording.rate, {
+  const pulses = tachoPulses(series, rate, {
     ppr,
     ...(source.tachoLevel !== undefined ? { level: source.tachoLevel } : {}),
     ...(source.tachoHysteresis !== undefined ? { hysteresis: source.tachoHysteresis } : {}),
@@ -82,6 +107,27 @@ export function shaftMotion(
   if (pulses.inserted > 0) notes.push(`${pulses.inserted} missing tacho pulse(s) filled in`);
   if (pulses.removed > 0) notes.push(`${pulses.removed} extra tacho pulse(s) removed`);
   return { motion: motionFromPulses(pulses.times, ppr), notes };
+}
+
+/**
+ * The lowest speed, rpm, between two times: the speed is linear between
+ * readings, so the lowest is at an end or at a reading inside.
+ *
+ * @example
+ * ```ts
+ * import { lowestRpmBetween } from "./speed.ts";
+ * import { motionFromRpm } from "./tacho.ts";
+ * const m = motionFromRpm(new Float64Array([900, 600, 1200]), 1); // readings at 0, 1, 2 s
+ * if (lowestRpmBetween(m, 0.5, 1.5) !== 600) throw new Error();
+ * ```
+ */
+export function lowestRpmBetween(motion: ShaftMotion, from: number, to: number): number {
+  let lowest = Math.min(motion.rpmAt(from), motion.rpmAt(to));
+  const { times, rpm } = motion;
+  for (let i = 0; i < times.length; i++) {
+    if (times[i] > from && times[i] < to && rpm[i] < lowest) lowest = rpm[i];
+  }
+  return lowest;
 }
 
 /**

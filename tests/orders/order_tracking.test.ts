@@ -1,6 +1,7 @@
 import { maxOf } from "../../lib/extent.ts";
 import { describe, expect, test } from "vitest";
 import { trackOrders } from "../../lib/orders/order_tracking.ts";
+import { recordingSource } from "../../lib/io/recording_stream.ts";
 import { QuiverError } from "../../lib/errors.ts";
 import { spectralEstimate } from "../../lib/dsp/spectral_core.ts";
 import { autoSpectrum } from "../../lib/dsp/spectrum_kinds.ts";
@@ -34,9 +35,9 @@ describe("order tracking of a run-up", () => {
       ["quadratic", quadraticProfile(900, 4800, 20)],
     ] as const
   ) {
-    test(`${name} 900→4800 rpm in 20 s, 2-pulse TTL tacho: order cuts within 0.5 dB and 1 dB`, () => {
+    test(`${name} 900→4800 rpm in 20 s, 2-pulse TTL tacho: order cuts within 0.5 dB and 1 dB`, async () => {
       const rec = runUpRecording(profile, RATE, 20, 2, CONTENT, { noise: 0.05 });
-      const { cuts, rpm } = trackOrders(rec, {
+      const { cuts, rpm } = await trackOrders(rec, {
         tacho: "tacho",
         ppr: 2,
         channels: ["mount_acc"],
@@ -67,9 +68,9 @@ describe("order tracking of a run-up", () => {
     });
   }
 
-  test("a run-down reads the same", () => {
+  test("a run-down reads the same", async () => {
     const rec = runUpRecording(linearProfile(4800, 900, 20), RATE, 20, 2, CONTENT);
-    const { cuts } = trackOrders(rec, {
+    const { cuts } = await trackOrders(rec, {
       tacho: "tacho",
       ppr: 2,
       channels: ["mount_acc"],
@@ -82,12 +83,12 @@ describe("order tracking of a run-up", () => {
     });
   });
 
-  test("order resolution is 1/revolutions: orders 4 and 4.25 are told apart", () => {
+  test("order resolution is 1/revolutions: orders 4 and 4.25 are told apart", async () => {
     const rec = runUpRecording(linearProfile(1500, 3000, 10), RATE, 10, 1, [
       { order: 4, rms: () => 1 },
       { order: 4.25, rms: () => 0.3 },
     ]);
-    const { cuts } = trackOrders(rec, {
+    const { cuts } = await trackOrders(rec, {
       tacho: "tacho",
       ppr: 1,
       channels: ["mount_acc"],
@@ -102,14 +103,14 @@ describe("order tracking of a run-up", () => {
     }
   });
 
-  test("a high order above the resampled Nyquist does not fold into low orders", () => {
+  test("a high order above the resampled Nyquist does not fold into low orders", async () => {
     // With 64 samples per revolution the resampled Nyquist is order 32; order 90 would
     // alias to |90 − 64| = 26 without the band-limited resampling (sampling theorem).
     const rec = runUpRecording(linearProfile(1000, 1500, 10), RATE, 10, 1, [
       { order: 3, rms: () => 1 },
       { order: 90, rms: () => 1 },
     ]);
-    const { cuts } = trackOrders(rec, {
+    const { cuts } = await trackOrders(rec, {
       tacho: "tacho",
       ppr: 1,
       channels: ["mount_acc"],
@@ -121,12 +122,12 @@ describe("order tracking of a run-up", () => {
     for (const v of col(cuts, "mount_acc_order26")) expect(db(v, 1)).toBeLessThan(-40);
   });
 
-  test("the time-domain method reads a slow sweep", () => {
+  test("the time-domain method reads a slow sweep", async () => {
     const rec = runUpRecording(linearProfile(1000, 1600, 30), RATE, 30, 2, [{
       order: 2,
       rms: () => 0.5,
     }]);
-    const { cuts, map } = trackOrders(rec, {
+    const { cuts, map } = await trackOrders(rec, {
       tacho: "tacho",
       ppr: 2,
       channels: ["mount_acc"],
@@ -138,7 +139,7 @@ describe("order tracking of a run-up", () => {
     expect(map.columns[1].name).toBe("frequency_hz");
   });
 
-  test("a steady order of 1.0 RMS on a line reads 1.0 in the cut, the map and spectrum --kind rms", () => {
+  test("a steady order of 1.0 RMS on a line reads 1.0 in the cut, the map and spectrum --kind rms", async () => {
     // Analytic: a sinusoid of RMS A on a line of a Hann-windowed block has autopower A²
     // per line (scipy.signal.welch(scaling="spectrum") convention); the map is documented
     // as RMS per line, like `spectrum --kind rms`. Order 3 with 16 revolutions per block
@@ -147,7 +148,7 @@ describe("order tracking of a run-up", () => {
       { order: 3, rms: () => 1 },
     ]);
     for (const amplitude of ["rms", "peak"] as const) {
-      const { cuts, map } = trackOrders(rec, {
+      const { cuts, map } = await trackOrders(rec, {
         tacho: "tacho",
         ppr: 1,
         channels: ["mount_acc"],
@@ -183,23 +184,49 @@ describe("order tracking of a run-up", () => {
     assertClose(autoSpectrum(estimate, 0, "rms")[64], 1, { relative: 1e-9, absolute: 0 }, "rms");
   });
 
-  test("a requested range beyond the recorded speeds is refused", () => {
+  for (const method of ["angle", "time"] as const) {
+    test(`${method} method: a recording read as a stream (spooled) gives the same numbers as in memory`, async () => {
+      const rec = runUpRecording(linearProfile(900, 4800, 20), RATE, 20, 2, CONTENT, {
+        noise: 0.05,
+      });
+      const options = {
+        tacho: "tacho",
+        ppr: 2,
+        channels: ["mount_acc"],
+        orders: [2, 6],
+        rpmStep: 100,
+        method,
+        weighting: "A" as const,
+      };
+      const inMemory = await trackOrders(rec, options);
+      const streamed = await trackOrders(recordingSource(rec), options);
+      expect(streamed.warnings).toEqual(inMemory.warnings);
+      for (const part of ["cuts", "rpm", "map"] as const) {
+        streamed[part].columns.forEach((c, i) => {
+          expect(Array.from(c.values), `${part} ${c.name}`).toEqual(
+            Array.from(inMemory[part].columns[i].values),
+          );
+        });
+      }
+    });
+  }
+
+  test("a requested range beyond the recorded speeds is refused", async () => {
     const rec = runUpRecording(linearProfile(900, 4800, 20), RATE, 20, 2, CONTENT);
-    expect(() =>
+    await expect(
       trackOrders(rec, {
         tacho: "tacho",
         ppr: 2,
         channels: ["mount_acc"],
         rpmMin: 500,
         rpmMax: 5000,
-      })
-    )
-      .toThrow(QuiverError);
+      }),
+    ).rejects.toThrow(QuiverError);
   });
 });
 
 describe("A-weighted order cuts in dB", () => {
-  test("order 2 of a cabin microphone at 0.1 Pa rms reads 20·lg(0.1/20 µPa) + A(2·rpm/60) within 0.3 dB", () => {
+  test("order 2 of a cabin microphone at 0.1 Pa rms reads 20·lg(0.1/20 µPa) + A(2·rpm/60) within 0.3 dB", async () => {
     // Analytic: a constant 0.1 Pa rms order, weighted at its own frequency by the
     // IEC 61672-1 A-weighting (formula typed into tests/helpers/iec_weighting.ts), in dB re
     // 20 µPa (ISO 1683).
@@ -207,7 +234,7 @@ describe("A-weighted order cuts in dB", () => {
       { order: 2, rms: () => 0.1 },
     ]);
     const mic = { ...rec.channels[1], name: "cabin_mic", unit: "Pa" };
-    const { cuts } = trackOrders({ ...rec, channels: [rec.channels[0], mic] }, {
+    const { cuts } = await trackOrders({ ...rec, channels: [rec.channels[0], mic] }, {
       tacho: "tacho",
       ppr: 2,
       channels: ["cabin_mic"],
