@@ -73,7 +73,14 @@ export async function levelHistory(
     indices,
     (chunk) => chunk.forEach((c, i) => meters[i].push(c)),
   );
-  return levelResult(channels, stream.rate, stream.startTime, options, meters, warnings);
+  return levelResult({
+    channels,
+    rate: stream.rate,
+    startTime: stream.startTime,
+    options,
+    meters,
+    warnings,
+  });
 }
 
 /** A weighting filter and a time-weighted meter for one channel. */
@@ -100,12 +107,14 @@ function levelMeters(
 }
 
 function levelResult(
-  channels: readonly { name: string; unit: string }[],
-  rate: number,
-  startTime: number,
-  options: LevelOptions,
-  meters: readonly ChannelMeter[],
-  warnings: string[],
+  { channels, rate, startTime, options, meters, warnings }: {
+    channels: readonly { name: string; unit: string }[];
+    rate: number;
+    startTime: number;
+    options: LevelOptions;
+    meters: readonly ChannelMeter[];
+    warnings: string[];
+  },
 ): LevelResult {
   const weighting = options.weighting ?? "A";
   const timeWeighting = options.timeWeighting ?? "fast";

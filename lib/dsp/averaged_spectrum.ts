@@ -55,14 +55,14 @@ export async function averagedSpectrum(
   const channels = indices.map((i) => stream.channels[i]);
   const accumulator = spectrumAccumulator(stream.rate, channels.length, options);
   const warnings = await readChecked(stream, indices, (chunk) => accumulator.push(chunk));
-  return spectrumTable(
-    accumulator.finish(),
+  return spectrumTable({
+    estimate: accumulator.finish(),
     channels,
     options,
-    stream.length,
-    stream.startTime,
+    length: stream.length,
+    startTime: stream.startTime,
     warnings,
-  );
+  });
 }
 
 function spectrumAccumulator(
@@ -84,12 +84,14 @@ function spectrumAccumulator(
 }
 
 function spectrumTable(
-  estimate: SpectralEstimate,
-  channels: readonly { name: string; unit: string; role?: string }[],
-  options: AveragedSpectrumOptions,
-  length: number,
-  startTime: number,
-  warnings: string[],
+  { estimate, channels, options, length, startTime, warnings }: {
+    estimate: SpectralEstimate;
+    channels: readonly { name: string; unit: string; role?: string }[];
+    options: AveragedSpectrumOptions;
+    length: number;
+    startTime: number;
+    warnings: string[];
+  },
 ): Table {
   const kind = options.kind ?? "psd";
   const gains = windowGains(windowSamples(estimate.window, estimate.block));

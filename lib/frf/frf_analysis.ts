@@ -228,7 +228,13 @@ export async function frequencyResponse(
   const channels = indices.map((i) => stream.channels[i]);
   const accumulator = frfAccumulator(stream.rate, channels.length, options);
   const warnings = await readChecked(stream, indices, (chunk) => accumulator.push(chunk));
-  return frfResult(accumulator.finish(), channels, options, stream.length, warnings);
+  return frfResult({
+    estimate: accumulator.finish(),
+    channels,
+    options,
+    length: stream.length,
+    signalWarnings: warnings,
+  });
 }
 
 function checkFrfOptions(options: FrfOptions): void {
@@ -256,11 +262,13 @@ function frfAccumulator(
 }
 
 function frfResult(
-  estimate: SpectralEstimate,
-  channels: readonly { name: string; unit: string }[],
-  options: FrfOptions,
-  length: number,
-  signalWarnings: string[],
+  { estimate, channels, options, length, signalWarnings }: {
+    estimate: SpectralEstimate;
+    channels: readonly { name: string; unit: string }[];
+    options: FrfOptions;
+    length: number;
+    signalWarnings: string[];
+  },
 ): FrfResult {
   const [input, ...outputs] = channels;
   const estimator = options.estimator ?? "h1";

@@ -100,7 +100,7 @@ export function parseWav(bytes: Uint8Array, file?: string): Recording {
       if (size % f.blockAlign !== 0) {
         fail(`data chunk of ${size} bytes is not a whole number of ${f.blockAlign}-byte frames`);
       }
-      return decodeFrames(view, start, size / f.blockAlign, f, file);
+      return decodeFrames({ view, start, frames: size / f.blockAlign, f, file });
     }
     offset = start + size + (size % 2);
   }
@@ -205,11 +205,13 @@ export function refuseNonFiniteSamples(
 }
 
 function decodeFrames(
-  view: DataView,
-  start: number,
-  frames: number,
-  f: WavFormat,
-  file?: string,
+  { view, start, frames, f, file }: {
+    view: DataView;
+    start: number;
+    frames: number;
+    f: WavFormat;
+    file?: string;
+  },
 ): Recording {
   const data = Array.from({ length: f.channels }, () => new Float64Array(frames));
   decodeWavFrames(view, { start, count: frames, format: f, out: data });

@@ -158,11 +158,13 @@ function peaksOnSum(
 }
 
 function analyseChannel(
-  frequencies: Float64Array,
-  channel: FrfChannel,
-  options: DampingOptions,
-  tau: number | undefined,
-  peaks: readonly Peak[],
+  { frequencies, channel, options, tau, peaks }: {
+    frequencies: Float64Array;
+    channel: FrfChannel;
+    options: DampingOptions;
+    tau: number | undefined;
+    peaks: readonly Peak[];
+  },
 ): ModeEstimate[] {
   const method = options.method ?? "both";
   const form = channel.form ?? options.form;
@@ -359,7 +361,13 @@ export function modalDamping(data: FrfData, options: DampingOptions = {}): Dampi
     return kept;
   };
   const modes = chosen.flatMap((c) =>
-    analyseChannel(data.frequencies, c, options, tau, usablePeaks(c))
+    analyseChannel({
+      frequencies: data.frequencies,
+      channel: c,
+      options,
+      tau,
+      peaks: usablePeaks(c),
+    })
   );
   for (const c of chosen) {
     const count = modes.filter((m) => m.channel === c.name).length;

@@ -65,11 +65,13 @@ function basis(omega: number, wn: number, zeta: number, power: number): Complex 
 
 /** Complex least squares for H ≈ A·g + R; returns the squared misfit. */
 function complexMisfit(
-  band: FitBand,
-  re: Float64Array,
-  im: Float64Array,
-  wn: number,
-  zeta: number,
+  { band, re, im, wn, zeta }: {
+    band: FitBand;
+    re: Float64Array;
+    im: Float64Array;
+    wn: number;
+    zeta: number;
+  },
 ): { cost: number; a: Complex } {
   const { frequencies, power } = band;
   const n = frequencies.length;
@@ -149,7 +151,7 @@ export function fitSdof(band: FitBand, startHz: number, startDamping: number): S
   const { re, im } = band;
   const complex = re !== undefined && im !== undefined;
   const solve = (wn: number, zeta: number) =>
-    complex ? complexMisfit(band, re, im, wn, zeta) : magnitudeMisfit(band, wn, zeta);
+    complex ? complexMisfit({ band, re, im, wn, zeta }) : magnitudeMisfit(band, wn, zeta);
   const cost = ([logWn, logZeta]: number[]) => solve(Math.exp(logWn), Math.exp(logZeta)).cost;
   let start = [Math.log(2 * Math.PI * startHz), Math.log(startDamping)];
   let best = minimise(cost, start, { step: [0.01, 0.3] });

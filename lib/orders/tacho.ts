@@ -260,7 +260,7 @@ export function motionFromPulses(times: Float64Array, ppr: number): ShaftMotion 
     const degree = Math.min(hi - lo, 2);
     const [a, b] = degree < 1
       ? [times[j], NaN]
-      : polynomialFit(times, angle, lo, hi, angle[j], degree);
+      : polynomialFit({ times, angle, lo, hi, origin: angle[j], degree });
     smoothed[j] = a;
     rpm[j] = 60 / b;
   }
@@ -287,12 +287,14 @@ export function motionFromPulses(times: Float64Array, ppr: number): ShaftMotion 
  * partial pivoting (well conditioned: u is centred on the window's pulses).
  */
 function polynomialFit(
-  times: Float64Array,
-  angle: Float64Array,
-  lo: number,
-  hi: number,
-  origin: number,
-  degree: number,
+  { times, angle, lo, hi, origin, degree }: {
+    times: Float64Array;
+    angle: Float64Array;
+    lo: number;
+    hi: number;
+    origin: number;
+    degree: number;
+  },
 ): number[] {
   const m = degree + 1;
   const a = Array.from({ length: m }, () => new Float64Array(m + 1));

@@ -252,7 +252,7 @@ export function planSteps(
       }
     })
   );
-  each(() => checkPlanOutputs(plan, planFile, outDir, steps, fail));
+  each(() => checkPlanOutputs({ plan, planFile, outDir, steps, fail }));
   if (problems.length > 0) throw planProblems(problems, planFile);
   return steps;
 }
@@ -266,11 +266,13 @@ const FIGURES_FOLDER = "figures";
  * plan's inputs, and is written by one step only; checked before any work.
  */
 function checkPlanOutputs(
-  plan: Plan,
-  planFile: string,
-  outDir: string,
-  steps: readonly PlanStep[],
-  fail: (where: string, detail: string) => never,
+  { plan, planFile, outDir, steps, fail }: {
+    plan: Plan;
+    planFile: string;
+    outDir: string;
+    steps: readonly PlanStep[];
+    fail: (where: string, detail: string) => never;
+  },
 ): void {
   const realOut = realPathOf(outDir);
   const inside = (path: string) => {
@@ -412,7 +414,7 @@ export async function runPlan(planFile: string, options: RunOptions): Promise<Ma
     if (removed > 0) {
       process.stderr.write(`run: removed ${removed} result file(s) of the previous run here\n`);
     }
-    return await runLocked(plan, text, planFile, outDir, steps, started, options);
+    return await runLocked({ plan, text, planFile, outDir, steps, started, options });
   } finally {
     await lock.release();
   }
@@ -452,13 +454,15 @@ async function removePreviousRun(outDir: string): Promise<number> {
 }
 
 async function runLocked(
-  plan: Plan,
-  text: string,
-  planFile: string,
-  outDir: string,
-  steps: readonly PlanStep[],
-  started: string,
-  options: RunOptions,
+  { plan, text, planFile, outDir, steps, started, options }: {
+    plan: Plan;
+    text: string;
+    planFile: string;
+    outDir: string;
+    steps: readonly PlanStep[];
+    started: string;
+    options: RunOptions;
+  },
 ): Promise<Manifest> {
   const planBytes = new TextEncoder().encode(text);
   const header = {

@@ -106,11 +106,13 @@ ${body}
 }
 
 function axes(
-  x: ReturnType<typeof makeScale>,
-  y: ReturnType<typeof makeScale>,
-  xAxis: Axis,
-  yAxis: Axis,
-  height: number,
+  { x, y, xAxis, yAxis, height }: {
+    x: ReturnType<typeof makeScale>;
+    y: ReturnType<typeof makeScale>;
+    xAxis: Axis;
+    yAxis: Axis;
+    height: number;
+  },
 ): string {
   const [x0, x1] = x.range();
   const [y0, y1] = y.range();
@@ -224,7 +226,7 @@ export function linePlot(plot: LinePlot): string {
     width,
     height,
     plot.title,
-    `${axes(x, y, plot.x, plot.y, height)}\n${paths.join("\n")}\n${
+    `${axes({ x, y, xAxis: plot.x, yAxis: plot.y, height })}\n${paths.join("\n")}\n${
       legend(plot.series, width - MARGIN.right, MARGIN.top)
     }`,
   );
@@ -232,11 +234,13 @@ export function linePlot(plot: LinePlot): string {
 
 /** The plot area's outline and the two axis labels, for a plot area ending at `right` px from the edge. */
 function plotFrame(
-  width: number,
-  height: number,
-  right: number,
-  xLabel: string,
-  yLabel: string,
+  { width, height, right, xLabel, yLabel }: {
+    width: number;
+    height: number;
+    right: number;
+    xLabel: string;
+    yLabel: string;
+  },
 ): string {
   return [
     `<rect x="${MARGIN.left}" y="${MARGIN.top}" width="${width - right - MARGIN.left}" height="${
@@ -326,7 +330,9 @@ export function barPlot(plot: BarPlot): string {
       );
     });
   });
-  parts.push(plotFrame(width, height, MARGIN.right, plot.xLabel, plot.yLabel));
+  parts.push(
+    plotFrame({ width, height, right: MARGIN.right, xLabel: plot.xLabel, yLabel: plot.yLabel }),
+  );
   return frame(
     width,
     height,
@@ -518,7 +524,7 @@ export function heatMap(plot: HeatMap): string {
     }) rotate(-90)" text-anchor="middle" fill="#22313f">${escapeXml(plot.zLabel)}</text>`,
   );
   for (const line of plot.lines ?? []) parts.push(overlayLine(line, xs, ys));
-  parts.push(plotFrame(width, height, right, plot.xLabel, plot.yLabel));
+  parts.push(plotFrame({ width, height, right, xLabel: plot.xLabel, yLabel: plot.yLabel }));
   return frame(width, height, plot.title, parts.join("\n"));
 }
 
