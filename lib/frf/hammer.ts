@@ -224,7 +224,7 @@ function analyseHits(
     const start = hit.sample - pretriggerSamples;
     series.forEach((channel, c) => {
       const record = records[c];
-      record.set(channel.read(start, start + recordSamples));
+      channel.readInto(record, start);
       let offset = 0;
       for (let i = 0; i < baselineSamples; i++) offset += record[i];
       offset /= baselineSamples;

@@ -32,6 +32,11 @@ export interface SampleSeries {
    * the series (in memory) or a new array (spooled); do not change it.
    */
   read(from: number, to: number): Float64Array;
+  /**
+   * Copies samples [from, from + target.length) into `target`, which must
+   * lie inside the series: reading many records without allocating.
+   */
+  readInto(target: Float64Array, from: number): void;
   /** Calls `visit` with consecutive chunks and the index of each chunk's first sample. */
   scan(visit: (chunk: Float64Array, offset: number) => void): void;
 }
@@ -52,6 +57,9 @@ export function memorySeries(data: Float64Array): SampleSeries {
   return {
     length: data.length,
     read: (from, to) => data.subarray(Math.max(0, from), Math.min(data.length, to)),
+    readInto(target, from) {
+      target.set(data.subarray(from, from + target.length));
+    },
     scan(visit) {
       for (let at = 0; at < data.length; at += SERIES_CHUNK) {
         visit(data.subarray(at, Math.min(data.length, at + SERIES_CHUNK)), at);
@@ -138,6 +146,14 @@ function fileSeries(fd: number, length: number): SampleSeries {
   const buffer = new Float64Array(Math.min(SERIES_CHUNK, length));
   return {
     length,
+    readInto(target, from) {
+      if (from < 0 || from + target.length > length) {
+        throw new RangeError(
+          `samples ${from}–${from + target.length - 1} lie outside the ${length}`,
+        );
+      }
+      readInto(target, from);
+    },
     read(from, to) {
       const a = Math.max(0, from), b = Math.min(length, to);
       const out = new Float64Array(Math.max(0, b - a));

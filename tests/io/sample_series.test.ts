@@ -55,6 +55,10 @@ describe("exact order statistics of a series", () => {
       expect(Array.from(series.read(123_456, 123_466))).toEqual(
         Array.from(data.subarray(123_456, 123_466)),
       );
+      const record = new Float64Array(5);
+      series.readInto(record, 199_995);
+      expect(Array.from(record)).toEqual(Array.from(data.subarray(199_995)));
+      expect(() => series.readInto(record, 199_996)).toThrow(RangeError);
       expect(kthSmallest(series, 100_000)).toBe(sortedAt(data, 100_000));
       let sum = 0;
       series.scan((chunk) => {
