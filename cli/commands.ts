@@ -12,6 +12,7 @@ import * as damping from "./damping.ts";
 import * as frf from "./frf.ts";
 import * as hammer from "./hammer.ts";
 import * as level from "./level.ts";
+import * as mac from "./mac.ts";
 import * as orders from "./orders.ts";
 import * as report from "./report.ts";
 import * as run from "./run.ts";
@@ -25,6 +26,7 @@ export const COMMANDS = {
   frf,
   hammer,
   damping,
+  mac,
   bands,
   level,
   calibrate,

@@ -1,0 +1,290 @@
+/**
+ * Mode-shape sets and their correlation (`quiver mac`).
+ *
+ * A shapes file is a tidy CSV, one row per mode and degree of freedom:
+ * - complex shapes, as a modal fit writes them: `mode, point, direction,
+ *   re, im`, optionally with `frequency_hz`;
+ * - real shapes, as a simulation exports them: `mode, frequency_hz, point,
+ *   direction, value`.
+ * A degree of freedom is the pair (point, direction), matched by name
+ * between the two sets, or through a map CSV with the columns
+ * `simulation_point, simulation_direction, test_point, test_direction`.
+ * Degrees of freedom found on one side only are left out and counted.
+ *
+ * @module
+ */
+import { QuiverError } from "../errors.ts";
+import { parseTextCsv } from "../io/csv_text.ts";
+import { parseDecimal } from "../io/numbers.ts";
+import type { Table } from "../io/table.ts";
+import { bestPairing, type ComplexVector, macMatrix } from "./mac.ts";
+
+/** One mode of a set. */
+export interface ModeShape {
+  /** Mode number as the file gives it. */
+  readonly mode: number;
+  /** Natural frequency, Hz, when the file gives it. */
+  readonly frequencyHz?: number;
+  /** Shape value per degree of freedom, keyed `point direction`. */
+  readonly values: ReadonlyMap<string, { re: number; im: number }>;
+}
+
+/** A degree of freedom's key: point and direction. */
+export const dofKey = (point: string, direction: string): string => `${point} ${direction}`;
+
+/**
+ * Reads a shapes file (see the module notes for its two layouts).
+ *
+ * @throws {QuiverError} for a missing column, a cell that is not a number,
+ * a degree of freedom given twice in a mode, or a mode with two frequencies.
+ *
+ * @example
+ * ```ts
+ * import { parseShapes } from "./shapes.ts";
+ * const s = parseShapes("mode,frequency_hz,point,direction,value\n1,44.1,1,z,0.5\n1,44.1,2,z,1\n");
+ * if (s[0].frequencyHz !== 44.1 || s[0].values.get("2 z")?.re !== 1) throw new Error();
+ * ```
+ */
+export function parseShapes(text: string, options: { file?: string } = {}): ModeShape[] {
+  const table = parseTextCsv(text, options);
+  const names = table.header.map((h) => h.name);
+  const at = (name: string) => names.indexOf(name);
+  const complex = at("re") >= 0 && at("im") >= 0;
+  const needed = ["mode", "point", "direction", ...(complex ? ["re", "im"] : ["value"])];
+  const missing = needed.filter((n) => at(n) < 0);
+  if (missing.length > 0) {
+    throw new QuiverError(
+      `a shapes table needs the columns mode, point, direction and re, im (or value); missing ${
+        missing.join(", ")
+      }`,
+      { file: options.file },
+    );
+  }
+  type Entry = { frequencyHz?: number; values: Map<string, { re: number; im: number }> };
+  const modes = new Map<number, Entry>();
+  table.rows.forEach((row, r) => {
+    const line = table.lines[r];
+    const number = (column: string) => {
+      const text = row[at(column)];
+      const value = parseDecimal(text, ".");
+      if (value === undefined || !Number.isFinite(value)) {
+        throw new QuiverError(`${column} "${text}" is not a number`, { file: options.file, line });
+      }
+      return value;
+    };
+    const mode = number("mode");
+    const frequency = at("frequency_hz") >= 0 ? number("frequency_hz") : undefined;
+    const entry: Entry = modes.get(mode) ?? { values: new Map() };
+    if (!modes.has(mode)) {
+      if (frequency !== undefined) entry.frequencyHz = frequency;
+      modes.set(mode, entry);
+    } else if (frequency !== entry.frequencyHz) {
+      throw new QuiverError(`mode ${mode} has two frequencies`, { file: options.file, line });
+    }
+    const key = dofKey(row[at("point")], row[at("direction")]);
+    if (entry.values.has(key)) {
+      throw new QuiverError(`mode ${mode} gives point ${key} twice`, { file: options.file, line });
+    }
+    entry.values.set(
+      key,
+      complex ? { re: number("re"), im: number("im") } : { re: number("value"), im: 0 },
+    );
+  });
+  if (modes.size === 0) {
+    throw new QuiverError("the shapes table has no rows", { file: options.file });
+  }
+  return [...modes.entries()].sort((a, b) => a[0] - b[0]).map(([mode, m]) => ({
+    mode,
+    ...(m.frequencyHz !== undefined ? { frequencyHz: m.frequencyHz } : {}),
+    values: m.values,
+  }));
+}
+
+/**
+ * Reads a point map: simulation degree of freedom → test degree of freedom.
+ *
+ * @throws {QuiverError} for a missing column or a simulation point mapped twice.
+ *
+ * @example
+ * ```ts
+ * import { parsePointMap } from "./shapes.ts";
+ * const m = parsePointMap("simulation_point,simulation_direction,test_point,test_direction\nN1041,Z,12,+z\n");
+ * if (m.get("N1041 Z") !== "12 +z") throw new Error();
+ * ```
+ */
+export function parsePointMap(
+  text: string,
+  options: { file?: string } = {},
+): ReadonlyMap<string, string> {
+  const table = parseTextCsv(text, options);
+  const names = table.header.map((h) => h.name);
+  const columns = ["simulation_point", "simulation_direction", "test_point", "test_direction"];
+  const index = columns.map((c) => names.indexOf(c));
+  if (index.some((i) => i < 0)) {
+    throw new QuiverError(`a point map needs the columns ${columns.join(", ")}`, {
+      file: options.file,
+    });
+  }
+  const map = new Map<string, string>();
+  table.rows.forEach((row, r) => {
+    const from = dofKey(row[index[0]], row[index[1]]);
+    if (map.has(from)) {
+      throw new QuiverError(`${from} is mapped twice`, {
+        file: options.file,
+        line: table.lines[r],
+      });
+    }
+    map.set(from, dofKey(row[index[2]], row[index[3]]));
+  });
+  return map;
+}
+
+/** Two shape sets compared. */
+export interface ShapeCorrelation {
+  /** The degrees of freedom both sets have, in test order. */
+  readonly dofs: readonly string[];
+  /** Degrees of freedom only the test set has. */
+  readonly testOnly: readonly string[];
+  /** Degrees of freedom only the simulation set has (after the map). */
+  readonly simulationOnly: readonly string[];
+  /** MAC of test mode i with simulation mode j. */
+  readonly mac: readonly Float64Array[];
+  /** MAC of the test modes with each other. */
+  readonly autoMac: readonly Float64Array[];
+  /** The one-to-one pairs of greatest total MAC. */
+  readonly pairs: readonly {
+    testMode: number;
+    simulationMode: number;
+    testHz: number | undefined;
+    simulationHz: number | undefined;
+    shiftPercent: number | undefined;
+    mac: number;
+  }[];
+}
+
+/**
+ * Correlates a test shape set with a simulation set over their common
+ * degrees of freedom.
+ *
+ * @throws {QuiverError} when fewer than two degrees of freedom are common,
+ * or a mode lacks a value at a common degree of freedom.
+ *
+ * @example
+ * ```ts
+ * import { correlateShapes, parseShapes } from "./shapes.ts";
+ * const test = parseShapes("mode,frequency_hz,point,direction,value\n1,40,1,z,1\n1,40,2,z,1\n2,100,1,z,1\n2,100,2,z,-1\n");
+ * const sim = parseShapes("mode,frequency_hz,point,direction,value\n1,104,1,z,-2\n1,104,2,z,2\n2,42,1,z,3\n2,42,2,z,3\n");
+ * const c = correlateShapes(test, sim);
+ * if (c.pairs[0].simulationMode !== 2 || Math.abs(c.pairs[0].shiftPercent! - 5) > 1e-9) throw new Error();
+ * ```
+ */
+export function correlateShapes(
+  test: readonly ModeShape[],
+  simulation: readonly ModeShape[],
+  options: { map?: ReadonlyMap<string, string> } = {},
+): ShapeCorrelation {
+  const rename = (key: string) => options.map?.get(key) ?? key;
+  const simulationKeys = new Set(simulation.flatMap((m) => [...m.values.keys()].map(rename)));
+  const testKeys = [...new Set(test.flatMap((m) => [...m.values.keys()]))];
+  const dofs = testKeys.filter((k) => simulationKeys.has(k));
+  const common = new Set(dofs);
+  if (dofs.length < 2) {
+    throw new QuiverError(
+      `the two shape sets share ${dofs.length} degree(s) of freedom; MAC needs at least two (match point and direction names, or give a map)`,
+    );
+  }
+  const vector = (m: ModeShape, side: string, keyOf: (k: string) => string): ComplexVector => {
+    const byKey = new Map([...m.values.entries()].map(([k, v]) => [keyOf(k), v]));
+    const re = new Float64Array(dofs.length), im = new Float64Array(dofs.length);
+    dofs.forEach((k, i) => {
+      const v = byKey.get(k);
+      if (v === undefined) throw new QuiverError(`${side} mode ${m.mode} has no value at ${k}`);
+      re[i] = v.re;
+      im[i] = v.im;
+    });
+    return { re, im };
+  };
+  const testVectors = test.map((m) => vector(m, "test", (k) => k));
+  const simulationVectors = simulation.map((m) => vector(m, "simulation", rename));
+  const mac = macMatrix(testVectors, simulationVectors);
+  const pairs = bestPairing(mac).map(([i, j]) => {
+    const testHz = test[i].frequencyHz, simulationHz = simulation[j].frequencyHz;
+    return {
+      testMode: test[i].mode,
+      simulationMode: simulation[j].mode,
+      testHz,
+      simulationHz,
+      shiftPercent: testHz !== undefined && simulationHz !== undefined
+        ? (100 * (simulationHz - testHz)) / testHz
+        : undefined,
+      mac: mac[i][j],
+    };
+  });
+  return {
+    dofs,
+    testOnly: testKeys.filter((k) => !simulationKeys.has(k)),
+    simulationOnly: [...simulationKeys].filter((k) => !common.has(k)),
+    mac,
+    autoMac: macMatrix(testVectors, testVectors),
+    pairs,
+  };
+}
+
+/**
+ * The correlation as tables: the MAC matrix in tidy form and the pairs,
+ * with the auto-MAC and the degree-of-freedom counts in the metadata.
+ *
+ * @example
+ * ```ts
+ * import { correlateShapes, correlationTables, parseShapes } from "./shapes.ts";
+ * const s = parseShapes("mode,point,direction,re,im\n1,1,z,1,0\n1,2,z,0,1\n");
+ * const { matrix, pairs } = correlationTables(correlateShapes(s, s), s, s);
+ * if (matrix.columns[2].values[0] !== 1 || pairs.columns[5].values[0] !== 1) throw new Error();
+ * ```
+ */
+export function correlationTables(
+  correlation: ShapeCorrelation,
+  test: readonly ModeShape[],
+  simulation: readonly ModeShape[],
+): { matrix: Table; pairs: Table } {
+  const rows = test.flatMap((t, i) =>
+    simulation.map((s, j) => [t.mode, s.mode, correlation.mac[i][j]])
+  );
+  const metadata = {
+    analysis: "mac",
+    method:
+      "MAC, complex (Allemang & Brown 1982); pairs by the assignment of greatest total MAC (Hungarian method, Kuhn 1955)",
+    dofs_used: correlation.dofs.length,
+    dofs_test_only: correlation.testOnly.length,
+    dofs_simulation_only: correlation.simulationOnly.length,
+    test_only: correlation.testOnly,
+    simulation_only: correlation.simulationOnly,
+    auto_mac: correlation.autoMac.map((r) => Array.from(r)),
+  };
+  const column = (name: string, values: ArrayLike<number | undefined>) => ({
+    name,
+    unit: name.endsWith("_hz") ? "Hz" : name === "shift_percent" ? "%" : "",
+    values: Float64Array.from(values as ArrayLike<number | undefined>, (v) => v ?? NaN),
+  });
+  return {
+    matrix: {
+      columns: [
+        column("test_mode", rows.map((r) => r[0])),
+        column("simulation_mode", rows.map((r) => r[1])),
+        column("mac", rows.map((r) => r[2])),
+      ],
+      metadata: { ...metadata, layout: "tidy: one row per (test mode, simulation mode)" },
+    },
+    pairs: {
+      columns: [
+        column("test_mode", correlation.pairs.map((p) => p.testMode)),
+        column("simulation_mode", correlation.pairs.map((p) => p.simulationMode)),
+        column("test_hz", correlation.pairs.map((p) => p.testHz)),
+        column("simulation_hz", correlation.pairs.map((p) => p.simulationHz)),
+        column("shift_percent", correlation.pairs.map((p) => p.shiftPercent)),
+        column("mac", correlation.pairs.map((p) => p.mac)),
+      ],
+      metadata: { ...metadata, layout: "one row per paired test mode" },
+    },
+  };
+}
