@@ -13,6 +13,7 @@ import * as frf from "./frf.ts";
 import * as hammer from "./hammer.ts";
 import * as level from "./level.ts";
 import * as mac from "./mac.ts";
+import * as modal from "./modal.ts";
 import * as orders from "./orders.ts";
 import * as report from "./report.ts";
 import * as run from "./run.ts";
@@ -26,6 +27,7 @@ export const COMMANDS = {
   frf,
   hammer,
   damping,
+  modal,
   mac,
   bands,
   level,

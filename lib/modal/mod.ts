@@ -32,3 +32,21 @@ export { type FrfChannel, type FrfData, frfFromColumns, readFrfFile } from "./fr
 export { findPeaks, type Peak } from "./peaks.ts";
 export { halfPower, type HalfPowerEstimate } from "./half_power.ts";
 export { fitSdof, type SdofFit } from "./sdof_fit.ts";
+export { bestPairing, type ComplexVector, macMatrix, macValue } from "./mac.ts";
+export {
+  correlateShapes,
+  correlationTables,
+  type ModeShape,
+  parsePointMap,
+  parseShapes,
+  type ShapeCorrelation,
+} from "./shapes.ts";
+export { fitResidues, lscfPoles, modalPhaseCollinearity, type Pole } from "./lscf.ts";
+export {
+  type FittedMode,
+  type ModalDof,
+  modalFit,
+  type ModalFitOptions,
+  type ModalFitResult,
+  modalTables,
+} from "./modal_fit.ts";

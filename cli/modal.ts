@@ -1,0 +1,182 @@
+/**
+ * `quiver modal`: several FRFs of one reference, one set of poles, mode shapes.
+ *
+ * @module
+ */
+import { basename, extname } from "node:path";
+import { z } from "npm:zod@4.6.7";
+import { QuiverError } from "../lib/errors.ts";
+import { formatFixed } from "../lib/format_number.ts";
+import { parseTextCsv } from "../lib/io/csv_text.ts";
+import { readFrfFile } from "../lib/modal/frf_input.ts";
+import { type ModalDof, modalFit, modalTables } from "../lib/modal/modal_fit.ts";
+import { readFile } from "node:fs/promises";
+import { integerOption, numberOption, parseCommandArgs, usageError } from "./args.ts";
+import { commandHelp, libraryOptions, option, shapeOf, specOf } from "./option_table.ts";
+import { resolveFormat, writeTable } from "./output.ts";
+import { OUTPUT_TABLE } from "./segment_options.ts";
+import { positiveListOption } from "./speed_options.ts";
+import { toStderr } from "./terminal.ts";
+
+/** One-line summary for the command list. */
+export const summary = "modes, damping and shapes from several FRFs of one reference (LSCF + LSFD)";
+
+const positive = (what: string) =>
+  numberOption().pipe(z.number().positive(`must be a positive number of ${what}`));
+
+const ANALYSIS = {
+  "min-hz": option(positive("Hz"), {
+    value: "F",
+    help: "frequency band of the fit",
+    default: "all but 0 Hz",
+    helpWith: "max-hz",
+  }),
+  "max-hz": option(positive("Hz"), { value: "F", help: "highest frequency of the fit" }),
+  "max-order": option(integerOption(), {
+    value: "N",
+    help: "highest model order (even); orders 2, 4, … N are fitted",
+    default: "32",
+  }),
+  "modes-hz": option(positiveListOption("frequencies"), {
+    value: "F1,F2",
+    help: "take the poles nearest these frequencies instead of\nthe automatic rule",
+    feeds: "modesHz",
+  }),
+};
+
+const INPUTS = {
+  dofs: option(z.string().min(1), {
+    value: "MAP.csv",
+    help:
+      "file, column, point, direction: the point each FRF measures\n(file is the base name, column the response name)",
+    default: "the response name, or the file's name when files share it",
+  }),
+};
+
+const OUTPUTS = {
+  ...OUTPUT_TABLE,
+  "shapes-out": option(z.string().min(1), {
+    value: "FILE",
+    help: "shapes, tidy: mode, point, direction, re, im, frequency_hz",
+  }),
+  "stability-out": option(z.string().min(1), {
+    value: "FILE",
+    help:
+      "poles per order: order, frequency_hz, damping_ratio,\nstable_frequency, stable_damping, stable_shape",
+  }),
+  "synth-out": option(z.string().min(1), {
+    value: "FILE",
+    help: "measured and synthesised FRFs (as receptance) per point",
+  }),
+};
+
+const TABLE = { ...ANALYSIS, ...INPUTS, ...OUTPUTS };
+
+/** The command's help text. */
+export const help = commandHelp({
+  usage: "quiver modal FRF_FILE... [options]",
+  about: `Fits every FRF of the files (what quiver frf or quiver hammer wrote, or
+plain tables with re/im columns), all of one reference, with one set of
+poles: the least-squares complex frequency-domain method (LSCF, Guillaume et
+al. 2003) over model orders 2 … N, the poles that stay stable in frequency
+(1 %), damping (5 %) and shape (MAC 0.98) over the last 5 orders, then
+residues and shapes by least squares with upper and lower residuals.
+
+Roving hammer: one file per hit point with the fixed accelerometer as
+response; by reciprocity each file is one point of the shape. The files'
+names then name the points (or give --dofs).`,
+  groups: [["Analysis", ANALYSIS], ["Points", INPUTS], ["Output", OUTPUTS]],
+  notes: `--out columns: mode, frequency_hz, damping_ratio, mpc (modal phase
+collinearity), flags (low_mpc below 0.9, form_assumed). Shapes are
+normalised so that their largest component is real and 1.`,
+});
+
+/** zod schema of the options. */
+export const schema = z.strictObject(shapeOf(TABLE));
+
+/** parseArgs spec of the options. */
+export const options = specOf(TABLE);
+
+/** Runs the command. */
+export async function run(argv: readonly string[]): Promise<void> {
+  const { positionals, values } = parseCommandArgs(argv, options, schema);
+  if (positionals.length === 0) usageError("modal takes one or more FRF files");
+  const files = await Promise.all(positionals.map((p) => readFrfFile(p)));
+  const axis = files[0].frequencies;
+  files.forEach((d, i) => {
+    const same = d.frequencies.length === axis.length &&
+      d.frequencies.every((v, k) => v === axis[k]);
+    if (!same) {
+      throw new QuiverError(
+        `its frequency lines differ from ${positionals[0]}'s; fit FRFs of one analysis setting`,
+        { file: positionals[i] },
+      );
+    }
+  });
+  const stem = (path: string) => basename(path, extname(path));
+  let map: Map<string, { point: string; direction: string }> | undefined;
+  if (values.dofs !== undefined) {
+    const table = parseTextCsv(await readFile(values.dofs, "utf8"), { file: values.dofs });
+    const names = table.header.map((h) => h.name);
+    const index = ["file", "column", "point", "direction"].map((c) => names.indexOf(c));
+    if (index.some((i) => i < 0)) {
+      throw new QuiverError("a points map needs the columns file, column, point, direction", {
+        file: values.dofs,
+      });
+    }
+    map = new Map(table.rows.map((r) => [
+      `${stem(r[index[0]])} ${r[index[1]]}`,
+      { point: r[index[2]], direction: r[index[3]] },
+    ]));
+  }
+  const names = files.flatMap((d) => d.channels.map((c) => c.name));
+  const shared = new Set(names.filter((n, i) => names.indexOf(n) !== i));
+  const dofs: ModalDof[] = files.flatMap((d, i) =>
+    d.channels.map((frf) => {
+      const key = `${stem(positionals[i])} ${frf.name}`;
+      if (map !== undefined) {
+        const entry = map.get(key);
+        if (entry === undefined) {
+          throw new QuiverError(`no row for file ${stem(positionals[i])}, column ${frf.name}`, {
+            file: values.dofs,
+          });
+        }
+        return { ...entry, frf };
+      }
+      return { point: shared.has(frf.name) ? stem(positionals[i]) : frf.name, direction: "", frf };
+    })
+  );
+  const analysis = libraryOptions(ANALYSIS, values);
+  const result = modalFit(axis, dofs, analysis);
+  const tables = modalTables(result, {
+    files: positionals,
+    min_hz: result.frequencies[0],
+    max_hz: result.frequencies[result.frequencies.length - 1],
+    max_order: values["max-order"] ?? 32,
+    selection: values["modes-hz"] !== undefined
+      ? { modes_hz: values["modes-hz"] }
+      : "poles stable in frequency (1 %), damping (5 %) and shape (MAC 0.98) over the last 5 orders",
+  });
+  await writeTable(tables.modes, resolveFormat(values.format, values.out), values.out);
+  const extra = [
+    [values["shapes-out"], tables.shapes],
+    [values["stability-out"], tables.stability],
+    [values["synth-out"], tables.synthesis],
+  ] as const;
+  for (const [path, table] of extra) {
+    if (path !== undefined) await writeTable(table, resolveFormat(undefined, path), path);
+  }
+  for (const w of result.warnings) toStderr(`quiver modal: warning: ${w}\n`);
+  toStderr(
+    `modal: ${result.modes.length} mode(s) from ${dofs.length} FRF(s), ${
+      formatFixed(result.frequencies[0], 2)
+    }–${formatFixed(result.frequencies[result.frequencies.length - 1], 2)} Hz\n`,
+  );
+  for (const m of result.modes) {
+    toStderr(
+      `  mode ${m.mode}: ${formatFixed(m.frequencyHz, 3)} Hz, damping ${
+        formatFixed(100 * m.dampingRatio, 3)
+      } %, MPC ${formatFixed(m.mpc, 3)}${m.flags.length > 0 ? ` [${m.flags.join(", ")}]` : ""}\n`,
+    );
+  }
+}
