@@ -6,13 +6,11 @@
 import { readFile } from "node:fs/promises";
 import { z } from "npm:zod@4.6.7";
 import { QuiverError } from "../lib/errors.ts";
-import { writeFileAtomic } from "../lib/io/atomic_write.ts";
-import { formatCsv } from "../lib/io/table.ts";
 import {
   correlateShapes,
   correlationTables,
   parsePointMap,
-  parseShapes,
+  readShapesFile,
 } from "../lib/modal/shapes.ts";
 import { formatFixed } from "../lib/format_number.ts";
 import { inFile, parseCommandArgs, usageError } from "./args.ts";
@@ -85,8 +83,8 @@ export async function run(argv: readonly string[]): Promise<void> {
     );
   }
   const [testPath, simulationPath] = positionals;
-  const test = parseShapes(await text(testPath), { file: testPath });
-  const simulation = parseShapes(await text(simulationPath), { file: simulationPath });
+  const test = await readShapesFile(testPath);
+  const simulation = await readShapesFile(simulationPath);
   const map = values.map !== undefined
     ? parsePointMap(await text(values.map), { file: values.map })
     : undefined;
@@ -101,7 +99,11 @@ export async function run(argv: readonly string[]): Promise<void> {
   });
   await writeTable(traced(matrix), resolveFormat(values.format, values.out), values.out);
   if (values["pairs-out"] !== undefined) {
-    await writeFileAtomic(values["pairs-out"], formatCsv(pairs));
+    await writeTable(
+      traced(pairs),
+      resolveFormat(undefined, values["pairs-out"]),
+      values["pairs-out"],
+    );
   }
   toStderr(
     `mac: ${test.length} test and ${simulation.length} simulation mode(s) over ${correlation.dofs.length} degree(s) of freedom` +

@@ -141,9 +141,14 @@ export async function run(argv: readonly string[]): Promise<void> {
             file: values.dofs,
           });
         }
-        return { ...entry, frf };
+        return { ...entry, frf, ...(d.expTau !== undefined ? { expTau: d.expTau } : {}) };
       }
-      return { point: shared.has(frf.name) ? stem(positionals[i]) : frf.name, direction: "", frf };
+      return {
+        point: shared.has(frf.name) ? stem(positionals[i]) : frf.name,
+        direction: "",
+        frf,
+        ...(d.expTau !== undefined ? { expTau: d.expTau } : {}),
+      };
     })
   );
   const analysis = libraryOptions(ANALYSIS, values);

@@ -18,6 +18,11 @@
  *
  * FRFs enter as receptance: mobility is divided by jω, accelerance by (jω)².
  *
+ * An exponential window exp(−t/τ) on impact records moves every pole by
+ * −1/τ in its real part; when the FRFs say they were windowed (all with one
+ * τ), the modes' frequency and damping are those of λ + 1/τ, and the
+ * correction is stated in the flags (`window_corrected`).
+ *
  * @module
  */
 import { QuiverError } from "../errors.ts";
@@ -41,6 +46,8 @@ export interface ModalDof {
   readonly direction: string;
   /** The FRF. */
   readonly frf: FrfChannel;
+  /** The exponential window's time constant on its records, s, when one was applied. */
+  readonly expTau?: number;
 }
 
 /** Options of {@linkcode modalFit}. */
@@ -75,7 +82,7 @@ export interface FittedMode {
   readonly mpc: number;
   /** The shape, one value per degree of freedom, largest component 1. */
   readonly shape: readonly Complex[];
-  /** Quality flags: `low_mpc` (MPC < 0.9), `form_assumed`. */
+  /** Quality flags: `low_mpc` (MPC < 0.9), `form_assumed`, `window_corrected`. */
   readonly flags: readonly string[];
 }
 
@@ -175,6 +182,13 @@ export function modalFit(
   const converted = dofs.map((d) => asReceptance(d.frf, frequencies, from, to));
   const set: FrfSet = { frequencies: band, responses: converted };
   const warnings: string[] = [];
+  const taus = [...new Set(dofs.map((d) => d.expTau))];
+  if (taus.length > 1) {
+    throw new QuiverError(
+      "the FRFs were windowed with different exponential time constants; fit them apart or window them alike",
+    );
+  }
+  const tau = taus[0];
   if (converted.some((c) => c.assumed)) {
     warnings.push("an FRF does not state its form: read as receptance (flagged form_assumed)");
   }
@@ -264,13 +278,16 @@ export function modalFit(
       ...(mpc < 0.9 ? ["low_mpc"] : []),
       ...(converted.some((c) => c.assumed) ? ["form_assumed"] : []),
     ];
+    // Undo the exponential window's shift of the pole: λ_true = λ + 1/τ.
+    const re = pole.lambda.re + (tau !== undefined ? 1 / tau : 0);
+    const wn = Math.hypot(re, pole.lambda.im);
     return {
       mode: r + 1,
-      frequencyHz: pole.frequencyHz,
-      dampingRatio: pole.dampingRatio,
+      frequencyHz: wn / (2 * Math.PI),
+      dampingRatio: -re / wn,
       mpc,
       shape,
-      flags,
+      flags: tau !== undefined ? [...flags, "window_corrected"] : flags,
     };
   });
   return {

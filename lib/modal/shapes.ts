@@ -13,7 +13,9 @@
  *
  * @module
  */
+import { readFile } from "node:fs/promises";
 import { QuiverError } from "../errors.ts";
+import { readResultFile } from "../io/result_file.ts";
 import { parseTextCsv } from "../io/csv_text.ts";
 import { parseDecimal } from "../io/numbers.ts";
 import type { Table } from "../io/table.ts";
@@ -47,7 +49,36 @@ export const dofKey = (point: string, direction: string): string => `${point} ${
  */
 export function parseShapes(text: string, options: { file?: string } = {}): ModeShape[] {
   const table = parseTextCsv(text, options);
-  const names = table.header.map((h) => h.name);
+  return shapesFromColumns(
+    table.header.map((h, c) => ({ name: h.name, values: table.rows.map((r) => r[c]) })),
+    { file: options.file, lines: table.lines },
+  );
+}
+
+/**
+ * Mode shapes from named columns of text or numbers (a text CSV, or a
+ * quiver JSON table such as `modal --shapes-out` writes).
+ *
+ * @throws {QuiverError} as {@linkcode parseShapes}.
+ *
+ * @example
+ * ```ts
+ * import { shapesFromColumns } from "./shapes.ts";
+ * const s = shapesFromColumns([{ name: "mode", values: new Float64Array([1, 1]) }, { name: "point", values: ["a", "b"] },
+ *   { name: "direction", values: ["z", "z"] }, { name: "re", values: new Float64Array([1, -1]) }, { name: "im", values: new Float64Array(2) }]);
+ * if (s[0].values.get("b z")?.re !== -1) throw new Error();
+ * ```
+ */
+export function shapesFromColumns(
+  columns: readonly { name: string; values: readonly string[] | Float64Array }[],
+  options: { file?: string; lines?: readonly number[] } = {},
+): ModeShape[] {
+  const rowCount = columns[0]?.values.length ?? 0;
+  const table = {
+    rows: Array.from({ length: rowCount }, (_, r) => columns.map((c) => String(c.values[r]))),
+    lines: options.lines ?? Array.from({ length: rowCount }, (_, r) => r + 2),
+  };
+  const names = columns.map((c) => c.name);
   const at = (name: string) => names.indexOf(name);
   const complex = at("re") >= 0 && at("im") >= 0;
   const needed = ["mode", "point", "direction", ...(complex ? ["re", "im"] : ["value"])];
@@ -98,6 +129,35 @@ export function parseShapes(text: string, options: { file?: string } = {}): Mode
     ...(m.frequencyHz !== undefined ? { frequencyHz: m.frequencyHz } : {}),
     values: m.values,
   }));
+}
+
+/**
+ * Reads a shapes file: a text CSV, or a quiver JSON table (`modal
+ * --shapes-out` with a `.json` name).
+ *
+ * @throws {QuiverError} for an unreadable file or one that is not a shapes table.
+ *
+ * @example
+ * ```ts
+ * import { readShapesFile } from "./shapes.ts";
+ * import { mkdtemp, writeFile } from "node:fs/promises";
+ * const dir = await mkdtemp("/tmp/quiver-doc-");
+ * await writeFile(`${dir}/s.json`, JSON.stringify({ metadata: {}, columns: [{ name: "mode", unit: "", values: [1, 1] },
+ *   { name: "point", unit: "", values: ["a", "b"] }, { name: "direction", unit: "", values: ["", ""] },
+ *   { name: "re", unit: "", values: [1, 0.5] }, { name: "im", unit: "", values: [0, 0] }] }));
+ * if ((await readShapesFile(`${dir}/s.json`))[0].values.get("b ")?.re !== 0.5) throw new Error();
+ * ```
+ */
+export async function readShapesFile(path: string): Promise<ModeShape[]> {
+  let text: string;
+  try {
+    text = await readFile(path, "utf8");
+  } catch (error) {
+    throw new QuiverError(`cannot read: ${(error as Error).message}`, { file: path }, "usage");
+  }
+  if (!text.trimStart().startsWith("{")) return parseShapes(text, { file: path });
+  const table = await readResultFile(path);
+  return shapesFromColumns(table.columns, { file: path });
 }
 
 /**
@@ -260,6 +320,14 @@ export function correlationTables(
     test_only: correlation.testOnly,
     simulation_only: correlation.simulationOnly,
     auto_mac: correlation.autoMac.map((r) => Array.from(r)),
+    pairs: correlation.pairs.map((p) => ({
+      test_mode: p.testMode,
+      simulation_mode: p.simulationMode,
+      test_hz: p.testHz ?? null,
+      simulation_hz: p.simulationHz ?? null,
+      shift_percent: p.shiftPercent ?? null,
+      mac: p.mac,
+    })),
   };
   const column = (name: string, values: ArrayLike<number | undefined>) => ({
     name,

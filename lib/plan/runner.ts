@@ -150,7 +150,40 @@ export function planSteps(
       const argv: string[] = [];
       const inputs: string[] = [];
       const needs: string[] = [];
-      if (a.command === "damping") {
+      if (a.command === "modal") {
+        const sources = a.inputs ?? (a.input !== undefined ? [a.input] : []);
+        if (sources.length === 0) {
+          fail(`${where}.inputs`, "modal needs the ids of frf or hammer analyses");
+        }
+        sources.forEach((source, k) => {
+          const command = known.get(source);
+          if (command !== "frf" && command !== "hammer") {
+            fail(`${where}.inputs[${k}]`, `"${source}" is not an earlier frf or hammer analysis`);
+          }
+          const path = join(outDir, `${source}.json`);
+          argv.push(path);
+          inputs.push(path);
+          needs.push(source);
+        });
+      } else if (a.command === "mac") {
+        if (a.input === undefined || known.get(a.input) !== "modal") {
+          fail(`${where}.input`, "mac needs the id of an earlier modal analysis");
+        }
+        if (a.simulation === undefined) {
+          fail(`${where}.simulation.file`, "mac needs the simulation's mode shapes");
+        }
+        const sim = at((a.simulation as { file: string }).file);
+        if (!existsSync(sim)) {
+          fail(
+            `${where}.simulation.file`,
+            `no such file: ${(a.simulation as { file: string }).file}`,
+          );
+        }
+        const shapes = join(outDir, `${a.input}_shapes.json`);
+        argv.push(shapes, sim);
+        inputs.push(shapes, sim);
+        needs.push(a.input as string);
+      } else if (a.command === "damping") {
         if (a.input === undefined) {
           fail(`${where}.input`, "damping needs the id of an frf or hammer analysis");
         }
@@ -185,6 +218,12 @@ export function planSteps(
       }
       const outputs: Record<string, string> = { out: join(outDir, `${a.id}.json`) };
       if (a.command === "hammer") outputs["hits-out"] = join(outDir, `${a.id}_hits.csv`);
+      if (a.command === "modal") {
+        for (const part of ["shapes", "stability", "synth"]) {
+          outputs[`${part}-out`] = join(outDir, `${a.id}_${part}.json`);
+        }
+      }
+      if (a.command === "mac") outputs["pairs-out"] = join(outDir, `${a.id}_pairs.json`);
       if (a.command === "orders") {
         outputs["rpm-out"] = join(outDir, `${a.id}_rpm.json`);
         outputs["map-out"] = join(outDir, `${a.id}_map.json`);
@@ -317,6 +356,11 @@ function checkPlanOutputs(
   }
   plan.comparisons.forEach((c, i) => {
     inputs.push([at(c.simulation.file), `comparisons[${i}].simulation.file`]);
+  });
+  plan.analyses.forEach((a, i) => {
+    if (a.simulation !== undefined) {
+      inputs.push([at(a.simulation.file), `analyses[${i}].simulation.file`]);
+    }
   });
   for (const [path, what] of inputs) {
     for (const file of [path, `${path}.meta.json`]) {

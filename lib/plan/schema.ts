@@ -47,6 +47,8 @@ export const PLAN_COMMANDS = [
   "level",
   "orders",
   "spectrogram",
+  "modal",
+  "mac",
 ] as const;
 
 const id = z.string().regex(/^[A-Za-z0-9_-]+$/, "ids use letters, digits, _ and - only");
@@ -82,6 +84,10 @@ const analysis = z.strictObject({
   command: z.enum(PLAN_COMMANDS),
   recording: z.string().optional(),
   input: z.string().optional(),
+  /** `modal`: the ids of the frf or hammer analyses whose FRFs it fits together. */
+  inputs: z.array(z.string()).min(1).optional(),
+  /** `mac`: the simulation's mode shapes. */
+  simulation: z.strictObject({ file: z.string().min(1) }).optional(),
   title: z.string().optional(),
   options: z.record(optionName, optionValue).default({}),
 });
@@ -103,7 +109,15 @@ const valueTarget = z.strictObject({
   description: z.string().optional(),
   of: z.strictObject({
     analysis: z.string(),
-    quantity: z.enum(["first_mode_hz", "mode_hz", "overall_db", "leq_db", "lmax_db"]),
+    quantity: z.enum([
+      "first_mode_hz",
+      "mode_hz",
+      "overall_db",
+      "leq_db",
+      "lmax_db",
+      "pair_mac",
+      "pair_shift_percent",
+    ]),
     channel: z.string().optional(),
     mode: z.number().int().positive().optional(),
   }),

@@ -4,7 +4,9 @@
  * Quantities: `first_mode_hz` and `mode_hz` (mode `mode`, 1-based) from a
  * damping result, optionally of one `channel`; `overall_db` from a bands
  * result's overall level of `channel`; `leq_db` and `lmax_db` from a level
- * result's summary of `channel`. A limit curve checks the `channel` column
+ * result's summary of `channel`; `pair_mac` and `pair_shift_percent` of the
+ * pair of test mode `mode` (1-based) from a mac result (the shift as its
+ * magnitude, so a `max` target bounds it either way). A limit curve checks the `channel` column
  * of any result against its first column (frequency, band centre or rpm),
  * in the column's own unit.
  *
@@ -68,6 +70,13 @@ function quantityOf(t: Extract<PlanTarget, { type: "min" | "max" }>, result: Res
     const o = overall.find((x) => channel === undefined || x.channel === channel);
     if (o === undefined) throw new Error("no overall level for that channel");
     return finiteValue(o.level_db, "the overall level");
+  }
+  if (quantity === "pair_mac" || quantity === "pair_shift_percent") {
+    const wanted = mode ?? 1;
+    const pair = resultMetadata(result, "mac").pairs.find((p) => p.test_mode === wanted);
+    if (pair === undefined) throw new Error(`test mode ${wanted} has no simulation pair`);
+    if (quantity === "pair_mac") return finiteValue(pair.mac, "the pair's MAC");
+    return Math.abs(finiteValue(pair.shift_percent, "the pair's frequency shift"));
   }
   const summary = resultMetadata(result, "level").summary;
   const s = summary.find((x) => channel === undefined || x.channel === channel);

@@ -264,6 +264,118 @@ async function orderFigures(
   return figures;
 }
 
+/** A modal fit: the mode table, the stability chart, and measured against synthesised FRFs. */
+async function modalSection(
+  id: string,
+  title: string,
+  r: ResultJson,
+  outDir: string,
+): Promise<{ figures: Figure[]; html: string }> {
+  const m = resultMetadata(r, "modal");
+  const rows = m.modes.map((mode) =>
+    `<tr><td>${escapeXml(mode.mode)}</td><td>${formatFixed(mode.frequencyHz, 2)}</td><td>${
+      formatFixed(100 * mode.dampingRatio, 2)
+    }</td><td>${formatFixed(mode.mpc, 3)}</td><td>${escapeXml(mode.flags.join(", "))}</td></tr>`
+  ).join("\n");
+  const html =
+    `<table><thead><tr><th>Mode</th><th>Frequency [Hz]</th><th>Damping [%]</th><th>MPC</th><th>Flags</th></tr></thead><tbody>${rows}</tbody></table>`;
+  const figures: Figure[] = [];
+  const stability = await readJson(join(outDir, `${id}_stability.json`));
+  if (!(stability instanceof QuiverError)) {
+    const [order, hz, , sf, sd, ss] = stability.columns.map(numbers);
+    const pick = (test: (k: number) => boolean) => {
+      const x: number[] = [], y: number[] = [];
+      for (let k = 0; k < order.length; k++) {
+        if (test(k)) {
+          x.push(hz[k]);
+          y.push(order[k]);
+        }
+      }
+      return { x, y };
+    };
+    const all = (k: number) => sf[k] === 1 && sd[k] === 1 && ss[k] === 1;
+    figures.push({
+      name: `${id}_stability`,
+      svg: linePlot({
+        title: `${title}: stability over model orders`,
+        x: { label: "Frequency [Hz]" },
+        y: { label: "Model order [-]" },
+        series: [
+          { name: "stable (f, ζ, shape)", markers: true, ...pick(all) },
+          { name: "stable in f only", markers: true, ...pick((k) => sf[k] === 1 && !all(k)) },
+          { name: "not stable", markers: true, ...pick((k) => sf[k] !== 1) },
+        ],
+      }),
+    });
+  }
+  const synth = await readJson(join(outDir, `${id}_synth.json`));
+  if (!(synth instanceof QuiverError)) {
+    const f = numbers(synth.columns[0]);
+    const series: Series[] = [];
+    // Up to three points: measured solid, synthesised dashed, |H| from re and im.
+    for (let d = 0; d < Math.min(3, m.dofs.length); d++) {
+      const [mr, mi, sr, si] = synth.columns.slice(1 + 4 * d, 5 + 4 * d).map(numbers);
+      const name = m.dofs[d].point + (m.dofs[d].direction === "" ? "" : ` ${m.dofs[d].direction}`);
+      series.push({ name: `${name} measured`, x: f, y: mr.map((v, k) => Math.hypot(v, mi[k])) });
+      series.push({
+        name: `${name} synthesised`,
+        x: f,
+        y: sr.map((v, k) => Math.hypot(v, si[k])),
+        dashed: true,
+      });
+    }
+    figures.push({
+      name: `${id}_synthesis`,
+      svg: linePlot({
+        title: `${title}: measured and synthesised receptance`,
+        x: { label: "Frequency [Hz]" },
+        y: { label: withUnit("|H|", synth.columns[1]?.unit ?? ""), log: true },
+        series,
+      }),
+    });
+  }
+  return { figures, html };
+}
+
+/** A shape correlation: the MAC matrix as a colour grid with its values, and the pairs. */
+function macSection(id: string, title: string, r: ResultJson): { figures: Figure[]; html: string } {
+  const m = resultMetadata(r, "mac");
+  const [testMode, simMode, mac] = r.columns.map(numbers);
+  const tests = [...new Set(testMode)].sort((a, b) => a - b);
+  const sims = [...new Set(simMode)].sort((a, b) => a - b);
+  const z = sims.map((s) =>
+    Float64Array.from(tests, (t) => {
+      for (let k = 0; k < mac.length; k++) if (testMode[k] === t && simMode[k] === s) return mac[k];
+      return NaN;
+    })
+  );
+  const rows = m.pairs.map((p) =>
+    `<tr><td>${escapeXml(p.test_mode)}</td><td>${escapeXml(p.simulation_mode)}</td><td>${
+      formatFixed(p.test_hz, 2)
+    }</td><td>${formatFixed(p.simulation_hz, 2)}</td><td>${
+      formatFixed(p.shift_percent, 2)
+    }</td><td>${formatFixed(p.mac, 3)}</td></tr>`
+  ).join("\n");
+  return {
+    figures: [{
+      name: `${id}_mac`,
+      svg: heatMap({
+        title: `${title}: MAC, test against simulation (${m.dofs_used} points)`,
+        xLabel: "Simulation mode",
+        yLabel: "Test mode",
+        zLabel: "MAC [-]",
+        x: sims,
+        y: tests,
+        z,
+        zDomain: [0, 1],
+        values: true,
+      }),
+    }],
+    html:
+      `<table><thead><tr><th>Test mode</th><th>Simulation mode</th><th>Test [Hz]</th><th>Simulation [Hz]</th><th>Shift [%]</th><th>MAC</th></tr></thead><tbody>${rows}</tbody></table>`,
+  };
+}
+
 function comparisonFigures(
   id: string,
   title: string,
@@ -423,6 +535,16 @@ export async function writeReport(outDir: string, manifest: Manifest, plan: Plan
         case "damping":
           sections.push({ heading: title, note, figures: [], html: modeTable(r) });
           break;
+        case "modal": {
+          const { figures, html } = await modalSection(step.id, title, r, outDir);
+          sections.push({ heading: title, note, figures, html });
+          break;
+        }
+        case "mac": {
+          const { figures, html } = macSection(step.id, title, r);
+          sections.push({ heading: title, note, figures, html });
+          break;
+        }
         case "bands": {
           const overall = resultMetadata(r, "bands").overall
             .map((o) =>

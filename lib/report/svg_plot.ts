@@ -26,6 +26,8 @@ export interface Series {
   readonly y: ArrayLike<number>;
   /** Dashed line (e.g. a simulation or a limit). Default false. */
   readonly dashed?: boolean;
+  /** Points as markers, not joined (e.g. poles in a stability chart). Default false. */
+  readonly markers?: boolean;
 }
 
 /** An axis. */
@@ -205,6 +207,22 @@ export function linePlot(plot: LinePlot): string {
   const y = makeScale(plot.y, ys, [height - MARGIN.bottom, MARGIN.top]);
   const [xlo, xhi] = x.domain() as [number, number];
   const paths = plot.series.map((s, i) => {
+    if (s.markers === true) {
+      const colour = PALETTE[i % PALETTE.length];
+      const dots: string[] = [];
+      for (let k = 0; k < s.x.length; k++) {
+        const ok = Number.isFinite(s.y[k]) && (!plot.y.log || s.y[k] > 0) &&
+          (!plot.x.log || s.x[k] > 0) && s.x[k] >= xlo && s.x[k] <= xhi;
+        if (ok) {
+          dots.push(
+            `<circle class="marker" cx="${x(s.x[k]).toFixed(1)}" cy="${
+              y(s.y[k]).toFixed(1)
+            }" r="2.4" fill="${colour}"/>`,
+          );
+        }
+      }
+      return dots.join("");
+    }
     let d = "";
     let pen = false;
     for (let k = 0; k < s.x.length; k++) {
@@ -441,6 +459,8 @@ export interface HeatMap {
   readonly z: readonly (ArrayLike<number>)[];
   /** Colour range; default: the top 50 units of the data (for dB). */
   readonly zDomain?: readonly [number, number];
+  /** Print each cell's value in it (small grids such as a MAC matrix). Default false. */
+  readonly values?: boolean;
   /** Lines drawn over the map in data units (e.g. order lines), clipped to the map. */
   readonly lines?: readonly { name: string; x: ArrayLike<number>; y: ArrayLike<number> }[];
   readonly width?: number;
@@ -483,24 +503,29 @@ export function heatMap(plot: HeatMap): string {
     x(0.5),
     x(plot.x.length - 0.5),
   ]);
-  for (const t of xs.ticks(8)) {
+  // A small grid of categories (mode numbers) is labelled cell by cell, a large one by ticks.
+  const xTicks = plot.values === true ? plot.x : xs.ticks(8);
+  xTicks.forEach((t, i) => {
+    const at = plot.values === true ? x(i + 0.5) : xs(t);
     parts.push(
-      `<text x="${xs(t)}" y="${height - MARGIN.bottom + 14}" text-anchor="middle" fill="#3d4b59">${
+      `<text x="${at}" y="${height - MARGIN.bottom + 14}" text-anchor="middle" fill="#3d4b59">${
         tickLabel(t)
       }</text>`,
     );
-  }
+  });
   const ys = scaleLinear().domain([plot.y[0], plot.y[plot.y.length - 1]]).range([
     y(0.5),
     y(plot.y.length - 0.5),
   ]);
-  for (const t of ys.ticks(6)) {
+  const yTicks = plot.values === true ? plot.y : ys.ticks(6);
+  yTicks.forEach((t, j) => {
+    const at = plot.values === true ? y(j + 0.5) : ys(t);
     parts.push(
-      `<text x="${MARGIN.left - 6}" y="${ys(t) + 4}" text-anchor="end" fill="#3d4b59">${
+      `<text x="${MARGIN.left - 6}" y="${at + 4}" text-anchor="end" fill="#3d4b59">${
         tickLabel(t)
       }</text>`,
     );
-  }
+  });
   const barX = width - right + 10;
   const zs = scaleLinear().domain(domain as [number, number]).range([
     height - MARGIN.bottom,
@@ -524,6 +549,20 @@ export function heatMap(plot: HeatMap): string {
     }) rotate(-90)" text-anchor="middle" fill="#22313f">${escapeXml(plot.zLabel)}</text>`,
   );
   for (const line of plot.lines ?? []) parts.push(overlayLine(line, xs, ys));
+  if (plot.values === true) {
+    plot.z.forEach((col, i) => {
+      for (let j = 0; j < plot.y.length; j++) {
+        const light = (col[j] - domain[0]) / (domain[1] - domain[0]) > 0.6;
+        parts.push(
+          `<text class="value" x="${x(i + 0.5).toFixed(1)}" y="${
+            (y(j + 0.5) + 4).toFixed(1)
+          }" text-anchor="middle" fill="${light ? "#1a1038" : "#ffffff"}">${
+            Number.isFinite(col[j]) ? col[j].toFixed(2) : ""
+          }</text>`,
+        );
+      }
+    });
+  }
   parts.push(plotFrame({ width, height, right, xLabel: plot.xLabel, yLabel: plot.yLabel }));
   return frame(width, height, plot.title, parts.join("\n"));
 }

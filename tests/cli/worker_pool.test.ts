@@ -30,7 +30,7 @@ describe("the worker pool of run --jobs", () => {
     expect(r.stderr).toMatch(/^bracket_frf: \d+ hits: /m);
     // No unlabelled line from a command: each is a progress line, the run's own, or labelled.
     for (const line of r.stderr.trim().split("\n")) {
-      expect(line, line).toMatch(/^(\[\d+\/\d+\]|run: |  |[a-z_]+: )/);
+      expect(line, line).toMatch(/^(\[\d+\/\d+\]|run: |  |[A-Za-z0-9_-]+: )/);
     }
   });
 });

@@ -84,3 +84,43 @@ describe("modal fit of several FRFs (LSCF poles, LSFD residues)", () => {
     for (const e of result.relativeError) expect(e).toBeLessThan(0.02);
   });
 });
+
+describe("an exponential window on impact records", () => {
+  test("moves every pole by −1/τ; the fit moves it back and says so", () => {
+    // h(t)·exp(−t/τ) has the poles λ − 1/τ (Laplace shift theorem): synthesise the windowed
+    // FRF of one mode (50 Hz, ζ 1 %) with the shifted pole, then fit it knowing τ.
+    const tau = 0.5, zeta = 0.01, wn = 2 * Math.PI * 50;
+    const lambda = { re: -zeta * wn - 1 / tau, im: wn * Math.sqrt(1 - zeta * zeta) };
+    const f = new Float64Array(600).map((_, i) => 20 + i * 0.1);
+    const re = new Float64Array(600), im = new Float64Array(600);
+    f.forEach((hz, k) => {
+      // H = R/(jω − λ) + R*/(jω − λ*), R = −j/(2ω_d): a unit-mass mode.
+      const w = 2 * Math.PI * hz;
+      for (const sign of [1, -1]) {
+        const dr = -lambda.re, di = w - sign * lambda.im, d = dr * dr + di * di;
+        const rr = 0, ri = (-sign) / (2 * lambda.im);
+        // (rr + j·ri)·(dr − j·di)/d
+        re[k] += (rr * dr + ri * di) / d;
+        im[k] += (ri * dr - rr * di) / d;
+      }
+    });
+    const frf = {
+      name: "tip",
+      unit: "m/N",
+      re,
+      im,
+      magnitude: re.map((v, k) => Math.hypot(v, im[k])),
+      form: "receptance" as const,
+    };
+    const [mode] = modalFit(f, [{ point: "1", direction: "z", frf, expTau: tau }], { maxOrder: 20 })
+      .modes;
+    expect(Math.abs(mode.dampingRatio / zeta - 1)).toBeLessThan(0.01);
+    expect(Math.abs(mode.frequencyHz / 50 - 1)).toBeLessThan(1e-4);
+    expect(mode.flags).toContain("window_corrected");
+    // Without τ the fit reports the windowed pole's damping, −Re λ/|λ| = (ζω_n + 1/τ)/|λ| ≈ 1.64 %.
+    const [raw] = modalFit(f, [{ point: "1", direction: "z", frf }], { maxOrder: 20 }).modes;
+    const windowed = -lambda.re / Math.hypot(lambda.re, lambda.im);
+    expect(Math.abs(raw.dampingRatio / windowed - 1)).toBeLessThan(0.01);
+    expect(raw.flags).not.toContain("window_corrected");
+  });
+});

@@ -46,6 +46,24 @@ describe("quiver run", () => {
       /plan key analyses\[5\]\.options\.rpm-step/,
     ],
     [
+      "a modal fit of something that is not an FRF",
+      (p) => {
+        const modal = (p.analyses as { id: string; inputs?: string[] }[])
+          .find((a) => a.id === "link_modes")!;
+        modal.inputs = ["link_p1", "road_psd"];
+      },
+      /plan key analyses\[\d+\]\.inputs\[1\]: "road_psd" is not an earlier frf or hammer analysis/,
+    ],
+    [
+      "a shape correlation without the simulation's shapes",
+      (p) => {
+        const mac = (p.analyses as { id: string; simulation?: unknown }[])
+          .find((a) => a.id === "link_mac")!;
+        delete mac.simulation;
+      },
+      /plan key analyses\[\d+\]\.simulation\.file: mac needs the simulation's mode shapes/,
+    ],
+    [
       "an unknown option",
       (p) => ((p.analyses as { options: Record<string, unknown> }[])[0].options.windwo = "hann"),
       /plan key analyses\[0\]\.options\.windwo/,
@@ -66,10 +84,10 @@ describe("quiver run", () => {
     async () => {
       const r = runQuiver(["run", `${dir}/tamarack_b2_plan.json`, "--out-dir", `${dir}/out`]);
       expect(r.code).toBe(0);
-      expect(r.stderr).toMatch(/\[10\/10\] compare bracket_vs_sim: ok/);
+      expect(r.stderr).toMatch(/\[17\/17\] compare bracket_vs_sim: ok/);
       const manifest = JSON.parse(await readFile(`${dir}/out/manifest.json`, "utf8"));
       expect(manifest.status).toBe("ok");
-      expect(manifest.steps).toHaveLength(10);
+      expect(manifest.steps).toHaveLength(17);
       const hammer = manifest.steps.find((s: { id: string }) => s.id === "bracket_frf");
       expect(hammer.inputs[0].sha256).toMatch(/^[0-9a-f]{64}$/);
       expect(hammer.outputs["hits-out"].path).toBe("bracket_frf_hits.csv");
@@ -77,6 +95,11 @@ describe("quiver run", () => {
       expect(targets.bracket_first_mode.pass).toBe(true);
       expect(Math.abs(targets.bracket_first_mode.value - 44.2)).toBeLessThan(0.2); // the bracket's invented first mode
       expect(targets.cabin_thirds.status).toBe("checked");
+      // The link arm's first bending, paired with the simulation's by MAC (invented data:
+      // identical shapes, the simulation 3 % stiffer; tolerance for the fit's 0.01 % error).
+      expect(targets.link_first_mode_mac.pass).toBe(true);
+      expect(targets.link_first_mode_mac.value).toBeGreaterThan(0.99);
+      expect(Math.abs(targets.link_first_mode_shift.value - 2.93)).toBeLessThan(0.05);
       const html = await readFile(`${dir}/out/report.html`, "utf8");
       expect((html.match(/<svg /g) ?? []).length).toBeGreaterThanOrEqual(6);
       expect(html).not.toMatch(/(src|href)="https?:/);
@@ -111,7 +134,7 @@ describe("quiver run", () => {
       const orders = manifest.steps.find((s: { id: string }) => s.id === "mount_orders");
       expect(orders.status).toBe("failed");
       expect(orders.error).toMatch(/broken\.csv:3: row has 2 fields/);
-      expect(manifest.steps.filter((s: { status: string }) => s.status === "ok")).toHaveLength(7);
+      expect(manifest.steps.filter((s: { status: string }) => s.status === "ok")).toHaveLength(14);
     },
   );
 });

@@ -61,6 +61,9 @@ describe("the HTML report in a browser", () => {
             "cabin_spectrogram_driver_ear_spectrogram",
             "runup_spectrogram_cabin_mic_spectrogram",
             "cabin_orders_cuts",
+            "link_modes_stability",
+            "link_modes_synthesis",
+            "link_mac_mac",
           ]
         ) {
           const box = await page.locator(`#figure-${name} > svg`).boundingBox();
@@ -71,6 +74,10 @@ describe("the HTML report in a browser", () => {
         expect(
           await page.locator("#figure-runup_spectrogram_cabin_mic_spectrogram g.overlay").count(),
         ).toBe(2);
+        // The MAC grid carries its values; the stability chart its poles as markers.
+        expect(await page.locator("#figure-link_mac_mac text.value").count()).toBe(12);
+        expect(await page.locator("#figure-link_modes_stability circle.marker").count())
+          .toBeGreaterThan(20);
         // The map's cells are one raster image; the browser decodes it to its full size.
         const image = page.locator("#figure-runup_spectrogram_cabin_mic_spectrogram svg.map image");
         expect(await image.count()).toBe(1);
