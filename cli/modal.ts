@@ -9,6 +9,7 @@ import { QuiverError } from "../lib/errors.ts";
 import { formatFixed } from "../lib/format_number.ts";
 import { parseTextCsv } from "../lib/io/csv_text.ts";
 import { readFrfFile } from "../lib/modal/frf_input.ts";
+import { parseGeometry } from "../lib/modal/geometry.ts";
 import { type ModalDof, modalFit, modalTables } from "../lib/modal/modal_fit.ts";
 import { readFile } from "node:fs/promises";
 import { integerOption, numberOption, parseCommandArgs, usageError } from "./args.ts";
@@ -45,6 +46,11 @@ const ANALYSIS = {
 };
 
 const INPUTS = {
+  geometry: option(z.string().min(1), {
+    value: "FILE.csv",
+    help:
+      "point, x, y, z (and an optional line_to): the test geometry,\nfor the report's drawings of the shapes",
+  }),
   dofs: option(z.string().min(1), {
     value: "MAP.csv",
     help:
@@ -151,6 +157,9 @@ export async function run(argv: readonly string[]): Promise<void> {
       };
     })
   );
+  const geometry = values.geometry !== undefined
+    ? parseGeometry(await readFile(values.geometry, "utf8"), { file: values.geometry })
+    : undefined;
   const analysis = libraryOptions(ANALYSIS, values);
   const result = modalFit(axis, dofs, analysis);
   const tables = modalTables(result, {
@@ -161,6 +170,7 @@ export async function run(argv: readonly string[]): Promise<void> {
     selection: values["modes-hz"] !== undefined
       ? { modes_hz: values["modes-hz"] }
       : "poles stable in frequency (1 %), damping (5 %) and shape (MAC 0.98) over the last 5 orders",
+    ...(geometry !== undefined ? { geometry } : {}),
   });
   await writeTable(tables.modes, resolveFormat(values.format, values.out), values.out);
   const extra = [

@@ -108,6 +108,12 @@ export const RESULT_METADATA = {
     method: z.string(),
     dofs: z.array(z.looseObject({ point: z.string(), direction: z.string() })),
     fit_relative_error: z.array(finiteOrNull),
+    geometry: z.looseObject({
+      points: z.array(
+        z.looseObject({ point: z.string(), x: z.number(), y: z.number(), z: z.number() }),
+      ),
+      lines: z.array(z.tuple([z.string(), z.string()])),
+    }).optional(),
     modes: z.array(z.looseObject({
       mode: z.number(),
       frequencyHz: z.number(),

@@ -165,6 +165,12 @@ export function planSteps(
           inputs.push(path);
           needs.push(source);
         });
+        if (a.geometry !== undefined) {
+          const file = at(a.geometry.file);
+          if (!existsSync(file)) fail(`${where}.geometry.file`, `no such file: ${a.geometry.file}`);
+          argv.push("--geometry", file);
+          inputs.push(file);
+        }
       } else if (a.command === "mac") {
         if (a.input === undefined || known.get(a.input) !== "modal") {
           fail(`${where}.input`, "mac needs the id of an earlier modal analysis");
@@ -360,6 +366,9 @@ function checkPlanOutputs(
   plan.analyses.forEach((a, i) => {
     if (a.simulation !== undefined) {
       inputs.push([at(a.simulation.file), `analyses[${i}].simulation.file`]);
+    }
+    if (a.geometry !== undefined) {
+      inputs.push([at(a.geometry.file), `analyses[${i}].geometry.file`]);
     }
   });
   for (const [path, what] of inputs) {

@@ -86,6 +86,8 @@ const analysis = z.strictObject({
   input: z.string().optional(),
   /** `modal`: the ids of the frf or hammer analyses whose FRFs it fits together. */
   inputs: z.array(z.string()).min(1).optional(),
+  /** `modal`: the test geometry (point, x, y, z, line_to) for the report's shape drawings. */
+  geometry: z.strictObject({ file: z.string().min(1) }).optional(),
   /** `mac`: the simulation's mode shapes. */
   simulation: z.strictObject({ file: z.string().min(1) }).optional(),
   title: z.string().optional(),

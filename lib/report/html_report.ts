@@ -17,7 +17,7 @@ import type { ColumnValues, TableColumn } from "../io/table.ts";
 import type { Manifest } from "../plan/runner.ts";
 import type { Plan } from "../plan/schema.ts";
 import type { TargetOutcome } from "../plan/target_eval.ts";
-import { barPlot, escapeXml, heatMap, linePlot, type Series } from "./svg_plot.ts";
+import { barPlot, escapeXml, heatMap, linePlot, type Series, wireframe } from "./svg_plot.ts";
 
 type ResultJson = ResultTable;
 
@@ -333,6 +333,45 @@ async function modalSection(
         series,
       }),
     });
+  }
+  const shapes = m.geometry !== undefined
+    ? await readJson(join(outDir, `${id}_shapes.json`))
+    : undefined;
+  if (m.geometry !== undefined && shapes !== undefined && !(shapes instanceof QuiverError)) {
+    const geometry = m.geometry;
+    const [mode] = [shapes.columns[0]].map(numbers);
+    const point = shapes.columns[1].values, direction = shapes.columns[2].values;
+    const re = numbers(shapes.columns[3]);
+    const index = new Map(geometry.points.map((p, i) => [p.point, i]));
+    for (const fitted of m.modes) {
+      const move = geometry.points.map(() => [0, 0, 0] as [number, number, number]);
+      for (let k = 0; k < mode.length; k++) {
+        if (mode[k] !== fitted.mode) continue;
+        const i = index.get(String(point[k]));
+        if (i === undefined) continue;
+        // Direction "+z", "-x" …; none given means z. The real part of the normalised shape.
+        const d = /^([+-]?)([xyz])$/i.exec(String(direction[k]));
+        const axis = d === null ? 2 : "xyz".indexOf(d[2].toLowerCase());
+        move[i][axis] += (d !== null && d[1] === "-" ? -1 : 1) * re[k];
+      }
+      figures.push({
+        name: `${id}_shape_${fitted.mode}`,
+        svg: wireframe({
+          title: `Mode ${fitted.mode}: ${formatFixed(fitted.frequencyHz, 1)} Hz, ζ ${
+            formatFixed(100 * fitted.dampingRatio, 2)
+          } %`,
+          points: geometry.points.map((p, i) => ({
+            name: p.point,
+            at: [p.x, p.y, p.z],
+            move: move[i],
+          })),
+          lines: geometry.lines.flatMap(([a, b]) => {
+            const ia = index.get(a), ib = index.get(b);
+            return ia === undefined || ib === undefined ? [] : [[ia, ib] as [number, number]];
+          }),
+        }),
+      });
+    }
   }
   return { figures, html };
 }

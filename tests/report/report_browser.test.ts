@@ -64,6 +64,7 @@ describe("the HTML report in a browser", () => {
             "link_modes_stability",
             "link_modes_synthesis",
             "link_mac_mac",
+            "link_modes_shape_1",
           ]
         ) {
           const box = await page.locator(`#figure-${name} > svg`).boundingBox();
@@ -78,6 +79,8 @@ describe("the HTML report in a browser", () => {
         expect(await page.locator("#figure-link_mac_mac text.value").count()).toBe(12);
         expect(await page.locator("#figure-link_modes_stability circle.marker").count())
           .toBeGreaterThan(20);
+        // Each link-arm mode drawn on the geometry: 4 lines between its 5 points, deformed.
+        expect(await page.locator("#figure-link_modes_shape_2 line.deformed").count()).toBe(4);
         // The map's cells are one raster image; the browser decodes it to its full size.
         const image = page.locator("#figure-runup_spectrogram_cabin_mic_spectrogram svg.map image");
         expect(await image.count()).toBe(1);
