@@ -16,16 +16,15 @@
  * @module
  */
 import { QuiverError } from "../errors.ts";
-import { channelIndices, type Recording } from "../io/recording.ts";
+import { channelIndices } from "../io/recording.ts";
 import { asStream, type RecordingSource } from "../io/recording_stream.ts";
-import { memorySeries, type SampleSeries, spoolChannels } from "../io/sample_series.ts";
+import { type SampleSeries, withChannelSeries } from "../io/sample_series.ts";
 import type { Table } from "../io/table.ts";
 import { SpectralAccumulator } from "../dsp/spectral_core.ts";
 import type { FrfForm } from "./forms.ts";
 import { frfTableParts, SINGLE_AVERAGE_WARNING } from "./frf_analysis.ts";
 import type { FrfData } from "./frf_data.ts";
 import { findHits, type Hit } from "./hits.ts";
-import { channelsWarnings } from "../io/signal_checks.ts";
 
 /** Options of {@linkcode hammerFrf}. */
 export interface HammerOptions {
@@ -147,23 +146,14 @@ export async function hammerFrf(
   const [force, ...outputs] = indices.map((i) => stream.channels[i]);
   // A recording in memory is used as it is; one read from a file is spooled once, so memory
   // stays flat however long the test ran (sample_series.ts).
-  const spool = "read" in source ? await spoolChannels(stream, indices) : undefined;
-  try {
-    const series = spool?.series ??
-      indices.map((i) => memorySeries((source as Recording).channels[i].data));
-    const signalWarnings = spool !== undefined
-      ? spool.warnings.slice(1).flat()
-      : channelsWarnings(indices.slice(1).map((i) => (source as Recording).channels[i]));
-    return analyseHits(series, {
+  return await withChannelSeries(source, indices, (series, warnings) =>
+    analyseHits(series, {
       rate: stream.rate,
       startTime: stream.startTime,
       force,
       outputs,
-      signalWarnings,
-    }, options);
-  } finally {
-    spool?.close();
-  }
+      signalWarnings: warnings.slice(1).flat(),
+    }, options));
 }
 
 /** The hammer analysis on the channels' series (force first). */

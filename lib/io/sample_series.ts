@@ -17,8 +17,8 @@
 import { closeSync, mkdtempSync, openSync, readSync, rmSync, writeSync } from "node:fs";
 import { tmpdir } from "node:os";
 import { join } from "node:path";
-import type { RecordingStream } from "./recording_stream.ts";
-import { ChannelStatistics } from "./signal_checks.ts";
+import type { RecordingSource, RecordingStream } from "./recording_stream.ts";
+import { ChannelStatistics, channelWarnings } from "./signal_checks.ts";
 
 /** Samples read back in chunks while a series is scanned. */
 export const SERIES_CHUNK = 1 << 16;
@@ -168,6 +168,39 @@ function fileSeries(fd: number, length: number): SampleSeries {
       }
     },
   };
+}
+
+/**
+ * Runs `use` on the channels of a source as series: a recording in memory
+ * as it is, one read from a file spooled once (and the spool removed after
+ * `use`, also when it throws). `warnings[j]` are channel j's signal checks.
+ *
+ * @example
+ * ```ts
+ * import { withChannelSeries } from "./sample_series.ts";
+ * import { recordingSource } from "./recording_stream.ts";
+ * const rec = { rate: 10, startTime: 0, channels: [{ name: "a", unit: "V", data: new Float64Array([1, 2, 3]) }] };
+ * for (const source of [rec, recordingSource(rec)]) {
+ *   const n = await withChannelSeries(source, [0], (series) => series[0].read(0, 3)[2]);
+ *   if (n !== 3) throw new Error();
+ * }
+ * ```
+ */
+export async function withChannelSeries<T>(
+  source: RecordingSource,
+  indices: readonly number[],
+  use: (series: readonly SampleSeries[], warnings: readonly string[][]) => T | Promise<T>,
+): Promise<T> {
+  if (!("read" in source)) {
+    const channels = indices.map((i) => source.channels[i]);
+    return await use(channels.map((c) => memorySeries(c.data)), channels.map(channelWarnings));
+  }
+  const spool = await spoolChannels(source, indices);
+  try {
+    return await use(spool.series, spool.warnings);
+  } finally {
+    spool.close();
+  }
 }
 
 const BINS = 4096;

@@ -32,15 +32,14 @@
  */
 import { maxOf } from "../extent.ts";
 import { QuiverError } from "../errors.ts";
-import { channelIndices, type Recording } from "../io/recording.ts";
+import { channelIndices } from "../io/recording.ts";
 import { asStream, type RecordingSource } from "../io/recording_stream.ts";
-import { memorySeries, type SampleSeries, spoolChannels } from "../io/sample_series.ts";
+import { type SampleSeries, withChannelSeries } from "../io/sample_series.ts";
 import type { Table, TableColumn } from "../io/table.ts";
 import { SpectralAccumulator } from "../dsp/spectral_core.ts";
 import { autoSpectrum } from "../dsp/spectrum_kinds.ts";
 import { levelReference, levelUnit } from "../acoustics/levels.ts";
 import { type Weighting, weightingPowerGain } from "../acoustics/weighting.ts";
-import { channelsWarnings } from "../io/signal_checks.ts";
 import { inverseAngle, resampleToAngle } from "./angle_resample.ts";
 import {
   lowestRpmBetween,
@@ -168,22 +167,13 @@ export async function trackOrders(
   const indices = channelIndices(stream.channels, [speedChannelName(options), ...options.channels]);
   // A recording in memory is used as it is; one read from a file is spooled once, so memory
   // stays flat in the record's length (sample_series.ts).
-  const spool = "read" in source ? await spoolChannels(stream, indices) : undefined;
-  try {
-    const series = spool?.series ??
-      indices.map((i) => memorySeries((source as Recording).channels[i].data));
-    const signalWarnings = spool !== undefined
-      ? spool.warnings.slice(1).flat()
-      : channelsWarnings(indices.slice(1).map((i) => (source as Recording).channels[i]));
-    return ordersOfSeries(series, {
+  return await withChannelSeries(source, indices, (series, warnings) =>
+    ordersOfSeries(series, {
       rate: stream.rate,
       startTime: stream.startTime,
       channels: indices.slice(1).map((i) => stream.channels[i]),
-      signalWarnings,
-    }, options);
-  } finally {
-    spool?.close();
-  }
+      signalWarnings: warnings.slice(1).flat(),
+    }, options));
 }
 
 /** Order tracking on the series of the speed channel (first) and the responses. */

@@ -15,9 +15,9 @@
  * @module
  */
 import { QuiverError } from "../errors.ts";
-import { channelIndices, type Recording } from "../io/recording.ts";
+import { channelIndices } from "../io/recording.ts";
 import { asStream, readChecked, type RecordingSource } from "../io/recording_stream.ts";
-import { memorySeries, spoolChannels } from "../io/sample_series.ts";
+import { withChannelSeries } from "../io/sample_series.ts";
 import type { Table, TableColumn } from "../io/table.ts";
 import { resolveBlock, SpectralAccumulator } from "../dsp/spectral_core.ts";
 import {
@@ -94,18 +94,12 @@ export async function spectrogramAgainstRpm(
 
   const speedIndex = channelIndices(stream.channels, [speedName]);
   // The speed channel is spooled (or used in memory) and scanned: flat memory (sample_series.ts).
-  const spool = "read" in source ? await spoolChannels(stream, speedIndex) : undefined;
-  let speed;
-  try {
-    speed = motionOfSeries(
-      spool?.series[0] ?? memorySeries((source as Recording).channels[speedIndex[0]].data),
-      rate,
-      options,
-    );
-  } finally {
-    spool?.close();
-  }
-  const { motion, notes } = speed;
+  const { motion, notes } = await withChannelSeries(
+    source,
+    speedIndex,
+    (series) => motionOfSeries(series[0], rate, options),
+  );
+
   const steps = rpmSteps(motion, options);
 
   // Each step's stretch, centred on the instant the speed passes it.

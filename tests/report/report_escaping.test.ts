@@ -72,26 +72,36 @@ describe("values from files reach the report, the terminal and CSV cells harmles
   });
 });
 
+/**
+ * Runs the demo campaign, changes the damping result's metadata, forges its size and hash in
+ * the manifest so that `quiver report` accepts the folder, and rewrites the report: its HTML.
+ */
+async function reportOfForgedModes(change: (modes: Record<string, unknown>[]) => void) {
+  const dir = await demoFolder();
+  expect(runQuiver(["run", `${dir}/tamarack_b2_plan.json`, "--out-dir", `${dir}/out`]).code)
+    .toBe(0);
+  const path = `${dir}/out/bracket_modes.json`;
+  const json = JSON.parse(await readFile(path, "utf8"));
+  change(json.metadata.modes);
+  const text = JSON.stringify(json);
+  await writeFile(path, text);
+  const manifestPath = `${dir}/out/manifest.json`;
+  const manifest = JSON.parse(await readFile(manifestPath, "utf8"));
+  const step = manifest.steps.find((s: { id: string }) => s.id === "bracket_modes");
+  step.outputs.out.bytes = new TextEncoder().encode(text).length;
+  step.outputs.out.sha256 = createHash("sha256").update(text).digest("hex");
+  await writeFile(manifestPath, JSON.stringify(manifest));
+  const r = runQuiver(["report", `${dir}/out`]);
+  expect(r.code, r.stderr).toBe(0);
+  return await readFile(`${dir}/out/report.html`, "utf8");
+}
+
 describe("a crafted result in a finished campaign", () => {
   test("with a forged hash and a value of the wrong type is named in the report, not drawn", async () => {
-    const dir = await demoFolder();
-    expect(runQuiver(["run", `${dir}/tamarack_b2_plan.json`, "--out-dir", `${dir}/out`]).code)
-      .toBe(0);
-    const path = `${dir}/out/bracket_modes.json`;
-    const json = JSON.parse(await readFile(path, "utf8"));
     // A value of the wrong type is not drawn from a guess: the schema names it.
-    json.metadata.modes[1].mode = "<script>alert(3)</script>";
-    const text = JSON.stringify(json);
-    await writeFile(path, text);
-    const manifestPath = `${dir}/out/manifest.json`;
-    const manifest = JSON.parse(await readFile(manifestPath, "utf8"));
-    const step = manifest.steps.find((s: { id: string }) => s.id === "bracket_modes");
-    step.outputs.out.bytes = new TextEncoder().encode(text).length;
-    step.outputs.out.sha256 = createHash("sha256").update(text).digest("hex");
-    await writeFile(manifestPath, JSON.stringify(manifest));
-    const r = runQuiver(["report", `${dir}/out`]);
-    expect(r.code, r.stderr).toBe(0);
-    const html = await readFile(`${dir}/out/report.html`, "utf8");
+    const html = await reportOfForgedModes((modes) => {
+      modes[1].mode = "<script>alert(3)</script>";
+    });
     expect(html).not.toMatch(/<script>alert/);
     expect(html).toMatch(
       /cannot show the result: .*bracket_modes\.json: the damping metadata at modes\.1\.mode is not as quiver writes it/,
@@ -99,24 +109,10 @@ describe("a crafted result in a finished campaign", () => {
   });
 
   test("a crafted channel name is escaped in the report", async () => {
-    const dir = await demoFolder();
-    expect(runQuiver(["run", `${dir}/tamarack_b2_plan.json`, "--out-dir", `${dir}/out`]).code)
-      .toBe(0);
-    const path = `${dir}/out/bracket_modes.json`;
-    const json = JSON.parse(await readFile(path, "utf8"));
-    json.metadata.modes[0].channel = "<script>alert(1)</script>";
-    json.metadata.modes[0].flags = ["<script>alert(2)</script>"];
-    const text = JSON.stringify(json);
-    await writeFile(path, text);
-    const manifestPath = `${dir}/out/manifest.json`;
-    const manifest = JSON.parse(await readFile(manifestPath, "utf8"));
-    const step = manifest.steps.find((s: { id: string }) => s.id === "bracket_modes");
-    step.outputs.out.bytes = new TextEncoder().encode(text).length;
-    step.outputs.out.sha256 = createHash("sha256").update(text).digest("hex");
-    await writeFile(manifestPath, JSON.stringify(manifest));
-    const r = runQuiver(["report", `${dir}/out`]);
-    expect(r.code, r.stderr).toBe(0);
-    const html = await readFile(`${dir}/out/report.html`, "utf8");
+    const html = await reportOfForgedModes((modes) => {
+      modes[0].channel = "<script>alert(1)</script>";
+      modes[0].flags = ["<script>alert(2)</script>"];
+    });
     expect(html).not.toMatch(/<script>alert/);
     expect(html).toContain("&lt;script&gt;alert(1)");
     expect(html).toContain("&lt;script&gt;alert(2)");
