@@ -88,6 +88,15 @@ function makeScale(axis: Axis, values: number[], range: [number, number]) {
     : scaleLinear().domain(domain).range(range).nice();
 }
 
+/** Labels for a linear scale's ticks with the precision of their step (ASCII minus sign). */
+function linearTickLabel(
+  scale: ReturnType<typeof makeScale>,
+  count: number,
+): (v: number) => string {
+  const format = (scale as ScaleLinear<number, number>).tickFormat(count);
+  return (v: number) => format(v).replace("\u2212", "-");
+}
+
 function tickLabel(v: number): string {
   const a = Math.abs(v);
   if (a === 0) return "0";
@@ -125,18 +134,24 @@ function axes(
   const yTicks = yAxis.log === true
     ? logTicks(y.domain() as [number, number])
     : (y.ticks(6) as number[]);
+  // Linear ticks are labelled with the precision their step needs (d3's tickFormat), so that
+  // labels of a narrow range stay distinct (66.05, 66.10, … rather than 66.1, 66.1, …).
+  const xLabel = xAxis.log === true ? tickLabel : linearTickLabel(x, 8);
+  const yLabel = yAxis.log === true ? tickLabel : linearTickLabel(y, 6);
   for (const t of xTicks) {
     const px = x(t);
     parts.push(`<line x1="${px}" x2="${px}" y1="${y1}" y2="${y0}" stroke="#e3e7ec"/>`);
     parts.push(
-      `<text x="${px}" y="${y0 + 14}" text-anchor="middle" fill="#3d4b59">${tickLabel(t)}</text>`,
+      `<text x="${px}" y="${y0 + 14}" text-anchor="middle" fill="#3d4b59">${xLabel(t)}</text>`,
     );
   }
   for (const t of yTicks) {
     const py = y(t);
     parts.push(`<line x1="${x0}" x2="${x1}" y1="${py}" y2="${py}" stroke="#e3e7ec"/>`);
     parts.push(
-      `<text x="${x0 - 6}" y="${py + 4}" text-anchor="end" fill="#3d4b59">${tickLabel(t)}</text>`,
+      `<text class="y-tick" x="${x0 - 6}" y="${py + 4}" text-anchor="end" fill="#3d4b59">${
+        yLabel(t)
+      }</text>`,
     );
   }
   parts.push(
