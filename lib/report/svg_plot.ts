@@ -69,6 +69,9 @@ export function escapeXml(text: unknown): string {
   );
 }
 
+/** Decades a logarithmic value axis shows at most below its largest value (120 dB of a power). */
+export const LOG_DECADES_SHOWN = 12;
+
 function extent(values: number[], log: boolean): [number, number] {
   const usable = values.filter((v) => Number.isFinite(v) && (!log || v > 0));
   if (usable.length === 0) return log ? [1, 10] : [0, 1];
@@ -81,8 +84,35 @@ function extent(values: number[], log: boolean): [number, number] {
   return [lo, hi];
 }
 
-function makeScale(axis: Axis, values: number[], range: [number, number]) {
-  const domain = axis.domain ?? extent(values, axis.log === true);
+/**
+ * The domain an axis shows: the data's extent with headroom, so that no
+ * line runs along the frame (5 % of the span on a linear axis, a fifth of a
+ * decade on a logarithmic one), and a logarithmic axis limited to
+ * {@linkcode LOG_DECADES_SHOWN} decades below its largest value.
+ */
+function shownDomain(axis: Axis, values: number[], headroom: boolean): {
+  domain: [number, number];
+  clamped: boolean;
+} {
+  if (axis.domain !== undefined) {
+    return { domain: [axis.domain[0], axis.domain[1]], clamped: false };
+  }
+  let [lo, hi] = extent(values, axis.log === true);
+  let clamped = false;
+  if (axis.log === true) {
+    if (hi / lo > 10 ** LOG_DECADES_SHOWN) {
+      lo = hi / 10 ** LOG_DECADES_SHOWN;
+      clamped = true;
+    }
+    if (headroom) hi *= 10 ** 0.2;
+  } else if (headroom) {
+    hi += 0.05 * (hi - lo);
+  }
+  return { domain: [lo, hi], clamped };
+}
+
+function makeScale(axis: Axis, values: number[], range: [number, number], headroom = false) {
+  const { domain } = shownDomain(axis, values, headroom);
   return axis.log === true
     ? scaleLog().domain(domain).range(range).clamp(true)
     : scaleLinear().domain(domain).range(range).nice();
@@ -219,7 +249,11 @@ export function linePlot(plot: LinePlot): string {
   const xs = plot.series.flatMap((s) => Array.from(s.x));
   const ys = plot.series.flatMap((s) => Array.from(s.y));
   const x = makeScale(plot.x, xs, [MARGIN.left, width - MARGIN.right]);
-  const y = makeScale(plot.y, ys, [height - MARGIN.bottom, MARGIN.top]);
+  const y = makeScale(plot.y, ys, [height - MARGIN.bottom, MARGIN.top], true);
+  // A clamped logarithmic axis says so in its label.
+  const yAxis: Axis = shownDomain(plot.y, ys, true).clamped
+    ? { ...plot.y, label: `${plot.y.label}, top ${LOG_DECADES_SHOWN} decades shown` }
+    : plot.y;
   const [xlo, xhi] = x.domain() as [number, number];
   const paths = plot.series.map((s, i) => {
     if (s.markers === true) {
@@ -259,7 +293,7 @@ export function linePlot(plot: LinePlot): string {
     width,
     height,
     plot.title,
-    `${axes({ x, y, xAxis: plot.x, yAxis: plot.y, height })}\n${paths.join("\n")}\n${
+    `${axes({ x, y, xAxis: plot.x, yAxis, height })}\n${paths.join("\n")}\n${
       legend(plot.series, width - MARGIN.right, MARGIN.top)
     }`,
   );

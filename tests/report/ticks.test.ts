@@ -37,3 +37,35 @@ describe("tick labels", () => {
     expect(labels).toContain("70.5");
   });
 });
+
+describe("axes that contain the data", () => {
+  const pathPoints = (svg: string) =>
+    [...svg.matchAll(/<path d="([^"]+)"/g)][0][1].match(/[ML][\d.]+,[\d.]+/g)!
+      .map((p) => p.slice(1).split(",").map(Number));
+
+  test("the largest value sits below the frame's top, not on it", () => {
+    const svg = linePlot({
+      title: "t",
+      x: { label: "x" },
+      y: { label: "y" },
+      series: [{ name: "s", x: [0, 1, 2, 3], y: [0, 10, 20, 30] }],
+    });
+    const top = Math.min(...pathPoints(svg).map((p) => p[1]));
+    // The frame's top edge is at y = 34 px (the plot margin); 5 % headroom leaves a gap.
+    expect(top).toBeGreaterThan(34 + 5);
+  });
+
+  test("a log axis shows at most 12 decades below its largest value, and says so", () => {
+    const x = Array.from({ length: 18 }, (_, i) => i + 1);
+    const svg = linePlot({
+      title: "t",
+      x: { label: "Frequency [Hz]" },
+      y: { label: "PSD [Pa^2/Hz]", log: true },
+      series: [{ name: "s", x, y: x.map((v) => 10 ** (-v)) }], // 17 decades
+    });
+    expect(svg).toContain("PSD [Pa^2/Hz], top 12 decades shown");
+    // Values below the clamp are drawn at the bottom edge (clamped scale), none below it.
+    const bottom = Math.max(...pathPoints(svg).map((p) => p[1]));
+    expect(bottom).toBeLessThanOrEqual(360 - 46 + 1e-9);
+  });
+});
