@@ -188,6 +188,12 @@ export function planSteps(
         const shapes = join(outDir, `${a.input}_shapes.json`);
         argv.push(shapes, sim);
         inputs.push(shapes, sim);
+        if (a.map !== undefined) {
+          const map = at(a.map.file);
+          if (!existsSync(map)) fail(`${where}.map.file`, `no such file: ${a.map.file}`);
+          argv.push("--map", map);
+          inputs.push(map);
+        }
         needs.push(a.input as string);
       } else if (a.command === "damping") {
         if (a.input === undefined) {
@@ -370,6 +376,7 @@ function checkPlanOutputs(
     if (a.geometry !== undefined) {
       inputs.push([at(a.geometry.file), `analyses[${i}].geometry.file`]);
     }
+    if (a.map !== undefined) inputs.push([at(a.map.file), `analyses[${i}].map.file`]);
   });
   for (const [path, what] of inputs) {
     for (const file of [path, `${path}.meta.json`]) {

@@ -90,6 +90,8 @@ const analysis = z.strictObject({
   geometry: z.strictObject({ file: z.string().min(1) }).optional(),
   /** `mac`: the simulation's mode shapes. */
   simulation: z.strictObject({ file: z.string().min(1) }).optional(),
+  /** `mac`: which simulation point is which test point (simulation_point, …, test_direction). */
+  map: z.strictObject({ file: z.string().min(1) }).optional(),
   title: z.string().optional(),
   options: z.record(optionName, optionValue).default({}),
 });

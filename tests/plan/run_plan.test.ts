@@ -64,6 +64,15 @@ describe("quiver run", () => {
       /plan key analyses\[\d+\]\.simulation\.file: mac needs the simulation's mode shapes/,
     ],
     [
+      "a point map that is not there",
+      (p) => {
+        const mac = (p.analyses as { id: string; map?: { file: string } }[])
+          .find((a) => a.id === "link_mac")!;
+        mac.map = { file: "no_map.csv" };
+      },
+      /plan key analyses\[\d+\]\.map\.file: no such file: no_map\.csv/,
+    ],
+    [
       "an unknown option",
       (p) => ((p.analyses as { options: Record<string, unknown> }[])[0].options.windwo = "hann"),
       /plan key analyses\[0\]\.options\.windwo/,
