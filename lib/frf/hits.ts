@@ -23,7 +23,7 @@
  */
 import { QuiverError } from "../errors.ts";
 import { medianOf } from "../extent.ts";
-import { kthSmallest, memorySeries, type SampleSeries } from "../io/sample_series.ts";
+import { medianOfSeries, memorySeries, type SampleSeries } from "../io/sample_series.ts";
 
 /** What became of a hit. */
 export type HitStatus = "accepted" | "double" | "overload" | "short";
@@ -144,9 +144,7 @@ export function findHits(
   const n = series.length;
   if (n === 0) throw new QuiverError("the force channel is empty");
   // The median, exactly as a sort of the whole record gives it (even n: mean of the middle two).
-  const baseline = n % 2 === 1
-    ? kthSmallest(series, n >> 1)
-    : (kthSmallest(series, (n >> 1) - 1) + kthSmallest(series, n >> 1)) / 2;
+  const baseline = medianOfSeries(series);
   let max = -Infinity;
   let min = Infinity;
   series.scan((chunk) => {
@@ -161,10 +159,7 @@ export function findHits(
   const s = (from: number, to: number) => series.read(from, to).map(shifted);
   const deviation = (v: number) => Math.abs(shifted(v));
   const sigma = 1.4826 *
-    (n % 2 === 1
-      ? kthSmallest(series, n >> 1, deviation)
-      : (kthSmallest(series, (n >> 1) - 1, deviation) + kthSmallest(series, n >> 1, deviation)) /
-        2);
+    medianOfSeries(series, deviation);
   const trigger = options.trigger ?? Math.max(0.05 * Math.max(max, -min), 5 * sigma);
   if (options.trigger === undefined && !(trigger > 0)) {
     // A derived level of 0 is a fact of the data (a flat force channel), not of the options.

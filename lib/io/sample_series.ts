@@ -292,3 +292,23 @@ export function kthSmallest(
     hi = maxs[b];
   }
 }
+
+/**
+ * The median of `map(v)` over the series, exactly as `medianOf` of the
+ * whole record gives it (even length: the mean of the two middle values).
+ *
+ * @example
+ * ```ts
+ * import { medianOfSeries, memorySeries } from "./sample_series.ts";
+ * if (medianOfSeries(memorySeries(new Float64Array([4, 1, 3, 2]))) !== 2.5) throw new Error();
+ * ```
+ */
+export function medianOfSeries(
+  series: SampleSeries,
+  map: (value: number) => number = (v) => v,
+): number {
+  const n = series.length;
+  if (n === 0) return NaN;
+  const upper = kthSmallest(series, n >> 1, map);
+  return n % 2 === 1 ? upper : (kthSmallest(series, (n >> 1) - 1, map) + upper) / 2;
+}
