@@ -18,8 +18,8 @@
  * column; faults are reported in file order.
  *
  * Numbers: a cell must match `[+-]digits[.digits][e[+-]digits]` (with the
- * file's decimal mark). Short decimals, a mantissa of at most 15 digits and a
- * power of ten within ±22, are converted exactly by one correctly rounded
+ * file's decimal mark). Short decimals, whose digits form an integer below
+ * 2^53 and whose power of ten is within ±22, are converted exactly by one correctly rounded
  * multiplication or division (Clinger 1990, "How to read floating point
  * numbers accurately"); every other cell goes to `Number()`. Either way the
  * value is the one `Number(text)` gives.
@@ -79,6 +79,7 @@ function unquote(cell: string): string {
 const LF = 10, CR = 13, SPACE = 32, TAB = 9, QUOTE = 34, COMMA = 44, SEMICOLON = 59, DOT = 46;
 const PLUS = 43, MINUS = 45, ZERO = 48, LOWER_E = 101, UPPER_E = 69;
 const POWERS_OF_TEN = Array.from({ length: 23 }, (_, k) => 10 ** k); // exact up to 1e22
+const TWO_53 = 2 ** 53;
 
 const isSpace = (b: number) => b === SPACE || b === TAB || b === CR;
 
@@ -109,6 +110,8 @@ export function parseNumberBytes(
 
 /** Where the last {@linkcode scanNumber} stopped (a module variable: no object per cell). */
 let scannedEnd = 0;
+/** The decimals the last {@linkcode scanNumber} read (Infinity with an exponent). */
+let scannedDecimals = 0;
 
 /**
  * Reads the longest prefix of bytes[start, limit) that the number grammar
@@ -119,34 +122,28 @@ function scanNumber(bytes: Uint8Array, start: number, limit: number, mark: numbe
   let k = start;
   let negative = false;
   if (k < limit && (bytes[k] === PLUS || bytes[k] === MINUS)) negative = bytes[k++] === MINUS;
-  let mantissa = 0;
-  let significant = 0;
-  let scale = 0; // the value is mantissa·10^scale before the exponent
-  let long = false; // more than 15 significant digits: not exact in the fast path
+  // The first 9 digits (leading zeros included: they add nothing) in `high`,
+  // a small integer, which V8 multiplies and adds far faster than a double;
+  // the digits after them in `low`.
+  let high = 0;
+  let low = 0;
   let digits = 0;
   let b = 0;
   while (k < limit && (b = bytes[k] - ZERO) >= 0 && b <= 9) {
-    k++;
+    if (digits < 9) high = high * 10 + b;
+    else low = low * 10 + b;
     digits++;
-    if (significant < 15) {
-      if (mantissa !== 0 || b !== 0) {
-        mantissa = mantissa * 10 + b;
-        significant++;
-      }
-    } else long = true;
+    k++;
   }
+  let decimals = 0;
   if (k < limit && bytes[k] === mark) {
     k++;
     while (k < limit && (b = bytes[k] - ZERO) >= 0 && b <= 9) {
-      k++;
+      if (digits < 9) high = high * 10 + b;
+      else low = low * 10 + b;
       digits++;
-      if (significant < 15) {
-        if (mantissa !== 0 || b !== 0) {
-          mantissa = mantissa * 10 + b;
-          significant++;
-        }
-        scale--;
-      } else long = true;
+      decimals++;
+      k++;
     }
   }
   if (digits === 0) {
@@ -169,21 +166,27 @@ function scanNumber(bytes: Uint8Array, start: number, limit: number, mark: numbe
     }
     k = e;
     if (expNegative) exponent = -exponent;
-  }
+    scannedDecimals = Infinity;
+  } else scannedDecimals = decimals;
   scannedEnd = k;
-  if (!long) {
-    if (mantissa === 0) return negative ? -0 : 0;
-    const power = scale + exponent;
-    const m = negative ? -mantissa : mantissa;
-    // One correctly rounded operation on two exact doubles (Clinger's fast path).
-    if (power >= 0 && power <= 22) return m * POWERS_OF_TEN[power];
-    if (power < 0 && power >= -22) return m / POWERS_OF_TEN[-power];
+  // Exact when the digits form an integer below 2^53 and the power of ten is
+  // within ±22: one correctly rounded operation on two exact doubles
+  // (Clinger's fast path). A computed mantissa below 2^53 proves both parts
+  // were exact, as rounding is monotone.
+  if (digits <= 9 + 22) {
+    const mantissa = digits <= 9 ? high : high * POWERS_OF_TEN[digits - 9] + low;
+    if (mantissa < TWO_53) {
+      if (mantissa === 0) return negative ? -0 : 0;
+      const power = exponent - decimals;
+      const m = negative ? -mantissa : mantissa;
+      if (power >= 0 && power <= 22) return m * POWERS_OF_TEN[power];
+      if (power < 0 && power >= -22) return m / POWERS_OF_TEN[-power];
+    }
   }
   // Long or extreme: the text itself, through Number().
   const written = decoder.decode(bytes.subarray(start, k));
   return Number(mark === COMMA ? written.replace(",", ".") : written);
 }
-
 /** Decimals written in `bytes[start, end)`, Infinity with an exponent. */
 function decimalsIn(bytes: Uint8Array, start: number, end: number, mark: number): number {
   let at = -1;
@@ -245,7 +248,8 @@ export class CsvScanner {
 
   /** Adds the next bytes. */
   push(chunk: Uint8Array): void {
-    if (this.#utf8 !== undefined || hasHighByte(chunk)) {
+    const kinds = byteKinds(chunk);
+    if (this.#utf8 !== undefined || (kinds & HIGH_BYTE) !== 0) {
       this.#utf8 ??= new TextDecoder("utf-8", { fatal: true });
       try {
         this.#utf8.decode(chunk, { stream: true });
@@ -253,7 +257,7 @@ export class CsvScanner {
         throw notUtf8(this.#file);
       }
     }
-    if (chunk.indexOf(0) >= 0) {
+    if ((kinds & NUL_BYTE) !== 0) {
       this.#fail("the file holds NUL bytes; it is binary, not a CSV table");
     }
     let bytes = chunk;
@@ -264,7 +268,7 @@ export class CsvScanner {
       }
     }
     if (
-      this.#header !== undefined && this.#first !== undefined && bytes.indexOf(QUOTE) < 0 &&
+      this.#header !== undefined && this.#first !== undefined && (kinds & QUOTE_BYTE) === 0 &&
       this.#pending.indexOf(QUOTE) < 0
     ) {
       // The row split by the chunk boundary first (a small copy), then the rest in place.
@@ -311,7 +315,7 @@ export class CsvScanner {
     let lastStart = -1, lastEnd = -1, lastLine = 0;
     let line = this.#line;
     let rows = 0;
-    for (let k = buffer.indexOf(LF); k >= 0; k = buffer.indexOf(LF, k + 1)) {
+    const rowEnd = (k: number) => {
       const first = buffer[rowStart];
       let blank = rowStart === k || isSpace(first) || first === delimiter;
       if (blank) {
@@ -331,7 +335,26 @@ export class CsvScanner {
       }
       line++;
       rowStart = k + 1;
+    };
+    // Line feeds found four bytes at a time: for x = word XOR 0x0a0a0a0a, the
+    // expression below sets the top bit of exactly the bytes of x that are zero
+    // (no borrow crosses bytes), lowest address in the lowest bits on the
+    // little-endian machines Deno runs on.
+    let k = 0;
+    const head = Math.min(n, (4 - (buffer.byteOffset & 3)) & 3);
+    for (; k < head; k++) if (buffer[k] === LF) rowEnd(k);
+    const words = k === n
+      ? new Uint32Array(0) // shorter than the bytes before the first aligned word
+      : new Uint32Array(buffer.buffer, buffer.byteOffset + k, (n - k) >> 2);
+    for (let w = 0; w < words.length; w++) {
+      const x = words[w] ^ 0x0a0a0a0a;
+      let mask = ~(((x & 0x7f7f7f7f) + 0x7f7f7f7f) | x) & 0x80808080;
+      while (mask !== 0) {
+        rowEnd(k + (w << 2) + ((31 - Math.clz32(mask & -mask)) >> 3));
+        mask &= mask - 1;
+      }
     }
+    for (k += words.length << 2; k < n; k++) if (buffer[k] === LF) rowEnd(k);
     this.#rows += rows;
     this.#line = line;
     if (lastStart >= 0) {
@@ -433,16 +456,40 @@ function concat(a: Uint8Array, b: Uint8Array): Uint8Array {
   return out;
 }
 
-function hasHighByte(bytes: Uint8Array): boolean {
-  // Four bytes at a time where the chunk is aligned (a file chunk always is).
+const HIGH_BYTE = 1, NUL_BYTE = 2, QUOTE_BYTE = 4;
+
+/**
+ * Which of a byte ≥ 0x80, a NUL and a quote occur in `bytes`, as flags, in
+ * one pass: four bytes at a time where the chunk is aligned (a file chunk
+ * always is), with the classic "has a zero byte" word test.
+ */
+function byteKinds(bytes: Uint8Array): number {
+  let high = 0, nul = 0, quote = 0;
   let k = 0;
   if (bytes.byteOffset % 4 === 0) {
     const words = new Uint32Array(bytes.buffer, bytes.byteOffset, bytes.length >> 2);
-    for (let w = 0; w < words.length; w++) if ((words[w] & 0x80808080) !== 0) return true;
+    for (let w = 0; w < words.length; w++) {
+      const word = words[w];
+      const quoted = word ^ 0x22222222;
+      high |= word;
+      nul |= (word - 0x01010101) & ~word;
+      quote |= (quoted - 0x01010101) & ~quoted;
+    }
     k = words.length << 2;
   }
-  for (; k < bytes.length; k++) if (bytes[k] >= 0x80) return true;
-  return false;
+  // (w − 0x01010101) & ~w & 0x80808080 is non-zero exactly when a byte of w is
+  // zero (a borrow can only mark bytes above a zero byte), so the OR over all
+  // words, masked once, answers for the chunk.
+  let kinds = ((high & 0x80808080) !== 0 ? HIGH_BYTE : 0) |
+    ((nul & 0x80808080) !== 0 ? NUL_BYTE : 0) |
+    ((quote & 0x80808080) !== 0 ? QUOTE_BYTE : 0);
+  for (; k < bytes.length; k++) {
+    const b = bytes[k];
+    if (b >= 0x80) kinds |= HIGH_BYTE;
+    else if (b === 0) kinds |= NUL_BYTE;
+    else if (b === QUOTE) kinds |= QUOTE_BYTE;
+  }
+  return kinds;
 }
 
 function detectDelimiter(headerLine: string): CsvDelimiter {
@@ -593,7 +640,17 @@ export class CsvRowParser {
   /** Every complete record of `bytes`; returns a copy of the incomplete rest. */
   #records(bytes: Uint8Array): Uint8Array {
     let start = 0;
-    for (;;) {
+    const n = bytes.length;
+    while (start < n) {
+      if (!this.#quotes && this.#mark >= 0 && this.#line > this.#headerLine) {
+        // The clean row parsed where it stands, its end found by the parse itself.
+        const end = this.#fastRow(bytes, start, n, this.#line);
+        if (end >= 0) {
+          this.#line++;
+          start = end + 1;
+          continue;
+        }
+      }
       const end = this.#quotes ? recordEnd(bytes, start) : bytes.indexOf(LF, start);
       if (end < 0) break;
       this.#record(bytes, start, end);
@@ -628,7 +685,6 @@ export class CsvRowParser {
       this.#quotedRecord(text(bytes, start, stop), line);
       return;
     }
-    if (this.#mark >= 0 && this.#fastRecord(bytes, start, stop, line)) return;
     // One pass: cells are converted as they are split; the field count is judged
     // first when the row turns out wrong, as a ragged row explains a bad cell.
     const delimiter = this.#delimiter;
@@ -654,34 +710,37 @@ export class CsvRowParser {
   }
 
   /**
-   * The clean row, in one pass: each cell a number, optionally padded with
-   * spaces, between delimiters, as many as the header has. Returns false for
-   * anything else (a blank row, a bad cell, a wrong field count), which the
-   * general path then handles and names.
+   * The clean row starting at `start`, in one pass: each cell a number,
+   * optionally padded with spaces, between delimiters, as many as the header
+   * has, then an optional CR and the LF. Returns the LF's index, or −1 for
+   * anything else (a blank row, a bad cell, a wrong field count, no LF before
+   * `limit`), which the general path then handles and names.
    */
-  #fastRecord(bytes: Uint8Array, start: number, stop: number, line: number): boolean {
+  #fastRow(bytes: Uint8Array, start: number, limit: number, line: number): number {
     const delimiter = this.#delimiter;
     const mark = this.#mark;
     const width = this.#width;
     const values = this.#values;
+    const wantDecimals = this.#wantDecimals;
     let k = start;
     for (let column = 0; column < width; column++) {
-      while (k < stop && (bytes[k] === SPACE || (bytes[k] === TAB && delimiter !== TAB))) k++;
+      while (k < limit && (bytes[k] === SPACE || (bytes[k] === TAB && delimiter !== TAB))) k++;
       const a = k;
-      const v = scanNumber(bytes, a, stop, mark);
+      const v = scanNumber(bytes, a, limit, mark);
       k = scannedEnd;
-      if (k === a || v - v !== 0) return false;
-      if (this.#wantDecimals[column] === 1) this.#decimals[column] = decimalsIn(bytes, a, k, mark);
+      if (k === a || v - v !== 0) return -1;
+      if (wantDecimals[column] === 1) this.#decimals[column] = scannedDecimals;
       values[column] = v;
-      while (k < stop && (bytes[k] === SPACE || (bytes[k] === TAB && delimiter !== TAB))) k++;
+      while (k < limit && (bytes[k] === SPACE || (bytes[k] === TAB && delimiter !== TAB))) k++;
       if (column < width - 1) {
-        if (k >= stop || bytes[k] !== delimiter) return false;
+        if (k >= limit || bytes[k] !== delimiter) return -1;
         k++;
       }
     }
-    if (k !== stop) return false;
+    if (k < limit && bytes[k] === CR) k++;
+    if (k >= limit || bytes[k] !== LF) return -1;
     this.#sink.row(values, line, this.#decimals);
-    return true;
+    return k;
   }
 
   /** Converts one cell into values[column]; false when it is not a finite number. */

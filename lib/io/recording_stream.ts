@@ -69,17 +69,26 @@ async function transformsFor(
   return setupTransforms(channels, parseChannelSetup(text, options.setup), options.setup);
 }
 
-/** Reads a file's bytes chunk by chunk into `onBytes` (one buffer, reused). */
+/**
+ * Reads a file's bytes chunk by chunk into `onBytes`. Two buffers, reused:
+ * the next chunk is read while `onBytes` works on the current one, so the
+ * parser does not wait for the disk (or the page cache) between chunks.
+ */
 async function eachChunk(path: string, onBytes: (bytes: Uint8Array) => void): Promise<void> {
   const handle = await open(path, "r");
+  let current = new Uint8Array(READ_BYTES);
+  let next = new Uint8Array(READ_BYTES);
+  let reading = handle.read(current, 0, READ_BYTES, null);
   try {
-    const buffer = new Uint8Array(READ_BYTES);
     for (;;) {
-      const { bytesRead } = await handle.read(buffer, 0, READ_BYTES, null);
+      const { bytesRead } = await reading;
       if (bytesRead === 0) break;
-      onBytes(buffer.subarray(0, bytesRead));
+      reading = handle.read(next, 0, READ_BYTES, null);
+      onBytes(current.subarray(0, bytesRead));
+      [current, next] = [next, current];
     }
   } finally {
+    await reading.catch(() => undefined); // a parse error: let the read ahead finish first
     await handle.close();
   }
 }

@@ -2,13 +2,25 @@ import { describe, expect, test } from "vitest";
 import { CsvRowParser, CsvScanner } from "../../lib/io/csv_engine.ts";
 import { uniformGenerator } from "../helpers/random.ts";
 
-/** Reads `text` with the engine, pushing it in pieces of the given sizes. */
-function readIn(text: string, sizes: () => number) {
+/**
+ * Reads `text` with the engine, pushing it in pieces of the given sizes;
+ * with `offsets`, each piece is a view starting that many bytes into a
+ * larger buffer, as a reader's subarrays are (the word-wise scans must then
+ * handle an unaligned start and end).
+ */
+function readIn(text: string, sizes: () => number, offsets?: () => number) {
   const bytes = new TextEncoder().encode(text);
   const pieces: Uint8Array[] = [];
   for (let at = 0; at < bytes.length;) {
     const n = Math.max(1, sizes());
-    pieces.push(bytes.slice(at, at + n)); // a fresh, unaligned array each time
+    const piece = bytes.slice(at, at + n); // a fresh array each time
+    if (offsets === undefined) pieces.push(piece);
+    else {
+      const offset = offsets();
+      const host = new Uint8Array(offset + piece.length + 3);
+      host.set(piece, offset);
+      pieces.push(host.subarray(offset, offset + piece.length));
+    }
     at += n;
   }
   const scanner = new CsvScanner();
@@ -55,6 +67,52 @@ describe("the CSV reader gives the same rows however the bytes are split", () =>
   ) {
     test(`pieces of ${label}`, () => {
       const split = readIn(text, sizes);
+      expect(split.scan).toEqual(whole.scan);
+      expect(split.rows).toEqual(whole.rows);
+    });
+  }
+});
+
+// Without quotes the scanner counts rows four bytes at a time and the parser
+// takes each clean row in one pass: blank rows (empty, spaces, delimiters
+// only), CR LF and LF mixed, and views at every alignment must not change a
+// count, a value or a line.
+describe("quote-free text: the fast paths agree with a plain line split", () => {
+  const uniform = uniformGenerator(78);
+  const lines = ["time_s;a [V];b [V]"];
+  for (let i = 0; i < 600; i++) {
+    const a = ((uniform() - 0.5) * 1e3).toPrecision(1 + Math.floor(uniform() * 17));
+    const b = uniform() < 0.2 ? (uniform() * 1e-6).toExponential(5) : "-0.5";
+    lines.push(`${i / 1000};${a}; ${b}`);
+    const r = uniform();
+    if (r < 0.03) lines.push("");
+    else if (r < 0.06) lines.push("  ");
+    else if (r < 0.09) lines.push(" ; ;");
+  }
+  const text = lines.map((l) => l + (uniform() < 0.5 ? "\r\n" : "\n")).join("");
+  const whole = readIn(text, () => text.length);
+  // The expected rows, by splitting the text in the test: lines holding anything but spaces and ";".
+  const expectedLines = lines.flatMap((l, i) => i > 0 && /[^ ;]/.test(l) ? [i + 1] : []);
+
+  test("rows, lines and values as a line split gives them", () => {
+    expect(whole.scan.rows).toBe(600);
+    expect(whole.rows.map((r) => r.line)).toEqual(expectedLines);
+    expect(whole.scan.last?.line).toBe(expectedLines[expectedLines.length - 1]);
+    whole.rows.forEach((row, r) => {
+      const cells = lines[row.line - 1].split(";").map((c) => Number(c.trim()));
+      expect(row.values).toEqual(cells);
+      expect(row.values[0]).toBe(r / 1000);
+    });
+  });
+
+  for (
+    const [label, sizes] of [
+      ["1–9 bytes", () => 1 + Math.floor(uniform() * 9)],
+      ["random up to 700 bytes", () => 1 + Math.floor(uniform() * 700)],
+    ] as const
+  ) {
+    test(`pieces of ${label} at every alignment`, () => {
+      const split = readIn(text, sizes, () => Math.floor(uniform() * 8));
       expect(split.scan).toEqual(whole.scan);
       expect(split.rows).toEqual(whole.rows);
     });
