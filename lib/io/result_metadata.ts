@@ -23,6 +23,8 @@ const common = {
   warnings: z.array(z.string()).optional(),
 };
 
+const channel = z.looseObject({ name: z.string(), unit: z.string() });
+
 const frfResponse = z.looseObject({
   name: z.string(),
   unit: z.string(),
@@ -71,6 +73,25 @@ export const RESULT_METADATA = {
   }),
   frf,
   hammer: frf,
+  frf_matrix: z.looseObject({
+    ...common,
+    analysis: z.literal("frf_matrix"),
+    averages: z.number(),
+    inputs: z.array(channel),
+    outputs: z.array(channel),
+  }),
+  frf_partial: z.looseObject({
+    ...common,
+    analysis: z.literal("frf_partial"),
+    inputs: z.array(channel),
+    outputs: z.array(channel),
+  }),
+  frf_principal: z.looseObject({
+    ...common,
+    analysis: z.literal("frf_principal"),
+    inputs: z.array(channel),
+    outputs: z.array(channel),
+  }),
   damping: z.looseObject({ ...common, analysis: z.literal("damping"), modes: z.array(mode) }),
   bands: z.looseObject({
     ...common,

@@ -236,6 +236,10 @@ export function planSteps(
         }
       }
       if (a.command === "mac") outputs["pairs-out"] = join(outDir, `${a.id}_pairs.json`);
+      if (a.command === "frf" && severalNames(a.options.inputs)) {
+        outputs["partial-out"] = join(outDir, `${a.id}_partial.json`);
+        outputs["principal-out"] = join(outDir, `${a.id}_principal.json`);
+      }
       if (a.command === "orders") {
         outputs["rpm-out"] = join(outDir, `${a.id}_rpm.json`);
         outputs["map-out"] = join(outDir, `${a.id}_map.json`);
@@ -633,4 +637,10 @@ async function runLocked(
   }
   await writeManifest(manifest);
   return manifest;
+}
+
+/** Whether an `inputs` option names two or more channels (a list, or "a,b" text). */
+function severalNames(value: unknown): boolean {
+  if (Array.isArray(value)) return value.length > 1;
+  return typeof value === "string" && value.split(",").length > 1;
 }

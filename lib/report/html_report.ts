@@ -113,6 +113,77 @@ function frfFigures(id: string, title: string, r: ResultJson): Figure[] {
   ];
 }
 
+/**
+ * An FRF matrix: |H| of each output against every input, the multiple
+ * coherence of each output beside it, and, when the plan wrote them, the
+ * principal components of the inputs.
+ */
+async function frfMatrixFigures(
+  id: string,
+  title: string,
+  r: ResultJson,
+  outDir: string,
+): Promise<Figure[]> {
+  const m = resultMetadata(r, "frf_matrix");
+  const f = numbers(r.columns[0]);
+  const domain: [number, number] = [Math.max(f[0] || f[1], 1), f[f.length - 1]];
+  const column = (name: string) => {
+    const c = numericColumn(r, name);
+    if (c === undefined) {
+      throw new QuiverError(`no column "${name}" in the FRF matrix`, { file: r.file });
+    }
+    return c;
+  };
+  const figures: Figure[] = m.outputs.map((o) => {
+    const series = m.inputs.map((x) => ({
+      name: `${o.name}/${x.name}`,
+      x: f,
+      y: column(`${o.name}/${x.name}_mag`).values,
+    }));
+    return {
+      name: `${id}_${o.name}_matrix`,
+      svg: linePlot({
+        title:
+          `${title}: |H| of ${o.name} per input (h1, ${m.inputs.length} inputs, ${m.averages} averages)`,
+        x: { label: "Frequency [Hz]", log: true, domain },
+        y: { label: withUnit("|H|", column(`${o.name}/${m.inputs[0].name}_mag`).unit), log: true },
+        series,
+      }),
+    };
+  });
+  figures.push({
+    name: `${id}_multiple_coherence`,
+    svg: linePlot({
+      title: `${title}: multiple coherence (share of each output the inputs explain together)`,
+      x: { label: "Frequency [Hz]", log: true, domain },
+      y: { label: "Multiple coherence γ² [-]", domain: [0, 1] },
+      series: m.outputs.map((o) => ({
+        name: o.name,
+        x: f,
+        y: column(`${o.name}_multiple_coherence`).values,
+      })),
+      height: 240,
+    }),
+  });
+  const principal = await readJson(join(outDir, `${id}_principal.json`));
+  if (!(principal instanceof QuiverError)) {
+    const pcs = m.inputs.map((_, k) => numericColumn(principal, `pc${k + 1}`));
+    figures.push({
+      name: `${id}_principal`,
+      svg: linePlot({
+        title:
+          `${title}: principal components of the inputs (eigenvalues of Gxx; as many above the floor as independent sources)`,
+        x: { label: "Frequency [Hz]", log: true, domain },
+        y: { label: withUnit("Eigenvalue", pcs[0]?.unit ?? ""), log: true },
+        series: pcs.flatMap((c, k) =>
+          c === undefined ? [] : [{ name: `pc${k + 1}`, x: f, y: c.values }]
+        ),
+      }),
+    });
+  }
+  return figures;
+}
+
 function modeTable(r: ResultJson): string {
   const modes = resultMetadata(r, "damping").modes;
   const rows = modes.map((m) =>
@@ -563,6 +634,14 @@ export async function writeReport(outDir: string, manifest: Manifest, plan: Plan
           break;
         case "frf":
         case "hammer": {
+          if (r.metadata?.analysis === "frf_matrix") {
+            sections.push({
+              heading: title,
+              note,
+              figures: await frfMatrixFigures(step.id, title, r, outDir),
+            });
+            break;
+          }
           const hits = resultMetadata(r, "frf").hits_summary;
           sections.push({
             heading: title,
