@@ -171,7 +171,7 @@ describe("direct path contributions of a known 3-path system", async () => {
   });
 });
 
-describe("inverse (matrix) method", async () => {
+describe("inverse (matrix) method", () => {
   const f = forces();
   const mic = add(...f.map((x, i) => fir(x, TO_MIC[i])), scale(gaussianNoise(56, N), MIC_NOISE));
   // Six indicators, each a different FIR mix of the three forces.
@@ -263,7 +263,7 @@ describe("inverse (matrix) method", async () => {
 // random error and the contributions have a closed form: cᵢ = Hᵢ·Fᵢ·conj(P)/|P| at each line,
 // with Fᵢ = Σₘ MIXᵢₘ·Sₘ and P = Σᵢ Hᵢ·Fᵢ (the model complete). This checks the formula, its
 // conjugations and phase reference to rounding, within the 0.3 dB and more.
-describe("contributions of periodic forces against their closed form", async () => {
+describe("contributions of periodic forces against their closed form", () => {
   const B = RATE / DF;
   const lines = B / 2;
   // Source m, line k: amplitude 1, phase φₘₖ from a seeded generator.
