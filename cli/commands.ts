@@ -15,6 +15,7 @@ import * as level from "./level.ts";
 import * as mac from "./mac.ts";
 import * as modal from "./modal.ts";
 import * as orders from "./orders.ts";
+import * as paths from "./paths.ts";
 import * as report from "./report.ts";
 import * as run from "./run.ts";
 import * as spectrogram from "./spectrogram.ts";
@@ -33,6 +34,7 @@ export const COMMANDS = {
   level,
   calibrate,
   orders,
+  paths,
   compare,
   run,
   report,

@@ -73,6 +73,22 @@ export const RESULT_METADATA = {
   }),
   frf,
   hammer: frf,
+  paths: z.looseObject({
+    ...common,
+    analysis: z.literal("paths"),
+    method: z.enum(["direct", "inverse"]),
+    paths: z.array(z.looseObject({ name: z.string() })),
+    target: channel,
+    level_unit: z.string(),
+    ranking: z.array(z.looseObject({
+      band: z.string(),
+      paths: z.array(z.looseObject({
+        name: z.string(),
+        level_db: finiteOrNull,
+        share_percent: finiteOrNull,
+      })),
+    })),
+  }),
   frf_matrix: z.looseObject({
     ...common,
     analysis: z.literal("frf_matrix"),

@@ -208,6 +208,31 @@ export function planSteps(
         inputs.push(path);
         needs.push(a.input as string);
       } else {
+        if (a.command === "paths") {
+          const sources = a.inputs ?? [];
+          if (sources.length === 0) {
+            fail(
+              `${where}.inputs`,
+              "paths needs the ids of the frf or hammer analyses holding each path's transfer, one per reference",
+            );
+          }
+          const files = sources.map((source, k) => {
+            const command = known.get(source);
+            if (command !== "frf" && command !== "hammer") {
+              fail(`${where}.inputs[${k}]`, `"${source}" is not an earlier frf or hammer analysis`);
+            }
+            needs.push(source);
+            return join(outDir, `${source}.json`);
+          });
+          if (files.some((f) => f.includes(","))) {
+            fail(
+              `${where}.inputs`,
+              "an output folder whose path holds a comma cannot list transfers",
+            );
+          }
+          argv.push("--transfer", files.join(","));
+          inputs.push(...files);
+        }
         if (a.recording === undefined) {
           fail(`${where}.recording`, `${a.command} needs a recording`);
         }
@@ -236,6 +261,7 @@ export function planSteps(
         }
       }
       if (a.command === "mac") outputs["pairs-out"] = join(outDir, `${a.id}_pairs.json`);
+      if (a.command === "paths") outputs["bands-out"] = join(outDir, `${a.id}_bands.json`);
       if (a.command === "frf" && severalNames(a.options.inputs)) {
         outputs["partial-out"] = join(outDir, `${a.id}_partial.json`);
         outputs["principal-out"] = join(outDir, `${a.id}_principal.json`);

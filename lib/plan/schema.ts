@@ -49,6 +49,7 @@ export const PLAN_COMMANDS = [
   "spectrogram",
   "modal",
   "mac",
+  "paths",
 ] as const;
 
 const id = z.string().regex(/^[A-Za-z0-9_-]+$/, "ids use letters, digits, _ and - only");
@@ -84,7 +85,10 @@ const analysis = z.strictObject({
   command: z.enum(PLAN_COMMANDS),
   recording: z.string().optional(),
   input: z.string().optional(),
-  /** `modal`: the ids of the frf or hammer analyses whose FRFs it fits together. */
+  /**
+   * `modal`: the ids of the frf or hammer analyses whose FRFs it fits together;
+   * `paths`: those holding each path's transfer, in the order of its references.
+   */
   inputs: z.array(z.string()).min(1).optional(),
   /** `modal`: the test geometry (point, x, y, z, line_to) for the report's shape drawings. */
   geometry: z.strictObject({ file: z.string().min(1) }).optional(),

@@ -184,6 +184,82 @@ async function frfMatrixFigures(
   return figures;
 }
 
+/**
+ * Transfer paths: each path's contribution overlaid on the measured target
+ * and the paths' sum, per-band levels when the plan wrote them, and the
+ * ranking of the paths over the analysed range and per octave.
+ */
+async function pathsSection(
+  id: string,
+  title: string,
+  r: ResultJson,
+  outDir: string,
+): Promise<{ figures: Figure[]; html: string }> {
+  const m = resultMetadata(r, "paths");
+  const f = numbers(r.columns[0]);
+  const domain: [number, number] = [Math.max(f[0] || f[1], 1), f[f.length - 1]];
+  const column = (name: string) => {
+    const c = numericColumn(r, name);
+    if (c === undefined) {
+      throw new QuiverError(`no column "${name}" in the paths result`, { file: r.file });
+    }
+    return c;
+  };
+  // Ranked: the largest path over the analysed range first.
+  const order = m.ranking[0]?.paths.map((p) => p.name) ?? m.paths.map((p) => p.name);
+  const unit = column("target_measured").unit;
+  const figures: Figure[] = [{
+    name: `${id}_contributions`,
+    svg: linePlot({
+      title: `${title}: contributions at ${m.target.name} (${m.method}), ranked`,
+      x: { label: "Frequency [Hz]", log: true, domain },
+      y: { label: withUnit("Contribution", unit), log: true },
+      series: [
+        ...order.map((name) => ({ name, x: f, y: column(`${name}_contribution`).values })),
+        { name: "sum of paths", x: f, y: column("sum_of_paths").values, dashed: true },
+        {
+          name: `${m.target.name} measured`,
+          x: f,
+          y: column("target_measured").values,
+          dashed: true,
+        },
+      ],
+    }),
+  }];
+  const bands = await readJson(join(outDir, `${id}_bands.json`));
+  if (!(bands instanceof QuiverError)) {
+    const nominal = numericColumn(bands, "band_hz");
+    const groups = [...order.map((n) => `${n}_level`), "sum_of_paths_level", "target_level"]
+      .flatMap((name) => {
+        const c = numericColumn(bands, name);
+        return c === undefined ? [] : [{ name: name.replace(/_level$/, ""), values: c.values }];
+      });
+    if (nominal !== undefined && groups.length > 0) {
+      figures.push({
+        name: `${id}_bands`,
+        svg: barPlot({
+          title: `${title}: per-band contributions (${m.level_unit})`,
+          labels: Array.from(nominal.values, (v) => formatNumber(v, 4)),
+          groups,
+          xLabel: "Band nominal frequency [Hz]",
+          yLabel: withUnit("Level", m.level_unit),
+        }),
+      });
+    }
+  }
+  const rows = m.ranking.map((band) =>
+    `<tr><td>${escapeXml(band.band)}</td><td>${
+      band.paths.map((p) =>
+        `${escapeXml(p.name)} ${formatFixed(p.level_db, 1)} (${formatFixed(p.share_percent, 0)} %)`
+      ).join(", ")
+    }</td></tr>`
+  ).join("");
+  const html = `<table><caption>Paths ranked by energy (${
+    escapeXml(m.level_unit)
+  }; share of the paths' total)</caption><thead><tr><th>Band</th><th>Paths, largest first</th></tr></thead><tbody>${rows}</tbody></table>`;
+  return { figures, html };
+}
+
 function modeTable(r: ResultJson): string {
   const modes = resultMetadata(r, "damping").modes;
   const rows = modes.map((m) =>
@@ -653,6 +729,11 @@ export async function writeReport(outDir: string, manifest: Manifest, plan: Plan
         case "damping":
           sections.push({ heading: title, note, figures: [], html: modeTable(r) });
           break;
+        case "paths": {
+          const { figures, html } = await pathsSection(step.id, title, r, outDir);
+          sections.push({ heading: title, note, figures, html });
+          break;
+        }
         case "modal": {
           const { figures, html } = await modalSection(step.id, title, r, outDir);
           sections.push({ heading: title, note, figures, html });

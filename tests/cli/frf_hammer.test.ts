@@ -78,7 +78,7 @@ describe("quiver frf", () => {
   });
 
   const usage: [string, string[], RegExp][] = [
-    ["missing --input", [shaker, "--rate", "1024", "--outputs", "arm_acc"], /--input is required/],
+    ["missing --input", [shaker, "--rate", "1024", "--outputs", "arm_acc"], /give --input/],
     [
       "unknown response",
       [...shakerArgs.slice(0, 5), "--outputs", "nope"],

@@ -93,10 +93,10 @@ describe("quiver run", () => {
     async () => {
       const r = runQuiver(["run", `${dir}/tamarack_b2_plan.json`, "--out-dir", `${dir}/out`]);
       expect(r.code).toBe(0);
-      expect(r.stderr).toMatch(/\[17\/17\] compare bracket_vs_sim: ok/);
+      expect(r.stderr).toMatch(/\[22\/22\] compare bracket_vs_sim: ok/);
       const manifest = JSON.parse(await readFile(`${dir}/out/manifest.json`, "utf8"));
       expect(manifest.status).toBe("ok");
-      expect(manifest.steps).toHaveLength(17);
+      expect(manifest.steps).toHaveLength(22);
       const hammer = manifest.steps.find((s: { id: string }) => s.id === "bracket_frf");
       expect(hammer.inputs[0].sha256).toMatch(/^[0-9a-f]{64}$/);
       expect(hammer.outputs["hits-out"].path).toBe("bracket_frf_hits.csv");
@@ -127,6 +127,19 @@ describe("quiver run", () => {
       expect((map.match(/<g class="overlay">/g) ?? []).length).toBe(2);
       const cuts = await readFile(`${dir}/out/figures/cabin_orders_cuts.svg`, "utf8");
       expect(cuts).toMatch(/>Level \[dB\(A\) re 0\.00002 Pa\]</);
+      // The rear mounts: the FRF matrix with multiple coherence and principal components, and
+      // the ranked path contributions with their band levels (companion files from the plan).
+      const matrix = manifest.steps.find((s: { id: string }) => s.id === "mount_matrix");
+      expect(Object.keys(matrix.outputs).sort()).toEqual(["out", "partial-out", "principal-out"]);
+      for (const figure of ["mount_matrix_multiple_coherence", "mount_matrix_principal"]) {
+        expect(existsSync(`${dir}/out/figures/${figure}.svg`), figure).toBe(true);
+      }
+      const paths = JSON.parse(await readFile(`${dir}/out/mount_paths.json`, "utf8"));
+      expect(paths.metadata.ranking[0].paths).toHaveLength(3);
+      expect(paths.metadata.transfers).toHaveLength(3);
+      expect(existsSync(`${dir}/out/figures/mount_paths_contributions.svg`)).toBe(true);
+      expect(existsSync(`${dir}/out/figures/mount_paths_bands.svg`)).toBe(true);
+      expect(html).toMatch(/Paths ranked by energy/);
     },
   );
 
@@ -143,7 +156,7 @@ describe("quiver run", () => {
       const orders = manifest.steps.find((s: { id: string }) => s.id === "mount_orders");
       expect(orders.status).toBe("failed");
       expect(orders.error).toMatch(/broken\.csv:3: row has 2 fields/);
-      expect(manifest.steps.filter((s: { status: string }) => s.status === "ok")).toHaveLength(14);
+      expect(manifest.steps.filter((s: { status: string }) => s.status === "ok")).toHaveLength(19);
     },
   );
 });
