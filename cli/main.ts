@@ -12,49 +12,44 @@ import { toStderr } from "./terminal.ts";
 import { EXIT_DATA, EXIT_DONE, EXIT_INTERNAL, EXIT_USAGE } from "./exit_codes.ts";
 import { QuiverError } from "../lib/errors.ts";
 import { QUIVER_VERSION } from "../lib/version.ts";
-import { COMMANDS as COMMAND_MODULES } from "./commands.ts";
+import { COMMAND_NAMES, isCommandName, loadCommand, loadCommands } from "./commands.ts";
 
-interface Command {
-  summary: string;
-  help: string;
-  run(argv: readonly string[]): Promise<void>;
-}
+export { COMMAND_NAMES };
 
-const COMMANDS: Readonly<Record<string, Command>> = COMMAND_MODULES;
-
-/** The command names, in the order of `quiver --help` and README's command table. */
-export const COMMAND_NAMES: readonly string[] = Object.keys(COMMANDS);
-
-const MAIN_HELP = `quiver: NVH test data from raw time histories to trustworthy numbers
+/** The main help, with every command's summary (loads every command module). */
+async function mainHelp(): Promise<string> {
+  const commands = await loadCommands();
+  return `quiver: NVH test data from raw time histories to trustworthy numbers
 
 Usage: quiver <command> [options]      (quiver <command> --help for details)
 
 Commands:
-${Object.entries(COMMANDS).map(([name, c]) => `  ${name.padEnd(12)} ${c.summary}`).join("\n")}
+${Object.entries(commands).map(([name, c]) => `  ${name.padEnd(12)} ${c.summary}`).join("\n")}
 
 Every command takes --help, and --debug to show a stack trace on error.
 quiver --version prints the version.
 Exit codes: 0 done, 1 bad data, 2 wrong usage, 3 internal error,
 4 targets not met (run and damping, only with --require-targets).
 `;
+}
 
 /** Runs quiver with the given arguments and returns the exit code. */
 export async function main(argv: readonly string[]): Promise<number> {
   const debug = argv.includes("--debug");
   const [name, ...rest] = argv;
   if (name === undefined || name === "--help" || name === "-h" || name === "help") {
-    process.stdout.write(MAIN_HELP);
+    process.stdout.write(await mainHelp());
     return name === undefined ? EXIT_USAGE : EXIT_DONE;
   }
   if (name === "--version" || name === "-V" || name === "version") {
     process.stdout.write(`quiver ${QUIVER_VERSION}\n`);
     return EXIT_DONE;
   }
-  const command = COMMANDS[name];
-  if (command === undefined) {
-    toStderr(`quiver: unknown command "${name}"\n\n${MAIN_HELP}`);
+  if (!isCommandName(name)) {
+    toStderr(`quiver: unknown command "${name}"\n\n${await mainHelp()}`);
     return EXIT_USAGE;
   }
+  const command = await loadCommand(name);
   if (rest.includes("--help") || rest.includes("-h")) {
     process.stdout.write(command.help);
     return EXIT_DONE;

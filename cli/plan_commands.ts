@@ -10,13 +10,14 @@
 import type { PlanCommand } from "../lib/plan/runner.ts";
 import { PLAN_COMMANDS } from "../lib/plan/schema.ts";
 import { parseCommandArgs } from "./args.ts";
-import { COMMANDS } from "./commands.ts";
+import { loadCommands } from "./commands.ts";
 
-/** The plan runner's command table (built when asked for: commands.ts imports `run`, which imports this). */
-export function planCommandTable(): Readonly<Record<string, PlanCommand>> {
+/** The plan runner's command table, with the modules of the plan's commands loaded. */
+export async function planCommandTable(): Promise<Readonly<Record<string, PlanCommand>>> {
   const names = [...PLAN_COMMANDS, "compare"] as const;
+  const modules = await loadCommands(names);
   return Object.fromEntries(names.map((name) => {
-    const command = COMMANDS[name];
+    const command = modules[name];
     return [name, {
       validate: (argv: readonly string[]) =>
         void parseCommandArgs(argv, command.options, command.schema),

@@ -20,7 +20,7 @@ const scope = self as unknown as {
   postMessage(message: unknown): void;
 };
 
-const commands = planCommandTable();
+const commands = await planCommandTable();
 
 scope.onmessage = async (event) => {
   const { command, argv, label } = event.data;

@@ -70,7 +70,7 @@ export async function run(argv: readonly string[]): Promise<void> {
     join(dirname(planFile), "out", basename(planFile).replace(/\.json$/i, ""));
   const jobs = values.jobs ?? navigator.hardwareConcurrency ?? 1;
   const pool = jobs > 1 ? new WorkerPool(jobs) : undefined;
-  const commands = planCommandTable();
+  const commands = await planCommandTable();
   let manifest;
   try {
     manifest = await runPlan(planFile, {

@@ -21,7 +21,7 @@
  *   the eigen-decomposition of MᴴM = V·Σ²·Vᴴ: M⁺ = V·diag(φₖ)·Vᴴ·Mᴴ with
  *   φₖ = 1/σₖ² (none), 1/σₖ² for the K largest σ and 0 beyond (svd:K), or
  *   1/(σₖ² + (λ·σ₁)²) (tikhonov:λ, λ relative to the largest singular value
- *   at each line). See e.g. Van der Seijs, van Klerk & Rixen, "General
+ *   at each line). See e.g. van der Seijs, de Klerk & Rixen, "General
  *   framework for transfer path analysis", MSSP 68–69 (2016), section on
  *   matrix-inverse (classical) TPA.
  *
@@ -574,7 +574,7 @@ function tablesOf(
     averages: estimate.averages,
     window: estimate.window,
     method_source: method === "inverse"
-      ? "matrix-inverse TPA: forces from indicators by a regularised pseudo-inverse (e.g. Van der Seijs, van Klerk & Rixen, MSSP 68-69, 2016)"
+      ? "matrix-inverse TPA: forces from indicators by a regularised pseudo-inverse (e.g. van der Seijs, de Klerk & Rixen, MSSP 68-69, 2016)"
       : "direct forces; contributions Hᵢ·E[Fᵢ·p*]/√Gpp with the target as phase reference",
     warnings,
   };
