@@ -17,13 +17,32 @@ import type { ColumnValues, TableColumn } from "../io/table.ts";
 import type { Manifest } from "../plan/runner.ts";
 import type { Plan } from "../plan/schema.ts";
 import type { TargetOutcome } from "../plan/target_eval.ts";
-import { barPlot, escapeXml, heatMap, linePlot, type Series, wireframe } from "./svg_plot.ts";
+import {
+  barPlot,
+  type ChartSpec,
+  chartSpec,
+  escapeXml,
+  heatMap,
+  type LinePlot,
+  linePlot,
+  type Series,
+  wireframe,
+} from "./svg_plot.ts";
+import { readFileSync } from "node:fs";
+import { fileURLToPath } from "node:url";
 
 type ResultJson = ResultTable;
 
 interface Figure {
   readonly name: string;
   readonly svg: string;
+  /** For a line plot: its data for the interactive chart. */
+  readonly chart?: ChartSpec;
+}
+
+/** A line plot's static SVG and the data of its interactive chart. */
+function lineFigure(plot: LinePlot): { svg: string; chart: ChartSpec } {
+  return { svg: linePlot(plot), chart: chartSpec(plot) };
 }
 
 interface Section {
@@ -56,12 +75,17 @@ function spectrumFigures(id: string, title: string, r: ResultJson): Figure[] {
   const series: Series[] = channels.map((c) => ({ name: c.name, x: fx, y: numbers(c) }));
   return [{
     name: `${id}_spectrum`,
-    svg: linePlot({
+    ...lineFigure({
       title: `${title}: ${kind}, df ${
         formatNumber(m.df_hz, 6)
       } Hz, ${m.averages} averages, ${m.window}`,
       x: { label: "Frequency [Hz]", log: true, domain: [Math.max(fx[1], 1), fx[fx.length - 1]] },
-      y: { label: withUnit(kind.toUpperCase(), channels[0]?.unit ?? ""), log: true },
+      // psd and power are powers (unit², 10 dB per decade); rms and peak amplitudes.
+      y: {
+        label: withUnit(kind.toUpperCase(), channels[0]?.unit ?? ""),
+        log: true,
+        power: kind === "psd" || kind === "power",
+      },
       series,
     }),
   }];
@@ -83,16 +107,16 @@ function frfFigures(id: string, title: string, r: ResultJson): Figure[] {
   return [
     {
       name: `${id}_magnitude`,
-      svg: linePlot({
+      ...lineFigure({
         title: `${title}: |H| (${m.estimator}, ${m.averages} averages)`,
         x: { label: "Frequency [Hz]", log: true, domain },
-        y: { label: withUnit("|H|", mags[0]?.column.unit ?? ""), log: true },
+        y: { label: withUnit("|H|", mags[0]?.column.unit ?? ""), log: true, power: false },
         series: plotOf(mags),
       }),
     },
     {
       name: `${id}_phase`,
-      svg: linePlot({
+      ...lineFigure({
         title: `${title}: phase`,
         x: { label: "Frequency [Hz]", log: true, domain },
         y: { label: "Phase [deg]", domain: [-180, 180] },
@@ -102,7 +126,7 @@ function frfFigures(id: string, title: string, r: ResultJson): Figure[] {
     },
     {
       name: `${id}_coherence`,
-      svg: linePlot({
+      ...lineFigure({
         title: `${title}: ordinary coherence`,
         x: { label: "Frequency [Hz]", log: true, domain },
         y: { label: "Coherence γ² [-]", domain: [0, 1] },
@@ -142,18 +166,22 @@ async function frfMatrixFigures(
     }));
     return {
       name: `${id}_${o.name}_matrix`,
-      svg: linePlot({
+      ...lineFigure({
         title:
           `${title}: |H| of ${o.name} per input (h1, ${m.inputs.length} inputs, ${m.averages} averages)`,
         x: { label: "Frequency [Hz]", log: true, domain },
-        y: { label: withUnit("|H|", column(`${o.name}/${m.inputs[0].name}_mag`).unit), log: true },
+        y: {
+          label: withUnit("|H|", column(`${o.name}/${m.inputs[0].name}_mag`).unit),
+          log: true,
+          power: false,
+        },
         series,
       }),
     };
   });
   figures.push({
     name: `${id}_multiple_coherence`,
-    svg: linePlot({
+    ...lineFigure({
       title: `${title}: multiple coherence (share of each output the inputs explain together)`,
       x: { label: "Frequency [Hz]", log: true, domain },
       y: { label: "Multiple coherence γ² [-]", domain: [0, 1] },
@@ -170,7 +198,7 @@ async function frfMatrixFigures(
     const pcs = m.inputs.map((_, k) => numericColumn(principal, `pc${k + 1}`));
     figures.push({
       name: `${id}_principal`,
-      svg: linePlot({
+      ...lineFigure({
         title:
           `${title}: principal components of the inputs (eigenvalues of Gxx; as many above the floor as independent sources)`,
         x: { label: "Frequency [Hz]", log: true, domain },
@@ -210,10 +238,10 @@ async function pathsSection(
   const unit = column("target_measured").unit;
   const figures: Figure[] = [{
     name: `${id}_contributions`,
-    svg: linePlot({
+    ...lineFigure({
       title: `${title}: contributions at ${m.target.name} (${m.method}), ranked`,
       x: { label: "Frequency [Hz]", log: true, domain },
-      y: { label: withUnit("Contribution", unit), log: true },
+      y: { label: withUnit("Contribution", unit), log: true, power: false },
       series: [
         ...order.map((name) => ({ name, x: f, y: column(`${name}_contribution`).values })),
         { name: "sum of paths", x: f, y: column("sum_of_paths").values, dashed: true },
@@ -300,7 +328,7 @@ function levelFigures(id: string, title: string, r: ResultJson): Figure[] {
   const t = numbers(r.columns[0]);
   return [{
     name: `${id}_level`,
-    svg: linePlot({
+    ...lineFigure({
       title: `${title}: ${m.weighting}-weighted, ${m.time_weighting} time weighting`,
       x: { label: "Time [s]" },
       y: { label: withUnit("Level", r.columns[1]?.unit ?? "") },
@@ -364,7 +392,7 @@ async function orderFigures(
   const cuts = r.columns.slice(1);
   const figures: Figure[] = [{
     name: `${id}_cuts`,
-    svg: linePlot({
+    ...lineFigure({
       title: `${title}: order cuts and overall (${m.amplitude}, ${m.method} method${
         m.weighting !== "Z" ? `, ${m.weighting}-weighted` : ""
       })`,
@@ -372,7 +400,7 @@ async function orderFigures(
       // Levels in dB on a linear axis; amplitudes on a logarithmic one.
       y: m.db
         ? { label: withUnit("Level", cuts[0]?.unit ?? "") }
-        : { label: withUnit("Amplitude", cuts[0]?.unit ?? ""), log: true },
+        : { label: withUnit("Amplitude", cuts[0]?.unit ?? ""), log: true, power: false },
       series: cuts.map((c) => ({
         name: c.name,
         x: rpm,
@@ -443,7 +471,7 @@ async function modalSection(
     const all = (k: number) => sf[k] === 1 && sd[k] === 1 && ss[k] === 1;
     figures.push({
       name: `${id}_stability`,
-      svg: linePlot({
+      ...lineFigure({
         title: `${title}: stability over model orders`,
         x: { label: "Frequency [Hz]" },
         y: { label: "Model order [-]" },
@@ -473,10 +501,10 @@ async function modalSection(
     }
     figures.push({
       name: `${id}_synthesis`,
-      svg: linePlot({
+      ...lineFigure({
         title: `${title}: measured and synthesised receptance`,
         x: { label: "Frequency [Hz]" },
-        y: { label: withUnit("|H|", synth.columns[1]?.unit ?? ""), log: true },
+        y: { label: withUnit("|H|", synth.columns[1]?.unit ?? ""), log: true, power: false },
         series,
       }),
     });
@@ -573,10 +601,10 @@ function comparisonFigures(
   const figures = [
     {
       name: `${id}_overlay`,
-      svg: linePlot({
+      ...lineFigure({
         title: `${title}: test and simulation (FRAC ${formatFixed(m.frac, 3)})`,
         x: { label: "Frequency [Hz]", log: true },
-        y: { label: withUnit("Magnitude", r.columns[1].unit), log: true },
+        y: { label: withUnit("Magnitude", r.columns[1].unit), log: true, power: false },
         series: [
           { name: "test", x: f, y: numbers(r.columns[1]) },
           { name: "simulation", x: f, y: numbers(r.columns[2]), dashed: true },
@@ -585,7 +613,7 @@ function comparisonFigures(
     },
     {
       name: `${id}_difference`,
-      svg: linePlot({
+      ...lineFigure({
         title: `${title}: simulation − test`,
         x: { label: "Frequency [Hz]", log: true },
         y: { label: "Difference [dB]" },
@@ -629,16 +657,53 @@ function targetTable(targets: readonly TargetOutcome[]): string {
   return `<table class="targets"><thead><tr><th>Target</th><th>Requirement</th><th>Result</th><th>Limit</th><th>Margin</th><th>Verdict</th></tr></thead><tbody>${rows}</tbody></table>`;
 }
 
+/**
+ * A figure: its static SVG (what prints and what shows without JavaScript)
+ * and, for a line plot, its data for the interactive chart.
+ */
+function figureHtml(f: Figure): string {
+  const id = `figure-${escapeXml(f.name)}`;
+  if (f.chart === undefined) return `<figure id="${id}">${f.svg}</figure>`;
+  // JSON inside a script element: "<" escaped so that no "</script" can end it early.
+  const json = JSON.stringify(f.chart).replace(/</g, "\\u003c");
+  return `<figure id="${id}" data-chart=""><div class="static">${f.svg}</div><script type="application/json" class="chart-data">${json}</script></figure>`;
+}
+
+/** A file of the vendored chart library (lib/report/vendor/uplot/). */
+function vendor(file: string): string {
+  return readFileSync(fileURLToPath(new URL(`./vendor/uplot/${file}`, import.meta.url)), "utf8");
+}
+
+/** The inlined chart library with its licence notice, and the script that draws the charts. */
+function chartScripts(): string {
+  const client = readFileSync(fileURLToPath(new URL("./chart_client.js", import.meta.url)), "utf8");
+  // "</" inside inlined code could close the script element; none may appear.
+  const library = vendor("uPlot.iife.min.js");
+  for (const code of [library, client]) {
+    if (code.includes("</script")) throw new Error("inlined script holds </script");
+  }
+  return `<!-- uPlot 1.6.32, MIT licence:\n${
+    vendor("LICENSE").replace(/--/g, "- -")
+  }\n-->\n<script>${library}</script>\n<script>${client}</script>`;
+}
+
 const STYLE = `
 body { font-family: Helvetica, Arial, sans-serif; color: #22313f; margin: 0; background: #f4f1ea; }
 header { background: #22313f; color: #f4f1ea; padding: 18px 32px; }
 header h1 { margin: 0 0 4px 0; font-size: 22px; }
 header p { margin: 2px 0; font-size: 13px; color: #cfd8e0; }
-main { padding: 8px 32px 32px 32px; max-width: 1100px; }
+main { padding: 8px 32px 32px 32px; max-width: 1500px; }
 h2 { border-bottom: 2px solid #c8553d; padding-bottom: 4px; margin-top: 32px; font-size: 18px; }
 h3 { font-size: 15px; margin-bottom: 4px; }
-figure { margin: 12px 0; background: #ffffff; border: 1px solid #d9d4c7; padding: 6px; display: inline-block; }
-figure svg { max-width: 100%; height: auto; display: block; }
+figure { margin: 12px 0; background: #ffffff; border: 1px solid #d9d4c7; padding: 6px; display: block; }
+figure svg { width: 100%; max-width: 1400px; height: auto; display: block; }
+figure.live > .static { display: none; }
+.chart-tools { font-size: 12px; margin: 0 0 4px 0; display: flex; flex-wrap: wrap; gap: 6px; align-items: center; }
+.chart-tools button { font: inherit; background: #f4f1ea; border: 1px solid #b9b2a2; border-radius: 3px; padding: 2px 8px; cursor: pointer; }
+.chart-hint { color: #6b7785; }
+.uplot { font-family: Helvetica, Arial, sans-serif; }
+.u-title { font-size: 13px; }
+.u-legend { font-size: 12px; text-align: left; }
 table { border-collapse: collapse; margin: 8px 0 16px 0; font-size: 13px; background: #ffffff; }
 th, td { border: 1px solid #d9d4c7; padding: 4px 8px; text-align: left; }
 th { background: #e8e2d4; }
@@ -647,7 +712,8 @@ tr.fail td.verdict { color: #b02e1f; font-weight: 700; }
 tr.unchecked td { color: #6b7785; }
 .note { font-size: 12px; color: #5b6b7b; }
 .caveat { border-left: 4px solid #edae49; background: #fff8e6; padding: 8px 12px; font-size: 13px; }
-@media print { body { background: #ffffff; } header { background: #ffffff; color: #000000; } figure { break-inside: avoid; } }
+@media print { body { background: #ffffff; } header { background: #ffffff; color: #000000; } figure { break-inside: avoid; } figure.live > .static { display: block; } .interactive, .chart-tools { display: none; } }
+@media (max-width: 760px) { main { padding: 8px 10px 24px 10px; } header { padding: 12px 10px; } table { font-size: 11px; } }
 `;
 
 /**
@@ -814,14 +880,12 @@ export async function writeReport(outDir: string, manifest: Manifest, plan: Plan
   const body = sections.map((s) =>
     `<section><h2>${escapeXml(s.heading)}</h2>${
       s.note !== undefined ? `<p class="note">${escapeXml(s.note)}</p>` : ""
-    }${
-      s.figures.map((f) => `<figure id="figure-${escapeXml(f.name)}">${f.svg}</figure>`).join("\n")
-    }${s.html ?? ""}</section>`
+    }${s.figures.map(figureHtml).join("\n")}${s.html ?? ""}</section>`
   ).join("\n");
   const html = `<!DOCTYPE html>
 <html lang="en"><head><meta charset="utf-8"><title>${escapeXml(title)}</title>
 <meta name="generator" content="quiver ${escapeXml(manifest.quiver_version)}">
-<style>${STYLE}</style></head>
+<style>${STYLE}${vendor("uPlot.min.css")}</style></head>
 <body><header><h1>${escapeXml(title)}</h1>
 <p>${escapeXml(plan.description ?? "")}</p>
 <p>quiver ${escapeXml(manifest.quiver_version)} · plan ${
@@ -837,7 +901,9 @@ ${body}
 <h2>Trace</h2>
 <p class="note">Every result in this folder, with the inputs it was computed from; manifest.json holds the full record (options, hashes, times).</p>
 <table><thead><tr><th>Step</th><th>Command</th><th>Status</th><th>Inputs</th><th>Outputs</th></tr></thead><tbody>${trace}</tbody></table>
-</main></body></html>
+</main>
+${chartScripts()}
+</body></html>
 `;
   const path = join(outDir, plan.report?.file ?? "report.html");
   await writeFileAtomic(path, html);

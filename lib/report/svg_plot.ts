@@ -38,6 +38,12 @@ export interface Axis {
   readonly log?: boolean;
   /** Fixed domain; default: the data's extent. */
   readonly domain?: readonly [number, number];
+  /**
+   * Logarithmic value axes: whether the values are powers (unit², 10 dB per
+   * decade) or amplitudes (20 dB per decade), for the dynamic-range limit.
+   * Default true.
+   */
+  readonly power?: boolean;
 }
 
 /** A line plot. */
@@ -46,12 +52,15 @@ export interface LinePlot {
   readonly x: Axis;
   readonly y: Axis;
   readonly series: readonly Series[];
-  /** Pixel size. Default 720 × 360. */
+  /** Pixel size. Default 960 × 400. */
   readonly width?: number;
   readonly height?: number;
 }
 
 const MARGIN = { top: 34, right: 18, bottom: 46, left: 70 };
+
+/** Width of the legend column right of a line plot's frame: legends never cover data. */
+const LEGEND_WIDTH = 170;
 
 /** Escapes text for SVG/HTML. *
  * @example
@@ -69,8 +78,13 @@ export function escapeXml(text: unknown): string {
   );
 }
 
-/** Decades a logarithmic value axis shows at most below its largest value (120 dB of a power). */
-export const LOG_DECADES_SHOWN = 12;
+/** The dynamic range a logarithmic value axis shows at most below its largest value. */
+export const DYNAMIC_RANGE_DB = 120;
+
+/** Decades of {@linkcode DYNAMIC_RANGE_DB}: 12 for powers, 6 for amplitudes. */
+function decadesShown(axis: Axis): number {
+  return DYNAMIC_RANGE_DB / (axis.power === false ? 20 : 10);
+}
 
 function extent(values: number[], log: boolean): [number, number] {
   const usable = values.filter((v) => Number.isFinite(v) && (!log || v > 0));
@@ -88,7 +102,7 @@ function extent(values: number[], log: boolean): [number, number] {
  * The domain an axis shows: the data's extent with headroom, so that no
  * line runs along the frame (5 % of the span on a linear axis, a fifth of a
  * decade on a logarithmic one), and a logarithmic axis limited to
- * {@linkcode LOG_DECADES_SHOWN} decades below its largest value.
+ * {@linkcode DYNAMIC_RANGE_DB} below its largest value.
  */
 function shownDomain(axis: Axis, values: number[], headroom: boolean): {
   domain: [number, number];
@@ -100,8 +114,9 @@ function shownDomain(axis: Axis, values: number[], headroom: boolean): {
   let [lo, hi] = extent(values, axis.log === true);
   let clamped = false;
   if (axis.log === true) {
-    if (hi / lo > 10 ** LOG_DECADES_SHOWN) {
-      lo = hi / 10 ** LOG_DECADES_SHOWN;
+    const decades = decadesShown(axis);
+    if (hi / lo > 10 ** decades) {
+      lo = hi / 10 ** decades;
       clamped = true;
     }
     if (headroom) hi *= 10 ** 0.2;
@@ -134,13 +149,37 @@ function tickLabel(v: number): string {
   return Number(v.toPrecision(3)).toString();
 }
 
+/** The title in lines that fit `width` px (about 7 px per character at 13 px). */
+function titleLines(title: string, width: number): string[] {
+  const fit = Math.max(30, Math.floor((width - MARGIN.left - 10) / 7));
+  const lines: string[] = [];
+  let line = "";
+  for (const word of title.split(" ")) {
+    if (line !== "" && line.length + 1 + word.length > fit) {
+      lines.push(line);
+      line = word;
+    } else line = line === "" ? word : `${line} ${word}`;
+  }
+  lines.push(line);
+  return lines;
+}
+
+/** Extra top margin a wrapped title needs. */
+function titleExtra(title: string, width: number): number {
+  return 16 * (titleLines(title, width).length - 1);
+}
+
 function frame(width: number, height: number, title: string, body: string): string {
+  const lines = titleLines(title, width);
   return `<svg xmlns="http://www.w3.org/2000/svg" viewBox="0 0 ${width} ${height}" width="${width}" height="${height}" role="img" aria-label="${
     escapeXml(title)
   }" font-family="Helvetica, Arial, sans-serif" font-size="11">
 <rect width="${width}" height="${height}" fill="#ffffff"/>
 <text x="${MARGIN.left}" y="20" font-size="13" font-weight="600" fill="#22313f">${
-    escapeXml(title)
+    lines.map((l, i) =>
+      `<tspan x="${MARGIN.left}" dy="${i === 0 ? 0 : 16}">${escapeXml(l)}</tspan>`
+    )
+      .join("")
   }</text>
 ${body}
 </svg>`;
@@ -221,15 +260,18 @@ function legend(
   x: number,
   y: number,
 ): string {
-  return names.map((s, i) =>
-    `<g transform="translate(${x - 150} ${
-      y + 6 + 14 * i
-    })"><line x1="0" x2="18" y1="0" y2="0" stroke="${
+  // Entries stacked in a column that starts at x, outside the frame; long names are
+  // shortened on the picture and given whole in a tooltip.
+  return names.map((s, i) => {
+    const shown = s.name.length > 22 ? `${s.name.slice(0, 21)}…` : s.name;
+    return `<g class="legend-entry" transform="translate(${x} ${y + 6 + 14 * i})"><title>${
+      escapeXml(s.name)
+    }</title><line x1="0" x2="18" y1="0" y2="0" stroke="${
       PALETTE[i % PALETTE.length]
     }" stroke-width="2"${
       s.dashed === true ? ' stroke-dasharray="5 3"' : ""
-    }/><text x="24" y="4" fill="#22313f">${escapeXml(s.name)}</text></g>`
-  ).join("\n");
+    }/><text x="24" y="4" fill="#22313f">${escapeXml(shown)}</text></g>`;
+  }).join("\n");
 }
 
 /**
@@ -244,16 +286,16 @@ function legend(
  * ```
  */
 export function linePlot(plot: LinePlot): string {
-  const width = plot.width ?? 720;
-  const height = plot.height ?? 360;
+  const width = plot.width ?? 960;
+  const extra = titleExtra(plot.title, width);
+  const height = (plot.height ?? 400) + extra;
+  const top = MARGIN.top + extra;
   const xs = plot.series.flatMap((s) => Array.from(s.x));
   const ys = plot.series.flatMap((s) => Array.from(s.y));
-  const x = makeScale(plot.x, xs, [MARGIN.left, width - MARGIN.right]);
-  const y = makeScale(plot.y, ys, [height - MARGIN.bottom, MARGIN.top], true);
-  // A clamped logarithmic axis says so in its label.
-  const yAxis: Axis = shownDomain(plot.y, ys, true).clamped
-    ? { ...plot.y, label: `${plot.y.label}, top ${LOG_DECADES_SHOWN} decades shown` }
-    : plot.y;
+  const right = width - MARGIN.right - LEGEND_WIDTH;
+  const x = makeScale(plot.x, xs, [MARGIN.left, right]);
+  const y = makeScale(plot.y, ys, [height - MARGIN.bottom, top], true);
+  const yAxis = labelledAxis(plot.y, ys);
   const [xlo, xhi] = x.domain() as [number, number];
   const paths = plot.series.map((s, i) => {
     if (s.markers === true) {
@@ -294,30 +336,125 @@ export function linePlot(plot: LinePlot): string {
     height,
     plot.title,
     `${axes({ x, y, xAxis: plot.x, yAxis, height })}\n${paths.join("\n")}\n${
-      legend(plot.series, width - MARGIN.right, MARGIN.top)
+      legend(plot.series, right + 12, top)
     }`,
   );
 }
 
+/** The axis with its label saying when a logarithmic range was limited. */
+function labelledAxis(axis: Axis, values: number[]): Axis {
+  return shownDomain(axis, values, true).clamped
+    ? { ...axis, label: `${axis.label}, top ${DYNAMIC_RANGE_DB} dB shown` }
+    : axis;
+}
+
+/** A line plot's data and look for the report's interactive chart (JSON-ready). */
+export interface ChartSpec {
+  readonly title: string;
+  readonly height: number;
+  readonly x: { label: string; unit: string; log: boolean; min: number; max: number };
+  readonly y: { label: string; unit: string; log: boolean; min: number; max: number };
+  readonly series: readonly { name: string; colour: string; dashed: boolean; markers: boolean }[];
+  /** x, then one y array per series, all on x; null where a series has no value. */
+  readonly data: readonly (readonly (number | null)[])[];
+  /** Whether lines join across missing values (series on different x grids). */
+  readonly spanGaps: boolean;
+}
+
+/** The unit in the last brackets of an axis label, "" without. */
+function unitOfLabel(label: string): string {
+  return /\[([^\]]*)\][^\[]*$/.exec(label)?.[1] ?? "";
+}
+
+/** Numbers rounded to 6 significant digits for the JSON a report carries. */
+const compact = (v: number): number | null => Number.isFinite(v) ? Number(v.toPrecision(6)) : null;
+
+/**
+ * The data and look of a line plot for the report's interactive chart: the
+ * same series, colours, axis labels and shown ranges as {@linkcode linePlot}.
+ *
+ * @example
+ * ```ts
+ * import { chartSpec } from "./svg_plot.ts";
+ * const spec = chartSpec({ title: "PSD", x: { label: "Frequency [Hz]", log: true }, y: { label: "PSD [Pa^2/Hz]", log: true },
+ *   series: [{ name: "mic", x: [10, 100, 1000], y: [1e-3, 1e-4, 1e-6] }] });
+ * if (spec.y.unit !== "Pa^2/Hz" || spec.data[1][1] !== 1e-4 || spec.x.min !== 10) throw new Error();
+ * ```
+ */
+export function chartSpec(plot: LinePlot): ChartSpec {
+  const xs = plot.series.flatMap((s) => Array.from(s.x));
+  const ys = plot.series.flatMap((s) => Array.from(s.y));
+  const xDomain = shownDomain(plot.x, xs, false).domain;
+  const yDomain = shownDomain(plot.y, ys, true).domain;
+  const first = plot.series[0]?.x ?? [];
+  const aligned = plot.series.every((s) =>
+    s.x.length === first.length && Array.from(s.x).every((v, k) => v === first[k])
+  );
+  let data: (number | null)[][];
+  if (aligned) {
+    data = [Array.from(first, compact), ...plot.series.map((s) => Array.from(s.y, compact))];
+  } else {
+    // One x axis for all: the union of the series' x values, each series null elsewhere.
+    const grid = [...new Set(xs.filter(Number.isFinite))].sort((a, b) => a - b);
+    const at = new Map(grid.map((v, k) => [v, k]));
+    data = [grid.map(compact)];
+    for (const s of plot.series) {
+      const column: (number | null)[] = grid.map(() => null);
+      for (let k = 0; k < s.x.length; k++) {
+        const index = at.get(s.x[k]);
+        if (index !== undefined) column[index] = compact(s.y[k]);
+      }
+      data.push(column);
+    }
+  }
+  return {
+    title: plot.title,
+    height: plot.height ?? 400,
+    x: {
+      label: plot.x.label,
+      unit: unitOfLabel(plot.x.label),
+      log: plot.x.log === true,
+      min: xDomain[0],
+      max: xDomain[1],
+    },
+    y: {
+      label: labelledAxis(plot.y, ys).label,
+      unit: unitOfLabel(plot.y.label),
+      log: plot.y.log === true,
+      min: yDomain[0],
+      max: yDomain[1],
+    },
+    series: plot.series.map((s, i) => ({
+      name: s.name,
+      colour: PALETTE[i % PALETTE.length],
+      dashed: s.dashed === true,
+      markers: s.markers === true,
+    })),
+    data,
+    spanGaps: !aligned,
+  };
+}
+
 /** The plot area's outline and the two axis labels, for a plot area ending at `right` px from the edge. */
 function plotFrame(
-  { width, height, right, xLabel, yLabel }: {
+  { width, height, right, xLabel, yLabel, top = MARGIN.top }: {
     width: number;
     height: number;
     right: number;
     xLabel: string;
     yLabel: string;
+    top?: number;
   },
 ): string {
   return [
-    `<rect x="${MARGIN.left}" y="${MARGIN.top}" width="${width - right - MARGIN.left}" height="${
-      height - MARGIN.top - MARGIN.bottom
+    `<rect x="${MARGIN.left}" y="${top}" width="${width - right - MARGIN.left}" height="${
+      height - top - MARGIN.bottom
     }" fill="none" stroke="#5b6b7b"/>`,
     `<text x="${(MARGIN.left + width - right) / 2}" y="${
       height - 8
     }" text-anchor="middle" fill="#22313f">${escapeXml(xLabel)}</text>`,
     `<text transform="translate(16 ${
-      (height - MARGIN.bottom + MARGIN.top) / 2
+      (height - MARGIN.bottom + top) / 2
     }) rotate(-90)" text-anchor="middle" fill="#22313f">${escapeXml(yLabel)}</text>`,
   ].join("\n");
 }
@@ -346,28 +483,23 @@ export interface BarPlot {
  * ```
  */
 export function barPlot(plot: BarPlot): string {
-  const width = plot.width ?? 720;
-  const height = plot.height ?? 360;
+  const width = plot.width ?? 960;
+  const extra = titleExtra(plot.title, width);
+  const height = (plot.height ?? 400) + extra;
+  const top = MARGIN.top + extra;
+  const right = width - MARGIN.right - LEGEND_WIDTH;
   const values = plot.groups.flatMap((g) => Array.from(g.values)).filter(Number.isFinite);
   const lo = minOf(values);
   const hi = maxOf(values);
   const y = scaleLinear().domain([Math.floor((lo - 10) / 10) * 10, Math.ceil((hi + 5) / 10) * 10])
-    .range([
-      height - MARGIN.bottom,
-      MARGIN.top,
-    ]);
-  const x = scaleLinear().domain([0, plot.labels.length]).range([
-    MARGIN.left,
-    width - MARGIN.right,
-  ]);
+    .range([height - MARGIN.bottom, top]);
+  const x = scaleLinear().domain([0, plot.labels.length]).range([MARGIN.left, right]);
   const slot = x(1) - x(0);
   const barWidth = (0.8 * slot) / plot.groups.length;
   const parts: string[] = [];
   for (const t of y.ticks(6)) {
     parts.push(
-      `<line x1="${MARGIN.left}" x2="${width - MARGIN.right}" y1="${y(t)}" y2="${
-        y(t)
-      }" stroke="#e3e7ec"/>`,
+      `<line x1="${MARGIN.left}" x2="${right}" y1="${y(t)}" y2="${y(t)}" stroke="#e3e7ec"/>`,
     );
     parts.push(
       `<text x="${MARGIN.left - 6}" y="${y(t) + 4}" text-anchor="end" fill="#3d4b59">${
@@ -387,25 +519,27 @@ export function barPlot(plot: BarPlot): string {
     plot.groups.forEach((g, j) => {
       const v = g.values[i];
       if (!Number.isFinite(v)) return;
-      const top = y(v);
+      const barTop = y(v);
       parts.push(
         `<rect class="bar" x="${(x(i) + 0.1 * slot + j * barWidth).toFixed(1)}" y="${
-          top.toFixed(1)
+          barTop.toFixed(1)
         }" width="${barWidth.toFixed(1)}" height="${
-          (height - MARGIN.bottom - top).toFixed(1)
+          (height - MARGIN.bottom - barTop).toFixed(1)
         }" fill="${PALETTE[j % PALETTE.length]}"/>`,
       );
     });
   });
   parts.push(
-    plotFrame({ width, height, right: MARGIN.right, xLabel: plot.xLabel, yLabel: plot.yLabel }),
+    plotFrame({
+      width,
+      height,
+      top,
+      right: width - right,
+      xLabel: plot.xLabel,
+      yLabel: plot.yLabel,
+    }),
   );
-  return frame(
-    width,
-    height,
-    plot.title,
-    parts.join("\n") + legend(plot.groups, width - MARGIN.right, MARGIN.top),
-  );
+  return frame(width, height, plot.title, parts.join("\n") + legend(plot.groups, right + 12, top));
 }
 
 /**

@@ -8,6 +8,35 @@ import { demoFolder } from "../helpers/demo_campaign.ts";
 
 const CHROMIUM = "/usr/bin/chromium";
 
+/** Debian's chromium, headless, with a fresh profile (no network services, no sync). */
+async function launch(options: { javaScriptEnabled?: boolean } = {}) {
+  const profile = await mkdtemp("/tmp/quiver-chromium-");
+  const context = await chromium.launchPersistentContext(profile, {
+    executablePath: CHROMIUM,
+    headless: true,
+    viewport: { width: 1400, height: 900 },
+    ...options,
+    args: [
+      "--headless",
+      "--no-sandbox",
+      "--disable-gpu",
+      "--disable-background-networking",
+      "--disable-component-update",
+      "--disable-sync",
+      "--no-first-run",
+    ],
+  });
+  return { context, profile };
+}
+
+/** The interactive chart of a figure, as the page's script registered it. */
+interface ChartHandle {
+  scales: Record<string, { min: number; max: number }>;
+  series: { show: boolean }[];
+  valToPos(value: number, scale: string): number;
+  over: HTMLElement;
+}
+
 describe("the HTML report in a browser", () => {
   let report: string;
   beforeAll(async () => {
@@ -21,23 +50,10 @@ describe("the HTML report in a browser", () => {
   // and then the test shows as skipped, not passed.
   const skip = !existsSync(CHROMIUM) && process.env.QUIVER_SKIP_BROWSER === "1";
   test.skipIf(skip)(
-    "opens in headless Chromium with no console errors, shows its plots and fetches nothing",
+    "with JavaScript off: every plot shows as its static picture, no console errors, nothing fetched",
     async () => {
       expect(existsSync(CHROMIUM), `${CHROMIUM} is needed for this test`).toBe(true);
-      const profile = await mkdtemp("/tmp/quiver-chromium-");
-      const context = await chromium.launchPersistentContext(profile, {
-        executablePath: CHROMIUM,
-        headless: true,
-        args: [
-          "--headless",
-          "--no-sandbox",
-          "--disable-gpu",
-          "--disable-background-networking",
-          "--disable-component-update",
-          "--disable-sync",
-          "--no-first-run",
-        ],
-      });
+      const { context, profile } = await launch({ javaScriptEnabled: false });
       try {
         const page = await context.newPage();
         const errors: string[] = [];
@@ -51,6 +67,13 @@ describe("the HTML report in a browser", () => {
         await page.waitForLoadState("load");
         const plots = await page.locator("figure svg").count();
         expect(plots).toBeGreaterThanOrEqual(6);
+        // Every figure shows a picture of real size (none hidden behind a script that did not run).
+        const figures = await page.locator("figure").count();
+        for (let i = 0; i < figures; i++) {
+          const box = await page.locator("figure").nth(i).locator("svg").first().boundingBox();
+          expect(box, `figure ${i}`).not.toBeNull();
+          expect(box!.height, `figure ${i}`).toBeGreaterThan(100);
+        }
         const firstBox = await page.locator("figure svg").first().boundingBox();
         expect(firstBox!.width).toBeGreaterThan(300);
         expect(await page.locator("table.targets tr.pass").count()).toBeGreaterThan(0);
@@ -67,7 +90,7 @@ describe("the HTML report in a browser", () => {
             "link_modes_shape_1",
           ]
         ) {
-          const box = await page.locator(`#figure-${name} > svg`).boundingBox();
+          const box = await page.locator(`#figure-${name} svg`).first().boundingBox();
           expect(box, name).not.toBeNull();
           expect(box!.width, name).toBeGreaterThan(300);
           expect(box!.height, name).toBeGreaterThan(200);
@@ -90,6 +113,97 @@ describe("the HTML report in a browser", () => {
         expect(errors).toEqual([]);
         expect(requests.filter((u) => !u.startsWith("file://"))).toEqual([]);
         expect((await readFile(`${profile}/report.png`)).subarray(1, 4).toString()).toBe("PNG");
+      } finally {
+        await context.close();
+      }
+    },
+  );
+
+  test.skipIf(skip)(
+    "interactive charts: a readout at a known point, zoom, a legend click hides a trace",
+    async () => {
+      expect(existsSync(CHROMIUM), `${CHROMIUM} is needed for this test`).toBe(true);
+      const { context } = await launch();
+      try {
+        const page = await context.newPage();
+        const errors: string[] = [];
+        const requests: string[] = [];
+        page.on("console", (m) => {
+          if (m.type() === "error") errors.push(m.text());
+        });
+        page.on("pageerror", (e) => errors.push(e.message));
+        page.on("request", (r) => requests.push(r.url()));
+        await page.goto(`file://${report}`);
+        await page.waitForLoadState("load");
+        // The road PSD's value at 100 Hz, from the result file the report was made from.
+        const result = JSON.parse(
+          await readFile(report.replace(/report\.html$/, "road_psd.json"), "utf8"),
+        );
+        const f = result.columns[0].values as number[];
+        const k = f.indexOf(100);
+        expect(k).toBeGreaterThan(0);
+        const seat = result.columns.find((c: { name: string }) => c.name === "seat_rail_z");
+        const expected = seat.values[k] as number;
+        const figure = page.locator("#figure-road_psd_spectrum");
+        expect(await figure.locator(".static").isVisible()).toBe(false);
+        // Drag from 20 Hz to 200 Hz: the x axis then spans about that.
+        const drag = await page.evaluate(() => {
+          const u = (window as unknown as { quiverCharts: Record<string, ChartHandle> })
+            .quiverCharts.road_psd_spectrum;
+          const box = u.over.getBoundingClientRect();
+          return {
+            from: box.left + u.valToPos(20, "x"),
+            to: box.left + u.valToPos(200, "x"),
+            y: box.top + box.height / 2,
+          };
+        });
+        await page.mouse.move(drag.from, drag.y);
+        await page.mouse.down();
+        await page.mouse.move(drag.to, drag.y + 2, { steps: 8 });
+        await page.mouse.up();
+        const zoomed = await page.evaluate(() =>
+          (window as unknown as { quiverCharts: Record<string, ChartHandle> }).quiverCharts
+            .road_psd_spectrum.scales.x
+        );
+        expect(zoomed.min).toBeGreaterThan(15);
+        expect(zoomed.min).toBeLessThan(25);
+        expect(zoomed.max).toBeGreaterThan(170);
+        expect(zoomed.max).toBeLessThan(230);
+        // Hover at 100 Hz (in the zoomed view, where lines lie pixels apart): the legend reads the
+        // frequency and the value with its unit.
+        const at = await page.evaluate(() => {
+          const u = (window as unknown as { quiverCharts: Record<string, ChartHandle> })
+            .quiverCharts.road_psd_spectrum;
+          const box = u.over.getBoundingClientRect();
+          return { x: box.left + u.valToPos(100, "x"), y: box.top + box.height / 2 };
+        });
+        await page.mouse.move(at.x, at.y);
+        const values = await figure.locator(".u-legend .u-value").allTextContents();
+        expect(values[0]).toBe("100 Hz");
+        const [number, unit] = values[1].split(" ");
+        expect(unit).toBe("(m/s^2)^2/Hz");
+        // Five significant digits in the readout.
+        expect(Math.abs(Number(number) - expected) / expected).toBeLessThan(1e-4);
+        // Reset brings the whole range back.
+        await figure.locator("button", { hasText: "Reset view" }).click();
+        const reset = await page.evaluate(() =>
+          (window as unknown as { quiverCharts: Record<string, ChartHandle> }).quiverCharts
+            .road_psd_spectrum.scales.x
+        );
+        expect(reset.max).toBeGreaterThan(10000);
+        // A click on the second trace's legend entry hides it.
+        await figure.locator(".u-legend .u-series").nth(2).click();
+        const shown = await page.evaluate(() =>
+          (window as unknown as { quiverCharts: Record<string, ChartHandle> }).quiverCharts
+            .road_psd_spectrum.series.map((s) => s.show)
+        );
+        expect(shown).toEqual([true, true, false]);
+        // Every line plot became a chart; the colour maps, bars and drawings stay pictures.
+        const charts = await page.locator("figure[data-chart]").count();
+        expect(charts).toBeGreaterThan(10);
+        expect(await page.locator("figure.live").count()).toBe(charts);
+        expect(errors).toEqual([]);
+        expect(requests.filter((u) => !u.startsWith("file://"))).toEqual([]);
       } finally {
         await context.close();
       }

@@ -55,17 +55,29 @@ describe("axes that contain the data", () => {
     expect(top).toBeGreaterThan(34 + 5);
   });
 
-  test("a log axis shows at most 12 decades below its largest value, and says so", () => {
+  test("a log axis shows the top 120 dB: 12 decades of a power, 6 of an amplitude, and says so", () => {
     const x = Array.from({ length: 18 }, (_, i) => i + 1);
-    const svg = linePlot({
+    const ticks = (svg: string) => yLabels(svg).map(Number).filter((v) => v > 0);
+    const power = linePlot({
       title: "t",
       x: { label: "Frequency [Hz]" },
       y: { label: "PSD [Pa^2/Hz]", log: true },
       series: [{ name: "s", x, y: x.map((v) => 10 ** (-v)) }], // 17 decades
     });
-    expect(svg).toContain("PSD [Pa^2/Hz], top 12 decades shown");
+    expect(power).toContain("PSD [Pa^2/Hz], top 120 dB shown");
+    // 10·lg of a power: 120 dB is 12 decades below the largest value, 0.1.
+    expect(Math.min(...ticks(power))).toBeCloseTo(1e-13, 20);
     // Values below the clamp are drawn at the bottom edge (clamped scale), none below it.
-    const bottom = Math.max(...pathPoints(svg).map((p) => p[1]));
-    expect(bottom).toBeLessThanOrEqual(360 - 46 + 1e-9);
+    const bottom = Math.max(...pathPoints(power).map((p) => p[1]));
+    expect(bottom).toBeLessThanOrEqual(400 - 46 + 1e-9);
+    const amplitude = linePlot({
+      title: "t",
+      x: { label: "Frequency [Hz]" },
+      y: { label: "|H| [Pa/N]", log: true, power: false },
+      series: [{ name: "s", x, y: x.map((v) => 10 ** (-v)) }],
+    });
+    expect(amplitude).toContain("|H| [Pa/N], top 120 dB shown");
+    // 20·lg of an amplitude: 120 dB is 6 decades below 0.1.
+    expect(Math.min(...ticks(amplitude))).toBeCloseTo(1e-7, 12);
   });
 });
