@@ -59,13 +59,40 @@ export function levelDb(meanSquare: number, reference: number): number {
   return 10 * Math.log10(meanSquare / (reference * reference));
 }
 
-/** The label of a level unit, e.g. `dB(A) re 2e-05 Pa`. *
+/** SI prefixes for references below 1, by power of a thousand. */
+const PREFIXES: Readonly<Record<number, string>> = { [-1]: "m", [-2]: "µ", [-3]: "n", [-4]: "p" };
+
+/**
+ * A reference value with its unit as an engineer writes it: an SI prefix on
+ * the unit's first symbol for the units with standard references (20 µPa,
+ * 1 µm/s^2, 1 nm/s, 1 pm, 1 µN), the plain number otherwise (1 V).
+ *
+ * @example
+ * ```ts
+ * import { formatReference } from "./levels.ts";
+ * if (formatReference(2e-5, "Pa") !== "20 µPa" || formatReference(1e-6, "m/s^2") !== "1 µm/s^2") throw new Error();
+ * if (formatReference(2e-5, "Pa/√Hz") !== "20 µPa/√Hz" || formatReference(1, "V") !== "1 V") throw new Error();
+ * ```
+ */
+export function formatReference(reference: number, unit: string): string {
+  const base = Object.keys(REFERENCES).sort((a, b) => b.length - a.length)
+    .find((u) => unit === u || unit.startsWith(`${u}/`));
+  const thousands = Math.floor(Math.log10(reference) / 3 + 1e-9);
+  const prefix = PREFIXES[thousands];
+  if (base === undefined || prefix === undefined) {
+    return `${Number(reference.toPrecision(6))} ${unit}`;
+  }
+  const mantissa = Number((reference / 1000 ** thousands).toPrecision(6));
+  return `${mantissa} ${prefix}${unit}`;
+}
+
+/** The label of a level unit, e.g. `dB(A) re 20 µPa`. *
  * @example
  * ```ts
  * import { levelUnit } from "./levels.ts";
- * if (levelUnit("A", 2e-5, "Pa") !== "dB(A) re 0.00002 Pa" || levelUnit("Z", 1, "V") !== "dB re 1 V") throw new Error();
+ * if (levelUnit("A", 2e-5, "Pa") !== "dB(A) re 20 µPa" || levelUnit("Z", 1, "V") !== "dB re 1 V") throw new Error();
  * ```
  */
 export function levelUnit(weighting: string, reference: number, unit: string): string {
-  return `dB${weighting === "Z" ? "" : `(${weighting})`} re ${reference} ${unit}`;
+  return `dB${weighting === "Z" ? "" : `(${weighting})`} re ${formatReference(reference, unit)}`;
 }

@@ -14,7 +14,7 @@ import { QuiverError } from "../errors.ts";
 import { channelIndices } from "../io/recording.ts";
 import { asStream, readChecked, type RecordingSource } from "../io/recording_stream.ts";
 import type { Table, TableColumn } from "../io/table.ts";
-import { levelReference } from "../acoustics/levels.ts";
+import { levelReference, levelUnit } from "../acoustics/levels.ts";
 import { type Weighting, weightingPowerGain } from "../acoustics/weighting.ts";
 import type { DetrendMode } from "./detrend.ts";
 import { resolveBlock, SpectralAccumulator, type SpectralEstimate } from "./spectral_core.ts";
@@ -176,7 +176,7 @@ export interface FrameScalingOptions {
  * const scaling = new FrameScaling([{ unit: "Pa" }], { kind: "rms", db: true });
  * const out = [new Float64Array(33)];
  * scaling.write(acc.finish(), out, 0);
- * if (Math.abs(out[0][8] - 93.9794) > 1e-4 || scaling.units[0] !== "dB re 0.00002 Pa") throw new Error();
+ * if (Math.abs(out[0][8] - 93.9794) > 1e-4 || scaling.units[0] !== "dB re 20 µPa") throw new Error();
  * ```
  */
 export class FrameScaling {
@@ -203,9 +203,7 @@ export class FrameScaling {
     const kind = this.#kind;
     this.units = channels.map((c, i) =>
       this.#db
-        ? `dB${this.#weighting === "Z" ? "" : `(${this.#weighting})`} re ${this.#references[i]} ${
-          kind === "psd" ? `${c.unit}/√Hz` : c.unit
-        }`
+        ? levelUnit(this.#weighting, this.#references[i], kind === "psd" ? `${c.unit}/√Hz` : c.unit)
         : spectrumUnit(c.unit, kind)
     );
   }

@@ -55,7 +55,7 @@ describe("quiver bands, level and calibrate", () => {
     }
     expect(Math.abs(json.metadata.overall[0].level_db - 10 * Math.log10(total))).toBeLessThan(0.2);
     expect(json.columns.find((c: { name: string }) => c.name === "driver_ear").unit).toBe(
-      "dB(A) re 0.00002 Pa",
+      "dB(A) re 20 µPa",
     );
     expect(r.stderr).toMatch(/driver_ear: overall \d+\.\d+ dB\(A\)/);
   });
@@ -108,7 +108,7 @@ describe("quiver bands, level and calibrate", () => {
     expect(Math.abs(s.leq_db - 94)).toBeLessThan(0.05); // A-weighting is 0 dB at 1 kHz (IEC 61672-1)
     expect(Math.abs(s.lmax_db - 94)).toBeLessThan(0.1);
     expect(Math.abs(s.l90_db - 94)).toBeLessThan(0.1);
-    expect(r.stderr).toMatch(/mic \[dB\(A\) re 0\.00002 Pa\]: Leq 94\.0/);
+    expect(r.stderr).toMatch(/mic \[dB\(A\) re 20 µPa\]: Leq 94\.0/);
   });
 
   test("level refuses A-weighting below the rate the digital filter needs", () => {

@@ -50,7 +50,7 @@ describe("spectrogram against time", () => {
         expect(Math.abs(psd[j * lines + k] - expected), `frame ${j}, line ${k}`).toBeLessThan(1e-3);
       }
     }
-    expect(table.columns[2].unit).toBe("dB(A) re 0.00002 Pa/√Hz");
+    expect(table.columns[2].unit).toBe("dB(A) re 20 µPa/√Hz");
   });
 
   test("a record with fewer segments than one frame is refused, not written empty", async () => {

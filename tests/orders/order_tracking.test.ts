@@ -247,7 +247,7 @@ describe("A-weighted order cuts in dB", () => {
     });
     const steps = col(cuts, "rpm");
     const o2 = col(cuts, "cabin_mic_order2");
-    expect(cuts.columns[1].unit).toBe("dB(A) re 0.00002 Pa");
+    expect(cuts.columns[1].unit).toBe("dB(A) re 20 µPa");
     steps.forEach((r, i) => {
       const expected = 20 * Math.log10(0.1 / 20e-6) + iecA((2 * r) / 60);
       expect(Math.abs(o2[i] - expected), `${r} rpm`).toBeLessThan(0.3);

@@ -161,7 +161,7 @@ describe("quiver spectrogram --against rpm", () => {
     expect(ok.stderr).toMatch(/spectrogram against rpm: 1 channel\(s\)/);
     expect(ok.code).toBe(0);
     const text = await readFile(`${dir}/map.csv`, "utf8");
-    expect(text.split("\n")[0]).toBe("rpm [rpm],frequency_hz,mic [dB(A) re 0.00002 Pa/√Hz]");
+    expect(text.split("\n")[0]).toBe("rpm [rpm],frequency_hz,mic [dB(A) re 20 µPa/√Hz]");
     const meta = JSON.parse(await readFile(`${dir}/map.csv.meta.json`, "utf8"));
     expect(meta.metadata.against).toBe("rpm");
     expect(meta.metadata.order_lines).toEqual([2, 4]);

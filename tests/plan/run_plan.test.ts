@@ -126,7 +126,7 @@ describe("quiver run", () => {
       expect(map).toMatch(/>Speed \[rpm\]</);
       expect((map.match(/<g class="overlay">/g) ?? []).length).toBe(2);
       const cuts = await readFile(`${dir}/out/figures/cabin_orders_cuts.svg`, "utf8");
-      expect(cuts).toMatch(/>Level \[dB\(A\) re 0\.00002 Pa\]</);
+      expect(cuts).toMatch(/>Level \[dB\(A\) re 20 µPa\]</);
       // The rear mounts: the FRF matrix with multiple coherence and principal components, and
       // the ranked path contributions with their band levels (companion files from the plan).
       const matrix = manifest.steps.find((s: { id: string }) => s.id === "mount_matrix");

@@ -34,7 +34,7 @@ interface ChartHandle {
   scales: Record<string, { min: number; max: number }>;
   series: { show: boolean }[];
   valToPos(value: number, scale: string): number;
-  over: HTMLElement;
+  over: { getBoundingClientRect(): { left: number; top: number; width: number; height: number } };
 }
 
 describe("the HTML report in a browser", () => {
