@@ -6,7 +6,8 @@
 import { toStderr } from "./terminal.ts";
 import { z } from "npm:zod@4.6.7";
 import { FRF_FORMS } from "../lib/frf/forms.ts";
-import { hammerFrf } from "../lib/frf/hammer.ts";
+import { hammerFrf, USABLE_DROP_DB } from "../lib/frf/hammer.ts";
+import { formatNumber } from "../lib/format_number.ts";
 import { formatCsv } from "../lib/io/table.ts";
 import { writeFileAtomic } from "../lib/io/atomic_write.ts";
 import { listOption, numberOption, parseCommandArgs, usageError } from "./args.ts";
@@ -90,6 +91,11 @@ const OUTPUTS = {
     value: "FILE",
     help: "hit log CSV: hit, time_s, peak, status",
   }),
+  "records-out": option(z.string().min(1), {
+    value: "FILE",
+    help:
+      "every hit's force and first response against time (CSV or\nJSON), for checking each hit by eye",
+  }),
 };
 
 const TABLE = { ...CHANNELS, ...HITS, ...WINDOWS, ...RECORDING_TABLE, ...OUTPUTS };
@@ -109,7 +115,10 @@ it, and averages H1 over the accepted hits only. Coherence is across hits.`,
   ],
   notes: `The FRF CSV has the columns of quiver frf. The exponential window's time
 constant goes into the JSON metadata (exponential_window_tau_s) so that
-damping estimates can remove the damping it adds.`,
+damping estimates can remove the damping it adds. The FRF table also holds
+force_autospectrum, and the metadata usable_bandwidth_hz: the first line
+where the force autospectrum is 20 dB below its low-frequency level (common
+practice takes 10 to 20 dB); above it the FRF is not to be trusted.`,
 });
 
 /** zod schema of the options. */
@@ -144,8 +153,21 @@ export async function run(argv: readonly string[]): Promise<void> {
   if (values["hits-out"] !== undefined) {
     await writeFileAtomic(values["hits-out"], formatCsv(result.hitLog));
   }
+  if (values["records-out"] !== undefined) {
+    await writeResult(result.hitRecords, input, {
+      ...values,
+      out: values["records-out"],
+      format: undefined,
+    });
+  }
   for (const warning of result.warnings) {
     toStderr(`quiver hammer: warning: ${warning}\n`);
   }
-  toStderr(`${result.summary}\n`);
+  toStderr(
+    `${result.summary}; usable bandwidth ${
+      formatNumber(result.usableBandwidth.limitHz, 6)
+    } Hz (force autospectrum ${USABLE_DROP_DB} dB down${
+      result.usableBandwidth.reached ? "" : ": not reached"
+    })\n`,
+  );
 }

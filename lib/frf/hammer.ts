@@ -19,7 +19,7 @@ import { QuiverError } from "../errors.ts";
 import { channelIndices } from "../io/recording.ts";
 import { asStream, type RecordingSource } from "../io/recording_stream.ts";
 import { type SampleSeries, withChannelSeries } from "../io/sample_series.ts";
-import type { Table } from "../io/table.ts";
+import type { Table, TableColumn } from "../io/table.ts";
 import { SpectralAccumulator } from "../dsp/spectral_core.ts";
 import type { FrfForm } from "./forms.ts";
 import { frfTableParts, SINGLE_AVERAGE_WARNING } from "./frf_analysis.ts";
@@ -64,7 +64,62 @@ export interface HammerResult {
   readonly warnings: readonly string[];
   /** One line such as "6 hits: 4 accepted, 1 double, 1 overload". */
   readonly summary: string;
+  /** Where the force autospectrum has fallen {@linkcode USABLE_DROP_DB} below its low-frequency level. */
+  readonly usableBandwidth: UsableBandwidth;
+  /** Every hit's record (force and first response, as seen before windowing), for a quality plot. */
+  readonly hitRecords: Table;
 }
+
+/**
+ * How far the force autospectrum may fall below its low-frequency level
+ * before the excitation is too weak to trust the FRF (common practice takes
+ * 10 to 20 dB; quiver takes 20).
+ */
+export const USABLE_DROP_DB = 20;
+
+/** The hammer's usable frequency range. */
+export interface UsableBandwidth {
+  /** Upper limit, Hz: the first line where the force autospectrum is USABLE_DROP_DB down. */
+  readonly limitHz: number;
+  /** The low-frequency level it is measured from, in the force's unit²/Hz. */
+  readonly referenceLevel: number;
+  /** Whether the spectrum fell that far within the analysed band (false: the limit is Nyquist). */
+  readonly reached: boolean;
+}
+
+/**
+ * The usable bandwidth of an impact: the first line above which the force
+ * autospectrum is {@linkcode USABLE_DROP_DB} below its mean over the lowest
+ * 2 % of the band (at least one line above 0 Hz).
+ *
+ * @example
+ * ```ts
+ * import { usableBandwidth } from "./hammer.ts";
+ * // A force spectrum flat at 1 up to 300 Hz, then 30 dB down.
+ * const f = new Float64Array(1001).map((_, k) => k);
+ * const g = f.map((v) => (v <= 300 ? 1 : 1e-3));
+ * const u = usableBandwidth(f, g);
+ * if (u.limitHz !== 301 || !u.reached) throw new Error();
+ * ```
+ */
+export function usableBandwidth(frequencies: Float64Array, gff: Float64Array): UsableBandwidth {
+  const lines = frequencies.length;
+  const low = Math.max(1, Math.round(0.02 * lines));
+  let sum = 0, count = 0;
+  for (let k = 1; k <= Math.min(low, lines - 1); k++) {
+    sum += gff[k];
+    count++;
+  }
+  const referenceLevel = count > 0 ? sum / count : gff[0];
+  const floor = referenceLevel * 10 ** (-USABLE_DROP_DB / 10);
+  for (let k = 1; k < lines; k++) {
+    if (gff[k] < floor) return { limitHz: frequencies[k], referenceLevel, reached: true };
+  }
+  return { limitHz: frequencies[lines - 1], referenceLevel, reached: false };
+}
+
+/** Samples at most kept per hit record for the quality plot (min/max pairs beyond). */
+const RECORD_POINTS = 800;
 
 /** "6 hits: 4 accepted, 1 double, 1 overload". */
 function summarise(hits: readonly Hit[]): string {
@@ -225,6 +280,7 @@ function analyseHits(
     accumulator.pushSegment(records);
   }
   const estimate = accumulator.finish();
+  const usable = usableBandwidth(estimate.frequencies, estimate.auto[0]);
   const parts = frfTableParts(estimate, {
     input: force,
     outputs,
@@ -233,6 +289,11 @@ function analyseHits(
   });
   const warnings = [
     ...(accepted.length === 1 ? [SINGLE_AVERAGE_WARNING] : []),
+    ...(usable.reached ? [] : [
+      `the force autospectrum stays within ${USABLE_DROP_DB} dB of its low-frequency level up to ${
+        estimate.frequencies[estimate.frequencies.length - 1]
+      } Hz: the hammer excites the whole band (or the force channel is noise)`,
+    ]),
     ...channelInfo.signalWarnings,
     ...hits.filter((h) => h.status !== "accepted").map((h) =>
       `hit ${h.hit} at ${
@@ -240,11 +301,24 @@ function analyseHits(
       } s left out: ${h.status} (${h.reason})`
     ),
   ];
+  // The force autospectrum beside the FRFs (without the 0 Hz line when they dropped it).
+  const forceColumn = {
+    name: "force_autospectrum",
+    unit: `${force.unit}^2/Hz`,
+    values: estimate.auto[0].subarray(
+      parts.frf.frequencies.length < estimate.frequencies.length ? 1 : 0,
+    ),
+  };
   const table: Table = {
-    columns: parts.columns,
+    columns: [...parts.columns, forceColumn],
     metadata: {
       analysis: "hammer",
       ...parts.metadata,
+      usable_bandwidth_hz: usable.limitHz,
+      usable_bandwidth_drop_db: USABLE_DROP_DB,
+      usable_bandwidth_rule:
+        `first line where the force autospectrum is ${USABLE_DROP_DB} dB below its mean over the lowest 2 % of the band (common practice: 10 to 20 dB)`,
+      usable_bandwidth_reached: usable.reached,
       rate_hz: rate,
       block: recordSamples,
       df_hz: rate / recordSamples,
@@ -274,5 +348,85 @@ function analyseHits(
     metadata: { analysis: "hammer hits", force: force.name, force_unit: force.unit, summary },
   };
   const frf: FrfData = { ...parts.frf, ...(tau !== undefined ? { expTau: tau } : {}) };
-  return { frf, table, hitLog, hits, warnings, summary };
+  const hitRecords = recordsOfHits(series, hits, {
+    rate,
+    pretriggerSamples,
+    recordSamples,
+    force,
+    response: outputs[0],
+  });
+  return { frf, table, hitLog, hits, warnings, summary, usableBandwidth: usable, hitRecords };
+}
+
+/**
+ * Every hit's record, force and first response as recorded (offset removed,
+ * no windows), for the report's plot of each hit: time from the trigger,
+ * then per hit `hit_N_force` and `hit_N_response`. Long records keep the
+ * minimum and maximum of each stretch, so a short pulse is not lost.
+ */
+function recordsOfHits(
+  series: readonly SampleSeries[],
+  hits: readonly Hit[],
+  context: {
+    rate: number;
+    pretriggerSamples: number;
+    recordSamples: number;
+    force: { name: string; unit: string };
+    response: { name: string; unit: string };
+  },
+): Table {
+  const { rate, pretriggerSamples, recordSamples } = context;
+  const stretches = Math.min(RECORD_POINTS / 2, recordSamples);
+  const per = recordSamples / stretches;
+  const points = recordSamples <= RECORD_POINTS ? recordSamples : 2 * stretches;
+  const time = new Float64Array(points);
+  for (let j = 0; j < points; j++) {
+    const sample = recordSamples <= RECORD_POINTS ? j : Math.floor(Math.floor(j / 2) * per);
+    time[j] = (sample - pretriggerSamples) / rate;
+  }
+  const record = new Float64Array(recordSamples);
+  const reduce = (channel: SampleSeries, start: number): Float64Array => {
+    const available = Math.min(recordSamples, channel.length - start);
+    record.fill(NaN);
+    channel.readInto(record.subarray(0, Math.max(0, available)), start);
+    const out = new Float64Array(points);
+    if (recordSamples <= RECORD_POINTS) {
+      out.set(record);
+      return out;
+    }
+    for (let s = 0; s < stretches; s++) {
+      let lo = Infinity, hi = -Infinity;
+      for (let i = Math.floor(s * per); i < Math.floor((s + 1) * per); i++) {
+        if (record[i] < lo) lo = record[i];
+        if (record[i] > hi) hi = record[i];
+      }
+      out[2 * s] = Number.isFinite(lo) ? lo : NaN;
+      out[2 * s + 1] = Number.isFinite(hi) ? hi : NaN;
+    }
+    return out;
+  };
+  const columns: TableColumn[] = [{ name: "time_s", unit: "s", values: time }];
+  for (const hit of hits) {
+    const start = Math.max(0, hit.sample - pretriggerSamples);
+    columns.push(
+      { name: `hit_${hit.hit}_force`, unit: context.force.unit, values: reduce(series[0], start) },
+      {
+        name: `hit_${hit.hit}_response`,
+        unit: context.response.unit,
+        values: reduce(series[1], start),
+      },
+    );
+  }
+  return {
+    columns,
+    metadata: {
+      analysis: "hammer_records",
+      force: context.force,
+      response: context.response,
+      hits: hits.map((h) => ({ hit: h.hit, status: h.status, reason: h.reason ?? null })),
+      reduction: recordSamples <= RECORD_POINTS
+        ? "every sample"
+        : `minimum and maximum of each of ${stretches} stretches of the record`,
+    },
+  };
 }

@@ -72,7 +72,21 @@ export const RESULT_METADATA = {
     order_lines: z.array(z.number()).optional(),
   }),
   frf,
-  hammer: frf,
+  hammer: frf.extend({
+    analysis: z.literal("hammer"),
+    usable_bandwidth_hz: z.number().nullable().optional(),
+    usable_bandwidth_drop_db: z.number().optional(),
+  }),
+  hammer_records: z.looseObject({
+    analysis: z.literal("hammer_records"),
+    force: channel,
+    response: channel,
+    hits: z.array(z.looseObject({
+      hit: z.number(),
+      status: z.string(),
+      reason: z.string().nullable(),
+    })),
+  }),
   paths: z.looseObject({
     ...common,
     analysis: z.literal("paths"),

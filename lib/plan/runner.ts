@@ -254,7 +254,10 @@ export function planSteps(
         if (rec.end !== undefined && !("end" in a.options)) argv.push("--end", String(rec.end));
       }
       const outputs: Record<string, string> = { out: join(outDir, `${a.id}.json`) };
-      if (a.command === "hammer") outputs["hits-out"] = join(outDir, `${a.id}_hits.csv`);
+      if (a.command === "hammer") {
+        outputs["hits-out"] = join(outDir, `${a.id}_hits.csv`);
+        outputs["records-out"] = join(outDir, `${a.id}_records.json`);
+      }
       if (a.command === "modal") {
         for (const part of ["shapes", "stability", "synth"]) {
           outputs[`${part}-out`] = join(outDir, `${a.id}_${part}.json`);

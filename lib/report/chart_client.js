@@ -23,6 +23,20 @@
     return String(Number(v.toPrecision(6)));
   };
   const tickLabels = (_u, values) => values.map((v) => (v === null ? "" : tick(v)));
+  // Log-axis ticks as the static pictures have them: decades over a wide range, 1-2-5 (and 3)
+  // within a few decades; uPlot's default gives a grid line at every 1 … 9.
+  const logSplits = (_u, _axis, min, max) => {
+    const decades = Math.log10(max / min);
+    const steps = decades > 5 ? [1] : decades > 2 ? [1, 2, 5] : [1, 2, 3, 5];
+    const ticks = [];
+    for (let e = Math.floor(Math.log10(min)); e <= Math.ceil(Math.log10(max)); e++) {
+      for (const m of steps) {
+        const v = m * 10 ** e;
+        if (v >= min * 0.999 && v <= max * 1.001) ticks.push(v);
+      }
+    }
+    return ticks;
+  };
   const chartWidth = (figure) => Math.max(320, Math.min(figure.clientWidth - 16, 1600));
 
   // The data a view can draw: on a log axis only positive values exist.
@@ -58,12 +72,14 @@
         value: (_u, v) => withUnit(v, spec.y.unit),
       });
     });
-    const axis = (label, size) => ({
+    const axis = (label, size, log) => ({
       label,
       values: tickLabels,
       size,
       stroke: "#3d4b59",
-      grid: { stroke: "#e3e7ec" },
+      grid: { stroke: "#e3e7ec", width: 1 },
+      ticks: { stroke: "#c9d0d8", width: 1 },
+      ...(log ? { splits: logSplits } : {}),
     });
     const u = new uPlot(
       {
@@ -74,7 +90,7 @@
           x: { time: false, distr: state.xLog ? 3 : 1, log: 10, auto: false, range: asked },
           y: { distr: state.yLog ? 3 : 1, log: 10, auto: false, range: asked },
         },
-        axes: [axis(spec.x.label, 50), axis(spec.y.label, 72)],
+        axes: [axis(spec.x.label, 50, state.xLog), axis(spec.y.label, 72, state.yLog)],
         series,
         cursor: { drag: { x: true, y: true, uni: 24 } },
         legend: { live: true },

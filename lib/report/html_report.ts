@@ -38,6 +38,8 @@ interface Figure {
   readonly svg: string;
   /** For a line plot: its data for the interactive chart. */
   readonly chart?: ChartSpec;
+  /** One of a set of small pictures, laid out side by side. */
+  readonly small?: boolean;
 }
 
 /** A line plot's static SVG and the data of its interactive chart. */
@@ -91,9 +93,13 @@ function spectrumFigures(id: string, title: string, r: ResultJson): Figure[] {
   }];
 }
 
-function frfFigures(id: string, title: string, r: ResultJson): Figure[] {
+function frfFigures(id: string, title: string, r: ResultJson, limitHz?: number): Figure[] {
   const m = resultMetadata(r, "frf");
-  const f = numbers(r.columns[0]);
+  const all = numbers(r.columns[0]);
+  // A hammer FRF is drawn up to the hammer's usable bandwidth: beyond it the force is too weak.
+  let lines = all.length;
+  if (limitHz !== undefined) { while (lines > 2 && all[lines - 1] > limitHz) lines--; }
+  const f = all.subarray(0, lines);
   // Each response's columns by their exact names, from the responses the metadata lists.
   const part = (suffix: string) =>
     m.responses.flatMap((response) => {
@@ -103,12 +109,15 @@ function frfFigures(id: string, title: string, r: ResultJson): Figure[] {
   const domain: [number, number] = [Math.max(f[0] || f[1], 1), f[f.length - 1]];
   const mags = part("mag");
   const plotOf = (parts: ReturnType<typeof part>) =>
-    parts.map(({ name, column }) => ({ name, x: f, y: column.values }));
+    parts.map(({ name, column }) => ({ name, x: f, y: column.values.subarray(0, lines) }));
+  const limited = limitHz !== undefined && lines < all.length
+    ? `, shown up to the usable bandwidth ${formatNumber(limitHz, 4)} Hz`
+    : "";
   return [
     {
       name: `${id}_magnitude`,
       ...lineFigure({
-        title: `${title}: |H| (${m.estimator}, ${m.averages} averages)`,
+        title: `${title}: |H| (${m.estimator}, ${m.averages} averages${limited})`,
         x: { label: "Frequency [Hz]", log: true, domain },
         y: { label: withUnit("|H|", mags[0]?.column.unit ?? ""), log: true, power: false },
         series: plotOf(mags),
@@ -135,6 +144,99 @@ function frfFigures(id: string, title: string, r: ResultJson): Figure[] {
       }),
     },
   ];
+}
+
+/** Hits drawn one by one at most (the rest are counted in the note). */
+const HITS_DRAWN = 24;
+
+/**
+ * A hammer test: the FRFs up to the usable bandwidth, the force
+ * autospectrum with that limit marked, and each hit's force and first
+ * response against time with its status, so a rejected hit is seen.
+ */
+async function hammerFigures(
+  id: string,
+  title: string,
+  r: ResultJson,
+  outDir: string,
+): Promise<Figure[]> {
+  const m = resultMetadata(r, "hammer");
+  const limit = m.usable_bandwidth_hz ?? undefined;
+  const figures = frfFigures(id, title, r, limit);
+  const f = numbers(r.columns[0]);
+  const force = numericColumn(r, "force_autospectrum");
+  if (force !== undefined) {
+    const positive = force.values.filter((v) => v > 0);
+    const lo = positive.length > 0 ? positive.reduce((a, b) => Math.min(a, b)) : 1;
+    const hi = positive.length > 0 ? positive.reduce((a, b) => Math.max(a, b)) : 1;
+    const series: Series[] = [{ name: "force autospectrum", x: f, y: force.values }];
+    if (limit !== undefined) {
+      series.push({
+        name: `usable bandwidth ${formatNumber(limit, 4)} Hz (${
+          m.usable_bandwidth_drop_db ?? 20
+        } dB down)`,
+        // Two points a hair apart: a vertical line that the interactive chart's shared x axis keeps.
+        x: [limit, limit * (1 + 1e-5)],
+        y: [lo, hi],
+        dashed: true,
+      });
+    }
+    figures.push({
+      name: `${id}_force`,
+      ...lineFigure({
+        title: `${title}: force autospectrum of the accepted hits`,
+        x: {
+          label: "Frequency [Hz]",
+          log: true,
+          domain: [Math.max(f[0] || f[1], 1), f[f.length - 1]],
+        },
+        y: { label: withUnit("Gff", force.unit), log: true },
+        series,
+        height: 280,
+      }),
+    });
+  }
+  const records = await readJson(join(outDir, `${id}_records.json`));
+  if (!(records instanceof QuiverError)) {
+    const meta = resultMetadata(records, "hammer_records");
+    const t = numbers(records.columns[0]);
+    const peakNormalised = (values: Float64Array) => {
+      let peak = 0;
+      for (const v of values) if (Math.abs(v) > peak) peak = Math.abs(v);
+      return peak > 0 ? values.map((v) => v / peak) : values;
+    };
+    for (const hit of meta.hits.slice(0, HITS_DRAWN)) {
+      const forceColumn = numericColumn(records, `hit_${hit.hit}_force`);
+      const response = numericColumn(records, `hit_${hit.hit}_response`);
+      if (forceColumn === undefined || response === undefined) continue;
+      figures.push({
+        name: `${id}_hit_${hit.hit}`,
+        small: true,
+        ...lineFigure({
+          title: `Hit ${hit.hit}: ${hit.status}${
+            hit.reason !== null ? ` (${hit.reason})` : ""
+          }; force and response, each to its own peak`,
+          x: { label: "Time from trigger [s]" },
+          y: { label: "Normalised [-]", domain: [-1.1, 1.1] },
+          series: [
+            {
+              name: `${meta.force.name} [${meta.force.unit}]`,
+              x: t,
+              y: peakNormalised(forceColumn.values),
+            },
+            {
+              name: `${meta.response.name} [${meta.response.unit}]`,
+              x: t,
+              y: peakNormalised(response.values),
+            },
+          ],
+          width: 640,
+          height: 220,
+        }),
+      });
+    }
+  }
+  return figures;
 }
 
 /**
@@ -663,10 +765,11 @@ function targetTable(targets: readonly TargetOutcome[]): string {
  */
 function figureHtml(f: Figure): string {
   const id = `figure-${escapeXml(f.name)}`;
-  if (f.chart === undefined) return `<figure id="${id}">${f.svg}</figure>`;
+  const small = f.small === true ? ' class="small"' : "";
+  if (f.chart === undefined) return `<figure id="${id}"${small}>${f.svg}</figure>`;
   // JSON inside a script element: "<" escaped so that no "</script" can end it early.
   const json = JSON.stringify(f.chart).replace(/</g, "\\u003c");
-  return `<figure id="${id}" data-chart=""><div class="static">${f.svg}</div><script type="application/json" class="chart-data">${json}</script></figure>`;
+  return `<figure id="${id}"${small} data-chart=""><div class="static">${f.svg}</div><script type="application/json" class="chart-data">${json}</script></figure>`;
 }
 
 /** A file of the vendored chart library (lib/report/vendor/uplot/). */
@@ -698,6 +801,7 @@ h3 { font-size: 15px; margin-bottom: 4px; }
 figure { margin: 12px 0; background: #ffffff; border: 1px solid #d9d4c7; padding: 6px; display: block; }
 figure svg { width: 100%; max-width: 1400px; height: auto; display: block; }
 figure.live > .static { display: none; }
+figure.small { display: inline-block; vertical-align: top; width: calc(50% - 20px); min-width: 320px; margin-right: 8px; }
 .chart-tools { font-size: 12px; margin: 0 0 4px 0; display: flex; flex-wrap: wrap; gap: 6px; align-items: center; }
 .chart-tools button { font: inherit; background: #f4f1ea; border: 1px solid #b9b2a2; border-radius: 3px; padding: 2px 8px; cursor: pointer; }
 .chart-hint { color: #6b7785; }
@@ -785,6 +889,14 @@ export async function writeReport(outDir: string, manifest: Manifest, plan: Plan
             break;
           }
           const hits = resultMetadata(r, "frf").hits_summary;
+          if (step.command === "hammer") {
+            sections.push({
+              heading: title,
+              note: hits === undefined ? note : `${note}; ${hits}`,
+              figures: await hammerFigures(step.id, title, r, outDir),
+            });
+            break;
+          }
           sections.push({
             heading: title,
             note: hits === undefined ? note : `${note}; ${hits}`,

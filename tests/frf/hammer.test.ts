@@ -159,3 +159,59 @@ describe("hammer test", () => {
     expect(() => findHits(new Float64Array(4096), { pretriggerSamples: 10 })).toThrow(/flat/);
   });
 });
+
+describe("usable bandwidth of the hammer", () => {
+  test("a half-sine impact: the force autospectrum is 20 dB down where the analytic pulse spectrum says", async () => {
+    // Half-sine pulse of duration T: |F(f)| ∝ |cos(πfT)/(1 − (2fT)²)| (Fourier transform of
+    // a half sine, textbook result; e.g. Ewins, "Modal Testing", on impactor pulses).
+    const rate = 4096, width = 12, T = width / rate;
+    const force = new Float64Array(8 * rate);
+    for (const at of [0.5, 1.5, 2.5, 3.5, 4.5, 5.5, 6.5]) {
+      for (let i = 0; i < width; i++) {
+        force[Math.round(at * rate) + i] = 200 * Math.sin((Math.PI * (i + 0.5)) / width);
+      }
+    }
+    const r = await hammerFrf({
+      rate,
+      startTime: 0,
+      channels: [
+        { name: "hammer", unit: "N", data: force },
+        { name: "tip", unit: "m/s^2", data: force.map((v) => 0.01 * v) },
+      ],
+    }, { force: "hammer", outputs: ["tip"] });
+    const power = (f: number) => {
+      const x = f * T;
+      const a = Math.abs(1 - 4 * x * x) < 1e-12
+        ? Math.PI / 4
+        : Math.cos(Math.PI * x) / (1 - 4 * x * x);
+      return a * a;
+    };
+    // The rule, applied to the analytic spectrum here: mean over (0, 2 % of the band], then
+    // the first frequency 20 dB below it, by bisection between a line below and one above.
+    const df = r.table.metadata.df_hz as number;
+    const lines = Math.floor(rate / 2 / df) + 1;
+    const low = Math.round(0.02 * lines);
+    let mean = 0;
+    for (let k = 1; k <= low; k++) mean += power(k * df) / low;
+    let a = 0, b = 1.5 / T;
+    for (let i = 0; i < 60; i++) {
+      const m = (a + b) / 2;
+      if (power(m) > mean / 100) a = m;
+      else b = m;
+    }
+    const limit = r.usableBandwidth.limitHz;
+    expect(r.usableBandwidth.reached).toBe(true);
+    // The first line at or above the analytic crossing (sampling of a 12-sample pulse moves it
+    // by well under a line at these frequencies).
+    expect(Math.abs(limit - b)).toBeLessThanOrEqual(2 * df);
+    expect(r.table.metadata.usable_bandwidth_hz).toBe(limit);
+    expect(r.table.columns.some((c) => c.name === "force_autospectrum")).toBe(true);
+    // The hit records: one force and one response column per hit, the pulse's peak kept.
+    const peak = r.hitRecords.columns.find((c) => c.name === "hit_1_force")!.values;
+    // The sampled pulse peaks at 200·sin(π·5.5/12) (samples at i + 0.5).
+    expect(peak.reduce((m, v) => Math.max(m, v), 0)).toBeCloseTo(
+      200 * Math.sin((Math.PI * 5.5) / 12),
+      9,
+    );
+  });
+});
