@@ -35,6 +35,24 @@ export interface TargetResult {
   readonly limit: number;
   /** Frequency of the worst case (curves). */
   readonly atHz?: number;
+  /** Nominal band frequency of the worst case, for a band result (curves). */
+  readonly atNominalHz?: number;
+  /** Every line or band that fails, in order (curves). */
+  readonly failing?: readonly CurveFailure[];
+}
+
+/** One line or band of a curve outside its limit. */
+export interface CurveFailure {
+  /** Frequency, Hz (band centre for a band result). */
+  readonly atHz: number;
+  /** Nominal band frequency, for a band result. */
+  readonly nominalHz?: number;
+  /** The result's level there. */
+  readonly value: number;
+  /** The limit there. */
+  readonly limit: number;
+  /** Margin, negative. */
+  readonly margin: number;
 }
 
 /**
@@ -105,7 +123,7 @@ export function limitAt(
  * import { checkCurve } from "./targets.ts";
  * const r = checkCurve({ id: "cabin", description: "cabin thirds", frequencies: new Float64Array([100, 200]),
  *   levels: new Float64Array([58, 61]), kind: "max", points: [[50, 62], [400, 62]], unit: "dB" });
- * if (!r.pass || r.atHz !== 200 || Math.abs(r.margin - 1) > 1e-12) throw new Error();
+ * if (!r.pass || r.atHz !== 200 || Math.abs(r.margin - 1) > 1e-12 || r.failing?.length !== 0) throw new Error();
  * ```
  */
 export function checkCurve(target: {
@@ -123,8 +141,11 @@ export function checkCurve(target: {
   points: readonly (readonly [number, number])[];
   /** Unit of the levels. */
   unit: string;
+  /** Nominal band frequencies on the same lines, for a band result. Default: none. */
+  nominal?: ArrayLike<number>;
 }): TargetResult {
-  const { id, description, frequencies, levels, kind, points, unit } = target;
+  const { id, description, frequencies, levels, kind, points, unit, nominal } = target;
+  const failing: CurveFailure[] = [];
   for (let i = 1; i < points.length; i++) {
     if (!(points[i][0] > points[i - 1][0]) || !(points[i - 1][0] > 0)) {
       throw new RangeError(`the limit curve of "${id}" must have positive, increasing frequencies`);
@@ -140,6 +161,8 @@ export function checkCurve(target: {
       );
     }
     const margin = kind === "min" ? levels[k] - limit : limit - levels[k];
+    const band = nominal !== undefined ? { nominalHz: nominal[k] } : {};
+    if (margin < 0) failing.push({ atHz: f, ...band, value: levels[k], limit, margin });
     if (worst === undefined || margin < worst.margin) {
       worst = {
         id,
@@ -150,11 +173,12 @@ export function checkCurve(target: {
         value: levels[k],
         limit,
         atHz: f,
+        ...(nominal !== undefined ? { atNominalHz: nominal[k] } : {}),
       };
     }
   });
   if (worst === undefined) {
     throw new RangeError(`no line of the result falls inside the limit curve of "${id}"`);
   }
-  return worst;
+  return { ...(worst as TargetResult), failing };
 }

@@ -201,6 +201,8 @@ export const RESULT_METADATA = {
       level_difference_db: finiteOrNull,
     })),
     grid: z.looseObject({ from: z.enum(["test", "simulation"]), lines: z.number() }),
+    bands: z.array(z.looseObject({ nominal_hz: z.number(), difference_db: finiteOrNull }))
+      .optional(),
     test: z.string().optional(),
     simulation: z.string().optional(),
   }),

@@ -123,6 +123,10 @@ export async function evaluateTargets(
             kind: t.limit,
             points: t.points,
             unit: t.unit || column.unit,
+            // A band result names its bands by their nominal frequencies.
+            ...(numericColumn(result, "nominal_hz") !== undefined
+              ? { nominal: numericColumn(result, "nominal_hz")!.values }
+              : {}),
           }),
           status: "checked",
         });

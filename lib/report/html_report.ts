@@ -17,6 +17,7 @@ import type { ColumnValues, TableColumn } from "../io/table.ts";
 import type { Manifest } from "../plan/runner.ts";
 import type { Plan } from "../plan/schema.ts";
 import type { TargetOutcome } from "../plan/target_eval.ts";
+import { limitAt } from "../compare/targets.ts";
 import {
   barPlot,
   type ChartSpec,
@@ -409,18 +410,46 @@ function modeTable(r: ResultJson): string {
   return `<table><thead><tr><th>Channel</th><th>Mode</th><th>Frequency [Hz]</th><th>Damping [%]</th><th>Half-power damping [%]</th><th>Q</th><th>Primary</th><th>Flags</th></tr></thead><tbody>${rows}</tbody></table>`;
 }
 
-function bandFigures(id: string, title: string, r: ResultJson): Figure[] {
+/** A limit-curve target of the plan with its outcome, for drawing on its analysis's chart. */
+interface CurveLimit {
+  readonly id: string;
+  readonly channel: string;
+  readonly points: readonly (readonly [number, number])[];
+  readonly outcome?: TargetOutcome;
+}
+
+function bandFigures(
+  id: string,
+  title: string,
+  r: ResultJson,
+  limits: readonly CurveLimit[] = [],
+): Figure[] {
   const m = resultMetadata(r, "bands");
   const nominal = r.columns.find((c) => c.name === "nominal_hz")!;
+  const centre = numbers(r.columns[0]);
   const channels = r.columns.slice(4);
+  // Each limit curve at every band's centre (null outside its range), and the bands that fail.
+  const drawn = limits.filter((l) => channels.some((c) => c.name === l.channel)).map((l) => {
+    const failed = new Set(
+      l.outcome?.status === "checked" ? (l.outcome.failing ?? []).map((x) => x.atHz) : [],
+    );
+    return {
+      name: `limit ${l.id}`,
+      values: Array.from(centre, (f) => limitAt(l.points, f) ?? null),
+      failing: Array.from(centre, (f) => failed.has(f)),
+    };
+  });
   return [{
     name: `${id}_bands`,
     svg: barPlot({
-      title: `${title}: 1/${m.fraction}-octave bands, ${m.weighting}-weighted`,
-      labels: Array.from(numbers(nominal), String),
+      title: `${title}: 1/${m.fraction}-octave bands, ${m.weighting}-weighted${
+        drawn.length > 0 ? "; bands over the limit marked ▲" : ""
+      }`,
+      labels: Array.from(numbers(nominal), (v) => formatNumber(v, 4)),
       groups: channels.map((c) => ({ name: c.name, values: numbers(c) })),
       xLabel: "Band nominal frequency [Hz]",
       yLabel: withUnit("Level", channels[0]?.unit ?? ""),
+      limits: drawn,
     }),
   }];
 }
@@ -700,7 +729,7 @@ function comparisonFigures(
   const f = numbers(r.columns[0]);
   const m = resultMetadata(r, "compare");
 
-  const figures = [
+  const figures: Figure[] = [
     {
       name: `${id}_overlay`,
       ...lineFigure({
@@ -724,6 +753,24 @@ function comparisonFigures(
       }),
     },
   ];
+  const bands = m.bands ?? [];
+  if (bands.length > 0) {
+    figures.push({
+      name: `${id}_bands`,
+      svg: barPlot({
+        title: `${title}: simulation − test per band`,
+        labels: bands.map((b) => formatNumber(b.nominal_hz, 4)),
+        groups: [{
+          name: "simulation − test",
+          values: new Float64Array(bands.map((b) => b.difference_db ?? NaN)),
+        }],
+        xLabel: "Band nominal frequency [Hz]",
+        yLabel: "Difference [dB]",
+        baseline: 0,
+        height: 280,
+      }),
+    });
+  }
   const rows = m.peaks.map((p) =>
     `<tr><td>${formatFixed(p.test_hz, 2)}</td><td>${formatFixed(p.simulation_hz, 2)}</td><td>${
       formatFixed(p.shift_percent, 2)
@@ -747,14 +794,31 @@ function targetTable(targets: readonly TargetOutcome[]): string {
         escapeXml(t.reason)
       }</td><td class="verdict">—</td></tr>`;
     }
-    const fmt = (v: number) => formatNumber(v);
+    // Four significant digits: a level to 0.1 dB, a frequency to 0.1 Hz, a ratio to 0.001.
+    const fmt = (v: number) => formatNumber(v, 4);
+    const unit = t.unit !== "" ? ` ${escapeXml(t.unit)}` : "";
+    const where = t.atNominalHz !== undefined
+      ? ` in the ${fmt(t.atNominalHz)} Hz band`
+      : t.atHz !== undefined
+      ? ` at ${fmt(t.atHz)} Hz`
+      : "";
+    const failing = t.failing ?? [];
+    const list = failing.length > 0
+      ? `<div class="failing">${failing.length} ${
+        t.atNominalHz !== undefined ? "band(s)" : "line(s)"
+      } over the limit: ${
+        failing.slice(0, 40).map((x) =>
+          `${x.nominalHz !== undefined ? fmt(x.nominalHz) : fmt(x.atHz)} Hz (${
+            fmt(x.margin)
+          }${unit})`
+        ).join(", ")
+      }${failing.length > 40 ? ", …" : ""}</div>`
+      : "";
     return `<tr class="${t.pass ? "pass" : "fail"}"><td>${escapeXml(t.id)}</td><td>${
       escapeXml(t.description)
-    }</td><td>${fmt(t.value)} ${escapeXml(t.unit)}${
-      t.atHz !== undefined ? ` at ${fmt(t.atHz)}` : ""
-    }</td><td>${fmt(t.limit)} ${escapeXml(t.unit)}</td><td>${fmt(t.margin)} ${
-      escapeXml(t.unit)
-    }</td><td class="verdict">${t.pass ? "PASS" : "FAIL"}</td></tr>`;
+    }</td><td>${fmt(t.value)}${unit}${where}${list}</td><td>${fmt(t.limit)}${unit}</td><td>${
+      fmt(t.margin)
+    }${unit}</td><td class="verdict">${t.pass ? "PASS" : "FAIL"}</td></tr>`;
   }).join("\n");
   return `<table class="targets"><thead><tr><th>Target</th><th>Requirement</th><th>Result</th><th>Limit</th><th>Margin</th><th>Verdict</th></tr></thead><tbody>${rows}</tbody></table>`;
 }
@@ -815,6 +879,7 @@ tr.pass td.verdict { color: #1f6f3f; font-weight: 700; }
 tr.fail td.verdict { color: #b02e1f; font-weight: 700; }
 tr.unchecked td { color: #6b7785; }
 .note { font-size: 12px; color: #5b6b7b; }
+td .failing { font-size: 12px; color: #b02e1f; margin-top: 2px; }
 .caveat { border-left: 4px solid #edae49; background: #fff8e6; padding: 8px 12px; font-size: 13px; }
 @media print { body { background: #ffffff; } header { background: #ffffff; color: #000000; } figure { break-inside: avoid; } figure.live > .static { display: block; } .interactive, .chart-tools { display: none; } }
 @media (max-width: 760px) { main { padding: 8px 10px 24px 10px; } header { padding: 12px 10px; } table { font-size: 11px; } }
@@ -849,6 +914,13 @@ export async function writeReport(outDir: string, manifest: Manifest, plan: Plan
   const titles = new Map<string, string>();
   for (const a of plan.analyses) titles.set(a.id, a.title ?? a.id);
   for (const c of plan.comparisons) titles.set(c.id, c.title ?? c.id);
+  const outcomes = new Map((manifest.targets as TargetOutcome[]).map((t) => [t.id, t]));
+  const limitsOf = (analysis: string): CurveLimit[] =>
+    plan.targets.flatMap((t) =>
+      t.type === "limit_curve" && t.of.analysis === analysis
+        ? [{ id: t.id, channel: t.of.channel, points: t.points, outcome: outcomes.get(t.id) }]
+        : []
+    );
   for (const step of manifest.steps) {
     const title = titles.get(step.id) ?? step.id;
     if (step.status !== "ok") {
@@ -932,7 +1004,7 @@ export async function writeReport(outDir: string, manifest: Manifest, plan: Plan
           sections.push({
             heading: title,
             note: `${note}; overall ${overall}`,
-            figures: bandFigures(step.id, title, r),
+            figures: bandFigures(step.id, title, r, limitsOf(step.id)),
           });
           break;
         }

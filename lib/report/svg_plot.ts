@@ -256,18 +256,18 @@ function logTicks([lo, hi]: [number, number]): number[] {
 }
 
 function legend(
-  names: readonly { name: string; dashed?: boolean }[],
+  names: readonly { name: string; dashed?: boolean; colour?: string }[],
   x: number,
   y: number,
 ): string {
   // Entries stacked in a column that starts at x, outside the frame; long names are
   // shortened on the picture and given whole in a tooltip.
   return names.map((s, i) => {
-    const shown = s.name.length > 22 ? `${s.name.slice(0, 21)}…` : s.name;
+    const shown = s.name.length > 24 ? `${s.name.slice(0, 23)}…` : s.name;
     return `<g class="legend-entry" transform="translate(${x} ${y + 6 + 14 * i})"><title>${
       escapeXml(s.name)
     }</title><line x1="0" x2="18" y1="0" y2="0" stroke="${
-      PALETTE[i % PALETTE.length]
+      s.colour ?? PALETTE[i % PALETTE.length]
     }" stroke-width="2"${
       s.dashed === true ? ' stroke-dasharray="5 3"' : ""
     }/><text x="24" y="4" fill="#22313f">${escapeXml(shown)}</text></g>`;
@@ -470,6 +470,21 @@ export interface BarPlot {
   readonly yLabel: string;
   readonly width?: number;
   readonly height?: number;
+  /**
+   * Bars start here (e.g. 0 for differences, which may be negative). Default:
+   * the bottom of the axis, 10 below the lowest value rounded down to tens.
+   */
+  readonly baseline?: number;
+  /**
+   * Limit curves over the bars: a value per label (null outside the curve's
+   * range), drawn as a dashed step line; the bars that break it are outlined
+   * and flagged. Default none.
+   */
+  readonly limits?: readonly {
+    readonly name: string;
+    readonly values: readonly (number | null)[];
+    readonly failing: readonly boolean[];
+  }[];
 }
 
 /**
@@ -488,11 +503,18 @@ export function barPlot(plot: BarPlot): string {
   const height = (plot.height ?? 400) + extra;
   const top = MARGIN.top + extra;
   const right = width - MARGIN.right - LEGEND_WIDTH;
-  const values = plot.groups.flatMap((g) => Array.from(g.values)).filter(Number.isFinite);
+  const limitValues = (plot.limits ?? []).flatMap((l) => l.values.filter((v) => v !== null));
+  const values = [...plot.groups.flatMap((g) => Array.from(g.values)), ...limitValues]
+    .filter(Number.isFinite) as number[];
   const lo = minOf(values);
   const hi = maxOf(values);
-  const y = scaleLinear().domain([Math.floor((lo - 10) / 10) * 10, Math.ceil((hi + 5) / 10) * 10])
-    .range([height - MARGIN.bottom, top]);
+  const baseline = plot.baseline;
+  const domain: [number, number] = baseline === undefined
+    ? [Math.floor((lo - 10) / 10) * 10, Math.ceil((hi + 5) / 10) * 10]
+    : [Math.min(baseline, lo), Math.max(baseline, hi)];
+  const y = scaleLinear().domain(domain).range([height - MARGIN.bottom, top]);
+  if (baseline !== undefined) y.nice();
+  const base = baseline === undefined ? height - MARGIN.bottom : y(baseline);
   const x = scaleLinear().domain([0, plot.labels.length]).range([MARGIN.left, right]);
   const slot = x(1) - x(0);
   const barWidth = (0.8 * slot) / plot.groups.length;
@@ -519,15 +541,38 @@ export function barPlot(plot: BarPlot): string {
     plot.groups.forEach((g, j) => {
       const v = g.values[i];
       if (!Number.isFinite(v)) return;
-      const barTop = y(v);
+      const end = y(v);
+      const fails = (plot.limits ?? []).some((l) => l.failing[i] === true);
       parts.push(
-        `<rect class="bar" x="${(x(i) + 0.1 * slot + j * barWidth).toFixed(1)}" y="${
-          barTop.toFixed(1)
-        }" width="${barWidth.toFixed(1)}" height="${
-          (height - MARGIN.bottom - barTop).toFixed(1)
-        }" fill="${PALETTE[j % PALETTE.length]}"/>`,
+        `<rect class="bar${fails ? " failing" : ""}" x="${
+          (x(i) + 0.1 * slot + j * barWidth).toFixed(1)
+        }" y="${Math.min(end, base).toFixed(1)}" width="${barWidth.toFixed(1)}" height="${
+          Math.abs(base - end).toFixed(1)
+        }" fill="${PALETTE[j % PALETTE.length]}"${
+          fails ? ' stroke="#b02e1f" stroke-width="2"' : ""
+        }/>`,
       );
     });
+  });
+  // Limit curves as dashed steps across each band's slot, failing bands flagged above.
+  (plot.limits ?? []).forEach((limit) => {
+    let d = "";
+    limit.values.forEach((v, i) => {
+      if (v === null || !Number.isFinite(v)) return;
+      d += `M${x(i).toFixed(1)},${y(v).toFixed(1)}L${x(i + 1).toFixed(1)},${y(v).toFixed(1)}`;
+      if (limit.failing[i]) {
+        parts.push(
+          `<text class="failing-mark" x="${x(i + 0.5).toFixed(1)}" y="${
+            (y(v) - 4).toFixed(1)
+          }" text-anchor="middle" fill="#b02e1f" font-weight="700">▲</text>`,
+        );
+      }
+    });
+    parts.push(
+      `<path class="limit" d="${d}" fill="none" stroke="#22313f" stroke-width="1.6" stroke-dasharray="6 3"><title>${
+        escapeXml(limit.name)
+      }</title></path>`,
+    );
   });
   parts.push(
     plotFrame({
@@ -539,7 +584,11 @@ export function barPlot(plot: BarPlot): string {
       yLabel: plot.yLabel,
     }),
   );
-  return frame(width, height, plot.title, parts.join("\n") + legend(plot.groups, right + 12, top));
+  const entries = [
+    ...plot.groups,
+    ...(plot.limits ?? []).map((l) => ({ name: l.name, dashed: true, colour: "#22313f" })),
+  ];
+  return frame(width, height, plot.title, parts.join("\n") + legend(entries, right + 12, top));
 }
 
 /**

@@ -151,7 +151,9 @@ describe("quiver hammer", () => {
       `${dir}/hits.csv`,
     ]);
     expect(r.code).toBe(0);
-    expect(r.stderr).toMatch(/^6 hits: 4 accepted, 1 double, 1 overload; usable bandwidth [0-9.]+ Hz/m);
+    expect(r.stderr).toMatch(
+      /^6 hits: 4 accepted, 1 double, 1 overload; usable bandwidth [0-9.]+ Hz/m,
+    );
     const hits = (await readFile(`${dir}/hits.csv`, "utf8")).trim().split("\n");
     expect(hits[0]).toBe("hit,time_s,peak,status");
     expect(hits.slice(1).map((l) => l.split(",")[3])).toEqual([

@@ -106,4 +106,26 @@ describe("targets", () => {
     expect(r.atHz).toBeCloseTo(316.2278, 4);
     expect(r.margin).toBeCloseTo(-1, 4);
   });
+
+  test("every failing band is listed with its margin and nominal label, not only the worst", () => {
+    // Bands at 100, 125, 160, 200 Hz (centres of 1/3 octaves, IEC 61260-1 nominal labels), a flat
+    // 60 dB limit: levels 61, 59, 63, 60.5 fail at 100 (−1), 160 (−3) and 200 (−0.5).
+    const centres = new Float64Array([100, 125.8925, 158.4893, 199.5262]);
+    const r = checkCurve({
+      id: "c",
+      description: "cabin thirds",
+      frequencies: centres,
+      levels: new Float64Array([61, 59, 63, 60.5]),
+      kind: "max",
+      points: [[50, 60], [400, 60]],
+      unit: "dB(A)",
+      nominal: [100, 125, 160, 200],
+    });
+    expect(r.atNominalHz).toBe(160);
+    expect(r.failing!.map((x) => [x.nominalHz, x.margin])).toEqual([
+      [100, -1],
+      [160, -3],
+      [200, -0.5],
+    ]);
+  });
 });

@@ -104,6 +104,36 @@ describe("the HTML report in a browser", () => {
           .toBeGreaterThan(20);
         // Each link-arm mode drawn on the geometry: 4 lines between its 5 points, deformed.
         expect(await page.locator("#figure-link_modes_shape_2 line.deformed").count()).toBe(4);
+        // The cabin thirds' limit curve is drawn on their bar chart, the bands over it outlined
+        // and flagged, and the targets table lists every one of them with its margin.
+        const manifest = JSON.parse(
+          await readFile(report.replace(/report\.html$/, "manifest.json"), "utf8"),
+        );
+        const thirds = manifest.targets.find((t: { id: string }) => t.id === "cabin_thirds");
+        expect(thirds.failing.length).toBeGreaterThan(0);
+        expect(await page.locator("#figure-cabin_bands_bands path.limit").count()).toBe(1);
+        expect(await page.locator("#figure-cabin_bands_bands rect.bar.failing").count()).toBe(
+          thirds.failing.length,
+        );
+        const row = await page.locator("table.targets tr.fail").first().textContent();
+        expect(row).toContain(`${thirds.failing.length} band(s) over the limit`);
+        expect(row).toContain("in the 2500 Hz band");
+        // The comparison's band differences as bars, one per band of its summary.
+        const compared = JSON.parse(
+          await readFile(report.replace(/report\.html$/, "bracket_vs_sim.json"), "utf8"),
+        );
+        expect(await page.locator("#figure-bracket_vs_sim_bands rect.bar").count()).toBe(
+          compared.metadata.bands.length,
+        );
+        // The hammer: the force spectrum with its usable bandwidth, and every hit drawn with
+        // its status (the demo's one double hit included).
+        expect(await page.locator("#figure-bracket_frf_force").count()).toBe(1);
+        const hits = await page.locator("figure[id^='figure-bracket_frf_hit_']").count();
+        expect(hits).toBe(6);
+        expect(await page.locator("#figure-bracket_frf_hit_4 svg").first().textContent())
+          .toContain("double");
+        // References as an engineer writes them.
+        expect(await page.locator("body").innerText()).not.toContain("0.00002");
         // The map's cells are one raster image; the browser decodes it to its full size.
         const image = page.locator("#figure-runup_spectrogram_cabin_mic_spectrogram svg.map image");
         expect(await image.count()).toBe(1);
