@@ -181,4 +181,92 @@
       );
     });
   });
+
+  // Colour maps stay pictures; a readout under each names the cell under the pointer: its x and
+  // y, and its value read back from the pixel's colour (the ramp is monotone in lightness, so a
+  // colour names one value; 8-bit colour makes it approximate, hence "≈").
+  const rampSamples = (stops) => {
+    const rgb = stops.map((h) => [1, 3, 5].map((k) => parseInt(h.slice(k, k + 2), 16)));
+    const samples = [];
+    for (let n = 0; n <= 1000; n++) {
+      const t = (n / 1000) * (rgb.length - 1);
+      const i = Math.min(rgb.length - 2, Math.floor(t));
+      const f = t - i;
+      samples.push([0, 1, 2].map((k) => Math.round(rgb[i][k] + f * (rgb[i + 1][k] - rgb[i][k]))));
+    }
+    return samples;
+  };
+  document.querySelectorAll("figure svg.map[data-x]").forEach((map) => {
+    const figure = map.closest("figure");
+    const image = map.querySelector("image");
+    if (figure === null || image === null) return;
+    const [x0, x1, columns] = map.dataset.x.split(",").map(Number);
+    const [y0, y1, rows] = map.dataset.y.split(",").map(Number);
+    const [z0, z1] = map.dataset.z.split(",").map(Number);
+    const [xLabel, yLabel, zLabel] = JSON.parse(map.dataset.labels);
+    const samples = rampSamples(map.dataset.ramp.split(","));
+    const readout = document.createElement("div");
+    readout.className = "map-readout";
+    readout.textContent = "Move the pointer over the map to read a cell";
+    figure.appendChild(readout);
+    const picture = new Image();
+    const canvas = document.createElement("canvas");
+    let pixels = null;
+    picture.onload = () => {
+      canvas.width = picture.naturalWidth;
+      canvas.height = picture.naturalHeight;
+      const context = canvas.getContext("2d");
+      context.drawImage(picture, 0, 0);
+      pixels = context.getImageData(0, 0, canvas.width, canvas.height).data;
+    };
+    picture.src = image.getAttribute("href");
+    const name = (label) => label.replace(/ \[.*\]$/, "");
+    const unit = (label) => (/\[([^\]]*)\]\s*$/.exec(label) || [])[1] || "";
+    // The whole picture listens: cell labels and order lines drawn over the map sit on top of it.
+    const host = map.ownerSVGElement || map;
+    host.addEventListener("mousemove", (event) => {
+      const box = map.getBoundingClientRect();
+      const inside = event.clientX >= box.left && event.clientX < box.right &&
+        event.clientY >= box.top && event.clientY < box.bottom;
+      if (!inside) return;
+      const column = Math.min(
+        columns - 1,
+        Math.floor(((event.clientX - box.left) / box.width) * columns),
+      );
+      const fromTop = Math.min(
+        rows - 1,
+        Math.floor(((event.clientY - box.top) / box.height) * rows),
+      );
+      const row = rows - 1 - fromTop;
+      const x = columns > 1 ? x0 + (column * (x1 - x0)) / (columns - 1) : x0;
+      const y = rows > 1 ? y0 + (row * (y1 - y0)) / (rows - 1) : y0;
+      let value = "–";
+      if (pixels !== null) {
+        // The image's pixel for this cell: cells merge by whole blocks (svg_plot.ts mapImage).
+        const perX = Number(image.getAttribute("width")) / canvas.width;
+        const perY = Number(image.getAttribute("height")) / canvas.height;
+        const top = rows - Number(image.getAttribute("height"));
+        const px = Math.floor(column / perX), py = Math.floor((fromTop - top) / perY);
+        const at = (py * canvas.width + px) * 4;
+        const rgb = [pixels[at], pixels[at + 1], pixels[at + 2]];
+        if (rgb[0] === 255 && rgb[1] === 255 && rgb[2] === 255) value = "no value";
+        else {
+          let best = 0, distance = Infinity;
+          samples.forEach((c, n) => {
+            const d = (c[0] - rgb[0]) ** 2 + (c[1] - rgb[1]) ** 2 + (c[2] - rgb[2]) ** 2;
+            if (d < distance) {
+              distance = d;
+              best = n;
+            }
+          });
+          const z = z0 + (best / 1000) * (z1 - z0);
+          // A colour bar titled with a bare unit ("dB re 1 Pa") is its own unit.
+          const zUnit = unit(zLabel) || zLabel;
+          value = best === 0 ? "≤ " + withUnit(z0, zUnit) : "≈ " + withUnit(z, zUnit);
+        }
+      }
+      readout.textContent = name(xLabel) + " " + withUnit(x, unit(xLabel)) + ", " + name(yLabel) +
+        " " + withUnit(y, unit(yLabel)) + ": " + value;
+    });
+  });
 })();

@@ -869,6 +869,7 @@ figure.small { display: inline-block; vertical-align: top; width: calc(50% - 20p
 .chart-tools { font-size: 12px; margin: 0 0 4px 0; display: flex; flex-wrap: wrap; gap: 6px; align-items: center; }
 .chart-tools button { font: inherit; background: #f4f1ea; border: 1px solid #b9b2a2; border-radius: 3px; padding: 2px 8px; cursor: pointer; }
 .chart-hint { color: #6b7785; }
+.map-readout { font-size: 12px; color: #22313f; padding: 4px 2px; min-height: 1.4em; }
 .uplot { font-family: Helvetica, Arial, sans-serif; }
 .u-title { font-size: 13px; }
 .u-legend { font-size: 12px; text-align: left; }
@@ -881,7 +882,7 @@ tr.unchecked td { color: #6b7785; }
 .note { font-size: 12px; color: #5b6b7b; }
 td .failing { font-size: 12px; color: #b02e1f; margin-top: 2px; }
 .caveat { border-left: 4px solid #edae49; background: #fff8e6; padding: 8px 12px; font-size: 13px; }
-@media print { body { background: #ffffff; } header { background: #ffffff; color: #000000; } figure { break-inside: avoid; } figure.live > .static { display: block; } .interactive, .chart-tools { display: none; } }
+@media print { body { background: #ffffff; } header { background: #ffffff; color: #000000; } figure { break-inside: avoid; } figure.live > .static { display: block; } .interactive, .chart-tools, .map-readout { display: none; } }
 @media (max-width: 760px) { main { padding: 8px 10px 24px 10px; } header { padding: 12px 10px; } table { font-size: 11px; } }
 `;
 

@@ -142,6 +142,11 @@ function linearTickLabel(
   return (v: number) => format(v).replace("\u2212", "-");
 }
 
+/** A value for a tooltip: 4 significant digits. */
+function formatTick(v: number): string {
+  return Number(v.toPrecision(4)).toString();
+}
+
 function tickLabel(v: number): string {
   const a = Math.abs(v);
   if (a === 0) return "0";
@@ -550,7 +555,9 @@ export function barPlot(plot: BarPlot): string {
           Math.abs(base - end).toFixed(1)
         }" fill="${PALETTE[j % PALETTE.length]}"${
           fails ? ' stroke="#b02e1f" stroke-width="2"' : ""
-        }/>`,
+        }><title>${
+          escapeXml(`${g.name}, ${label}: ${formatTick(v)} (${plot.yLabel})`)
+        }</title></rect>`,
       );
     });
   });
@@ -638,6 +645,7 @@ function mapImage(
   rows: number,
   domain: readonly [number, number],
   area: { x: number; y: number; width: number; height: number },
+  readout = "",
 ): string {
   const columns = z.length;
   const fx = Math.ceil(columns / MAP_PIXELS.across);
@@ -662,7 +670,7 @@ function mapImage(
   }
   const png = encodeBase64(encodePng(across, up, rgb));
   // viewBox in cells (y down); the last, partly filled block may overhang and is clipped.
-  return `<svg class="map" x="${area.x.toFixed(1)}" y="${area.y.toFixed(1)}" width="${
+  return `<svg class="map"${readout} x="${area.x.toFixed(1)}" y="${area.y.toFixed(1)}" width="${
     area.width.toFixed(1)
   }" height="${
     area.height.toFixed(1)
@@ -725,12 +733,23 @@ export function heatMap(plot: HeatMap): string {
   const domain = plot.zDomain ?? [Math.max(lowest, highest - 50), highest];
   const x = scaleLinear().domain([0, plot.x.length]).range([MARGIN.left, width - right]);
   const y = scaleLinear().domain([0, plot.y.length]).range([height - MARGIN.bottom, MARGIN.top]);
+  // What the report's script needs to read a cell under the pointer: the axes' first and last
+  // cell centres, the grid size, and the colour bar's range and ramp (a colour names its value,
+  // as the ramp is monotone in lightness).
+  const attribute = (name: string, value: unknown) => ` data-${name}="${escapeXml(value)}"`;
+  const readout = [
+    attribute("x", `${plot.x[0]},${plot.x[plot.x.length - 1]},${plot.x.length}`),
+    attribute("y", `${plot.y[0]},${plot.y[plot.y.length - 1]},${plot.y.length}`),
+    attribute("z", `${domain[0]},${domain[1]}`),
+    attribute("ramp", RAMP.join(",")),
+    attribute("labels", JSON.stringify([plot.xLabel, plot.yLabel, plot.zLabel])),
+  ].join("");
   const parts: string[] = [mapImage(plot.z, plot.y.length, domain, {
     x: x(0),
     y: y(plot.y.length),
     width: x(plot.x.length) - x(0),
     height: y(0) - y(plot.y.length),
-  })];
+  }, readout)];
   const xs = scaleLinear().domain([plot.x[0], plot.x[plot.x.length - 1]]).range([
     x(0.5),
     x(plot.x.length - 0.5),

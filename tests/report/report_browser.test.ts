@@ -228,6 +228,36 @@ describe("the HTML report in a browser", () => {
             .road_psd_spectrum.series.map((s) => s.show)
         );
         expect(shown).toEqual([true, true, false]);
+        // A colour map's readout: the MAC grid's cell under the pointer, its value read back
+        // from the colour, against the result file (within the colour's 8-bit step).
+        const macMap = page.locator("#figure-link_mac_mac svg.map");
+        const grid = await macMap.evaluate((m) => ({
+          x: (m as unknown as { dataset: Record<string, string> }).dataset.x.split(",").map(Number),
+          y: (m as unknown as { dataset: Record<string, string> }).dataset.y.split(",").map(Number),
+        }));
+        await macMap.scrollIntoViewIfNeeded();
+        const cell = await macMap.boundingBox();
+        // Bottom-left cell, then the cell one up and one right.
+        for (const [column, row] of [[0, 0], [1, 1]]) {
+          await page.mouse.move(
+            cell!.x + ((column + 0.5) / grid.x[2]) * cell!.width,
+            cell!.y + cell!.height - ((row + 0.5) / grid.y[2]) * cell!.height,
+          );
+          const text = await page.locator("#figure-link_mac_mac .map-readout").textContent();
+          const mac = JSON.parse(
+            await readFile(report.replace(/report\.html$/, "link_mac.json"), "utf8"),
+          );
+          const [tests, sims, values] = mac.columns.map((c: { values: number[] }) => c.values);
+          const xMode = grid.x[0] + column, yMode = grid.y[0] + row;
+          const k = tests.findIndex((t: number, i: number) =>
+            (t === xMode && sims[i] === yMode) || (t === yMode && sims[i] === xMode)
+          );
+          const shown = Number(/[≈≤] (-?[0-9.e-]+)/.exec(text ?? "")?.[1]);
+          expect(Math.abs(shown - values[k]), text ?? "").toBeLessThan(0.01);
+        }
+        // Bars carry their value as a tooltip.
+        expect(await page.locator("#figure-cabin_bands_bands rect.bar title").first().textContent())
+          .toMatch(/driver_ear, 25: -?[0-9.]+ \(Level \[dB\(A\) re 20 µPa\]\)/);
         // Every line plot became a chart; the colour maps, bars and drawings stay pictures.
         const charts = await page.locator("figure[data-chart]").count();
         expect(charts).toBeGreaterThan(10);
