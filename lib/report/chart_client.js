@@ -113,6 +113,42 @@
     u.quiverReset();
     // After uPlot's own double-click handler (registered first): back to the report's range.
     u.over.addEventListener("dblclick", () => u.quiverReset());
+    // Shift + drag pans: the view moves with the pointer, keeping its width (in log units on a
+    // log axis), instead of uPlot's own drag, which would zoom.
+    // (On the chart's root in the capture phase: it runs before any listener on the plot area.)
+    u.root.addEventListener("mousedown", (down) => {
+      if (!down.shiftKey || down.button !== 0 || !u.over.contains(down.target)) return;
+      down.stopImmediatePropagation();
+      down.preventDefault();
+      const start = {
+        x: down.clientX,
+        y: down.clientY,
+        xs: [u.scales.x.min, u.scales.x.max],
+        ys: [u.scales.y.min, u.scales.y.max],
+      };
+      const box = u.over.getBoundingClientRect();
+      const shifted = ([lo, hi], fraction, log) => {
+        if (!log) return [lo - fraction * (hi - lo), hi - fraction * (hi - lo)];
+        const k = Math.pow(hi / lo, fraction);
+        return [lo / k, hi / k];
+      };
+      const move = (event) => {
+        const fx = (event.clientX - start.x) / box.width;
+        const fy = (start.y - event.clientY) / box.height;
+        const [x0, x1] = shifted(start.xs, fx, state.xLog);
+        const [y0, y1] = shifted(start.ys, fy, state.yLog);
+        u.batch(() => {
+          u.setScale("x", { min: x0, max: x1 });
+          u.setScale("y", { min: y0, max: y1 });
+        });
+      };
+      const up = () => {
+        globalThis.removeEventListener("mousemove", move, true);
+        globalThis.removeEventListener("mouseup", up, true);
+      };
+      globalThis.addEventListener("mousemove", move, true);
+      globalThis.addEventListener("mouseup", up, true);
+    }, true);
     charts[figure.id.replace(/^figure-/, "")] = u;
     return u;
   };
@@ -166,7 +202,8 @@
     }
     const hint = document.createElement("span");
     hint.className = "chart-hint";
-    hint.textContent = "Drag to zoom, double-click to reset, click a legend entry to hide it";
+    hint.textContent =
+      "Drag to zoom, Shift + drag to pan, double-click to reset, click a legend entry to hide it";
     tools.appendChild(hint);
     figure.appendChild(tools);
     figure.appendChild(holder);

@@ -178,7 +178,7 @@ describe("the HTML report in a browser", () => {
         expect(await figure.locator(".static").isVisible()).toBe(false);
         // Drag from 20 Hz to 200 Hz: the x axis then spans about that.
         const drag = await page.evaluate(() => {
-          const u = (window as unknown as { quiverCharts: Record<string, ChartHandle> })
+          const u = (globalThis as unknown as { quiverCharts: Record<string, ChartHandle> })
             .quiverCharts.road_psd_spectrum;
           const box = u.over.getBoundingClientRect();
           return {
@@ -192,7 +192,7 @@ describe("the HTML report in a browser", () => {
         await page.mouse.move(drag.to, drag.y + 2, { steps: 8 });
         await page.mouse.up();
         const zoomed = await page.evaluate(() =>
-          (window as unknown as { quiverCharts: Record<string, ChartHandle> }).quiverCharts
+          (globalThis as unknown as { quiverCharts: Record<string, ChartHandle> }).quiverCharts
             .road_psd_spectrum.scales.x
         );
         expect(zoomed.min).toBeGreaterThan(15);
@@ -202,7 +202,7 @@ describe("the HTML report in a browser", () => {
         // Hover at 100 Hz (in the zoomed view, where lines lie pixels apart): the legend reads the
         // frequency and the value with its unit.
         const at = await page.evaluate(() => {
-          const u = (window as unknown as { quiverCharts: Record<string, ChartHandle> })
+          const u = (globalThis as unknown as { quiverCharts: Record<string, ChartHandle> })
             .quiverCharts.road_psd_spectrum;
           const box = u.over.getBoundingClientRect();
           return { x: box.left + u.valToPos(100, "x"), y: box.top + box.height / 2 };
@@ -214,17 +214,40 @@ describe("the HTML report in a browser", () => {
         expect(unit).toBe("(m/s^2)^2/Hz");
         // Five significant digits in the readout.
         expect(Math.abs(Number(number) - expected) / expected).toBeLessThan(1e-4);
+        // Shift + drag pans: the zoomed view moves by the drag and keeps its width (a decade
+        // here, on the log axis), so dragging left by a third of the plot raises both ends.
+        const pan = await page.evaluate(() => {
+          const u = (globalThis as unknown as { quiverCharts: Record<string, ChartHandle> })
+            .quiverCharts.road_psd_spectrum;
+          const box = u.over.getBoundingClientRect();
+          return { x: box.left + box.width / 2, y: box.top + box.height / 2, width: box.width };
+        });
+        await page.keyboard.down("Shift");
+        await page.mouse.move(pan.x, pan.y);
+        await page.mouse.down();
+        await page.mouse.move(pan.x - pan.width / 3, pan.y, { steps: 6 });
+        await page.mouse.up();
+        await page.keyboard.up("Shift");
+        const panned = await page.evaluate(() =>
+          (globalThis as unknown as { quiverCharts: Record<string, ChartHandle> }).quiverCharts
+            .road_psd_spectrum.scales.x
+        );
+        expect(panned.min).toBeGreaterThan(zoomed.min * 1.5);
+        expect(Math.log10(panned.max / panned.min)).toBeCloseTo(
+          Math.log10(zoomed.max / zoomed.min),
+          6,
+        );
         // Reset brings the whole range back.
         await figure.locator("button", { hasText: "Reset view" }).click();
         const reset = await page.evaluate(() =>
-          (window as unknown as { quiverCharts: Record<string, ChartHandle> }).quiverCharts
+          (globalThis as unknown as { quiverCharts: Record<string, ChartHandle> }).quiverCharts
             .road_psd_spectrum.scales.x
         );
         expect(reset.max).toBeGreaterThan(10000);
         // A click on the second trace's legend entry hides it.
         await figure.locator(".u-legend .u-series").nth(2).click();
         const shown = await page.evaluate(() =>
-          (window as unknown as { quiverCharts: Record<string, ChartHandle> }).quiverCharts
+          (globalThis as unknown as { quiverCharts: Record<string, ChartHandle> }).quiverCharts
             .road_psd_spectrum.series.map((s) => s.show)
         );
         expect(shown).toEqual([true, true, false]);
