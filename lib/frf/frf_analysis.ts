@@ -8,9 +8,14 @@
 import { QuiverError } from "../errors.ts";
 import { channelIndices } from "../io/recording.ts";
 import type { Table, TableColumn } from "../io/table.ts";
-import { resolveBlock, SpectralAccumulator, type SpectralEstimate } from "../dsp/spectral_core.ts";
+import {
+  resolveBlock,
+  segmentMetadata,
+  SpectralAccumulator,
+  type SpectralEstimate,
+} from "../dsp/spectral_core.ts";
 import type { DetrendMode } from "../dsp/detrend.ts";
-import { WINDOW_DEFINITIONS, type WindowName } from "../dsp/windows.ts";
+import type { WindowName } from "../dsp/windows.ts";
 import { asStream, readChecked, type RecordingSource } from "../io/recording_stream.ts";
 import { coherence, type Estimator, frfEstimate } from "./estimators.ts";
 import {
@@ -286,15 +291,7 @@ function frfResult(
       metadata: {
         analysis: "frf",
         ...parts.metadata,
-        rate_hz: estimate.rate,
-        block: estimate.block,
-        df_hz: estimate.df,
-        overlap: options.overlap ?? 0.5,
-        overlap_samples: estimate.overlapSamples,
-        averages: estimate.averages,
-        window: estimate.window,
-        window_source: WINDOW_DEFINITIONS[estimate.window].source,
-        detrend: estimate.detrend,
+        ...segmentMetadata(estimate, options.overlap ?? 0.5),
         record_samples: length,
         warnings,
       },

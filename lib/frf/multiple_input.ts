@@ -30,9 +30,14 @@ import { formatNumber } from "../format_number.ts";
 import { channelIndices } from "../io/recording.ts";
 import { asStream, readChecked, type RecordingSource } from "../io/recording_stream.ts";
 import type { Table, TableColumn } from "../io/table.ts";
-import { resolveBlock, SpectralAccumulator, type SpectralEstimate } from "../dsp/spectral_core.ts";
+import {
+  resolveBlock,
+  segmentMetadata,
+  SpectralAccumulator,
+  type SpectralEstimate,
+} from "../dsp/spectral_core.ts";
 import type { DetrendMode } from "../dsp/detrend.ts";
-import { WINDOW_DEFINITIONS, type WindowName } from "../dsp/windows.ts";
+import type { WindowName } from "../dsp/windows.ts";
 import { frfUnit } from "./forms.ts";
 import { LOW_COHERENCE, SINGLE_AVERAGE_WARNING } from "./frf_analysis.ts";
 import {
@@ -407,15 +412,7 @@ function tables(
     outputs: outputs.map((c) => ({ name: c.name, unit: c.unit })),
     column_naming: "output/input_re|im|mag|phase_deg; output_multiple_coherence",
     ill_conditioned_above: ILL_CONDITIONED,
-    rate_hz: estimate.rate,
-    block: estimate.block,
-    df_hz: estimate.df,
-    overlap: options.overlap ?? 0.5,
-    overlap_samples: estimate.overlapSamples,
-    averages: estimate.averages,
-    window: estimate.window,
-    window_source: WINDOW_DEFINITIONS[estimate.window].source,
-    detrend: estimate.detrend,
+    ...segmentMetadata(estimate, options.overlap ?? 0.5),
     record_samples: length,
     method: "Bendat & Piersol, Random Data, 4th ed., ch. 7 (multiple-input/output relations)",
     warnings,

@@ -3,35 +3,12 @@ import { frequencyResponse } from "../../lib/frf/frf_analysis.ts";
 import { multipleInputFrf } from "../../lib/frf/multiple_input.ts";
 import type { Recording } from "../../lib/io/recording.ts";
 import { assertClose } from "../helpers/assert_close.ts";
+import { add, fir, firResponse, scale } from "../helpers/fir.ts";
 import { gaussianNoise } from "../helpers/random.ts";
 
 const RATE = 1024;
 const N = 2 ** 19;
 const BLOCK = 512;
-
-/** y = Σ b_k·x[n−k]: an FIR filter, whose FRF is known exactly. */
-function fir(x: Float64Array, taps: readonly number[]): Float64Array {
-  const y = new Float64Array(x.length);
-  for (let n = 0; n < x.length; n++) {
-    let s = 0;
-    for (let k = 0; k < taps.length && k <= n; k++) s += taps[k] * x[n - k];
-    y[n] = s;
-  }
-  return y;
-}
-
-/** H(f) = Σ b_k·e^{−j2πfk/fs} (analytic; the e^{−jωt} kernel of the FFT). */
-function firResponse(taps: readonly number[], f: number): { re: number; im: number } {
-  let re = 0, im = 0;
-  taps.forEach((b, k) => {
-    re += b * Math.cos((2 * Math.PI * f * k) / RATE);
-    im -= b * Math.sin((2 * Math.PI * f * k) / RATE);
-  });
-  return { re, im };
-}
-
-const add = (...xs: Float64Array[]) => xs[0].map((_, i) => xs.reduce((s, x) => s + x[i], 0));
-const scale = (x: Float64Array, a: number) => x.map((v) => a * v);
 
 /** The inverse of a real 3×3 matrix by cofactors (written here, independent of the code). */
 function inverse3(m: number[][]): number[][] {
@@ -94,7 +71,7 @@ describe("multiple-input FRFs of a known 3-input, 2-output system", async () => 
       for (const k of inBand) {
         if (!(frf.multipleCoherence[o][k] > 0.95)) continue;
         for (let i = 0; i < 3; i++) {
-          const want = firResponse(TAPS[o][i], frf.frequencies[k]);
+          const want = firResponse(TAPS[o][i], frf.frequencies[k], RATE);
           const got = { re: frf.h[o][i].re[k], im: frf.h[o][i].im[k] };
           const db = 20 * Math.log10(Math.hypot(got.re, got.im) / Math.hypot(want.re, want.im));
           let phase = (Math.atan2(got.im, got.re) - Math.atan2(want.im, want.re)) * 180 / Math.PI;
@@ -118,7 +95,7 @@ describe("multiple-input FRFs of a known 3-input, 2-output system", async () => 
         for (let m = 0; m < 4; m++) {
           let re = 0, im = 0;
           for (let i = 0; i < 3; i++) {
-            const h = firResponse(TAPS[o][i], f);
+            const h = firResponse(TAPS[o][i], f, RATE);
             re += h.re * A[i][m];
             im += h.im * A[i][m];
           }
@@ -141,7 +118,7 @@ describe("multiple-input FRFs of a known 3-input, 2-output system", async () => 
         const conditioned = 1 / inv[i][i];
         const expected: number[] = [], got: number[] = [];
         for (const k of inBand) {
-          const h = firResponse(TAPS[o][i], frf.frequencies[k]);
+          const h = firResponse(TAPS[o][i], frf.frequencies[k], RATE);
           const through = (h.re ** 2 + h.im ** 2) * conditioned;
           expected.push(through / (through + white * NOISE[o] ** 2));
           got.push(frf.partialCoherence[o][i][k]);
@@ -244,7 +221,7 @@ describe("principal components count the independent sources", () => {
       block: BLOCK,
     });
     const k = 100;
-    const truth = firResponse(TAPS[0][0], frf.frequencies[k]);
+    const truth = firResponse(TAPS[0][0], frf.frequencies[k], RATE);
     const db = (re: number, im: number) =>
       Math.abs(20 * Math.log10(Math.hypot(re, im) / Math.hypot(truth.re, truth.im)));
     expect(db(single.frf.channels[0].re![k], single.frf.channels[0].im![k])).toBeGreaterThan(1);

@@ -3,32 +3,13 @@ import type { FrfData } from "../../lib/frf/frf_data.ts";
 import type { Recording } from "../../lib/io/recording.ts";
 import type { Table } from "../../lib/io/table.ts";
 import { pathContributions } from "../../lib/paths/contributions.ts";
+import { add, fir, firResponse, scale } from "../helpers/fir.ts";
 import { gaussianNoise } from "../helpers/random.ts";
 
 const RATE = 1024;
 const N = 2 ** 19;
 const DF = 2; // transfers on 2 Hz lines: a 512-sample block
 const FREQUENCIES = new Float64Array(255).map((_, k) => (k + 1) * DF);
-
-function fir(x: Float64Array, taps: readonly number[]): Float64Array {
-  const y = new Float64Array(x.length);
-  for (let n = 0; n < x.length; n++) {
-    let s = 0;
-    for (let k = 0; k < taps.length && k <= n; k++) s += taps[k] * x[n - k];
-    y[n] = s;
-  }
-  return y;
-}
-
-/** H(f) = Σ b_k·e^{−j2πfk/fs}, exact for an FIR filter. */
-function response(taps: readonly number[], f: number): { re: number; im: number } {
-  let re = 0, im = 0;
-  taps.forEach((b, k) => {
-    re += b * Math.cos((2 * Math.PI * f * k) / RATE);
-    im -= b * Math.sin((2 * Math.PI * f * k) / RATE);
-  });
-  return { re, im };
-}
 
 /** A transfer file's content: the FIR responses of the named channels, on the 2 Hz axis. */
 function transfer(
@@ -38,7 +19,7 @@ function transfer(
   return {
     frequencies: FREQUENCIES,
     channels: Object.entries(byName).map(([name, taps]) => {
-      const h = Array.from(FREQUENCIES, (f) => response(taps, f));
+      const h = Array.from(FREQUENCIES, (f) => firResponse(taps, f, RATE));
       const re = new Float64Array(h.map((v) => v.re)), im = new Float64Array(h.map((v) => v.im));
       return {
         name,
@@ -52,10 +33,47 @@ function transfer(
   };
 }
 
-const add = (...xs: Float64Array[]) => xs[0].map((_, i) => xs.reduce((s, x) => s + x[i], 0));
-const scale = (x: Float64Array, a: number) => x.map((v) => a * v);
-
 // Three mount forces from a common source plus one independent source each.
+/**
+ * An inverse-method set-up: indicator channels made from the forces through
+ * `toIndicator[a][i]` (FIR taps, indicator a per force i) plus white noise,
+ * the microphone beside them, and one transfer per force holding the
+ * microphone's and every indicator's FIR.
+ */
+function indicatorSetup(options: {
+  forces: Float64Array[];
+  mic: Float64Array;
+  toIndicator: readonly (readonly (readonly number[])[])[];
+  prefix: string;
+  noise?: { seed: number; level: number };
+  filter?: (x: Float64Array, taps: readonly number[]) => Float64Array;
+}): { recording: Recording; transfers: FrfData[]; names: string[] } {
+  const { forces, mic, toIndicator, prefix, noise, filter = fir } = options;
+  const names = toIndicator.map((_, a) => `${prefix}_${a + 1}`);
+  const channels = toIndicator.map((paths, a) => {
+    const through = paths.map((taps, i) => filter(forces[i], taps));
+    if (noise !== undefined) through.push(scale(gaussianNoise(noise.seed + a, N), noise.level));
+    return { name: names[a], unit: "m/s^2", data: add(...through) };
+  });
+  return {
+    recording: {
+      rate: RATE,
+      startTime: 0,
+      channels: [...channels, { name: "cabin_mic", unit: "Pa", data: mic }],
+    },
+    transfers: [0, 1, 2].map((i) =>
+      transfer(
+        Object.fromEntries([
+          ["cabin_mic", TO_MIC[i]],
+          ...toIndicator.map((paths, a) => [names[a], paths[i]]),
+        ]),
+        (n) => n === "cabin_mic" ? "Pa/N" : "(m/s^2)/N",
+      )
+    ),
+    names,
+  };
+}
+
 const MIX = [
   [0.8, 0.6, 0, 0],
   [0.5, 0, 0.7, 0],
@@ -72,7 +90,7 @@ function forces(): Float64Array[] {
 /** Analytic contribution cᵢ = Hᵢ·Σⱼ conj(Hⱼ)·Cᵢⱼ/√Gpp with C = (2/fs)·MIX·MIXᵀ (white sources). */
 function analytic(f: number, included: readonly number[]) {
   const white = 2 / RATE;
-  const h = TO_MIC.map((taps) => response(taps, f));
+  const h = TO_MIC.map((taps) => firResponse(taps, f, RATE));
   const c = MIX.map((ri) => MIX.map((rj) => white * ri.reduce((s, a, m) => s + a * rj[m], 0)));
   let gpp = white * MIC_NOISE ** 2;
   for (let m = 0; m < 4; m++) {
@@ -179,51 +197,25 @@ describe("inverse (matrix) method", () => {
     (_, a) =>
       [0, 1, 2].map((i) => [1 + 0.3 * a - 0.2 * i, 0.5 * ((a + i) % 3) - 0.4, 0.1 * (a - i)]),
   );
-  const indicators = TO_INDICATOR.map((paths, a) =>
-    add(...paths.map((taps, i) => fir(f[i], taps)), scale(gaussianNoise(60 + a, N), 1e-3))
-  );
-  const recording: Recording = {
-    rate: RATE,
-    startTime: 0,
-    channels: [
-      ...indicators.map((data, a) => ({ name: `ind_${a + 1}`, unit: "m/s^2", data })),
-      { name: "cabin_mic", unit: "Pa", data: mic },
-    ],
-  };
-  const transfers = [0, 1, 2].map((i) =>
-    transfer(
-      Object.fromEntries([
-        ["cabin_mic", TO_MIC[i]],
-        ...TO_INDICATOR.map((paths, a) => [`ind_${a + 1}`, paths[i]]),
-      ]),
-      (n) => n === "cabin_mic" ? "Pa/N" : "(m/s^2)/N",
-    )
-  );
+  const { recording, transfers } = indicatorSetup({
+    forces: f,
+    mic,
+    toIndicator: TO_INDICATOR,
+    prefix: "ind",
+    noise: { seed: 60, level: 1e-3 },
+  });
 
   test("nearly collinear indicators: the plain inverse follows the noise, Tikhonov regularisation tames it", async () => {
     // Three indicators that see forces 1 and 2 almost alike (a 1 % difference), with noise.
     // (Rows not linear in a: three such rows would span only two dimensions.)
     const near = [0, 1, 2].map((a) => [[1, 0.2 * a], [1.01, 0.2 * a], [0.3, 0.5 - 0.1 * a * a]]);
-    const ind = near.map((paths, a) =>
-      add(...paths.map((taps, i) => fir(f[i], taps)), scale(gaussianNoise(70 + a, N), 0.02))
-    );
-    const rec: Recording = {
-      rate: RATE,
-      startTime: 0,
-      channels: [
-        ...ind.map((data, a) => ({ name: `near_${a + 1}`, unit: "m/s^2", data })),
-        { name: "cabin_mic", unit: "Pa", data: mic },
-      ],
-    };
-    const tf = [0, 1, 2].map((i) =>
-      transfer(
-        Object.fromEntries([
-          ["cabin_mic", TO_MIC[i]],
-          ...near.map((paths, a) => [`near_${a + 1}`, paths[i]]),
-        ]),
-        (n) => n === "cabin_mic" ? "Pa/N" : "(m/s^2)/N",
-      )
-    );
+    const { recording: rec, transfers: tf } = indicatorSetup({
+      forces: f,
+      mic,
+      toIndicator: near,
+      prefix: "near",
+      noise: { seed: 70, level: 0.02 },
+    });
     const run = (regularise?: { kind: "tikhonov"; lambda: number }) =>
       pathContributions(rec, {
         method: "inverse",
@@ -294,7 +286,7 @@ describe("contributions of periodic forces against their closed form", () => {
   const closedForm = (n: number, included: readonly number[]) => {
     const k = n + 1, freq = FREQUENCIES[n];
     const through = [0, 1, 2].map((i) => {
-      const h = response(TO_MIC[i], freq), x = spectrumOf(i, k);
+      const h = firResponse(TO_MIC[i], freq, RATE), x = spectrumOf(i, k);
       return { re: h.re * x.re - h.im * x.im, im: h.re * x.im + h.im * x.re };
     });
     const p = through.reduce((s, t) => ({ re: s.re + t.re, im: s.im + t.im }), { re: 0, im: 0 });
@@ -368,30 +360,17 @@ describe("contributions of periodic forces against their closed form", () => {
           i,
         ) => [1 + 0.3 * a - 0.2 * i, 0.5 * ((a + i) % 3) - 0.4, 0.1 * (a - i) ** 2]),
     );
-    const indicators = TO_INDICATOR.map((paths) =>
-      add(...paths.map((taps, i) => circular(f[i], taps)))
-    );
-    const rec: Recording = {
-      rate: RATE,
-      startTime: 0,
-      channels: [
-        ...indicators.map((data, a) => ({ name: `ind_${a + 1}`, unit: "m/s^2", data })),
-        { name: "cabin_mic", unit: "Pa", data: mic },
-      ],
-    };
-    const tf = [0, 1, 2].map((i) =>
-      transfer(
-        Object.fromEntries([
-          ["cabin_mic", TO_MIC[i]],
-          ...TO_INDICATOR.map((paths, a) => [`ind_${a + 1}`, paths[i]]),
-        ]),
-        (n) => n === "cabin_mic" ? "Pa/N" : "(m/s^2)/N",
-      )
-    );
+    const { recording: rec, transfers: tf, names } = indicatorSetup({
+      forces: f,
+      mic,
+      toIndicator: TO_INDICATOR,
+      prefix: "ind",
+      filter: circular,
+    });
     const result = await pathContributions(rec, {
       method: "inverse",
       references: ["mount_1", "mount_2", "mount_3"],
-      indicators: indicators.map((_, a) => `ind_${a + 1}`),
+      indicators: names,
       target: "cabin_mic",
       transfers: tf,
       ...periodic,

@@ -1,12 +1,11 @@
 import { existsSync } from "node:fs";
 import { mkdtemp, readFile } from "node:fs/promises";
 import process from "node:process";
-import { chromium } from "playwright-core";
+import { type BrowserContext, chromium } from "playwright-core";
 import { beforeAll, describe, expect, test } from "vitest";
 import { runQuiver } from "../helpers/cli.ts";
 import { demoFolder } from "../helpers/demo_campaign.ts";
-
-const CHROMIUM = "/usr/bin/chromium";
+import { CHROMIUM, CHROMIUM_ARGS } from "../../fixtures/demo/screenshots.ts";
 
 /** Debian's chromium, headless, with a fresh profile (no network services, no sync). */
 async function launch(options: { javaScriptEnabled?: boolean } = {}) {
@@ -16,17 +15,24 @@ async function launch(options: { javaScriptEnabled?: boolean } = {}) {
     headless: true,
     viewport: { width: 1400, height: 900 },
     ...options,
-    args: [
-      "--headless",
-      "--no-sandbox",
-      "--disable-gpu",
-      "--disable-background-networking",
-      "--disable-component-update",
-      "--disable-sync",
-      "--no-first-run",
-    ],
+    args: [...CHROMIUM_ARGS],
   });
   return { context, profile };
+}
+
+/** Opens the report in a new page, collecting console errors and every request made. */
+async function openReport(context: BrowserContext, report: string) {
+  const page = await context.newPage();
+  const errors: string[] = [];
+  const requests: string[] = [];
+  page.on("console", (m) => {
+    if (m.type() === "error") errors.push(m.text());
+  });
+  page.on("pageerror", (e) => errors.push(e.message));
+  page.on("request", (r) => requests.push(r.url()));
+  await page.goto(`file://${report}`);
+  await page.waitForLoadState("load");
+  return { page, errors, requests };
 }
 
 /** The interactive chart of a figure, as the page's script registered it. */
@@ -55,16 +61,7 @@ describe("the HTML report in a browser", () => {
       expect(existsSync(CHROMIUM), `${CHROMIUM} is needed for this test`).toBe(true);
       const { context, profile } = await launch({ javaScriptEnabled: false });
       try {
-        const page = await context.newPage();
-        const errors: string[] = [];
-        const requests: string[] = [];
-        page.on("console", (m) => {
-          if (m.type() === "error") errors.push(m.text());
-        });
-        page.on("pageerror", (e) => errors.push(e.message));
-        page.on("request", (r) => requests.push(r.url()));
-        await page.goto(`file://${report}`);
-        await page.waitForLoadState("load");
+        const { page, errors, requests } = await openReport(context, report);
         const plots = await page.locator("figure svg").count();
         expect(plots).toBeGreaterThanOrEqual(6);
         // Every figure shows a picture of real size (none hidden behind a script that did not run).
@@ -155,16 +152,7 @@ describe("the HTML report in a browser", () => {
       expect(existsSync(CHROMIUM), `${CHROMIUM} is needed for this test`).toBe(true);
       const { context } = await launch();
       try {
-        const page = await context.newPage();
-        const errors: string[] = [];
-        const requests: string[] = [];
-        page.on("console", (m) => {
-          if (m.type() === "error") errors.push(m.text());
-        });
-        page.on("pageerror", (e) => errors.push(e.message));
-        page.on("request", (r) => requests.push(r.url()));
-        await page.goto(`file://${report}`);
-        await page.waitForLoadState("load");
+        const { page, errors, requests } = await openReport(context, report);
         // The road PSD's value at 100 Hz, from the result file the report was made from.
         const result = JSON.parse(
           await readFile(report.replace(/report\.html$/, "road_psd.json"), "utf8"),
