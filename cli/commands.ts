@@ -42,6 +42,7 @@ export const COMMANDS = {
   paths: () => import("./paths.ts"),
   compare: () => import("./compare.ts"),
   run: () => import("./run.ts"),
+  merge: () => import("./merge.ts"),
   report: () => import("./report.ts"),
 } as const satisfies Record<string, () => Promise<CommandModule>>;
 

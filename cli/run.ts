@@ -8,7 +8,11 @@ import { basename, dirname, join } from "node:path";
 import process from "node:process";
 import { z } from "npm:zod@4.6.7";
 import { writeReport } from "../lib/report/html_report.ts";
-import { runPlan } from "../lib/plan/runner.ts";
+import { type Manifest, runPlan } from "../lib/plan/runner.ts";
+import { parseShard } from "../lib/plan/shards.ts";
+import { slurmScript } from "../lib/plan/slurm.ts";
+import { fileURLToPath } from "node:url";
+import { resolve } from "node:path";
 import { integerOption, parseCommandArgs, usageError } from "./args.ts";
 import { option, shapeOf, specOf } from "./option_table.ts";
 import { TARGETS_NOT_MET_EXIT } from "./exit_codes.ts";
@@ -21,7 +25,8 @@ export const summary =
   "runs a campaign plan: every analysis, comparison and target, the manifest and the report";
 
 /** The command's help text. */
-export const help = `quiver run PLAN.json [--out-dir DIR] [--jobs N]
+export const help = `quiver run PLAN.json [--out-dir DIR] [--jobs N] [--shard K/N|auto]
+quiver run PLAN.json --slurm-script N [--partition P] [--time T] [--cpus C] [--out-dir DIR]
 
 Runs every analysis and comparison of a plan file in order, checks its
 targets, and writes under DIR (default: out/<plan name>/ beside the plan):
@@ -45,6 +50,18 @@ after the plan has been checked, so no more start than steps can run at once.
 --jobs 1 runs the steps one after another in this process. Every line a step
 writes starts with its id.
 
+--shard K/N runs only shard K of N (1-based) into DIR: steps that need each
+other stay together, groups are dealt by the size of their recordings. Each
+shard writes manifest.shard-K-of-N.json and its own results, takes its own
+lock, and leaves targets and the report to \`quiver merge DIR\`. --shard auto
+takes K and N from a Slurm job array (SLURM_ARRAY_TASK_ID, _MIN, _COUNT).
+
+--slurm-script N prints a bash script that submits the N shards as a Slurm
+job array and the merge as a job that waits for them (an sbatch dependency);
+run it on the cluster's login node: bash campaign_slurm.sh. DIR must be on a
+file system every node sees. --partition, --time (Slurm's format, e.g.
+02:00:00) and --cpus (per shard, also its --jobs) go into both submissions.
+
 The plan file (every key, with an example) is described in README.md,
 "The plan file".
 `;
@@ -53,13 +70,28 @@ const TABLE = {
   "out-dir": option(z.string().min(1), { value: "DIR", help: "where the results go" }),
   jobs: option(integerOption(), { value: "N", help: "steps at once" }),
   "require-targets": option(z.boolean(), { flag: true, help: "exit 4 when a target is not met" }),
+  shard: option(z.string().min(1), { value: "K/N", help: "run shard K of N only (or auto)" }),
+  "slurm-script": option(integerOption(), {
+    value: "N",
+    help: "print a script submitting N shards and the merge",
+  }),
+  partition: option(z.string().min(1), { value: "P", help: "Slurm partition" }),
+  time: option(z.string().min(1), { value: "T", help: "Slurm time limit per job" }),
+  cpus: option(integerOption(), { value: "C", help: "CPUs per shard" }),
 };
 
 /** parseArgs spec of the options. */
 export const options = specOf(TABLE);
 
 /** zod schema of the options. */
-export const schema = z.strictObject(shapeOf(TABLE));
+export const schema = z.strictObject(shapeOf(TABLE)).refine(
+  (v) =>
+    v["slurm-script"] !== undefined ||
+    (v.partition === undefined && v.time === undefined && v.cpus === undefined),
+  { message: "--partition, --time and --cpus go with --slurm-script" },
+).refine((v) => v["slurm-script"] === undefined || v.shard === undefined, {
+  message: "give --shard or --slurm-script, not both",
+});
 
 /** Runs the command; sets the exit code to 1 when a step failed. */
 export async function run(argv: readonly string[]): Promise<void> {
@@ -68,6 +100,20 @@ export async function run(argv: readonly string[]): Promise<void> {
   const [planFile] = positionals;
   const outDir = values["out-dir"] ??
     join(dirname(planFile), "out", basename(planFile).replace(/\.json$/i, ""));
+  if (values["slurm-script"] !== undefined) {
+    process.stdout.write(slurmScript({
+      shards: values["slurm-script"],
+      plan: resolve(planFile),
+      outDir: resolve(outDir),
+      deno: process.execPath,
+      main: fileURLToPath(new URL("./main.ts", import.meta.url)),
+      ...(values.partition !== undefined ? { partition: values.partition } : {}),
+      ...(values.time !== undefined ? { time: values.time } : {}),
+      ...(values.cpus !== undefined ? { cpus: values.cpus } : {}),
+    }));
+    return;
+  }
+  const shard = values.shard !== undefined ? parseShard(values.shard, process.env) : undefined;
   const jobs = values.jobs ?? navigator.hardwareConcurrency ?? 1;
   const pool = jobs > 1 ? new WorkerPool(jobs) : undefined;
   const commands = await planCommandTable();
@@ -79,6 +125,7 @@ export async function run(argv: readonly string[]): Promise<void> {
       report: writeReport,
       jobs,
       requireTargets: values["require-targets"] === true,
+      ...(shard !== undefined ? { shard } : {}),
       // Every line a step writes carries its id, so parallel steps' logs stay apart.
       execute: (command: string, argv: readonly string[], id: string) =>
         pool !== undefined
@@ -88,11 +135,27 @@ export async function run(argv: readonly string[]): Promise<void> {
   } finally {
     pool?.close();
   }
+  if (shard !== undefined) {
+    const failed = manifest.steps.filter((s) => s.status !== "ok");
+    toStderr(
+      `run: shard ${shard.index} of ${shard.count}: ${
+        manifest.steps.length - failed.length
+      }/${manifest.steps.length} steps ok; targets and report come with quiver merge ${outDir}\n`,
+    );
+    for (const f of failed) toStderr(`  ${f.id}: ${f.status}: ${f.error ?? ""}\n`);
+    if (failed.length > 0) process.exitCode = 1;
+    return;
+  }
+  reportOutcome(manifest);
+}
+
+/** The run's (or merge's) closing lines and exit code: 1 for a failed step, 4 for unmet targets when required. */
+export function reportOutcome(manifest: Manifest, command = "run"): void {
   const failed = manifest.steps.filter((s) => s.status !== "ok");
   const targets = manifest.targets as { id: string; status: string; pass?: boolean }[];
   const passed = targets.filter((t) => t.pass === true).length;
   toStderr(
-    `run: ${
+    `${command}: ${
       manifest.steps.length - failed.length
     }/${manifest.steps.length} steps ok, targets ${passed}/${targets.length} passed` +
       `${

@@ -33,7 +33,8 @@ export interface FolderLock {
 }
 
 /**
- * Takes the lock on `folder` (which must exist).
+ * Takes the lock on `folder` (which must exist). A shard of a campaign takes
+ * its own lock file, so shards share a folder but never a lock.
  *
  * @throws {QuiverError} (usage) when another live run holds it.
  *
@@ -49,8 +50,11 @@ export interface FolderLock {
  * if (!refused) throw new Error();
  * ```
  */
-export async function acquireFolderLock(folder: string): Promise<FolderLock> {
-  const path = join(folder, LOCK_FILE);
+export async function acquireFolderLock(
+  folder: string,
+  lockFile: string = LOCK_FILE,
+): Promise<FolderLock> {
+  const path = join(folder, lockFile);
   const mine: LockInfo = { pid: process.pid, host: hostname(), started: new Date().toISOString() };
   let stale: LockInfo | undefined;
   for (let attempt = 0; attempt < 2; attempt++) {
@@ -77,7 +81,7 @@ export async function acquireFolderLock(folder: string): Promise<FolderLock> {
     if (holder !== undefined && (holder.host !== mine.host || processRuns(holder.pid))) {
       throw new QuiverError(
         `another quiver run (process ${holder.pid} on ${holder.host}, started ${holder.started}) is writing this folder; wait for it to finish${
-          holder.host !== mine.host ? `, or remove ${LOCK_FILE} if that run is gone` : ""
+          holder.host !== mine.host ? `, or remove ${lockFile} if that run is gone` : ""
         }`,
         { file: folder },
         "usage",

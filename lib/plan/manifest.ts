@@ -51,6 +51,10 @@ export const manifestSchema = z.strictObject({
   targets: z.array(z.unknown()),
   require_targets: z.boolean(),
   report: z.string().optional(),
+  /** A shard's partial manifest: which shard of how many. */
+  shard: z.strictObject({ index: z.number().int(), count: z.number().int() }).optional(),
+  /** A merged manifest: the number of shards it was merged from. */
+  shards: z.number().int().optional(),
 });
 
 /** A run's manifest. */

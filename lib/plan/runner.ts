@@ -16,6 +16,7 @@
 import { type FileRecord, type Manifest, manifestSchema } from "./manifest.ts";
 export type { FileRecord, Manifest } from "./manifest.ts";
 import { acquireFolderLock } from "./folder_lock.ts";
+import { assignShards, type Shard, shardLockName, shardManifestName } from "./shards.ts";
 import { realPathOf } from "../io/output_paths.ts";
 import { createHash } from "node:crypto";
 import { existsSync, statSync } from "node:fs";
@@ -423,7 +424,11 @@ function checkPlanOutputs(
 // steps of a run is hashed once.
 const hashCache = new Map<string, string>();
 
-async function record(path: string, outDir: string): Promise<FileRecord> {
+/**
+ * A file's record for a manifest: path relative to the output folder (when
+ * inside it), size and SHA-256.
+ */
+export async function record(path: string, outDir: string): Promise<FileRecord> {
   const stat = statSync(path);
   const key = `${path}\u0000${stat.size}\u0000${stat.mtimeMs}`;
   let sha256 = hashCache.get(key);
@@ -462,6 +467,12 @@ export interface RunOptions {
   requireTargets?: boolean;
   /** Runs one step; default: the command's `run` in this process (a pool passes its own). */
   execute?: (command: string, argv: readonly string[], stepId: string) => Promise<void>;
+  /**
+   * Run only this shard's steps (shards.ts), writing a partial manifest
+   * `manifest.shard-K-of-N.json` and no targets or report (the merge does).
+   * Default: the whole plan.
+   */
+  shard?: Shard;
 }
 
 /**
@@ -494,20 +505,33 @@ export async function runPlan(planFile: string, options: RunOptions): Promise<Ma
   const started = new Date().toISOString();
   const { plan, text } = await loadPlan(planFile);
   const outDir = resolve(options.outDir);
-  const steps = planSteps(plan, resolve(planFile), outDir, options.commands);
+  const all = planSteps(plan, resolve(planFile), outDir, options.commands);
+  const shard = options.shard;
+  // A shard runs its own steps only; the whole plan was validated above all the same.
+  // Weighed by the plan's own inputs only: a result another step writes counts nothing, so
+  // every shard computes the same assignment whatever has been written by then.
+  const produced = new Set(all.flatMap((s) => Object.values(s.outputs)));
+  const shardOf = shard !== undefined
+    ? assignShards(all, shard.count, (path) => produced.has(path) ? 0 : inputSize(path))
+    : undefined;
+  const steps = shardOf === undefined ? all : all.filter((_, i) => shardOf[i] === shard!.index);
+  const manifestFile = shard !== undefined ? shardManifestName(shard) : MANIFEST_FILE;
   await mkdir(outDir, { recursive: true });
-  const lock = await acquireFolderLock(outDir);
+  const lock = await acquireFolderLock(
+    outDir,
+    shard !== undefined ? shardLockName(shard) : undefined,
+  );
   try {
     if (lock.stale !== undefined) {
       process.stderr.write(
         `run: the lock of a run that was killed (process ${lock.stale.pid}, started ${lock.stale.started}) was found and taken over\n`,
       );
     }
-    const removed = await removePreviousRun(outDir);
+    const removed = await removePreviousRun(outDir, manifestFile);
     if (removed > 0) {
       process.stderr.write(`run: removed ${removed} result file(s) of the previous run here\n`);
     }
-    return await runLocked({ plan, text, planFile, outDir, steps, started, options });
+    return await runLocked({ plan, text, planFile, outDir, steps, started, options, manifestFile });
   } finally {
     await lock.release();
   }
@@ -519,10 +543,10 @@ export async function runPlan(planFile: string, options: RunOptions): Promise<Ma
  * runs side by side. Files no manifest lists are left alone. Returns the
  * number of files removed.
  */
-async function removePreviousRun(outDir: string): Promise<number> {
+async function removePreviousRun(outDir: string, manifestFile: string): Promise<number> {
   let previous: unknown;
   try {
-    previous = JSON.parse(await readFile(join(outDir, MANIFEST_FILE), "utf8"));
+    previous = JSON.parse(await readFile(join(outDir, manifestFile), "utf8"));
   } catch {
     return 0;
   }
@@ -541,13 +565,16 @@ async function removePreviousRun(outDir: string): Promise<number> {
     await rm(path, { force: true });
     removed++;
   }
-  await rm(join(outDir, FIGURES_FOLDER), { recursive: true, force: true });
-  await rm(join(outDir, MANIFEST_FILE), { force: true });
+  // A shard removes its own results only: the figures and the merged manifest are the merge's.
+  if (manifestFile === MANIFEST_FILE) {
+    await rm(join(outDir, FIGURES_FOLDER), { recursive: true, force: true });
+  }
+  await rm(join(outDir, manifestFile), { force: true });
   return removed;
 }
 
 async function runLocked(
-  { plan, text, planFile, outDir, steps, started, options }: {
+  { plan, text, planFile, outDir, steps, started, options, manifestFile }: {
     plan: Plan;
     text: string;
     planFile: string;
@@ -555,6 +582,7 @@ async function runLocked(
     steps: readonly PlanStep[];
     started: string;
     options: RunOptions;
+    manifestFile: string;
   },
 ): Promise<Manifest> {
   const planBytes = new TextEncoder().encode(text);
@@ -569,13 +597,14 @@ async function runLocked(
     out_dir: outDir,
     started,
     require_targets: plan.require_targets || options.requireTargets === true,
+    ...(options.shard !== undefined ? { shard: options.shard } : {}),
   };
   // The manifest says "running" from the start and lists each step as it ends, so a
   // killed run leaves a manifest that says it did not finish and what it did.
   let writing = Promise.resolve();
   const writeManifest = (manifest: Manifest) => {
     writing = writing.then(() =>
-      writeFileAtomic(join(outDir, MANIFEST_FILE), JSON.stringify(manifest, null, 2) + "\n")
+      writeFileAtomic(join(outDir, manifestFile), JSON.stringify(manifest, null, 2) + "\n")
     );
     return writing;
   };
@@ -652,7 +681,8 @@ async function runLocked(
     done.add(steps[finished].id);
     await writeManifest(progressManifest());
   }
-  const targets = await evaluateTargets(plan, outDir, failed);
+  // A shard's targets wait for the merge: they may read any shard's results.
+  const targets = options.shard === undefined ? await evaluateTargets(plan, outDir, failed) : [];
   let manifest: Manifest = {
     ...header,
     finished: new Date().toISOString(),
@@ -660,12 +690,17 @@ async function runLocked(
     steps: results,
     targets,
   };
-  if (plan.report !== undefined && options.report !== undefined) {
+  if (plan.report !== undefined && options.report !== undefined && options.shard === undefined) {
     const reportPath = await options.report(outDir, manifest, plan);
     manifest = { ...manifest, report: relative(outDir, reportPath) };
   }
   await writeManifest(manifest);
   return manifest;
+}
+
+/** Bytes of an input file (0 when it does not exist). */
+function inputSize(path: string): number {
+  return existsSync(path) ? statSync(path).size : 0;
 }
 
 /** Whether an `inputs` option names two or more channels (a list, or "a,b" text). */
