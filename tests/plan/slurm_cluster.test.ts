@@ -133,7 +133,7 @@ describe.skipIf(skip)("a sharded campaign on a single-node Slurm cluster", () =>
     });
     expect(submit.status, submit.stderr).toBe(0);
     expect(submit.stdout).toMatch(/shards: job array \d+, merge: job \d+/);
-    await until("the merged manifest", CAMPAIGN_MS, async () => {
+    await until("the merged manifest", CAMPAIGN_MS, () => {
       const queue = spawnSync("squeue", ["-h"], { env, encoding: "utf8", timeout: 30_000 });
       if (queue.status !== 0 || queue.stdout.trim() !== "") return false;
       return existsSync(`${dir}/out/manifest.json`);
