@@ -1,5 +1,5 @@
 import { existsSync } from "node:fs";
-import { readdir, readFile, rm } from "node:fs/promises";
+import { readdir, readFile, rm, writeFile } from "node:fs/promises";
 import { beforeAll, describe, expect, test } from "vitest";
 import { joinShardSteps } from "../../lib/plan/merge.ts";
 import { assignShards, parseShard } from "../../lib/plan/shards.ts";
@@ -161,9 +161,38 @@ describe("a sharded campaign on one machine", () => {
     expect(existsSync(`${dir}/out/report.html`)).toBe(true);
   });
 
+  test("a shard with a failed step merges as a failed run (exit 1); an unfinished shard is named", async () => {
+    const name = `${dir}/out/manifest.shard-3-of-3.json`;
+    const original = await readFile(name, "utf8");
+    const part = JSON.parse(original);
+    part.steps[0] = {
+      ...part.steps[0],
+      status: "failed",
+      error: "broken.csv:3: bad row",
+      outputs: {},
+    };
+    await writeFile(name, JSON.stringify(part));
+    const failed = runQuiver(["merge", `${dir}/out`]);
+    expect(failed.code).toBe(1);
+    expect(failed.stderr).toContain(`${part.steps[0].id}: failed: broken.csv:3: bad row`);
+    const merged = JSON.parse(await readFile(`${dir}/out/manifest.json`, "utf8"));
+    expect(merged.status).toBe("failed");
+    // A shard still running (or killed) is not merged.
+    await writeFile(
+      name,
+      JSON.stringify({ ...JSON.parse(original), status: "running", finished: null }),
+    );
+    await rm(`${dir}/out/manifest.json`);
+    const unfinished = runQuiver(["merge", `${dir}/out`]);
+    expect(unfinished.code).toBe(1);
+    expect(unfinished.stderr).toMatch(/shard 3 of 3 did not finish/);
+    expect(existsSync(`${dir}/out/manifest.json`)).toBe(false);
+    await writeFile(name, original);
+  });
+
   test("a missing shard is named and the merge exits non-zero, writing nothing", async () => {
     await rm(`${dir}/out/manifest.shard-2-of-3.json`);
-    await rm(`${dir}/out/manifest.json`);
+    await rm(`${dir}/out/manifest.json`, { force: true });
     const m = runQuiver(["merge", `${dir}/out`]);
     expect(m.code).toBe(1);
     expect(m.stderr).toMatch(/shard 2 of 3 is missing/);
