@@ -274,7 +274,7 @@ export class CsvScanner {
       // The row split by the chunk boundary first (a small copy), then the rest in place.
       const split = bytes.indexOf(LF);
       if (split < 0) {
-        this.#pending = concat(this.#pending, bytes);
+        this.#pending = appended(this.#pending, bytes);
         return;
       }
       const rest = this.#countRows(concat(this.#pending, bytes.subarray(0, split + 1)));
@@ -447,7 +447,18 @@ function rowText(bytes: Uint8Array, start: number, end: number): string {
   );
 }
 
-/** `a` then `b`, copying only when `a` holds anything. */
+/**
+ * `kept` then `more` in a new array: for bytes kept past this push, as the
+ * reader refills the buffer `more` lies in.
+ */
+function appended(kept: Uint8Array, more: Uint8Array): Uint8Array {
+  const out = new Uint8Array(kept.length + more.length);
+  out.set(kept);
+  out.set(more, kept.length);
+  return out;
+}
+
+/** `a` then `b`, copying only when `a` holds anything (for bytes used within this push). */
 function concat(a: Uint8Array, b: Uint8Array): Uint8Array {
   if (a.length === 0) return b;
   const out = new Uint8Array(a.length + b.length);
@@ -624,7 +635,7 @@ export class CsvRowParser {
       // The row split by the chunk boundary first (a small copy), then the rest in place.
       const split = bytes.indexOf(LF);
       if (split < 0) {
-        this.#carry = concat(this.#carry, bytes);
+        this.#carry = appended(this.#carry, bytes);
         return;
       }
       const joined = concat(this.#carry, bytes.subarray(0, split + 1));
