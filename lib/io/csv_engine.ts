@@ -187,16 +187,6 @@ function scanNumber(bytes: Uint8Array, start: number, limit: number, mark: numbe
   const written = decoder.decode(bytes.subarray(start, k));
   return Number(mark === COMMA ? written.replace(",", ".") : written);
 }
-/** Decimals written in `bytes[start, end)`, Infinity with an exponent. */
-function decimalsIn(bytes: Uint8Array, start: number, end: number, mark: number): number {
-  let at = -1;
-  for (let k = start; k < end; k++) {
-    const b = bytes[k];
-    if (b === LOWER_E || b === UPPER_E) return Infinity;
-    if (b === mark) at = k;
-  }
-  return at < 0 ? 0 : end - at - 1;
-}
 
 const decoder = new TextDecoder();
 const text = (bytes: Uint8Array, start: number, end: number) =>
@@ -768,7 +758,8 @@ export class CsvRowParser {
     const v = parseNumberBytes(bytes, a, b, mark);
     if (v - v !== 0) return false;
     this.#values[column] = v;
-    if (this.#wantDecimals[column] === 1) this.#decimals[column] = decimalsIn(bytes, a, b, mark);
+    // The scan that read the value counted its decimals.
+    if (this.#wantDecimals[column] === 1) this.#decimals[column] = scannedDecimals;
     return true;
   }
 
@@ -851,5 +842,5 @@ export function parseCellText(
   if (value - value !== 0) {
     throw new QuiverError(describeBadNumber(cell, mark), { file, line, column });
   }
-  return { value, decimals: decimalsIn(bytes, 0, bytes.length, m) };
+  return { value, decimals: scannedDecimals };
 }
