@@ -508,12 +508,7 @@ export async function runPlan(planFile: string, options: RunOptions): Promise<Ma
   const all = planSteps(plan, resolve(planFile), outDir, options.commands);
   const shard = options.shard;
   // A shard runs its own steps only; the whole plan was validated above all the same.
-  // Weighed by the plan's own inputs only: a result another step writes counts nothing, so
-  // every shard computes the same assignment whatever has been written by then.
-  const produced = new Set(all.flatMap((s) => Object.values(s.outputs)));
-  const shardOf = shard !== undefined
-    ? assignShards(all, shard.count, (path) => produced.has(path) ? 0 : inputSize(path))
-    : undefined;
+  const shardOf = shard !== undefined ? assignShards(all, shard.count) : undefined;
   const steps = shardOf === undefined ? all : all.filter((_, i) => shardOf[i] === shard!.index);
   const manifestFile = shard !== undefined ? shardManifestName(shard) : MANIFEST_FILE;
   await mkdir(outDir, { recursive: true });
@@ -696,11 +691,6 @@ async function runLocked(
   }
   await writeManifest(manifest);
   return manifest;
-}
-
-/** Bytes of an input file (0 when it does not exist). */
-function inputSize(path: string): number {
-  return existsSync(path) ? statSync(path).size : 0;
 }
 
 /** Whether an `inputs` option names two or more channels (a list, or "a,b" text). */

@@ -89,12 +89,16 @@ export function shardLockName(shard: Shard): string {
 export interface ShardableStep {
   readonly id: string;
   readonly needs: readonly string[];
-  /** Files the step reads (their sizes weigh its group). */
+  /** Files the step reads (their sizes weigh its group, unless a step writes them). */
   readonly inputs: readonly string[];
+  /** Files the step writes. Default none. */
+  readonly outputs?: Readonly<Record<string, string>>;
 }
 
 /**
- * The shard (1-based) of every step, by the module's rule.
+ * The shard (1-based) of every step, by the module's rule. Only the plan's
+ * own inputs weigh: a file some step writes counts nothing, so every shard
+ * computes the same assignment whatever the others have written by then.
  *
  * @example
  * ```ts
@@ -112,6 +116,8 @@ export function assignShards(
   count: number,
   sizeOf: (path: string) => number = fileSize,
 ): number[] {
+  const produced = new Set(steps.flatMap((s) => Object.values(s.outputs ?? {})));
+  const weight = (path: string) => (produced.has(path) ? 0 : sizeOf(path));
   // Union–find over the needs: a group is a connected set of steps.
   const parent = steps.map((_, i) => i);
   const find = (i: number): number => {
@@ -141,7 +147,7 @@ export function assignShards(
   });
   const weighed = [...groups.values()].map((g) => ({
     ...g,
-    weight: [...g.files].reduce((sum, f) => sum + sizeOf(f), 0),
+    weight: [...g.files].reduce((sum, f) => sum + weight(f), 0),
   })).sort((a, b) => b.weight - a.weight || a.first - b.first);
   const load = new Array(count).fill(0);
   const taken = new Array(count).fill(0); // groups per shard: the tie-break where loads are equal

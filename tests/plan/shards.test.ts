@@ -27,6 +27,11 @@ describe("the shard rule", () => {
     expect(shards).toEqual([1, 1, 1, 2, 2, 2, 1]);
     // The same plan gives the same shards every time.
     expect(assignShards(steps, 2, (f) => size[f])).toEqual(shards);
+    // A file a step writes weighs nothing, whether it exists yet or not: with "big" written by
+    // a step w, a's group weighs 0 and is dealt last: b 60→1, c 50→2, d 20→2 (70), then a and
+    // w (0 each) to shard 1 (60).
+    const written = [...steps, { ...step("w"), outputs: { out: "big" } }];
+    expect(assignShards(written, 2, (f) => size[f])).toEqual([1, 1, 1, 1, 2, 2, 2, 1]);
   });
 
   test("K/N and auto (a Slurm job array) parse; anything else is refused", () => {
