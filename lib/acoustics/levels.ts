@@ -18,6 +18,20 @@ const REFERENCES: Readonly<Record<string, number>> = {
 };
 
 /**
+ * The ISO 1683 reference of a unit (20 µPa for Pa, 1 µm/s^2 for m/s^2, …),
+ * or undefined when it has none.
+ *
+ * @example
+ * ```ts
+ * import { standardReference } from "./levels.ts";
+ * if (standardReference("Pa") !== 20e-6 || standardReference("V") !== undefined) throw new Error();
+ * ```
+ */
+export function standardReference(unit: string): number | undefined {
+  return Object.hasOwn(REFERENCES, unit) ? REFERENCES[unit] : undefined;
+}
+
+/**
  * The reference value for a unit, or `override` when given.
  *
  * @throws {QuiverError} (usage) for a unit without a standard reference and no override.
@@ -35,7 +49,7 @@ export function levelReference(unit: string, override?: number): number {
     }
     return override;
   }
-  const reference = REFERENCES[unit];
+  const reference = standardReference(unit);
   if (reference === undefined) {
     throw new QuiverError(
       `no standard level reference for unit [${unit}]; give one (e.g. --reference 1)`,

@@ -256,7 +256,7 @@ function solveLines(
       continue;
     }
     condition[k] = largest / smallest;
-    const inverse = new Float64Array(values.map((v) => 1 / v));
+    const inverse = values.map((v) => 1 / v);
     for (let c = 0; c < q; c++) principal[c][k] = values[c];
     // (Gxx⁻¹)ᵢᵢ = Σₖ |Vᵢₖ|²/λₖ, for the conditioned input spectra.
     const { re: vre, im: vim } = eigen.vectors;

@@ -41,8 +41,8 @@ import {
 import type { DetrendMode } from "../dsp/detrend.ts";
 import type { WindowName } from "../dsp/windows.ts";
 import { bandPowersFromDensity } from "../acoustics/band_synthesis.ts";
-import { type BandFraction, bandsInRange } from "../acoustics/bands.ts";
-import { levelDb, levelReference, levelUnit } from "../acoustics/levels.ts";
+import { type Band, type BandFraction, bandsInRange } from "../acoustics/bands.ts";
+import { levelDb, levelUnit, standardReference } from "../acoustics/levels.ts";
 import type { Weighting } from "../acoustics/weighting.ts";
 import type { FrfChannel, FrfData } from "../frf/frf_data.ts";
 import { frfUnit } from "../frf/forms.ts";
@@ -494,52 +494,44 @@ function tablesOf(
   const top = frequencies[lines - 1];
   const low = Math.max(frequencies[0], df);
   const bands = top > low * 1.5 ? bandsInRange(fraction, low * 1.12, top / 1.12) : [];
-  const densityOf = (re: Float64Array, im: Float64Array) => {
-    const d = new Float64Array(Math.round(top / df) + 1);
-    frequencies.forEach((f, n) => d[Math.round(f / df)] = re[n] ** 2 + im[n] ** 2);
+  // Every density once on the full 0 … top axis (the transfers' lines may start above 0 Hz),
+  // then band powers from it: per-band levels, and the ranking bands in one call per path.
+  const fullAxis = new Float64Array(Math.round(top / df) + 1).map((_, k) => k * df);
+  const onFullAxis = (value: (n: number) => number) => {
+    const d = new Float64Array(fullAxis.length);
+    frequencies.forEach((f, n) => d[Math.round(f / df)] = value(n));
     return d;
   };
-  const fullAxis = new Float64Array(Math.round(top / df) + 1).map((_, k) => k * df);
-  const powers = (re: Float64Array, im: Float64Array, wanted = bands) =>
-    bandPowersFromDensity(
-      { frequencies: fullAxis, density: densityOf(re, im), df },
-      wanted,
-      weighting,
-    ).power;
-  const targetDensity = new Float64Array(fullAxis.length);
-  frequencies.forEach((f, n) => targetDensity[Math.round(f / df)] = target[n]);
-  const targetBands = bandPowersFromDensity(
-    { frequencies: fullAxis, density: targetDensity, df },
-    bands,
-    weighting,
-  ).power;
+  const powers = (density: Float64Array, wanted: readonly Band[]) =>
+    bandPowersFromDensity({ frequencies: fullAxis, density, df }, wanted, weighting).power;
+  const pathDensities = contributions.map((c) => onFullAxis((n) => c.re[n] ** 2 + c.im[n] ** 2));
+  const sumDensity = onFullAxis((n) => sumRe[n] ** 2 + sumIm[n] ** 2);
   const levelName = levelUnit(weighting, reference, targetChannel.unit);
+  const inDb = (power: Float64Array) => power.map((p) => levelDb(p, reference));
   const bandColumns: TableColumn[] = [
     { name: "band_hz", unit: "Hz", values: new Float64Array(bands.map((b) => b.nominalHz)) },
     ...paths.map((name, i) => ({
       name: `${name}_level`,
       unit: levelName,
-      values: powers(contributions[i].re, contributions[i].im).map((p) => levelDb(p, reference)),
+      values: inDb(powers(pathDensities[i], bands)),
     })),
-    {
-      name: "sum_of_paths_level",
-      unit: levelName,
-      values: powers(sumRe, sumIm).map((p) => levelDb(p, reference)),
-    },
+    { name: "sum_of_paths_level", unit: levelName, values: inDb(powers(sumDensity, bands)) },
     {
       name: "target_level",
       unit: levelName,
-      values: targetBands.map((p) => levelDb(p, reference)),
+      values: inDb(powers(onFullAxis((n) => target[n]), bands)),
     },
   ];
   // Rankings: the analysed range whole, then each octave band in it.
   const whole = { index: 0, centerHz: NaN, nominalHz: NaN, lowerHz: low - df / 2, upperHz: top };
   const octaves = top > low * 2 ? bandsInRange(1, low * 1.5, top / 1.5) : [];
-  const rank = (band: typeof whole, label: string) => {
-    const energy = paths.map((_, i) => powers(contributions[i].re, contributions[i].im, [band])[0]);
-    const total = energy.reduce((s, e) => s + e, 0);
+  const rankBands: Band[] = [whole, ...octaves];
+  const energies = pathDensities.map((d) => powers(d, rankBands));
+  const ranking = rankBands.map((band, j) => {
+    const energy = energies.map((e) => e[j]);
+    const total = energy.reduce((sum, e) => sum + e, 0);
     return {
-      band: label,
+      band: j === 0 ? "analysed range" : `${band.nominalHz} Hz octave`,
       from_hz: band.lowerHz,
       to_hz: band.upperHz,
       paths: paths
@@ -550,11 +542,7 @@ function tablesOf(
         }))
         .sort((a, b) => b.level_db - a.level_db),
     };
-  };
-  const ranking = [
-    rank(whole, "analysed range"),
-    ...octaves.map((b) => rank(b, `${b.nominalHz} Hz octave`)),
-  ];
+  });
   const metadata = {
     analysis: "paths",
     method,
@@ -587,16 +575,6 @@ function tablesOf(
       metadata: { ...metadata, analysis: "paths_bands", band_fraction: fraction },
     },
   };
-}
-
-/** The unit's standard level reference (20 µPa for Pa, …), or undefined when it has none. */
-function standardReference(unit: string): number | undefined {
-  try {
-    return levelReference(unit);
-  } catch (error) {
-    if (error instanceof QuiverError) return undefined;
-    throw error;
-  }
 }
 
 function regularisationText(r: Regularisation): string {
