@@ -34,6 +34,20 @@ function transfer(
 }
 
 // Three mount forces from a common source plus one independent source each.
+/** A direct-method set-up: the mount forces and the microphone, one transfer per mount. */
+function directSetup(forces: Float64Array[], mic: Float64Array) {
+  const recording: Recording = {
+    rate: RATE,
+    startTime: 0,
+    channels: [
+      ...forces.map((data, i) => ({ name: `mount_${i + 1}`, unit: "N", data })),
+      { name: "cabin_mic", unit: "Pa", data: mic },
+    ],
+  };
+  const transfers = TO_MIC.map((taps) => transfer({ cabin_mic: taps }, () => "Pa/N"));
+  return { recording, transfers };
+}
+
 /**
  * An inverse-method set-up: indicator channels made from the forces through
  * `toIndicator[a][i]` (FIR taps, indicator a per force i) plus white noise,
@@ -122,15 +136,7 @@ const column = (table: Table, name: string) =>
 describe("direct path contributions of a known 3-path system", async () => {
   const f = forces();
   const mic = add(...f.map((x, i) => fir(x, TO_MIC[i])), scale(gaussianNoise(55, N), MIC_NOISE));
-  const recording: Recording = {
-    rate: RATE,
-    startTime: 0,
-    channels: [
-      ...f.map((data, i) => ({ name: `mount_${i + 1}`, unit: "N", data })),
-      { name: "cabin_mic", unit: "Pa", data: mic },
-    ],
-  };
-  const transfers = TO_MIC.map((taps) => transfer({ cabin_mic: taps }, () => "Pa/N"));
+  const { recording, transfers } = directSetup(f, mic);
   const result = await pathContributions(recording, {
     references: ["mount_1", "mount_2", "mount_3"],
     target: "cabin_mic",
@@ -302,15 +308,7 @@ describe("contributions of periodic forces against their closed form", () => {
     return { part, sumDb: db(Math.hypot(kept.re, kept.im), pMag) };
   };
   const wrap = (deg: number) => ((deg % 360) + 540) % 360 - 180;
-  const recording: Recording = {
-    rate: RATE,
-    startTime: 0,
-    channels: [
-      ...f.map((data, i) => ({ name: `mount_${i + 1}`, unit: "N", data })),
-      { name: "cabin_mic", unit: "Pa", data: mic },
-    ],
-  };
-  const transfers = TO_MIC.map((taps) => transfer({ cabin_mic: taps }, () => "Pa/N"));
+  const { recording, transfers } = directSetup(f, mic);
   const periodic = { window: "rectangular", detrend: "none", overlap: 0 } as const;
 
   test("direct: each contribution's level and phase against the target, and their sum, as the closed form says", async () => {

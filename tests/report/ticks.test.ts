@@ -65,7 +65,8 @@ describe("axes that contain the data", () => {
       series: [{ name: "s", x, y: x.map((v) => 10 ** (-v)) }], // 17 decades
     });
     expect(power).toContain("PSD [Pa^2/Hz], top 120 dB shown");
-    // 10·lg of a power: 120 dB is 12 decades below the largest value, 0.1.
+    // 10·lg of a power (the decibel of a power quantity, IEC 60027-3, from memory): 120 dB is 12
+    // decades below the largest value, 0.1.
     expect(Math.min(...ticks(power))).toBeCloseTo(1e-13, 20);
     // Values below the clamp are drawn at the bottom edge (clamped scale), none below it.
     const bottom = Math.max(...pathPoints(power).map((p) => p[1]));
@@ -77,7 +78,7 @@ describe("axes that contain the data", () => {
       series: [{ name: "s", x, y: x.map((v) => 10 ** (-v)) }],
     });
     expect(amplitude).toContain("|H| [Pa/N], top 120 dB shown");
-    // 20·lg of an amplitude: 120 dB is 6 decades below 0.1.
+    // 20·lg of an amplitude (a root-power quantity, same standard): 120 dB is 6 decades below 0.1.
     expect(Math.min(...ticks(amplitude))).toBeCloseTo(1e-7, 12);
   });
 });
