@@ -3,7 +3,7 @@
 Run from the project root:  python3 tests/reference/make_wav_reference.py
 
 The files are written by scipy.io.wavfile.write where it can (16- and 32-bit
-integer PCM, 32-bit float) and by hand with struct for 8-bit, 24-bit and a
+integer PCM, 32- and 64-bit float) and by hand with struct for 8-bit, 24-bit and a
 WAVE_FORMAT_EXTENSIBLE header. The expected values are what scipy.io.wavfile.read
 returns, divided by 2^(bits-1) (2^31 for 24-bit, which scipy left-justifies
 into int32), i.e. fractions of digital full scale.
@@ -63,6 +63,7 @@ def main() -> None:
     i32[0, 0] = -2147483648
     wavfile.write(OUT / "pcm32_3ch.wav", RATE, i32.astype(np.int32))
     wavfile.write(OUT / "float32_stereo.wav", RATE, x2.astype(np.float32))
+    wavfile.write(OUT / "float64_3ch.wav", RATE, x3)
 
     i24 = np.round(x2 * 8388607).astype(np.int64)
     i24[0, 0] = -8388608
@@ -74,7 +75,7 @@ def main() -> None:
     u8[0, 0] = 0
     write_manual(OUT / "pcm8_stereo.wav", u8.tobytes(), 2, 8, 1)
 
-    for name in ["pcm16_stereo", "pcm32_3ch", "float32_stereo", "pcm24_stereo",
+    for name in ["pcm16_stereo", "pcm32_3ch", "float32_stereo", "float64_3ch", "pcm24_stereo",
                  "pcm24_stereo_extensible", "pcm8_stereo"]:
         rate, data = wavfile.read(OUT / f"{name}.wav")
         if data.dtype == np.int16:
