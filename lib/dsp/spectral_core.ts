@@ -356,8 +356,13 @@ export class SpectralAccumulator {
   readonly #lineScale: Float64Array;
   readonly #enbwHz: number;
   readonly #alpha: number;
-  readonly #buffers: Float64Array[];
-  #filled = 0;
+  /** The samples from #nextStart to the end of the last chunk (fewer than one block). */
+  readonly #tail: Float64Array[];
+  #tailFilled = 0;
+  /** Where the next segment starts, in samples since the first pushed. */
+  #nextStart = 0;
+  /** One segment assembled from the tail and a new chunk. */
+  readonly #stitch: Float64Array[];
   readonly #scratch: Float64Array;
   readonly #re: Float64Array[];
   readonly #im: Float64Array[];
@@ -399,7 +404,8 @@ export class SpectralAccumulator {
     this.#alpha = 1 - Math.exp(-this.#o.hop / (rate * this.#o.tau));
     const make = (count: number, length: number) =>
       Array.from({ length: count }, () => new Float64Array(length));
-    this.#buffers = make(channelCount, block);
+    this.#tail = make(channelCount, block);
+    this.#stitch = make(channelCount, block);
     this.#scratch = new Float64Array(block);
     this.#re = make(channelCount, lines);
     this.#im = make(channelCount, lines);
@@ -429,24 +435,46 @@ export class SpectralAccumulator {
     if (chunk.some((c) => c.length !== length)) {
       throw new RangeError("every channel of a chunk must have the same length");
     }
-    this.#samplesPushed += length;
     const { block, hop } = this.#o;
-    let offset = 0;
-    while (offset < length) {
-      const take = Math.min(block - this.#filled, length - offset);
+    const chunkStart = this.#samplesPushed;
+    const chunkEnd = chunkStart + length;
+    this.#samplesPushed = chunkEnd;
+    // Segments that lie inside the chunk are read where they stand; only one that straddles
+    // the previous chunk is stitched into #stitch from the kept tail (#tail) and this chunk.
+    while (this.#nextStart + block <= chunkEnd) {
+      const start = this.#nextStart;
+      if (start >= chunkStart) {
+        this.#processSegment(chunk, start - chunkStart);
+      } else {
+        const fromTail = chunkStart - start;
+        const skip = this.#tailFilled - fromTail; // tail samples before this segment
+        for (let c = 0; c < this.#channelCount; c++) {
+          const stitch = this.#stitch[c];
+          stitch.set(this.#tail[c].subarray(skip, this.#tailFilled));
+          stitch.set(chunk[c].subarray(0, block - fromTail), fromTail);
+        }
+        this.#processSegment(this.#stitch, 0);
+      }
+      this.#nextStart += hop;
+    }
+    // Keep what the next segment needs: the chunk from its start, after the kept tail if the
+    // segment starts before this chunk (its samples then number fewer than one block).
+    const keepFrom = this.#nextStart;
+    if (keepFrom >= chunkStart) {
+      const from = keepFrom - chunkStart;
       for (let c = 0; c < this.#channelCount; c++) {
-        this.#buffers[c].set(
-          chunk[c].subarray(offset, offset + take),
-          this.#filled,
-        );
+        this.#tail[c].set(chunk[c].subarray(from, length));
       }
-      this.#filled += take;
-      offset += take;
-      if (this.#filled === block) {
-        this.#processSegment(this.#buffers);
-        for (const buffer of this.#buffers) buffer.copyWithin(0, hop);
-        this.#filled = block - hop;
+      this.#tailFilled = length - from;
+    } else {
+      const fromTail = chunkStart - keepFrom;
+      const skip = this.#tailFilled - fromTail;
+      for (let c = 0; c < this.#channelCount; c++) {
+        const tail = this.#tail[c];
+        tail.copyWithin(0, skip, this.#tailFilled);
+        tail.set(chunk[c], fromTail);
       }
+      this.#tailFilled = fromTail + length;
     }
   }
 
@@ -466,10 +494,11 @@ export class SpectralAccumulator {
         `a segment must hold ${this.#channelCount} channels of ${this.#o.block} samples`,
       );
     }
-    this.#processSegment(segment);
+    this.#processSegment(segment, 0);
   }
 
-  #processSegment(source: readonly Float64Array[]): void {
+  /** Transforms and accumulates the block of every channel that starts at `start`. */
+  #processSegment(source: readonly Float64Array[], start: number): void {
     const { detrend, average, pairs } = this.#o;
     const scratch = this.#scratch;
     const window = this.#window;
@@ -477,17 +506,17 @@ export class SpectralAccumulator {
       const x = source[c];
       const n = scratch.length;
       if (detrend === "linear") {
-        scratch.set(x);
+        for (let i = 0; i < n; i++) scratch[i] = x[start + i];
         detrendInPlace(scratch, detrend);
         for (let i = 0; i < n; i++) scratch[i] *= window[i];
       } else {
         // Mean removal and window in one pass: the same operations, (x − mean)·w.
         let mean = 0;
         if (detrend === "mean") {
-          for (let i = 0; i < n; i++) mean += x[i];
+          for (let i = 0; i < n; i++) mean += x[start + i];
           mean /= n;
         }
-        for (let i = 0; i < n; i++) scratch[i] = (x[i] - mean) * window[i];
+        for (let i = 0; i < n; i++) scratch[i] = (x[start + i] - mean) * window[i];
       }
       this.#plan.forward(scratch, this.#re[c], this.#im[c]);
     }
