@@ -56,29 +56,52 @@ export class ChannelStatistics {
 
   /** Adds the next samples. */
   push(x: Float64Array): void {
+    // The state lives in locals for the loop (fields read and written per sample cost more than
+    // the checks themselves); it is stored back before a run is judged and at the end.
+    let sum = this.#sum, sumSquares = this.#sumSquares, min = this.#min, max = this.#max;
+    let high = this.#high, low = this.#low;
+    let runValue = this.#runValue, runLength = this.#runLength, beforeRun = this.#beforeRun;
     for (let i = 0; i < x.length; i++) {
       const v = x[i];
-      this.#n++;
-      this.#sum += v;
-      this.#sumSquares += v * v;
-      if (v > this.#max) {
-        this.#max = v;
-        this.#high = emptyRail();
+      sum += v;
+      sumSquares += v * v;
+      if (v > max) {
+        max = v;
+        high = emptyRail();
       }
-      if (v < this.#min) {
-        this.#min = v;
-        this.#low = emptyRail();
+      if (v < min) {
+        min = v;
+        low = emptyRail();
       }
-      if (v === this.#max) this.#high.count++;
-      if (v === this.#min) this.#low.count++;
-      if (v === this.#runValue) this.#runLength++;
+      if (v === max) high.count++;
+      if (v === min) low.count++;
+      if (v === runValue) runLength++;
       else {
-        this.#closeRun(v);
-        this.#beforeRun = this.#runValue;
-        this.#runValue = v;
-        this.#runLength = 1;
+        if (runLength >= 3) {
+          this.#min = min;
+          this.#max = max;
+          this.#high = high;
+          this.#low = low;
+          this.#runValue = runValue;
+          this.#runLength = runLength;
+          this.#beforeRun = beforeRun;
+          this.#closeRun(v);
+        }
+        beforeRun = runValue;
+        runValue = v;
+        runLength = 1;
       }
     }
+    this.#n += x.length;
+    this.#sum = sum;
+    this.#sumSquares = sumSquares;
+    this.#min = min;
+    this.#max = max;
+    this.#high = high;
+    this.#low = low;
+    this.#runValue = runValue;
+    this.#runLength = runLength;
+    this.#beforeRun = beforeRun;
   }
 
   /**
