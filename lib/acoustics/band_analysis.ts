@@ -22,7 +22,8 @@
 import { formatNumber } from "../format_number.ts";
 import { channelIndices } from "../io/recording.ts";
 import type { Table, TableColumn } from "../io/table.ts";
-import { resolveBlock, SpectralAccumulator, type SpectralEstimate } from "../dsp/spectral_core.ts";
+import { resolveBlock, type SpectralEstimate } from "../dsp/spectral_core.ts";
+import { spectralEstimateOf } from "../dsp/spectral_pipeline.ts";
 import { asStream, readChecked, type RecordingSource } from "../io/recording_stream.ts";
 import { type Band, type BandFraction, bandsInRange } from "./bands.ts";
 import { bandPowersFromDensity } from "./band_synthesis.ts";
@@ -117,13 +118,12 @@ export async function bandLevels(
   }
   const channels = indices.map((i) => stream.channels[i]);
   const plan = bandPlan(channels, stream.rate, options, []);
-  const accumulator = new SpectralAccumulator(channels.length, {
+  const { estimate, warnings } = await spectralEstimateOf(stream, indices, {
     rate: stream.rate,
     block: fftBlock(stream.rate, stream.length, plan.bands[0], options),
   });
-  const warnings = await readChecked(stream, indices, (chunk) => accumulator.push(chunk));
   plan.warnings.unshift(...warnings);
-  return bandResult(channels, stream.rate, plan, fftBandPowers(accumulator.finish(), plan));
+  return bandResult(channels, stream.rate, plan, fftBandPowers(estimate, plan));
 }
 
 /** The filter method's band levels from the channels' filter-bank powers. */

@@ -6,13 +6,9 @@
  */
 import { channelIndices } from "../io/recording.ts";
 import type { Table, TableColumn } from "../io/table.ts";
-import { asStream, readChecked, type RecordingSource } from "../io/recording_stream.ts";
-import {
-  resolveBlock,
-  SpectralAccumulator,
-  type SpectralEstimate,
-  type SpectralOptions,
-} from "./spectral_core.ts";
+import { asStream, type RecordingSource } from "../io/recording_stream.ts";
+import { resolveBlock, type SpectralEstimate, type SpectralOptions } from "./spectral_core.ts";
+import { spectralEstimateOf, type SpectralSinkOptions } from "./spectral_pipeline.ts";
 import { autoSpectrum, type SpectrumKind, spectrumUnit } from "./spectrum_kinds.ts";
 import { WINDOW_DEFINITIONS, windowGains, windowSamples } from "./windows.ts";
 
@@ -26,6 +22,11 @@ export interface AveragedSpectrumOptions extends Omit<SpectralOptions, "rate" | 
   resolution?: number;
   /** Spectrum kind. Default `"psd"`. */
   kind?: SpectrumKind;
+  /**
+   * Where the spectral core runs (spectral_pipeline.ts): `"auto"` moves it to a worker
+   * for long records, so that reading and transforming overlap. Default `"auto"`.
+   */
+  thread?: SpectralSinkOptions["thread"];
 }
 
 /**
@@ -53,10 +54,14 @@ export async function averagedSpectrum(
   const stream = asStream(source);
   const indices = channelIndices(stream.channels, options.channels);
   const channels = indices.map((i) => stream.channels[i]);
-  const accumulator = spectrumAccumulator(stream.rate, channels.length, options);
-  const warnings = await readChecked(stream, indices, (chunk) => accumulator.push(chunk));
+  const { estimate, warnings } = await spectralEstimateOf(
+    stream,
+    indices,
+    spectralOptionsFor(stream.rate, options),
+    { thread: options.thread },
+  );
   return spectrumTable({
-    estimate: accumulator.finish(),
+    estimate,
     channels,
     options,
     length: stream.length,
@@ -65,22 +70,9 @@ export async function averagedSpectrum(
   });
 }
 
-function spectrumAccumulator(
-  rate: number,
-  channelCount: number,
-  options: AveragedSpectrumOptions,
-): SpectralAccumulator {
-  const block = resolveBlock(rate, options);
+function spectralOptionsFor(rate: number, options: AveragedSpectrumOptions): SpectralOptions {
   const { overlap, window, detrend, average, tau } = options;
-  return new SpectralAccumulator(channelCount, {
-    rate,
-    block,
-    overlap,
-    window,
-    detrend,
-    average,
-    tau,
-  });
+  return { rate, block: resolveBlock(rate, options), overlap, window, detrend, average, tau };
 }
 
 function spectrumTable(

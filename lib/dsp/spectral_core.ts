@@ -270,10 +270,41 @@ interface ResolvedOptions {
   pairs: readonly (readonly [number, number])[];
 }
 
+/**
+ * Checks the options as {@linkcode SpectralAccumulator}'s constructor does,
+ * with the same errors, without building anything: for a caller that hands
+ * the core to another thread and wants the errors here.
+ *
+ * @throws {RangeError} for impossible options.
+ *
+ * @example
+ * ```ts
+ * import { validateSpectralOptions } from "./spectral_core.ts";
+ * let message = "";
+ * try { validateSpectralOptions(1, { rate: 100, block: 64, overlap: 1 }); }
+ * catch (e) { message = (e as Error).message; }
+ * if (!message.includes("overlap")) throw new Error(message);
+ * ```
+ */
+export function validateSpectralOptions(channelCount: number, options: SpectralOptions): void {
+  resolveOptions(channelCount, options);
+}
+
 function resolveOptions(
   channelCount: number,
   options: SpectralOptions,
 ): ResolvedOptions {
+  if (!Number.isInteger(channelCount) || channelCount < 1) {
+    throw new RangeError(
+      `the spectral core needs at least one channel, got ${channelCount}`,
+    );
+  }
+  if (
+    options.frames !== undefined &&
+    !(Number.isInteger(options.frames.segments) && options.frames.segments >= 1)
+  ) {
+    throw new RangeError(`a frame needs at least one segment, got ${options.frames.segments}`);
+  }
   const { rate, block } = options;
   if (!(rate > 0) || !Number.isFinite(rate)) {
     throw new RangeError(`rate must be a positive number of Hz, got ${rate}`);
@@ -380,19 +411,8 @@ export class SpectralAccumulator {
    * @throws {RangeError} for impossible options
    */
   constructor(channelCount: number, options: SpectralOptions) {
-    if (!Number.isInteger(channelCount) || channelCount < 1) {
-      throw new RangeError(
-        `the spectral core needs at least one channel, got ${channelCount}`,
-      );
-    }
     this.#o = resolveOptions(channelCount, options);
     this.#channelCount = channelCount;
-    if (
-      options.frames !== undefined &&
-      !(Number.isInteger(options.frames.segments) && options.frames.segments >= 1)
-    ) {
-      throw new RangeError(`a frame needs at least one segment, got ${options.frames.segments}`);
-    }
     this.#frames = options.frames;
     const { block, rate } = this.#o;
     this.#plan = realFftPlan(block);

@@ -11,12 +11,13 @@ import type { Table, TableColumn } from "../io/table.ts";
 import {
   resolveBlock,
   segmentMetadata,
-  SpectralAccumulator,
   type SpectralEstimate,
+  type SpectralOptions,
 } from "../dsp/spectral_core.ts";
 import type { DetrendMode } from "../dsp/detrend.ts";
 import type { WindowName } from "../dsp/windows.ts";
-import { asStream, readChecked, type RecordingSource } from "../io/recording_stream.ts";
+import { asStream, type RecordingSource } from "../io/recording_stream.ts";
+import { spectralEstimateOf } from "../dsp/spectral_pipeline.ts";
 import { coherence, type Estimator, frfEstimate } from "./estimators.ts";
 import {
   convertFrfForm,
@@ -231,10 +232,13 @@ export async function frequencyResponse(
   checkFrfOptions(options);
   const indices = channelIndices(stream.channels, [options.input, ...options.outputs]);
   const channels = indices.map((i) => stream.channels[i]);
-  const accumulator = frfAccumulator(stream.rate, channels.length, options);
-  const warnings = await readChecked(stream, indices, (chunk) => accumulator.push(chunk));
+  const { estimate, warnings } = await spectralEstimateOf(
+    stream,
+    indices,
+    frfSpectralOptions(stream.rate, channels.length, options),
+  );
   return frfResult({
-    estimate: accumulator.finish(),
+    estimate,
     channels,
     options,
     length: stream.length,
@@ -251,19 +255,19 @@ function checkFrfOptions(options: FrfOptions): void {
   }
 }
 
-function frfAccumulator(
+function frfSpectralOptions(
   rate: number,
   channelCount: number,
   options: FrfOptions,
-): SpectralAccumulator {
-  return new SpectralAccumulator(channelCount, {
+): SpectralOptions {
+  return {
     rate,
     block: resolveBlock(rate, options),
     overlap: options.overlap,
     window: options.window,
     detrend: options.detrend,
     pairs: Array.from({ length: channelCount - 1 }, (_, i) => [0, i + 1] as const),
-  });
+  };
 }
 
 function frfResult(

@@ -28,14 +28,10 @@
 import { QuiverError } from "../errors.ts";
 import { formatNumber } from "../format_number.ts";
 import { channelIndices } from "../io/recording.ts";
-import { asStream, readChecked, type RecordingSource } from "../io/recording_stream.ts";
+import { asStream, type RecordingSource } from "../io/recording_stream.ts";
+import { spectralEstimateOf } from "../dsp/spectral_pipeline.ts";
 import type { Table, TableColumn } from "../io/table.ts";
-import {
-  resolveBlock,
-  segmentMetadata,
-  SpectralAccumulator,
-  type SpectralEstimate,
-} from "../dsp/spectral_core.ts";
+import { resolveBlock, segmentMetadata, type SpectralEstimate } from "../dsp/spectral_core.ts";
 import type { DetrendMode } from "../dsp/detrend.ts";
 import type { WindowName } from "../dsp/windows.ts";
 import { frfUnit } from "./forms.ts";
@@ -168,7 +164,7 @@ export async function multipleInputFrf(
   const pairs: (readonly [number, number])[] = [];
   for (let i = 0; i < q; i++) for (let j = i + 1; j < q; j++) pairs.push([i, j]);
   for (let i = 0; i < q; i++) for (let o = 0; o < p; o++) pairs.push([i, q + o]);
-  const accumulator = new SpectralAccumulator(channels.length, {
+  const { estimate, warnings: signalWarnings } = await spectralEstimateOf(stream, indices, {
     rate: stream.rate,
     block: resolveBlock(stream.rate, options),
     overlap: options.overlap,
@@ -176,8 +172,6 @@ export async function multipleInputFrf(
     detrend: options.detrend,
     pairs,
   });
-  const signalWarnings = await readChecked(stream, indices, (chunk) => accumulator.push(chunk));
-  const estimate = accumulator.finish();
   const frf = solveLines(estimate, channels.slice(0, q), channels.slice(q));
   return tables(frf, estimate, options, stream.length, signalWarnings);
 }

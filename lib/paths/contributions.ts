@@ -30,14 +30,10 @@
 import { QuiverError } from "../errors.ts";
 import { formatNumber } from "../format_number.ts";
 import { channelIndices } from "../io/recording.ts";
-import { asStream, readChecked, type RecordingSource } from "../io/recording_stream.ts";
+import { asStream, type RecordingSource } from "../io/recording_stream.ts";
+import { spectralEstimateOf } from "../dsp/spectral_pipeline.ts";
 import type { Table, TableColumn } from "../io/table.ts";
-import {
-  scaleFactor,
-  type Scaling,
-  SpectralAccumulator,
-  type SpectralEstimate,
-} from "../dsp/spectral_core.ts";
+import { scaleFactor, type Scaling, type SpectralEstimate } from "../dsp/spectral_core.ts";
 import type { DetrendMode } from "../dsp/detrend.ts";
 import type { WindowName } from "../dsp/windows.ts";
 import { bandPowersFromDensity } from "../acoustics/band_synthesis.ts";
@@ -260,7 +256,7 @@ export async function pathContributions(
   const targetChannel = channels[channels.length - 1];
   const m = measured.length;
   const pairs = Array.from({ length: m }, (_, i) => [i, m] as const);
-  const accumulator = new SpectralAccumulator(channels.length, {
+  const read = await spectralEstimateOf(stream, indices, {
     rate: stream.rate,
     block,
     overlap: options.overlap,
@@ -268,8 +264,8 @@ export async function pathContributions(
     detrend: options.detrend,
     pairs,
   });
-  warnings.push(...await readChecked(stream, indices, (chunk) => accumulator.push(chunk)));
-  const estimate = accumulator.finish();
+  warnings.push(...read.warnings);
+  const estimate = read.estimate;
 
   // The target's transfer of each path, and (inverse) the indicators'.
   const responseOf = (t: FrfData, name: string, path: string, alone: boolean): FrfChannel => {
