@@ -227,25 +227,81 @@ const SORT_LIMIT = 1 << 16;
 export function kthSmallest(
   series: SampleSeries,
   k: number,
-  map: (value: number) => number = (v) => v,
+  map?: (value: number) => number,
 ): number {
-  if (!Number.isInteger(k) || k < 0 || k >= series.length) {
-    throw new RangeError(`k must be an index of the ${series.length} samples, got ${k}`);
+  return kthSmallestOfMany(series, [k], map)[0];
+}
+
+/** One level of narrowing: the range [lo, lo + BINS·width) cut into bins, and the bin kept. */
+interface Level {
+  lo: number;
+  width: number;
+  bin: number;
+}
+
+function binOf(v: number, level: Level): number {
+  return level.width > 0
+    ? Math.min(BINS - 1, Math.max(0, Math.floor((v - level.lo) / level.width)))
+    : (v > level.lo ? 1 : 0);
+}
+
+function inRange(v: number, levels: readonly Level[]): boolean {
+  for (let l = 0; l < levels.length; l++) if (binOf(v, levels[l]) !== levels[l].bin) return false;
+  return true;
+}
+
+/** Counts, minima and maxima per bin of the values inside `levels` (one pass). */
+function histogram(
+  series: SampleSeries,
+  levels: readonly Level[],
+  level: Level,
+  map: ((value: number) => number) | undefined,
+): { counts: Float64Array; mins: Float64Array; maxs: Float64Array } {
+  const counts = new Float64Array(BINS);
+  const mins = new Float64Array(BINS).fill(Infinity);
+  const maxs = new Float64Array(BINS).fill(-Infinity);
+  series.scan((chunk) => {
+    for (let i = 0; i < chunk.length; i++) {
+      const v = map === undefined ? chunk[i] : map(chunk[i]);
+      if (levels.length > 0 && !inRange(v, levels)) continue;
+      const b = binOf(v, level);
+      counts[b]++;
+      if (v < mins[b]) mins[b] = v;
+      if (v > maxs[b]) maxs[b] = v;
+    }
+  });
+  return { counts, mins, maxs };
+}
+
+/**
+ * {@linkcode kthSmallest} for several ranks at once: the pass that finds the
+ * range and the first histogram are shared, so two percentiles (or the two
+ * middle values of an even-length median) cost little more than one.
+ *
+ * @throws {RangeError} as {@linkcode kthSmallest}.
+ *
+ * @example
+ * ```ts
+ * import { kthSmallestOfMany, memorySeries } from "./sample_series.ts";
+ * const s = memorySeries(new Float64Array([5, 3, 9, 1, 7]));
+ * const [a, b] = kthSmallestOfMany(s, [0, 4]);
+ * if (a !== 1 || b !== 9) throw new Error();
+ * ```
+ */
+export function kthSmallestOfMany(
+  series: SampleSeries,
+  ks: readonly number[],
+  map?: (value: number) => number,
+): number[] {
+  for (const k of ks) {
+    if (!Number.isInteger(k) || k < 0 || k >= series.length) {
+      throw new RangeError(`k must be an index of the ${series.length} samples, got ${k}`);
+    }
   }
-  // The chain of bins chosen so far: a value is in range when every level puts it in its bin.
-  const levels: { lo: number; width: number; bin: number }[] = [];
-  const binOf = (v: number, level: { lo: number; width: number }) =>
-    level.width > 0
-      ? Math.min(BINS - 1, Math.max(0, Math.floor((v - level.lo) / level.width)))
-      : (v > level.lo ? 1 : 0);
-  const inRange = (v: number) => {
-    for (const level of levels) if (binOf(v, level) !== level.bin) return false;
-    return true;
-  };
   let lo = Infinity, hi = -Infinity;
   series.scan((chunk) => {
     for (let i = 0; i < chunk.length; i++) {
-      const v = map(chunk[i]);
+      const v = map === undefined ? chunk[i] : map(chunk[i]);
       if (!Number.isFinite(v)) {
         throw new RangeError(`order statistics need finite values, found ${v}`);
       }
@@ -253,36 +309,59 @@ export function kthSmallest(
       if (v > hi) hi = v;
     }
   });
-  let below = 0; // values before the current range
-  let count = series.length;
+  if (lo === hi) return ks.map(() => lo);
+  if (series.length <= SORT_LIMIT) {
+    const sorted = sortedInRange(series, [], series.length, map);
+    return ks.map((k) => sorted[k]);
+  }
+  const first: Level = { lo, width: (hi - lo) / BINS, bin: -1 };
+  const shared = histogram(series, [], first, map);
+  return ks.map((k) => {
+    let b = 0, below = 0;
+    while (below + shared.counts[b] <= k) below += shared.counts[b++];
+    return narrow(series, k, {
+      levels: [{ ...first, bin: b }],
+      below,
+      count: shared.counts[b],
+      lo: shared.mins[b],
+      hi: shared.maxs[b],
+    }, map);
+  });
+}
+
+/** The values inside `levels`, sorted (there must be exactly `count`). */
+function sortedInRange(
+  series: SampleSeries,
+  levels: readonly Level[],
+  count: number,
+  map: ((value: number) => number) | undefined,
+): Float64Array {
+  const values = new Float64Array(count);
+  let n = 0;
+  series.scan((chunk) => {
+    for (let i = 0; i < chunk.length; i++) {
+      const v = map === undefined ? chunk[i] : map(chunk[i]);
+      if (inRange(v, levels)) values[n++] = v;
+    }
+  });
+  if (n !== count) throw new Error("the series changed between passes");
+  return values.sort();
+}
+
+/** Narrows from a chosen bin until the k-th value is known. */
+function narrow(
+  series: SampleSeries,
+  k: number,
+  state: { levels: Level[]; below: number; count: number; lo: number; hi: number },
+  map: ((value: number) => number) | undefined,
+): number {
+  let { below, count, lo, hi } = state;
+  const levels = state.levels;
   for (;;) {
     if (lo === hi) return lo;
-    if (count <= SORT_LIMIT) {
-      const values = new Float64Array(count);
-      let n = 0;
-      series.scan((chunk) => {
-        for (let i = 0; i < chunk.length; i++) {
-          const v = map(chunk[i]);
-          if (inRange(v)) values[n++] = v;
-        }
-      });
-      if (n !== count) throw new Error("the series changed between passes");
-      return values.sort()[k - below];
-    }
-    const level = { lo, width: (hi - lo) / BINS, bin: -1 };
-    const counts = new Float64Array(BINS);
-    const mins = new Float64Array(BINS).fill(Infinity);
-    const maxs = new Float64Array(BINS).fill(-Infinity);
-    series.scan((chunk) => {
-      for (let i = 0; i < chunk.length; i++) {
-        const v = map(chunk[i]);
-        if (!inRange(v)) continue;
-        const b = binOf(v, level);
-        counts[b]++;
-        if (v < mins[b]) mins[b] = v;
-        if (v > maxs[b]) maxs[b] = v;
-      }
-    });
+    if (count <= SORT_LIMIT) return sortedInRange(series, levels, count, map)[k - below];
+    const level: Level = { lo, width: (hi - lo) / BINS, bin: -1 };
+    const { counts, mins, maxs } = histogram(series, levels, level, map);
     let b = 0;
     while (below + counts[b] <= k) below += counts[b++];
     level.bin = b;
@@ -305,10 +384,11 @@ export function kthSmallest(
  */
 export function medianOfSeries(
   series: SampleSeries,
-  map: (value: number) => number = (v) => v,
+  map?: (value: number) => number,
 ): number {
   const n = series.length;
   if (n === 0) return NaN;
-  const upper = kthSmallest(series, n >> 1, map);
-  return n % 2 === 1 ? upper : (kthSmallest(series, (n >> 1) - 1, map) + upper) / 2;
+  if (n % 2 === 1) return kthSmallest(series, n >> 1, map);
+  const [lower, upper] = kthSmallestOfMany(series, [(n >> 1) - 1, n >> 1], map);
+  return (lower + upper) / 2;
 }

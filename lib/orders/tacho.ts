@@ -21,7 +21,7 @@
  */
 import { minOf } from "../extent.ts";
 import { QuiverError } from "../errors.ts";
-import { kthSmallest, memorySeries, type SampleSeries } from "../io/sample_series.ts";
+import { kthSmallestOfMany, memorySeries, type SampleSeries } from "../io/sample_series.ts";
 
 /** Options of {@linkcode tachoPulses}. */
 export interface TachoOptions {
@@ -48,9 +48,11 @@ export interface TachoPulses {
 }
 
 /** The p-th percentile as the value at rank round(p/100·(n − 1)) of the sorted record, exactly. */
-function percentile(series: SampleSeries, p: number): number {
+/** The samples at the given percentiles (nearest rank), in one set of passes. */
+function percentiles(series: SampleSeries, ps: readonly number[]): number[] {
   const n = series.length;
-  return kthSmallest(series, Math.min(n - 1, Math.max(0, Math.round((p / 100) * (n - 1)))));
+  const rank = (p: number) => Math.min(n - 1, Math.max(0, Math.round((p / 100) * (n - 1))));
+  return kthSmallestOfMany(series, ps.map(rank));
 }
 
 function localMedian(values: number[], i: number, half = 5): number {
@@ -82,8 +84,7 @@ export function tachoPulses(
 ): TachoPulses {
   const series = signal instanceof Float64Array ? memorySeries(signal) : signal;
   if (series.length < 2) throw new QuiverError("the tacho channel is flat: no pulses to find");
-  const low = percentile(series, 2);
-  const high = percentile(series, 98);
+  const [low, high] = percentiles(series, [2, 98]);
   const level = options.level ?? (low + high) / 2;
   const hysteresis = options.hysteresis ?? 0.2 * (high - low);
   if (!(hysteresis > 0)) {

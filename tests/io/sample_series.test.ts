@@ -1,5 +1,11 @@
 import { describe, expect, test } from "vitest";
-import { kthSmallest, memorySeries, spoolChannels } from "../../lib/io/sample_series.ts";
+import {
+  kthSmallest,
+  kthSmallestOfMany,
+  medianOfSeries,
+  memorySeries,
+  spoolChannels,
+} from "../../lib/io/sample_series.ts";
 import { recordingSource } from "../../lib/io/recording_stream.ts";
 import { gaussianNoise, uniformGenerator } from "../helpers/random.ts";
 
@@ -31,7 +37,19 @@ describe("exact order statistics of a series", () => {
         expect(kthSmallest(series, k), `k = ${k}`).toBe(sortedAt(data, k));
       }
     });
+    test(`${name}: several ranks in one call (shared passes) equal a full sort`, () => {
+      const n = data.length;
+      const ks = [n - 1, Math.round(0.98 * (n - 1)), 0, n >> 1, (n >> 1) - 1, 1];
+      const sorted = data.slice().sort();
+      expect(kthSmallestOfMany(memorySeries(data), ks)).toEqual(ks.map((k) => sorted[k]));
+    });
   }
+
+  test("the median of an even-length series is the mean of the two middle sorted values", () => {
+    const data = gaussianNoise(12, 200_000);
+    const sorted = data.slice().sort();
+    expect(medianOfSeries(memorySeries(data))).toBe((sorted[99_999] + sorted[100_000]) / 2);
+  });
 
   test("with a map: the median absolute deviation equals the sorted one", () => {
     const data = gaussianNoise(2, 150_000);
