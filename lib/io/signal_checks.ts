@@ -37,6 +37,27 @@ interface Rail {
 const emptyRail = (): Rail => ({ count: 0, cutSamples: 0, cutRuns: 0 });
 
 /**
+ * Judges a run of at least 3 equal samples that has just ended at the sample
+ * `after` (NaN at the record's end): one at a rail, with its neighbours on
+ * the same side, cuts the waveform. The range used is the range so far: it
+ * only grows, so a run judged early is judged at most more strictly.
+ */
+function closeRun(
+  run: { value: number; length: number; before: number; after: number },
+  range: { min: number; max: number; high: Rail; low: Rail },
+): void {
+  const v = run.value;
+  const rail = v === range.max ? range.high : v === range.min ? range.low : undefined;
+  if (rail === undefined) return;
+  const half = 0.5 * (range.max - range.min);
+  const near = (u: number) => Number.isNaN(u) || Math.abs(u - v) < half;
+  if (near(run.before) && near(run.after)) {
+    rail.cutSamples += run.length;
+    rail.cutRuns++;
+  }
+}
+
+/**
  * Running statistics of one channel over chunks, for the warnings above:
  * feed every chunk in order, then ask for {@linkcode ChannelStatistics.warnings}.
  * A whole record and the same record in chunks give the same warnings.
@@ -57,7 +78,7 @@ export class ChannelStatistics {
   /** Adds the next samples. */
   push(x: Float64Array): void {
     // The state lives in locals for the loop (fields read and written per sample cost more than
-    // the checks themselves); it is stored back before a run is judged and at the end.
+    // the checks themselves) and is stored back at the end.
     let sum = this.#sum, sumSquares = this.#sumSquares, min = this.#min, max = this.#max;
     let high = this.#high, low = this.#low;
     let runValue = this.#runValue, runLength = this.#runLength, beforeRun = this.#beforeRun;
@@ -78,14 +99,12 @@ export class ChannelStatistics {
       if (v === runValue) runLength++;
       else {
         if (runLength >= 3) {
-          this.#min = min;
-          this.#max = max;
-          this.#high = high;
-          this.#low = low;
-          this.#runValue = runValue;
-          this.#runLength = runLength;
-          this.#beforeRun = beforeRun;
-          this.#closeRun(v);
+          closeRun({ value: runValue, length: runLength, before: beforeRun, after: v }, {
+            min,
+            max,
+            high,
+            low,
+          });
         }
         beforeRun = runValue;
         runValue = v;
@@ -104,24 +123,6 @@ export class ChannelStatistics {
     this.#beforeRun = beforeRun;
   }
 
-  /**
-   * Ends the run in progress at the sample `after` (NaN at the record's end).
-   * The range used is the range so far: it only grows, so a run judged early
-   * is judged at most more strictly.
-   */
-  #closeRun(after: number): void {
-    if (this.#runLength < 3) return;
-    const v = this.#runValue;
-    const rail = v === this.#max ? this.#high : v === this.#min ? this.#low : undefined;
-    if (rail === undefined) return;
-    const half = 0.5 * (this.#max - this.#min);
-    const near = (u: number) => Number.isNaN(u) || Math.abs(u - v) < half;
-    if (near(this.#beforeRun) && near(after)) {
-      rail.cutSamples += this.#runLength;
-      rail.cutRuns++;
-    }
-  }
-
   /** The warnings for the samples pushed so far. */
   warnings(channel: { name: string; unit: string }): string[] {
     const n = this.#n;
@@ -134,11 +135,12 @@ export class ChannelStatistics {
     }
     // Close the run in progress on copies, so that more samples can still follow.
     const high = { ...this.#high }, low = { ...this.#low };
-    const saved = [this.#high, this.#low];
-    this.#high = high;
-    this.#low = low;
-    this.#closeRun(NaN);
-    [this.#high, this.#low] = saved;
+    if (this.#runLength >= 3) {
+      closeRun(
+        { value: this.#runValue, length: this.#runLength, before: this.#beforeRun, after: NaN },
+        { min, max, high, low },
+      );
+    }
     const warnings: string[] = [];
     const clipping = [high, low].filter((r) => r.count < 0.5 * n);
     const cut = clipping.reduce((a, r) => a + r.cutSamples, 0);
