@@ -10,6 +10,7 @@ import { spawnSync } from "node:child_process";
 import { existsSync } from "node:fs";
 import process from "node:process";
 import { fileURLToPath } from "node:url";
+import { timed } from "./timed.ts";
 
 const rev = Deno.args[0] ?? "e2e4dcd";
 const root = fileURLToPath(new URL("../../", import.meta.url));
@@ -39,24 +40,16 @@ try {
     const rss: Record<string, number[]> = { now: [], before: [] };
     for (let round = 0; round < 3; round++) {
       for (const [label, tree] of [["before", old], ["now", root]] as const) {
-        const r = spawnSync("/usr/bin/time", [
-          "-f",
-          "%e %M",
-          process.execPath,
+        const r = timed(process.execPath, [
           "run",
           "-A",
           `${tree}/cli/main.ts`,
           ...args,
           "--out",
           `${root}out/bench/against_${label}_${name}.csv`,
-        ], {
-          encoding: "utf8",
-          cwd: tree,
-        });
-        if (r.status !== 0) throw new Error(`${label} ${name} failed: ${r.stderr}`);
-        const [seconds, kb] = r.stderr.trim().split("\n").pop()!.split(" ").map(Number);
-        times[label].push(seconds);
-        rss[label].push(kb / 1024);
+        ], tree);
+        times[label].push(r.seconds);
+        rss[label].push(r.rssMb);
       }
     }
     const before = median(times.before), now = median(times.now);

@@ -19,6 +19,7 @@ import { spectralEstimate } from "../../lib/dsp/spectral_core.ts";
 import { openRecordingStream } from "../../lib/io/recording_stream.ts";
 import { encodeWav } from "../../lib/io/wav.ts";
 import { uniformGenerator } from "../helpers/random.ts";
+import { timed } from "./timed.ts";
 
 const DIR = "out/bench";
 const MAIN = fileURLToPath(new URL("../../cli/main.ts", import.meta.url));
@@ -41,14 +42,6 @@ async function writeCsv(path: string, samples: number): Promise<void> {
     rows.push(`${i / 51200},${r().toPrecision(9)},${r().toPrecision(9)}`);
   }
   await writeFile(path, rows.join("\n") + "\n");
-}
-
-/** Runs a command under GNU time; returns seconds and peak RSS in MB. */
-function timed(command: string, args: string[]): { seconds: number; rssMb: number } {
-  const r = spawnSync("/usr/bin/time", ["-f", "%e %M", command, ...args], { encoding: "utf8" });
-  if (r.status !== 0) throw new Error(`${command} failed: ${r.stderr}`);
-  const [seconds, kb] = r.stderr.trim().split("\n").pop()!.split(" ").map(Number);
-  return { seconds, rssMb: kb / 1024 };
 }
 
 const deno = process.execPath;

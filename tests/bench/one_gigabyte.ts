@@ -5,12 +5,12 @@
  * time and peak RSS (GNU time). A check that nothing reads the whole file into one string
  * or array, not a speed claim: nothing here asserts, it prints what happened.
  */
-import { spawnSync } from "node:child_process";
 import { existsSync, statSync } from "node:fs";
 import { mkdir, open, writeFile } from "node:fs/promises";
 import process from "node:process";
 import { fileURLToPath } from "node:url";
 import { uniformGenerator } from "../helpers/random.ts";
+import { timedRun } from "./timed.ts";
 
 const DIR = "out/bench";
 const CSV = `${DIR}/rig_1gb.csv`;
@@ -154,22 +154,10 @@ const runs: [string, string[]][] = [
 ];
 console.log(`${CSV}: ${(statSync(CSV).size / 1e9).toFixed(2)} GB, 4 channels × ${ROWS} rows`);
 for (const [name, args] of runs) {
-  const r = spawnSync("/usr/bin/time", [
-    "-f",
-    "%e %M",
-    process.execPath,
-    "run",
-    "-A",
-    MAIN,
-    ...args,
-  ], {
-    encoding: "utf8",
-  });
-  const last = r.stderr.trim().split("\n");
-  const [seconds, kb] = last.pop()!.split(" ").map(Number);
+  const r = timedRun(process.execPath, ["run", "-A", MAIN, ...args]);
   console.log(
-    `  ${name.padEnd(15)} exit ${r.status}  ${seconds.toFixed(1).padStart(6)} s  peak RSS ${
-      (kb / 1024).toFixed(0).padStart(5)
-    } MB${r.status === 0 ? "" : `\n    ${last.slice(-3).join("\n    ")}`}`,
+    `  ${name.padEnd(15)} exit ${r.status}  ${r.seconds.toFixed(1).padStart(6)} s  peak RSS ${
+      r.rssMb.toFixed(0).padStart(5)
+    } MB${r.status === 0 ? "" : `\n    ${r.stderr.split("\n").slice(-3).join("\n    ")}`}`,
   );
 }
