@@ -53,7 +53,20 @@ const mode = z.looseObject({
   halfPower: z.looseObject({ dampingRatio: finiteOrNull }).optional(),
 });
 
-/** The metadata schema of each analysis. */
+/**
+ * The metadata schema of each analysis: what every reader of a quiver result
+ * file checks the sidecar's metadata against (unknown fields are kept).
+ *
+ * @example
+ * ```ts
+ * import { RESULT_METADATA } from "./result_metadata.ts";
+ * import { averagedSpectrum } from "../dsp/averaged_spectrum.ts";
+ * const data = new Float64Array(1024).map((_, i) => Math.sin(i));
+ * const { metadata } = await averagedSpectrum({ rate: 256, startTime: 0, channels: [{ name: "a", unit: "V", data }] }, { block: 256 });
+ * if (!RESULT_METADATA.spectrum.safeParse(metadata).success) throw new Error("a spectrum's own metadata");
+ * if (RESULT_METADATA.spectrum.safeParse({ ...metadata, kind: "psd2" }).success) throw new Error("an unknown kind");
+ * ```
+ */
 export const RESULT_METADATA = {
   spectrum: z.looseObject({
     ...common,
