@@ -97,26 +97,32 @@ export function tachoPulses(
   let lastCross = NaN;
   let previous = NaN;
   // A Schmitt trigger over the record chunk by chunk; `previous` carries the last sample across.
+  // The state is copied into locals for each chunk's loop (captured variables cost more per
+  // sample than the comparisons) and stored back after it.
   series.scan((chunk, offset) => {
+    let isArmed = armed, cross = lastCross, before = previous;
     for (let j = 0; j < chunk.length; j++) {
       const i = offset + j;
       const value = chunk[j];
       if (i === 0) {
-        armed = value < lower;
-        previous = value;
+        isArmed = value < lower;
+        before = value;
         continue;
       }
-      if (previous < level && value >= level) {
-        lastCross = (i - 1 + (level - previous) / (value - previous)) / rate;
+      if (before < level && value >= level) {
+        cross = (i - 1 + (level - before) / (value - before)) / rate;
       }
-      if (armed && value >= upper) {
-        raw.push(Number.isNaN(lastCross) ? i / rate : lastCross);
-        armed = false;
-      } else if (!armed && value <= lower) {
-        armed = true;
+      if (isArmed && value >= upper) {
+        raw.push(Number.isNaN(cross) ? i / rate : cross);
+        isArmed = false;
+      } else if (!isArmed && value <= lower) {
+        isArmed = true;
       }
-      previous = value;
+      before = value;
     }
+    armed = isArmed;
+    lastCross = cross;
+    previous = before;
   });
   if (raw.length < 3) {
     throw new QuiverError(

@@ -4,6 +4,37 @@ import { linearProfile, quadraticProfile, ttlTacho } from "../helpers/run_up.ts"
 
 const RATE = 51200; // a common acquisition rate; a 60-pulse wheel at 4800 rpm pulses at 4.8 kHz
 
+describe("tacho pulses read in chunks", () => {
+  test("an edge that falls between two chunks is timed as in one piece, at its true crossing", () => {
+    // Truth: each edge is a straight ramp from 0 to 5 V over 4 samples, so the 2.5 V crossing
+    // lies exactly half-way up the ramp (linear interpolation is exact on a line).
+    const period = 40, edgeStart = 10;
+    const signal = new Float64Array(41 * period).map((_, i) => {
+      const phase = i % period;
+      if (phase < edgeStart) return 0;
+      if (phase < edgeStart + 4) return (5 * (phase - edgeStart)) / 4;
+      return phase < 30 ? 5 : 0;
+    });
+    const chunked = (size: number) => ({
+      length: signal.length,
+      read: (from: number, to: number) => signal.slice(from, to),
+      readInto: (target: Float64Array, from: number) =>
+        target.set(signal.subarray(from, from + target.length)),
+      scan(visit: (chunk: Float64Array, offset: number) => void) {
+        for (let at = 0; at < signal.length; at += size) {
+          visit(signal.slice(at, Math.min(signal.length, at + size)), at);
+        }
+      },
+    });
+    const whole = tachoPulses(signal, 1000, { ppr: 1, level: 2.5, hysteresis: 1 }).times;
+    expect(whole.length).toBe(41);
+    whole.forEach((t, k) => expect(t).toBeCloseTo((k * period + edgeStart + 2) / 1000, 12));
+    // Chunks of 12 samples: edges start at 10, 50, 90, …, so some crossings straddle a chunk.
+    const inPieces = tachoPulses(chunked(12), 1000, { ppr: 1, level: 2.5, hysteresis: 1 }).times;
+    expect(Array.from(inPieces)).toEqual(Array.from(whole));
+  });
+});
+
 describe("rpm from a tacho", () => {
   for (const ppr of [1, 2, 60]) {
     test(`${ppr} pulse(s) per revolution with one missing pulse: rpm within 0.5 %`, () => {
