@@ -19,6 +19,7 @@ import {
   type SpectralOptions,
   validateSpectralOptions,
 } from "./spectral_core.ts";
+import { CONSUMED, END, LENGTHS, WRITTEN } from "./spectral_ring.ts";
 import { QuiverError } from "../errors.ts";
 import { readChecked, type RecordingStream } from "../io/recording_stream.ts";
 
@@ -50,7 +51,8 @@ export interface SpectralSinkOptions {
 
 /**
  * Samples over all channels from which `"auto"` hands the core to a worker:
- * below it, starting the worker (about 0.1 s) costs more than it saves.
+ * below it, the transforms are too few to repay the worker's start (at 2^22,
+ * the bench's CSV, ten alternating runs showed no gain).
  */
 export const WORKER_MIN_SAMPLES = 2 ** 23;
 
@@ -58,12 +60,8 @@ export const WORKER_MIN_SAMPLES = 2 ** 23;
 const SLOTS = 4;
 /** Rows per slot (a longer chunk goes through in pieces). */
 const SLOT_ROWS = 65536;
-/** Control words: [0] slots written, [1] slots consumed, then each slot's row count. */
-const WRITTEN = 0, CONSUMED = 1, LENGTHS = 2;
 /** How long push waits for a slot before it calls the worker lost. */
 const STALL_MS = 300_000;
-/** A slot's row count that tells the worker the record has ended. */
-const END = -1;
 
 /** The message that starts a worker. */
 export interface SpectralWorkerStart {

@@ -7,8 +7,7 @@
  */
 import { SpectralAccumulator } from "./spectral_core.ts";
 import type { SpectralWorkerReply, SpectralWorkerStart } from "./spectral_pipeline.ts";
-
-const WRITTEN = 0, CONSUMED = 1, LENGTHS = 2, END = -1;
+import { CONSUMED, END, LENGTHS, WRITTEN } from "./spectral_ring.ts";
 
 interface WorkerScope {
   onmessage: ((event: MessageEvent<SpectralWorkerStart>) => void) | null;
