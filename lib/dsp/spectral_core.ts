@@ -389,7 +389,6 @@ export class SpectralAccumulator {
   readonly #alpha: number;
   /** The samples from #nextStart to the end of the last chunk (fewer than one block). */
   readonly #tail: Float64Array[];
-  #tailFilled = 0;
   /** Where the next segment starts, in samples since the first pushed. */
   #nextStart = 0;
   /** One segment assembled from the tail and a new chunk. */
@@ -456,6 +455,8 @@ export class SpectralAccumulator {
       throw new RangeError("every channel of a chunk must have the same length");
     }
     const { block, hop } = this.#o;
+    // The tail holds the samples from tailStart (where the next segment starts) to chunkStart.
+    const tailStart = this.#nextStart;
     const chunkStart = this.#samplesPushed;
     const chunkEnd = chunkStart + length;
     this.#samplesPushed = chunkEnd;
@@ -467,10 +468,9 @@ export class SpectralAccumulator {
         this.#processSegment(chunk, start - chunkStart);
       } else {
         const fromTail = chunkStart - start;
-        const skip = this.#tailFilled - fromTail; // tail samples before this segment
         for (let c = 0; c < this.#channelCount; c++) {
           const stitch = this.#stitch[c];
-          stitch.set(this.#tail[c].subarray(skip, this.#tailFilled));
+          stitch.set(this.#tail[c].subarray(start - tailStart, chunkStart - tailStart));
           stitch.set(chunk[c].subarray(0, block - fromTail), fromTail);
         }
         this.#processSegment(this.#stitch, 0);
@@ -480,21 +480,13 @@ export class SpectralAccumulator {
     // Keep what the next segment needs: the chunk from its start, after the kept tail if the
     // segment starts before this chunk (its samples then number fewer than one block).
     const keepFrom = this.#nextStart;
-    if (keepFrom >= chunkStart) {
-      const from = keepFrom - chunkStart;
-      for (let c = 0; c < this.#channelCount; c++) {
-        this.#tail[c].set(chunk[c].subarray(from, length));
+    for (let c = 0; c < this.#channelCount; c++) {
+      const tail = this.#tail[c];
+      if (keepFrom >= chunkStart) tail.set(chunk[c].subarray(keepFrom - chunkStart, length));
+      else {
+        tail.copyWithin(0, keepFrom - tailStart, chunkStart - tailStart);
+        tail.set(chunk[c], chunkStart - keepFrom);
       }
-      this.#tailFilled = length - from;
-    } else {
-      const fromTail = chunkStart - keepFrom;
-      const skip = this.#tailFilled - fromTail;
-      for (let c = 0; c < this.#channelCount; c++) {
-        const tail = this.#tail[c];
-        tail.copyWithin(0, skip, this.#tailFilled);
-        tail.set(chunk[c], fromTail);
-      }
-      this.#tailFilled = fromTail + length;
     }
   }
 
