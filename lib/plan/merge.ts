@@ -15,11 +15,11 @@
  *
  * @module
  */
-import { createHash } from "node:crypto";
 import { readdir, readFile } from "node:fs/promises";
 import { join, relative, resolve } from "node:path";
 import { QuiverError } from "../errors.ts";
 import { writeFileAtomic } from "../io/atomic_write.ts";
+import { sha256Hex } from "../io/table_file.ts";
 import { QUIVER_VERSION } from "../version.ts";
 import { type Manifest, manifestSchema } from "./manifest.ts";
 import {
@@ -159,8 +159,7 @@ export async function mergeShards(outDirIn: string, options: MergeOptions): Prom
   // The plan as the shards ran it: unchanged since, so targets and report read the same plan.
   const planPath = first.plan.path;
   const { plan, text } = await loadPlan(planPath);
-  const sha = createHash("sha256").update(new TextEncoder().encode(text)).digest("hex");
-  if (sha !== first.plan.sha256) {
+  if (sha256Hex(text) !== first.plan.sha256) {
     problems.push(`the plan ${planPath} changed after the shards ran`);
   }
   if (problems.length > 0) {

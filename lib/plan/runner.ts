@@ -23,6 +23,7 @@ import { existsSync, statSync } from "node:fs";
 import { mkdir, open, readFile, rm } from "node:fs/promises";
 import { dirname, isAbsolute, join, relative, resolve, sep } from "node:path";
 import { QuiverError } from "../errors.ts";
+import { sha256Hex } from "../io/table_file.ts";
 import { writeFileAtomic } from "../io/atomic_write.ts";
 import { QUIVER_VERSION } from "../version.ts";
 import { keyPath, optionsToArgv, type Plan, planSchema } from "./schema.ts";
@@ -586,7 +587,7 @@ async function runLocked(
     plan: {
       path: resolve(planFile),
       bytes: planBytes.length,
-      sha256: createHash("sha256").update(planBytes).digest("hex"),
+      sha256: sha256Hex(planBytes),
       title: plan.title,
     },
     out_dir: outDir,
