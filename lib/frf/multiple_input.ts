@@ -118,13 +118,13 @@ export interface MultipleInputResult {
  * so nearly coherent that H there follows noise (our choice, stated in the
  * warning).
  */
-export const ILL_CONDITIONED = 1000;
+const ILL_CONDITIONED = 1000;
 
 /** Below λmin/λmax of this, Gxx is singular to working precision: H is undefined. */
 const SINGULAR = 1e-13;
 
 /** Column name of H for output `y` per input `x`: `y/x`, the FRF's own notation. */
-export function pairName(output: string, input: string): string {
+function pairName(output: string, input: string): string {
   return `${output}/${input}`;
 }
 

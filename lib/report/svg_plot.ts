@@ -79,7 +79,7 @@ export function escapeXml(text: unknown): string {
 }
 
 /** The dynamic range a logarithmic value axis shows at most below its largest value. */
-export const DYNAMIC_RANGE_DB = 120;
+const DYNAMIC_RANGE_DB = 120;
 
 /** Decades of {@linkcode DYNAMIC_RANGE_DB}: 12 for powers, 6 for amplitudes. */
 function decadesShown(axis: Axis): number {
