@@ -19,8 +19,8 @@ import {
   type SpectralOptions,
   validateSpectralOptions,
 } from "./spectral_core.ts";
-import { CONSUMED, END, LENGTHS, WRITTEN } from "./spectral_ring.ts";
-import { QuiverError } from "../errors.ts";
+import { type RingBuffers, SharedRing } from "../shared_ring.ts";
+import { type PostedError, thrownError } from "../worker_errors.ts";
 import { readChecked, type RecordingStream } from "../io/recording_stream.ts";
 
 /** Where the spectral core runs: fed chunk by chunk, then asked for the estimate. */
@@ -63,20 +63,21 @@ const SLOT_ROWS = 65536;
 /** How long push waits for a slot before it calls the worker lost. */
 const STALL_MS = 300_000;
 
-/** The message that starts a worker. */
+/** The ring flag that tells the worker the record has ended. */
+export const END_OF_RECORD = 1;
+
+/** The message that starts a worker: a ring slot holds `slotRows` rows of each channel in turn. */
 export interface SpectralWorkerStart {
   channelCount: number;
   options: Omit<SpectralOptions, "frames">;
-  control: SharedArrayBuffer;
-  data: SharedArrayBuffer;
-  slots: number;
+  ring: RingBuffers;
   slotRows: number;
 }
 
 /** The worker's one reply. */
 export type SpectralWorkerReply =
   | { estimate: SpectralEstimate }
-  | { error: { name: string; message: string; detail?: string; kind?: "data" | "usage" } };
+  | { error: PostedError };
 
 function insideWorker(): boolean {
   return typeof (globalThis as { WorkerGlobalScope?: unknown }).WorkerGlobalScope !== "undefined";
@@ -128,25 +129,13 @@ export function spectralSink(
 
 class WorkerSink implements SpectralSink {
   readonly #channelCount: number;
-  readonly #control: Int32Array;
-  readonly #slots: Float64Array[][]; // [slot][channel]
+  readonly #ring: SharedRing;
   readonly #reply: Promise<SpectralWorkerReply>;
   readonly #worker: Worker;
-  #written = 0;
 
   constructor(channelCount: number, options: SpectralOptions) {
     this.#channelCount = channelCount;
-    const control = new SharedArrayBuffer(4 * (LENGTHS + SLOTS));
-    const data = new SharedArrayBuffer(8 * SLOTS * channelCount * SLOT_ROWS);
-    this.#control = new Int32Array(control);
-    this.#slots = Array.from(
-      { length: SLOTS },
-      (_, s) =>
-        Array.from(
-          { length: channelCount },
-          (_, c) => new Float64Array(data, 8 * (s * channelCount + c) * SLOT_ROWS, SLOT_ROWS),
-        ),
-    );
+    this.#ring = SharedRing.create(SLOTS, channelCount * SLOT_ROWS);
     this.#worker = new Worker(new URL("./spectral_worker.ts", import.meta.url).href, {
       type: "module",
     });
@@ -160,34 +149,20 @@ class WorkerSink implements SpectralSink {
     const start: SpectralWorkerStart = {
       channelCount,
       options,
-      control,
-      data,
-      slots: SLOTS,
+      ring: this.#ring.buffers,
       slotRows: SLOT_ROWS,
     };
     this.#worker.postMessage(start);
   }
 
-  /** Waits for a free slot and returns its index. */
-  #freeSlot(): number {
-    const control = this.#control;
-    for (;;) {
-      const consumed = Atomics.load(control, CONSUMED);
-      if (this.#written - consumed < SLOTS) return this.#written % SLOTS;
-      // A slot takes milliseconds; minutes without one mean the worker never started
-      // (its events cannot reach this thread while it waits here).
-      if (Atomics.wait(control, CONSUMED, consumed, STALL_MS) === "timed-out") {
-        this.#worker.terminate();
-        throw new Error(`the spectral worker took no chunk in ${STALL_MS / 1000} s`);
-      }
-    }
-  }
-
-  #hand(slot: number, rows: number): void {
-    Atomics.store(this.#control, LENGTHS + slot, rows);
-    this.#written++;
-    Atomics.store(this.#control, WRITTEN, this.#written);
-    Atomics.notify(this.#control, WRITTEN);
+  /** Waits for a free slot. */
+  #freeSlot(): Float64Array {
+    // A slot takes milliseconds; minutes without one mean the worker never started
+    // (its events cannot reach this thread while it waits here).
+    const slot = this.#ring.claim(STALL_MS);
+    if (slot !== undefined) return slot;
+    this.#worker.terminate();
+    throw new Error(`the spectral worker took no chunk in ${STALL_MS / 1000} s`);
   }
 
   push(chunk: readonly Float64Array[]): void {
@@ -201,11 +176,13 @@ class WorkerSink implements SpectralSink {
     for (let from = 0; from < length; from += SLOT_ROWS) {
       const rows = Math.min(SLOT_ROWS, length - from);
       const slot = this.#freeSlot();
-      const target = this.#slots[slot];
       for (let c = 0; c < chunk.length; c++) {
-        target[c].set(rows === length ? chunk[c] : chunk[c].subarray(from, from + rows));
+        slot.set(
+          rows === length ? chunk[c] : chunk[c].subarray(from, from + rows),
+          c * SLOT_ROWS,
+        );
       }
-      this.#hand(slot, rows);
+      this.#ring.publish(rows);
     }
   }
 
@@ -214,14 +191,12 @@ class WorkerSink implements SpectralSink {
   }
 
   async finish(): Promise<SpectralEstimate> {
-    this.#hand(this.#freeSlot(), END);
+    this.#freeSlot();
+    this.#ring.publish(0, END_OF_RECORD);
     const reply = await this.#reply;
     this.#worker.terminate();
     if ("estimate" in reply) return reply.estimate;
-    const { name, message, detail, kind } = reply.error;
-    if (name === "QuiverError") throw new QuiverError(detail ?? message, {}, kind);
-    if (name === "RangeError") throw new RangeError(message);
-    throw new Error(message);
+    throw thrownError(reply.error);
   }
 }
 

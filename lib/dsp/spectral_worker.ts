@@ -6,8 +6,13 @@
  * @module
  */
 import { SpectralAccumulator } from "./spectral_core.ts";
-import type { SpectralWorkerReply, SpectralWorkerStart } from "./spectral_pipeline.ts";
-import { CONSUMED, END, LENGTHS, WRITTEN } from "./spectral_ring.ts";
+import {
+  END_OF_RECORD,
+  type SpectralWorkerReply,
+  type SpectralWorkerStart,
+} from "./spectral_pipeline.ts";
+import { SharedRing } from "../shared_ring.ts";
+import { postedError } from "../worker_errors.ts";
 
 interface WorkerScope {
   onmessage: ((event: MessageEvent<SpectralWorkerStart>) => void) | null;
@@ -16,8 +21,8 @@ interface WorkerScope {
 const scope = globalThis as unknown as WorkerScope;
 
 scope.onmessage = (event) => {
-  const { channelCount, options, control: controlBuffer, data, slots, slotRows } = event.data;
-  const control = new Int32Array(controlBuffer);
+  const { channelCount, options, ring: buffers, slotRows } = event.data;
+  const ring = SharedRing.attach(buffers);
   let accumulator: SpectralAccumulator | undefined;
   let failure: unknown;
   try {
@@ -26,14 +31,12 @@ scope.onmessage = (event) => {
     failure = error;
   }
   const views = new Array<Float64Array>(channelCount);
-  for (let consumed = 0;; consumed++) {
-    while (Atomics.load(control, WRITTEN) === consumed) Atomics.wait(control, WRITTEN, consumed);
-    const slot = consumed % slots;
-    const rows = Atomics.load(control, LENGTHS + slot);
-    if (rows === END) break;
+  for (;;) {
+    const { data, count, flag } = ring.take();
+    if (flag === END_OF_RECORD) break;
     if (failure === undefined) {
       for (let c = 0; c < channelCount; c++) {
-        views[c] = new Float64Array(data, 8 * ((slot * channelCount + c) * slotRows), rows);
+        views[c] = data.subarray(c * slotRows, c * slotRows + count);
       }
       try {
         accumulator!.push(views);
@@ -41,26 +44,12 @@ scope.onmessage = (event) => {
         failure = error; // keep freeing slots, so that the reader never waits for ever
       }
     }
-    Atomics.store(control, CONSUMED, consumed + 1);
-    Atomics.notify(control, CONSUMED);
+    ring.release();
   }
   try {
     if (failure !== undefined) throw failure;
     scope.postMessage({ estimate: accumulator!.finish() });
   } catch (error) {
-    const e = error as {
-      name?: string;
-      message?: string;
-      detail?: string;
-      kind?: "data" | "usage";
-    };
-    scope.postMessage({
-      error: {
-        name: e.name ?? "Error",
-        message: e.message ?? String(error),
-        detail: e.detail,
-        kind: e.kind,
-      },
-    });
+    scope.postMessage({ error: postedError(error) });
   }
 };
