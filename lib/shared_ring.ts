@@ -129,6 +129,11 @@ export class SharedRing {
     return this.#slotTaken();
   }
 
+  /** Consumer: the next published slot if there is one, without waiting. */
+  poll(): TakenSlot | undefined {
+    return Atomics.load(this.#control, PUBLISHED) === this.#taken ? undefined : this.#slotTaken();
+  }
+
   /** Consumer: the next published slot, waiting without blocking the event loop. */
   async takeAsync(): Promise<TakenSlot> {
     const control = this.#control;

@@ -104,19 +104,22 @@ export function parseNumberBytes(
   end: number,
   mark: number,
 ): number {
-  const value = scanNumber(bytes, start, end, mark);
-  return scannedEnd === end ? value : NaN;
+  return scanNumber(bytes, start, end, mark) === end ? scanned[VALUE] : NaN;
 }
 
-/** Where the last {@linkcode scanNumber} stopped (a module variable: no object per cell). */
-let scannedEnd = 0;
-/** The decimals the last {@linkcode scanNumber} read (Infinity with an exponent). */
-let scannedDecimals = 0;
+/**
+ * What the last {@linkcode scanNumber} read: its value and its decimals
+ * (Infinity with an exponent). A typed array, not a returned double: the scan
+ * is too long for V8 to inline, and a double returned from a call is boxed,
+ * one heap object per cell.
+ */
+const scanned = new Float64Array(2);
+const VALUE = 0, DECIMALS = 1;
 
 /**
  * Reads the longest prefix of bytes[start, limit) that the number grammar
- * accepts and returns its value (NaN when there is none); the position after
- * it is left in `scannedEnd`.
+ * accepts into `scanned` (value NaN when there is none) and returns the
+ * position after it (`start` when there is none).
  */
 function scanNumber(bytes: Uint8Array, start: number, limit: number, mark: number): number {
   let k = start;
@@ -147,8 +150,8 @@ function scanNumber(bytes: Uint8Array, start: number, limit: number, mark: numbe
     }
   }
   if (digits === 0) {
-    scannedEnd = start;
-    return NaN;
+    scanned[VALUE] = NaN;
+    return start;
   }
   let exponent = 0;
   if (k < limit && (bytes[k] === LOWER_E || bytes[k] === UPPER_E)) {
@@ -161,14 +164,13 @@ function scanNumber(bytes: Uint8Array, start: number, limit: number, mark: numbe
       e++;
     }
     if (e === first) {
-      scannedEnd = k; // "1e" is not a number: stop before the e
-      return NaN;
+      scanned[VALUE] = NaN; // "1e" is not a number: stop before the e
+      return k;
     }
     k = e;
     if (expNegative) exponent = -exponent;
-    scannedDecimals = Infinity;
-  } else scannedDecimals = decimals;
-  scannedEnd = k;
+    scanned[DECIMALS] = Infinity;
+  } else scanned[DECIMALS] = decimals;
   // Exact when the digits form an integer below 2^53 and the power of ten is
   // within ±22: one correctly rounded operation on two exact doubles
   // (Clinger's fast path). A computed mantissa below 2^53 proves both parts
@@ -176,16 +178,26 @@ function scanNumber(bytes: Uint8Array, start: number, limit: number, mark: numbe
   if (digits <= 9 + 22) {
     const mantissa = digits <= 9 ? high : high * POWERS_OF_TEN[digits - 9] + low;
     if (mantissa < TWO_53) {
-      if (mantissa === 0) return negative ? -0 : 0;
       const power = exponent - decimals;
       const m = negative ? -mantissa : mantissa;
-      if (power >= 0 && power <= 22) return m * POWERS_OF_TEN[power];
-      if (power < 0 && power >= -22) return m / POWERS_OF_TEN[-power];
+      if (mantissa === 0) {
+        scanned[VALUE] = negative ? -0 : 0;
+        return k;
+      }
+      if (power >= 0 && power <= 22) {
+        scanned[VALUE] = m * POWERS_OF_TEN[power];
+        return k;
+      }
+      if (power < 0 && power >= -22) {
+        scanned[VALUE] = m / POWERS_OF_TEN[-power];
+        return k;
+      }
     }
   }
   // Long or extreme: the text itself, through Number().
   const written = decoder.decode(bytes.subarray(start, k));
-  return Number(mark === COMMA ? written.replace(",", ".") : written);
+  scanned[VALUE] = Number(mark === COMMA ? written.replace(",", ".") : written);
+  return k;
 }
 
 const decoder = new TextDecoder();
@@ -207,6 +219,19 @@ export interface CsvScan {
   readonly quotes: boolean;
   /** The delimiter in use. */
   readonly delimiter: CsvDelimiter;
+  /**
+   * Where data rows `every`, 2·`every`, … begin: byte offset in the file and
+   * line, so that pass 2 can start there (csv_parallel.ts). Present when the
+   * scanner was asked for them.
+   */
+  readonly checkpoints?: CsvCheckpoints;
+}
+
+/** Byte offsets and lines of every `every`-th data row, from data row `every` on (0-based). */
+export interface CsvCheckpoints {
+  readonly every: number;
+  readonly offsets: readonly number[];
+  readonly lines: readonly number[];
 }
 
 /**
@@ -226,10 +251,31 @@ export class CsvScanner {
   #rows = 0;
   #anyContent = false;
   #utf8?: TextDecoder;
+  #pushed = 0; // bytes pushed before the current chunk
+  readonly #every: number;
+  #nextCheckpoint: number; // the data row (0-based) whose start is noted next
+  readonly #offsets: number[] = [];
+  readonly #lines: number[] = [];
 
-  constructor(options: CsvTableOptions = {}) {
+  /**
+   * `checkpointEvery`: note where every so many data rows begin
+   * ({@linkcode CsvScan.checkpoints}). Default: none.
+   */
+  constructor(options: CsvTableOptions & { checkpointEvery?: number } = {}) {
     this.#file = options.file;
     this.#delimiterOption = options.delimiter ?? "auto";
+    const every = options.checkpointEvery ?? Infinity;
+    if (!(every >= 1)) throw new RangeError(`checkpointEvery must be ≥ 1, got ${every}`);
+    this.#every = every;
+    this.#nextCheckpoint = every;
+  }
+
+  /** Notes data row `index` (0-based), starting at file offset `offset` on `line`. */
+  #checkpoint(index: number, offset: number, line: number): void {
+    if (index !== this.#nextCheckpoint) return;
+    this.#offsets.push(offset);
+    this.#lines.push(line);
+    this.#nextCheckpoint += this.#every;
   }
 
   #fail(detail: string, line?: number): never {
@@ -238,6 +284,8 @@ export class CsvScanner {
 
   /** Adds the next bytes. */
   push(chunk: Uint8Array): void {
+    let base = this.#pushed; // file offset of bytes[0]
+    this.#pushed += chunk.length;
     const kinds = byteKinds(chunk);
     if (this.#utf8 !== undefined || (kinds & HIGH_BYTE) !== 0) {
       this.#utf8 ??= new TextDecoder("utf-8", { fatal: true });
@@ -255,6 +303,7 @@ export class CsvScanner {
       this.#started = true;
       if (bytes.length >= 3 && bytes[0] === 0xef && bytes[1] === 0xbb && bytes[2] === 0xbf) {
         bytes = bytes.subarray(3);
+        base += 3;
       }
     }
     if (
@@ -267,11 +316,13 @@ export class CsvScanner {
         this.#pending = appended(this.#pending, bytes);
         return;
       }
-      const rest = this.#countRows(concat(this.#pending, bytes.subarray(0, split + 1)));
+      const joined = concat(this.#pending, bytes.subarray(0, split + 1));
+      const rest = this.#countRows(joined, base - this.#pending.length);
       if (rest.length > 0) throw new Error("a row boundary was lost"); // cannot happen
-      this.#pending = this.#countRows(bytes.subarray(split + 1));
+      this.#pending = this.#countRows(bytes.subarray(split + 1), base + split + 1);
       return;
     }
+    const offset = base - this.#pending.length; // of buffer[0]
     const buffer = concat(this.#pending, bytes);
     const quoted = buffer.indexOf(QUOTE) >= 0;
     let pos = 0;
@@ -280,7 +331,7 @@ export class CsvScanner {
       const end = quoted ? recordEnd(buffer, pos) : buffer.indexOf(LF, pos);
       if (end < 0) break;
       const line = this.#line;
-      const kept = this.#record(buffer, pos, end, quoted);
+      const kept = this.#record(buffer, pos, end, quoted, offset);
       if (kept) last = { start: pos, end, line };
       pos = end + 1;
     }
@@ -296,9 +347,10 @@ export class CsvScanner {
   /**
    * The common case, after the first data row, with no quotes in sight: count
    * the rows in one loop over the bytes; a row whose first byte could start a
-   * blank row is looked at whole. Returns the incomplete last row.
+   * blank row is looked at whole. Returns the incomplete last row. `offset`:
+   * the file offset of buffer[0].
    */
-  #countRows(buffer: Uint8Array): Uint8Array {
+  #countRows(buffer: Uint8Array, offset: number): Uint8Array {
     const delimiter = this.#delimiter;
     const n = buffer.length;
     let rowStart = 0;
@@ -318,6 +370,9 @@ export class CsvScanner {
         }
       }
       if (!blank) {
+        if (this.#rows + rows === this.#nextCheckpoint) {
+          this.#checkpoint(this.#rows + rows, offset + rowStart, line);
+        }
         rows++;
         lastStart = rowStart;
         lastEnd = k;
@@ -354,8 +409,14 @@ export class CsvScanner {
     return rowStart < n ? buffer.slice(rowStart) : new Uint8Array(0);
   }
 
-  /** One record bytes[start, end); returns whether it is a data row. */
-  #record(bytes: Uint8Array, start: number, end: number, quoted: boolean): boolean {
+  /** One record bytes[start, end), bytes[0] at file offset `offset`; returns whether it is a data row. */
+  #record(
+    bytes: Uint8Array,
+    start: number,
+    end: number,
+    quoted: boolean,
+    offset: number,
+  ): boolean {
     const line = this.#line;
     if (quoted) { for (let k = start; k < end; k++) if (bytes[k] === LF) this.#line++; }
     this.#line++;
@@ -382,6 +443,7 @@ export class CsvScanner {
     if (quoted && !this.#quotes && bytes.subarray(start, end).indexOf(QUOTE) >= 0) {
       this.#quotes = true;
     }
+    this.#checkpoint(this.#rows, offset + start, line);
     this.#rows++;
     if (this.#first === undefined) this.#first = { text: rowText(bytes, start, end), line };
     return true;
@@ -404,7 +466,10 @@ export class CsvScanner {
         this.#fail("unbalanced quotes: a quoted field starting here never ends", this.#line);
       }
       const line = this.#line;
-      if (this.#record(rest, 0, rest.length, rest.indexOf(QUOTE) >= 0) && this.#rows > 0) {
+      const offset = this.#pushed - rest.length;
+      if (
+        this.#record(rest, 0, rest.length, rest.indexOf(QUOTE) >= 0, offset) && this.#rows > 0
+      ) {
         this.#last = { text: rowText(rest, 0, rest.length), line };
       }
       this.#pending = new Uint8Array(0);
@@ -426,6 +491,9 @@ export class CsvScanner {
       ...(this.#last !== undefined ? { last: this.#last } : {}),
       quotes: this.#quotes,
       delimiter: String.fromCharCode(this.#delimiter) as CsvDelimiter,
+      ...(Number.isFinite(this.#every)
+        ? { checkpoints: { every: this.#every, offsets: this.#offsets, lines: this.#lines } }
+        : {}),
     };
   }
 }
@@ -587,11 +655,17 @@ export class CsvRowParser {
   #carry: Uint8Array = new Uint8Array(0);
   #bom = true;
 
+  /**
+   * `decimalsOf`: the columns whose decimals `sink` receives (default none).
+   * `startLine`: the bytes begin at a data row on this line (a checkpoint of
+   * {@linkcode CsvScan.checkpoints}), not at the file's start; default: they
+   * begin at the file's start.
+   */
   constructor(
     scan: CsvScan,
     width: number,
     sink: RowSink,
-    options: CsvTableOptions & { decimalsOf?: readonly number[] } = {},
+    options: CsvTableOptions & { decimalsOf?: readonly number[]; startLine?: number } = {},
   ) {
     this.#file = options.file;
     this.#width = width;
@@ -603,6 +677,13 @@ export class CsvRowParser {
     this.#decimals = new Float64Array(width);
     this.#wantDecimals = new Int8Array(width);
     for (const c of options.decimalsOf ?? []) this.#wantDecimals[c] = 1;
+    if (options.startLine !== undefined) {
+      if (!(options.startLine > scan.headerLine)) {
+        throw new RangeError(`startLine ${options.startLine} is not after the header`);
+      }
+      this.#line = options.startLine;
+      this.#bom = false;
+    }
     const decimal = options.decimal ?? "auto";
     this.#mark = decimal === "auto" ? (scan.delimiter === "," ? DOT : -1) : decimal.charCodeAt(0);
   }
@@ -727,10 +808,10 @@ export class CsvRowParser {
     for (let column = 0; column < width; column++) {
       while (k < limit && (bytes[k] === SPACE || (bytes[k] === TAB && delimiter !== TAB))) k++;
       const a = k;
-      const v = scanNumber(bytes, a, limit, mark);
-      k = scannedEnd;
+      k = scanNumber(bytes, a, limit, mark);
+      const v = scanned[VALUE];
       if (k === a || v - v !== 0) return -1;
-      if (wantDecimals[column] === 1) this.#decimals[column] = scannedDecimals;
+      if (wantDecimals[column] === 1) this.#decimals[column] = scanned[DECIMALS];
       values[column] = v;
       while (k < limit && (bytes[k] === SPACE || (bytes[k] === TAB && delimiter !== TAB))) k++;
       if (column < width - 1) {
@@ -759,7 +840,7 @@ export class CsvRowParser {
     if (v - v !== 0) return false;
     this.#values[column] = v;
     // The scan that read the value counted its decimals.
-    if (this.#wantDecimals[column] === 1) this.#decimals[column] = scannedDecimals;
+    if (this.#wantDecimals[column] === 1) this.#decimals[column] = scanned[DECIMALS];
     return true;
   }
 
@@ -809,6 +890,31 @@ export function cellOfRow(row: string, delimiter: CsvDelimiter, column: number):
   return unquote(splitQuoted(row, delimiter)[column] ?? "");
 }
 
+/**
+ * The decimal mark pass 2 will use from its first row on, when it is known
+ * before: the one given, `.` with the `,` delimiter, else the first `.` or
+ * `,` of the first data row (where pass 2 finds it too); undefined when the
+ * first data row holds neither.
+ *
+ * @example
+ * ```ts
+ * import { firstDecimalMark } from "./csv_engine.ts";
+ * const scan = { headerText: "a;b", headerLine: 1, rows: 1, quotes: false,
+ *   delimiter: ";" as const, first: { text: "1;2,5", line: 2 } };
+ * if (firstDecimalMark(scan, "auto") !== ",") throw new Error();
+ * if (firstDecimalMark({ ...scan, first: { text: "1;2", line: 2 } }, "auto") !== undefined) throw new Error();
+ * ```
+ */
+export function firstDecimalMark(
+  scan: CsvScan,
+  decimal: DecimalMark | "auto" | undefined,
+): DecimalMark | undefined {
+  if (decimal !== undefined && decimal !== "auto") return decimal;
+  if (scan.delimiter === ",") return ".";
+  const match = /[.,]/.exec(scan.first?.text ?? "");
+  return match === null ? undefined : match[0] as DecimalMark;
+}
+
 /** The decimal mark the first cell of `row` holding `.` or `,` shows, if any. */
 export function markOfRow(row: string, delimiter: CsvDelimiter): DecimalMark | undefined {
   for (const cell of splitQuoted(row, delimiter)) {
@@ -842,5 +948,5 @@ export function parseCellText(
   if (value - value !== 0) {
     throw new QuiverError(describeBadNumber(cell, mark), { file, line, column });
   }
-  return { value, decimals: scannedDecimals };
+  return { value, decimals: scanned[DECIMALS] };
 }
