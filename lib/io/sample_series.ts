@@ -39,6 +39,12 @@ export interface SampleSeries {
   readInto(target: Float64Array, from: number): void;
   /** Calls `visit` with consecutive chunks and the index of each chunk's first sample. */
   scan(visit: (chunk: Float64Array, offset: number) => void): void;
+  /**
+   * The smallest and largest sample, all samples being finite, when known
+   * without a pass over them (a spool learns it while writing). Default:
+   * not known.
+   */
+  readonly extent?: readonly [number, number];
 }
 
 /**
@@ -124,7 +130,7 @@ export async function spoolChannels(
       });
       length += chunk[0]?.length ?? 0;
     });
-    const series = descriptors.map((fd) => fileSeries(fd, length));
+    const series = descriptors.map((fd, j) => fileSeries(fd, length, statistics[j].extent));
     const warnings = indices.map((channel, j) => statistics[j].warnings(stream.channels[channel]));
     return { series, warnings, close };
   } catch (error) {
@@ -133,7 +139,11 @@ export async function spoolChannels(
   }
 }
 
-function fileSeries(fd: number, length: number): SampleSeries {
+function fileSeries(
+  fd: number,
+  length: number,
+  extent: readonly [number, number] | undefined,
+): SampleSeries {
   const readInto = (target: Float64Array, from: number) => {
     const bytes = new Uint8Array(target.buffer, target.byteOffset, target.byteLength);
     let done = 0;
@@ -146,6 +156,7 @@ function fileSeries(fd: number, length: number): SampleSeries {
   const buffer = new Float64Array(Math.min(SERIES_CHUNK, length));
   return {
     length,
+    ...(extent !== undefined ? { extent } : {}),
     readInto(target, from) {
       if (from < 0 || from + target.length > length) {
         throw new RangeError(
@@ -299,16 +310,20 @@ export function kthSmallestOfMany(
     }
   }
   let lo = Infinity, hi = -Infinity;
-  series.scan((chunk) => {
-    for (let i = 0; i < chunk.length; i++) {
-      const v = map === undefined ? chunk[i] : map(chunk[i]);
-      if (!Number.isFinite(v)) {
-        throw new RangeError(`order statistics need finite values, found ${v}`);
+  if (map === undefined && series.extent !== undefined) {
+    [lo, hi] = series.extent; // known: no pass for the range
+  } else {
+    series.scan((chunk) => {
+      for (let i = 0; i < chunk.length; i++) {
+        const v = map === undefined ? chunk[i] : map(chunk[i]);
+        if (!Number.isFinite(v)) {
+          throw new RangeError(`order statistics need finite values, found ${v}`);
+        }
+        if (v < lo) lo = v;
+        if (v > hi) hi = v;
       }
-      if (v < lo) lo = v;
-      if (v > hi) hi = v;
-    }
-  });
+    });
+  }
   if (lo === hi) return ks.map(() => lo);
   if (series.length <= SORT_LIMIT) {
     const sorted = sortedInRange(series, [], series.length, map);

@@ -123,6 +123,15 @@ export class ChannelStatistics {
     this.#beforeRun = beforeRun;
   }
 
+  /**
+   * The smallest and largest sample pushed, when there was at least one and
+   * all were finite (a finite sum proves it: NaN or ±Infinity would have
+   * made the sum NaN or infinite); undefined otherwise.
+   */
+  get extent(): readonly [number, number] | undefined {
+    return this.#n > 0 && Number.isFinite(this.#sum) ? [this.#min, this.#max] : undefined;
+  }
+
   /** The warnings for the samples pushed so far. */
   warnings(channel: { name: string; unit: string }): string[] {
     const n = this.#n;

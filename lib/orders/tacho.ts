@@ -55,12 +55,24 @@ function percentiles(series: SampleSeries, ps: readonly number[]): number[] {
   return kthSmallestOfMany(series, ps.map(rank));
 }
 
-function localMedian(values: number[], i: number, half = 5): number {
-  const window = values.slice(Math.max(0, i - half), Math.min(values.length, i + half + 1)).sort((
-    a,
-    b,
-  ) => a - b);
-  return window[Math.floor(window.length / 2)];
+/** Intervals either side in a local median. */
+const MEDIAN_HALF = 5;
+
+/**
+ * The median of values[i − 5 … i + 5] (fewer at the ends; the upper middle
+ * of an even count), sorted by insertion in `scratch` (11 values or more):
+ * called for every pulse interval, it allocates nothing.
+ */
+function localMedian(values: readonly number[], i: number, scratch: Float64Array): number {
+  const from = Math.max(0, i - MEDIAN_HALF);
+  const count = Math.min(values.length, i + MEDIAN_HALF + 1) - from;
+  for (let k = 0; k < count; k++) {
+    const v = values[from + k];
+    let p = k;
+    for (; p > 0 && scratch[p - 1] > v; p--) scratch[p] = scratch[p - 1];
+    scratch[p] = v;
+  }
+  return scratch[count >> 1];
 }
 
 /**
@@ -133,11 +145,12 @@ export function tachoPulses(
   // the spurious one is the one whose removal leaves an interval nearest
   // the local median.
   let removed = 0;
+  const scratch = new Float64Array(2 * MEDIAN_HALF + 1);
   const times = raw.slice();
   const gaps = times.slice(1).map((t, k) => t - times[k]);
   for (let i = 0; i < gaps.length;) {
     const intervals = gaps;
-    const median = localMedian(intervals, i);
+    const median = localMedian(intervals, i, scratch);
     if (intervals[i] >= 0.5 * median) {
       i++;
       continue;
@@ -157,7 +170,9 @@ export function tachoPulses(
   }
   let inserted = 0;
   const intervals = times.slice(1).map((t, i) => t - times[i]);
-  const shortest = minOf(intervals.map((_, i) => localMedian(intervals, i)));
+  const medians = new Float64Array(intervals.length);
+  for (let i = 0; i < intervals.length; i++) medians[i] = localMedian(intervals, i, scratch);
+  const shortest = minOf(medians);
   if (shortest * rate < 3) {
     throw new QuiverError(
       `tacho pulses come only ${
@@ -167,8 +182,8 @@ export function tachoPulses(
   }
   const filled: number[] = [times[0]];
   intervals.forEach((interval, i) => {
-    const n = Math.round(interval / localMedian(intervals, i));
-    if (interval > 1.5 * localMedian(intervals, i) && n >= 2) {
+    const n = Math.round(interval / medians[i]);
+    if (interval > 1.5 * medians[i] && n >= 2) {
       for (let j = 1; j < n; j++) filled.push(times[i] + (j * interval) / n);
       inserted += n - 1;
     }
@@ -257,6 +272,7 @@ export function motionFromPulses(times: Float64Array, ppr: number): ShaftMotion 
   const angle = new Float64Array(n).map((_, j) => j / ppr);
   const smoothed = new Float64Array(n);
   const rpm = new Float64Array(n);
+  const scratch = new Float64Array(17), fit = new Float64Array(3);
   for (let j = 0; j < n; j++) {
     // A window of 2·half + 1 pulses, shifted rather than cut at the ends of the record: a
     // one-sided fit over half the pulses reads the end speeds off by the edge-time noise
@@ -265,11 +281,14 @@ export function motionFromPulses(times: Float64Array, ppr: number): ShaftMotion 
     const lo = Math.max(0, Math.min(j - half, n - 1 - 2 * half));
     const hi = Math.min(n - 1, lo + 2 * half);
     const degree = Math.min(hi - lo, 2);
-    const [a, b] = degree < 1
-      ? [times[j], NaN]
-      : polynomialFit({ times, angle, lo, hi, origin: angle[j], degree });
-    smoothed[j] = a;
-    rpm[j] = 60 / b;
+    if (degree < 1) {
+      smoothed[j] = times[j];
+      rpm[j] = NaN;
+      continue;
+    }
+    polynomialFit(times, angle, { lo, hi, origin: angle[j], degree }, scratch, fit);
+    smoothed[j] = fit[0];
+    rpm[j] = 60 / fit[1];
   }
   for (let j = 1; j < n; j++) {
     if (!(smoothed[j] > smoothed[j - 1])) {
@@ -288,49 +307,56 @@ export function motionFromPulses(times: Float64Array, ppr: number): ShaftMotion 
 }
 
 /**
- * Least-squares polynomial t ≈ Σ c_k·u^k (k ≤ degree), u = θ − θ₀, over
- * pulses lo…hi; returns the coefficients (c₀ is the smoothed time at θ₀,
- * c₁ = dt/dθ there). Normal equations, solved by Gaussian elimination with
- * partial pivoting (well conditioned: u is centred on the window's pulses).
+ * Least-squares polynomial t ≈ Σ c_k·u^k (k ≤ degree ≤ 2), u = θ − θ₀, over
+ * pulses lo…hi; writes the coefficients to `out` (c₀ is the smoothed time
+ * at θ₀, c₁ = dt/dθ there). Normal equations, solved by Gaussian
+ * elimination with partial pivoting (well conditioned: u is centred on the
+ * window's pulses). `scratch` holds the augmented matrix row by row and the
+ * powers of u after it (at least 17 values): one fit per pulse allocates
+ * nothing.
  */
 function polynomialFit(
-  { times, angle, lo, hi, origin, degree }: {
-    times: Float64Array;
-    angle: Float64Array;
-    lo: number;
-    hi: number;
-    origin: number;
-    degree: number;
-  },
-): number[] {
-  const m = degree + 1;
-  const a = Array.from({ length: m }, () => new Float64Array(m + 1));
+  times: Float64Array,
+  angle: Float64Array,
+  window: { lo: number; hi: number; origin: number; degree: number },
+  scratch: Float64Array,
+  out: Float64Array,
+): void {
+  const { lo, hi, origin, degree } = window;
+  const m = degree + 1, w = m + 1; // unknowns; width of a row of the augmented matrix
+  const powersAt = m * w, powerCount = 2 * m - 1;
+  scratch.fill(0, 0, m * w);
   for (let i = lo; i <= hi; i++) {
     const u = angle[i] - origin;
-    const powers = new Float64Array(2 * m - 1);
-    powers[0] = 1;
-    for (let k = 1; k < powers.length; k++) powers[k] = powers[k - 1] * u;
+    scratch[powersAt] = 1;
+    for (let k = 1; k < powerCount; k++) scratch[powersAt + k] = scratch[powersAt + k - 1] * u;
     for (let r = 0; r < m; r++) {
-      for (let c = 0; c < m; c++) a[r][c] += powers[r + c];
-      a[r][m] += times[i] * powers[r];
+      for (let c = 0; c < m; c++) scratch[r * w + c] += scratch[powersAt + r + c];
+      scratch[r * w + m] += times[i] * scratch[powersAt + r];
     }
   }
   for (let col = 0; col < m; col++) {
     let pivot = col;
-    for (let r = col + 1; r < m; r++) if (Math.abs(a[r][col]) > Math.abs(a[pivot][col])) pivot = r;
-    [a[col], a[pivot]] = [a[pivot], a[col]];
     for (let r = col + 1; r < m; r++) {
-      const f = a[r][col] / a[col][col];
-      for (let c = col; c <= m; c++) a[r][c] -= f * a[col][c];
+      if (Math.abs(scratch[r * w + col]) > Math.abs(scratch[pivot * w + col])) pivot = r;
+    }
+    if (pivot !== col) {
+      for (let c = 0; c < w; c++) {
+        const held = scratch[col * w + c];
+        scratch[col * w + c] = scratch[pivot * w + c];
+        scratch[pivot * w + c] = held;
+      }
+    }
+    for (let r = col + 1; r < m; r++) {
+      const f = scratch[r * w + col] / scratch[col * w + col];
+      for (let c = col; c <= m; c++) scratch[r * w + c] -= f * scratch[col * w + c];
     }
   }
-  const x = new Array<number>(m).fill(0);
   for (let r = m - 1; r >= 0; r--) {
-    let sum = a[r][m];
-    for (let c = r + 1; c < m; c++) sum -= a[r][c] * x[c];
-    x[r] = sum / a[r][r];
+    let sum = scratch[r * w + m];
+    for (let c = r + 1; c < m; c++) sum -= scratch[r * w + c] * out[c];
+    out[r] = sum / scratch[r * w + r];
   }
-  return x;
 }
 
 /**

@@ -78,6 +78,13 @@ describe("exact order statistics of a series", () => {
       expect(Array.from(record)).toEqual(Array.from(data.subarray(199_995)));
       expect(() => series.readInto(record, 199_996)).toThrow(RangeError);
       expect(kthSmallest(series, 100_000)).toBe(sortedAt(data, 100_000));
+      // The spool learns the range while writing; order statistics then skip their range pass.
+      let lo = Infinity, hi = -Infinity;
+      for (const v of data) [lo, hi] = [Math.min(lo, v), Math.max(hi, v)];
+      expect(series.extent).toEqual([lo, hi]);
+      const ks = [0, 1, 4_000, 199_998, 199_999];
+      const sorted = data.slice().sort();
+      expect(kthSmallestOfMany(series, ks)).toEqual(ks.map((k) => sorted[k]));
       let sum = 0;
       series.scan((chunk) => {
         for (const v of chunk) sum += v;
@@ -85,6 +92,28 @@ describe("exact order statistics of a series", () => {
       let expected = 0;
       for (const v of data) expected += v;
       expect(sum).toBe(expected);
+    } finally {
+      spool.close();
+    }
+  });
+
+  test("a spooled TTL tacho and a constant channel: percentiles from the spool's range", async () => {
+    const ttl = new Float64Array(150_000).map((_, i) => (i % 37 < 18 ? 0 : 5));
+    const flat = new Float64Array(150_000).fill(-2.5);
+    const spool = await spoolChannels(
+      recordingSource({
+        rate: 100,
+        startTime: 0,
+        channels: [{ name: "t", unit: "V", data: ttl }, { name: "f", unit: "V", data: flat }],
+      }),
+      [0, 1],
+    );
+    try {
+      const ks = [2_999, 75_000, 146_999];
+      expect(spool.series[0].extent).toEqual([0, 5]);
+      expect(kthSmallestOfMany(spool.series[0], ks)).toEqual(ks.map((k) => sortedAt(ttl, k)));
+      expect(spool.series[1].extent).toEqual([-2.5, -2.5]);
+      expect(kthSmallestOfMany(spool.series[1], ks)).toEqual([-2.5, -2.5, -2.5]);
     } finally {
       spool.close();
     }
