@@ -256,6 +256,7 @@ export class CsvScanner {
   #nextCheckpoint: number; // the data row (0-based) whose start is noted next
   readonly #offsets: number[] = [];
   readonly #lines: number[] = [];
+  #feeds = new Int32Array(0); // line feed positions of the buffer being counted
 
   /**
    * `checkpointEvery`: note where every so many data rows begin
@@ -357,11 +358,36 @@ export class CsvScanner {
     let lastStart = -1, lastEnd = -1, lastLine = 0;
     let line = this.#line;
     let rows = 0;
-    const rowEnd = (k: number) => {
+    // Pass a: the line feeds' positions. Four bytes at a time: for x = word
+    // XOR 0x0a0a0a0a, the expression below sets the top bit of exactly the
+    // bytes of x that are zero (no borrow crosses bytes), lowest address in the
+    // lowest bits on the little-endian machines Deno runs on.
+    if (this.#feeds.length < n) this.#feeds = new Int32Array(n);
+    const feeds = this.#feeds;
+    let count = 0;
+    let k = 0;
+    const head = Math.min(n, (4 - (buffer.byteOffset & 3)) & 3);
+    for (; k < head; k++) if (buffer[k] === LF) feeds[count++] = k;
+    const words = k === n
+      ? new Uint32Array(0) // shorter than the bytes before the first aligned word
+      : new Uint32Array(buffer.buffer, buffer.byteOffset + k, (n - k) >> 2);
+    for (let w = 0; w < words.length; w++) {
+      const x = words[w] ^ 0x0a0a0a0a;
+      let mask = ~(((x & 0x7f7f7f7f) + 0x7f7f7f7f) | x) & 0x80808080;
+      while (mask !== 0) {
+        feeds[count++] = k + (w << 2) + ((31 - Math.clz32(mask & -mask)) >> 3);
+        mask &= mask - 1;
+      }
+    }
+    for (k += words.length << 2; k < n; k++) if (buffer[k] === LF) feeds[count++] = k;
+    // Pass b: the rows between them, in locals (a closure per row would keep them in a heap context).
+    let nextCheckpoint = this.#nextCheckpoint - this.#rows; // in rows of this buffer
+    for (let f = 0; f < count; f++) {
+      const end = feeds[f];
       const first = buffer[rowStart];
-      let blank = rowStart === k || isSpace(first) || first === delimiter;
+      let blank = rowStart === end || isSpace(first) || first === delimiter;
       if (blank) {
-        for (let j = rowStart; j < k; j++) {
+        for (let j = rowStart; j < end; j++) {
           const b = buffer[j];
           if (!(isSpace(b) || b === delimiter)) {
             blank = false;
@@ -370,36 +396,18 @@ export class CsvScanner {
         }
       }
       if (!blank) {
-        if (this.#rows + rows === this.#nextCheckpoint) {
+        if (rows === nextCheckpoint) {
           this.#checkpoint(this.#rows + rows, offset + rowStart, line);
+          nextCheckpoint = this.#nextCheckpoint - this.#rows;
         }
         rows++;
         lastStart = rowStart;
-        lastEnd = k;
+        lastEnd = end;
         lastLine = line;
       }
       line++;
-      rowStart = k + 1;
-    };
-    // Line feeds found four bytes at a time: for x = word XOR 0x0a0a0a0a, the
-    // expression below sets the top bit of exactly the bytes of x that are zero
-    // (no borrow crosses bytes), lowest address in the lowest bits on the
-    // little-endian machines Deno runs on.
-    let k = 0;
-    const head = Math.min(n, (4 - (buffer.byteOffset & 3)) & 3);
-    for (; k < head; k++) if (buffer[k] === LF) rowEnd(k);
-    const words = k === n
-      ? new Uint32Array(0) // shorter than the bytes before the first aligned word
-      : new Uint32Array(buffer.buffer, buffer.byteOffset + k, (n - k) >> 2);
-    for (let w = 0; w < words.length; w++) {
-      const x = words[w] ^ 0x0a0a0a0a;
-      let mask = ~(((x & 0x7f7f7f7f) + 0x7f7f7f7f) | x) & 0x80808080;
-      while (mask !== 0) {
-        rowEnd(k + (w << 2) + ((31 - Math.clz32(mask & -mask)) >> 3));
-        mask &= mask - 1;
-      }
+      rowStart = end + 1;
     }
-    for (k += words.length << 2; k < n; k++) if (buffer[k] === LF) rowEnd(k);
     this.#rows += rows;
     this.#line = line;
     if (lastStart >= 0) {
