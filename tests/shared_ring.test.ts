@@ -1,6 +1,6 @@
 import { describe, expect, test } from "vitest";
 import { SharedRing } from "../lib/shared_ring.ts";
-import { postedError, thrownError } from "../lib/worker_errors.ts";
+import { postedError, thrownError } from "../lib/workers.ts";
 import { QuiverError } from "../lib/errors.ts";
 
 describe("a shared ring of slots", () => {

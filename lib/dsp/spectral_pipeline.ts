@@ -20,7 +20,7 @@ import {
   validateSpectralOptions,
 } from "./spectral_core.ts";
 import { type RingBuffers, SharedRing } from "../shared_ring.ts";
-import { type PostedError, thrownError } from "../worker_errors.ts";
+import { insideWorker, type PostedError, thrownError } from "../workers.ts";
 import { readChecked, type RecordingStream } from "../io/recording_stream.ts";
 
 /** Where the spectral core runs: fed chunk by chunk, then asked for the estimate. */
@@ -78,10 +78,6 @@ export interface SpectralWorkerStart {
 export type SpectralWorkerReply =
   | { estimate: SpectralEstimate }
   | { error: PostedError };
-
-function insideWorker(): boolean {
-  return typeof (globalThis as { WorkerGlobalScope?: unknown }).WorkerGlobalScope !== "undefined";
-}
 
 /**
  * The spectral core for `channelCount` channels, in this thread or in a

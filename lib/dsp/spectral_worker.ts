@@ -12,7 +12,7 @@ import {
   type SpectralWorkerStart,
 } from "./spectral_pipeline.ts";
 import { SharedRing } from "../shared_ring.ts";
-import { postedError } from "../worker_errors.ts";
+import { postedError } from "../workers.ts";
 
 interface WorkerScope {
   onmessage: ((event: MessageEvent<SpectralWorkerStart>) => void) | null;

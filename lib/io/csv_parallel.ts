@@ -23,7 +23,7 @@ import { CsvRowParser, type CsvScan } from "./csv_engine.ts";
 import type { DecimalMark } from "./numbers.ts";
 import type { TimeStepCheck } from "./csv_recording.ts";
 import { type RingBuffers, SharedRing } from "../shared_ring.ts";
-import { type PostedError, postedError, thrownError } from "../worker_errors.ts";
+import { insideWorker, type PostedError, postedError, thrownError } from "../workers.ts";
 
 /** Slots per worker ring. */
 const SLOTS = 3;
@@ -86,10 +86,6 @@ export const SEGMENT_FAILED = 1;
 /** Doubles per row in a segment's buffer: the channels, then time, its decimals and the line. */
 function rowStride(channels: number, timeColumn: number): number {
   return channels + (timeColumn >= 0 ? 3 : 0);
-}
-
-function insideWorker(): boolean {
-  return typeof (globalThis as { WorkerGlobalScope?: unknown }).WorkerGlobalScope !== "undefined";
 }
 
 /**

@@ -1,11 +1,26 @@
 /**
- * Errors across a worker boundary: structured cloning keeps neither the
- * class nor a {@linkcode QuiverError}'s location and kind, so a worker posts
- * this plain form and the thread that started it throws the same error again.
+ * What every worker boundary of quiver needs: whether this thread is itself
+ * a worker (a campaign's jobs are: they do not start workers of their own),
+ * and errors across the boundary: structured cloning keeps neither the class
+ * nor a {@linkcode QuiverError}'s location and kind, so a worker posts a
+ * plain form and the thread that started it throws the same error again.
  *
  * @module
  */
 import { type ErrorKind, type ErrorLocation, QuiverError } from "./errors.ts";
+
+/**
+ * Whether this code runs in a worker thread.
+ *
+ * @example
+ * ```ts
+ * import { insideWorker } from "./workers.ts";
+ * if (insideWorker()) throw new Error(); // a doc test runs in the main thread
+ * ```
+ */
+export function insideWorker(): boolean {
+  return typeof (globalThis as { WorkerGlobalScope?: unknown }).WorkerGlobalScope !== "undefined";
+}
 
 /** An error as a worker posts it. */
 export interface PostedError {
@@ -22,7 +37,7 @@ export interface PostedError {
  *
  * @example
  * ```ts
- * import { postedError, thrownError } from "./worker_errors.ts";
+ * import { postedError, thrownError } from "./workers.ts";
  * import { QuiverError } from "./errors.ts";
  * const again = thrownError(postedError(new QuiverError("bad cell", { file: "a.csv", line: 3 })));
  * if (!(again instanceof QuiverError) || again.message !== "a.csv:3: bad cell") throw new Error();
@@ -48,7 +63,7 @@ export function postedError(error: unknown): PostedError {
  *
  * @example
  * ```ts
- * import { thrownError } from "./worker_errors.ts";
+ * import { thrownError } from "./workers.ts";
  * if (!(thrownError({ name: "RangeError", message: "block" }) instanceof RangeError)) throw new Error();
  * ```
  */
