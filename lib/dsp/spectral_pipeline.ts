@@ -19,8 +19,13 @@ import {
   type SpectralOptions,
   validateSpectralOptions,
 } from "./spectral_core.ts";
-import { type RingBuffers, SharedRing } from "../shared_ring.ts";
-import { insideWorker, type PostedError, thrownError } from "../workers.ts";
+import { SharedRing } from "../shared_ring.ts";
+import { insideWorker, thrownError } from "../workers.ts";
+import {
+  END_OF_RECORD,
+  type SpectralWorkerReply,
+  type SpectralWorkerStart,
+} from "./spectral_messages.ts";
 import { readChecked, type RecordingStream } from "../io/recording_stream.ts";
 
 /** Where the spectral core runs: fed chunk by chunk, then asked for the estimate. */
@@ -62,22 +67,6 @@ const SLOTS = 4;
 const SLOT_ROWS = 65536;
 /** How long push waits for a slot before it calls the worker lost. */
 const STALL_MS = 300_000;
-
-/** The ring flag that tells the worker the record has ended. */
-export const END_OF_RECORD = 1;
-
-/** The message that starts a worker: a ring slot holds `slotRows` rows of each channel in turn. */
-export interface SpectralWorkerStart {
-  channelCount: number;
-  options: Omit<SpectralOptions, "frames">;
-  ring: RingBuffers;
-  slotRows: number;
-}
-
-/** The worker's one reply. */
-export type SpectralWorkerReply =
-  | { estimate: SpectralEstimate }
-  | { error: PostedError };
 
 /**
  * The spectral core for `channelCount` channels, in this thread or in a

@@ -10,7 +10,7 @@ import {
   END_OF_RECORD,
   type SpectralWorkerReply,
   type SpectralWorkerStart,
-} from "./spectral_pipeline.ts";
+} from "./spectral_messages.ts";
 import { SharedRing } from "../shared_ring.ts";
 import { postedError } from "../workers.ts";
 
