@@ -237,20 +237,8 @@ export function parseSegmentsInWorker(
   }
 }
 
-/** What {@linkcode readCsvInWorkers} reads. */
-export interface CsvParallelRead {
-  readonly path: string;
-  /** File name for messages. */
-  readonly file: string;
-  readonly scan: CsvScan;
-  /** Columns in the header. */
-  readonly width: number;
-  /** File columns to read, and the factor each is multiplied by. */
-  readonly columns: readonly number[];
-  readonly factors: readonly number[];
-  /** The time column, −1 when none. */
-  readonly timeColumn: number;
-  readonly decimal: DecimalMark;
+/** What {@linkcode readCsvInWorkers} reads: a job without its segments (the scan gives them), and who parses. */
+export interface CsvParallelRead extends Omit<CsvParseJob, "segments"> {
   /** Workers besides this thread ({@linkcode csvParseWorkers}). */
   readonly workers: number;
   /** Checks the time column; required when there is one. */
@@ -268,24 +256,15 @@ export async function readCsvInWorkers(
   read: CsvParallelRead,
   onChunk: (chunk: Float64Array[]) => void,
 ): Promise<void> {
-  const { scan, check, timeColumn } = read;
+  const { workers: workerCount, check, ...what } = read;
+  const { scan, timeColumn } = what;
   const rows = scan.checkpoints!.every;
   const segments = segmentsOf(scan);
-  const job: CsvParseJob = {
-    path: read.path,
-    file: read.file,
-    scan,
-    width: read.width,
-    columns: read.columns,
-    factors: read.factors,
-    timeColumn,
-    decimal: read.decimal,
-    segments,
-  };
+  const job: CsvParseJob = { ...what, segments };
   const channels = read.columns.length;
   const length = rowStride(channels, timeColumn) * rows;
   const claims = new Int32Array(new SharedArrayBuffer(4 * (1 + segments.length)));
-  const rings = Array.from({ length: read.workers }, () => SharedRing.create(SLOTS, length));
+  const rings = Array.from({ length: workerCount }, () => SharedRing.create(SLOTS, length));
   const errors = new Map<number, PostedError>();
   let replied: (() => void) | undefined;
   let lost: (error: Error) => void = () => {};
