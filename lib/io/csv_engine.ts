@@ -575,6 +575,23 @@ function detectDelimiter(headerLine: string): CsvDelimiter {
   return ",";
 }
 
+/**
+ * The error for a file whose data rows differ between the two passes: it
+ * changed while it was read (a logger still writing to it, say).
+ *
+ * @example
+ * ```ts
+ * import { changedWhileRead } from "./csv_engine.ts";
+ * if (!changedWhileRead("r.csv", 10).message.startsWith("r.csv: the file changed")) throw new Error();
+ * ```
+ */
+export function changedWhileRead(file: string | undefined, rows: number): QuiverError {
+  return new QuiverError(
+    `the file changed while it was read: the first pass counted ${rows} data rows, the second found a different number (is it still being written?)`,
+    { file },
+  );
+}
+
 /** The error for bytes that are not UTF-8 text. */
 export function notUtf8(file?: string): QuiverError {
   return new QuiverError(

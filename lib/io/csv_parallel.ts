@@ -19,7 +19,7 @@
  * @module
  */
 import { closeSync, openSync, readSync } from "node:fs";
-import { CsvRowParser, type CsvScan } from "./csv_engine.ts";
+import { changedWhileRead, CsvRowParser, type CsvScan } from "./csv_engine.ts";
 import type { DecimalMark } from "./numbers.ts";
 import type { TimeStepCheck } from "./csv_recording.ts";
 import { type RingBuffers, SharedRing } from "../shared_ring.ts";
@@ -52,6 +52,8 @@ export interface CsvParseJob {
   readonly path: string;
   /** File name for messages. */
   readonly file: string;
+  /** The file's size in bytes when pass 1 read it. */
+  readonly size: number;
   readonly scan: CsvScan;
   /** Columns in the header. */
   readonly width: number;
@@ -170,7 +172,7 @@ export function parseSegment(
   const parser = new CsvRowParser(job.scan, job.width, {
     row(values, line, decimals) {
       if (filled === capacity) {
-        throw new Error(`CSV segment ${segment.index} holds more rows than pass 1 counted`);
+        throw changedWhileRead(job.file, job.scan.rows);
       }
       for (let j = 0; j < columns.length; j++) {
         into[j * capacity + filled] = values[columns[j]] * factors[j];
@@ -192,8 +194,10 @@ export function parseSegment(
     for (let position = segment.start; position < segment.end;) {
       const got = readSync(fd, bytes, 0, Math.min(READ_BYTES, segment.end - position), position);
       if (got === 0) {
-        if (segment.end === Infinity) break;
-        throw new Error(`the file ended at byte ${position}, inside CSV segment ${segment.index}`);
+        // The last segment ends where the file does, which must be where pass 1 saw it end
+        // (checked before a row cut short is judged).
+        if (segment.end === Infinity && position === job.size) break;
+        throw changedWhileRead(job.file, job.scan.rows); // it ended inside a segment
       }
       parser.push(bytes.subarray(0, got));
       position += got;
@@ -349,20 +353,22 @@ export async function readCsvInWorkers(
         }
         break;
       }
+      const last = j === segments.length - 1;
+      const expected = last ? scan.rows - rows * j : rows;
       if (check !== undefined) {
         const time = channels * rows, decimals = time + rows, line = decimals + rows;
-        for (let i = 0; i < filled; i++) {
+        const checked = Math.min(filled, expected);
+        for (let i = 0; i < checked; i++) {
           check.push(data[time + i], data[line + i], data[decimals + i]);
         }
       }
+      // In the order the parse in one thread meets them: a row beyond those counted, then the
+      // segment's fault, then rows missing at the end.
+      if (filled > expected) throw changedWhileRead(read.file, scan.rows);
       if (failure !== undefined) {
         throw failure instanceof Error ? failure : thrownError(failure);
       }
-      const last = j === segments.length - 1;
-      const expected = last ? scan.rows - rows * j : rows;
-      if (filled !== expected) {
-        throw new Error(`CSV segment ${j} held ${filled} rows where pass 1 counted ${expected}`);
-      }
+      if (filled < expected) throw changedWhileRead(read.file, scan.rows);
       if (last) check?.end();
       onChunk(read.columns.map((_, c) => data.subarray(c * rows, c * rows + filled)));
       ring?.release();

@@ -17,7 +17,7 @@ import { open } from "node:fs/promises";
 import { QuiverError } from "../errors.ts";
 import { formatNumber } from "../format_number.ts";
 import { type ChannelTransform, parseChannelSetup, setupTransforms } from "./channel_setup.ts";
-import { CsvRowParser, CsvScanner, firstDecimalMark } from "./csv_engine.ts";
+import { changedWhileRead, CsvRowParser, CsvScanner, firstDecimalMark } from "./csv_engine.ts";
 import { csvParseWorkers, readCsvInWorkers } from "./csv_parallel.ts";
 import { csvRecordingLayout, TimeStepCheck } from "./csv_recording.ts";
 import type { ReadRecordingOptions } from "./read_recording.ts";
@@ -128,6 +128,7 @@ async function openCsvStream(
         await readCsvInWorkers({
           path,
           file: path,
+          size: bytes,
           scan,
           width: header.length,
           columns,
@@ -143,6 +144,7 @@ async function openCsvStream(
       const chunkRows = Math.min(CHUNK_ROWS, length);
       const buffers = selected.map(() => new Float64Array(chunkRows));
       let filled = 0;
+      let rows = 0;
       const flush = () => {
         if (filled === 0) return;
         onChunk(buffers.map((b) => b.subarray(0, filled)));
@@ -150,6 +152,7 @@ async function openCsvStream(
       };
       const parser = new CsvRowParser(scan, header.length, {
         row(values, line, decimals) {
+          if (++rows > length) throw changedWhileRead(path, length);
           check?.push(values[timeColumn], line, decimals[timeColumn]);
           for (let j = 0; j < columns.length; j++) {
             buffers[j][filled] = values[columns[j]] * factors[j];
@@ -157,8 +160,14 @@ async function openCsvStream(
           if (++filled === chunkRows) flush();
         },
       }, { ...csvOptions, decimalsOf: timeColumn >= 0 ? [timeColumn] : [] });
-      await eachChunk(path, (bytes) => parser.push(bytes));
+      let read = 0;
+      await eachChunk(path, (chunk) => {
+        read += chunk.length;
+        parser.push(chunk);
+      });
+      if (read !== bytes) throw changedWhileRead(path, length); // before a cut row is judged
       parser.end();
+      if (rows < length) throw changedWhileRead(path, length);
       check?.end();
       flush();
     },

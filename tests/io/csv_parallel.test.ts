@@ -5,6 +5,7 @@ import { CsvScanner } from "../../lib/io/csv_engine.ts";
 import { csvParseWorkers, readCsvInWorkers } from "../../lib/io/csv_parallel.ts";
 import { CHUNK_ROWS, openRecordingStream } from "../../lib/io/recording_stream.ts";
 import type { CsvParsing } from "../../lib/io/csv_parallel.ts";
+import { QuiverError } from "../../lib/errors.ts";
 import { uniformGenerator } from "../helpers/random.ts";
 
 // The parse on several cores must give what the parse in one thread gives: the same
@@ -100,7 +101,8 @@ describe("parsing a CSV file with workers", () => {
   test("does use workers, and one segment per chunk (readCsvInWorkers directly)", async () => {
     const path = await written("direct.csv", csvText());
     const scanner = new CsvScanner({ file: path, checkpointEvery: CHUNK_ROWS });
-    scanner.push(readFileSync(path));
+    const bytes = readFileSync(path);
+    scanner.push(bytes);
     const scan = scanner.end();
     expect(scan.checkpoints?.offsets.length).toBe(3);
     const file = { bytes: 0, channels: 2, timeColumn: 0, mark: "." as const };
@@ -111,6 +113,7 @@ describe("parsing a CSV file with workers", () => {
     await readCsvInWorkers({
       path,
       file: path,
+      size: bytes.length,
       scan,
       width: 4,
       columns: [3, 1],
@@ -211,6 +214,46 @@ describe("parsing a CSV file with workers", () => {
       expect(here.error).toMatch(message);
       expect(workers.error).toBe(here.error);
       expect(sameBits(workers.chunks, here.chunks)).toBe(true);
+    });
+  }
+
+  // A file still being written between the two passes: both parses name it, neither reads on.
+  for (
+    const [what, change] of [
+      [
+        "rows appended",
+        (text: string) => text + `${ROWS / 2048},1,2,3\n${(ROWS + 1) / 2048},1,2,3\n`,
+      ],
+      [
+        "a good row, then a bad one appended",
+        (text: string) => text + `${ROWS / 2048},1,2,3\nx,y\n`,
+      ],
+      ["a partial row appended", (text: string) => text + `${ROWS / 2048},1.5`],
+      [
+        "the last 100 rows cut off",
+        (text: string) => text.split("\n").slice(0, -101).join("\n") + "\n",
+      ],
+      ["cut mid-row inside the first segment", (text: string) => text.slice(0, 3_000_000)],
+    ] as const
+  ) {
+    test(`a file that changes between the passes (${what}): the same error from both`, async () => {
+      const text = csvText();
+      const messages: string[] = [];
+      for (const parsing of ["here", "workers"] as const) {
+        const path = await written(`changing_${parsing}.csv`, text);
+        const stream = await openRecordingStream(path, { csvParsing: parsing });
+        await writeFile(path, change(text));
+        let delivered = 0;
+        const error = await stream.read([0], (chunk) => delivered += chunk[0].length).then(
+          () => undefined,
+          (e) => e,
+        );
+        expect(error, parsing).toBeInstanceOf(QuiverError);
+        expect(delivered, parsing).toBeLessThanOrEqual(stream.length); // no row beyond those counted
+        messages.push(error.message.replace(/changing_\w+\.csv/, "changing.csv"));
+      }
+      expect(messages[0]).toMatch(/the file changed while it was read/);
+      expect(messages[1]).toBe(messages[0]);
     });
   }
 });
