@@ -91,6 +91,18 @@ function rowStride(channels: number, timeColumn: number): number {
 }
 
 /**
+ * Where a segment's buffer of `rows` rows holds channel c (at c·rows), and
+ * after the channels the time column's values, their decimals and the lines.
+ */
+function timeBlocks(
+  channels: number,
+  rows: number,
+): { time: number; decimals: number; lines: number } {
+  const time = channels * rows;
+  return { time, decimals: time + rows, lines: time + 2 * rows };
+}
+
+/**
  * How many workers help this thread parse the file (0: it parses alone).
  * Workers need a scan with checkpoints, no quoted cells and a known decimal
  * mark (pass `undefined` when the file does not show it yet). `"auto"` also
@@ -166,8 +178,7 @@ export function parseSegment(
 ): { rows: number; error?: unknown } {
   const { columns, factors, timeColumn } = job;
   const capacity = job.scan.checkpoints!.every;
-  const time = columns.length * capacity;
-  const decimalsAt = time + capacity, linesAt = decimalsAt + capacity;
+  const { time, decimals: decimalsAt, lines: linesAt } = timeBlocks(columns.length, capacity);
   let filled = 0;
   const parser = new CsvRowParser(job.scan, job.width, {
     row(values, line, decimals) {
@@ -308,7 +319,7 @@ export async function readCsvInWorkers(
   try {
     for (const segment of segments) {
       const j = segment.index;
-      let data: Float64Array, filled: number, failure: PostedError | Error | undefined;
+      let data: Float64Array, filled: number, failure: unknown;
       let ring: SharedRing | undefined;
       for (;;) {
         const here = parsedHere.get(j);
@@ -317,7 +328,7 @@ export async function readCsvInWorkers(
           free.push(here.data);
           data = here.data; // not reused before this segment is handed on
           filled = here.rows;
-          if (here.error !== undefined) failure = here.error as Error;
+          failure = here.error;
           break;
         }
         if (claim(j)) {
@@ -349,14 +360,14 @@ export async function readCsvInWorkers(
           while (!errors.has(j)) {
             await Promise.race([new Promise<void>((r) => replied = r), workerLost]);
           }
-          failure = errors.get(j);
+          failure = thrownError(errors.get(j)!);
         }
         break;
       }
       const last = j === segments.length - 1;
       const expected = last ? scan.rows - rows * j : rows;
       if (check !== undefined) {
-        const time = channels * rows, decimals = time + rows, line = decimals + rows;
+        const { time, decimals, lines: line } = timeBlocks(channels, rows);
         const checked = Math.min(filled, expected);
         for (let i = 0; i < checked; i++) {
           check.push(data[time + i], data[line + i], data[decimals + i]);
@@ -365,9 +376,7 @@ export async function readCsvInWorkers(
       // In the order the parse in one thread meets them: a row beyond those counted, then the
       // segment's fault, then rows missing at the end.
       if (filled > expected) throw changedWhileRead(read.file, scan.rows);
-      if (failure !== undefined) {
-        throw failure instanceof Error ? failure : thrownError(failure);
-      }
+      if (failure !== undefined) throw failure;
       if (filled < expected) throw changedWhileRead(read.file, scan.rows);
       if (last) check?.end();
       onChunk(read.columns.map((_, c) => data.subarray(c * rows, c * rows + filled)));
