@@ -8,7 +8,7 @@ import { basename, dirname, join } from "node:path";
 import process from "node:process";
 import { z } from "npm:zod@4.6.7";
 import { writeReport } from "../lib/report/html_report.ts";
-import { type Manifest, runPlan } from "../lib/plan/runner.ts";
+import { loadPlan, type Manifest, runPlan } from "../lib/plan/runner.ts";
 import { parseShard } from "../lib/plan/shards.ts";
 import { slurmScript } from "../lib/plan/slurm.ts";
 import { fileURLToPath } from "node:url";
@@ -101,6 +101,9 @@ export async function run(argv: readonly string[]): Promise<void> {
   const outDir = values["out-dir"] ??
     join(dirname(planFile), "out", basename(planFile).replace(/\.json$/i, ""));
   if (values["slurm-script"] !== undefined) {
+    // The script is run later, on another machine: a plan that cannot be read or is not valid
+    // is refused now rather than found by every shard.
+    await loadPlan(planFile);
     process.stdout.write(slurmScript({
       shards: values["slurm-script"],
       plan: resolve(planFile),
