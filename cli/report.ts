@@ -14,6 +14,8 @@ import { join } from "node:path";
 import { z } from "npm:zod@4.6.7";
 import { QuiverError } from "../lib/errors.ts";
 import { loadPlan, type Manifest } from "../lib/plan/runner.ts";
+import type { Plan } from "../lib/plan/schema.ts";
+import { evaluateTargets } from "../lib/plan/target_eval.ts";
 import { writeReport } from "../lib/report/html_report.ts";
 import { type OptionSpec, parseCommandArgs, usageError } from "./args.ts";
 
@@ -45,12 +47,38 @@ export async function run(argv: readonly string[]): Promise<void> {
   }
   const [outDir] = positionals;
   const manifest = await verifiedManifest(outDir);
-  const { plan } = await loadPlan(manifest.plan.path);
+  const plan = await unchangedPlan(manifest);
+  // The verdicts shown are the ones the verified results give, never the manifest's own words.
+  const failed = new Set(manifest.steps.filter((s) => s.status !== "ok").map((s) => s.id));
+  const targets = await evaluateTargets(plan, outDir, failed);
+  if (JSON.stringify(targets) !== JSON.stringify(manifest.targets)) {
+    throw new QuiverError(
+      "the manifest's target verdicts are not those its results give (edited after the run?), so no report is written: run the plan again",
+      { file: join(outDir, MANIFEST_FILE) },
+    );
+  }
   const path = await writeReport(outDir, manifest, {
     ...plan,
     report: plan.report ?? { file: "report.html" },
   });
   toStderr(`report: ${path}\n`);
+}
+
+/**
+ * The plan the manifest names, refused unless it is still the file the run
+ * read (size and SHA-256): a plan edited since could name another report
+ * file, other targets or other titles than the results were made under.
+ */
+async function unchangedPlan(manifest: Manifest): Promise<Plan> {
+  const { plan, text } = await loadPlan(manifest.plan.path);
+  const bytes = new TextEncoder().encode(text);
+  if (bytes.length !== manifest.plan.bytes || sha256Hex(bytes) !== manifest.plan.sha256) {
+    throw new QuiverError(
+      "the plan changed since the run (its hash differs from the manifest's), so no report is written: run the plan again",
+      { file: manifest.plan.path },
+    );
+  }
+  return plan;
 }
 
 /**

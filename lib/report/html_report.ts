@@ -7,9 +7,10 @@
  * @module
  */
 import { formatFixed, formatNumber } from "../format_number.ts";
-import { mkdir } from "node:fs/promises";
+import { lstat, mkdir } from "node:fs/promises";
 import { join } from "node:path";
 import { writeFileAtomic } from "../io/atomic_write.ts";
+import { uniqueFileNames } from "../io/file_name.ts";
 import { QuiverError } from "../errors.ts";
 import { numericColumn, readResultFile, type ResultTable } from "../io/result_file.ts";
 import { commonMetadata, resultMetadata } from "../io/result_metadata.ts";
@@ -827,13 +828,38 @@ function targetTable(targets: readonly TargetOutcome[]): string {
  * A figure: its static SVG (what prints and what shows without JavaScript)
  * and, for a line plot, its data for the interactive chart.
  */
-function figureHtml(f: Figure): string {
-  const id = `figure-${escapeXml(f.name)}`;
+function figureHtml(f: Figure, file: string): string {
+  const id = `figure-${escapeXml(file)}`;
   const small = f.small === true ? ' class="small"' : "";
   if (f.chart === undefined) return `<figure id="${id}"${small}>${f.svg}</figure>`;
   // JSON inside a script element: "<" escaped so that no "</script" can end it early.
   const json = JSON.stringify(f.chart).replace(/</g, "\\u003c");
   return `<figure id="${id}"${small} data-chart=""><div class="static">${f.svg}</div><script type="application/json" class="chart-data">${json}</script></figure>`;
+}
+
+/**
+ * `<outDir>/figures`, made if missing; refused when it is a link (it could
+ * lead out of the folder) or not a folder.
+ */
+async function figuresFolder(outDir: string): Promise<string> {
+  const dir = join(outDir, "figures");
+  let info;
+  try {
+    info = await lstat(dir);
+  } catch {
+    await mkdir(dir);
+    return dir;
+  }
+  if (info.isSymbolicLink() || !info.isDirectory()) {
+    throw new QuiverError(
+      `${dir} is ${
+        info.isSymbolicLink() ? "a link" : "not a folder"
+      }: the report writes its figures only into a folder of its own inside the output folder`,
+      { file: dir },
+      "usage",
+    );
+  }
+  return dir;
 }
 
 /** A file of the vendored chart library (lib/report/vendor/uplot/). */
@@ -1044,11 +1070,14 @@ export async function writeReport(outDir: string, manifest: Manifest, plan: Plan
       });
     }
   }
-  await mkdir(join(outDir, "figures"), { recursive: true });
-  for (const s of sections) {
-    for (const f of s.figures) {
-      await writeFileAtomic(join(outDir, "figures", `${f.name}.svg`), f.svg + "\n");
-    }
+  // Figure names hold channel names read from data: each becomes a safe, distinct file name.
+  const allFigures = sections.flatMap((s) => s.figures);
+  const fileOf = new Map(
+    uniqueFileNames(allFigures.map((f) => f.name)).map((file, i) => [allFigures[i], file]),
+  );
+  const figuresDir = await figuresFolder(outDir);
+  for (const [f, file] of fileOf) {
+    await writeFileAtomic(join(figuresDir, `${file}.svg`), f.svg + "\n");
   }
   const trace = manifest.steps.map((s) =>
     `<tr><td>${escapeXml(s.id)}</td><td>${escapeXml(s.command)}</td><td>${
@@ -1065,7 +1094,9 @@ export async function writeReport(outDir: string, manifest: Manifest, plan: Plan
   const body = sections.map((s) =>
     `<section><h2>${escapeXml(s.heading)}</h2>${
       s.note !== undefined ? `<p class="note">${escapeXml(s.note)}</p>` : ""
-    }${s.figures.map(figureHtml).join("\n")}${s.html ?? ""}</section>`
+    }${s.figures.map((f) => figureHtml(f, fileOf.get(f) ?? "")).join("\n")}${
+      s.html ?? ""
+    }</section>`
   ).join("\n");
   const html = `<!DOCTYPE html>
 <html lang="en"><head><meta charset="utf-8"><title>${escapeXml(title)}</title>
