@@ -64,9 +64,10 @@ export function capJobs(requested: number, machine: Machine): JobsChoice {
   const jobs = Math.min(requested, cores, byMemory);
   if (jobs === requested) return { jobs };
   const gib = formatNumber(memoryBytes / 2 ** 30, 3);
+  // What binds: the cores, the memory, or both when they allow the same.
   const reasons = [
-    ...(cores < requested ? [`${cores} CPU core${cores === 1 ? "" : "s"}`] : []),
-    ...(byMemory < requested
+    ...(cores === jobs ? [`${cores} CPU core${cores === 1 ? "" : "s"}`] : []),
+    ...(byMemory === jobs
       ? [
         `memory for ${byMemory} worker(s) at ${
           WORKER_MEMORY_BYTES / 2 ** 20
