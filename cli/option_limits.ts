@@ -3,7 +3,8 @@
  * recording's header is known (rate, length, channels) and before any sample
  * is read: a block longer than the record, a resolution finer than the record
  * resolves, more frames than segments, a level step longer than the record, a
- * hammer record longer than the recording, an rpm step that makes more steps
+ * hammer record longer than the recording, a lowest band below one cycle of
+ * the record, an rpm step that makes more steps
  * than quiver keeps, an output or a block the machine's memory cannot hold.
  * Each refusal is one line naming the option, its value and the largest (or
  * smallest) value that would work (a usage error, exit 2).
@@ -233,6 +234,17 @@ export function checkOptionLimits(
       `--pretrigger ${pretrigger} s is longer than ${record}; the largest is ${
         shown(duration, "down")
       } s`,
+    );
+  }
+
+  // The lowest band (bands --min-hz): a band centred below 1/T has less than one cycle in
+  // the record, and no line of any DFT of it but DC (line spacing ≥ rate/length = 1/T).
+  const minHz = numberAt(values, "min-hz");
+  if (minHz !== undefined && minHz < 1 / duration) {
+    fail(
+      `--min-hz ${minHz} is below one cycle in ${record}; the smallest is ${
+        shown(1 / duration, "up")
+      } Hz`,
     );
   }
 

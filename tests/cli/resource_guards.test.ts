@@ -161,6 +161,19 @@ describe("options that size memory or time are checked against the header, befor
   );
 
   test(
+    "bands --min-hz below one cycle in the record is refused naming the smallest, which works",
+    () => {
+      // 2 s of record: 1/T = 0.5 Hz, the DFT's finest line spacing (Bendat & Piersol 11.2).
+      refused(
+        ["bands", "r.csv", "--min-hz", "1e-300"],
+        /--min-hz 1e-300 is below one cycle in the record of 2000 samples .*; the smallest is 0\.5 Hz$/,
+      );
+      accepted(["bands", "r.csv", "--min-hz", "0.5", "--method", "filter", "--reference", "1"]);
+    },
+    600_000,
+  );
+
+  test(
     "--rpm-step: too many steps are refused at once with a given range, and after the speed without one",
     () => {
       refused(
