@@ -168,6 +168,7 @@ describe("options that size memory or time are checked against the header, befor
         ["bands", "r.csv", "--min-hz", "1e-300"],
         /--min-hz 1e-300 is below one cycle in the record of 2000 samples .*; the smallest is 0\.5 Hz$/,
       );
+      refused(["bands", "r.csv", "--min-hz", "0.49"], /the smallest is 0\.5 Hz$/);
       accepted(["bands", "r.csv", "--min-hz", "0.5", "--method", "filter", "--reference", "1"]);
     },
     600_000,
