@@ -8,7 +8,7 @@ import { parseArgs, type ParseArgsConfig } from "node:util";
 import { z } from "npm:zod@4.6.7";
 import { QuiverError, withFile } from "../lib/errors.ts";
 import { parseDecimal } from "../lib/io/numbers.ts";
-import { refuseClashingOutputs } from "../lib/io/output_paths.ts";
+import { refuseClashingOutputs, refuseUnreplaceableOutputs } from "../lib/io/output_paths.ts";
 
 /** Option definitions in parseArgs form. */
 export type OptionSpec = NonNullable<ParseArgsConfig["options"]>;
@@ -79,6 +79,7 @@ export function parseCommandArgs<S extends z.ZodType>(
   const inputs = [...parsed.positionals];
   if (typeof values.setup === "string") inputs.push(values.setup);
   refuseClashingOutputs(outputs, inputs);
+  refuseUnreplaceableOutputs(outputs);
   return { positionals: parsed.positionals, values: result.data };
 }
 

@@ -52,6 +52,7 @@ export async function writeTable(
       await writeFileAtomic(out, text);
     }
   } catch (error) {
+    if (error instanceof QuiverError) throw error; // says what it is already (a target that is no file)
     const code = (error as { code?: string }).code;
     throw new QuiverError(
       `cannot write: ${

@@ -8,6 +8,7 @@ import type { ReadRecordingOptions } from "../lib/io/read_recording.ts";
 import { openRecordingStream, type RecordingStream } from "../lib/io/recording_stream.ts";
 import { inFileAsync, numberOption } from "./args.ts";
 import { option } from "./option_table.ts";
+import { checkOptionLimits } from "./option_limits.ts";
 
 /** The options of reading a recording. */
 export const RECORDING_TABLE = {
@@ -43,7 +44,17 @@ export const RECORDING_TABLE = {
 /** The heading of the recording options' help. */
 export const RECORDING_HEADING = "Reading the recording";
 
-/** Converts validated recording options to reader options. */
+/**
+ * Reader options, carrying the command's other options along so that
+ * {@linkcode analyseRecording} can check those that size memory or time
+ * against the header (option_limits.ts) before the analysis reads a sample.
+ */
+export type CommandReadOptions = ReadRecordingOptions & {
+  /** Every option of the command, as parsed. */
+  readonly sizing?: Readonly<Record<string, unknown>>;
+};
+
+/** Converts validated recording options to reader options (with the rest for the limits). */
 export function toReadOptions(values: {
   rate?: number;
   setup?: string;
@@ -51,7 +62,7 @@ export function toReadOptions(values: {
   end?: number;
   delimiter?: "auto" | "comma" | "semicolon" | "tab";
   decimal?: "auto" | "point" | "comma";
-}): ReadRecordingOptions {
+}): CommandReadOptions {
   const delimiters = { auto: "auto", comma: ",", semicolon: ";", tab: "\t" } as const;
   const decimals = { auto: "auto", point: ".", comma: "," } as const;
   return {
@@ -61,19 +72,31 @@ export function toReadOptions(values: {
     ...(values.end !== undefined ? { end: values.end } : {}),
     delimiter: delimiters[values.delimiter ?? "auto"],
     decimal: decimals[values.decimal ?? "auto"],
+    sizing: values as Readonly<Record<string, unknown>>,
   };
 }
 
 /**
- * Opens the recording for chunked reading and runs the analysis on it. The
- * analysis decides whether it reads in chunks or collects the whole record;
- * a fault is reported once, where the reader finds it.
+ * Opens the recording for chunked reading, checks the options that size
+ * memory or time against its header (option_limits.ts), and runs the
+ * analysis on it. The analysis decides whether it reads in chunks or
+ * collects the whole record; a fault is reported once, where the reader
+ * finds it.
  */
 export async function analyseRecording<T>(
   input: string,
-  options: ReadRecordingOptions,
+  options: CommandReadOptions,
   analysis: (stream: RecordingStream) => Promise<T>,
 ): Promise<T> {
-  const stream = await openRecordingStream(input, options);
+  const { sizing, ...read } = options;
+  const stream = await openRecordingStream(input, read);
+  // The header is known: refuse what the record or the machine cannot hold, before any work.
+  if (sizing !== undefined) {
+    checkOptionLimits(
+      { rate: stream.rate, length: stream.length, channels: stream.channels.length },
+      sizing,
+      input,
+    );
+  }
   return await inFileAsync(input, () => analysis(stream));
 }

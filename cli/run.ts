@@ -17,7 +17,9 @@ import { integerOption, parseCommandArgs, usageError } from "./args.ts";
 import { option, shapeOf, specOf } from "./option_table.ts";
 import { TARGETS_NOT_MET_EXIT } from "./exit_codes.ts";
 import { withStderrLabel } from "./terminal.ts";
-import { WorkerPool } from "./worker_pool.ts";
+import { capJobs, WorkerPool } from "./worker_pool.ts";
+import { totalmem } from "node:os";
+import { assertFolderOrAbsent } from "../lib/io/file_kinds.ts";
 import { planCommandTable } from "./plan_commands.ts";
 
 /** One-line summary for the command list. */
@@ -47,6 +49,8 @@ reported and the exit code is 0. A failed step exits 1 first.
 --jobs N runs up to N independent steps at once, each in its own worker
 (default: the number of CPU cores); workers start only when a step needs one,
 after the plan has been checked, so no more start than steps can run at once.
+N is capped at the CPU cores and at the workers half the machine's memory
+holds at 512 MiB each (an estimate per worker); the run says when it caps.
 --jobs 1 runs the steps one after another in this process. Every line a step
 writes starts with its id.
 
@@ -117,7 +121,11 @@ export async function run(argv: readonly string[]): Promise<void> {
     return;
   }
   const shard = values.shard !== undefined ? parseShard(values.shard, process.env) : undefined;
-  const jobs = values.jobs ?? navigator.hardwareConcurrency ?? 1;
+  assertFolderOrAbsent(outDir, values["out-dir"] !== undefined ? "--out-dir" : "the output folder");
+  const cores = navigator.hardwareConcurrency ?? 1;
+  const choice = capJobs(values.jobs ?? cores, { cores, memoryBytes: totalmem() });
+  if (choice.note !== undefined) toStderr(`run: ${choice.note}\n`);
+  const jobs = choice.jobs;
   const pool = jobs > 1 ? new WorkerPool(jobs) : undefined;
   const commands = await planCommandTable();
   let manifest;

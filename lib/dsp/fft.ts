@@ -41,8 +41,17 @@ const FftJsConstructor = FFT as unknown as new (size: number) => FftJs;
  * ```
  */
 export function isPowerOfTwo(n: number): boolean {
-  return Number.isInteger(n) && n >= 2 && (n & (n - 1)) === 0;
+  // Not `n & (n − 1)`: bitwise operators work on 32 bits, so 2^32 + 2^31 would pass.
+  return Number.isSafeInteger(n) && n >= 2 && 2 ** Math.round(Math.log2(n)) === n;
 }
+
+/**
+ * The largest transform {@linkcode realFftPlan} makes: 2^27 = 134 217 728
+ * samples. Bluestein's power-of-two length for it stays at 2^28, within the
+ * 32-bit index arithmetic of fft.js; the plan's arrays alone then take several
+ * GiB, so the command line checks a block against the machine's memory first.
+ */
+export const MAX_FFT_SIZE = 2 ** 27;
 
 /**
  * A real DFT of N samples from one complex DFT of N/2 points: the samples, read
@@ -171,7 +180,8 @@ const planCache = new Map<number, RealFftPlan>();
  * Returns the real-input DFT plan for `size` samples, creating it on first
  * use and caching it for the life of the process.
  *
- * @throws {RangeError} when `size` is not an integer of at least 2.
+ * @throws {RangeError} when `size` is not an integer from 2 to
+ * {@linkcode MAX_FFT_SIZE}.
  *
  * @example
  * ```ts
@@ -187,6 +197,9 @@ export function realFftPlan(size: number): RealFftPlan {
     throw new RangeError(
       `FFT size must be an integer of at least 2, got ${size}`,
     );
+  }
+  if (size > MAX_FFT_SIZE) {
+    throw new RangeError(`FFT size must be at most ${MAX_FFT_SIZE} (2^27) samples, got ${size}`);
   }
   let plan = planCache.get(size);
   if (plan === undefined) {

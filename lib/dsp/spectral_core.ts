@@ -19,9 +19,16 @@
  */
 import { QuiverError } from "../errors.ts";
 import { formatNumber } from "../format_number.ts";
-import { type RealFftPlan, realFftPlan } from "./fft.ts";
-import { detrendInPlace, type DetrendMode } from "./detrend.ts";
-import { WINDOW_DEFINITIONS, windowGains, type WindowName, windowSamples } from "./windows.ts";
+import { MAX_FFT_SIZE, type RealFftPlan, realFftPlan } from "./fft.ts";
+import { detrendInPlace, type DetrendMode, parseDetrendMode } from "./detrend.ts";
+import {
+  parseWindowName,
+  WINDOW_DEFINITIONS,
+  windowGains,
+  type WindowName,
+  windowSamples,
+} from "./windows.ts";
+import { parseChoice } from "../choices.ts";
 
 /**
  * How successive segment spectra are combined.
@@ -205,7 +212,8 @@ export function scaleFactor(
  * The block length whose line spacing is the requested resolution or finer:
  * ceil(rate/df). The spacing actually used, rate/block, is in the result.
  *
- * @throws {RangeError} when rate or resolution is not a positive number.
+ * @throws {RangeError} when rate or resolution is not a positive number, or
+ * the block would be longer than the largest transform (`MAX_FFT_SIZE`).
  *
  * @example
  * ```ts
@@ -223,7 +231,14 @@ export function blockForResolution(rate: number, resolution: number): number {
     );
   }
   // The tolerance keeps 1024/0.5 at 2048 despite rounding in the division.
-  return Math.ceil(rate / resolution - 1e-9);
+  const block = Math.ceil(rate / resolution - 1e-9);
+  if (block > MAX_FFT_SIZE) {
+    throw new RangeError(
+      `a resolution of ${resolution} Hz at ${rate} Hz needs a block of ${block} samples; ` +
+        `the largest is ${MAX_FFT_SIZE}, so the finest resolution is ${rate / MAX_FFT_SIZE} Hz`,
+    );
+  }
+  return block;
 }
 
 /** Default block length when neither block nor resolution is given. */
@@ -309,9 +324,9 @@ function resolveOptions(
   if (!(rate > 0) || !Number.isFinite(rate)) {
     throw new RangeError(`rate must be a positive number of Hz, got ${rate}`);
   }
-  if (!Number.isInteger(block) || block < MIN_BLOCK) {
+  if (!Number.isInteger(block) || block < MIN_BLOCK || block > MAX_FFT_SIZE) {
     throw new RangeError(
-      `block must be an integer of at least ${MIN_BLOCK} samples, got ${block}`,
+      `block must be an integer from ${MIN_BLOCK} to ${MAX_FFT_SIZE} samples, got ${block}`,
     );
   }
   const overlap = options.overlap ?? 0.5;
@@ -331,7 +346,10 @@ function resolveOptions(
       }); 0.5 to 0.75 is usual`,
     );
   }
-  const average = options.average ?? "linear";
+  // Names from plain JavaScript or a cast: refused naming the allowed ones, not a TypeError later.
+  const window = parseWindowName(options.window ?? "hann");
+  const detrend = parseDetrendMode(options.detrend ?? "mean");
+  const average = parseChoice(options.average ?? "linear", AVERAGING_MODES, "averaging mode");
   const tau = options.tau ?? 1;
   if (!(tau > 0) || !Number.isFinite(tau)) {
     throw new RangeError(`tau must be a positive number of seconds, got ${tau}`);
@@ -356,8 +374,8 @@ function resolveOptions(
     block,
     overlapSamples,
     hop: block - overlapSamples,
-    window: options.window ?? "hann",
-    detrend: options.detrend ?? "mean",
+    window,
+    detrend,
     average,
     tau,
     pairs,

@@ -87,7 +87,8 @@ export function parseWindowName(name: string): WindowName {
 /**
  * The periodic window of `size` samples, scaled to a peak of 1.
  *
- * @throws {RangeError} when `size` is not an integer of at least 1.
+ * @throws {RangeError} for a name that is not one of {@linkcode WINDOW_NAMES}
+ * (naming them), or when `size` is not an integer of at least 1.
  *
  * @example
  * ```ts
@@ -97,6 +98,8 @@ export function parseWindowName(name: string): WindowName {
  * ```
  */
 export function windowSamples(name: WindowName, size: number): Float64Array {
+  // A caller in plain JavaScript (or a cast) can pass any string: say which names exist.
+  parseWindowName(name);
   if (!Number.isInteger(size) || size < 1) {
     throw new RangeError(`window size must be a positive integer, got ${size}`);
   }

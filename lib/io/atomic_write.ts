@@ -8,6 +8,7 @@
 import { open, readdir, rename, rm } from "node:fs/promises";
 import { basename, dirname, join } from "node:path";
 import process from "node:process";
+import { assertReplaceable } from "./file_kinds.ts";
 
 /** The prefix of every temporary file of a write to a file named `name`. */
 const TEMPORARY_PREFIX = (name: string) => `.${name}.tmp-`;
@@ -25,8 +26,12 @@ function temporaryName(path: string): string {
  * returns its path; {@linkcode commitTemporary} then renames it into place.
  * Leftovers of earlier writes to `path` by processes that no longer run (a
  * killed write) are removed first.
+ *
+ * @throws {QuiverError} (usage) when `path` exists and is not a regular file
+ * (file_kinds.ts), before anything is written.
  */
 export async function writeTemporary(path: string, content: string | Uint8Array): Promise<string> {
+  assertReplaceable(path, "the target");
   await removeStaleTemporaries(path);
   const temporary = temporaryName(path);
   try {
@@ -44,9 +49,18 @@ export async function writeTemporary(path: string, content: string | Uint8Array)
   return temporary;
 }
 
-/** Renames a temporary file from {@linkcode writeTemporary} into place. */
+/**
+ * Renames a temporary file from {@linkcode writeTemporary} into place. The
+ * target is looked at (lstat) once more just before the rename, which would
+ * otherwise replace whatever is there: a device node, a FIFO, a symbolic link
+ * (a folder makes rename fail on its own).
+ *
+ * @throws {QuiverError} (usage) when `path` has become something other than a
+ * regular file; the temporary file is removed.
+ */
 export async function commitTemporary(temporary: string, path: string): Promise<void> {
   try {
+    assertReplaceable(path, "the target");
     await rename(temporary, path);
   } catch (error) {
     await rm(temporary, { force: true });
@@ -80,6 +94,7 @@ async function removeStaleTemporaries(path: string): Promise<void> {
  * ```ts
  * import { processRuns } from "./atomic_write.ts";
  * import process from "node:process";
+import { assertReplaceable } from "./file_kinds.ts";
  * if (!processRuns(process.pid) || processRuns(999999999)) throw new Error();
  * ```
  */
@@ -96,6 +111,8 @@ export function processRuns(pid: number): boolean {
  * Writes `path` atomically: a temporary file in the same folder, synced, then
  * renamed over `path`. A reader sees the old content or the new, never half.
  * Leftover temporary files of killed writes to the same path are removed.
+ * Only a regular file is replaced: a folder, device, FIFO, socket or symbolic
+ * link at `path` is refused, so `/dev/null` stays a device even for root.
  *
  * @example
  * ```ts

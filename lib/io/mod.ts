@@ -50,3 +50,4 @@ export {
   resultMetadata,
 } from "./result_metadata.ts";
 export { writeFileAtomic } from "./atomic_write.ts";
+export { assertRegularFile } from "./file_kinds.ts";

@@ -10,6 +10,7 @@
 import { existsSync, realpathSync } from "node:fs";
 import { basename, dirname, join, resolve } from "node:path";
 import { QuiverError } from "../errors.ts";
+import { assertReplaceable } from "./file_kinds.ts";
 
 /**
  * The real path of `path`, also for a file that does not exist yet (the real
@@ -75,5 +76,30 @@ export function refuseClashingOutputs(
       }
       taken.set(real, option);
     }
+  }
+}
+
+/**
+ * Refuses outputs (and CSV sidecars) that exist and are not regular files: a
+ * folder, device, FIFO, socket or symbolic link (file_kinds.ts). Checked with
+ * the options, before any work, so that a long analysis does not end in a
+ * write that cannot happen.
+ *
+ * @throws {QuiverError} (usage) naming the option and what the path is.
+ *
+ * @example
+ * ```ts
+ * import { refuseUnreplaceableOutputs } from "./output_paths.ts";
+ * let message = "";
+ * try { refuseUnreplaceableOutputs([{ option: "--out", path: "/dev/null" }]); }
+ * catch (e) { message = (e as Error).message; }
+ * if (!message.startsWith("--out /dev/null is a character device")) throw new Error(message);
+ * ```
+ */
+export function refuseUnreplaceableOutputs(
+  outputs: readonly { option: string; path: string }[],
+): void {
+  for (const { option, path } of outputs) {
+    for (const file of written(path)) assertReplaceable(file, option);
   }
 }

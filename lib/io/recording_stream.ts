@@ -30,6 +30,7 @@ import {
   refuseNonFiniteSamples,
 } from "./wav.ts";
 import { ChannelStatistics } from "./signal_checks.ts";
+import { assertRegularFile } from "./file_kinds.ts";
 import { readFile } from "node:fs/promises";
 
 /** A recording opened for chunked reading. */
@@ -61,6 +62,7 @@ async function transformsFor(
 ): Promise<ChannelTransform[]> {
   // Without a set-up the transforms still convert units to their SI base (units.ts).
   if (options.setup === undefined) return setupTransforms(channels, { channels: {} });
+  assertRegularFile(options.setup, "channel set-up");
   let text: string;
   try {
     text = await readFile(options.setup, "utf8");
@@ -307,8 +309,9 @@ export async function readChecked(
  * Opens a recording (CSV or WAV, told by its first bytes) for chunked reading,
  * with the set-up applied.
  *
- * @throws {QuiverError} for a missing file, a bad header or set-up, or (CSV)
- * any fault pass 1 finds.
+ * @throws {QuiverError} for a missing file, one that is not a regular file
+ * (a folder, FIFO or device: refused before it is opened, so a FIFO cannot
+ * hang the read), a bad header or set-up, or (CSV) any fault pass 1 finds.
  *
  * @example
  * ```ts
@@ -327,6 +330,7 @@ export async function openRecordingStream(
   path: string,
   options: ReadRecordingOptions = {},
 ): Promise<RecordingStream> {
+  assertRegularFile(path, "recording");
   let magic: Uint8Array;
   try {
     const h = await open(path, "r");

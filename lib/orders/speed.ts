@@ -8,6 +8,7 @@
  * @module
  */
 import { QuiverError } from "../errors.ts";
+import { formatNumber } from "../format_number.ts";
 import { type Recording, selectChannels } from "../io/recording.ts";
 import { memorySeries, type SampleSeries } from "../io/sample_series.ts";
 import { motionFromPulses, motionFromRpm, type ShaftMotion, tachoPulses } from "./tacho.ts";
@@ -153,6 +154,12 @@ export function timeAtRpm(motion: ShaftMotion, rpm: number): number | undefined 
   return undefined;
 }
 
+/**
+ * The most rpm steps quiver makes: 20 000 (1 rpm steps over 0–20 000 rpm).
+ * Each step is one spectrum of the map and one row of the cuts.
+ */
+export const MAX_RPM_STEPS = 20_000;
+
 /** rpm steps and the recorded speed range. */
 export interface RpmSteps {
   /** The steps, rpm, rising. */
@@ -171,7 +178,8 @@ export interface RpmSteps {
  * The rpm steps inside the recorded speed range.
  *
  * @throws {RangeError} for a step that is not positive or an empty range;
- * QuiverError when the recorded speed does not cover the asked range.
+ * QuiverError when the recorded speed does not cover the asked range, or
+ * (usage) when the step makes more than {@linkcode MAX_RPM_STEPS} steps.
  *
  * @example
  * ```ts
@@ -200,6 +208,19 @@ export function rpmSteps(motion: ShaftMotion, options: RpmStepOptions = {}): Rpm
       } rpm, which does not cover the requested ${rpmMin}–${rpmMax} rpm`,
     );
   }
+  // Counted before any is made: a tiny step would otherwise fill memory one push at a time.
+  const count = wholeSteps((rpmMax - rpmMin) / step) + 1;
+  if (count > MAX_RPM_STEPS) {
+    throw new QuiverError(
+      `an rpm step of ${step} makes ${count} steps from ${formatNumber(rpmMin, 8)} to ${
+        formatNumber(rpmMax, 8)
+      } rpm; quiver takes at most ${MAX_RPM_STEPS}, so the smallest step here is ${
+        formatNumber((rpmMax - rpmMin) / (MAX_RPM_STEPS - 1), 6)
+      } rpm`,
+      {},
+      "usage",
+    );
+  }
   const steps: number[] = [];
   for (let r = rpmMin; r <= rpmMax + 1e-9; r += step) steps.push(r);
   return { steps, rpmMin, rpmMax, rpmStep: step, recorded: [lowest, highest] };
@@ -210,4 +231,10 @@ export function speedSourceMetadata(source: SpeedSource): Record<string, unknown
   return source.tacho !== undefined
     ? { tacho: source.tacho, ppr: source.ppr }
     : { rpm_channel: source.rpmChannel };
+}
+
+/** floor(q), except that a q within rounding (1e-12 relative) of a whole number is that number. */
+function wholeSteps(q: number): number {
+  const near = Math.round(q);
+  return Math.abs(q - near) <= 1e-12 * Math.max(1, near) ? near : Math.floor(q);
 }

@@ -1,4 +1,5 @@
-import { mkdtemp, readdir, readFile, writeFile } from "node:fs/promises";
+import { lstat, mkdir, mkdtemp, readdir, readFile, symlink, writeFile } from "node:fs/promises";
+import { execFileSync } from "node:child_process";
 import { beforeAll, describe, expect, test } from "vitest";
 import { runQuiver } from "../helpers/cli.ts";
 import { encodeWav } from "../../lib/io/wav.ts";
@@ -112,4 +113,139 @@ describe("a float WAV holding NaN or ±Inf is refused by every command, naming c
       });
     }
   }
+});
+
+describe("an input that is not a regular file is refused at once by every command that reads a recording", () => {
+  // The refusal comes from stat, before any open: a FIFO without a writer would block an
+  // open for reading forever, and /dev/zero never ends. runQuiver's timeout turns a hang
+  // into a failure.
+  const READERS: Record<string, string[]> = {
+    spectrum: [],
+    spectrogram: [],
+    frf: ["--input", "f", "--outputs", "a"],
+    hammer: ["--force", "f", "--outputs", "a"],
+    bands: [],
+    level: ["--reference", "1", "--weighting", "Z"],
+    orders: ["--tacho", "f", "--ppr", "1", "--channels", "a"],
+    paths: ["--references", "f", "--transfer", "t.json", "--target", "a"],
+    calibrate: ["--channel", "a"],
+  };
+  let dir: string;
+  let device: string | undefined;
+  beforeAll(async () => {
+    dir = await mkdtemp("/tmp/quiver-not-file-");
+    execFileSync("mkfifo", [`${dir}/pipe.csv`]);
+    await mkdir(`${dir}/folder.csv`);
+    try {
+      // A character device of our own (1,5 is /dev/zero, Linux devices.txt); needs root.
+      execFileSync("mknod", [`${dir}/zero.csv`, "c", "1", "5"], { stdio: "ignore" });
+      device = "zero.csv";
+    } catch {
+      device = undefined; // the device case below falls back to /dev/zero itself
+    }
+    // paths reads its transfer FRF before the recording: a real one, from frf.
+    const rows = Array.from({ length: 256 }, (_, i) => `${i / 100},${Math.sin(i)},${Math.cos(i)}`);
+    await writeFile(`${dir}/fa.csv`, "time_s,f [N],a [m/s^2]\n" + rows.join("\n") + "\n");
+    const frf = runQuiver(
+      ["frf", "fa.csv", "--input", "f", "--outputs", "a", "--block", "64", "--out", "t.json"],
+      dir,
+    );
+    if (frf.code !== 0) throw new Error(frf.stderr);
+  }, 600_000);
+  for (const [command, args] of Object.entries(READERS)) {
+    test(
+      `${command}: a FIFO, a folder and a device, each in one line, exit 2, nothing written`,
+      async () => {
+        const cases: [string, RegExp][] = [
+          [
+            "pipe.csv",
+            /pipe\.csv: a recording must be a regular file; this is a FIFO \(named pipe\)$/,
+          ],
+          ["folder.csv", /folder\.csv: a recording must be a regular file; this is a folder$/],
+          [
+            device ?? "/dev/zero",
+            /zero(\.csv)?: a recording must be a regular file; this is a character device$/,
+          ],
+        ];
+        for (const [file, pattern] of cases) {
+          const before = (await readdir(dir)).sort();
+          const r = runQuiver([command, file, ...args, "--out", "out.json"], dir);
+          expect(r.code, r.stderr).toBe(2);
+          expect(r.stderr.trim(), file).toMatch(pattern);
+          expect(r.stderr.trim().split("\n")).toHaveLength(1);
+          expect((await readdir(dir)).sort()).toEqual(before);
+        }
+      },
+      600_000,
+    );
+  }
+  test("a set-up file that is a FIFO is refused the same way", async () => {
+    await writeFile(
+      `${dir}/r.csv`,
+      "time_s,a [V]\n" + Array.from({ length: 64 }, (_, i) => `${i / 100},${i % 3}`).join("\n") +
+        "\n",
+    );
+    const r = runQuiver(["spectrum", "r.csv", "--block", "16", "--setup", "pipe.csv"], dir);
+    expect(r.code).toBe(2);
+    expect(r.stderr.trim()).toBe(
+      "quiver spectrum: pipe.csv: a channel set-up must be a regular file; this is a FIFO (named pipe)",
+    );
+  });
+});
+
+describe("--out replaces only a regular file; --out-dir must be a folder", () => {
+  let dir: string;
+  beforeAll(async () => {
+    dir = await mkdtemp("/tmp/quiver-out-kind-");
+    await writeFile(
+      `${dir}/r.csv`,
+      "time_s,a [V]\n" + Array.from({ length: 64 }, (_, i) => `${i / 100},${i % 3}`).join("\n") +
+        "\n",
+    );
+    execFileSync("mkfifo", [`${dir}/pipe.csv`]);
+    await mkdir(`${dir}/folder.csv`);
+    await writeFile(`${dir}/kept.csv`, "kept\n");
+    await symlink(`${dir}/kept.csv`, `${dir}/link.csv`);
+    await writeFile(`${dir}/plan.json`, "{}\n");
+  });
+  test(
+    "a FIFO, a folder and a symbolic link are refused before any work, each in one line",
+    async () => {
+      const cases: [string, string][] = [
+        ["pipe.csv", "--out pipe.csv is a FIFO (named pipe); quiver replaces only regular files"],
+        ["folder.csv", "--out folder.csv is a folder; quiver replaces only regular files"],
+        [
+          "link.csv",
+          "--out link.csv is a symbolic link; quiver does not write through links (name the link's target, or remove the link)",
+        ],
+      ];
+      for (const [out, message] of cases) {
+        const r = runQuiver(["spectrum", "r.csv", "--block", "16", "--out", out], dir);
+        expect(r.code).toBe(2);
+        expect(r.stderr.trim()).toBe(`quiver spectrum: ${message}`);
+      }
+      expect((await lstat(`${dir}/pipe.csv`)).isFIFO()).toBe(true);
+      expect((await lstat(`${dir}/link.csv`)).isSymbolicLink()).toBe(true);
+      expect(await readFile(`${dir}/kept.csv`, "utf8")).toBe("kept\n");
+    },
+    600_000,
+  );
+  test("a device node stays a device (the suite runs as root, where rename would replace it)", async (context) => {
+    try {
+      execFileSync("mknod", [`${dir}/null.csv`, "c", "1", "3"], { stdio: "ignore" });
+    } catch {
+      context.skip("mknod failed (not root, or no CAP_MKNOD): a device node cannot be made here");
+    }
+    const r = runQuiver(["spectrum", "r.csv", "--block", "16", "--out", "null.csv"], dir);
+    expect(r.code).toBe(2);
+    expect(r.stderr.trim()).toBe(
+      "quiver spectrum: --out null.csv is a character device; quiver replaces only regular files",
+    );
+    expect((await lstat(`${dir}/null.csv`)).isCharacterDevice()).toBe(true);
+  });
+  test("run --out-dir naming a file is refused in one line", () => {
+    const r = runQuiver(["run", "plan.json", "--out-dir", "r.csv"], dir);
+    expect(r.code).toBe(2);
+    expect(r.stderr.trim()).toBe("quiver run: --out-dir r.csv is a regular file, not a folder");
+  });
 });

@@ -214,8 +214,8 @@ describe("quiver spectrum refuses bad input and writes nothing", () => {
     [
       "block longer than the record",
       ["good.csv", "--block", "128"],
-      1,
-      /good\.csv: a block of 128 samples .* longer than the record of 64/,
+      2,
+      /good\.csv: --block 128 is longer than the record of 64 samples .*; the largest is 64\n$/,
     ],
     ["negative overlap", ["good.csv", "--overlap=-0.5"], 2, /--overlap: must be at least 0/],
     ["overlap of 1", ["good.csv", "--overlap", "1"], 2, /--overlap: must be less than 1/],

@@ -104,8 +104,11 @@ describe("--start and --end: a time slice of the recording, in every command and
       "--block",
       "256",
     ], dir);
-    expect(r.code).toBe(1);
-    expect(r.stderr).toMatch(/a block of 256 samples .* is longer than the record of 103 samples/);
+    // Refused from the header, before reading: an option the record cannot hold (exit 2).
+    expect(r.code).toBe(2);
+    expect(r.stderr).toMatch(
+      /--block 256 is longer than the record of 103 samples .*the largest is 103/,
+    );
   });
 
   test("a plan's recording start/end reach every analysis of it, and the manifest", async () => {
