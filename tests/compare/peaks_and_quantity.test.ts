@@ -89,6 +89,30 @@ describe("peak matching refuses to interpolate a peak narrower than its grid", (
     }, "level");
   });
 
+  test("power quantities (|H|²): the same −3 % shift and level difference, located on amplitudes", () => {
+    const square = (c: Curve): Curve => ({
+      frequencies: c.frequencies,
+      magnitude: c.magnitude.map((m) => m * m),
+      quantity: "power",
+      unit: "(m/N)^2",
+      column: "h2",
+    });
+    const t = square(receptance(grid(0.25), [mode]));
+    const s = square(receptance(grid(0.25), [{ fn: 0.97 * 61.7, zeta: 0.02 }]));
+    const [p] = compareCurves(t, s).summary.peaks;
+    expect(p.coarse).toBe(false);
+    assertClose(p.shift_percent, -3, { relative: 0, absolute: 0.02 }, "shift");
+    assertClose(p.test_hz, 61.7 * Math.sqrt(1 - 2 * 0.02 ** 2), {
+      relative: 0,
+      absolute: 0.01,
+    }, "test peak");
+    // 10·lg of the ratio of |H|² equals 20·lg of the ratio of |H| (IEC 60027-3).
+    assertClose(p.level_difference_db!, 20 * Math.log10(1 / 0.97 ** 2), {
+      relative: 0,
+      absolute: 0.005,
+    }, "level");
+  });
+
   test("a peak only the simulation has, and one only the test has, are named", () => {
     const t = receptance(grid(0.25), [{ fn: 30, zeta: 0.02 }, mode]);
     const s = receptance(grid(0.25), [mode, { fn: 140, zeta: 0.02 }]);

@@ -108,6 +108,19 @@ describe("frf: transient excitation is found and answered with the segmenting th
       true,
     );
     expect(r.warnings.some((w) => w.startsWith("transient excitation"))).toBe(false);
+    // The same window and block started inside a burst (0.75 s) cut every burst in two: the
+    // naive check "rectangular and one period" would pass it; quiver warns and names a start.
+    const cut = await frequencyResponse(sliceStream(recordingSource(rec), 0.75, undefined), {
+      input: "force",
+      outputs: ["acc"],
+      window: "rectangular",
+      block: PERIOD,
+      overlap: 0,
+    });
+    expect(worstInHalfPowerBand(cut.table)).toBeGreaterThan(0.3);
+    expect(cut.warnings.find((w) => w.startsWith("transient excitation"))).toMatch(
+      /--start 2\.\d+/,
+    );
   });
 
   test("stationary random and a sine sweep are not transient", async () => {
