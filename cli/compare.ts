@@ -84,7 +84,12 @@ Both go on the coarser of the two grids over the range both cover; the
 other is interpolated linearly (in re/im when it has phase, else in
 magnitude).`,
   groups: [["Curves", CURVES], ["Analysis", ANALYSIS], ["Output", OUTPUTS]],
-  notes: "CSV columns: frequency_hz, test, simulation, difference_db (simulation - test).",
+  notes: `CSV columns: frequency_hz, test, simulation, difference_db (simulation - test).
+dB: 10 log10 for power quantities (--power, psd/power metadata, or a squared
+unit such as (m/s^2)^2/Hz or FS^2/Hz), else 20 log10.
+A peak is located between lines only with 3 lines in its half-power band;
+otherwise it is compared at the common grid's lines and flagged coarse.
+Peaks of one curve only are listed as test-only or simulation-only.`,
 });
 
 /** parseArgs spec. */
