@@ -53,7 +53,9 @@ function burstRandom(seed: number): Float64Array {
 }
 
 /** Largest |dB error| of the FRF against the analytic one over the half-power band. */
-function worstInHalfPowerBand(table: { columns: { name: string; values: Float64Array }[] }) {
+function worstInHalfPowerBand(
+  table: { columns: readonly { name: string; values: Float64Array }[] },
+) {
   const f = table.columns[0].values;
   const mag = table.columns.find((c) => c.name === "acc_mag")!.values;
   // Analytic peak of the discrete system on a fine grid, for the band's edges.
