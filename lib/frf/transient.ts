@@ -101,13 +101,24 @@ export class TransientDetector {
 
   /** Adds the next samples of the input. */
   push(samples: Float64Array): void {
-    for (let i = 0; i < samples.length; i++, this.#at++) {
-      const k = Math.floor(this.#at / this.#frame);
+    const frame = this.#frame;
+    let i = 0;
+    while (i < samples.length) {
+      // One frame (or the part of it in this chunk) at a time.
+      const k = Math.floor(this.#at / frame);
       if (k >= this.#sum.length) {
         throw new RangeError("more samples than the record length given to the detector");
       }
-      this.#sum[k] += samples[i];
-      this.#squares[k] += samples[i] * samples[i];
+      const end = Math.min(samples.length, i + (k + 1) * frame - this.#at);
+      let sum = 0, squares = 0;
+      for (let j = i; j < end; j++) {
+        sum += samples[j];
+        squares += samples[j] * samples[j];
+      }
+      this.#sum[k] += sum;
+      this.#squares[k] += squares;
+      this.#at += end - i;
+      i = end;
     }
   }
 
