@@ -131,6 +131,27 @@ describe("peak matching refuses to interpolate a peak narrower than its grid", (
   });
 });
 
+test("the command names simulation-only peaks and coarse pairs on its summary line", async () => {
+  const dir = await mkdtemp("/tmp/quiver-compare-peaks-");
+  const table = (c: Curve) =>
+    [
+      "frequency_hz,re [m/N],im [m/N]",
+      ...Array.from(c.frequencies, (f, k) => `${f},${c.re![k]},${c.im![k]}`),
+    ]
+      .join("\n") + "\n";
+  await writeFile(`${dir}/t.csv`, table(receptance(grid(5), [{ fn: 61.7, zeta: 0.02 }])));
+  await writeFile(
+    `${dir}/s.csv`,
+    table(receptance(grid(0.25), [{ fn: 61.7, zeta: 0.02 }, { fn: 140, zeta: 0.02 }])),
+  );
+  const r = runQuiver(["compare", "t.csv", "s.csv", "--out", "d.csv"], dir);
+  expect(r.code, r.stderr).toBe(0);
+  // The 140 Hz mode adds its residual at 60 Hz: the level differs a little, the line does not.
+  expect(r.stderr).toMatch(/60\.00 Hz -> 60\.00 Hz \(0\.00 %, -?\d+\.\d+ dB, coarse\)/);
+  expect(r.stderr).toMatch(/simulation only: 14\d\.\d\d Hz/);
+  expect(r.stderr).toMatch(/note: .*fewer than 3 lines/);
+});
+
 describe("power or amplitude from the unit (ISO 80000-3:2019 Annex C, IEC 60027-3:2002)", () => {
   test("squared units and densities of them are power quantities; m/s^2 is not", () => {
     for (const u of ["(m/s^2)^2/Hz", "FS^2/Hz", "g^2/Hz", "m^2/s^4/Hz", "Pa^2", "W"]) {
