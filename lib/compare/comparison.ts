@@ -5,7 +5,7 @@
  * request, per-band level differences.
  *
  * Power or amplitude: dB = 10·log10 of a ratio of power quantities and
- * 20·log10 of a ratio of root-power quantities (ISO 80000-3:2019 Annex C,
+ * 20·log10 of a ratio of root-power quantities (ISO 80000-3,
  * IEC 60027-3:2002). The quantity is the caller's (`quantity`), else what
  * either curve's metadata or unit says (curve_input.ts; the two must agree),
  * else amplitude with a warning. `quantity_from` in the summary says which.

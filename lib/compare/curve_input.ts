@@ -13,7 +13,7 @@
  * Decibels: a column whose name ends in `_db` (or is `db`) or whose unit
  * starts with "dB" holds levels. Whether a curve is a power quantity (PSD,
  * autopower, band power: dB = 10·log10) or a root-power quantity (an
- * amplitude: FRF, RMS, peak: dB = 20·log10; ISO 80000-3:2019 Annex C,
+ * amplitude: FRF, RMS, peak: dB = 20·log10; ISO 80000-3,
  * IEC 60027-3:2002) comes, in this order, from the caller (`quantity`), the
  * table's metadata (a quiver spectrum's `kind` psd or power; an FRF), or the
  * unit ({@linkcode quantityOfUnit}); with none of them it is taken as an
@@ -135,7 +135,7 @@ function unitExponents(unit: string): Map<string, number> | undefined {
  * reason; undefined when the unit says nothing (empty, a level in dB, or not
  * a product of named factors with integer powers).
  *
- * The rule (ISO 80000-3:2019 Annex C, IEC 60027-3:2002: a power quantity is
+ * The rule (ISO 80000-3, IEC 60027-3:2002: a power quantity is
  * proportional to the square of a root-power quantity): after one factor 1/Hz
  * is set aside as a density, a unit whose every factor has an even exponent,
  * such as `(m/s^2)^2`, `FS^2`, `m^2/s^4` or `Pa^2`, is the square of another

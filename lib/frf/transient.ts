@@ -9,7 +9,7 @@
  * period, without overlap and starting in the quiet before a burst, holds
  * each burst and its decay whole, and the FRF is then free of leakage
  * (common practice for burst random; Brandt, Noise and Vibration Analysis,
- * 2011, 13.6, from memory).
+ * 2011, from memory).
  *
  * The rule: the input is cut into frames of {@linkcode frameSamples} samples;
  * a frame is **quiet** when its RMS about the record's mean is below

@@ -9,7 +9,7 @@ import { recordingCsv } from "../helpers/csv.ts";
 import { gaussianNoise, uniformGenerator } from "../helpers/random.ts";
 
 // A single-degree-of-freedom system in discrete time by impulse invariance (Oppenheim & Schafer,
-// Discrete-Time Signal Processing, 3rd ed., 7.2.1): poles r·e^(±jθ) with r = exp(−ζωn/fs),
+// Discrete-Time Signal Processing, 3rd ed., 7.2.1, section from memory): poles r·e^(±jθ) with r = exp(−ζωn/fs),
 // θ = ωn√(1−ζ²)/fs, so y[n] = x[n] + 2r·cosθ·y[n−1] − r²·y[n−2] and, exactly,
 // H(e^jΩ) = 1 / (1 − 2r·cosθ·e^(−jΩ) + r²·e^(−2jΩ)).
 const RATE = 1024, FN = 50, ZETA = 0.02;
