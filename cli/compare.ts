@@ -4,6 +4,7 @@
  * @module
  */
 import { toStderr } from "./terminal.ts";
+import { formatFixed } from "../lib/format_number.ts";
 import { z } from "npm:zod@4.6.7";
 import { BAND_FRACTIONS, type BandFraction } from "../lib/acoustics/bands.ts";
 import { compareCurves } from "../lib/compare/comparison.ts";
@@ -32,7 +33,7 @@ const CURVES = {
   power: option(z.boolean(), {
     flag: true,
     help:
-      "the curves are power quantities (dB = 10 log10); default from\nthe metadata (psd/power spectra), else amplitudes (20 log10)",
+      "the curves are power quantities (dB = 10 log10); default from\nthe metadata (psd/power spectra) or a squared unit such as\n(m/s^2)^2/Hz, else amplitudes (20 log10) with a warning",
   }),
 };
 
@@ -65,7 +66,7 @@ const OUTPUTS = {
   "summary-out": option(z.string().min(1), {
     value: "FILE",
     help:
-      "JSON summary: frac, peaks (test_hz, simulation_hz,\nshift_percent, level_difference_db), bands, grid",
+      "JSON summary: frac, peaks (test_hz, simulation_hz,\nshift_percent, level_difference_db, coarse, note),\ntest_only_peaks, simulation_only_peaks, bands, grid, quantity",
   }),
 };
 
@@ -83,7 +84,12 @@ Both go on the coarser of the two grids over the range both cover; the
 other is interpolated linearly (in re/im when it has phase, else in
 magnitude).`,
   groups: [["Curves", CURVES], ["Analysis", ANALYSIS], ["Output", OUTPUTS]],
-  notes: "CSV columns: frequency_hz, test, simulation, difference_db (simulation - test).",
+  notes: `CSV columns: frequency_hz, test, simulation, difference_db (simulation - test).
+dB: 10 log10 for power quantities (--power, psd/power metadata, or a squared
+unit such as (m/s^2)^2/Hz or FS^2/Hz), else 20 log10.
+A peak is located between lines only with 3 lines in its half-power band;
+otherwise it is compared at the common grid's lines and flagged coarse.
+Peaks of one curve only are listed as test-only or simulation-only.`,
 });
 
 /** parseArgs spec. */
@@ -101,13 +107,10 @@ export async function run(argv: readonly string[]): Promise<void> {
   const [testPath, simPath] = positionals;
   const quantity = values.power === true ? "power" : undefined;
   const test = await readCurveFile(testPath, { column: values["test-column"], quantity });
-  const simulation = await readCurveFile(simPath, {
-    column: values["sim-column"],
-    quantity: quantity ?? test.quantity,
-  });
+  const simulation = await readCurveFile(simPath, { column: values["sim-column"], quantity });
   const result = inFile(
     testPath,
-    () => compareCurves(test, simulation, libraryOptions(ANALYSIS, values)),
+    () => compareCurves(test, simulation, { ...libraryOptions(ANALYSIS, values), quantity }),
   );
   const traced = {
     ...result.table,
@@ -121,13 +124,25 @@ export async function run(argv: readonly string[]): Promise<void> {
     );
   }
   const s = result.summary;
+  for (const warning of s.warnings) toStderr(`quiver compare: warning: ${warning}\n`);
+  const unmatched = (side: string, peaks: typeof s.test_only_peaks) =>
+    peaks.length === 0
+      ? ""
+      : `; ${side} only: ${peaks.map((p) => `${formatFixed(p.frequency_hz, 2)} Hz`).join(", ")}`;
   toStderr(
-    `compare: FRAC ${s.frac.toFixed(4)} (${s.frac_on}), ${s.peaks.length} matched peak(s)` +
+    `compare: FRAC ${formatFixed(s.frac, 4)} (${s.frac_on}), ${s.peaks.length} matched peak(s)` +
       s.peaks.map((p) =>
-        `; ${p.test_hz.toFixed(2)} Hz -> ${p.simulation_hz.toFixed(2)} Hz (${
-          p.shift_percent.toFixed(2)
-        } %)`
+        `; ${formatFixed(p.test_hz, 2)} Hz -> ${formatFixed(p.simulation_hz, 2)} Hz (${
+          formatFixed(p.shift_percent, 2)
+        } %, ${formatFixed(p.level_difference_db, 2)} dB${p.coarse ? ", coarse" : ""})`
       ).join("") +
+      unmatched("test", s.test_only_peaks) + unmatched("simulation", s.simulation_only_peaks) +
+      `; dB as ${s.quantity === "power" ? "10" : "20"}·lg of ${s.quantity}s (${s.quantity_from})` +
       `, grid ${s.grid.lines} lines ${s.grid.min_hz}-${s.grid.max_hz} Hz from ${s.grid.from}\n`,
   );
+  for (const p of s.peaks) {
+    if (p.note !== undefined) {
+      toStderr(`quiver compare: note: peak at ${formatFixed(p.test_hz, 2)} Hz: ${p.note}\n`);
+    }
+  }
 }

@@ -93,7 +93,10 @@ With --inputs (two or more; one name is the same as --input): only h1, no
 --form; columns per output Y and input X: Y/X_re, Y/X_im, Y/X_mag,
 Y/X_phase_deg, then Y_multiple_coherence, and gxx_condition (condition number
 of the inputs' cross-spectral matrix; a warning names the lines above 1000).
-Channel names must not hold "/".`,
+Channel names must not hold "/".
+A transient input (burst random, impacts: quiet below -20 dB re its RMS over
+at least 10 % of the record) is recorded in the metadata (excitation), and a
+warning names the window, block, overlap and start that suit it.`,
 });
 
 /** zod schema of the options. */

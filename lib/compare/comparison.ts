@@ -1,7 +1,14 @@
 /**
  * Test against simulation: the analysis behind `compare`. Both curves go on
  * the common grid (align.ts); per line the difference in dB; in summary the
- * FRAC, the matched peaks and, on request, per-band level differences.
+ * FRAC, the matched peaks (and those of each side left unmatched) and, on
+ * request, per-band level differences.
+ *
+ * Power or amplitude: dB = 10·log10 of a ratio of power quantities and
+ * 20·log10 of a ratio of root-power quantities (ISO 80000-3,
+ * IEC 60027-3:2002). The quantity is the caller's (`quantity`), else what
+ * either curve's metadata or unit says (curve_input.ts; the two must agree),
+ * else amplitude with a warning. `quantity_from` in the summary says which.
  *
  * Band differences: for each IEC 61260-1 band on the grid, the energy of
  * each curve in the band (Σ|H|² over its lines; for power quantities Σ G,
@@ -12,10 +19,11 @@
 import type { Table } from "../io/table.ts";
 import { type BandFraction, bandsInRange } from "../acoustics/bands.ts";
 import { alignCurves } from "./align.ts";
-import type { Curve } from "./curve_input.ts";
+import { type Curve, quantityOfUnit, withQuantity } from "./curve_input.ts";
+import { QuiverError } from "../errors.ts";
 import { frac } from "./frac.ts";
 import { matchUnits } from "./unit_match.ts";
-import { matchPeaks, type PeakMatch } from "./peak_match.ts";
+import { matchPeaks, type PeakMatch, type UnmatchedPeak } from "./peak_match.ts";
 
 /** Options of {@linkcode compareCurves}. */
 export interface CompareOptions {
@@ -27,6 +35,11 @@ export interface CompareOptions {
   bands?: BandFraction;
   /** Prominence threshold for peaks, dB. Default 6. */
   prominenceDb?: number;
+  /**
+   * Declares both curves power or amplitude quantities. Default: from the
+   * curves' metadata or units, else amplitude with a warning.
+   */
+  quantity?: "power" | "amplitude";
 }
 
 /** The comparison's summary (the `--summary-out` JSON). */
@@ -34,6 +47,10 @@ export interface ComparisonSummary {
   readonly frac: number;
   readonly frac_on: "complex" | "magnitude";
   readonly peaks: readonly PeakMatch[];
+  /** Test peaks that no simulation peak matches. */
+  readonly test_only_peaks: readonly UnmatchedPeak[];
+  /** Simulation peaks that no test peak matches. */
+  readonly simulation_only_peaks: readonly UnmatchedPeak[];
   readonly bands?: readonly {
     center_hz: number;
     nominal_hz: number;
@@ -43,7 +60,11 @@ export interface ComparisonSummary {
   }[];
   readonly grid: { from: "test" | "simulation"; min_hz: number; max_hz: number; lines: number };
   readonly quantity: "power" | "amplitude";
+  /** Where the quantity came from, in words. */
+  readonly quantity_from: string;
   readonly mean_abs_difference_db: number;
+  /** What the reader should know (the quantity taken by default). */
+  readonly warnings: readonly string[];
 }
 
 /** The comparison table and summary. */
@@ -74,7 +95,15 @@ export function compareCurves(
   simulationAsRead: Curve,
   options: CompareOptions = {},
 ): ComparisonResult {
-  const { test, simulation, conversion } = matchUnits(testAsRead, simulationAsRead);
+  const { quantity, from: quantityFrom, warnings } = resolveQuantity(
+    testAsRead,
+    simulationAsRead,
+    options.quantity,
+  );
+  const { test, simulation, conversion } = matchUnits(
+    withQuantity(testAsRead, quantity.test.quantity, quantity.test.source),
+    withQuantity(simulationAsRead, quantity.simulation.quantity, quantity.simulation.source),
+  );
   const aligned = alignCurves(test, simulation, options.minHz, options.maxHz);
   const perDecade = test.quantity === "power" ? 10 : 20;
   const f = aligned.frequencies;
@@ -97,6 +126,7 @@ export function compareCurves(
   const peaks = matchPeaks({ frequencies: tf, magnitude: tm }, { frequencies: sf, magnitude: sm }, {
     prominenceDb: options.prominenceDb,
     dbPerDecade: perDecade,
+    common: { frequencies: f, test: t, simulation: s },
   });
   const { value, complex } = frac(aligned.test, aligned.simulation);
   let bands: ComparisonSummary["bands"];
@@ -128,11 +158,15 @@ export function compareCurves(
   const summary: ComparisonSummary = {
     frac: value,
     frac_on: complex ? "complex" : "magnitude",
-    peaks,
+    peaks: peaks.matched,
+    test_only_peaks: peaks.testOnly,
+    simulation_only_peaks: peaks.simulationOnly,
     ...(bands !== undefined ? { bands } : {}),
     grid: { from: aligned.gridFrom, min_hz: f0, max_hz: f1, lines: f.length },
     quantity: test.quantity,
+    quantity_from: quantityFrom,
     mean_abs_difference_db: finite.reduce((a, v) => a + Math.abs(v), 0) / finite.length,
+    warnings,
   };
   return {
     summary,
@@ -151,5 +185,56 @@ export function compareCurves(
         ...summary,
       },
     },
+  };
+}
+
+type Side = { quantity: "power" | "amplitude"; source: "option" | "metadata" | "unit" | "default" };
+
+/** The quantity of both curves and where it came from (see the module's doc). */
+function resolveQuantity(
+  test: Curve,
+  simulation: Curve,
+  declared: "power" | "amplitude" | undefined,
+): { quantity: { test: Side; simulation: Side }; from: string; warnings: string[] } {
+  const both = (side: Side) => ({ test: side, simulation: side });
+  if (declared !== undefined) {
+    return {
+      quantity: both({ quantity: declared, source: "option" }),
+      from: "declared",
+      warnings: [],
+    };
+  }
+  const said = (c: Curve, name: string): { side: Side; why: string } | undefined => {
+    // A curve built by a caller without a source states its quantity itself.
+    const source = c.quantitySource ?? "option";
+    if (source === "default") return undefined;
+    const why = source === "unit"
+      ? `the ${name}'s unit: ${quantityOfUnit(c.unit)?.reason ?? c.unit}`
+      : source === "option"
+      ? "declared"
+      : `the ${name}'s metadata`;
+    return { side: { quantity: c.quantity, source }, why };
+  };
+  const t = said(test, "test"), s = said(simulation, "simulation");
+  if (t !== undefined && s !== undefined && t.side.quantity !== s.side.quantity) {
+    throw new QuiverError(
+      `the test is a ${t.side.quantity} quantity (${t.why}) and the simulation a ${s.side.quantity} quantity (${s.why}): compare like with like`,
+    );
+  }
+  const known = t ?? s;
+  if (known === undefined) {
+    return {
+      quantity: both({ quantity: "amplitude", source: "default" }),
+      from: "default",
+      warnings: [
+        "neither curve's metadata nor its unit says whether it is a power quantity (PSD, autopower: dB = 10·lg) or an amplitude (FRF, RMS: dB = 20·lg); taken as amplitudes: declare power quantities with --power",
+      ],
+    };
+  }
+  const other = { quantity: known.side.quantity, source: known.side.source };
+  return {
+    quantity: { test: t?.side ?? other, simulation: s?.side ?? other },
+    from: [t?.why, s?.why].filter((w) => w !== undefined).join("; "),
+    warnings: [],
   };
 }

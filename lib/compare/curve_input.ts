@@ -12,9 +12,12 @@
  *
  * Decibels: a column whose name ends in `_db` (or is `db`) or whose unit
  * starts with "dB" holds levels. Whether a curve is a power quantity (PSD,
- * autopower, band power: dB = 10·log10) or an amplitude (FRF, RMS, peak:
- * dB = 20·log10) comes from the table's metadata (`kind` psd or power), or
- * from the caller; the default is amplitude.
+ * autopower, band power: dB = 10·log10) or a root-power quantity (an
+ * amplitude: FRF, RMS, peak: dB = 20·log10; ISO 80000-3,
+ * IEC 60027-3:2002) comes, in this order, from the caller (`quantity`), the
+ * table's metadata (a quiver spectrum's `kind` psd or power; an FRF), or the
+ * unit ({@linkcode quantityOfUnit}); with none of them it is taken as an
+ * amplitude and `quantitySource` says `default`, so the comparison can warn.
  *
  * @module
  */
@@ -39,6 +42,171 @@ export interface Curve {
   readonly unit: string;
   /** The column the curve came from. */
   readonly column: string;
+  /**
+   * Where `quantity` came from: the caller, the metadata, the unit, or a
+   * default (amplitude, for want of any of them). Default: `default`.
+   */
+  readonly quantitySource?: QuantitySource;
+  /** Whether the values were read as levels in dB (so a change of quantity changes them). */
+  readonly fromLevels?: boolean;
+}
+
+/** Where a curve's power/amplitude quantity was learnt. */
+export type QuantitySource = "option" | "metadata" | "unit" | "default";
+
+/** A unit as a product of named factors with exponents, or undefined when it does not parse. */
+function unitExponents(unit: string): Map<string, number> | undefined {
+  // Spaces around operators go; a space inside a name ("foo bar") makes it no unit.
+  const text = unit.trim().replace(/\s*([/*·^()])\s*/g, "$1").replace(/²/g, "^2")
+    .replace(/√/g, "sqrt");
+  let at = 0;
+  const add = (into: Map<string, number>, from: Map<string, number>, power: number) => {
+    for (const [name, e] of from) into.set(name, (into.get(name) ?? 0) + e * power);
+  };
+  // expr := term ('/' term)* ; term := factor (('*'|'·') factor)* ;
+  // factor := atom ('^' integer)? ; atom := name | '1' | '(' expr ')' | 'sqrt' atom
+  const expr = (): Map<string, number> | undefined => {
+    const result = new Map<string, number>();
+    const first = term();
+    if (first === undefined) return undefined;
+    add(result, first, 1);
+    while (text[at] === "/") {
+      at++;
+      const next = term();
+      if (next === undefined) return undefined;
+      add(result, next, -1);
+    }
+    return result;
+  };
+  const term = (): Map<string, number> | undefined => {
+    const result = new Map<string, number>();
+    for (;;) {
+      const f = factor();
+      if (f === undefined) return undefined;
+      add(result, f, 1);
+      if (text[at] !== "*" && text[at] !== "·") return result;
+      at++;
+    }
+  };
+  const factor = (): Map<string, number> | undefined => {
+    const a = atom();
+    if (a === undefined) return undefined;
+    if (text[at] !== "^") return a;
+    const m = /^\^(?:\((-?\d+)\)|(-?\d+))/.exec(text.slice(at));
+    if (m === null) return undefined;
+    at += m[0].length;
+    const result = new Map<string, number>();
+    add(result, a, Number(m[1] ?? m[2]));
+    return result;
+  };
+  const atom = (): Map<string, number> | undefined => {
+    if (text.startsWith("sqrt", at)) {
+      at += 4;
+      const a = atom();
+      if (a === undefined) return undefined;
+      const result = new Map<string, number>();
+      add(result, a, 0.5);
+      return result;
+    }
+    if (text[at] === "(") {
+      at++;
+      const inner = expr();
+      if (inner === undefined || text[at] !== ")") return undefined;
+      at++;
+      return inner;
+    }
+    if (text[at] === "1") {
+      at++;
+      return new Map();
+    }
+    const m = /^[A-Za-zµμΩ°%]+/.exec(text.slice(at));
+    if (m === null) return undefined;
+    at += m[0].length;
+    return new Map([[m[0], 1]]);
+  };
+  const parsed = expr();
+  if (parsed === undefined || at !== text.length) return undefined;
+  for (const [name, e] of parsed) if (e === 0) parsed.delete(name);
+  return parsed;
+}
+
+/**
+ * Power or root-power (amplitude) quantity, read from a unit, with the
+ * reason; undefined when the unit says nothing (empty, a level in dB, or not
+ * a product of named factors with integer powers).
+ *
+ * The rule (ISO 80000-3, IEC 60027-3:2002: a power quantity is
+ * proportional to the square of a root-power quantity): after one factor 1/Hz
+ * is set aside as a density, a unit whose every factor has an even exponent,
+ * such as `(m/s^2)^2`, `FS^2`, `m^2/s^4` or `Pa^2`, is the square of another
+ * and names a power quantity; so do watt and joule (`W`, `W/m^2`, `J`). Any
+ * other unit, such as `m/s^2` (whose `^2` squares only the second), `m/N`
+ * or `Pa`, names a root-power quantity.
+ *
+ * @example
+ * ```ts
+ * import { quantityOfUnit } from "./curve_input.ts";
+ * if (quantityOfUnit("(m/s^2)^2/Hz")?.quantity !== "power") throw new Error();
+ * if (quantityOfUnit("m/s^2")?.quantity !== "amplitude") throw new Error();
+ * if (quantityOfUnit("dB") !== undefined || quantityOfUnit("") !== undefined) throw new Error();
+ * ```
+ */
+export function quantityOfUnit(
+  unit: string,
+): { quantity: "power" | "amplitude"; reason: string } | undefined {
+  if (unit.trim() === "" || /^dB/i.test(unit.trim())) return undefined;
+  const factors = unitExponents(unit);
+  if (factors === undefined) return undefined;
+  const density = factors.get("Hz") === -1;
+  if (density) factors.delete("Hz");
+  if (factors.size === 0) return undefined;
+  const per = density ? " per Hz (a density)" : "";
+  for (const [name, e] of factors) {
+    if (/^[pnµμmkMG]?[WJ]$/.test(name) && e === 1) {
+      return { quantity: "power", reason: `[${unit}] is a power or energy${per}` };
+    }
+  }
+  const even = Array.from(factors.values()).every((e) => Number.isInteger(e / 2));
+  return even
+    ? { quantity: "power", reason: `[${unit}] is a squared unit${per}: a power quantity` }
+    : { quantity: "amplitude", reason: `[${unit}] is a root-power (amplitude) unit` };
+}
+
+/**
+ * The same curve as another quantity: relabelled, and for values read as
+ * levels in dB re-read from those levels (a power is the square of the
+ * amplitude of the same level).
+ *
+ * @example
+ * ```ts
+ * import { withQuantity } from "./curve_input.ts";
+ * const c = { frequencies: new Float64Array([1]), magnitude: new Float64Array([10]), quantity: "amplitude" as const,
+ *   unit: "", column: "db", fromLevels: true };
+ * if (withQuantity(c, "power", "option").magnitude[0] !== 100) throw new Error();
+ * ```
+ */
+export function withQuantity(
+  curve: Curve,
+  quantity: "power" | "amplitude",
+  source: QuantitySource,
+): Curve {
+  if (curve.quantity === quantity || curve.fromLevels !== true) {
+    return { ...curve, quantity, quantitySource: source };
+  }
+  const magnitude = curve.magnitude.map((m) => quantity === "power" ? m * m : Math.sqrt(m));
+  if (curve.re === undefined || curve.im === undefined) {
+    return { ...curve, magnitude, quantity, quantitySource: source };
+  }
+  const { re, im } = curve;
+  const angle = re.map((r, k) => Math.atan2(im[k], r));
+  return {
+    ...curve,
+    magnitude,
+    re: angle.map((a, k) => magnitude[k] * Math.cos(a)),
+    im: angle.map((a, k) => magnitude[k] * Math.sin(a)),
+    quantity,
+    quantitySource: source,
+  };
 }
 
 interface NamedColumn {
@@ -84,7 +252,21 @@ export function curveFromColumns(
   const spectrum = RESULT_METADATA.spectrum.safeParse(options.metadata ?? {});
   const frfResult = RESULT_METADATA.frf.safeParse(options.metadata ?? {});
   const kind = spectrum.success ? spectrum.data.kind : undefined;
-  const quantity = options.quantity ?? (kind === "psd" || kind === "power" ? "power" : "amplitude");
+  const declared: { quantity: "power" | "amplitude"; source: QuantitySource } | undefined =
+    options.quantity !== undefined
+      ? { quantity: options.quantity, source: "option" }
+      : spectrum.success || frfResult.success
+      ? { quantity: kind === "psd" || kind === "power" ? "power" : "amplitude", source: "metadata" }
+      : undefined;
+  const quantity = declared?.quantity ?? "amplitude";
+  // A linear column's unit may name the quantity; levels in dB need it given.
+  const finish = (curve: Curve, fromLevels: boolean): Curve => {
+    if (declared !== undefined) return { ...curve, quantitySource: declared.source, fromLevels };
+    const byUnit = fromLevels ? undefined : quantityOfUnit(curve.unit);
+    return byUnit !== undefined
+      ? { ...curve, quantity: byUnit.quantity, quantitySource: "unit", fromLevels }
+      : { ...curve, quantitySource: "default", fromLevels };
+  };
   const isDb = (c: NamedColumn) => /(^|_)db$/i.test(c.name) || /^dB/.test(c.unit);
   const fromDb = (v: Float64Array) => v.map((x) => 10 ** (x / (quantity === "power" ? 10 : 20)));
   const build = (prefix: string): Curve | undefined => {
@@ -92,7 +274,7 @@ export function curveFromColumns(
     const re = get(`${p}re`);
     const im = get(`${p}im`);
     if (re !== undefined && im !== undefined) {
-      return {
+      return finish({
         frequencies: f,
         re: re.values,
         im: im.values,
@@ -100,7 +282,7 @@ export function curveFromColumns(
         quantity,
         unit: re.unit,
         column: prefix || "re/im",
-      };
+      }, false);
     }
     const mag = get(`${p}mag`);
     const phase = get(`${p}phase_deg`);
@@ -108,7 +290,7 @@ export function curveFromColumns(
       const magnitude = isDb(mag) ? fromDb(mag.values) : mag.values;
       if (phase !== undefined) {
         const rad = phase.values.map((d) => (d * Math.PI) / 180);
-        return {
+        return finish({
           frequencies: f,
           magnitude,
           re: magnitude.map((m, k) => m * Math.cos(rad[k])),
@@ -116,19 +298,22 @@ export function curveFromColumns(
           quantity,
           unit: mag.unit,
           column: `${p}mag`,
-        };
+        }, isDb(mag));
       }
-      return { frequencies: f, magnitude, quantity, unit: mag.unit, column: `${p}mag` };
+      return finish(
+        { frequencies: f, magnitude, quantity, unit: mag.unit, column: `${p}mag` },
+        isDb(mag),
+      );
     }
     const db = get(`${p}mag_db`) ?? (prefix === "" ? get("db") : undefined);
     if (db !== undefined) {
-      return {
+      return finish({
         frequencies: f,
         magnitude: fromDb(db.values),
         quantity,
         unit: db.unit,
         column: db.name,
-      };
+      }, true);
     }
     return undefined;
   };
@@ -159,13 +344,13 @@ export function curveFromColumns(
       );
     }
     const c = plain as NamedColumn;
-    return {
+    return finish({
       frequencies: f,
       magnitude: isDb(c) ? fromDb(c.values) : c.values,
       quantity,
       unit: c.unit,
       column: c.name,
-    };
+    }, isDb(c));
   }
   const plain = build("");
   if (plain !== undefined) return plain;
@@ -181,13 +366,13 @@ export function curveFromColumns(
   );
   if (first === undefined) fail("no value column besides the frequencies");
   const c = first as NamedColumn;
-  return {
+  return finish({
     frequencies: f,
     magnitude: isDb(c) ? fromDb(c.values) : c.values,
     quantity,
     unit: c.unit,
     column: c.name,
-  };
+  }, isDb(c));
 }
 
 /**

@@ -16,7 +16,7 @@ import {
 } from "../dsp/spectral_core.ts";
 import type { DetrendMode } from "../dsp/detrend.ts";
 import type { WindowName } from "../dsp/windows.ts";
-import { asStream, type RecordingSource } from "../io/recording_stream.ts";
+import { asStream, type RecordingSource, type RecordingStream } from "../io/recording_stream.ts";
 import { spectralEstimateOf } from "../dsp/spectral_pipeline.ts";
 import { coherence, type Estimator, frfEstimate } from "./estimators.ts";
 import {
@@ -29,6 +29,12 @@ import {
 } from "./forms.ts";
 import { responseColumns, type ResponseFrf } from "./frf_table.ts";
 import type { FrfData } from "./frf_data.ts";
+import {
+  QUIET_LEVEL,
+  TRANSIENT_QUIET_SHARE,
+  transientAdvice,
+  TransientDetector,
+} from "./transient.ts";
 
 /** Options of {@linkcode frequencyResponse}. */
 export interface FrfOptions {
@@ -232,17 +238,45 @@ export async function frequencyResponse(
   checkFrfOptions(options);
   const indices = channelIndices(stream.channels, [options.input, ...options.outputs]);
   const channels = indices.map((i) => stream.channels[i]);
-  const { estimate, warnings } = await spectralEstimateOf(
-    stream,
-    indices,
-    frfSpectralOptions(stream.rate, channels.length, options),
-  );
+  // The input is watched on its way to the core for transient excitation (transient.ts).
+  const detector = new TransientDetector(stream.length);
+  const watched: RecordingStream = {
+    rate: stream.rate,
+    startTime: stream.startTime,
+    length: stream.length,
+    channels: stream.channels,
+    read: (selected, onChunk) =>
+      stream.read(selected, (chunk) => {
+        detector.push(chunk[0]);
+        onChunk(chunk);
+      }),
+  };
+  const spectral = frfSpectralOptions(stream.rate, channels.length, options);
+  const { estimate, warnings } = await spectralEstimateOf(watched, indices, spectral);
+  const finding = detector.finish();
+  const advice = transientAdvice(finding, {
+    rate: stream.rate,
+    startTime: stream.startTime,
+    length: stream.length,
+    block: spectral.block,
+    overlap: options.overlap ?? 0.5,
+    window: options.window ?? "hann",
+  });
   return frfResult({
     estimate,
     channels,
     options,
     length: stream.length,
-    signalWarnings: warnings,
+    signalWarnings: advice.warning !== undefined ? [...warnings, advice.warning] : warnings,
+    excitation: {
+      transient: finding.transient,
+      quiet_share: finding.quietShare,
+      rule:
+        `transient when at least ${TRANSIENT_QUIET_SHARE} of ${finding.frameSamples}-sample frames are below ${QUIET_LEVEL} of the record's RMS`,
+      burst_period_samples: finding.periodSamples ?? null,
+      suggested: advice.suggested ?? null,
+      segmenting_suits: advice.suited,
+    },
   });
 }
 
@@ -271,12 +305,13 @@ function frfSpectralOptions(
 }
 
 function frfResult(
-  { estimate, channels, options, length, signalWarnings }: {
+  { estimate, channels, options, length, signalWarnings, excitation }: {
     estimate: SpectralEstimate;
     channels: readonly { name: string; unit: string }[];
     options: FrfOptions;
     length: number;
     signalWarnings: string[];
+    excitation: Readonly<Record<string, unknown>>;
   },
 ): FrfResult {
   const [input, ...outputs] = channels;
@@ -297,6 +332,7 @@ function frfResult(
         ...parts.metadata,
         ...segmentMetadata(estimate, options.overlap ?? 0.5),
         record_samples: length,
+        excitation,
         warnings,
       },
     },
