@@ -18,6 +18,7 @@ import {
 import { OUTPUT_TABLE } from "./segment_options.ts";
 import { commandHelp, libraryOptions, option, shapeOf, specOf } from "./option_table.ts";
 import {
+  missingTeethWithTacho,
   oneSpeedSource,
   positiveListOption,
   pprWithTacho,
@@ -111,7 +112,8 @@ channel that already holds rpm.`,
 /** zod schema of the options. */
 export const schema = z.strictObject(shapeOf(TABLE)).refine(oneSpeedSource, {
   message: "give --tacho (with --ppr) or --rpm-channel, one of them",
-}).refine(pprWithTacho, { message: "--tacho needs --ppr" });
+}).refine(pprWithTacho, { message: "--tacho needs --ppr" })
+  .refine(missingTeethWithTacho, { message: "--missing-teeth needs --tacho (a pulse wheel)" });
 
 /** parseArgs spec of the options. */
 export const options = specOf(TABLE);
