@@ -28,8 +28,8 @@
  * reference, and each pulse gets its tooth's angle. Where no pulse was found
  * at the record's ends, or pulses were filled in, the stretches are named.
  *
- * Speed: pulse times are smoothed by a local quadratic fit of time against
- * angle (see {@linkcode motionFromPulses}), the speed read from the fit, and
+ * Speed: pulse times are smoothed by a local quadratic fit of angle against
+ * time (see {@linkcode motionFromPulses}), the speed read from the fit, and
  * the angle θ(t) interpolated between the smoothed pulses by a monotone
  * cubic (Fritsch–Carlson 1980).
  *
@@ -197,6 +197,17 @@ function triggerPulses(
         continue;
       }
       if (!fixed) {
+        // The envelope takes in this sample first, so that the first edge of the record is
+        // timed against the level of its own swing. Each side is held while the signal comes
+        // back near it every cycle (within 5 % of the width): a steady tacho keeps the exact
+        // midpoint; then it relaxes.
+        const near = 0.05 * (top - bottom);
+        if (value > top) top = value;
+        else if (i - topAt > held) top = value + (top - value) * r;
+        if (value >= top - near) topAt = i;
+        if (value < bottom) bottom = value;
+        else if (i - bottomAt > held) bottom = value + (bottom - value) * r;
+        if (value <= bottom + near) bottomAt = i;
         const h = Math.max(HYSTERESIS_FRACTION * (top - bottom), floor);
         level = (top + bottom) / 2;
         upper = level + h / 2;
@@ -217,17 +228,8 @@ function triggerPulses(
         isArmed = false;
       } else if (!isArmed && value <= lower) {
         isArmed = true;
-      }
-      if (!fixed) {
-        // Each side is held while the signal comes back near it every cycle (within 5 % of
-        // the width): a steady tacho keeps the exact midpoint; then it relaxes.
-        const near = 0.05 * (top - bottom);
-        if (value > top) top = value;
-        else if (i - topAt > held) top = value + (top - value) * r;
-        if (value >= top - near) topAt = i;
-        if (value < bottom) bottom = value;
-        else if (i - bottomAt > held) bottom = value + (bottom - value) * r;
-        if (value <= bottom + near) bottomAt = i;
+        // A pulse is timed by a crossing after its arming, never by an earlier one.
+        cross = NaN;
       }
       before = value;
     }
@@ -480,11 +482,15 @@ function linear(x: Float64Array, y: Float64Array): (t: number) => number {
 
 /**
  * Shaft motion from cleaned pulse times. The angle at pulse j is exactly
- * j/ppr revolutions (or `angles[j]`, as for a missing-tooth wheel), while its time carries the sampling's jitter (up to a
- * sample for a TTL edge). So time is fitted as a quadratic function of angle
- * over the pulses within max(ppr, 6) either side (local least squares, exact
- * for constant angular acceleration): the fit gives each pulse a smoothed
- * time and the speed 60/(dt/dθ) in rpm.
+ * j/ppr revolutions (or `angles[j]`, as on a missing-tooth wheel), while its
+ * time carries the sampling's jitter (up to a sample for a TTL edge). So the
+ * angle is fitted as a quadratic function of time over the pulses within
+ * max(ppr, 6) either side (local least squares, exact for constant angular
+ * acceleration however much the speed changes across the window; time as a
+ * quadratic of angle is not, and read the low end of a tenfold run-up 3 %
+ * high): each pulse's smoothed time is where the fit reaches its angle (one
+ * Newton step from the measured time), and the speed is 60·dθ/dt there, in
+ * rpm.
  *
  * @example
  * ```ts
@@ -518,9 +524,12 @@ export function motionFromPulses(
       rpm[j] = NaN;
       continue;
     }
-    polynomialFit(times, angle, { lo, hi, origin: angle[j], degree }, scratch, fit);
-    smoothed[j] = fit[0];
-    rpm[j] = 60 / fit[1];
+    polynomialFit(angle, times, { lo, hi, origin: times[j], degree }, scratch, fit);
+    // One Newton step to where the fit reaches the pulse's angle: the fit passes within a
+    // sample's jitter of it, so the curvature term is of second order there.
+    const shift = (angle[j] - fit[0]) / fit[1];
+    smoothed[j] = times[j] + shift;
+    rpm[j] = 60 * (fit[1] + (degree > 1 ? 2 * fit[2] * shift : 0));
   }
   for (let j = 1; j < n; j++) {
     if (!(smoothed[j] > smoothed[j - 1])) {
@@ -539,17 +548,17 @@ export function motionFromPulses(
 }
 
 /**
- * Least-squares polynomial t ≈ Σ c_k·u^k (k ≤ degree ≤ 2), u = θ − θ₀, over
- * pulses lo…hi; writes the coefficients to `out` (c₀ is the smoothed time
- * at θ₀, c₁ = dt/dθ there). Normal equations, solved by Gaussian
- * elimination with partial pivoting (well conditioned: u is centred on the
- * window's pulses). `scratch` holds the augmented matrix row by row and the
+ * Least-squares polynomial y ≈ Σ c_k·u^k (k ≤ degree ≤ 2), u = x − x₀, over
+ * points lo…hi (called with y the angle and x the time: c₀ is the fitted
+ * angle at t₀, c₁ = dθ/dt there); writes the coefficients to `out`. Normal
+ * equations, solved by Gaussian elimination with partial pivoting (well
+ * conditioned: u is measured from a point of the window). `scratch` holds the augmented matrix row by row and the
  * powers of u after it (at least 17 values): one fit per pulse allocates
  * nothing.
  */
 function polynomialFit(
-  times: Float64Array,
-  angle: Float64Array,
+  y: Float64Array,
+  x: Float64Array,
   window: { lo: number; hi: number; origin: number; degree: number },
   scratch: Float64Array,
   out: Float64Array,
@@ -559,12 +568,12 @@ function polynomialFit(
   const powersAt = m * w, powerCount = 2 * m - 1;
   scratch.fill(0, 0, m * w);
   for (let i = lo; i <= hi; i++) {
-    const u = angle[i] - origin;
+    const u = x[i] - origin;
     scratch[powersAt] = 1;
     for (let k = 1; k < powerCount; k++) scratch[powersAt + k] = scratch[powersAt + k - 1] * u;
     for (let r = 0; r < m; r++) {
       for (let c = 0; c < m; c++) scratch[r * w + c] += scratch[powersAt + r + c];
-      scratch[r * w + m] += times[i] * scratch[powersAt + r];
+      scratch[r * w + m] += y[i] * scratch[powersAt + r];
     }
   }
   for (let col = 0; col < m; col++) {
