@@ -525,11 +525,10 @@ export function motionFromPulses(
       continue;
     }
     polynomialFit(angle, times, { lo, hi, origin: times[j], degree }, scratch, fit);
-    // One Newton step to where the fit reaches the pulse's angle: the fit passes within a
-    // sample's jitter of it, so the curvature term is of second order there.
-    const shift = (angle[j] - fit[0]) / fit[1];
-    smoothed[j] = times[j] + shift;
-    rpm[j] = 60 * (fit[1] + (degree > 1 ? 2 * fit[2] * shift : 0));
+    // One Newton step to where the fit reaches the pulse's angle. The speed is read at the
+    // measured time: the two are a sample's jitter apart, too little for the speed to change.
+    smoothed[j] = times[j] + (angle[j] - fit[0]) / fit[1];
+    rpm[j] = 60 * fit[1];
   }
   for (let j = 1; j < n; j++) {
     if (!(smoothed[j] > smoothed[j - 1])) {
