@@ -175,9 +175,8 @@ function tachoNotes(
     }
     if (pulses.mismatched > 0) {
       notes.push(
-        `${pulses.mismatched} revolution(s) between gaps did not hold ${
-          ppr - missingTeeth
-        } teeth; their angles were set from the next gap`,
+        `${pulses.mismatched} gap(s) of ${missingTeeth + 1} tooth pitches came where no ` +
+          `revolution ends: pulses lost there, counted as ${missingTeeth} missing teeth each`,
       );
     }
   }

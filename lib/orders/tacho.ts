@@ -127,7 +127,7 @@ export interface TachoPulses {
   readonly filled: readonly (readonly [number, number])[];
   /** Missing-tooth gaps recognised (one per revolution). */
   readonly references: number;
-  /** Revolutions whose tooth count did not match the wheel (angle taken from the next gap). */
+  /** Gap-sized intervals where no revolution ends (teeth lost there; not taken as the mark). */
   readonly mismatched: number;
   /**
    * Without `missingTeeth`: filled gaps that look like a missing-tooth wheel
@@ -363,19 +363,16 @@ function mendPulses(
   const positions: number[] = [0];
   const stretches: [number, number][] = [];
   const fills: { at: number; count: number }[] = [];
-  let inserted = 0, references = 0, mismatched = 0;
-  let position = 0, reference = NaN;
+  let inserted = 0;
+  let position = 0;
+  const marks: number[] = [];
   intervals.forEach((interval, i) => {
     const ratio = interval / medians[i];
     if (missingTeeth > 0 && Math.abs(ratio - (missingTeeth + 1)) < 0.5) {
-      // The wheel's gap: the tooth after it is tooth 0 of a revolution.
+      // The wheel's gap: the tooth after it is tooth 0 of a revolution (the marks are sorted
+      // out below). Its teeth are counted on.
       position += missingTeeth + 1;
-      references++;
-      if (Number.isNaN(reference)) reference = position;
-      else if ((position - reference) % ppr !== 0) {
-        mismatched++;
-        position = reference + Math.round((position - reference) / ppr) * ppr;
-      }
+      marks.push(position);
       filled.push(times[i + 1]);
       positions.push(position);
       return;
@@ -393,8 +390,18 @@ function mendPulses(
     filled.push(times[i + 1]);
     positions.push(++position);
   });
-  // Angles from the first reference gap's tooth 0 when there is one (whole revolutions there).
-  const origin = Number.isNaN(reference) ? 0 : reference;
+  // The marks: the gap-sized intervals at the tooth position (mod ppr) where most of them
+  // fall. One elsewhere is teeth lost mid-revolution: counted, not taken as a mark (the
+  // teeth are counted on either way, so the angle is right). Angles count from a mark's tooth
+  // 0 when there is one (whole revolutions there).
+  const residues = new Map<number, number>();
+  for (const m of marks) residues.set(m % ppr, (residues.get(m % ppr) ?? 0) + 1);
+  let residue = NaN, references = 0;
+  for (const [r, count] of residues) {
+    if (count > references) [residue, references] = [r, count];
+  }
+  const mismatched = marks.length - references;
+  const origin = marks.find((m) => m % ppr === residue) ?? 0;
   const angles = new Float64Array(positions.map((p) => (p - origin) / ppr));
   return {
     times: new Float64Array(filled),

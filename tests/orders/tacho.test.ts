@@ -261,3 +261,35 @@ describe("smoothing of pulse times", () => {
     expect(Math.sqrt(after / before)).toBeLessThan(0.5);
   });
 });
+
+describe("missing-tooth wheels with teeth lost", () => {
+  test("two teeth lost mid-revolution look like the gap but are not taken as the mark", () => {
+    // 60-2 wheel at 1500 rpm (truth: constant speed) with teeth 20 and 21 of the first revolution
+    // giving no pulse: an interval of 3 pitches, before any gap, where no revolution ends. Taking it as the
+    // mark (or snapping the count to it) would put the following teeth 2/60 rev off.
+    const rate = 51200, profile = linearProfile(1500, 1500, 2);
+    const signal = missingToothTacho(profile, rate, 2, 60, 2);
+    for (let i = 0; i < signal.length; i++) {
+      const position = profile.angle(i / rate) * 60;
+      if (Math.floor(position) === 20 || Math.floor(position) === 21) {
+        signal[i] = 0;
+      }
+    }
+    const pulses = tachoPulses(signal, rate, { ppr: 60, missingTeeth: 2 });
+    expect(pulses.mismatched).toBe(1);
+    expect(pulses.references).toBe(49); // 50 revolutions
+    // Every pulse's angle is its tooth's: angle·60 is whole and matches the analytic angle.
+    const offset = profile.angle(pulses.times[0]) - pulses.angles[0];
+    pulses.times.forEach((t, j) => {
+      expect(Math.abs(pulses.angles[j] + offset - profile.angle(t))).toBeLessThan(0.1 / 60);
+    });
+    const motion = motionFromPulses(pulses.times, 60, pulses.angles);
+    for (const r of motion.rpm) expect(Math.abs(r / 1500 - 1)).toBeLessThan(0.001);
+    const { notes } = motionOfSeries(memorySeries(signal), rate, {
+      tacho: "n",
+      ppr: 60,
+      missingTeeth: 2,
+    });
+    expect(notes.join()).toMatch(/1 gap\(s\) of 3 tooth pitches came where no revolution ends/);
+  });
+});
