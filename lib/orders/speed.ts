@@ -282,6 +282,14 @@ export function rpmSteps(motion: ShaftMotion, options: RpmStepOptions = {}): Rpm
 /** The speed source as written into a result's metadata. */
 export function speedSourceMetadata(source: SpeedSource): Record<string, unknown> {
   return source.tacho !== undefined
-    ? { tacho: source.tacho, ppr: source.ppr, missing_teeth: source.missingTeeth ?? 0 }
+    ? {
+      tacho: source.tacho,
+      ppr: source.ppr,
+      missing_teeth: source.missingTeeth ?? 0,
+      // Which trigger read the pulses: following the pulse envelope, or fixed by the caller.
+      trigger: source.tachoLevel !== undefined || source.tachoHysteresis !== undefined
+        ? "fixed"
+        : "envelope",
+    }
     : { rpm_channel: source.rpmChannel };
 }

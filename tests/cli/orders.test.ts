@@ -158,6 +158,7 @@ describe("quiver orders", () => {
     for (const [t, v] of rpm.rows) expect(Math.abs(v / wheel.rpm(t) - 1)).toBeLessThan(0.001);
     const cuts = JSON.parse(await readFile(`${dir}/wheel_cuts.json`, "utf8"));
     expect(cuts.metadata.speed_source.missing_teeth).toBe(2);
+    expect(cuts.metadata.speed_source.trigger).toBe("envelope");
     const wrong = runQuiver([...common, "--ppr", "58", ...args]);
     expect(wrong.code).toBe(0);
     expect(wrong.stderr).toMatch(
