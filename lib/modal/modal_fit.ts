@@ -313,7 +313,9 @@ export function modalFit(
   const largest = largestModelOrder(to - from);
   if (maxOrder > largest) {
     throw new RangeError(
-      `the highest order ${maxOrder} is more than the band of ${to - from} lines supports: at most ${largest}`,
+      `the highest order ${maxOrder} is more than the band of ${
+        to - from
+      } lines supports: at most ${largest}`,
     );
   }
   const band = frequencies.subarray(from, to);
@@ -332,8 +334,7 @@ export function modalFit(
   }
   const shapeOf = (residues: readonly (readonly Complex[])[], r: number) =>
     residues.map((row) => row[r]);
-  const macOf = (a: readonly Complex[], b: readonly Complex[]) =>
-    macValue(vector(a), vector(b));
+  const macOf = (a: readonly Complex[], b: readonly Complex[]) => macValue(vector(a), vector(b));
 
   // Stability over the orders: each pole against the pole of the order before
   // that is closest in frequency, damping and shape together (each relative
@@ -527,7 +528,9 @@ export function modalFit(
   for (const peak of unexplainedPeaks) {
     const near = clusters.filter((c) =>
       Math.abs(c.frequencyHz / peak.frequencyHz - 1) <= SELECTION_RULE.peakReach
-    ).sort((a, b) => b.members.length - a.members.length)[0];
+    ).sort((a, b) =>
+      b.members.length - a.members.length
+    )[0];
     warnings.push(
       `a clear peak of the FRFs at ${formatFixed(peak.frequencyHz, 2)} Hz (${
         formatFixed(peak.prominenceDb, 1)
