@@ -11,7 +11,11 @@ import { type Mode, receptance, simulateReceptance } from "../helpers/modal.ts";
 import { gaussianNoise } from "../helpers/random.ts";
 
 /** The analytic receptance of `modes` on `f` as a typed FRF (Ewins, Modal Testing, eq. 2.37). */
-function analyticFrf(name: string, f: Float64Array, modes: readonly Mode[]): FrfChannel {
+function analyticFrf(
+  name: string,
+  f: Float64Array,
+  modes: readonly Mode[],
+): FrfChannel & { re: Float64Array; im: Float64Array } {
   const re = new Float64Array(f.length), im = new Float64Array(f.length);
   f.forEach((hz, k) => {
     const h = receptance(modes, hz);
@@ -253,7 +257,7 @@ describe("quiver modal --max-order", () => {
     const f = new Float64Array(200).map((_, i) => 10 + i * 0.5);
     const frf = analyticFrf("tip", f, [{ frequencyHz: 50, damping: 0.02, residue: 1 }]);
     const rows = ["frequency_hz,tip_re,tip_im"];
-    f.forEach((hz, k) => rows.push(`${hz},${frf.re![k]},${frf.im![k]}`));
+    f.forEach((hz, k) => rows.push(`${hz},${frf.re[k]},${frf.im[k]}`));
     await writeFile(`${dir}/frf.csv`, rows.join("\n") + "\n");
     const r = runQuiver(["modal", `${dir}/frf.csv`, "--max-order", "1000"]);
     expect(r.code, r.stderr).toBe(2);
