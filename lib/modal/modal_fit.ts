@@ -5,11 +5,9 @@
  * least squares (LSFD) with upper and lower residuals.
  *
  * Stability (the usual stabilisation-diagram criteria, common practice;
- * tolerances are options): a pole of order n is compared with the pole of
- * order n − 2 closest to it in frequency, damping and shape together (each
- * relative change divided by its tolerance, summed) and is stable when its
- * frequency changed by ≤ 1 %, its damping by ≤ 5 % and its shape's MAC is
- * ≥ 0.98.
+ * tolerances are options): a pole of order n is compared with the nearest
+ * pole (in frequency) of order n − 2 and is stable when its frequency
+ * changed by ≤ 1 %, its damping by ≤ 5 % and its shape's MAC is ≥ 0.98.
  *
  * Selection from the whole chart, not from the last order alone (rule ours):
  * stable poles are clustered across the orders (frequency within 1 % of the
@@ -118,7 +116,7 @@ export interface StabilityPole {
   readonly order: number;
   readonly frequencyHz: number;
   readonly dampingRatio: number;
-  /** Each change against the matching pole of the order before (see the module notes). */
+  /** Each change against the nearest pole of the order before (see the module notes). */
   readonly stableFrequency: boolean;
   readonly stableDamping: boolean;
   readonly stableShape: boolean;
@@ -336,10 +334,9 @@ export function modalFit(
     residues.map((row) => row[r]);
   const macOf = (a: readonly Complex[], b: readonly Complex[]) => macValue(vector(a), vector(b));
 
-  // Stability over the orders: each pole against the pole of the order before
-  // that is closest in frequency, damping and shape together (each relative
-  // change divided by its tolerance, summed), so that a spurious pole beside
-  // a physical one does not hide the physical pole's match.
+  // Stability over the orders: each pole against the nearest pole (in
+  // frequency) of the order before, as the stability chart shows it. A pole
+  // doubled at some order may fail here; the clusters below ride over that.
   const stability: { entry: OrderPole; flags: [boolean, boolean, boolean] }[] = [];
   const orders: OrderPole[][] = [];
   let previous: OrderPole[] = [];
@@ -348,17 +345,19 @@ export function modalFit(
     const residues = poles.length > 0 ? fitResidues(set, poles).residues : [];
     const current = poles.map((pole, r): OrderPole => {
       const shape = shapeOf(residues, r);
-      let best: { d: number; flags: [boolean, boolean, boolean] } | undefined;
+      let nearest: OrderPole | undefined;
       for (const p of previous) {
-        const df = Math.abs(p.pole.frequencyHz / pole.frequencyHz - 1);
-        const dz = Math.abs(p.pole.dampingRatio / pole.dampingRatio - 1);
-        const mac = macOf(shape, p.shape);
-        const d = df / tolF + dz / tolZ + (1 - mac) / (1 - tolMac);
-        if (best === undefined || d < best.d) {
-          best = { d, flags: [df <= tolF, dz <= tolZ, mac >= tolMac] };
-        }
+        if (
+          nearest === undefined ||
+          Math.abs(p.pole.frequencyHz - pole.frequencyHz) <
+            Math.abs(nearest.pole.frequencyHz - pole.frequencyHz)
+        ) nearest = p;
       }
-      const flags = best?.flags ?? [false, false, false];
+      const flags: [boolean, boolean, boolean] = nearest === undefined ? [false, false, false] : [
+        Math.abs(nearest.pole.frequencyHz / pole.frequencyHz - 1) <= tolF,
+        Math.abs(nearest.pole.dampingRatio / pole.dampingRatio - 1) <= tolZ,
+        macOf(shape, nearest.shape) >= tolMac,
+      ];
       const entry: OrderPole = {
         order,
         pole,
