@@ -257,8 +257,8 @@ describe("a clear peak no mode explains", () => {
   ];
   const f = new Float64Array(721).map((_, i) => 20 + i * 0.25); // 20 … 200 Hz
 
-  function fit(coherenceAtThird: number) {
-    const frf = analyticFrf("tip", f, MODES);
+  function fit(coherenceAtThird: number, thirdResidue = 3) {
+    const frf = analyticFrf("tip", f, [MODES[0], MODES[1], { ...MODES[2], residue: thirdResidue }]);
     // Coherence 0.99 everywhere but within 3 Hz of the third mode.
     const coherence = f.map((hz) => Math.abs(hz - 171) < 3 ? coherenceAtThird : 0.99);
     return modalFit(f, [{ point: "tip", direction: "", frf: { ...frf, coherence } }], {
@@ -281,6 +281,14 @@ describe("a clear peak no mode explains", () => {
     const result = fit(0.5);
     expect(result.unexplainedPeaks).toEqual([]);
     expect(result.warnings).toEqual([]);
+  });
+
+  test("is not warned of below 1 % of the highest peak (the floor of a clear peak)", () => {
+    // Residue 0.3: the third peak is 0.93 % of the first, |H| ∝ A/(2ζω²) at resonance
+    // (Ewins eq. 2.37): (0.3/(0.02·171²))/(4/(0.04·42.5²)) = 0.0093. At residue 3 it is 9 %.
+    const result = fit(0.95, 0.3);
+    expect(result.modes).toHaveLength(2);
+    expect(result.unexplainedPeaks).toEqual([]);
   });
 
   test("with --modes-hz the mode is reported, flagged named, and the warning goes", () => {
