@@ -34,9 +34,12 @@ export { halfPower, type HalfPowerEstimate } from "./half_power.ts";
 export { fitSdof, type SdofFit } from "./sdof_fit.ts";
 export { bestPairing, type ComplexVector, macMatrix, macValue } from "./mac.ts";
 export {
+  AMBIGUITY,
   correlateShapes,
   correlationTables,
+  type ModePair,
   type ModeShape,
+  pairRival,
   parsePointMap,
   parseShapes,
   type ShapeCorrelation,
@@ -49,4 +52,5 @@ export {
   type ModalFitOptions,
   type ModalFitResult,
   modalTables,
+  type UnexplainedPeak,
 } from "./modal_fit.ts";
