@@ -235,6 +235,39 @@ describe("the coherence rules on an analytic FRF with a coherence we set", () =>
   });
 });
 
+describe("a range chooses rows, not the analysis", () => {
+  test("a mode next to a peak outside the range keeps its estimates and its close_modes flag", () => {
+    // Analytic receptance (Ewins eq. 2.37), modes at 80 and 86 Hz, ζ 2 %: within two
+    // half-power bandwidths of each other (2 × 3.4 Hz), so close_modes. With the range ending at
+    // 83 Hz the 86 Hz peak is not reported, but it is still there and still limits the
+    // 80 Hz mode's bands.
+    const modes: Mode[] = [
+      { frequencyHz: 80, damping: 0.02, residue: 1e4 },
+      { frequencyHz: 86, damping: 0.02, residue: 1e4 },
+    ];
+    const frequencies = new Float64Array(1601).map((_, k) => k * 0.125);
+    const h = Array.from(frequencies, (f) => receptance(modes, f));
+    const re = new Float64Array(h.map((x) => x.re)), im = new Float64Array(h.map((x) => x.im));
+    const data: FrfData = {
+      frequencies,
+      channels: [{
+        name: "frf",
+        unit: "m/N",
+        form: "receptance",
+        re,
+        im,
+        magnitude: re.map((r, k) => Math.hypot(r, im[k])),
+      }],
+    };
+    const whole = modalDamping(data).modes;
+    const ranged = modalDamping(data, { maxHz: 83 }).modes;
+    expect(whole).toHaveLength(2);
+    expect(ranged).toHaveLength(1);
+    expect(ranged[0].flags).toContain("close_modes");
+    expect(ranged[0]).toEqual(whole[0]);
+  });
+});
+
 describe("judgeCoherence", () => {
   test("the sides are the 3 lines beyond the lobe of ±2 lines", () => {
     // Lines 0…14, peak at 7: own lines 5…9, sides 2…4 and 10…12.
