@@ -37,10 +37,10 @@
  *   or it did not converge to a pole with positive frequency and damping).
  *   With no estimate at all the mode is still reported, at its peak line,
  *   with empty damping cells: one poor peak never fails the analysis.
- * - `implausible_damping`: an estimate of ζ above 1, not finite, or not above
- *   0 after the window correction: no damped resonance has it. That estimate
- *   is dropped (its cells left empty), and the mode's `notes` say which and
- *   why.
+ * - `implausible_damping`: an estimate of ζ above 1, not finite, or below
+ *   1e-6 (a fit collapsed onto an undamped pole), before or after the window
+ *   correction: no damped resonance has it. That estimate is dropped (its
+ *   cells left empty), and the candidate's `notes` say which and why.
  * - `magnitude_only`: no phase in the table; the fit used |H| alone.
  * - `form_assumed`: the FRF form is unknown and receptance was assumed.
  * - `window_dominates`: the exponential window's added damping is more than
@@ -278,8 +278,15 @@ function peaksOnSum(
     }).filter((p, i, all) => i === 0 || p.index !== all[i - 1].index);
 }
 
-/** A damping estimate no damped resonance can have: above 1, not finite, or not above 0. */
-const implausible = (zeta: number) => !(zeta > 0 && zeta <= 1);
+/**
+ * Below this a damping estimate is a fit that collapsed onto an undamped pole, not a
+ * measurement: no structure of vehicle NVH is damped this lightly (common practice), and
+ * the Q it implies (above 500 000) is not measurable with a finite record.
+ */
+const LEAST_DAMPING = 1e-6;
+
+/** A damping estimate no damped resonance can have: above 1, not finite, or below 1e-6. */
+const implausible = (zeta: number) => !(zeta >= LEAST_DAMPING && zeta <= 1);
 
 type Candidate = Omit<ModeEstimate, "mode">;
 
@@ -411,7 +418,7 @@ function analyseChannel(
       notes.push(
         `${what} gave ζ = ${formatNumber(zeta, 3)}${
           windowCorrection > 0 ? ` (${formatNumber(corrected, 3)} after the window correction)` : ""
-        }: not between 0 and 1, dropped`,
+        }: not between ${LEAST_DAMPING.toExponential()} and 1, dropped`,
       );
       return false;
     };
@@ -556,7 +563,7 @@ export function modalDamping(data: FrfData, options: DampingOptions = {}): Dampi
   const implausibles = modes.filter((m) => m.flags.includes("implausible_damping"));
   if (implausibles.length > 0) {
     warnings.push(
-      `${implausibles.length} damping estimate(s) outside 0 < ζ ≤ 1 dropped (flag implausible_damping; see the notes)`,
+      `${implausibles.length} damping estimate(s) outside ${LEAST_DAMPING.toExponential()} ≤ ζ ≤ 1 dropped (flag implausible_damping; see the notes)`,
     );
   }
   let target: FrequencyTarget | undefined;
