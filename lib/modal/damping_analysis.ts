@@ -71,6 +71,35 @@ export const DAMPING_METHODS = ["half-power", "sdof-fit", "both"] as const;
 /** One of {@linkcode DAMPING_METHODS}. */
 export type DampingMethod = typeof DAMPING_METHODS[number];
 
+/**
+ * Every flag a candidate can carry (their meanings are in this module's
+ * header and README's `quiver damping` section).
+ *
+ * @example
+ * ```ts
+ * import { DAMPING_FLAGS } from "./damping_analysis.ts";
+ * if (!DAMPING_FLAGS.includes("noise") || !DAMPING_FLAGS.includes("resolution_bias")) throw new Error();
+ * ```
+ */
+export const DAMPING_FLAGS = [
+  "noise",
+  "resolution_bias",
+  "low_coherence",
+  "few_lines",
+  "no_half_power",
+  "close_modes",
+  "disagree",
+  "poor_fit",
+  "no_fit",
+  "implausible_damping",
+  "magnitude_only",
+  "form_assumed",
+  "window_dominates",
+] as const;
+
+/** One of {@linkcode DAMPING_FLAGS}. */
+export type DampingFlag = typeof DAMPING_FLAGS[number];
+
 /** Options of {@linkcode modalDamping}. */
 export interface DampingOptions {
   /** FRF channels to analyse. Default: all. */
@@ -115,7 +144,7 @@ export interface ModeEstimate {
   /** Which method gave the primary values. */
   readonly method: "half-power" | "sdof-fit";
   /** Quality flags. */
-  readonly flags: readonly string[];
+  readonly flags: readonly DampingFlag[];
   /** Why an estimate was dropped (`implausible_damping`), in words. */
   readonly notes: readonly string[];
   /** Half-power estimate (window-corrected), when made and plausible. */
@@ -325,7 +354,7 @@ function analyseChannel(
     )
   );
   return peaks.map((peak: Peak, i): Candidate => {
-    const flags: string[] = [];
+    const flags: DampingFlag[] = [];
     const notes: string[] = [];
     const hp = halfPowers[i];
     const df =
