@@ -337,11 +337,12 @@ function analyseChannel(
     low: i === 0 ? 0 : Math.ceil((peaks[i - 1].index + p.index) / 2),
     high: i === peaks.length - 1 ? n - 1 : Math.floor((p.index + peaks[i + 1].index) / 2),
   }));
-  // Half-power points that came out non-finite or a peak frequency not above 0 are no
-  // estimate at all; an implausible damping is judged below, with a note.
+  // Half-power points that are not finite or not in order (f₁ < f₂), or a peak frequency
+  // not above 0, are no estimate at all (no_half_power); a band that gives an implausible
+  // damping is judged below, with a note.
   const usable = (e: HalfPowerEstimate | undefined) =>
     e !== undefined && e.frequencyHz > 0 && Number.isFinite(e.lowerHz) &&
-      Number.isFinite(e.upperHz)
+      Number.isFinite(e.upperHz) && e.upperHz > e.lowerHz
       ? e
       : undefined;
   const halfPowers: (HalfPowerEstimate | undefined)[] = peaks.map((p, i) =>
@@ -393,10 +394,19 @@ function analyseChannel(
       const sidesGood = judged.below !== null && judged.above !== null &&
         judged.below >= USABLE_COHERENCE && judged.above >= USABLE_COHERENCE;
       const dips = peakCoherence < LOW_COHERENCE || judged.own < USABLE_COHERENCE;
+      // Lines in the half-power band: the interpolated band's, or without one, the lines
+      // within 3 dB of the peak line (a band narrower than a line has no interpolated points).
+      let narrowLow = peak.index, narrowHigh = peak.index;
+      const half = channel.magnitude[peak.index] / Math.SQRT2;
+      while (narrowLow > limits[i].low && channel.magnitude[narrowLow - 1] >= half) narrowLow--;
+      while (narrowHigh < limits[i].high && channel.magnitude[narrowHigh + 1] >= half) {
+        narrowHigh++;
+      }
+      const linesInBand = hp?.linesInBand ?? narrowHigh - narrowLow + 1;
       if (judged.verdict === "noise") flags.push("noise");
-      else if (
-        sidesGood && dips && hp !== undefined && hp.linesInBand < RESOLUTION_BIAS_LINES
-      ) flags.push("resolution_bias");
+      else if (sidesGood && dips && linesInBand < RESOLUTION_BIAS_LINES) {
+        flags.push("resolution_bias");
+      }
     }
 
     let fit: SdofFit | undefined;

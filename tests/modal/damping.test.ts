@@ -167,6 +167,20 @@ describe("the half-power method's own bias", () => {
   });
 });
 
+describe("a half-power band narrower than a line", () => {
+  test("gives no estimate, never crossings in the wrong order", () => {
+    // ζ = 0.1 % at 60.1 Hz: the analytic half-power band 2ζfₙ = 0.12 Hz (Ewins, Modal
+    // Testing, sec. 4.3) lies between two 0.25 Hz lines; the interpolated peak stands
+    // 3 dB or more above the highest line, so no line pair brackets a −3 dB point.
+    const f = new Float64Array(801).map((_, k) => k * 0.25);
+    const mag = f.map((v) => {
+      const h = receptance([{ frequencyHz: 60.1, damping: 0.001, residue: 1e4 }], v);
+      return Math.hypot(h.re, h.im);
+    });
+    expect(halfPower(f, mag, mag.indexOf(maxOf(mag)), { power: 0 })).toBeUndefined();
+  });
+});
+
 describe("the exponential-window correction", () => {
   test("recovers the true damping of a lightly damped decay cut short by the record", async () => {
     // Ewins, Modal Testing, sec. 3.11: exp(−t/τ) adds 1/(τ·ωₙ) to the apparent damping.

@@ -208,6 +208,9 @@ describe("the coherence rules on an analytic FRF with a coherence we set", () =>
     const [m] = modalDamping(analytic(mode, (f) => Math.abs(f - 60.1) < 0.6 ? 0.4 : 0.98))
       .modes;
     expect(m.mode).toBe(1);
+    // No interpolated band (it lies between two lines): the lines within 3 dB of the peak
+    // line count instead, here fewer than 3.
+    expect(m.flags).toContain("no_half_power");
     expect(m.flags).toContain("resolution_bias");
     expect(m.flags).not.toContain("noise");
   });
