@@ -33,11 +33,11 @@ const ANALYSIS = {
   }),
   "min-hz": option(numberOption().pipe(z.number().min(0, "must be at least 0")), {
     value: "F",
-    help: "frequency range for peaks",
+    help: "frequency range of the candidates reported",
     default: "all",
     helpWith: "max-hz",
   }),
-  "max-hz": option(positive("Hz"), { value: "F", help: "highest frequency for peaks" }),
+  "max-hz": option(positive("Hz"), { value: "F", help: "highest frequency reported" }),
   method: option(z.enum(DAMPING_METHODS), {
     value: "M",
     help: `${
@@ -100,7 +100,9 @@ or mag (linear) with optional phase_deg, or mag_db.`,
   notes: `CSV columns: channel, mode, frequency_hz, damping_ratio, q_factor, method,
 flags, half_power_frequency_hz, half_power_damping_ratio,
 lines_in_half_power_band, fit_frequency_hz, fit_damping_ratio,
-peak_coherence, window_correction. Empty cells mean "not estimated".
+peak_coherence, window_correction. An empty cell: not estimated, or
+dropped as implausible (flag implausible_damping); an empty mode: a
+candidate flagged noise.
 Every prominent peak is a candidate, the same with or without a range
 (which only chooses the rows). Coherence judges a candidate, never deletes
 it: one whose coherence is below 0.8 around it is flagged noise, has an
