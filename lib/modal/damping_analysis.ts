@@ -21,9 +21,9 @@
  * - `resolution_bias`: the coherence dips at the peak (below 0.9 at the peak
  *   line, or below 0.8 over its own lines) while 3 lines on each side reach
  *   0.8, and the half-power band holds fewer than 3 lines: the dip is the
- *   resolution bias of the estimate (Bendat & Piersol, Random Data, 4th ed.,
- *   sec. 9.1.4), not noise. Refine the resolution (a longer block) to
- *   measure this mode.
+ *   leakage (resolution) bias of a lightly damped peak (Harris' Shock and
+ *   Vibration Handbook, ch. 21), not noise. Refine the resolution (a longer
+ *   block) to measure this mode.
  * - `few_lines`: fewer than 8 lines inside the half-power band; the
  *   resolution bias of the half-power estimate is then large (common practice).
  * - `no_half_power`: a −3 dB point is not reached before the next peak or the

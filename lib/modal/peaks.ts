@@ -100,9 +100,11 @@ const meanOver = (values: Float64Array, lo: number, hi: number): number | null =
  * side of the peak: a lightly damped mode measured with coarse lines bends
  * every line the window's main lobe reaches (±2 lines for Hann), and there
  * the estimated coherence falls although the system is linear and the signal
- * strong (the resolution bias of coherence, Bendat & Piersol, Random Data,
- * 4th ed., sec. 9.1.4 and 9.2.3). Its neighbourhood is `side` lines on each
- * side beyond them.
+ * strong: the leakage (resolution) bias at lightly damped peaks (Harris'
+ * Shock and Vibration Handbook, ch. 21, Fig. 21.10: coherence lowest where
+ * the FRF peaks, "an indication of leakage"; Josefsson, Ahlin & Broman,
+ * Shock and Vibration 19 (2012) 1257–1266, for H1 with a Hann window). Its
+ * neighbourhood is `side` lines on each side beyond them.
  *
  * - `coherent`: the mean over the own lines reaches the gate.
  * - `dip`: it does not, but both sides reach the gate: a coherence dip

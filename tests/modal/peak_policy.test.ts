@@ -62,8 +62,9 @@ describe("a short shaker run with 2 Hz lines and three lightly damped modes", ()
   // Half-power bandwidths 2ζf = 0.57, 1.13 and 1.52 Hz: under one line of 2 Hz each. The
   // Hann window spreads each peak over ±2 lines within which H changes fast, so the
   // estimated coherence falls there though the system is linear and the response noise 1 %:
-  // the resolution bias of coherence (Bendat & Piersol, Random Data, 4th ed., ch. 9, bias
-  // errors of coherence estimates; from memory).
+  // the leakage (resolution) bias at lightly damped peaks (Harris' Shock and Vibration
+  // Handbook, ch. 21, Fig. 21.10; Josefsson, Ahlin & Broman, Shock and Vibration 19 (2012)
+  // 1257–1266). The dip is shown below from the data, not assumed.
   const MODES: Mode[] = [
     { frequencyHz: 47.3, damping: 0.006, residue: 3e3 },
     { frequencyHz: 112.9, damping: 0.005, residue: -4e3 },
