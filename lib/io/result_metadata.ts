@@ -44,7 +44,8 @@ const frf = z.looseObject({
 
 const mode = z.looseObject({
   channel: z.string(),
-  mode: z.number(),
+  // null: a candidate flagged noise, listed but not a mode (lib/modal/damping_analysis.ts).
+  mode: z.number().nullable(),
   frequencyHz: finiteOrNull,
   dampingRatio: finiteOrNull,
   qFactor: finiteOrNull,
