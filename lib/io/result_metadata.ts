@@ -201,6 +201,12 @@ export const RESULT_METADATA = {
       simulation_hz: finiteOrNull,
       shift_percent: finiteOrNull,
       mac: z.number(),
+      ambiguous: z.boolean().optional(),
+      rival: z.strictObject({
+        side: z.enum(["simulation", "test"]),
+        mode: z.number(),
+        mac: z.number(),
+      }).nullable().optional(),
     })),
   }),
   compare: z.looseObject({

@@ -140,6 +140,22 @@ function quantityOf(
     const wanted = mode ?? 1;
     const pair = resultMetadata(result, "mac").pairs.find((p) => p.test_mode === wanted);
     if (pair === undefined) throw new Error(`test mode ${wanted} has no simulation pair`);
+    // A pair the shapes do not tell apart from its rival is no basis for a verdict: a PASS
+    // on it may be a PASS on the wrong mode.
+    if (pair.ambiguous === true) {
+      const rival = pair.rival;
+      throw new Error(
+        `the pair of test mode ${wanted} with simulation mode ${pair.simulation_mode} (MAC ${
+          formatNumber(pair.mac, 3)
+        }) is ambiguous${
+          rival !== undefined && rival !== null
+            ? `: ${rival.side} mode ${rival.mode} matches almost as well (MAC ${
+              formatNumber(rival.mac, 3)
+            })`
+            : ""
+        }; more points or directions in the shapes would tell them apart`,
+      );
+    }
     if (quantity === "pair_mac") return { value: finiteValue(pair.mac, "the pair's MAC") };
     return { value: Math.abs(finiteValue(pair.shift_percent, "the pair's frequency shift")) };
   }
