@@ -130,6 +130,10 @@ export function planSteps(
     problems.push(`plan key ${where}: ${detail}`);
     throw SKIP;
   };
+  // Notes a problem and goes on, so that every problem of one item is named.
+  const note = (where: string, detail: string) => {
+    problems.push(`plan key ${where}: ${detail}`);
+  };
   const each = (check: () => void) => {
     try {
       check();
@@ -169,7 +173,7 @@ export function planSteps(
     each(() => {
       const where = `analyses[${i}]`;
       if (known.has(a.id)) fail(`${where}.id`, `"${a.id}" is used twice`);
-      refuseOutputOptions(a.options, where, fail);
+      refuseOutputOptions(a.options, where, note);
       const argv: string[] = [];
       const inputs: string[] = [];
       const needs: string[] = [];
@@ -311,7 +315,7 @@ export function planSteps(
           `"${c.test}" is a comparison; comparison "${c.id}" must take the curve of an analysis`,
         );
       }
-      refuseOutputOptions(c.options, where, fail);
+      refuseOutputOptions(c.options, where, note);
       const sim = at(c.simulation.file);
       if (!existsSync(sim)) {
         fail(`${where}.simulation.file`, `no such file: ${c.simulation.file}`);
@@ -363,8 +367,13 @@ export function planSteps(
 function refuseOutputOptions(
   options: Readonly<Record<string, unknown>>,
   where: string,
-  fail: (where: string, detail: string) => never,
+  note: (where: string, detail: string) => void,
 ): void {
+  let refused = false;
+  const fail = (where: string, detail: string) => {
+    note(where, detail);
+    refused = true;
+  };
   for (const [key, value] of Object.entries(options)) {
     if (key === "out" || key === "format" || key.endsWith("-out")) {
       fail(
@@ -382,6 +391,7 @@ function refuseOutputOptions(
       }
     }
   }
+  if (refused) throw SKIP;
 }
 
 /** A bound of an analysis's own slice, as a number; undefined when absent or not a number. */
