@@ -610,7 +610,17 @@ export async function runPlan(planFile: string, options: RunOptions): Promise<Ma
         }${left.length > 5 ? "; …" : ""}\n`,
       );
     }
-    return await runLocked({ plan, text, planFile, outDir, steps, started, options, manifestFile });
+    return await runLocked({
+      plan,
+      text,
+      planFile,
+      outDir,
+      steps,
+      started,
+      options,
+      manifestFile,
+      release: () => lock.release(),
+    });
   } finally {
     await lock.release();
   }
@@ -797,7 +807,7 @@ function fileStamp(path: string): string {
 const CAUGHT_SIGNALS = ["SIGINT", "SIGTERM", "SIGHUP"] as const;
 
 async function runLocked(
-  { plan, text, planFile, outDir, steps, started, options, manifestFile }: {
+  { plan, text, planFile, outDir, steps, started, options, manifestFile, release }: {
     plan: Plan;
     text: string;
     planFile: string;
@@ -806,6 +816,8 @@ async function runLocked(
     started: string;
     options: RunOptions;
     manifestFile: string;
+    /** Lets the folder's lock go (a signal ends the process before any finally runs). */
+    release: () => Promise<void>;
   },
 ): Promise<Manifest> {
   const planBytes = new TextEncoder().encode(text);
@@ -857,7 +869,7 @@ async function runLocked(
   };
   const onSignal = (signal: string, code: number) => () => {
     process.stderr.write(`run: stopped by ${signal}; the manifest says aborted\n`);
-    void abort(`stopped by ${signal}`).finally(() => process.exit(code));
+    void abort(`stopped by ${signal}`).then(release).finally(() => process.exit(code));
   };
   const handlers = CAUGHT_SIGNALS.map((signal, k) => {
     const handler = onSignal(signal, [130, 143, 129][k]);

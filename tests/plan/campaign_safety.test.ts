@@ -3,7 +3,7 @@
 // in this process with stand-in commands that write what a command would, so that what is
 // tested is the runner's own rule. Path rules: OWASP, "Path Traversal" (a name read from
 // input is resolved, links included, and must stay inside the folder it is meant for).
-import { execFileSync } from "node:child_process";
+import { execFileSync, spawn } from "node:child_process";
 import { existsSync } from "node:fs";
 import { mkdir, mkdtemp, readdir, readFile, rm, stat, symlink, writeFile } from "node:fs/promises";
 import { hostname } from "node:os";
@@ -21,7 +21,7 @@ import {
 import { loadPlan } from "../../lib/plan/runner.ts";
 import { sha256Hex } from "../../lib/io/table_file.ts";
 import { planCommandTable } from "../../cli/plan_commands.ts";
-import { runQuiver } from "../helpers/cli.ts";
+import { runQuiver, SUBPROCESS_TIMEOUT_MS } from "../helpers/cli.ts";
 
 const quiet = { start() {}, end() {} };
 
@@ -399,9 +399,11 @@ describe("a failed step leaves none of its outputs", () => {
     await mkdir(`${dir}/out`);
     // Not listed by any manifest, so the clean-up leaves it; the step fails before writing it.
     await writeFile(`${dir}/out/tap_records.json`, "mine");
-    const failing = writer(async (_argv, written) => {
-      if (written.length === 2) throw new Error("no space left on device (simulated)");
-    });
+    const failing = writer((_argv, written) =>
+      written.length === 2
+        ? Promise.reject(new Error("no space left on device (simulated)"))
+        : Promise.resolve()
+    );
     const m = await run(await plan(p), { commands: { ...standIns, hammer: failing } });
     expect(m.status).toBe("failed");
     expect(m.steps[0].error).toMatch(
@@ -557,5 +559,32 @@ describe("on the command line: refusals, not internal errors (exit 2, one line)"
     expect(busy.code).toBe(2);
     expect(busy.stderr).toMatch(/another quiver run \(process \d+/);
     expect((await stat(`${dir}/out`)).isDirectory()).toBe(true);
+  });
+});
+
+describe("a run stopped by a signal", () => {
+  test("SIGTERM: the manifest says aborted (not running), and the lock is gone", async () => {
+    const planFile = await plan(base());
+    const script = new URL("./hanging_run.ts", import.meta.url).pathname;
+    const child = spawn(process.execPath, ["run", "-A", script, planFile, `${dir}/out`]);
+    const code = await new Promise<number | null>((done, fail) => {
+      const timer = setTimeout(() => {
+        child.kill("SIGKILL");
+        fail(new Error("the step did not start in time"));
+      }, SUBPROCESS_TIMEOUT_MS);
+      child.stdout.on("data", (chunk) => {
+        if (String(chunk).includes("started")) child.kill("SIGTERM");
+      });
+      child.on("exit", (status) => {
+        clearTimeout(timer);
+        done(status);
+      });
+    });
+    const m = JSON.parse(await readFile(`${dir}/out/manifest.json`, "utf8"));
+    expect(m.status).toBe("aborted");
+    expect(m.error).toBe("stopped by SIGTERM");
+    expect(existsSync(`${dir}/out/${LOCK_FILE}`)).toBe(false);
+    // The exit status is not checked: Deno's child_process reports it as null after a signal.
+    void code;
   });
 });
