@@ -500,22 +500,27 @@ export async function record(path: string, outDir: string): Promise<FileRecord> 
   const key = `${path}\u0000${stat.size}\u0000${stat.mtimeMs}`;
   let sha256 = hashCache.get(key);
   if (sha256 === undefined) {
-    const hash = createHash("sha256");
-    const handle = await open(path, "r");
-    try {
-      const buffer = new Uint8Array(1 << 22);
-      for (;;) {
-        const { bytesRead } = await handle.read(buffer, 0, buffer.length, null);
-        if (bytesRead === 0) break;
-        hash.update(buffer.subarray(0, bytesRead));
-      }
-    } finally {
-      await handle.close();
-    }
-    sha256 = hash.digest("hex");
+    sha256 = await hashFile(path);
     hashCache.set(key, sha256);
   }
   return { path: relative(outDir, path) || path, bytes: stat.size, sha256 };
+}
+
+/** SHA-256 of a file's bytes, read in blocks (no cache: the clean-up's proof reads the file now). */
+async function hashFile(path: string): Promise<string> {
+  const hash = createHash("sha256");
+  const handle = await open(path, "r");
+  try {
+    const buffer = new Uint8Array(1 << 22);
+    for (;;) {
+      const { bytesRead } = await handle.read(buffer, 0, buffer.length, null);
+      if (bytesRead === 0) break;
+      hash.update(buffer.subarray(0, bytesRead));
+    }
+  } finally {
+    await handle.close();
+  }
+  return hash.digest("hex");
 }
 
 /** Options of {@linkcode runPlan}. */
@@ -732,8 +737,7 @@ async function notProvablyOurs(
   if (!real.startsWith(realOut + sep)) return "outside the folder";
   if (inputs.has(real)) return "an input of this plan";
   if (stat.size !== file.bytes) return "changed since";
-  const now = await record(path, realOut);
-  return now.sha256 === file.sha256 ? undefined : "changed since";
+  return (await hashFile(path)) === file.sha256 ? undefined : "changed since";
 }
 
 /**

@@ -343,6 +343,14 @@ describe("the clean-up deletes only what quiver wrote and can prove", () => {
     expect((await run(await plan(p))).status).toBe("ok");
     expect(await readFile(`${dir}/out/psd.json`, "utf8")).toBe('{"edited": "by hand"}');
     expect(errors.join("")).toMatch(/psd\.json \(changed since\)/);
+    // Changed but of the same size: the hash tells.
+    const same = (await readFile(`${dir}/out/psd2.json`, "utf8")).replace("road", "ROAD");
+    await writeFile(`${dir}/out/psd2.json`, same);
+    p.analyses[0].id = "psd3";
+    errors.length = 0;
+    expect((await run(await plan(p))).status).toBe("ok");
+    expect(await readFile(`${dir}/out/psd2.json`, "utf8")).toBe(same);
+    expect(errors.join("")).toMatch(/psd2\.json \(changed since\)/);
   });
 
   test("figures/: the previous report's figures go file by file; the user's files there stay", async () => {
@@ -359,24 +367,31 @@ describe("the clean-up deletes only what quiver wrote and can prove", () => {
     // The user keeps notes and a recording in figures/ after the first run.
     await writeFile(`${dir}/out/figures/notes.txt`, "mine");
     await writeFile(`${dir}/out/figures/take2.csv`, "time_s,x\n0,0\n");
+    await writeFile(`${dir}/out/figures/sketch.svg`, "<svg id='mine'/>");
     figure = "b";
     const m2 = await run(await plan(p), { report });
     expect(m2.report_files?.map((f) => f.path).sort()).toEqual(["figures/b.svg", "report.html"]);
     expect((await readdir(`${dir}/out/figures`)).sort()).toEqual([
       "b.svg",
       "notes.txt",
+      "sketch.svg",
       "take2.csv",
     ]);
     // A run that draws no figure: the previous figures go, the user's files stay.
     const m3 = await run(await plan(base()));
     expect(m3.report_files).toBeUndefined();
-    expect((await readdir(`${dir}/out/figures`)).sort()).toEqual(["notes.txt", "take2.csv"]);
+    expect((await readdir(`${dir}/out/figures`)).sort()).toEqual([
+      "notes.txt",
+      "sketch.svg",
+      "take2.csv",
+    ]);
     // A manifest from before figures were listed: figures/ is left as it is.
     await writeFile(`${dir}/out/figures/old.svg`, "<svg/>");
     await run(await plan(base()));
     expect((await readdir(`${dir}/out/figures`)).sort()).toEqual([
       "notes.txt",
       "old.svg",
+      "sketch.svg",
       "take2.csv",
     ]);
   });
