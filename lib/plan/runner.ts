@@ -869,7 +869,10 @@ async function runLocked(
       error: reason,
       steps: listed(),
       targets: [],
-    }).catch(() => {});
+    }).catch(async () => {
+      // Not even that could be written (a full disk): no manifest rather than one saying "running".
+      await rm(join(outDir, manifestFile), { force: true }).catch(() => {});
+    });
   };
   const onSignal = (signal: string, code: number) => () => {
     process.stderr.write(`run: stopped by ${signal}; the manifest says aborted\n`);
@@ -877,7 +880,11 @@ async function runLocked(
   };
   const handlers = CAUGHT_SIGNALS.map((signal, k) => {
     const handler = onSignal(signal, [130, 143, 129][k]);
-    process.on(signal, handler);
+    try {
+      process.on(signal, handler);
+    } catch {
+      return () => {}; // a signal this system does not have (SIGHUP on Windows)
+    }
     return () => process.off(signal, handler);
   });
   try {

@@ -462,6 +462,40 @@ describe("a failed step leaves none of its outputs", () => {
   });
 });
 
+test("a disk full before the manifest is written: no manifest saying running is left (tmpfs, root)", async (context) => {
+  const mount = `${dir}/out`;
+  await mkdir(mount);
+  try {
+    execFileSync("mount", ["-t", "tmpfs", "-o", "size=64k", "tmpfs", mount], { stdio: "ignore" });
+  } catch {
+    context.skip(); // not root
+    return;
+  }
+  try {
+    // The step succeeds, but fills the disk on its way (another writer would do the same).
+    const filling: PlanCommand = {
+      validate() {},
+      async run(argv) {
+        await writeFile(argv[argv.indexOf("--out") + 1], "{}");
+        try {
+          await writeFile(`${mount}/filler.bin`, new Uint8Array(1 << 20));
+        } catch {
+          // ENOSPC, as meant: the disk is full now
+        }
+      },
+    };
+    await expect(run(await plan(base()), { commands: { ...standIns, spectrum: filling } }))
+      .rejects.toThrow(/ENOSPC|no space/i);
+    const left = existsSync(`${mount}/manifest.json`)
+      ? JSON.parse(await readFile(`${mount}/manifest.json`, "utf8")).status
+      : "none";
+    expect(["aborted", "none"]).toContain(left);
+    expect(existsSync(`${mount}/${LOCK_FILE}`)).toBe(false);
+  } finally {
+    execFileSync("umount", [mount]);
+  }
+});
+
 describe("one lock per folder", () => {
   test("a whole run, shards of another count, and a merge wait for a campaign's shards", async () => {
     const planFile = await plan(base());
