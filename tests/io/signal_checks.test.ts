@@ -179,7 +179,7 @@ describe("clipping judged against the converter and the signal's own crest", () 
     expect(warnings).not.toMatch(/converter's full scale/);
   });
 
-  test("the same tone written with 3 decimals (a 1 mV step) and 30 mV amplitude is not", async () => {
+  test("the same tone written with 3 decimals (a 1 mV step) and 30 mV amplitude is not", () => {
     // The CSV's last digit is its quantisation: crests 30 steps high, flat runs of ~28 samples.
     const x = tone.map((v) => Number((30 * v).toFixed(3)));
     expect(flatRunsAtMaximum(x)).toBeGreaterThanOrEqual(50);
