@@ -24,8 +24,9 @@
  *   beyond either end (analytic; a sine falls less than its parabola). The
  *   step q is the converter's when known, otherwise the grid of the samples
  *   so far: the greatest common step of the differences between successive
- *   samples, within a relative 1e-9 of the largest magnitude (the last digit
- *   of a CSV, a WAV's LSB; on unquantised data it is negligible, and any
+ *   samples, within a relative 1e-9 of the largest magnitude, refined until
+ *   it falls below 1e-8 of it (the last digit of a CSV, a WAV's LSB; on
+ *   unquantised data it is negligible, and any
  *   exactly flat run at an extreme that the waveform leaves steeply is a
  *   cut). A signal with an extreme that holds half the record
  *   or more rests there: it is a pulse train (a narrow-pulse tacho, a force
@@ -61,6 +62,13 @@ export const CLIP_DROP_STEPS = 8;
  * scaled integer samples (about 1e-16), far below any real step.
  */
 const GRID_TOLERANCE = 1e-9;
+
+/**
+ * A grid finer than this share of the largest magnitude is taken as no grid
+ * (unquantised data) and no longer refined: a 24-bit LSB is 1.2e-7 of full
+ * scale, so every integer converter's grid lies above it.
+ */
+const GRID_FLOOR = 1e-8;
 
 /**
  * The greatest common step of `a` and `b` within `tolerance` (Euclid's
@@ -154,6 +162,8 @@ export class ChannelStatistics {
   #low = emptyRail();
   // The grid of the samples so far (greatest common step of successive differences).
   #step = Infinity;
+  // Whether the grid is still above GRID_FLOOR (refined further).
+  #refining = true;
   // The two samples before the current one.
   #last1 = NaN;
   #last2 = NaN;
@@ -192,7 +202,7 @@ export class ChannelStatistics {
     // The state lives in locals for the loop (fields read and written per sample cost more than
     // the checks themselves) and is stored back at the end.
     let sum = this.#sum, sumSquares = this.#sumSquares, min = this.#min, max = this.#max;
-    let high = this.#high, low = this.#low, step = this.#step;
+    let high = this.#high, low = this.#low, step = this.#step, refining = this.#refining;
     let last1 = this.#last1, last2 = this.#last2;
     let runValue = this.#runValue, runLength = this.#runLength;
     let runBefore1 = this.#runBefore1, runBefore2 = this.#runBefore2;
@@ -202,7 +212,8 @@ export class ChannelStatistics {
     // A value within a quarter step of a rail is at it (the set-up's factor is applied in floats).
     const fsHigh = converter === undefined ? Infinity : converter.high - converter.step / 4;
     const fsLow = converter === undefined ? -Infinity : converter.low + converter.step / 4;
-    const judgeStep = () => converter?.step ?? step;
+    // No closure over the loop's locals: a captured variable lives in a context, read slowly.
+    const knownStep = converter === undefined ? 0 : converter.step;
     for (let i = 0; i < x.length; i++) {
       const v = x[i];
       sum += v;
@@ -217,19 +228,26 @@ export class ChannelStatistics {
       }
       if (v === max) high.count++;
       if (v === min) low.count++;
-      const d = Math.abs(v - last1);
-      if (d > 0) {
-        if (step === Infinity) step = d;
-        else {
-          // Most steps are whole multiples of the grid: one remainder shows it.
-          const tolerance = GRID_TOLERANCE * Math.max(max, -min);
-          const r = d % step;
-          if (r > tolerance && step - r > tolerance) step = gridGcd(step, d, tolerance);
+      if (refining) {
+        const d = v > last1 ? v - last1 : last1 - v;
+        if (d > 0) {
+          if (step === Infinity) step = d;
+          else {
+            // Most steps are whole multiples of the grid: one remainder shows it. Below
+            // GRID_FLOOR the data are unquantised for this purpose: the grid is left alone.
+            const scale = max > -min ? max : -min;
+            const tolerance = GRID_TOLERANCE * scale;
+            const r = d % step;
+            if (r > tolerance && step - r > tolerance) {
+              step = gridGcd(step, d, tolerance);
+              refining = step > GRID_FLOOR * scale;
+            }
+          }
         }
       }
       if (pending !== undefined) {
         pending.after2 = v;
-        closeRun(pending, { min, max, high, low, step: judgeStep() });
+        closeRun(pending, { min, max, high, low, step: knownStep > 0 ? knownStep : step });
         pending = undefined;
       }
       if (v >= fsHigh || v <= fsLow) {
@@ -270,6 +288,7 @@ export class ChannelStatistics {
     this.#high = high;
     this.#low = low;
     this.#step = step;
+    this.#refining = refining;
     this.#last1 = last1;
     this.#last2 = last2;
     this.#runValue = runValue;
