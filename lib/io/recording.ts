@@ -35,7 +35,10 @@ export interface Channel {
   readonly data: Float64Array;
   /** What the channel measures, when a set-up says so. */
   readonly role?: ChannelRole;
-  /** The converter's rails and step in the channel's unit, when known (integer PCM WAV). */
+  /**
+   * The converter's rails (and step) in the channel's unit, when known:
+   * integer PCM WAV, or a CSV column whose set-up gives `full_scale_volts`.
+   */
   readonly fullScale?: ConverterScale;
 }
 
@@ -48,8 +51,8 @@ export interface ConverterScale {
   readonly low: number;
   /** The highest code's value. */
   readonly high: number;
-  /** One code's step (the LSB). */
-  readonly step: number;
+  /** One code's step (the LSB), when known (integer PCM; not for a CSV column's range). */
+  readonly step?: number;
 }
 
 /** A multi-channel time history at one sample rate. */

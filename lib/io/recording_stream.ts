@@ -45,7 +45,7 @@ export interface RecordingStream {
     name: string;
     unit: string;
     role?: ChannelRole;
-    /** The converter's rails in the channel's unit, when known (integer PCM WAV). */
+    /** The converter's rails in the channel's unit, when known (integer PCM WAV, a set-up range). */
     fullScale?: ConverterScale;
   }[];
   /**

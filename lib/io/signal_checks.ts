@@ -5,8 +5,10 @@
  * - constant: every sample equal (a dead or disconnected channel);
  * - clipped at the converter's full scale: when the converter's rails are
  *   known (an integer PCM WAV channel: the lowest and highest codes of its
- *   bit depth, in the channel's unit after the set-up), 2 or more successive
- *   samples at a rail. A single sample at a rail can be a clean peak that
+ *   bit depth, in the channel's unit after the set-up, a sample within a
+ *   quarter step of one being at it; a CSV column in volts whose set-up
+ *   gives `full_scale_volts`: ±that range, within 1e-9 of it), 2 or more
+ *   successive samples at a rail. A single sample at a rail can be a clean peak that
  *   just reaches full scale; two in a row cannot, unless the waveform was
  *   cut there (common practice: a sample at the top code is the converter's
  *   overload sign);
@@ -188,7 +190,9 @@ export class ChannelStatistics {
   constructor(converter?: ConverterScale) {
     if (
       converter !== undefined &&
-      !(converter.low < converter.high && converter.step > 0 && Number.isFinite(converter.step))
+      !(converter.low < converter.high &&
+        (converter.step === undefined ||
+          (converter.step > 0 && Number.isFinite(converter.step))))
     ) {
       throw new RangeError(
         `converter rails must satisfy low < high with a positive step, got ${converter.low}, ${converter.high}, ${converter.step}`,
@@ -209,11 +213,17 @@ export class ChannelStatistics {
     let pending = this.#pending;
     let fsCount = this.#fsCount, fsRun = this.#fsRun, fsCut = this.#fsCut, fsRuns = this.#fsRuns;
     const converter = this.#converter;
-    // A value within a quarter step of a rail is at it (the set-up's factor is applied in floats).
-    const fsHigh = converter === undefined ? Infinity : converter.high - converter.step / 4;
-    const fsLow = converter === undefined ? -Infinity : converter.low + converter.step / 4;
+    // A value within a quarter step of a rail is at it (the set-up's factor is applied in floats);
+    // without a known step, within 1e-9 of the range.
+    const railTolerance = converter === undefined
+      ? 0
+      : converter.step !== undefined
+      ? converter.step / 4
+      : 1e-9 * (converter.high - converter.low);
+    const fsHigh = converter === undefined ? Infinity : converter.high - railTolerance;
+    const fsLow = converter === undefined ? -Infinity : converter.low + railTolerance;
     // No closure over the loop's locals: a captured variable lives in a context, read slowly.
-    const knownStep = converter === undefined ? 0 : converter.step;
+    const knownStep = converter?.step ?? 0;
     for (let i = 0; i < x.length; i++) {
       const v = x[i];
       sum += v;

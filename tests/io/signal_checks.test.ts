@@ -199,3 +199,48 @@ describe("clipping judged against the converter and the signal's own crest", () 
     }
   });
 });
+
+describe("a CSV column's converter range from the set-up", () => {
+  test("full_scale_volts on a CSV column in volts: a cut at ±that range is clipping at full scale", async () => {
+    // A ±10 V logger input (common practice for data-acquisition modules) overdriven by a
+    // 12 V tone for its first two cycles, then 5 V.
+    const rate = 10000;
+    const x = new Float64Array(rate).map((_, i) => {
+      const v = (i < 200 ? 12 : 5) * Math.sin(2 * Math.PI * 100 * i / rate);
+      return Math.max(-10, Math.min(10, v));
+    });
+    let csv = "time_s,acc [V]\n";
+    x.forEach((v, i) => (csv += `${i / rate},${v}\n`));
+    const dir = mkdtempSync(join(tmpdir(), "quiver-checks-"));
+    try {
+      writeFileSync(join(dir, "r.csv"), csv);
+      const setup = (entry: object, channel = "acc") => {
+        writeFileSync(join(dir, "s.json"), JSON.stringify({ channels: { [channel]: entry } }));
+        return join(dir, "s.json");
+      };
+      const warningsWith = async (entry: object) => {
+        const stream = await openRecordingStream(join(dir, "r.csv"), { setup: setup(entry) });
+        return (await readChecked(stream, [0], () => {})).join();
+      };
+      // In volts: the rails are ±10 V. With a sensitivity of 100 mV/(m/s^2): ±100 m/s^2.
+      expect(await warningsWith({ full_scale_volts: 10 })).toMatch(
+        /clipped at the converter's full scale \(-10, 10 V\)/,
+      );
+      expect(
+        await warningsWith({ full_scale_volts: 10, unit: "m/s^2", sensitivity_mv_per_unit: 100 }),
+      ).toMatch(/full scale \(-100, 100 m\/s\^2\)/);
+      // A range the signal never reaches: nothing at full scale, while the shape rule still
+      // finds the cut (4 runs of about 19 samples where |12·sin| > 10: 0.74 % of the record).
+      const wide = await warningsWith({ full_scale_volts: 20 });
+      expect(wide).not.toMatch(/converter's full scale/);
+      expect(wide).toMatch(/looks clipped/);
+      // A range on a column that is not in volts means nothing: refused.
+      writeFileSync(join(dir, "n.csv"), "time_s,f [N]\n0,1\n0.001,2\n");
+      await expect(
+        openRecordingStream(join(dir, "n.csv"), { setup: setup({ full_scale_volts: 10 }, "f") }),
+      ).rejects.toThrow(/full_scale_volts is the input range of a column in volts/);
+    } finally {
+      rmSync(dir, { recursive: true, force: true });
+    }
+  });
+});
