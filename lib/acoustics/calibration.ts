@@ -6,7 +6,7 @@
  *
  * Only the steady part of the tone counts. The record is cut into frames of
  * {@linkcode FRAME_S} s (at least 20 periods of the tone) and each frame's
- * mean-square level taken; a frame more than {@linkcode STEADY_DB} dB from
+ * level taken from its variance (a DC offset is not the tone); a frame more than {@linkcode STEADY_DB} dB from
  * the median frame level is not steady (a dropout, the calibrator put on or
  * taken off, a level switched). Those frames, and one frame either side of
  * each stretch of them (a change that fills only part of a frame moves its
@@ -40,7 +40,7 @@ export interface ExcludedStretch {
   /** Start and end, seconds (the record's time). */
   readonly startS: number;
   readonly endS: number;
-  /** Its mean-square level against the median frame level, dB (−Infinity: silence). */
+  /** Its level (variance) against the median frame level, dB (−Infinity: silence). */
   readonly levelDb: number;
 }
 
@@ -113,15 +113,23 @@ export async function calibrateMicrophone(
   const frames = Math.max(1, Math.floor(n / frame));
   const frameLength = (k: number) => (k < frames - 1 ? frame : n - (frames - 1) * frame);
   const frameOf = (i: number) => Math.min(frames - 1, Math.floor(i / frame));
+  const sums = new Float64Array(frames);
   const meanSquares = new Float64Array(frames);
   let at = 0;
   await stream.read([channel], ([chunk]) => {
     for (let i = 0; i < chunk.length; i++, at++) {
       const v = chunk[i] * scale;
-      meanSquares[frameOf(at)] += v * v;
+      const k = frameOf(at);
+      sums[k] += v;
+      meanSquares[k] += v * v;
     }
   });
-  const levels = meanSquares.map((sum, k) => 10 * Math.log10(sum / frameLength(k)));
+  // Each frame's variance: a DC offset, or a slow drift of it, is not the tone.
+  for (let k = 0; k < frames; k++) {
+    const mean = sums[k] / frameLength(k);
+    meanSquares[k] = Math.max(0, meanSquares[k] / frameLength(k) - mean * mean);
+  }
+  const levels = meanSquares.map((v) => 10 * Math.log10(v));
   const sorted = levels.slice().sort();
   const median = frames % 2 === 1
     ? sorted[frames >> 1]
@@ -142,7 +150,7 @@ export async function calibrateMicrophone(
     }
     let end = k, sum = 0, count = 0;
     for (; end < frames && !steady[end]; end++) {
-      sum += meanSquares[end];
+      sum += meanSquares[end] * frameLength(end);
       count += frameLength(end);
     }
     excluded.push({

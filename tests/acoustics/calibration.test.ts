@@ -86,6 +86,16 @@ describe("calibration from the steady part of the tone", () => {
     assertClose(c.steadySeconds, 9.4, { relative: 0, absolute: 1e-9 });
   });
 
+  test("a DC offset settling after switch-on is not unsteadiness: no warning", async () => {
+    // 50 mV decaying with τ = 0.5 s (an AC-coupled input settling; common practice) under a
+    // 71 mV-amplitude tone: in mean square the first frames would read up to 3.5 dB high.
+    const tone = volts(6, () => 1);
+    const data = tone.map((v, i) => v + 0.05 * Math.exp(-i / rate / 0.5));
+    const c = await calibrateMicrophone(mic(data), 0);
+    expect(c.warnings).toEqual([]);
+    assertClose(c.sensitivityMvPerPa, 50, { relative: 0.001, absolute: 0 });
+  });
+
   test("a level step halfway is refused: the tone has no one level", async () => {
     // 94 dB for 5 s, then 1 dB more (a calibrator not seated, then pushed home).
     const data = volts(10, (t) => (t < 5 ? 1 : 10 ** (1 / 20)));
