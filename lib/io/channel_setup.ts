@@ -20,7 +20,9 @@
  *   CSV header unit `V` or `mV` (or `input_unit`), or WAV with
  *   `full_scale_volts`. Engineering value = volts·1000/sensitivity.
  * - `input_unit`: `V` or `mV`, for a CSV column whose header has no unit.
- * - `full_scale_volts`: WAV only, the voltage at digital full scale.
+ * - `full_scale_volts`: for WAV, the voltage at digital full scale; for a
+ *   CSV column in volts, the converter's input range ±V (its rails, against
+ *   which clipping is judged: signal_checks.ts).
  * - `role`: `force`, `response`, `microphone`, `tacho` or `other`.
  * - `description`: free text (e.g. sensor position).
  *
@@ -33,7 +35,13 @@
  */
 import { z } from "npm:zod@4.6.7";
 import { QuiverError } from "../errors.ts";
-import { type Channel, CHANNEL_ROLES, type ChannelRole, type Recording } from "./recording.ts";
+import {
+  type Channel,
+  CHANNEL_ROLES,
+  type ChannelRole,
+  type ConverterScale,
+  type Recording,
+} from "./recording.ts";
 import { FULL_SCALE_UNIT } from "./wav.ts";
 import { baseUnit, sameQuantity } from "./units.ts";
 
@@ -110,6 +118,8 @@ export interface ChannelTransform {
   readonly unit: string;
   readonly role?: ChannelRole;
   readonly factor: number;
+  /** The converter's rails in the new unit, when the set-up gives a CSV column's range. */
+  readonly fullScale?: ConverterScale;
 }
 
 /**
@@ -160,9 +170,6 @@ export function setupTransforms(
       }
       volts = entry.full_scale_volts;
     } else {
-      if (entry.full_scale_volts !== undefined) {
-        fail(`${where}: full_scale_volts applies to WAV channels only`);
-      }
       if (
         entry.input_unit !== undefined && channel.unit !== "" && channel.unit !== entry.input_unit
       ) {
@@ -173,7 +180,18 @@ export function setupTransforms(
       const headerUnit = channel.unit === "" ? entry.input_unit : channel.unit;
       const base = headerUnit === undefined ? undefined : baseUnit(headerUnit);
       volts = base?.unit === "V" ? base.factor : undefined;
+      if (entry.full_scale_volts !== undefined && volts === undefined) {
+        fail(
+          `${where}: full_scale_volts is the input range of a column in volts, but the column's unit is ${
+            channel.unit === "" ? "not given (set input_unit)" : `[${channel.unit}]`
+          }`,
+        );
+      }
     }
+    // A CSV column's range in its own unit (a WAV channel's rails come from its bit depth).
+    const range = channel.unit !== FULL_SCALE_UNIT && entry.full_scale_volts !== undefined
+      ? entry.full_scale_volts / (volts as number)
+      : undefined;
     let factor = 1;
     let unit = channel.unit;
     if (entry.sensitivity_mv_per_unit !== undefined) {
@@ -210,12 +228,16 @@ export function setupTransforms(
       unit = channel.unit === "" ? entry.unit : channel.unit;
     }
     const role = entry.role ?? channel.role;
-    return inBaseUnit({
+    const transform = inBaseUnit({
       name: entry.name ?? channel.name,
       unit,
       factor,
       ...(role !== undefined ? { role } : {}),
     });
+    return range === undefined ? transform : {
+      ...transform,
+      fullScale: { low: -range * transform.factor, high: range * transform.factor },
+    };
   });
   const names = new Set<string>();
   for (const t of transforms) {
