@@ -136,6 +136,13 @@ export interface TachoPulses {
   readonly wheelHint?: { readonly teeth: number; readonly missing: number };
 }
 
+/**
+ * When the 2nd–98th percentile span is below this share of the whole range,
+ * the pulses fill less than 2 % of the record and the range is taken
+ * instead (rule ours).
+ */
+const NARROW_SHARE = 0.1;
+
 /** The samples at the given percentiles (nearest rank), in one set of passes. */
 function percentiles(series: SampleSeries, ps: readonly number[]): number[] {
   const n = series.length;
@@ -277,7 +284,13 @@ export function tachoPulses(
     );
   }
   if (series.length < 2) throw new QuiverError("the tacho channel is flat: no pulses to find");
-  const [low, high] = percentiles(series, [2, 98]);
+  const [least, p2, p98, most] = percentiles(series, [0, 2, 98, 100]);
+  // Pulses high (or low) for under 2 % of the time (a once-per-revolution mark, a
+  // narrow optical tacho) leave both percentiles at the resting level: the levels are
+  // then taken from the extremes, and only a channel with no excursion at all is flat.
+  const narrow = p98 - p2 < NARROW_SHARE * (most - least);
+  const low = narrow ? least : p2;
+  const high = narrow ? most : p98;
   const fixed = options.level !== undefined || options.hysteresis !== undefined;
   const level = options.level ?? (low + high) / 2;
   const hysteresis = options.hysteresis ?? HYSTERESIS_FRACTION * (high - low);

@@ -295,3 +295,35 @@ describe("missing-tooth wheels with teeth lost", () => {
     expect(notes.join()).toMatch(/1 gap\(s\) of 3 tooth pitches came where no revolution ends/);
   });
 });
+
+describe("a narrow-pulse tacho (a once-per-revolution mark)", () => {
+  // Pulses high for 1.6 % of each revolution: the 2nd and 98th percentiles both sit at the
+  // resting level, so levels taken from them alone call the channel flat (common practice:
+  // reflective-tape and keyphasor marks are this narrow).
+  for (const activeLow of [false, true]) {
+    test(`1.6 % duty, active ${activeLow ? "low" : "high"}: rpm within 0.5 % of the profile`, () => {
+      const rate = 25600;
+      const profile = linearProfile(1200, 3000, 10);
+      const signal = new Float64Array(rate * 10).map((_, i) => {
+        const turn = profile.angle(i / rate);
+        const high = turn - Math.floor(turn) < 0.016;
+        return high !== activeLow ? 5 : 0;
+      });
+      const pulses = tachoPulses(signal, rate, { ppr: 1 });
+      expect(pulses.inserted).toBe(0);
+      const motion = motionFromPulses(pulses.times, 1);
+      let worst = 0;
+      motion.times.forEach((t, i) => {
+        if (t < 0.5 || t > 9.5) return;
+        worst = Math.max(worst, Math.abs(motion.rpm[i] / profile.rpm(t) - 1));
+      });
+      expect(worst).toBeLessThan(0.005);
+    });
+  }
+
+  test("a channel with no excursion at all is still flat", () => {
+    expect(() => tachoPulses(new Float64Array(1000).fill(2.5), 1000, { ppr: 1 })).toThrow(
+      /the tacho channel is flat/,
+    );
+  });
+});
