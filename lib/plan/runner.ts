@@ -32,6 +32,7 @@ export { MANIFEST_FILE } from "./campaign_paths.ts";
 import { realPathOf } from "../io/output_paths.ts";
 import { createHash } from "node:crypto";
 import { existsSync, lstatSync, statSync } from "node:fs";
+import { assertRegularFile, fileKind } from "../io/file_kinds.ts";
 import { mkdir, open, readdir, readFile, rm, rmdir } from "node:fs/promises";
 import process from "node:process";
 import { dirname, isAbsolute, join, relative, resolve, sep } from "node:path";
@@ -68,8 +69,10 @@ export interface PlanStep {
 export async function loadPlan(path: string): Promise<{ plan: Plan; text: string }> {
   let text: string;
   try {
+    assertRegularFile(path, "plan");
     text = await readFile(path, "utf8");
-  } catch {
+  } catch (error) {
+    if (error instanceof QuiverError) throw error;
     throw new QuiverError("cannot read the plan: no such file", { file: path }, "usage");
   }
   let json: unknown;
@@ -148,14 +151,24 @@ export function planSteps(
   // Plan keys are looked up as own properties only: a recording called "toString" is a recording.
   const recordingOf = (name: string) =>
     Object.hasOwn(plan.recordings, name) ? plan.recordings[name] : undefined;
+  // An input must be a regular file: a FIFO or /dev/zero would hang the hash that records it.
+  const inputFile = (path: string, shown: string, where: string) => {
+    let stats;
+    try {
+      stats = statSync(path);
+    } catch {
+      fail(where, `no such file: ${shown}`);
+    }
+    if (!stats!.isFile()) {
+      fail(where, `${shown} is ${fileKind(stats!)}; an input must be a regular file`);
+    }
+  };
   for (const [name, rec] of Object.entries(plan.recordings)) {
     each(() => {
-      if (!existsSync(at(rec.file))) fail(`recordings.${name}.file`, `no such file: ${rec.file}`);
+      inputFile(at(rec.file), rec.file, `recordings.${name}.file`);
     });
     each(() => {
-      if (rec.setup !== undefined && !existsSync(at(rec.setup))) {
-        fail(`recordings.${name}.setup`, `no such file: ${rec.setup}`);
-      }
+      if (rec.setup !== undefined) inputFile(at(rec.setup), rec.setup, `recordings.${name}.setup`);
     });
   }
   const check = (where: string, command: string, argv: string[]) => {
@@ -194,7 +207,7 @@ export function planSteps(
         });
         if (a.geometry !== undefined) {
           const file = at(a.geometry.file);
-          if (!existsSync(file)) fail(`${where}.geometry.file`, `no such file: ${a.geometry.file}`);
+          inputFile(file, a.geometry.file, `${where}.geometry.file`);
           argv.push("--geometry", file);
           inputs.push(file);
         }
@@ -206,18 +219,13 @@ export function planSteps(
           fail(`${where}.simulation.file`, "mac needs the simulation's mode shapes");
         }
         const sim = at((a.simulation as { file: string }).file);
-        if (!existsSync(sim)) {
-          fail(
-            `${where}.simulation.file`,
-            `no such file: ${(a.simulation as { file: string }).file}`,
-          );
-        }
+        inputFile(sim, (a.simulation as { file: string }).file, `${where}.simulation.file`);
         const shapes = join(outDir, outputFileName(a.input as string, "shapes-out"));
         argv.push(shapes, sim);
         inputs.push(shapes, sim);
         if (a.map !== undefined) {
           const map = at(a.map.file);
-          if (!existsSync(map)) fail(`${where}.map.file`, `no such file: ${a.map.file}`);
+          inputFile(map, a.map.file, `${where}.map.file`);
           argv.push("--map", map);
           inputs.push(map);
         }
@@ -317,9 +325,7 @@ export function planSteps(
       }
       refuseOutputOptions(c.options, where, note);
       const sim = at(c.simulation.file);
-      if (!existsSync(sim)) {
-        fail(`${where}.simulation.file`, `no such file: ${c.simulation.file}`);
-      }
+      inputFile(sim, c.simulation.file, `${where}.simulation.file`);
       const test = join(outDir, outputFileName(c.test, "out"));
       const outputs: Record<string, string> = {};
       for (const key of outputKeys("compare", false)) {
@@ -497,6 +503,8 @@ const hashCache = new Map<string, string>();
  */
 export async function record(path: string, outDir: string): Promise<FileRecord> {
   const stat = statSync(path);
+  // A FIFO or device would never end its hash; planSteps refuses them, this is the last guard.
+  if (!stat.isFile()) throw new Error(`${path} is ${fileKind(stat)}, not a regular file`);
   const key = `${path}\u0000${stat.size}\u0000${stat.mtimeMs}`;
   let sha256 = hashCache.get(key);
   if (sha256 === undefined) {
