@@ -675,6 +675,7 @@ export class CsvRowParser {
   readonly #values: Float64Array;
   readonly #decimals: Float64Array;
   readonly #wantDecimals: Int8Array;
+  readonly #emptyAsNaN: boolean;
   #mark: number; // decimal mark byte, or −1 until known
   #line = 1;
   #carry: Uint8Array = new Uint8Array(0);
@@ -685,13 +686,20 @@ export class CsvRowParser {
    * `startLine`: the bytes begin at a data row on this line (a checkpoint of
    * {@linkcode CsvScan.checkpoints}), not at the file's start; default: they
    * begin at the file's start.
+   * `emptyAsNaN`: an empty cell is NaN (a result table's cell with no finite
+   * value, table.ts) instead of an error; default false.
    */
   constructor(
     scan: CsvScan,
     width: number,
     sink: RowSink,
-    options: CsvTableOptions & { decimalsOf?: readonly number[]; startLine?: number } = {},
+    options: CsvTableOptions & {
+      decimalsOf?: readonly number[];
+      startLine?: number;
+      emptyAsNaN?: boolean;
+    } = {},
   ) {
+    this.#emptyAsNaN = options.emptyAsNaN ?? false;
     this.#file = options.file;
     this.#width = width;
     this.#delimiter = scan.delimiter.charCodeAt(0);
@@ -852,6 +860,10 @@ export class CsvRowParser {
 
   /** Converts one cell into values[column]; false when it is not a finite number. */
   #cell(bytes: Uint8Array, a: number, b: number, column: number): boolean {
+    if (a === b && this.#emptyAsNaN) {
+      this.#values[column] = NaN;
+      return true;
+    }
     if (this.#mark < 0) {
       for (let k = a; k < b; k++) {
         if (bytes[k] === COMMA || bytes[k] === DOT) {
