@@ -58,11 +58,14 @@ export interface HeaderCell {
  * import { parseHeaderCell } from "./csv_engine.ts";
  * const h = parseHeaderCell(" seat_rail_z [m/s^2] ");
  * if (h.name !== "seat_rail_z" || h.unit !== "m/s^2") throw new Error();
+ * const b = parseHeaderCell("a[1 [m/s^2]");
+ * if (b.name !== "a[1" || b.unit !== "m/s^2") throw new Error();
  * ```
  */
 export function parseHeaderCell(cell: string): HeaderCell {
   const text = unquote(cell);
-  const match = /^(.*?)\s*\[([^\]]*)\]$/.exec(text);
+  // The unit is the last bracketed group at the end: a `[` before it belongs to the name.
+  const match = /^(.*?)\s*\[([^[\]]*)\]$/.exec(text);
   if (match === null) return { name: text, unit: "" };
   return { name: match[1].trim(), unit: match[2].trim() };
 }
