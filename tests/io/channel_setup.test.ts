@@ -142,9 +142,12 @@ describe("channel set-up", () => {
       parseChannelSetup('{"channels": {}}'),
     );
     expect(plain.map((t) => t.name)).toEqual(["constructor", "toString"]);
-    // A hand-built set-up object (a plain object with a prototype) is read by own keys too.
-    const handMade = setupTransforms([{ name: "valueOf", unit: "V" }], { channels: {} });
-    expect(handMade[0]).toEqual({ name: "valueOf", unit: "V", factor: 1 });
+    // A hand-built set-up object (a plain object with a prototype) is read by own keys too:
+    // looked up as obj[name], "constructor" would find Object (whose .name is "Object").
+    const handMade = setupTransforms([{ name: "constructor", unit: "V" }], { channels: {} });
+    expect(handMade[0]).toEqual({ name: "constructor", unit: "V", factor: 1 });
+    // Callers index the parsed entries by channel name (calibrate): no prototype to find.
+    expect(parseChannelSetup('{"channels": {}}').channels["constructor"]).toBeUndefined();
     // zod's record drops a "__proto__" key; the set-up keeps it as the channel it names.
     const proto = parseChannelSetup(
       '{"channels": {"__proto__": {"unit": "m/s^2", "sensitivity_mv_per_unit": 10}}}',
