@@ -27,7 +27,14 @@
  * - `description`: free text (e.g. sensor position).
  *
  * Unknown fields, unknown channels, and a unit that contradicts the file's
- * own header are errors, never silently ignored. Every channel's unit, with
+ * own header are errors, never silently ignored. A sensitivity must lie in
+ * {@linkcode SENSITIVITY_RANGE_MV_PER_UNIT} and a full scale in
+ * {@linkcode FULL_SCALE_RANGE_VOLTS}: zero, negative, non-finite or absurd
+ * values are refused naming the channel and the value (they would turn the
+ * data into Infinity or NaN). Channel names (keys and `name`) may not hold
+ * control, bidirectional or zero-width characters (names.ts); a key is
+ * looked up as the set-up's own entry only, so a channel called
+ * `constructor` or `__proto__` is a name like any other. Every channel's unit, with
  * or without a set-up, ends in its SI base unit when quiver knows it
  * (units.ts): a column in [g] is read in m/s^2, one in [mm/s] in m/s.
  *
@@ -44,6 +51,34 @@ import {
 } from "./recording.ts";
 import { FULL_SCALE_UNIT } from "./wav.ts";
 import { baseUnit, sameQuantity } from "./units.ts";
+import { checkName } from "./names.ts";
+
+/**
+ * Sensitivities accepted, in mV per engineering unit: 1e-6 … 1e6. Real
+ * transducers lie well inside (about 0.01 mV/N for a large force cell to
+ * 10 000 mV/g for a seismic accelerometer, from memory); the range is wide
+ * so that any unit prefix fits, and narrow enough that volts·1000/sensitivity
+ * can neither overflow nor vanish.
+ *
+ * @example
+ * ```ts
+ * import { SENSITIVITY_RANGE_MV_PER_UNIT } from "./channel_setup.ts";
+ * if (SENSITIVITY_RANGE_MV_PER_UNIT[0] !== 1e-6 || SENSITIVITY_RANGE_MV_PER_UNIT[1] !== 1e6) throw new Error();
+ * ```
+ */
+export const SENSITIVITY_RANGE_MV_PER_UNIT: readonly [number, number] = [1e-6, 1e6];
+
+/**
+ * Full-scale voltages accepted for WAV channels, in V: 1e-6 … 1e4 (acquisition
+ * ranges run from millivolts to some hundred volts, common practice).
+ *
+ * @example
+ * ```ts
+ * import { FULL_SCALE_RANGE_VOLTS } from "./channel_setup.ts";
+ * if (FULL_SCALE_RANGE_VOLTS[1] !== 1e4) throw new Error();
+ * ```
+ */
+export const FULL_SCALE_RANGE_VOLTS: readonly [number, number] = [1e-6, 1e4];
 
 const channelEntrySchema = z.strictObject({
   name: z.string().trim().min(1).optional(),
@@ -95,6 +130,7 @@ export function parseChannelSetup(text: string, file?: string): ChannelSetup {
     const location = position === null ? { file } : lineAndColumn(text, Number(position[1]), file);
     throw new QuiverError(`not valid JSON: ${message}`, location);
   }
+  checkRawChannels(json, file);
   const result = channelSetupSchema.safeParse(json);
   if (!result.success) {
     const issue = result.error.issues[0];
@@ -104,7 +140,50 @@ export function parseChannelSetup(text: string, file?: string): ChannelSetup {
       { file },
     );
   }
-  return result.data;
+  // Own entries only, in an object without a prototype (zod drops a "__proto__" key).
+  const channels: ChannelSetup["channels"] = Object.create(null);
+  const raw = (json as { channels: Record<string, unknown> }).channels;
+  for (const key of Object.keys(raw)) {
+    const entry = channelEntrySchema.safeParse(raw[key]);
+    if (!entry.success) {
+      throw new QuiverError(
+        `channel set-up field channels.${key}: ${entry.error.issues[0].message}`,
+        { file },
+      );
+    }
+    Object.defineProperty(channels, key, { value: entry.data, enumerable: true, writable: true });
+  }
+  return { ...result.data, channels };
+}
+
+/** Names and numbers of the raw entries, checked before the schema so the message names both. */
+function checkRawChannels(json: unknown, file?: string): void {
+  if (typeof json !== "object" || json === null || !("channels" in json)) return;
+  const channels = json.channels;
+  if (typeof channels !== "object" || channels === null) return;
+  for (const [key, entry] of Object.entries(channels)) {
+    checkName(key, `set-up channel "${key}"`, { file });
+    if (typeof entry !== "object" || entry === null) continue;
+    const fields = entry as Record<string, unknown>;
+    if (Object.hasOwn(fields, "name") && typeof fields.name === "string") {
+      checkName(fields.name, `set-up channel "${key}": new name`, { file });
+    }
+    const ranges = [
+      ["sensitivity_mv_per_unit", SENSITIVITY_RANGE_MV_PER_UNIT, "mV per unit"],
+      ["full_scale_volts", FULL_SCALE_RANGE_VOLTS, "V"],
+    ] as const;
+    for (const [field, [low, high], unit] of ranges) {
+      if (!Object.hasOwn(fields, field)) continue;
+      const value = fields[field];
+      if (typeof value !== "number") continue; // the schema names the wrong type
+      if (!(value >= low && value <= high)) {
+        throw new QuiverError(
+          `set-up channel "${key}": ${field} ${value} is out of range; quiver accepts ${low} … ${high} ${unit} (zero, negative, non-finite or absurd values would make the data Infinity or NaN)`,
+          { file },
+        );
+      }
+    }
+  }
 }
 
 function lineAndColumn(text: string, position: number, file?: string) {
@@ -144,6 +223,8 @@ export function setupTransforms(
     throw new QuiverError(detail, { file });
   };
   const known = new Set(channels.map((c) => c.name));
+  const entryOf = (name: string) =>
+    Object.hasOwn(setup.channels, name) ? setup.channels[name] : undefined;
   for (const key of Object.keys(setup.channels)) {
     if (!known.has(key)) {
       fail(
@@ -154,7 +235,7 @@ export function setupTransforms(
     }
   }
   const transforms = channels.map((channel): ChannelTransform => {
-    const entry = setup.channels[channel.name];
+    const entry = entryOf(channel.name);
     const keep = {
       name: channel.name,
       unit: channel.unit,
