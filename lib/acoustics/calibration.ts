@@ -1,7 +1,7 @@
 /**
  * Microphone sensitivity from a recording of an acoustic calibrator. A
  * calibrator producing 94 dB re 20 µPa (1.0024 Pa rms) at 1 kHz is common
- * practice. The tone's rms is read from the flat-top autopower spectrum, so
+ * practice. The tone's rms is read from the flat-top power spectrum, so
  * noise and hum elsewhere in the spectrum do not count.
  *
  * Only the steady part of the tone counts. The record is cut into frames of
