@@ -113,7 +113,9 @@ export async function run(argv: readonly string[]): Promise<void> {
   toStderr(`quiver bands: bands ${first} Hz to ${last} Hz (nominal)\n`);
   for (const o of result.overall) {
     toStderr(
-      `${o.channel}: overall ${o.levelDb.toFixed(2)} ${o.unit} (energy sum of the bands)\n`,
+      Number.isFinite(o.levelDb)
+        ? `${o.channel}: overall ${o.levelDb.toFixed(2)} ${o.unit} (energy sum of the bands)\n`
+        : `${o.channel}: overall level not defined: the bands hold no power (a silent channel?)\n`,
     );
   }
 }

@@ -107,6 +107,10 @@ describe("results are finite or refused with the reason", () => {
     );
     const r = runQuiver(["bands", "quiet.csv", "--out", "b.csv"], dir);
     expect(r.code, r.stderr).toBe(0);
+    expect(r.stderr).not.toMatch(/NaN|Infinity/);
+    expect(r.stderr).toContain(
+      "dead: overall level not defined: the bands hold no power (a silent channel?)",
+    );
     const csv = await readFile(`${dir}/b.csv`, "utf8");
     expect(csv).not.toMatch(/NaN|Infinity/);
     expect(csv.split("\n")[1]).toMatch(/,-?\d[^,]*,$/); // the dead channel's cell is empty
