@@ -49,7 +49,7 @@ describe("README agrees with the command line", () => {
 });
 
 describe("the textbook's words for spectra", () => {
-  test('no "autopower" in README, any --help, or the spectrum metadata; kind power still works', async () => {
+  test('no "autopower" in README, any --help, or the spectrum metadata; kind power still works', () => {
     // Bendat & Piersol, Random Data, 4th ed.: "autospectrum" / power spectrum. The option
     // values psd, rms and peak are textbook terms and stay; "power" keeps working.
     expect(README).not.toMatch(/auto-?power/i);
