@@ -36,6 +36,7 @@ import { QuiverError } from "../errors.ts";
 import { type Channel, CHANNEL_ROLES, type ChannelRole, type Recording } from "./recording.ts";
 import { FULL_SCALE_UNIT } from "./wav.ts";
 import { baseUnit, sameQuantity } from "./units.ts";
+import { didYouMean } from "../nearest_name.ts";
 
 const channelEntrySchema = z.strictObject({
   name: z.string().trim().min(1).optional(),
@@ -137,9 +138,9 @@ export function setupTransforms(
   for (const key of Object.keys(setup.channels)) {
     if (!known.has(key)) {
       fail(
-        `the set-up names channel "${key}", which the recording does not have (it has ${
-          [...known].join(", ")
-        })`,
+        `the set-up names channel "${key}"${
+          didYouMean(key, [...known])
+        }, which the recording does not have (it has ${[...known].join(", ")})`,
       );
     }
   }

@@ -48,6 +48,7 @@ import {
   fromEigenComponents,
   hermitianEigen,
 } from "../frf/hermitian.ts";
+import { didYouMean } from "../nearest_name.ts";
 
 /** How the forces are known. */
 export const PATH_METHODS = ["direct", "inverse"] as const;
@@ -273,9 +274,9 @@ export async function pathContributions(
       (alone && t.channels.length === 1 ? t.channels[0] : undefined);
     if (found === undefined || found.re === undefined || found.im === undefined) {
       throw new QuiverError(
-        `the transfer of path "${path}" has no complex FRF of "${name}" (responses: ${
-          t.channels.map((c) => c.name).join(", ")
-        })`,
+        `the transfer of path "${path}" has no complex FRF of "${name}"${
+          didYouMean(name, t.channels.map((c) => c.name))
+        } (responses: ${t.channels.map((c) => c.name).join(", ")})`,
       );
     }
     return found;
