@@ -43,6 +43,8 @@ export interface Curve {
   readonly unit: string;
   /** The column the curve came from. */
   readonly column: string;
+  /** The file the curve came from, for messages. Default: none named. */
+  readonly file?: string;
   /**
    * Where `quantity` came from: the caller, the metadata, the unit, or a
    * default (amplitude, for want of any of them). Default: `default`.
@@ -410,5 +412,8 @@ export async function readCurveFile(
   const columns = table.columns.flatMap((c) =>
     c.values instanceof Float64Array ? [{ name: c.name, unit: c.unit, values: c.values }] : []
   );
-  return curveFromColumns(columns, { ...options, metadata: table.metadata, file: path });
+  return {
+    ...curveFromColumns(columns, { ...options, metadata: table.metadata, file: path }),
+    file: path,
+  };
 }
