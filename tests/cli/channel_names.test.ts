@@ -20,7 +20,7 @@ describe("a misspelt channel name: exit 2, the nearest name offered, nothing wri
   const cases: [string, string[], string, string][] = [
     [
       "spectrum --channels",
-      ["spectrum", "car.csv", "--channels", "frnt_left", "front_left"],
+      ["spectrum", "car.csv", "--channels", "frnt_left"],
       "frnt_left",
       "front_left",
     ],
@@ -56,11 +56,13 @@ describe("a misspelt channel name: exit 2, the nearest name offered, nothing wri
       "frf --input",
       ["frf", "car.csv", "--input", "Front_Left", "--outputs", "rear_left"],
       "Front_Left",
+      "front_left",
     ],
     [
       "calibrate --channel",
       ["calibrate", "car.csv", "--channel", "tacko", "--level", "94"],
       "tacko",
+      "tacho",
     ],
   ];
   for (const [what, args, typed, meant] of cases) {
