@@ -32,6 +32,7 @@ import {
 } from "./time_weighting.ts";
 import { minOf } from "../extent.ts";
 import { type Weighting, weightingFilter, weightingFilterLimitHz } from "./weighting.ts";
+import { formatNumber } from "../format_number.ts";
 
 /** Options of {@linkcode levelHistory}. */
 export interface LevelOptions {
@@ -211,7 +212,7 @@ function levelResult(
   });
   if (unsettled) {
     warnings.push(
-      `the record is shorter than the meter's settling time of ${settling} s ` +
+      `the record is shorter than the meter's settling time of ${formatNumber(settling)} s ` +
         `(${SETTLING_TIME_CONSTANTS} time constants from rest): Lmin, L10, L50 and L90 ` +
         `include the rise from rest and read low`,
     );

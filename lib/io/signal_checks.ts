@@ -23,6 +23,7 @@
  * @module
  */
 import type { Channel } from "./recording.ts";
+import { formatNumber } from "../format_number.ts";
 
 /** What is known of one rail (the channel's highest or lowest value so far). */
 interface Rail {
@@ -159,7 +160,9 @@ export class ChannelStatistics {
       warnings.push(
         `channel "${channel.name}" looks clipped: ${atRails} samples (${
           Number((100 * atRails / n).toPrecision(2))
-        } %) sit at its extremes (${min}, ${max} ${channel.unit}), ${cut} of them in ${runs} flat run(s) that cut the waveform`,
+        } %) sit at its extremes (${formatNumber(min)}, ${
+          formatNumber(max)
+        } ${channel.unit}), ${cut} of them in ${runs} flat run(s) that cut the waveform`,
       );
     }
     const mean = this.#sum / n;
@@ -167,8 +170,10 @@ export class ChannelStatistics {
     if (Math.abs(mean) > 3 * sd) {
       warnings.push(
         `channel "${channel.name}" has a DC offset of ${
-          mean.toPrecision(3)
-        } ${channel.unit}, over 3 times its standard deviation (${sd.toPrecision(3)})`,
+          formatNumber(mean, 3)
+        } ${channel.unit}, over 3 times its standard deviation (${
+          formatNumber(sd, 3)
+        } ${channel.unit})`,
       );
     }
     return warnings;

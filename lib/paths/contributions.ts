@@ -237,16 +237,16 @@ export async function pathContributions(
   const block = Math.round(stream.rate / df);
   if (!(block >= 8) || Math.abs(stream.rate / block - df) > 1e-6 * df) {
     throw new QuiverError(
-      `the transfers' line spacing ${
-        formatNumber(df, 6)
-      } Hz is not the sample rate ${stream.rate} Hz over a whole block: analyse the transfers with a block that divides the operating rate`,
+      `the transfers' line spacing ${formatNumber(df, 6)} Hz is not the sample rate ${
+        formatNumber(stream.rate, 8)
+      } Hz over a whole block: analyse the transfers with a block that divides the operating rate`,
     );
   }
   const lineOf = Array.from(frequencies, (f) => Math.round(f / df));
   if (lineOf.some((k, i) => Math.abs(k * df - frequencies[i]) > 1e-6 * df || k > block / 2)) {
     throw new QuiverError(
       `the transfers' frequencies are not whole multiples of ${formatNumber(df, 6)} Hz up to ${
-        stream.rate / 2
+        formatNumber(stream.rate / 2, 8)
       } Hz`,
     );
   }
