@@ -25,6 +25,7 @@ import type { FrfForm } from "./forms.ts";
 import { frfTableParts, SINGLE_AVERAGE_WARNING } from "./frf_analysis.ts";
 import type { FrfData } from "./frf_data.ts";
 import { findHits, type Hit } from "./hits.ts";
+import { formatNumber } from "../format_number.ts";
 
 /** Options of {@linkcode hammerFrf}. */
 export interface HammerOptions {
@@ -291,7 +292,7 @@ function analyseHits(
     ...(accepted.length === 1 ? [SINGLE_AVERAGE_WARNING] : []),
     ...(usable.reached ? [] : [
       `the force autospectrum stays within ${USABLE_DROP_DB} dB of its low-frequency level up to ${
-        estimate.frequencies[estimate.frequencies.length - 1]
+        formatNumber(estimate.frequencies[estimate.frequencies.length - 1], 6)
       } Hz: the hammer excites the whole band (or the force channel is noise)`,
     ]),
     ...channelInfo.signalWarnings,
