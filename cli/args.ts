@@ -9,6 +9,7 @@ import { z } from "npm:zod@4.6.7";
 import { QuiverError, withFile } from "../lib/errors.ts";
 import { parseDecimal } from "../lib/io/numbers.ts";
 import { refuseClashingOutputs, refuseUnreplaceableOutputs } from "../lib/io/output_paths.ts";
+import { nearestName } from "../lib/nearest_name.ts";
 
 /** Option definitions in parseArgs form. */
 export type OptionSpec = NonNullable<ParseArgsConfig["options"]>;
@@ -183,45 +184,4 @@ function optionProblem(error: unknown, known: readonly string[]): string {
       : `${option} takes no value`;
   }
   return message.split("\n")[0];
-}
-
-/**
- * The known name closest to `name` by edit distance, when it is close enough
- * to be a slip (at most a third of the name's length, and at least 1).
- *
- * @example
- * ```ts
- * import { nearestName } from "./args.ts";
- * if (nearestName("windwo", ["window", "overlap"]) !== "window") throw new Error();
- * if (nearestName("zzzz", ["window"]) !== undefined) throw new Error();
- * ```
- */
-export function nearestName(name: string, known: readonly string[]): string | undefined {
-  let best: string | undefined;
-  let bestDistance = Infinity;
-  for (const candidate of known) {
-    const d = editDistance(name.toLowerCase(), candidate.toLowerCase());
-    if (d < bestDistance) {
-      best = candidate;
-      bestDistance = d;
-    }
-  }
-  return bestDistance <= Math.max(1, Math.floor(name.length / 3)) ? best : undefined;
-}
-
-/** Levenshtein distance (insert, delete, substitute), one row of the table at a time. */
-function editDistance(a: string, b: string): number {
-  let previous = Array.from({ length: b.length + 1 }, (_, j) => j);
-  for (let i = 1; i <= a.length; i++) {
-    const current = [i];
-    for (let j = 1; j <= b.length; j++) {
-      current[j] = Math.min(
-        previous[j] + 1,
-        current[j - 1] + 1,
-        previous[j - 1] + (a[i - 1] === b[j - 1] ? 0 : 1),
-      );
-    }
-    previous = current;
-  }
-  return previous[b.length];
 }

@@ -23,6 +23,7 @@ import {
 } from "./recording_options.ts";
 import { oneBlockChoice, OUTPUT_TABLE } from "./segment_options.ts";
 import { commandHelp, libraryOptions, option, shapeOf, specOf } from "./option_table.ts";
+import { formatFixed, formatNumber } from "../lib/format_number.ts";
 
 /** One-line summary for the command list. */
 export const summary = "1/1 … 1/24-octave band levels (IEC 61260-1), A/C/Z weighted, in dB";
@@ -110,11 +111,11 @@ export async function run(argv: readonly string[]): Promise<void> {
   await writeResult(result.table, input, values);
   for (const w of result.warnings) toStderr(`quiver bands: warning: ${w}\n`);
   const [first, last] = result.table.metadata.band_range_nominal_hz as number[];
-  toStderr(`quiver bands: bands ${first} Hz to ${last} Hz (nominal)\n`);
+  toStderr(`quiver bands: bands ${formatNumber(first)} Hz to ${formatNumber(last)} Hz (nominal)\n`);
   for (const o of result.overall) {
     toStderr(
       Number.isFinite(o.levelDb)
-        ? `${o.channel}: overall ${o.levelDb.toFixed(2)} ${o.unit} (energy sum of the bands)\n`
+        ? `${o.channel}: overall ${formatFixed(o.levelDb, 2)} ${o.unit} (energy sum of the bands)\n`
         : `${o.channel}: overall level not defined: the bands hold no power (a silent channel?)\n`,
     );
   }

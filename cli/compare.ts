@@ -4,7 +4,7 @@
  * @module
  */
 import { toStderr } from "./terminal.ts";
-import { formatFixed } from "../lib/format_number.ts";
+import { formatFixed, formatNumber } from "../lib/format_number.ts";
 import { z } from "npm:zod@4.6.7";
 import { BAND_FRACTIONS, type BandFraction } from "../lib/acoustics/bands.ts";
 import { compareCurves } from "../lib/compare/comparison.ts";
@@ -138,7 +138,9 @@ export async function run(argv: readonly string[]): Promise<void> {
       ).join("") +
       unmatched("test", s.test_only_peaks) + unmatched("simulation", s.simulation_only_peaks) +
       `; dB as ${s.quantity === "power" ? "10" : "20"}·lg of ${s.quantity}s (${s.quantity_from})` +
-      `, grid ${s.grid.lines} lines ${s.grid.min_hz}-${s.grid.max_hz} Hz from ${s.grid.from}\n`,
+      `, grid ${s.grid.lines} lines ${formatNumber(s.grid.min_hz, 6)}-${
+        formatNumber(s.grid.max_hz, 6)
+      } Hz from ${s.grid.from}\n`,
   );
   for (const p of s.peaks) {
     if (p.note !== undefined) {

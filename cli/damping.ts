@@ -5,7 +5,6 @@
  */
 import { toStderr } from "./terminal.ts";
 import { TARGETS_NOT_MET_EXIT } from "./exit_codes.ts";
-import { formatFixed } from "../lib/format_number.ts";
 import process from "node:process";
 import { z } from "npm:zod@4.6.7";
 import { FRF_FORMS } from "../lib/frf/forms.ts";
@@ -16,6 +15,7 @@ import { writeResult } from "./output.ts";
 import { OUTPUT_TABLE } from "./segment_options.ts";
 import { RECORDING_TABLE } from "./recording_options.ts";
 import { commandHelp, libraryOptions, option, shapeOf, specOf } from "./option_table.ts";
+import { formatFixed, formatNumber } from "../lib/format_number.ts";
 
 /** One-line summary for the command list. */
 export const summary =
@@ -139,7 +139,7 @@ export async function run(argv: readonly string[]): Promise<void> {
   for (const m of result.modes) {
     if (m.mode === null) continue; // candidates flagged noise: one line per channel below
     toStderr(
-      `${m.channel} mode ${m.mode}: ${m.frequencyHz.toFixed(3)} Hz, damping ${
+      `${m.channel} mode ${m.mode}: ${formatFixed(m.frequencyHz, 3)} Hz, damping ${
         formatFixed(100 * m.dampingRatio, 3)
       } % ` +
         `(${m.method})${m.flags.length > 0 ? ` [${m.flags.join(", ")}]` : ""}\n`,
@@ -159,11 +159,11 @@ export async function run(argv: readonly string[]): Promise<void> {
     const skipped = t.skipped.length > 0 ? `; ${describeSkipped(t.skipped)}` : "";
     toStderr(
       t.firstModeHz === null
-        ? `target: first mode >= ${t.minimumHz} Hz: FAIL (no mode found${skipped})\n`
-        : `target: first mode >= ${t.minimumHz} Hz: ${t.pass ? "PASS" : "FAIL"} ` +
-          `(${t.firstModeHz.toFixed(3)} Hz, mode ${t.mode} of ${t.channel}, margin ${
-            t.marginHz!.toFixed(3)
-          } Hz, ${t.marginPercent!.toFixed(1)} %${skipped})\n`,
+        ? `target: first mode >= ${formatNumber(t.minimumHz)} Hz: FAIL (no mode found${skipped})\n`
+        : `target: first mode >= ${formatNumber(t.minimumHz)} Hz: ${t.pass ? "PASS" : "FAIL"} ` +
+          `(${formatFixed(t.firstModeHz, 3)} Hz, mode ${t.mode} of ${t.channel}, margin ${
+            formatFixed(t.marginHz, 3)
+          } Hz, ${formatFixed(t.marginPercent, 1)} %${skipped})\n`,
     );
     if (!t.pass && values["require-targets"] === true) process.exitCode = TARGETS_NOT_MET_EXIT;
   }

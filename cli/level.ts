@@ -10,6 +10,7 @@ import { TIME_WEIGHTINGS } from "../lib/acoustics/time_weighting.ts";
 import { WEIGHTINGS } from "../lib/acoustics/weighting.ts";
 import { listOption, numberOption, parseCommandArgs, usageError } from "./args.ts";
 import { writeResult } from "./output.ts";
+import { formatFixed } from "../lib/format_number.ts";
 import {
   analyseRecording,
   RECORDING_HEADING,
@@ -27,7 +28,7 @@ const ANALYSIS = {
   weighting: option(z.enum(WEIGHTINGS), {
     value: "W",
     help: WEIGHTINGS.join(" | "),
-    default: "A",
+    default: "A for Pa, else Z",
   }),
   "time-weighting": option(z.enum(TIME_WEIGHTINGS), {
     value: "T",
@@ -53,9 +54,11 @@ export const help = commandHelp({
   about: `Frequency-weighted (digital filter) and time-weighted (IEC 61672-1: Fast
 0.125 s, Slow 1 s) level against time, in dB against the ISO 1683
 references, with the summary Leq, Lmax, Lmin, L10, L50, L90 on stderr and in
-the JSON metadata. A and C need a sample rate above 24.4 kHz. Fast and Slow
-start from rest (IEC 61672-1); Lmax and Leq count from the first sample, Lmin
-and L10/L50/L90 from 5 time constants on (the meter settled).`,
+the JSON metadata. Without --weighting a channel in Pa is A-weighted and any
+other (an accelerometer, say) not weighted (Z); each summary line says which.
+A and C need a sample rate above 24.4 kHz. Fast and Slow start from rest
+(IEC 61672-1); Lmax and Leq count from the first sample, Lmin and
+L10/L50/L90 from 5 time constants on (the meter settled).`,
   groups: [["Analysis", ANALYSIS], [RECORDING_HEADING, RECORDING_TABLE], ["Output", OUTPUT_TABLE]],
   notes: `Levels are for engineering comparison, not a certified sound level meter
 measurement; for noise exposure follow local regulations and use certified
@@ -82,10 +85,19 @@ export async function run(argv: readonly string[]): Promise<void> {
   await writeResult(result.table, input, values);
   for (const w of result.warnings) toStderr(`quiver level: warning: ${w}\n`);
   for (const s of result.summary) {
-    const f = (v: number) => v.toFixed(1);
+    const f = (v: number) => formatFixed(v, 1);
     toStderr(
       `${s.channel} [${s.unit}]: Leq ${f(s.leq)}, Lmax ${f(s.lmax)}, Lmin ${f(s.lmin)}, ` +
-        `L10 ${f(s.l10)}, L50 ${f(s.l50)}, L90 ${f(s.l90)}\n`,
+        `L10 ${f(s.l10)}, L50 ${f(s.l50)}, L90 ${f(s.l90)}; ${weightingNote(s)}\n`,
     );
   }
+}
+
+/** The weighting a channel got, and who chose it, in words. */
+function weightingNote(s: { weighting: string; weightingFrom: "option" | "unit" }): string {
+  const what = s.weighting === "Z" ? "not frequency-weighted (Z)" : `${s.weighting}-weighted`;
+  if (s.weightingFrom === "option") return `${what}: --weighting ${s.weighting}`;
+  return s.weighting === "A"
+    ? `${what}: the default for a sound pressure in Pa`
+    : `${what}: the default for a unit other than Pa`;
 }

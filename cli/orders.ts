@@ -25,6 +25,7 @@ import {
   SPEED_HEADING,
   SPEED_TABLE,
 } from "./speed_options.ts";
+import { formatFixed, formatNumber } from "../lib/format_number.ts";
 
 /** One-line summary for the command list. */
 export const summary = "order cuts, rpm and rpm maps of run-ups and run-downs from a tacho";
@@ -149,11 +150,11 @@ export async function run(argv: readonly string[]): Promise<void> {
   for (const w of result.warnings) toStderr(`quiver orders: warning: ${w}\n`);
   const m = result.cuts.metadata;
   toStderr(
-    `orders: ${
-      result.cuts.columns[0].values.length
-    } rpm step(s) from ${m.rpm_min} to ${m.rpm_max} rpm, ` +
+    `orders: ${result.cuts.columns[0].values.length} rpm step(s) from ${
+      formatNumber(m.rpm_min)
+    } to ${formatNumber(m.rpm_max)} rpm, ` +
       `method ${m.method}, recorded ${
-        (m.recorded_rpm_range as number[]).map((r) => r.toFixed(0)).join("–")
+        (m.recorded_rpm_range as number[]).map((r) => formatFixed(r, 0)).join("–")
       } rpm\n`,
   );
 }

@@ -218,8 +218,10 @@ function bandPlan(
   // FILTER_BANK_LIMIT of the rate (filter_bank.ts).
   const limit = method === "fft" ? rate / 2 : FILTER_BANK_LIMIT * rate;
   const limitText = method === "fft"
-    ? `half the sample rate (${limit} Hz)`
-    : `${FILTER_BANK_LIMIT} of the sample rate (${limit} Hz, the filter bank's limit)`;
+    ? `half the sample rate (${formatNumber(limit, 6)} Hz)`
+    : `${FILTER_BANK_LIMIT} of the sample rate (${
+      formatNumber(limit, 6)
+    } Hz, the filter bank's limit)`;
   const candidates = bandsHolding(fraction, minHz, maxHz);
   const bands: Band[] = candidates.filter((b) => b.upperHz < limit);
   if (bands.length === 0) {
@@ -228,7 +230,7 @@ function bandPlan(
   const warnings = [...signalWarnings];
   if (bands.length < candidates.length && options.maxHz !== undefined) {
     warnings.push(
-      `bands above ${bands[bands.length - 1].nominalHz} Hz are left out: ` +
+      `bands above ${formatNumber(bands[bands.length - 1].nominalHz)} Hz are left out: ` +
         `their upper edges reach beyond ${limitText}`,
     );
   }
@@ -273,7 +275,7 @@ function fftBandPowers(estimate: SpectralEstimate, plan: BandPlan): Float64Array
   if (few.length > 0) {
     warnings.push(
       `${few.length} band(s) up to ${
-        few[few.length - 1].nominalHz
+        formatNumber(few[few.length - 1].nominalHz)
       } Hz span fewer than ${MIN_LINES_PER_BAND} lines ` +
         `at df ${
           formatNumber(estimate.df, 6)

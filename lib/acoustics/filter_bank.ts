@@ -17,6 +17,7 @@
  */
 import type { Band } from "./bands.ts";
 import { type Biquad, CascadeFilter, normaliseCascade } from "./biquad.ts";
+import { formatNumber } from "../format_number.ts";
 
 interface Complex {
   re: number;
@@ -78,7 +79,9 @@ export function butterworthBandPass(
 ): Biquad[] {
   if (!(lowerHz > 0 && upperHz > lowerHz && upperHz < rate / 2)) {
     throw new RangeError(
-      `band ${lowerHz}–${upperHz} Hz does not fit below the Nyquist frequency of ${rate / 2} Hz`,
+      `band ${formatNumber(lowerHz)}–${
+        formatNumber(upperHz)
+      } Hz does not fit below the Nyquist frequency of ${formatNumber(rate / 2, 6)} Hz`,
     );
   }
   // Pre-warped edges, in units of 2·fs so that the bilinear map is z = (1 + s)/(1 − s).
@@ -211,7 +214,9 @@ export class FilterBankMeter {
     this.#bands = bands.map((b) => {
       if (b.upperHz >= 0.45 * rate) {
         throw new RangeError(
-          `band ${b.nominalHz} Hz reaches ${b.upperHz} Hz, too close to the Nyquist frequency`,
+          `band ${formatNumber(b.nominalHz)} Hz reaches ${
+            formatNumber(b.upperHz)
+          } Hz, too close to the Nyquist frequency`,
         );
       }
       const level = levelOf(b);

@@ -5,6 +5,12 @@
  * 2·f₄ ≈ 24.4 kHz. Levels are for engineering comparison; quiver is not a
  * certified sound level meter.
  *
+ * The frequency weighting, unless the caller names one, follows each
+ * channel's unit: A for a sound pressure (Pa), whose A-weighted level is what
+ * an ear-related comparison wants, and Z (none) for anything else, since A
+ * is defined for hearing (IEC 61672-1) and would strip an accelerometer's low
+ * frequencies. Each summary entry says which and why.
+ *
  * Fast and Slow start from rest (IEC 61672-1); Lmax and Leq count from the
  * first sample, Lmin and L10/L50/L90 once the meter has settled (5 time
  * constants, see time_weighting.ts).
@@ -26,12 +32,16 @@ import {
 } from "./time_weighting.ts";
 import { minOf } from "../extent.ts";
 import { type Weighting, weightingFilter, weightingFilterLimitHz } from "./weighting.ts";
+import { formatNumber } from "../format_number.ts";
 
 /** Options of {@linkcode levelHistory}. */
 export interface LevelOptions {
   /** Channels. Default: all. */
   channels?: readonly string[];
-  /** Frequency weighting. Default `"A"`. */
+  /**
+   * Frequency weighting of every channel. Default: per channel from its unit
+   * ({@linkcode defaultWeighting}: A for Pa, Z otherwise).
+   */
   weighting?: Weighting;
   /** Time weighting. Default `"fast"`. */
   timeWeighting?: TimeWeighting;
@@ -48,7 +58,44 @@ export interface LevelResult {
   /** Warnings. */
   readonly warnings: readonly string[];
   /** Per-channel statistics. */
-  readonly summary: readonly ({ channel: string; unit: string } & LevelStatistics)[];
+  readonly summary: readonly LevelSummary[];
+}
+
+/** One channel's statistics, with the weighting it got and why. */
+export type LevelSummary = {
+  channel: string;
+  /** The level's unit, e.g. `dB(A) re 20 µPa`. */
+  unit: string;
+  /** The frequency weighting applied. */
+  weighting: Weighting;
+  /** `option` when the caller named it, `unit` when the channel's unit chose it. */
+  weightingFrom: "option" | "unit";
+} & LevelStatistics;
+
+/**
+ * The frequency weighting a channel gets when none is named: A for a sound
+ * pressure in Pa, Z (no weighting) for any other unit.
+ *
+ * @example
+ * ```ts
+ * import { defaultWeighting } from "./level_analysis.ts";
+ * if (defaultWeighting("Pa") !== "A" || defaultWeighting("m/s^2") !== "Z" || defaultWeighting("") !== "Z") throw new Error();
+ * ```
+ */
+export function defaultWeighting(unit: string): Weighting {
+  return unit === "Pa" ? "A" : "Z";
+}
+
+/** The weighting of each channel and whether the caller or the unit chose it. */
+function weightingsOf(
+  channels: readonly { unit: string }[],
+  options: LevelOptions,
+): { weighting: Weighting; from: "option" | "unit" }[] {
+  return channels.map((c) =>
+    options.weighting !== undefined
+      ? { weighting: options.weighting, from: "option" }
+      : { weighting: defaultWeighting(c.unit), from: "unit" }
+  );
 }
 
 /**
@@ -110,10 +157,13 @@ function levelMeters(
   const stepSeconds = options.step ?? 0.1;
   const step = Math.round(stepSeconds * rate);
   if (step < 1) throw new RangeError(`the step of ${stepSeconds} s is shorter than one sample`);
-  const sections = weightingFilter(options.weighting ?? "A", rate);
+  const weightings = weightingsOf(channels, options);
+  const sections = new Map(
+    weightings.map(({ weighting }) => [weighting, weightingFilter(weighting, rate)]),
+  );
   for (const c of channels) levelReference(c.unit, options.reference); // refuse before the work
-  return channels.map(() => {
-    const filter = new CascadeFilter(sections);
+  return weightings.map(({ weighting }) => {
+    const filter = new CascadeFilter(sections.get(weighting)!);
     const meter = new TimeWeightedMeter(rate, options.timeWeighting ?? "fast", step);
     return { push: (x) => meter.push(filter.process(x)), finish: () => meter.finish() };
   });
@@ -129,13 +179,15 @@ function levelResult(
     warnings: string[];
   },
 ): LevelResult {
-  const weighting = options.weighting ?? "A";
+  const weightings = weightingsOf(channels, options);
+  const distinct = [...new Set(weightings.map((w) => w.weighting))];
   const timeWeighting = options.timeWeighting ?? "fast";
   const step = Math.round((options.step ?? 0.1) * rate);
   const columns: TableColumn[] = [];
   const settling = settlingSeconds(timeWeighting);
   let unsettled = false;
-  const summary = channels.map((c, i) => {
+  const summary = channels.map((c, i): LevelSummary => {
+    const { weighting, from } = weightings[i];
     const reference = levelReference(c.unit, options.reference);
     const { readings, meanSquare, highest, lowest, settledFrom } = meters[i].finish();
     const levels = readings.map((m) => levelDb(m, reference));
@@ -153,12 +205,14 @@ function levelResult(
     return {
       channel: c.name,
       unit,
+      weighting,
+      weightingFrom: from,
       ...levelStatistics(levelDb(meanSquare, reference), counted, extremes),
     };
   });
   if (unsettled) {
     warnings.push(
-      `the record is shorter than the meter's settling time of ${settling} s ` +
+      `the record is shorter than the meter's settling time of ${formatNumber(settling)} s ` +
         `(${SETTLING_TIME_CONSTANTS} time constants from rest): Lmin, L10, L50 and L90 ` +
         `include the rise from rest and read low`,
     );
@@ -172,16 +226,23 @@ function levelResult(
       columns: [{ name: "time_s", unit: "", values: time }, ...columns],
       metadata: {
         analysis: "level",
-        weighting,
+        // One weighting for all channels, or "per channel" (each summary entry has its own).
+        weighting: distinct.length === 1 ? distinct[0] : "per channel",
+        weighting_from: options.weighting !== undefined
+          ? "option"
+          : "channel unit (A for Pa, Z otherwise)",
         time_weighting: timeWeighting,
         step_s: step / rate,
         // Lmin and L10/L50/L90 count from here (Lmax and Leq from the first sample).
         statistics_settling_s: settling,
         rate_hz: rate,
-        weighting_filter_within_0_5_db_up_to_hz: weightingFilterLimitHz(weighting, rate),
+        weighting_filter_within_0_5_db_up_to_hz: minOf(
+          new Float64Array(weightings.map((w) => weightingFilterLimitHz(w.weighting, rate))),
+        ),
         summary: summary.map((s) => ({
           channel: s.channel,
           unit: s.unit,
+          weighting: s.weighting,
           leq_db: s.leq,
           lmax_db: s.lmax,
           lmin_db: s.lmin,

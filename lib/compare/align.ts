@@ -12,6 +12,7 @@
  */
 import { QuiverError } from "../errors.ts";
 import type { Curve } from "./curve_input.ts";
+import { formatNumber } from "../format_number.ts";
 
 /** Two curves on one grid. */
 export interface AlignedCurves {
@@ -81,7 +82,9 @@ export function alignCurves(
   const frequencies = source.frequencies.filter((f) => f >= low && f <= high);
   if (frequencies.length < 3) {
     throw new QuiverError(
-      `the two curves share only ${frequencies.length} line(s) between ${low} and ${high} Hz`,
+      `the two curves share only ${frequencies.length} line(s) between ${
+        formatNumber(low, 6)
+      } and ${formatNumber(high, 6)} Hz`,
     );
   }
   return {

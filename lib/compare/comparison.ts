@@ -100,6 +100,7 @@ export function compareCurves(
     simulationAsRead,
     options.quantity,
   );
+  warnings.push(...missingUnitWarnings(testAsRead, simulationAsRead));
   const { test, simulation, conversion } = matchUnits(
     withQuantity(testAsRead, quantity.test.quantity, quantity.test.source),
     withQuantity(simulationAsRead, quantity.simulation.quantity, quantity.simulation.source),
@@ -186,6 +187,38 @@ export function compareCurves(
       },
     },
   };
+}
+
+/**
+ * A curve without a unit cannot be checked against the other: say so, name
+ * its file and what was assumed, rather than compare in silence.
+ */
+function missingUnitWarnings(test: Curve, simulation: Curve): string[] {
+  const named = (c: Curve, side: string) =>
+    `the ${side}${c.file === undefined ? "" : ` "${c.file}"`} (column "${c.column}")`;
+  const t = test.unit.trim(), s = simulation.unit.trim();
+  if (t === "" && s === "") {
+    return [
+      `neither ${named(test, "test")} nor ${
+        named(simulation, "simulation")
+      } states a unit: compared as they are, assumed to be the same quantity in the same unit (unchecked)`,
+    ];
+  }
+  if (t === "") {
+    return [
+      `${
+        named(test, "test")
+      } states no unit: assumed to be in the simulation's unit [${s}] (unchecked)`,
+    ];
+  }
+  if (s === "") {
+    return [
+      `${
+        named(simulation, "simulation")
+      } states no unit: assumed to be in the test's unit [${t}] (unchecked)`,
+    ];
+  }
+  return [];
 }
 
 type Side = { quantity: "power" | "amplitude"; source: "option" | "metadata" | "unit" | "default" };

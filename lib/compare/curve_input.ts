@@ -25,6 +25,7 @@ import { QuiverError } from "../errors.ts";
 import type { CsvTableOptions } from "../io/csv_table.ts";
 import { readResultFile } from "../io/result_file.ts";
 import { RESULT_METADATA } from "../io/result_metadata.ts";
+import { didYouMean } from "../nearest_name.ts";
 
 /** A curve: frequency and value, complex when phase is known. */
 export interface Curve {
@@ -42,6 +43,8 @@ export interface Curve {
   readonly unit: string;
   /** The column the curve came from. */
   readonly column: string;
+  /** The file the curve came from, for messages. Default: none named. */
+  readonly file?: string;
   /**
    * Where `quantity` came from: the caller, the metadata, the unit, or a
    * default (amplitude, for want of any of them). Default: `default`.
@@ -209,6 +212,13 @@ export function withQuantity(
   };
 }
 
+/** The names a column option may give: each column's, and the stem of `C_re`, `C_mag`, `C_mag_db`. */
+function curveNames(columns: readonly { name: string }[]): string[] {
+  const stems = columns.map((c) => /^(.+)_(?:re|im|mag|mag_db|phase_deg)$/.exec(c.name)?.[1]);
+  const names = columns.map((c) => c.name).filter((n) => n !== "frequency_hz");
+  return [...new Set([...stems.filter((s) => s !== undefined), ...names])];
+}
+
 interface NamedColumn {
   readonly name: string;
   readonly unit: string;
@@ -328,7 +338,9 @@ export function curveFromColumns(
     }
     if (get(name) === undefined) {
       fail(
-        `no response or column "${name}" in this FRF result; its responses are ${names.join(", ")}`,
+        `no response or column "${name}"${
+          didYouMean(name, names)
+        } in this FRF result; its responses are ${names.join(", ")}`,
       );
     }
   }
@@ -338,7 +350,9 @@ export function curveFromColumns(
     const plain = get(options.column);
     if (plain === undefined) {
       fail(
-        `no column "${options.column}" (nor ${options.column}_re/_im, _mag, _mag_db); the table has ${
+        `no column "${options.column}"${
+          didYouMean(options.column, curveNames(columns))
+        } (nor ${options.column}_re/_im, _mag, _mag_db); the table has ${
           columns.map((c) => c.name).join(", ")
         }`,
       );
@@ -398,5 +412,8 @@ export async function readCurveFile(
   const columns = table.columns.flatMap((c) =>
     c.values instanceof Float64Array ? [{ name: c.name, unit: c.unit, values: c.values }] : []
   );
-  return curveFromColumns(columns, { ...options, metadata: table.metadata, file: path });
+  return {
+    ...curveFromColumns(columns, { ...options, metadata: table.metadata, file: path }),
+    file: path,
+  };
 }

@@ -36,6 +36,7 @@ import {
   transientAdvice,
   TransientDetector,
 } from "./transient.ts";
+import { formatNumber } from "../format_number.ts";
 
 /** Options of {@linkcode frequencyResponse}. */
 export interface FrfOptions {
@@ -195,7 +196,8 @@ export function lowCoherenceWarnings(columns: readonly TableColumn[]): string[] 
       }
     }
     if (ranges.length > 0) {
-      const shown = ranges.slice(0, 3).map(([a, b]) => `${a}–${b} Hz`).join(", ");
+      const shown = ranges.slice(0, 3).map(([a, b]) => `${formatNumber(a)}–${formatNumber(b)} Hz`)
+        .join(", ");
       warnings.push(
         `coherence of "${
           c.name.slice(0, -"_coherence".length)

@@ -313,7 +313,7 @@ function analyseHits(
     ...(accepted.length === 1 ? [SINGLE_AVERAGE_WARNING] : []),
     ...(usable.reached ? [] : [
       `the force autospectrum stays within ${USABLE_DROP_DB} dB of its low-frequency level up to ${
-        estimate.frequencies[estimate.frequencies.length - 1]
+        formatNumber(estimate.frequencies[estimate.frequencies.length - 1], 6)
       } Hz: the hammer excites the whole band (or the force channel is noise)`,
     ]),
     ...channelInfo.signalWarnings,

@@ -52,6 +52,7 @@ import {
 import { FULL_SCALE_UNIT } from "./wav.ts";
 import { baseUnit, sameQuantity } from "./units.ts";
 import { checkName } from "./names.ts";
+import { didYouMean } from "../nearest_name.ts";
 
 /**
  * Sensitivities accepted, in mV per engineering unit: 1e-6 … 1e6. Real
@@ -228,9 +229,9 @@ export function setupTransforms(
   for (const key of Object.keys(setup.channels)) {
     if (!known.has(key)) {
       fail(
-        `the set-up names channel "${key}", which the recording does not have (it has ${
-          [...known].join(", ")
-        })`,
+        `the set-up names channel "${key}"${
+          didYouMean(key, [...known])
+        }, which the recording does not have (it has ${[...known].join(", ")})`,
       );
     }
   }

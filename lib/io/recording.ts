@@ -4,6 +4,7 @@
  * @module
  */
 import { QuiverError } from "../errors.ts";
+import { didYouMean } from "../nearest_name.ts";
 
 /**
  * What a channel measures, as the channel set-up declares it.
@@ -104,9 +105,8 @@ export function channelIndices(
     const index = channels.findIndex((c) => c.name === name);
     if (index < 0) {
       throw new QuiverError(
-        `no channel named "${name}"; the recording has ${
-          channels.map((c) => `"${c.name}"`).join(", ")
-        }`,
+        `no channel named "${name}"${didYouMean(name, channels.map((c) => c.name))}; ` +
+          `the recording has ${channels.map((c) => `"${c.name}"`).join(", ")}`,
         {},
         "usage",
       );

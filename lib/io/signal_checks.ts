@@ -50,6 +50,7 @@
  * @module
  */
 import type { Channel, ConverterScale } from "./recording.ts";
+import { formatNumber } from "../format_number.ts";
 
 /**
  * How far (in quantisation steps) the waveform must fall within 2 samples of
@@ -367,8 +368,10 @@ export class ChannelStatistics {
       warnings.push(
         `channel "${channel.name}" looks clipped: ${atRails} samples (${
           percent(atRails, n)
-        } %) sit at its extremes (${min}, ${max} ${channel.unit}), ${cut} of them in ${runs} flat run(s) that cut the waveform (it falls more than ${CLIP_DROP_STEPS} quantisation steps of ${
-          Number(step.toPrecision(3))
+        } %) sit at its extremes (${formatNumber(min)}, ${
+          formatNumber(max)
+        } ${channel.unit}), ${cut} of them in ${runs} flat run(s) that cut the waveform (it falls more than ${CLIP_DROP_STEPS} quantisation steps of ${
+          formatNumber(step)
         } ${channel.unit} within 2 samples of each end)`,
       );
     }
@@ -377,8 +380,10 @@ export class ChannelStatistics {
     if (!resting && Math.abs(mean) > 3 * sd) {
       warnings.push(
         `channel "${channel.name}" has a DC offset of ${
-          mean.toPrecision(3)
-        } ${channel.unit}, over 3 times its standard deviation (${sd.toPrecision(3)})`,
+          formatNumber(mean, 3)
+        } ${channel.unit}, over 3 times its standard deviation (${
+          formatNumber(sd, 3)
+        } ${channel.unit})`,
       );
     }
     return warnings;

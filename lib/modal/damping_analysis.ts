@@ -56,6 +56,7 @@ import type { FrfChannel, FrfData } from "./frf_input.ts";
 import { halfPower, type HalfPowerEstimate } from "./half_power.ts";
 import { findPeaks, judgeCoherence, type Peak } from "./peaks.ts";
 import { fitSdof, type SdofFit } from "./sdof_fit.ts";
+import { didYouMean } from "../nearest_name.ts";
 
 /**
  * Which estimates to make.
@@ -536,7 +537,7 @@ export function modalDamping(data: FrfData, options: DampingOptions = {}): Dampi
     const c = data.channels.find((ch) => ch.name === name);
     if (c === undefined) {
       throw new QuiverError(
-        `no FRF named "${name}"; the table has ${names.join(", ")}`,
+        `no FRF named "${name}"${didYouMean(name, names)}; the table has ${names.join(", ")}`,
         {},
         "usage",
       );

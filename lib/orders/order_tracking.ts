@@ -51,6 +51,7 @@ import {
   speedSourceMetadata,
   timeAtRpm,
 } from "./speed.ts";
+import { formatNumber } from "../format_number.ts";
 
 /**
  * The order-tracking methods.
@@ -329,8 +330,8 @@ function ordersOfSeries(
   if (skipped.length > 0) {
     warnings.push(
       `${skipped.length} rpm step(s) left out (no whole block around them): ${
-        skipped.slice(0, 5).join(", ")
-      }${skipped.length > 5 ? ", …" : ""}`,
+        skipped.slice(0, 5).map((r) => formatNumber(r)).join(", ")
+      }${skipped.length > 5 ? ", …" : ""} rpm`,
     );
   }
   const columns: TableColumn[] = [{

@@ -34,6 +34,7 @@ import {
   speedSourceMetadata,
   timeAtRpm,
 } from "./speed.ts";
+import { formatNumber } from "../format_number.ts";
 
 /** Options of {@linkcode spectrogramAgainstRpm}: a spectrogram's, the speed source and the steps. */
 export interface RpmSpectrogramOptions extends SpectrogramOptions, SpeedSource, RpmStepOptions {
@@ -171,8 +172,8 @@ export async function spectrogramAgainstRpm(
   if (skipped.length > 0) {
     warnings.push(
       `${skipped.length} rpm step(s) left out (no whole frame around them): ${
-        skipped.slice(0, 5).join(", ")
-      }${skipped.length > 5 ? ", …" : ""}`,
+        skipped.slice(0, 5).map((r) => formatNumber(r)).join(", ")
+      }${skipped.length > 5 ? ", …" : ""} rpm`,
     );
   }
   return {

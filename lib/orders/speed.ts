@@ -279,7 +279,9 @@ export function rpmSteps(motion: ShaftMotion, options: RpmStepOptions = {}): Rpm
     throw new QuiverError(
       `the recording's speed spans ${lowest.toFixed(1)}–${
         highest.toFixed(1)
-      } rpm, which does not cover the requested ${rpmMin}–${rpmMax} rpm`,
+      } rpm, which does not cover the requested ${formatNumber(rpmMin)}–${
+        formatNumber(rpmMax)
+      } rpm`,
     );
   }
   // Counted before any is made: a tiny step would otherwise fill memory one push at a time.

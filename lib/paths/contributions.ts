@@ -48,6 +48,7 @@ import {
   fromEigenComponents,
   hermitianEigen,
 } from "../frf/hermitian.ts";
+import { didYouMean } from "../nearest_name.ts";
 
 /** How the forces are known. */
 export const PATH_METHODS = ["direct", "inverse"] as const;
@@ -236,16 +237,16 @@ export async function pathContributions(
   const block = Math.round(stream.rate / df);
   if (!(block >= 8) || Math.abs(stream.rate / block - df) > 1e-6 * df) {
     throw new QuiverError(
-      `the transfers' line spacing ${
-        formatNumber(df, 6)
-      } Hz is not the sample rate ${stream.rate} Hz over a whole block: analyse the transfers with a block that divides the operating rate`,
+      `the transfers' line spacing ${formatNumber(df, 6)} Hz is not the sample rate ${
+        formatNumber(stream.rate, 8)
+      } Hz over a whole block: analyse the transfers with a block that divides the operating rate`,
     );
   }
   const lineOf = Array.from(frequencies, (f) => Math.round(f / df));
   if (lineOf.some((k, i) => Math.abs(k * df - frequencies[i]) > 1e-6 * df || k > block / 2)) {
     throw new QuiverError(
       `the transfers' frequencies are not whole multiples of ${formatNumber(df, 6)} Hz up to ${
-        stream.rate / 2
+        formatNumber(stream.rate / 2, 8)
       } Hz`,
     );
   }
@@ -273,9 +274,9 @@ export async function pathContributions(
       (alone && t.channels.length === 1 ? t.channels[0] : undefined);
     if (found === undefined || found.re === undefined || found.im === undefined) {
       throw new QuiverError(
-        `the transfer of path "${path}" has no complex FRF of "${name}" (responses: ${
-          t.channels.map((c) => c.name).join(", ")
-        })`,
+        `the transfer of path "${path}" has no complex FRF of "${name}"${
+          didYouMean(name, t.channels.map((c) => c.name))
+        } (responses: ${t.channels.map((c) => c.name).join(", ")})`,
       );
     }
     return found;

@@ -461,7 +461,9 @@ function levelFigures(id: string, title: string, r: ResultJson): Figure[] {
   return [{
     name: `${id}_level`,
     ...lineFigure({
-      title: `${title}: ${m.weighting}-weighted, ${m.time_weighting} time weighting`,
+      title: `${title}: ${
+        m.weighting === "per channel" ? "weighting per channel" : `${m.weighting}-weighted`
+      }, ${m.time_weighting} time weighting`,
       x: { label: "Time [s]" },
       y: { label: withUnit("Level", r.columns[1]?.unit ?? "") },
       series: r.columns.slice(1).map((c) => ({ name: c.name, x: t, y: numbers(c) })),

@@ -3,6 +3,8 @@ import { levelHistory } from "../../lib/acoustics/level_analysis.ts";
 import { parseCsvRecording } from "../../lib/io/csv_reader.ts";
 import { applyChannelSetup } from "../../lib/io/channel_setup.ts";
 import { formatReference, levelUnit } from "../../lib/acoustics/levels.ts";
+import { iecA } from "../helpers/iec_weighting.ts";
+import { assertClose } from "../helpers/assert_close.ts";
 
 // ISO 1683:2015 reference values, typed here (from memory of the standard's table):
 // sound pressure 20 µPa, acceleration 1 µm/s², velocity 1 nm/s, displacement 1 pm, force 1 µN.
@@ -86,5 +88,53 @@ describe("Leq and exceedance levels of a level that changes", () => {
     expect(Math.abs(summary[0].l10 - 96)).toBeLessThan(0.01);
     expect(Math.abs(summary[0].l50 - 80)).toBeLessThan(0.01);
     expect(Math.abs(summary[0].l90 - 64)).toBeLessThan(0.01);
+  });
+});
+
+describe("level's default frequency weighting follows each channel's unit", () => {
+  // One 100 Hz tone of 1 rms in a microphone (Pa) and an accelerometer (recorded in g).
+  const rate = 48000;
+  const tone = new Float64Array(rate).map((_, i) =>
+    Math.SQRT2 * Math.sin(2 * Math.PI * 100 * i / rate)
+  );
+  const g = 9.80665; // standard gravity, ISO 80000-3
+  const rec = applyChannelSetup(
+    parseCsvRecording(
+      ["cabin_mic [Pa],seat_rail [g]", ...Array.from(tone, (v) => `${v},${v / g}`)].join("\n"),
+      { rate },
+    ),
+    { channels: {} },
+  );
+  const pa = 20 * Math.log10(1 / 20e-6); // 1 Pa rms re 20 µPa (ISO 1683)
+  const acc = 120; // 1 m/s^2 rms re 1 µm/s^2 (ISO 1683)
+
+  test("A for the Pa channel, none (Z) for the m/s^2 channel; the metadata says which", async () => {
+    const { summary, table } = await levelHistory(rec, { timeWeighting: "none", step: 0.1 });
+    // IEC 61672-1 Annex E: A(100 Hz) = −19.1 dB. Always-A would read the
+    // accelerometer 19 dB low; always-Z would leave the microphone unweighted.
+    assertClose(summary[0].leq, pa + iecA(100), { absolute: 0.02, relative: 0 }, "mic");
+    assertClose(summary[1].leq, acc, { absolute: 1e-6, relative: 0 }, "accelerometer");
+    expect(summary.map((s) => [s.weighting, s.weightingFrom])).toEqual([["A", "unit"], [
+      "Z",
+      "unit",
+    ]]);
+    expect(summary.map((s) => s.unit)).toEqual(["dB(A) re 20 µPa", "dB re 1 µm/s^2"]);
+    expect(table.metadata.weighting).toBe("per channel");
+    expect(table.metadata.weighting_from).toBe("channel unit (A for Pa, Z otherwise)");
+    const perChannel = (table.metadata.summary as { weighting: string }[]).map((s) => s.weighting);
+    expect(perChannel).toEqual(["A", "Z"]);
+  });
+
+  test("a weighting the caller names wins over the unit's", async () => {
+    const { summary, table } = await levelHistory(rec, {
+      weighting: "A",
+      timeWeighting: "none",
+      step: 0.1,
+    });
+    assertClose(summary[1].leq, acc + iecA(100), { absolute: 0.02, relative: 0 }, "A on m/s^2");
+    expect(summary.map((s) => s.weightingFrom)).toEqual(["option", "option"]);
+    expect(table.metadata.weighting).toBe("A");
+    const z = await levelHistory(rec, { weighting: "Z", timeWeighting: "none", step: 0.1 });
+    assertClose(z.summary[0].leq, pa, { absolute: 1e-6, relative: 0 }, "Z on Pa");
   });
 });

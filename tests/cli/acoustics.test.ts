@@ -121,6 +121,32 @@ describe("quiver bands, level and calibrate", () => {
     expect(r.stderr).toMatch(/mic \[dB\(A\) re 20 µPa\]: Leq 94\.0/);
   });
 
+  test("level without --weighting: A for the Pa channel, Z for the m/s^2 one, each line says so", async () => {
+    // 1 s of a 100 Hz tone of 1 rms in both channels; Leq per 0.1 s (ten whole periods).
+    const rows = ["cabin_mic [Pa],seat_rail [m/s^2]"];
+    for (let i = 0; i < 48000; i++) {
+      const v = String(Math.SQRT2 * Math.sin(2 * Math.PI * 100 * i / 48000));
+      rows.push(`${v},${v}`);
+    }
+    await writeFile(`${dir}/mic_and_rail.csv`, rows.join("\n") + "\n");
+    const args = [`${dir}/mic_and_rail.csv`, "--rate", "48000", "--time-weighting", "none"];
+    const r = runQuiver(["level", ...args, "--out", `${dir}/mic_and_rail_level.csv`]);
+    expect(r.code, r.stderr).toBe(0);
+    // 1 Pa rms is 93.98 dB re 20 µPa and A(100 Hz) = −19.1 dB (IEC 61672-1 Annex E);
+    // 1 m/s^2 rms is 120 dB re 1 µm/s^2 (ISO 1683).
+    const mic = (level(1) + iecA(100)).toFixed(1);
+    expect(r.stderr.trim().split("\n")).toEqual([
+      `cabin_mic [dB(A) re 20 µPa]: Leq ${mic}, Lmax ${mic}, Lmin ${mic}, L10 ${mic}, L50 ${mic}, L90 ${mic}; A-weighted: the default for a sound pressure in Pa`,
+      "seat_rail [dB re 1 µm/s^2]: Leq 120.0, Lmax 120.0, Lmin 120.0, L10 120.0, L50 120.0, L90 120.0; not frequency-weighted (Z): the default for a unit other than Pa",
+    ]);
+    const weighted = runQuiver(["level", ...args, "--weighting", "C", "--format", "json"]);
+    expect(weighted.code, weighted.stderr).toBe(0);
+    expect(weighted.stderr).toMatch(
+      /^seat_rail \[dB\(C\) re 1 µm\/s\^2\]: .*; C-weighted: --weighting C$/m,
+    );
+    expect(JSON.parse(weighted.stdout).metadata.weighting).toBe("C");
+  });
+
   test("level refuses A-weighting below the rate the digital filter needs", () => {
     const r = runQuiver(["level", `${dir}/cabin.csv`, "--rate", String(RATE)]);
     expect(r.code).toBe(2);

@@ -251,6 +251,23 @@ describe("power or amplitude from the unit (ISO 80000-3, IEC 60027-3:2002)", () 
       absolute: 0,
     }, "declared");
     expect(declared.summary.quantity_from).toBe("declared");
-    expect(declared.stderr).not.toMatch(/warning/);
+    expect(declared.stderr).not.toMatch(/--power/);
+    // What remains is the missing units' warning.
+    expect(declared.stderr.split("\n").filter((l) => /warning/.test(l))).toEqual([
+      'quiver compare: warning: neither the test "t_none.csv" (column "psd") nor the simulation "s_none.csv" (column "psd") states a unit: compared as they are, assumed to be the same quantity in the same unit (unchecked)',
+    ]);
+  });
+
+  test("one curve without a unit: a warning names its file and the unit assumed", async () => {
+    // common practice: a curve with no unit cannot be checked against the other's quantity.
+    const sim = await summaryOf("t_acc.csv", "s_none.csv");
+    expect(sim.stderr.split("\n").filter((l) => /warning/.test(l))).toEqual([
+      'quiver compare: warning: the simulation "s_none.csv" (column "psd") states no unit: assumed to be in the test\'s unit [m/s^2] (unchecked)',
+    ]);
+    expect(sim.summary.warnings).toHaveLength(1);
+    const test = await summaryOf("t_none.csv", "s_acc.csv");
+    expect(test.stderr.split("\n").filter((l) => /warning/.test(l))).toEqual([
+      'quiver compare: warning: the test "t_none.csv" (column "psd") states no unit: assumed to be in the simulation\'s unit [m/s^2] (unchecked)',
+    ]);
   });
 });

@@ -98,6 +98,30 @@ describe("signal-level warnings", () => {
       block: 256,
     });
     expect(warnings.join()).toMatch(/coherence of "acc" is below 0\.5/);
+    // The band's ends to 4 significant figures, not df = 1000/256 = 3.90625 Hz in full.
+    expect(warnings).toContain(
+      'coherence of "acc" is below 0.5 in 1 band(s) (3.906–500 Hz): the FRF is not to be trusted there',
+    );
+  });
+});
+
+describe("numbers in the warnings are rounded and carry the channel's unit", () => {
+  test("a DC offset: mean and standard deviation in the channel's unit", () => {
+    // Alternating 10.1 and 9.9: mean 10, standard deviation 0.1 (analytic).
+    const x = new Float64Array(1000).map((_, i) => (i % 2 === 0 ? 10.1 : 9.9));
+    expect(channelWarnings(channel(x))).toEqual([
+      'channel "acc" has a DC offset of 10 m/s^2, over 3 times its standard deviation (0.1 m/s^2)',
+    ]);
+  });
+
+  test("clipping: the rails to 4 significant figures", () => {
+    // A sine of amplitude 1 held at ±2/3 (an overdriven input); 2/3 prints as 0.6667.
+    const x = new Float64Array(20000).map((_, i) =>
+      Math.max(-2 / 3, Math.min(2 / 3, Math.sin(2 * Math.PI * i / 200)))
+    );
+    expect(channelWarnings(channel(x)).join()).toContain(
+      "sit at its extremes (-0.6667, 0.6667 m/s^2)",
+    );
   });
 });
 
