@@ -57,7 +57,7 @@ export async function loadPlan(path: string): Promise<{ plan: Plan; text: string
   try {
     text = await readFile(path, "utf8");
   } catch {
-    throw new QuiverError("cannot read the plan: no such file", { file: path }, "usage");
+    throw new QuiverError("cannot read the plan: no such file", { file: resolve(path) }, "usage");
   }
   let json: unknown;
   try {
