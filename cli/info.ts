@@ -181,7 +181,7 @@ async function csvInfo(
   const raw = columns.map((i) => header[i]);
   const transforms = setupTransforms(raw, setup ?? { channels: {} }, setupPath);
   const delimiterFrom = read.delimiter !== undefined && read.delimiter !== "auto"
-    ? "given (--delimiter)"
+    ? "given with --delimiter"
     : scan.delimiter === ","
     ? "the header holds no semicolon or tab"
     : `the header holds a ${DELIMITER_NAMES[scan.delimiter]}`;
@@ -192,7 +192,7 @@ async function csvInfo(
     ? {
       char: first,
       from: given
-        ? "given (--decimal)"
+        ? "given with --decimal"
         : scan.delimiter === ","
         ? "the comma delimiter"
         : "the first data row",
