@@ -194,11 +194,11 @@ async function csvInfo(
       from: given
         ? "given with --decimal"
         : scan.delimiter === ","
-        ? "the comma delimiter"
-        : "the first data row",
+        ? "implied by the comma delimiter"
+        : "found in the first data row",
     }
     : last !== undefined
-    ? { char: last, from: "the last data row (the first shows none)" }
+    ? { char: last, from: "found in the last data row; the first shows none" }
     : null;
   return {
     format: "csv",

@@ -33,7 +33,7 @@ describe("quiver info", () => {
         `file: ${shaker}`,
         "format: CSV",
         "delimiter: comma (the header holds no semicolon or tab)",
-        "decimal mark: point (the comma delimiter)",
+        "decimal mark: point (implied by the comma delimiter)",
         'time column: "time_s", column 1',
         "sample rate: 1024 Hz (from the time column)",
         "length: 4096 samples, 4 s",
@@ -131,13 +131,29 @@ describe("quiver info", () => {
     expect(r.code).toBe(0);
     const lines = r.stdout.split("\n");
     expect(lines).toContain("delimiter: semicolon (the header holds a semicolon)");
-    expect(lines).toContain("decimal mark: comma (the first data row)");
+    expect(lines).toContain("decimal mark: comma (found in the first data row)");
     expect(lines).toContain('time column: "Time" [s], column 2');
     // Four rows 2 ms apart: 500 Hz, 4 samples = 8 ms.
     expect(lines).toContain("sample rate: 500 Hz (from the time column)");
     expect(lines).toContain("length: 4 samples, 0.008 s");
     // ISO 80000-3: standard gravity 9.80665 m/s^2.
     expect(lines).toContain("  column 1: acc [g] -> acc [m/s^2] × 9.80665");
+  });
+
+  test("a decimal mark the first data row does not show is looked for in the last", async () => {
+    const dir = await tempDir();
+    const late = join(dir, "late.csv");
+    // The first row holds whole numbers only; a rule looking at it alone would find no mark.
+    await writeFile(late, "time;a [V]\n0;1\n0,5;2\n1;3,25\n");
+    const lines = runQuiver(["info", late]).stdout.split("\n");
+    expect(lines).toContain(
+      "decimal mark: comma (found in the last data row; the first shows none)",
+    );
+    const whole = join(dir, "whole.csv");
+    await writeFile(whole, "a [V];b [V]\n0;1\n2;3\n");
+    expect(runQuiver(["info", whole, "--rate", "2"]).stdout.split("\n")).toContain(
+      "decimal mark: none in the first and last data rows (whole numbers there)",
+    );
   });
 
   test("--time-column names a time column the automatic rule does not know", async () => {
