@@ -5,7 +5,12 @@
  */
 import { toStderr } from "./terminal.ts";
 import { z } from "npm:zod@4.6.7";
-import { BAND_METHODS, bandLevels } from "../lib/acoustics/band_analysis.ts";
+import {
+  BAND_METHODS,
+  bandLevels,
+  DEFAULT_BAND_RANGE_HZ,
+  DEFAULT_BLOCK_RULE,
+} from "../lib/acoustics/band_analysis.ts";
 import { BAND_FRACTIONS, type BandFraction } from "../lib/acoustics/bands.ts";
 import { WEIGHTINGS } from "../lib/acoustics/weighting.ts";
 import { integerOption, listOption, numberOption, parseCommandArgs, usageError } from "./args.ts";
@@ -43,16 +48,23 @@ const ANALYSIS = {
       "fft: from the averaged narrowband PSD, weighting per line\n(default; exact energy sums, any sample rate) |\nfilter: Butterworth filter bank with decimation, weighting\nat each mid-band frequency (for records too short for fft)",
   }),
   reference: option(positive(), { value: "P0", help: "level reference in the channel's unit" }),
-  "min-hz": option(positive(), { value: "F", help: "lowest mid-band frequency", default: "20" }),
+  "min-hz": option(positive(), {
+    value: "F",
+    help: "lowest band: the one holding F",
+    default: String(DEFAULT_BAND_RANGE_HZ[0]),
+  }),
   "max-hz": option(positive(), {
     value: "F",
-    help: "highest mid-band frequency",
-    default: "20000 or 0.45 x rate",
+    help:
+      "highest band: the one holding F, or the last wholly\nbelow half the rate (filter: 0.45 x rate)",
+    default: String(DEFAULT_BAND_RANGE_HZ[1]),
   }),
   block: option(integerOption(), {
     value: "N",
-    help: "narrowband block for fft, instead of --resolution",
-    default: "largest power of two within a quarter of the record",
+    // The rule's words wrapped after the lowest band, so the help keeps its width.
+    help: `narrowband block for fft, instead of --resolution\n(default: ${
+      DEFAULT_BLOCK_RULE.replace(" lines, ", " lines,\n")
+    })`,
   }),
   resolution: option(positive(), { value: "HZ", help: "narrowband line spacing for fft" }),
 };
@@ -97,9 +109,13 @@ export async function run(argv: readonly string[]): Promise<void> {
   );
   await writeResult(result.table, input, values);
   for (const w of result.warnings) toStderr(`quiver bands: warning: ${w}\n`);
+  const [first, last] = result.table.metadata.band_range_nominal_hz as number[];
+  toStderr(`quiver bands: bands ${first} Hz to ${last} Hz (nominal)\n`);
   for (const o of result.overall) {
     toStderr(
-      `${o.channel}: overall ${o.levelDb.toFixed(2)} ${o.unit} (energy sum of the bands)\n`,
+      Number.isFinite(o.levelDb)
+        ? `${o.channel}: overall ${o.levelDb.toFixed(2)} ${o.unit} (energy sum of the bands)\n`
+        : `${o.channel}: overall level not defined: the bands hold no power (a silent channel?)\n`,
     );
   }
 }

@@ -11,6 +11,7 @@ import process from "node:process";
 import { z } from "npm:zod@4.6.7";
 import { calibrateMicrophone } from "../lib/acoustics/calibration.ts";
 import { QuiverError } from "../lib/errors.ts";
+import { formatNumber } from "../lib/format_number.ts";
 import { writeFileAtomic } from "../lib/io/atomic_write.ts";
 import { type ChannelSetup, parseChannelSetup } from "../lib/io/channel_setup.ts";
 import { openRecordingStream } from "../lib/io/recording_stream.ts";
@@ -65,8 +66,12 @@ export const help = commandHelp({
 [V] or [mV], or a WAV channel with full_scale_volts in the set-up), reports
 the microphone sensitivity in mV/Pa, and writes it into the channel set-up.`,
   groups: [[undefined, TABLE]],
-  notes: `A calibrator at 94 dB (1 Pa rms) and 1 kHz is common practice. quiver's
-levels are for engineering comparison, not certified measurements.`,
+  notes: `A calibrator at 94 dB (1 Pa rms) and 1 kHz is common practice. Only the
+steady tone counts: 0.1 s frames more than 0.3 dB from the median frame level
+(a dropout, a level step) are left out with one frame either side, with a
+warning naming them; when more than 25 % of the frames are unsteady the
+calibration is refused and the set-up is not written. quiver's levels are
+for engineering comparison, not certified measurements.`,
 });
 
 /** zod schema of the options. */
@@ -145,8 +150,13 @@ export async function run(argv: readonly string[]): Promise<void> {
   const target = values.out ?? values.setup;
   if (target === undefined) process.stdout.write(json);
   else await writeFileAtomic(target, json);
+  for (const warning of result.warnings) {
+    toStderr(`quiver calibrate: warning: ${warning}\n`);
+  }
   toStderr(
-    `${values.channel}: ${result.toneRmsVolts.toPrecision(6)} V rms at ${result.toneHz} Hz for ` +
+    `${values.channel}: ${result.toneRmsVolts.toPrecision(6)} V rms at ${result.toneHz} Hz over ${
+      formatNumber(result.steadySeconds, 3)
+    } s of steady tone for ` +
       `${result.pressureRmsPa.toPrecision(6)} Pa rms -> sensitivity ${
         result.sensitivityMvPerPa.toPrecision(6)
       } mV/Pa` +

@@ -9,7 +9,7 @@ import { formatFixed } from "../lib/format_number.ts";
 import process from "node:process";
 import { z } from "npm:zod@4.6.7";
 import { FRF_FORMS } from "../lib/frf/forms.ts";
-import { DAMPING_METHODS, modalDamping } from "../lib/modal/damping_analysis.ts";
+import { DAMPING_METHODS, describeSkipped, modalDamping } from "../lib/modal/damping_analysis.ts";
 import { readFrfFile } from "../lib/modal/frf_input.ts";
 import { inFile, listOption, numberOption, parseCommandArgs, usageError } from "./args.ts";
 import { writeResult } from "./output.ts";
@@ -33,11 +33,11 @@ const ANALYSIS = {
   }),
   "min-hz": option(numberOption().pipe(z.number().min(0, "must be at least 0")), {
     value: "F",
-    help: "frequency range for peaks",
+    help: "frequency range of the candidates reported",
     default: "all",
     helpWith: "max-hz",
   }),
-  "max-hz": option(positive("Hz"), { value: "F", help: "highest frequency for peaks" }),
+  "max-hz": option(positive("Hz"), { value: "F", help: "highest frequency reported" }),
   method: option(z.enum(DAMPING_METHODS), {
     value: "M",
     help: `${
@@ -70,7 +70,7 @@ const ANALYSIS = {
   }),
   "target-hz": option(positive("Hz"), {
     value: "F",
-    help: "check that the first mode is at or above F Hz",
+    help: "check that the first mode (never a noise candidate)\nis at or above F Hz",
   }),
 };
 
@@ -100,9 +100,18 @@ or mag (linear) with optional phase_deg, or mag_db.`,
   notes: `CSV columns: channel, mode, frequency_hz, damping_ratio, q_factor, method,
 flags, half_power_frequency_hz, half_power_damping_ratio,
 lines_in_half_power_band, fit_frequency_hz, fit_damping_ratio,
-peak_coherence, window_correction. Empty cells mean "not estimated".
-Flags: few_lines, no_half_power, low_coherence, close_modes, disagree,
-poor_fit, magnitude_only, form_assumed, window_dominates (see README).`,
+peak_coherence, window_correction. An empty cell: not estimated, or
+dropped as implausible (flag implausible_damping); an empty mode: a
+candidate flagged noise.
+Every prominent peak is a candidate, the same with or without a range
+(which only chooses the rows). Coherence judges a candidate, never deletes
+it: one whose coherence is below 0.8 around it is flagged noise, has an
+empty mode cell and is never the mode --target-hz judges; a coherence dip
+confined to a peak with fewer than 3 lines in its half-power band is
+flagged resolution_bias and stays a mode.
+Flags: noise, resolution_bias, few_lines, no_half_power, low_coherence,
+close_modes, disagree, poor_fit, no_fit, implausible_damping,
+magnitude_only, form_assumed, window_dominates (see README).`,
 });
 
 /** zod schema of the options. */
@@ -128,6 +137,7 @@ export async function run(argv: readonly string[]): Promise<void> {
   await writeResult(result.table, input, values);
   for (const w of result.warnings) toStderr(`quiver damping: warning: ${w}\n`);
   for (const m of result.modes) {
+    if (m.mode === null) continue; // candidates flagged noise: one line per channel below
     toStderr(
       `${m.channel} mode ${m.mode}: ${m.frequencyHz.toFixed(3)} Hz, damping ${
         formatFixed(100 * m.dampingRatio, 3)
@@ -135,15 +145,25 @@ export async function run(argv: readonly string[]): Promise<void> {
         `(${m.method})${m.flags.length > 0 ? ` [${m.flags.join(", ")}]` : ""}\n`,
     );
   }
+  for (const channel of new Set(result.modes.map((m) => m.channel))) {
+    const noise = result.modes.filter((m) => m.channel === channel && m.mode === null);
+    if (noise.length === 0) continue;
+    toStderr(
+      `${channel}: ${noise.length} candidate(s) flagged noise, not modes: ${
+        noise.map((m) => formatFixed(m.frequencyHz, 3)).join(", ")
+      } Hz\n`,
+    );
+  }
   const t = result.target;
   if (t !== undefined) {
+    const skipped = t.skipped.length > 0 ? `; ${describeSkipped(t.skipped)}` : "";
     toStderr(
       t.firstModeHz === null
-        ? `target: first mode >= ${t.minimumHz} Hz: FAIL (no mode found)\n`
+        ? `target: first mode >= ${t.minimumHz} Hz: FAIL (no mode found${skipped})\n`
         : `target: first mode >= ${t.minimumHz} Hz: ${t.pass ? "PASS" : "FAIL"} ` +
-          `(${t.firstModeHz.toFixed(3)} Hz in ${t.channel}, margin ${t.marginHz!.toFixed(3)} Hz, ${
-            t.marginPercent!.toFixed(1)
-          } %)\n`,
+          `(${t.firstModeHz.toFixed(3)} Hz, mode ${t.mode} of ${t.channel}, margin ${
+            t.marginHz!.toFixed(3)
+          } Hz, ${t.marginPercent!.toFixed(1)} %${skipped})\n`,
     );
     if (!t.pass && values["require-targets"] === true) process.exitCode = TARGETS_NOT_MET_EXIT;
   }

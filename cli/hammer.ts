@@ -43,8 +43,14 @@ const CHANNELS = {
 const HITS = {
   trigger: option(positive("force units"), {
     value: "LEVEL",
-    help: "trigger level above the baseline, force units",
+    help: "trigger level above the local baseline, force units",
     default: "the larger of 5 % of the largest force and 5 noise sigma",
+  }),
+  baseline: option(positive("seconds"), {
+    value: "S",
+    help:
+      "block of the force's local baseline: the median of each\nblock, linear between blocks, so a drift does not move\nthe trigger",
+    default: "0.05",
   }),
   range: option(positive("force units"), {
     value: "FULL_SCALE",
@@ -163,6 +169,7 @@ export async function run(argv: readonly string[]): Promise<void> {
   for (const warning of result.warnings) {
     toStderr(`quiver hammer: warning: ${warning}\n`);
   }
+  toStderr(`trigger level ${result.triggerRule}\n`);
   toStderr(
     `${result.summary}; usable bandwidth ${
       formatNumber(result.usableBandwidth.limitHz, 6)

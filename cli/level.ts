@@ -53,7 +53,9 @@ export const help = commandHelp({
   about: `Frequency-weighted (digital filter) and time-weighted (IEC 61672-1: Fast
 0.125 s, Slow 1 s) level against time, in dB against the ISO 1683
 references, with the summary Leq, Lmax, Lmin, L10, L50, L90 on stderr and in
-the JSON metadata. A and C need a sample rate above 24.4 kHz.`,
+the JSON metadata. A and C need a sample rate above 24.4 kHz. Fast and Slow
+start from rest (IEC 61672-1); Lmax and Leq count from the first sample, Lmin
+and L10/L50/L90 from 5 time constants on (the meter settled).`,
   groups: [["Analysis", ANALYSIS], [RECORDING_HEADING, RECORDING_TABLE], ["Output", OUTPUT_TABLE]],
   notes: `Levels are for engineering comparison, not a certified sound level meter
 measurement; for noise exposure follow local regulations and use certified

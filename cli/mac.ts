@@ -37,7 +37,7 @@ const OUTPUTS = {
   "pairs-out": option(z.string().min(1), {
     value: "FILE",
     help:
-      "pairs CSV: test_mode, simulation_mode, test_hz, simulation_hz,\nshift_percent, mac (one row per paired test mode)",
+      "pairs CSV: test_mode, simulation_mode, test_hz, simulation_hz,\nshift_percent, mac, ambiguous, rival_simulation_mode,\nrival_test_mode, rival_mac (one row per paired test mode)",
   }),
 };
 
@@ -49,7 +49,10 @@ export const help = commandHelp({
   about: `The modal assurance criterion (Allemang & Brown 1982, complex-aware) of every
 test mode with every simulation mode over the degrees of freedom both sets
 have, and the pairing of test with simulation modes of greatest total MAC
-(one-to-one, Hungarian method), with each pair's frequency shift.
+(one-to-one, Hungarian method), with each pair's frequency shift. A pair is
+ambiguous when another mode on either side has a MAC with the pair's partner
+of at least 0.5 and no more than 0.05 below the pair's; it is flagged and
+warned of.
 
 Shapes files are tidy CSV: "mode, point, direction, re, im" (complex, as a
 modal fit writes them; an optional frequency_hz column) or "mode,
@@ -119,9 +122,26 @@ export async function run(argv: readonly string[]): Promise<void> {
       }\n`,
   );
   for (const p of correlation.pairs) {
+    const rival = p.rival === undefined
+      ? ""
+      : ` [ambiguous: ${p.rival.side} mode ${p.rival.mode} has MAC ${formatFixed(p.rival.mac, 3)}]`;
     toStderr(
       `  test ${p.testMode} ↔ simulation ${p.simulationMode}: MAC ${formatFixed(p.mac, 3)}` +
-        (p.shiftPercent !== undefined ? `, shift ${formatFixed(p.shiftPercent, 2)} %` : "") + "\n",
+        (p.shiftPercent !== undefined ? `, shift ${formatFixed(p.shiftPercent, 2)} %` : "") +
+        rival + "\n",
+    );
+  }
+  for (const p of correlation.pairs) {
+    if (p.rival === undefined) continue;
+    const other = p.rival.side === "simulation"
+      ? `simulation mode ${p.rival.mode} matches test mode ${p.testMode} almost as well`
+      : `test mode ${p.rival.mode} matches simulation mode ${p.simulationMode} almost as well`;
+    toStderr(
+      `quiver mac: warning: the pair test ${p.testMode} ↔ simulation ${p.simulationMode} (MAC ${
+        formatFixed(p.mac, 3)
+      }) is ambiguous: ${other} (MAC ${
+        formatFixed(p.rival.mac, 3)
+      }); more points or a check of the shapes would tell them apart\n`,
     );
   }
 }

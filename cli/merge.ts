@@ -25,6 +25,10 @@ quiver version, and that every result is still the file its shard wrote (size
 and SHA-256); a missing, unfinished or inconsistent shard is named and the
 merge writes nothing (exit code 1). A step that failed inside a shard is
 reported as in a run (exit code 1).
+
+The merge takes the folder's one lock: the lock the shards of this plan share
+(it waits for no shard: one still running is named), released when the merge
+has written the manifest; a failed merge leaves it for the shards.
 `;
 
 const TABLE = {};

@@ -10,7 +10,13 @@ import { formatFixed } from "../lib/format_number.ts";
 import { parseTextCsv } from "../lib/io/csv_text.ts";
 import { readFrfFile } from "../lib/modal/frf_input.ts";
 import { parseGeometry } from "../lib/modal/geometry.ts";
-import { type ModalDof, modalFit, modalTables } from "../lib/modal/modal_fit.ts";
+import {
+  largestModelOrder,
+  modalBand,
+  type ModalDof,
+  modalFit,
+  modalTables,
+} from "../lib/modal/modal_fit.ts";
 import { readFile } from "node:fs/promises";
 import { integerOption, numberOption, parseCommandArgs, usageError } from "./args.ts";
 import { commandHelp, libraryOptions, option, shapeOf, specOf } from "./option_table.ts";
@@ -35,7 +41,8 @@ const ANALYSIS = {
   "max-hz": option(positive("Hz"), { value: "F", help: "highest frequency of the fit" }),
   "max-order": option(integerOption(), {
     value: "N",
-    help: "highest model order (even); orders 2, 4, … N are fitted",
+    help:
+      "highest model order (even, at most 128 and at most the\nband's lines − 2); orders 2, 4, … N are fitted",
     default: "32",
   }),
   "modes-hz": option(positiveListOption("frequencies"), {
@@ -68,7 +75,7 @@ const OUTPUTS = {
   "stability-out": option(z.string().min(1), {
     value: "FILE",
     help:
-      "poles per order: order, frequency_hz, damping_ratio,\nstable_frequency, stable_damping, stable_shape",
+      "poles per order: order, frequency_hz, damping_ratio,\nstable_frequency, stable_damping, stable_shape, mode",
   }),
   "synth-out": option(z.string().min(1), {
     value: "FILE",
@@ -84,17 +91,22 @@ export const help = commandHelp({
   about: `Fits every FRF of the files (what quiver frf or quiver hammer wrote, or
 plain tables with re/im columns), all of one reference, with one set of
 poles: the least-squares complex frequency-domain method (LSCF, Guillaume et
-al. 2003) over model orders 2 … N, the poles that stay stable in frequency
-(1 %), damping (5 %) and shape (MAC 0.98) over the last 5 orders, then
-residues and shapes by least squares with upper and lower residuals.
+al. 2003) over model orders 2 … N. A pole is stable when frequency (1 %),
+damping (5 %) and shape (MAC 0.98) hold against the order before; stable
+poles are clustered across all orders, and a cluster stable at 5 or more
+orders and at more than half of the orders from its first to N is a mode
+(median frequency and damping). Residues and shapes by least squares with
+upper and lower residuals. A clear FRF peak no mode explains is warned of.
 
 Roving hammer: one file per hit point with the fixed accelerometer as
 response; by reciprocity each file is one point of the shape. The files'
 names then name the points (or give --dofs).`,
   groups: [["Analysis", ANALYSIS], ["Points", INPUTS], ["Output", OUTPUTS]],
   notes: `--out columns: mode, frequency_hz, damping_ratio, mpc (modal phase
-collinearity), flags (low_mpc below 0.9, form_assumed). Shapes are
-normalised so that their largest component is real and 1.`,
+collinearity), flags (low_mpc below 0.9, form_assumed, window_corrected,
+named, unstable), stable_orders, orders_spanned, frequency_spread and
+damping_spread (% of the median over the cluster). Shapes are normalised so
+that their largest component is real and 1.`,
 });
 
 /** zod schema of the options. */
@@ -161,15 +173,29 @@ export async function run(argv: readonly string[]): Promise<void> {
     ? parseGeometry(await readFile(values.geometry, "utf8"), { file: values.geometry })
     : undefined;
   const analysis = libraryOptions(ANALYSIS, values);
+  // Refuse an order the band cannot hold before any fitting.
+  const { from, to } = modalBand(axis, analysis);
+  const largest = largestModelOrder(to - from);
+  const maxOrder = values["max-order"] ?? 32;
+  if (maxOrder < 4 || maxOrder % 2 !== 0) {
+    usageError(`--max-order ${maxOrder}: the highest order must be even and at least 4`);
+  }
+  if (maxOrder > largest) {
+    usageError(
+      `--max-order ${maxOrder} is more than quiver fits on this band of ${
+        to - from
+      } lines: at most ${largest}`,
+    );
+  }
   const result = modalFit(axis, dofs, analysis);
   const tables = modalTables(result, {
     files: positionals,
     min_hz: result.frequencies[0],
     max_hz: result.frequencies[result.frequencies.length - 1],
-    max_order: values["max-order"] ?? 32,
+    max_order: maxOrder,
     selection: values["modes-hz"] !== undefined
       ? { modes_hz: values["modes-hz"] }
-      : "poles stable in frequency (1 %), damping (5 %) and shape (MAC 0.98) over the last 5 orders",
+      : "clusters of poles stable in frequency (1 %), damping (5 %) and shape (MAC 0.98) against the order before, stable at 5 or more orders and at more than half of the orders from the cluster's first to the highest; median frequency and damping",
     ...(geometry !== undefined ? { geometry } : {}),
   });
   await writeTable(tables.modes, resolveFormat(values.format, values.out), values.out);
@@ -191,7 +217,13 @@ export async function run(argv: readonly string[]): Promise<void> {
     toStderr(
       `  mode ${m.mode}: ${formatFixed(m.frequencyHz, 3)} Hz, damping ${
         formatFixed(100 * m.dampingRatio, 3)
-      } %, MPC ${formatFixed(m.mpc, 3)}${m.flags.length > 0 ? ` [${m.flags.join(", ")}]` : ""}\n`,
+      } %, MPC ${formatFixed(m.mpc, 3)}, stable at ${m.stableOrders} of ${m.ordersSpanned} orders${
+        m.stableOrders > 0
+          ? ` (spread ${formatFixed(m.frequencySpreadPercent, 2)} % in frequency, ${
+            formatFixed(m.dampingSpreadPercent, 1)
+          } % in damping)`
+          : ""
+      }${m.flags.length > 0 ? ` [${m.flags.join(", ")}]` : ""}\n`,
     );
   }
 }

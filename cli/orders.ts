@@ -18,6 +18,7 @@ import {
 import { OUTPUT_TABLE } from "./segment_options.ts";
 import { commandHelp, libraryOptions, option, shapeOf, specOf } from "./option_table.ts";
 import {
+  missingTeethWithTacho,
   oneSpeedSource,
   positiveListOption,
   pprWithTacho,
@@ -95,9 +96,11 @@ const TABLE = { ...SPEED_TABLE, ...ANALYSIS, ...RECORDING_TABLE, ...OUTPUTS };
 export const help = commandHelp({
   usage: "quiver orders IN (--tacho T --ppr N | --rpm-channel R) --channels a,b [options]",
   about: `Order tracking of a run-up or run-down. The shaft angle comes from tacho
-pulses (Schmitt trigger with automatic level and hysteresis, sub-sample
-edges, missing and extra pulses repaired, speed from a local fit) or from a
-channel that already holds rpm.`,
+pulses (Schmitt trigger whose level and hysteresis follow the pulses' own
+amplitude, sub-sample edges, missing and extra pulses repaired, a
+missing-tooth wheel's gap taken as the once-per-revolution mark, speed from a
+local fit) or from a channel that already holds rpm. Stretches without
+pulses and repairs are named in warnings.`,
   groups: [
     [SPEED_HEADING, SPEED_TABLE],
     ["Analysis", ANALYSIS],
@@ -111,7 +114,8 @@ channel that already holds rpm.`,
 /** zod schema of the options. */
 export const schema = z.strictObject(shapeOf(TABLE)).refine(oneSpeedSource, {
   message: "give --tacho (with --ppr) or --rpm-channel, one of them",
-}).refine(pprWithTacho, { message: "--tacho needs --ppr" });
+}).refine(pprWithTacho, { message: "--tacho needs --ppr" })
+  .refine(missingTeethWithTacho, { message: "--missing-teeth needs --tacho (a pulse wheel)" });
 
 /** parseArgs spec of the options. */
 export const options = specOf(TABLE);

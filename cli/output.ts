@@ -7,7 +7,13 @@ import process from "node:process";
 import { QuiverError } from "../lib/errors.ts";
 import { writeFileAtomic } from "../lib/io/atomic_write.ts";
 import { writeCsvPair } from "../lib/io/table_file.ts";
-import { type ColumnValues, formatCsv, formatJson, type Table } from "../lib/io/table.ts";
+import {
+  type ColumnValues,
+  formatCsv,
+  formatJson,
+  noteEmptyCells,
+  type Table,
+} from "../lib/io/table.ts";
 
 /** Output formats of table-writing commands. */
 export type TableFormat = "csv" | "json";
@@ -34,12 +40,15 @@ export function resolveFormat(
  * A CSV file gets a sidecar `<out>.meta.json` holding the metadata, the
  * column names and units and the CSV's hash, written as a pair (table_file.ts),
  * so that a CSV result stays traceable (JSON output carries its metadata inside).
+ * Cells that hold no finite number are listed in `metadata.empty_cells`.
  */
 export async function writeTable(
-  table: Table<ColumnValues>,
+  written: Table<ColumnValues>,
   format: TableFormat,
   out: string | undefined,
 ): Promise<void> {
+  // Values that are not finite are written empty (CSV) or null (JSON): the metadata says why.
+  const table = noteEmptyCells(written);
   const text = format === "json" ? formatJson(table) : formatCsv(table);
   if (out === undefined) {
     process.stdout.write(text);

@@ -4,6 +4,7 @@
  * @module
  */
 import { toStderr } from "./terminal.ts";
+import { existsSync } from "node:fs";
 import { resolve, sep } from "node:path";
 import { sha256Hex } from "../lib/io/table_file.ts";
 import { realPathOf } from "../lib/io/output_paths.ts";
@@ -13,7 +14,10 @@ import { readFile } from "node:fs/promises";
 import { join } from "node:path";
 import { z } from "npm:zod@4.6.7";
 import { QuiverError } from "../lib/errors.ts";
-import { loadPlan, type Manifest } from "../lib/plan/runner.ts";
+import { loadPlan, type Manifest, planSteps, writeRecordedReport } from "../lib/plan/runner.ts";
+import { acquireFolderLock } from "../lib/plan/folder_lock.ts";
+import { writeFileAtomic } from "../lib/io/atomic_write.ts";
+import { planCommandTable } from "./plan_commands.ts";
 import type { Plan } from "../lib/plan/schema.ts";
 import { evaluateTargets } from "../lib/plan/target_eval.ts";
 import { writeReport } from "../lib/report/html_report.ts";
@@ -46,8 +50,26 @@ export async function run(argv: readonly string[]): Promise<void> {
     usageError(`report takes one output folder, got ${positionals.length}`);
   }
   const [outDir] = positionals;
+  if (!existsSync(join(outDir, MANIFEST_FILE))) {
+    throw new QuiverError("no manifest.json here; run a plan first", { file: outDir }, "usage");
+  }
+  // The folder's one lock, as every run takes it: no run, shard or merge writes meanwhile.
+  const lock = await acquireFolderLock(outDir, { kind: "report" });
+  let path: string;
+  try {
+    path = await reportLocked(outDir);
+  } finally {
+    await lock.release();
+  }
+  toStderr(`report: ${path}\n`);
+}
+
+/** Checks the folder as `run` does, writes the report, and lists it and its figures. */
+async function reportLocked(outDir: string): Promise<string> {
   const manifest = await verifiedManifest(outDir);
   const plan = await unchangedPlan(manifest);
+  // Every path the report writes (its file, figures/) checked by the run's own check.
+  planSteps(plan, manifest.plan.path, outDir, await planCommandTable());
   // The verdicts shown are the ones the verified results give, never the manifest's own words.
   const failed = new Set(manifest.steps.filter((s) => s.status !== "ok").map((s) => s.id));
   const targets = await evaluateTargets(plan, outDir, failed);
@@ -57,11 +79,18 @@ export async function run(argv: readonly string[]): Promise<void> {
       { file: join(outDir, MANIFEST_FILE) },
     );
   }
-  const path = await writeReport(outDir, manifest, {
-    ...plan,
-    report: plan.report ?? { file: "report.html" },
-  });
-  toStderr(`report: ${path}\n`);
+  const written = await writeRecordedReport(
+    outDir,
+    () =>
+      writeReport(outDir, manifest, { ...plan, report: plan.report ?? { file: "report.html" } }),
+  );
+  // The next run's clean-up removes figures only from this list.
+  await writeFileAtomic(
+    join(outDir, MANIFEST_FILE),
+    JSON.stringify({ ...manifest, report: written.report, report_files: written.files }, null, 2) +
+      "\n",
+  );
+  return join(outDir, written.report);
 }
 
 /**
@@ -70,14 +99,20 @@ export async function run(argv: readonly string[]): Promise<void> {
  * file, other targets or other titles than the results were made under.
  */
 async function unchangedPlan(manifest: Manifest): Promise<Plan> {
-  const { plan, text } = await loadPlan(manifest.plan.path);
-  const bytes = new TextEncoder().encode(text);
+  let bytes: Uint8Array;
+  try {
+    bytes = await readFile(manifest.plan.path);
+  } catch {
+    throw new QuiverError("cannot read the plan the run read", { file: manifest.plan.path });
+  }
+  // Compared before the plan is read for its content: an edited plan is named as such.
   if (bytes.length !== manifest.plan.bytes || sha256Hex(bytes) !== manifest.plan.sha256) {
     throw new QuiverError(
       "the plan changed since the run (its hash differs from the manifest's), so no report is written: run the plan again",
       { file: manifest.plan.path },
     );
   }
+  const { plan } = await loadPlan(manifest.plan.path);
   return plan;
 }
 
@@ -109,9 +144,9 @@ async function verifiedManifest(outDir: string): Promise<Manifest> {
     );
   }
   const manifest = parsed.data;
-  if (manifest.status === "running") {
+  if (manifest.status === "running" || manifest.status === "aborted") {
     throw new QuiverError(
-      "the run that wrote this folder did not finish (its manifest still says running): run the plan again",
+      `the run that wrote this folder did not finish (its manifest says ${manifest.status}): run the plan again`,
       { file: outDir },
     );
   }

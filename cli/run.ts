@@ -56,8 +56,11 @@ writes starts with its id.
 
 --shard K/N runs only shard K of N (1-based) into DIR: steps that need each
 other stay together, groups are dealt by the size of their recordings. Each
-shard writes manifest.shard-K-of-N.json and its own results, takes its own
-lock, and leaves targets and the report to \`quiver merge DIR\`. --shard auto
+shard writes manifest.shard-K-of-N.json and its own results, and leaves
+targets and the report to \`quiver merge DIR\`. The shards of one campaign
+(the same plan, split the same N ways) share the folder's one lock, each with
+a lock of its own beside it; a whole run, or shards of another plan or N, are
+refused until the merge. --shard auto
 takes K and N from a Slurm job array (SLURM_ARRAY_TASK_ID, _MIN, _COUNT).
 
 --slurm-script N prints a bash script that submits the N shards as a Slurm

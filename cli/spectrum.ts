@@ -21,7 +21,7 @@ import {
 import { oneBlockChoice, OUTPUT_TABLE, SEGMENT_TABLE } from "./segment_options.ts";
 
 /** One-line summary for the command list. */
-export const summary = "averaged auto spectra (PSD, autopower, RMS or peak) of a recording";
+export const summary = "averaged autospectra (PSD, power spectrum, RMS or peak) of a recording";
 
 /** The options that feed the analysis. */
 const ANALYSIS = {

@@ -14,16 +14,25 @@ const positive = (what: string) =>
 /** The shaft-speed and rpm-step options. */
 export const SPEED_TABLE = {
   tacho: option(z.string().min(1), { value: "CH", help: "tacho pulse channel (analogue or TTL)" }),
-  ppr: option(integerOption(), { value: "N", help: "pulses per revolution (with --tacho)" }),
+  ppr: option(integerOption(), {
+    value: "N",
+    help:
+      "pulses per revolution (with --tacho); with --missing-teeth,\nthe tooth positions of the full wheel (60 for a 60-2 wheel)",
+  }),
+  "missing-teeth": option(integerOption().pipe(z.number().int().min(1, "must be 1 or more")), {
+    value: "M",
+    help:
+      "teeth missing from the wheel in one gap (2 for 60-2):\nthe gap marks each revolution and is never filled in",
+  }),
   "tacho-level": option(numberOption(), {
     value: "L",
-    help: "switching level",
-    default: "mid 2nd-98th percentile",
+    help: "fixed switching level",
+    default: "mid of the pulses' own envelope",
   }),
   "tacho-hysteresis": option(positive("channel units"), {
     value: "H",
-    help: "hysteresis width",
-    default: "20 % of that span",
+    help: "fixed hysteresis width",
+    default: "20 % of the envelope, at least 1 %\nof the 2nd-98th percentile span",
   }),
   "rpm-channel": option(z.string().min(1), {
     value: "CH",
@@ -64,3 +73,7 @@ export const oneSpeedSource = (v: SpeedValues): boolean =>
 /** --ppr comes with --tacho. */
 export const pprWithTacho = (v: SpeedValues): boolean =>
   v.tacho === undefined || v.ppr !== undefined;
+
+/** --missing-teeth comes with --tacho. */
+export const missingTeethWithTacho = (v: SpeedValues): boolean =>
+  v["missing-teeth"] === undefined || v.tacho !== undefined;

@@ -1,30 +1,37 @@
 /**
  * Text for the terminal. Channel names and other values from files reach
  * messages; a name holding escape codes must not recolour, move or clear
- * the user's terminal, so control characters are shown, not sent.
+ * the user's terminal, and a bidirectional control or zero-width character
+ * must not reorder or hide what is shown, so such characters are shown
+ * escaped, not sent (the same set that lib/io/names.ts refuses in names).
  *
  * @module
  */
 import process from "node:process";
 
 /**
- * `text` with every control character but line feed and tab written as a
- * visible escape (`\x1b`, `\u009b`).
+ * `text` with every control character but line feed and tab, and every
+ * bidirectional control and zero-width character, written as a visible
+ * escape (`\x1b`, `\u009b`, `\u202e`).
  *
  * @example
  * ```ts
  * import { printable } from "./terminal.ts";
  * if (printable("acc\x1b[31m\n") !== "acc\\x1b[31m\n") throw new Error();
+ * if (printable("a\u202eb\u200b") !== "a\\u202eb\\u200b") throw new Error();
  * ```
  */
 export function printable(text: string): string {
-  // deno-lint-ignore no-control-regex
-  return text.replace(/[\u0000-\u0008\u000b-\u001f\u007f-\u009f]/g, (c) => {
-    const code = c.charCodeAt(0);
-    return code < 0x80
-      ? `\\x${code.toString(16).padStart(2, "0")}`
-      : `\\u${code.toString(16).padStart(4, "0")}`;
-  });
+  return text.replace(
+    // deno-lint-ignore no-control-regex
+    /[\u0000-\u0008\u000b-\u001f\u007f-\u009f\u061c\u200b-\u200f\u2028-\u202e\u2060\u2066-\u2069\ufeff]/g,
+    (c) => {
+      const code = c.charCodeAt(0);
+      return code < 0x80
+        ? `\\x${code.toString(16).padStart(2, "0")}`
+        : `\\u${code.toString(16).padStart(4, "0")}`;
+    },
+  );
 }
 
 let prefix = "";

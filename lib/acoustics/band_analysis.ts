@@ -14,6 +14,13 @@
  *   Use it when the record is too short for the narrowband resolution the
  *   low bands need.
  *
+ * Range: the bands from the one holding `minHz` to the one holding `maxHz`
+ * (default 20 Hz to 20 kHz: the bands of those nominal labels, whose exact
+ * mid-band frequencies are 19.95 Hz and 19.95 kHz), up to the last whose
+ * upper edge lies below half the sample rate (for `filter`, below 0.45 of the
+ * rate); a band cut from a range the caller gave is warned about, and the
+ * metadata says which bands the rule kept.
+ *
  * Levels are for engineering comparison; quiver is not a certified sound
  * level meter.
  *
@@ -25,7 +32,7 @@ import type { Table, TableColumn } from "../io/table.ts";
 import { resolveBlock, type SpectralEstimate } from "../dsp/spectral_core.ts";
 import { spectralEstimateOf } from "../dsp/spectral_pipeline.ts";
 import { asStream, readChecked, type RecordingSource } from "../io/recording_stream.ts";
-import { type Band, type BandFraction, bandsInRange } from "./bands.ts";
+import { type Band, type BandFraction, bandsHolding } from "./bands.ts";
 import { bandPowersFromDensity } from "./band_synthesis.ts";
 import { FilterBankMeter, type FilterBankPowers } from "./filter_bank.ts";
 import { levelDb, levelReference, levelUnit } from "./levels.ts";
@@ -57,11 +64,17 @@ export interface BandLevelOptions {
   method?: BandMethod;
   /** Level reference (linear, channel unit); default from the unit (ISO 1683). */
   reference?: number;
-  /** Lowest mid-band frequency, Hz. Default 20 Hz. */
+  /** The lowest band is the one holding this frequency, Hz. Default {@linkcode DEFAULT_BAND_RANGE_HZ}[0]. */
   minHz?: number;
-  /** Highest mid-band frequency, Hz. Default: 20 kHz or the last band below 0.45·rate. */
+  /**
+   * The highest band is the one holding this frequency, Hz, or the last whose
+   * upper edge lies below half the sample rate. Default {@linkcode DEFAULT_BAND_RANGE_HZ}[1].
+   */
   maxHz?: number;
-  /** fft method: samples per block. Default: the largest power of two within a quarter of the record. */
+  /**
+   * fft method: samples per block. Default: the power of two that gives the
+   * lowest band {@linkcode MIN_LINES_PER_BAND} lines, at most a quarter of the record.
+   */
   block?: number;
   /** fft method: line spacing instead of a block. Default: none. */
   resolution?: number;
@@ -77,8 +90,37 @@ export interface BandLevelResult {
   readonly warnings: readonly string[];
 }
 
+/** The filter method's highest upper band edge, as a fraction of the rate (filter_bank.ts). */
+const FILTER_BANK_LIMIT = 0.45;
+
 /** Fewest lines a band should span in the fft method (common practice). */
 export const MIN_LINES_PER_BAND = 5;
+
+/**
+ * The default band range, Hz: the bands holding 20 Hz and 20 kHz (nominal
+ * labels; exact mid-band frequencies 19.95 Hz and 19.95 kHz), the range of
+ * hearing (common practice).
+ *
+ * @example
+ * ```ts
+ * import { DEFAULT_BAND_RANGE_HZ } from "./band_analysis.ts";
+ * if (DEFAULT_BAND_RANGE_HZ.join() !== "20,20000") throw new Error();
+ * ```
+ */
+export const DEFAULT_BAND_RANGE_HZ = [20, 20000] as const;
+
+/**
+ * The fft method's default block in words, for help texts: the rule of
+ * {@linkcode bandLevels}.
+ *
+ * @example
+ * ```ts
+ * import { DEFAULT_BLOCK_RULE } from "./band_analysis.ts";
+ * if (!DEFAULT_BLOCK_RULE.includes("5 lines")) throw new Error();
+ * ```
+ */
+export const DEFAULT_BLOCK_RULE =
+  `the power of two that gives the lowest band ${MIN_LINES_PER_BAND} lines, at most a quarter of the record`;
 
 /**
  * Band levels of the chosen channels.
@@ -168,28 +210,42 @@ function bandPlan(
   signalWarnings: string[],
 ): BandPlan {
   const fraction = options.fraction ?? 3;
-  const minHz = options.minHz ?? 20;
-  const candidates = bandsInRange(fraction, minHz, options.maxHz ?? Math.min(20000, 0.45 * rate));
-  const bands: Band[] = candidates.filter((b) => b.upperHz < 0.45 * rate);
+  const minHz = options.minHz ?? DEFAULT_BAND_RANGE_HZ[0];
+  const maxHz = options.maxHz ?? DEFAULT_BAND_RANGE_HZ[1];
+  const method = options.method ?? "fft";
+  // A band counts only when all of it lies below the limit; beyond, it would read part of a
+  // band. The fft method's lines reach Nyquist; the filter bank refuses bands reaching
+  // FILTER_BANK_LIMIT of the rate (filter_bank.ts).
+  const limit = method === "fft" ? rate / 2 : FILTER_BANK_LIMIT * rate;
+  const limitText = method === "fft"
+    ? `half the sample rate (${limit} Hz)`
+    : `${FILTER_BANK_LIMIT} of the sample rate (${limit} Hz, the filter bank's limit)`;
+  const candidates = bandsHolding(fraction, minHz, maxHz);
+  const bands: Band[] = candidates.filter((b) => b.upperHz < limit);
   if (bands.length === 0) {
-    throw new RangeError(`no band between ${minHz} Hz and the rate's limit of ${0.45 * rate} Hz`);
+    throw new RangeError(`no band from ${minHz} Hz lies wholly below ${limitText}`);
   }
   const warnings = [...signalWarnings];
-  if (bands.length < candidates.length) {
+  if (bands.length < candidates.length && options.maxHz !== undefined) {
     warnings.push(
-      `bands above ${
-        bands[bands.length - 1].nominalHz
-      } Hz are left out: they reach beyond 0.45 of the sample rate`,
+      `bands above ${bands[bands.length - 1].nominalHz} Hz are left out: ` +
+        `their upper edges reach beyond ${limitText}`,
     );
   }
+  const first = bands[0], last = bands[bands.length - 1];
   return {
     fraction,
     weighting: options.weighting ?? "Z",
-    method: options.method ?? "fft",
+    method,
     references: channels.map((c) => levelReference(c.unit, options.reference)),
     bands,
     warnings,
-    metadata: {},
+    metadata: {
+      // What the range rule chose: the bands holding min and max, cut at Nyquist.
+      band_range_nominal_hz: [first.nominalHz, last.nominalHz],
+      band_range_rule: `bands holding ${minHz} Hz to ${maxHz} Hz` +
+        (bands.length < candidates.length ? `, cut to upper edges below ${limitText}` : ""),
+    },
   };
 }
 

@@ -136,3 +136,52 @@ export function bandsInRange(b: BandFraction, minHz: number, maxHz: number): Ban
   for (let x = first; x <= last; x++) bands.push(band(x, b));
   return bands;
 }
+
+/**
+ * The band whose pass-band holds `hz`: the one whose exact mid-band
+ * frequency is nearest on a logarithmic scale (the edges are the geometric
+ * means of neighbouring mid-band frequencies). 20 Hz thus names the
+ * one-third octave of exact mid-band 19.95 Hz, nominally 20 Hz.
+ *
+ * @throws {RangeError} for a frequency that is not positive.
+ *
+ * @example
+ * ```ts
+ * import { bandHolding } from "./bands.ts";
+ * if (bandHolding(20, 3).nominalHz !== 20 || bandHolding(20, 3).centerHz > 20) throw new Error();
+ * ```
+ */
+export function bandHolding(hz: number, b: BandFraction): Band {
+  if (!(hz > 0) || !Number.isFinite(hz)) {
+    throw new RangeError(`a band's frequency must be positive, got ${hz} Hz`);
+  }
+  const exponent = Math.log(hz / 1000) / Math.log(OCTAVE_RATIO);
+  // Odd b: fₘ = 1000·G^(x/b); even b: fₘ = 1000·G^((2x + 1)/(2b)) (IEC 61260-1 formulas 2, 3).
+  const index = b % 2 === 1 ? Math.round(b * exponent) : Math.round((2 * b * exponent - 1) / 2);
+  return band(index, b);
+}
+
+/**
+ * The bands from the one holding `fromHz` to the one holding `toHz`
+ * ({@linkcode bandHolding}): a range named by frequencies such as 20 Hz and
+ * 20 kHz takes the bands of those nominal labels, although their exact
+ * mid-band frequencies (19.95 Hz, 19.95 kHz) lie just inside or outside.
+ *
+ * @throws {RangeError} for an empty or non-positive range.
+ *
+ * @example
+ * ```ts
+ * import { bandsHolding } from "./bands.ts";
+ * const thirds = bandsHolding(3, 20, 20000);
+ * if (thirds.length !== 31 || thirds[0].nominalHz !== 20 || thirds[30].nominalHz !== 20000) throw new Error();
+ * ```
+ */
+export function bandsHolding(b: BandFraction, fromHz: number, toHz: number): Band[] {
+  if (!(fromHz > 0) || !(toHz > fromHz)) {
+    throw new RangeError(`band range must satisfy 0 < min < max, got ${fromHz}–${toHz} Hz`);
+  }
+  const first = bandHolding(fromHz, b).index, last = bandHolding(toHz, b).index;
+  const bands: Band[] = [];
+  for (let x = first; x <= last; x++) bands.push(band(x, b));
+  return bands;
+}

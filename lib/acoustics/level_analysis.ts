@@ -5,6 +5,10 @@
  * 2·f₄ ≈ 24.4 kHz. Levels are for engineering comparison; quiver is not a
  * certified sound level meter.
  *
+ * Fast and Slow start from rest (IEC 61672-1); Lmax and Leq count from the
+ * first sample, Lmin and L10/L50/L90 once the meter has settled (5 time
+ * constants, see time_weighting.ts).
+ *
  * @module
  */
 import { channelIndices } from "../io/recording.ts";
@@ -15,9 +19,12 @@ import { levelDb, levelReference, levelUnit } from "./levels.ts";
 import {
   type LevelStatistics,
   levelStatistics,
+  SETTLING_TIME_CONSTANTS,
+  settlingSeconds,
   TimeWeightedMeter,
   type TimeWeighting,
 } from "./time_weighting.ts";
+import { minOf } from "../extent.ts";
 import { type Weighting, weightingFilter, weightingFilterLimitHz } from "./weighting.ts";
 
 /** Options of {@linkcode levelHistory}. */
@@ -86,7 +93,13 @@ export async function levelHistory(
 /** A weighting filter and a time-weighted meter for one channel. */
 interface ChannelMeter {
   push(x: Float64Array): void;
-  finish(): { readings: Float64Array; meanSquare: number; highest: number; lowest: number };
+  finish(): {
+    readings: Float64Array;
+    meanSquare: number;
+    highest: number;
+    lowest: number;
+    settledFrom: number;
+  };
 }
 
 function levelMeters(
@@ -120,19 +133,36 @@ function levelResult(
   const timeWeighting = options.timeWeighting ?? "fast";
   const step = Math.round((options.step ?? 0.1) * rate);
   const columns: TableColumn[] = [];
+  const settling = settlingSeconds(timeWeighting);
+  let unsettled = false;
   const summary = channels.map((c, i) => {
     const reference = levelReference(c.unit, options.reference);
-    const { readings, meanSquare, highest, lowest } = meters[i].finish();
+    const { readings, meanSquare, highest, lowest, settledFrom } = meters[i].finish();
     const levels = readings.map((m) => levelDb(m, reference));
     const unit = levelUnit(weighting, reference, c.unit);
     columns.push({ name: c.name, unit, values: levels });
-    const extremes = { lmax: levelDb(highest, reference), lmin: levelDb(lowest, reference) };
+    // Lmin and the exceedance levels from the settled part; a record too short to settle
+    // gives them from every reading, and says so.
+    const settled = settledFrom < levels.length && lowest < Infinity;
+    if (!settled) unsettled = true;
+    const counted = settled ? levels.subarray(settledFrom) : levels;
+    const extremes = {
+      lmax: levelDb(highest, reference),
+      lmin: settled ? levelDb(lowest, reference) : minOf(levels),
+    };
     return {
       channel: c.name,
       unit,
-      ...levelStatistics(levelDb(meanSquare, reference), levels, extremes),
+      ...levelStatistics(levelDb(meanSquare, reference), counted, extremes),
     };
   });
+  if (unsettled) {
+    warnings.push(
+      `the record is shorter than the meter's settling time of ${settling} s ` +
+        `(${SETTLING_TIME_CONSTANTS} time constants from rest): Lmin, L10, L50 and L90 ` +
+        `include the rise from rest and read low`,
+    );
+  }
   const count = columns[0]?.values.length ?? 0;
   const time = new Float64Array(count).map((_, j) => startTime + ((j + 1) * step) / rate);
   return {
@@ -145,6 +175,8 @@ function levelResult(
         weighting,
         time_weighting: timeWeighting,
         step_s: step / rate,
+        // Lmin and L10/L50/L90 count from here (Lmax and Leq from the first sample).
+        statistics_settling_s: settling,
         rate_hz: rate,
         weighting_filter_within_0_5_db_up_to_hz: weightingFilterLimitHz(weighting, rate),
         summary: summary.map((s) => ({

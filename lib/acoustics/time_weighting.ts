@@ -4,8 +4,18 @@
  * dy/dt = (x² − y)/τ, discretised exactly for a sampled step:
  * y[n] = y[n−1] + (1 − e^(−1/(τ·fs)))·(x²[n] − y[n−1]).
  *
- * The average starts from the mean square of the first τ seconds rather than
- * from zero, so the first readings are not an artefact of switching on.
+ * The average starts from rest (y = 0 before the first sample), as IEC
+ * 61672-1's exponential averaging does: a sound at the record's start reads
+ * as one that began there. A 20 ms burst at the start thus reads
+ * 10·lg(1 − e^(−0.02/0.125)) = −8.3 dB below its steady level with Fast,
+ * like the same burst anywhere else in the record.
+ *
+ * The rise from rest is no reading of the sound, so the lowest level and the
+ * exceedance levels count only once the meter has settled: after
+ * {@linkcode SETTLING_TIME_CONSTANTS} time constants (a steady sound then
+ * reads within 0.03 dB, 10·lg(1 − e^(−5))). The highest level counts from
+ * the first sample: starting from rest can only read low, never invent a
+ * maximum.
  *
  * @module
  */
@@ -29,6 +39,32 @@ export type TimeWeighting = typeof TIME_WEIGHTINGS[number];
 export const TIME_CONSTANTS_S: Readonly<Record<"fast" | "slow", number>> = { fast: 0.125, slow: 1 };
 
 /**
+ * Time constants after the start before the lowest level and the readings'
+ * statistics count (common practice: 5τ, within 0.03 dB of a steady level).
+ *
+ * @example
+ * ```ts
+ * import { SETTLING_TIME_CONSTANTS } from "./time_weighting.ts";
+ * if (10 * Math.log10(1 - Math.exp(-SETTLING_TIME_CONSTANTS)) < -0.03) throw new Error();
+ * ```
+ */
+export const SETTLING_TIME_CONSTANTS = 5;
+
+/**
+ * Seconds from the start before a meter of this weighting has settled
+ * (0 for `none`).
+ *
+ * @example
+ * ```ts
+ * import { settlingSeconds } from "./time_weighting.ts";
+ * if (settlingSeconds("fast") !== 0.625 || settlingSeconds("none") !== 0) throw new Error();
+ * ```
+ */
+export function settlingSeconds(weighting: TimeWeighting): number {
+  return weighting === "none" ? 0 : SETTLING_TIME_CONSTANTS * TIME_CONSTANTS_S[weighting];
+}
+
+/**
  * Narrows a user-supplied string to a {@linkcode TimeWeighting}.
  *
  * @example
@@ -44,8 +80,9 @@ export function parseTimeWeighting(name: string): TimeWeighting {
 /**
  * The time-weighted mean square of a signal fed in chunks, read at the end
  * of every `step` samples (for `none`: the mean square over each step), and
- * the mean square of the whole signal for Leq. Feeding the whole signal at
- * once or in chunks gives the same readings.
+ * the mean square of the whole signal for Leq. Fast and Slow start from
+ * rest. Feeding the whole signal at once or in chunks gives the same
+ * readings.
  *
  * @example
  * ```ts
@@ -55,15 +92,18 @@ export function parseTimeWeighting(name: string): TimeWeighting {
  * m.push(new Float64Array(100).fill(2));
  * const r = m.finish();
  * if (r.readings.length !== 2 || r.readings[1] !== 4 || r.meanSquare !== 4) throw new Error();
+ * // Fast from rest: one sample of 1 at 8 Hz reads 1 − e^(−1) (τ = 0.125 s).
+ * const f = new TimeWeightedMeter(8, "fast", 1);
+ * f.push(new Float64Array([1]));
+ * if (Math.abs(f.finish().highest - (1 - Math.exp(-1))) > 1e-12) throw new Error();
  * ```
  */
 export class TimeWeightedMeter {
   readonly #weighting: TimeWeighting;
   readonly #step: number;
   readonly #alpha: number;
-  readonly #warm: Float64Array;
-  #warmFilled = 0;
-  #started = false;
+  /** Samples before the meter has settled (see {@linkcode SETTLING_TIME_CONSTANTS}). */
+  readonly #settle: number;
   #y = 0;
   #n = 0;
   #stepSum = 0;
@@ -81,9 +121,10 @@ export class TimeWeightedMeter {
     }
     this.#weighting = weighting;
     this.#step = step;
-    const tau = weighting === "none" ? 0 : TIME_CONSTANTS_S[weighting];
-    this.#alpha = weighting === "none" ? 0 : 1 - Math.exp(-1 / (tau * rate));
-    this.#warm = new Float64Array(weighting === "none" ? 0 : Math.max(1, Math.round(tau * rate)));
+    this.#alpha = weighting === "none"
+      ? 0
+      : 1 - Math.exp(-1 / (TIME_CONSTANTS_S[weighting] * rate));
+    this.#settle = Math.ceil(settlingSeconds(weighting) * rate);
   }
 
   /** Adds the next samples. */
@@ -102,36 +143,17 @@ export class TimeWeightedMeter {
       }
       return;
     }
-    let i = 0;
-    if (!this.#started) {
-      const take = Math.min(x.length, this.#warm.length - this.#warmFilled);
-      this.#warm.set(x.subarray(0, take), this.#warmFilled);
-      this.#warmFilled += take;
-      i = take;
-      if (this.#warmFilled < this.#warm.length) return;
-      this.#start(this.#warm);
-    }
-    this.#run(x.subarray(i));
-  }
-
-  #start(first: Float64Array): void {
-    this.#started = true;
-    let y = 0;
-    for (let n = 0; n < first.length; n++) y += (first[n] * first[n]) / first.length;
-    this.#y = y;
-    this.#run(first);
-  }
-
-  #run(x: Float64Array): void {
     // The extremes are tracked at every sample, not at the readings: IEC 61672-1
     // defines Lmax as the maximum of the continuously time-weighted level.
     let y = this.#y;
     let highest = this.#highest, lowest = this.#lowest;
+    const settle = this.#settle;
     for (let i = 0; i < x.length; i++) {
       y += this.#alpha * (x[i] * x[i] - y);
       if (y > highest) highest = y;
-      if (y < lowest) lowest = y;
-      if (++this.#n % this.#step === 0) this.#readings.push(y);
+      const n = ++this.#n;
+      if (n > settle && y < lowest) lowest = y;
+      if (n % this.#step === 0) this.#readings.push(y);
     }
     this.#y = y;
     this.#highest = highest;
@@ -139,9 +161,12 @@ export class TimeWeightedMeter {
   }
 
   /**
-   * The readings, the mean square of everything pushed, and the highest and
-   * lowest time-weighted mean square (for Fast and Slow at every sample; for
-   * `none` over the step readings).
+   * The readings, the mean square of everything pushed, the highest
+   * time-weighted mean square (for Fast and Slow at every sample; for `none`
+   * over the step readings), and the lowest once settled; `settledFrom` is
+   * the first reading taken after the meter settled (the readings' length
+   * when the record is shorter than the settling time, and `lowest` then
+   * Infinity).
    */
   finish(): {
     readings: Float64Array;
@@ -149,18 +174,21 @@ export class TimeWeightedMeter {
     samples: number;
     highest: number;
     lowest: number;
+    settledFrom: number;
   } {
-    // A record shorter than the warm-up window warms up on what there is.
-    if (this.#weighting !== "none" && !this.#started && this.#warmFilled > 0) {
-      this.#start(this.#warm.subarray(0, this.#warmFilled));
-    }
     const samples = this.#n;
+    // Reading j is taken at sample (j + 1)·step; it counts once that exceeds the settling samples.
+    const settledFrom = Math.min(
+      this.#readings.length,
+      Math.max(0, Math.floor(this.#settle / this.#step)),
+    );
     return {
       readings: new Float64Array(this.#readings),
       meanSquare: this.#total / samples,
       samples,
       highest: this.#highest,
       lowest: this.#lowest,
+      settledFrom,
     };
   }
 }

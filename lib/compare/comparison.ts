@@ -227,7 +227,7 @@ function resolveQuantity(
       quantity: both({ quantity: "amplitude", source: "default" }),
       from: "default",
       warnings: [
-        "neither curve's metadata nor its unit says whether it is a power quantity (PSD, autopower: dB = 10·lg) or an amplitude (FRF, RMS: dB = 20·lg); taken as amplitudes: declare power quantities with --power",
+        "neither curve's metadata nor its unit says whether it is a power quantity (PSD, power spectrum: dB = 10·lg) or an amplitude (FRF, RMS: dB = 20·lg); taken as amplitudes: declare power quantities with --power",
       ],
     };
   }

@@ -12,7 +12,7 @@
  *
  * Decibels: a column whose name ends in `_db` (or is `db`) or whose unit
  * starts with "dB" holds levels. Whether a curve is a power quantity (PSD,
- * autopower, band power: dB = 10·log10) or a root-power quantity (an
+ * power spectrum, band power: dB = 10·log10) or a root-power quantity (an
  * amplitude: FRF, RMS, peak: dB = 20·log10; ISO 80000-3,
  * IEC 60027-3:2002) comes, in this order, from the caller (`quantity`), the
  * table's metadata (a quiver spectrum's `kind` psd or power; an FRF), or the

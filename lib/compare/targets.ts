@@ -39,6 +39,8 @@ export interface TargetResult {
   readonly atNominalHz?: number;
   /** Every line or band that fails, in order (curves). */
   readonly failing?: readonly CurveFailure[];
+  /** What the value was taken from, when it was chosen among several (e.g. which mode). */
+  readonly basis?: string;
 }
 
 /** One line or band of a curve outside its limit. */
@@ -78,13 +80,24 @@ export function checkValue(target: {
   limit: number;
   /** Unit of value and limit. */
   unit: string;
+  /** What the value was taken from, in words. Default: none. */
+  basis?: string;
 }): TargetResult {
-  const { id, description, value, kind, limit, unit } = target;
+  const { id, description, value, kind, limit, unit, basis } = target;
   if (!Number.isFinite(value)) {
     throw new RangeError(`the value of "${id}" is ${value}, not a finite number: not checked`);
   }
   const margin = kind === "min" ? value - limit : limit - value;
-  return { id, description, pass: margin >= 0, margin, unit, value, limit };
+  return {
+    id,
+    description,
+    pass: margin >= 0,
+    margin,
+    unit,
+    value,
+    limit,
+    ...(basis !== undefined ? { basis } : {}),
+  };
 }
 
 /**

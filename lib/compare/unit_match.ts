@@ -22,7 +22,8 @@ import { QuiverError } from "../errors.ts";
 import { baseUnit } from "../io/units.ts";
 import type { Curve } from "./curve_input.ts";
 
-const MOTION_ORDER: Readonly<Record<string, number>> = { m: 0, "m/s": 1, "m/s^2": 2 };
+// A Map: unit text comes from files, and "constructor" must not find Object's prototype.
+const MOTION_ORDER: ReadonlyMap<string, number> = new Map([["m", 0], ["m/s", 1], ["m/s^2", 2]]);
 
 interface UnitParts {
   /** Base unit of the numerator and the factor to it. */
@@ -141,7 +142,7 @@ export function matchUnits(test: Curve, simulation: Curve): {
   if (t.numerator === s.numerator) {
     return { test: testInBase, simulation: converted(simulation, factor, 0, unitText(t)) };
   }
-  const pt = MOTION_ORDER[t.numerator], ps = MOTION_ORDER[s.numerator];
+  const pt = MOTION_ORDER.get(t.numerator), ps = MOTION_ORDER.get(s.numerator);
   if (pt === undefined || ps === undefined || test.quantity === "power") {
     return refuse(test, simulation);
   }

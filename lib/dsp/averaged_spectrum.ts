@@ -4,6 +4,8 @@
  *
  * @module
  */
+import { QuiverError } from "../errors.ts";
+import { formatNumber } from "../format_number.ts";
 import { channelIndices } from "../io/recording.ts";
 import type { Table, TableColumn } from "../io/table.ts";
 import { asStream, type RecordingSource } from "../io/recording_stream.ts";
@@ -36,7 +38,8 @@ export interface AveragedSpectrumOptions extends Omit<SpectralOptions, "rate" | 
  * needed to reproduce the numbers.
  *
  * @throws {RangeError} for impossible options; {@linkcode QuiverError} when
- * the record is shorter than one block or a channel is unknown.
+ * the record is shorter than one block, a channel is unknown, or a
+ * channel's spectrum overflows (see {@linkcode checkAutoSpectra}).
  *
  * @example
  * ```ts
@@ -85,6 +88,7 @@ function spectrumTable(
     warnings: string[];
   },
 ): Table {
+  checkAutoSpectra(estimate, channels);
   const kind = options.kind ?? "psd";
   const gains = windowGains(windowSamples(estimate.window, estimate.block));
   const columns: TableColumn[] = [
@@ -125,4 +129,40 @@ function spectrumTable(
       })),
     },
   };
+}
+
+/**
+ * Refuses auto spectra that are not finite. The readers accept only finite
+ * samples, so a spectrum that is not finite means the sums of squares
+ * overflowed: a sample near 1e308 squared exceeds the largest double, about
+ * 1.8e308 (IEEE 754-2019 §7.4, overflow to infinity).
+ *
+ * @throws {QuiverError} (data) naming the channel and the first line.
+ *
+ * @example
+ * ```ts
+ * import { checkAutoSpectra } from "./averaged_spectrum.ts";
+ * const f = new Float64Array([0, 1]);
+ * checkAutoSpectra({ frequencies: f, auto: [new Float64Array([1, 2])] }, [{ name: "a" }]);
+ * let refused = false;
+ * try { checkAutoSpectra({ frequencies: f, auto: [new Float64Array([1, Infinity])] }, [{ name: "a" }]); }
+ * catch (e) { refused = String(e).includes('"a"'); }
+ * if (!refused) throw new Error();
+ * ```
+ */
+export function checkAutoSpectra(
+  estimate: Pick<SpectralEstimate, "frequencies" | "auto">,
+  channels: readonly { name: string }[],
+): void {
+  channels.forEach((channel, i) => {
+    const auto = estimate.auto[i];
+    for (let k = 0; k < auto.length; k++) {
+      if (auto[k] - auto[k] === 0) continue;
+      throw new QuiverError(
+        `channel "${channel.name}": the spectrum overflows (${auto[k]} at ${
+          formatNumber(estimate.frequencies[k], 6)
+        } Hz): its samples are too large for their squares to be summed in double precision (largest double about 1.8e308, IEEE 754); check the data or give them in a larger unit`,
+      );
+    }
+  });
 }

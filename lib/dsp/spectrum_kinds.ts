@@ -5,7 +5,7 @@
  * | kind    | value per line                              | unit          |
  * |---------|---------------------------------------------|---------------|
  * | `psd`   | G(f)                                        | unit²/Hz      |
- * | `power` | G(f)·ENBW (autopower, mean square per line) | unit²         |
+ * | `power` | G(f)·ENBW (power spectrum, mean square per line) | unit²         |
  * | `rms`   | √power                                      | unit (RMS)    |
  * | `peak`  | √(2·power), √power at DC and Nyquist        | unit (peak)   |
  *

@@ -18,6 +18,7 @@ import type { DetrendMode } from "../dsp/detrend.ts";
 import type { WindowName } from "../dsp/windows.ts";
 import { asStream, type RecordingSource, type RecordingStream } from "../io/recording_stream.ts";
 import { spectralEstimateOf } from "../dsp/spectral_pipeline.ts";
+import { checkAutoSpectra } from "../dsp/averaged_spectrum.ts";
 import { coherence, type Estimator, frfEstimate } from "./estimators.ts";
 import {
   convertFrfForm,
@@ -216,7 +217,8 @@ export const SINGLE_AVERAGE_WARNING =
  * random error.
  *
  * @throws {QuiverError} for unknown channels, a record shorter than one
- * block, or an impossible form conversion; RangeError for bad options.
+ * block, an impossible form conversion, a spectrum that overflows or an
+ * input channel that is dead (all zero); RangeError for bad options.
  *
  * @example
  * ```ts
@@ -315,6 +317,13 @@ function frfResult(
   },
 ): FrfResult {
   const [input, ...outputs] = channels;
+  // Finite results or a refusal: overflowed spectra, or an input with no power at all.
+  checkAutoSpectra(estimate, channels);
+  if (estimate.auto[0].every((v) => v === 0)) {
+    throw new QuiverError(
+      `input channel "${input.name}" is dead: its spectrum is zero at every line, so no FRF can be formed (every H would be 0/0); check the force channel and its cable`,
+    );
+  }
   const estimator = options.estimator ?? "h1";
   const parts = frfTableParts(estimate, { input, outputs, estimator, form: options.form });
   const warnings = [

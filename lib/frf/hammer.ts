@@ -24,7 +24,8 @@ import { SpectralAccumulator } from "../dsp/spectral_core.ts";
 import type { FrfForm } from "./forms.ts";
 import { frfTableParts, SINGLE_AVERAGE_WARNING } from "./frf_analysis.ts";
 import type { FrfData } from "./frf_data.ts";
-import { findHits, type Hit } from "./hits.ts";
+import { findHits, type Hit, NOISE_SIGMAS } from "./hits.ts";
+import { formatNumber } from "../format_number.ts";
 
 /** Options of {@linkcode hammerFrf}. */
 export interface HammerOptions {
@@ -32,8 +33,14 @@ export interface HammerOptions {
   force: string;
   /** Response channels. Required, at least one. */
   outputs: readonly string[];
-  /** Trigger level above the baseline in the force's unit. Default: derived (see hits.ts). */
+  /** Trigger level above the local baseline in the force's unit. Default: derived (see hits.ts). */
   trigger?: number;
+  /**
+   * Block length of the force's local baseline in seconds (the median of
+   * each block, linear between blocks; see hits.ts). Default
+   * {@linkcode DEFAULT_BASELINE_S}.
+   */
+  baseline?: number;
   /** Pre-trigger in seconds. Default 0.01 s. */
   pretrigger?: number;
   /** Record length in seconds. Default: derived from the hit spacing (see hits.ts). */
@@ -64,6 +71,8 @@ export interface HammerResult {
   readonly warnings: readonly string[];
   /** One line such as "6 hits: 4 accepted, 1 double, 1 overload". */
   readonly summary: string;
+  /** How the trigger level was chosen, in words. */
+  readonly triggerRule: string;
   /** Where the force autospectrum has fallen {@linkcode USABLE_DROP_DB} below its low-frequency level. */
   readonly usableBandwidth: UsableBandwidth;
   /** Every hit's record (force and first response, as seen before windowing), for a quality plot. */
@@ -118,16 +127,27 @@ export function usableBandwidth(frequencies: Float64Array, gff: Float64Array): U
   return { limitHz: frequencies[lines - 1], referenceLevel, reached: false };
 }
 
+/**
+ * Default block of the local baseline, seconds: long against a hammer pulse
+ * (0.2 to 5 ms, common practice), short against a drift.
+ */
+export const DEFAULT_BASELINE_S = 0.05;
+
 /** Samples at most kept per hit record for the quality plot (min/max pairs beyond). */
 const RECORD_POINTS = 800;
 
-/** "6 hits: 4 accepted, 1 double, 1 overload". */
-function summarise(hits: readonly Hit[]): string {
+/**
+ * "6 hits: 4 accepted, 1 double, 1 overload", and "; 2 pulses below the
+ * trigger" when pulses rose above the noise but not to the trigger.
+ */
+function summarise(hits: readonly Hit[], below: number): string {
   const counts = (["accepted", "double", "overload", "short"] as const)
     .map((status) => [status, hits.filter((h) => h.status === status).length] as const)
     .filter(([, count]) => count > 0)
     .map(([status, count]) => `${count} ${status}`);
-  return `${hits.length} hit${hits.length === 1 ? "" : "s"}: ${counts.join(", ")}`;
+  return `${hits.length} hit${hits.length === 1 ? "" : "s"}: ${counts.join(", ")}${
+    below > 0 ? `; ${below} pulse${below === 1 ? "" : "s"} below the trigger` : ""
+  }`;
 }
 
 /** Half-cosine-tapered force window of `length` samples in a record of `size`. */
@@ -186,6 +206,7 @@ export async function hammerFrf(
       ],
       ["exponential time constant", options.expTau],
       ["trigger", options.trigger],
+      ["baseline", options.baseline],
       ["range", options.range],
     ] as const
   ) {
@@ -230,13 +251,14 @@ function analyseHits(
     ...(options.record !== undefined ? { recordSamples: Math.round(options.record * rate) } : {}),
     ...(options.trigger !== undefined ? { trigger: options.trigger } : {}),
     ...(options.range !== undefined ? { range: options.range } : {}),
+    baselineSamples: Math.max(16, Math.round((options.baseline ?? DEFAULT_BASELINE_S) * rate)),
   });
   const { hits, recordSamples } = detection;
   if (pretriggerSamples >= recordSamples) {
     throw new RangeError("the pre-trigger must be shorter than the record");
   }
   const accepted = hits.filter((h) => h.status === "accepted");
-  const summary = summarise(hits);
+  const summary = summarise(hits, detection.belowTrigger.count);
   if (accepted.length === 0) {
     throw new QuiverError(`no accepted hit to average (${summary})`);
   }
@@ -295,6 +317,17 @@ function analyseHits(
       } Hz: the hammer excites the whole band (or the force channel is noise)`,
     ]),
     ...channelInfo.signalWarnings,
+    ...(detection.belowTrigger.count > 0
+      ? [
+        `${detection.belowTrigger.count} pulse(s) on "${force.name}" rose above ${NOISE_SIGMAS} noise sigma (${
+          formatNumber(NOISE_SIGMAS * detection.noiseSigma, 3)
+        } ${force.unit}) but not to the trigger of ${
+          formatNumber(detection.trigger, 3)
+        } ${force.unit} (the largest ${
+          formatNumber(detection.belowTrigger.largest, 3)
+        } ${force.unit}): not counted as hits; lower the trigger to include them`,
+      ]
+      : []),
     ...hits.filter((h) => h.status !== "accepted").map((h) =>
       `hit ${h.hit} at ${
         (startTime + h.sample / rate).toFixed(4)
@@ -326,7 +359,12 @@ function analyseHits(
       hits_summary: summary,
       hits_accepted: accepted.map((h) => h.hit),
       trigger_level: detection.trigger,
+      trigger_rule: detection.triggerRule,
       force_baseline: detection.baseline,
+      force_baseline_range: detection.baselineRange,
+      force_baseline_block_s: detection.baselineSamples / rate,
+      force_noise_sigma: detection.noiseSigma,
+      pulses_below_trigger: detection.belowTrigger.count,
       pretrigger_s: pretriggerSamples / rate,
       record_s: recordSamples / rate,
       force_window_s: forceWindowLength / rate,
@@ -355,7 +393,17 @@ function analyseHits(
     force,
     response: outputs[0],
   });
-  return { frf, table, hitLog, hits, warnings, summary, usableBandwidth: usable, hitRecords };
+  return {
+    frf,
+    table,
+    hitLog,
+    hits,
+    warnings,
+    summary,
+    triggerRule: detection.triggerRule,
+    usableBandwidth: usable,
+    hitRecords,
+  };
 }
 
 /**

@@ -20,12 +20,21 @@
  *   CSV header unit `V` or `mV` (or `input_unit`), or WAV with
  *   `full_scale_volts`. Engineering value = volts·1000/sensitivity.
  * - `input_unit`: `V` or `mV`, for a CSV column whose header has no unit.
- * - `full_scale_volts`: WAV only, the voltage at digital full scale.
+ * - `full_scale_volts`: for WAV, the voltage at digital full scale; for a
+ *   CSV column in volts, the converter's input range ±V (its rails, against
+ *   which clipping is judged: signal_checks.ts).
  * - `role`: `force`, `response`, `microphone`, `tacho` or `other`.
  * - `description`: free text (e.g. sensor position).
  *
  * Unknown fields, unknown channels, and a unit that contradicts the file's
- * own header are errors, never silently ignored. Every channel's unit, with
+ * own header are errors, never silently ignored. A sensitivity must lie in
+ * {@linkcode SENSITIVITY_RANGE_MV_PER_UNIT} and a full scale in
+ * {@linkcode FULL_SCALE_RANGE_VOLTS}: zero, negative, non-finite or absurd
+ * values are refused naming the channel and the value (they would turn the
+ * data into Infinity or NaN). Channel names (keys and `name`) may not hold
+ * control, bidirectional or zero-width characters (names.ts); a key is
+ * looked up as the set-up's own entry only, so a channel called
+ * `constructor` or `__proto__` is a name like any other. Every channel's unit, with
  * or without a set-up, ends in its SI base unit when quiver knows it
  * (units.ts): a column in [g] is read in m/s^2, one in [mm/s] in m/s.
  *
@@ -33,9 +42,43 @@
  */
 import { z } from "npm:zod@4.6.7";
 import { QuiverError } from "../errors.ts";
-import { type Channel, CHANNEL_ROLES, type ChannelRole, type Recording } from "./recording.ts";
+import {
+  type Channel,
+  CHANNEL_ROLES,
+  type ChannelRole,
+  type ConverterScale,
+  type Recording,
+} from "./recording.ts";
 import { FULL_SCALE_UNIT } from "./wav.ts";
 import { baseUnit, sameQuantity } from "./units.ts";
+import { checkName } from "./names.ts";
+
+/**
+ * Sensitivities accepted, in mV per engineering unit: 1e-6 … 1e6. Real
+ * transducers lie well inside (about 0.01 mV/N for a large force cell to
+ * 10 000 mV/g for a seismic accelerometer, from memory); the range is wide
+ * so that any unit prefix fits, and narrow enough that volts·1000/sensitivity
+ * can neither overflow nor vanish.
+ *
+ * @example
+ * ```ts
+ * import { SENSITIVITY_RANGE_MV_PER_UNIT } from "./channel_setup.ts";
+ * if (SENSITIVITY_RANGE_MV_PER_UNIT[0] !== 1e-6 || SENSITIVITY_RANGE_MV_PER_UNIT[1] !== 1e6) throw new Error();
+ * ```
+ */
+export const SENSITIVITY_RANGE_MV_PER_UNIT: readonly [number, number] = [1e-6, 1e6];
+
+/**
+ * Full-scale voltages accepted for WAV channels, in V: 1e-6 … 1e4 (acquisition
+ * ranges run from millivolts to some hundred volts, common practice).
+ *
+ * @example
+ * ```ts
+ * import { FULL_SCALE_RANGE_VOLTS } from "./channel_setup.ts";
+ * if (FULL_SCALE_RANGE_VOLTS[1] !== 1e4) throw new Error();
+ * ```
+ */
+export const FULL_SCALE_RANGE_VOLTS: readonly [number, number] = [1e-6, 1e4];
 
 const channelEntrySchema = z.strictObject({
   name: z.string().trim().min(1).optional(),
@@ -87,6 +130,7 @@ export function parseChannelSetup(text: string, file?: string): ChannelSetup {
     const location = position === null ? { file } : lineAndColumn(text, Number(position[1]), file);
     throw new QuiverError(`not valid JSON: ${message}`, location);
   }
+  checkRawChannels(json, file);
   const result = channelSetupSchema.safeParse(json);
   if (!result.success) {
     const issue = result.error.issues[0];
@@ -96,7 +140,50 @@ export function parseChannelSetup(text: string, file?: string): ChannelSetup {
       { file },
     );
   }
-  return result.data;
+  // Own entries only, in an object without a prototype (zod drops a "__proto__" key).
+  const channels: ChannelSetup["channels"] = Object.create(null);
+  const raw = (json as { channels: Record<string, unknown> }).channels;
+  for (const key of Object.keys(raw)) {
+    const entry = channelEntrySchema.safeParse(raw[key]);
+    if (!entry.success) {
+      throw new QuiverError(
+        `channel set-up field channels.${key}: ${entry.error.issues[0].message}`,
+        { file },
+      );
+    }
+    Object.defineProperty(channels, key, { value: entry.data, enumerable: true, writable: true });
+  }
+  return { ...result.data, channels };
+}
+
+/** Names and numbers of the raw entries, checked before the schema so the message names both. */
+function checkRawChannels(json: unknown, file?: string): void {
+  if (typeof json !== "object" || json === null || !("channels" in json)) return;
+  const channels = json.channels;
+  if (typeof channels !== "object" || channels === null) return;
+  for (const [key, entry] of Object.entries(channels)) {
+    checkName(key, `set-up channel "${key}"`, { file });
+    if (typeof entry !== "object" || entry === null) continue;
+    const fields = entry as Record<string, unknown>;
+    if (Object.hasOwn(fields, "name") && typeof fields.name === "string") {
+      checkName(fields.name, `set-up channel "${key}": new name`, { file });
+    }
+    const ranges = [
+      ["sensitivity_mv_per_unit", SENSITIVITY_RANGE_MV_PER_UNIT, "mV per unit"],
+      ["full_scale_volts", FULL_SCALE_RANGE_VOLTS, "V"],
+    ] as const;
+    for (const [field, [low, high], unit] of ranges) {
+      if (!Object.hasOwn(fields, field)) continue;
+      const value = fields[field];
+      if (typeof value !== "number") continue; // the schema names the wrong type
+      if (!(value >= low && value <= high)) {
+        throw new QuiverError(
+          `set-up channel "${key}": ${field} ${value} is out of range; quiver accepts ${low} … ${high} ${unit} (zero, negative, non-finite or absurd values would make the data Infinity or NaN)`,
+          { file },
+        );
+      }
+    }
+  }
 }
 
 function lineAndColumn(text: string, position: number, file?: string) {
@@ -110,6 +197,8 @@ export interface ChannelTransform {
   readonly unit: string;
   readonly role?: ChannelRole;
   readonly factor: number;
+  /** The converter's rails in the new unit, when the set-up gives a CSV column's range. */
+  readonly fullScale?: ConverterScale;
 }
 
 /**
@@ -134,6 +223,8 @@ export function setupTransforms(
     throw new QuiverError(detail, { file });
   };
   const known = new Set(channels.map((c) => c.name));
+  const entryOf = (name: string) =>
+    Object.hasOwn(setup.channels, name) ? setup.channels[name] : undefined;
   for (const key of Object.keys(setup.channels)) {
     if (!known.has(key)) {
       fail(
@@ -144,7 +235,7 @@ export function setupTransforms(
     }
   }
   const transforms = channels.map((channel): ChannelTransform => {
-    const entry = setup.channels[channel.name];
+    const entry = entryOf(channel.name);
     const keep = {
       name: channel.name,
       unit: channel.unit,
@@ -160,9 +251,6 @@ export function setupTransforms(
       }
       volts = entry.full_scale_volts;
     } else {
-      if (entry.full_scale_volts !== undefined) {
-        fail(`${where}: full_scale_volts applies to WAV channels only`);
-      }
       if (
         entry.input_unit !== undefined && channel.unit !== "" && channel.unit !== entry.input_unit
       ) {
@@ -173,7 +261,18 @@ export function setupTransforms(
       const headerUnit = channel.unit === "" ? entry.input_unit : channel.unit;
       const base = headerUnit === undefined ? undefined : baseUnit(headerUnit);
       volts = base?.unit === "V" ? base.factor : undefined;
+      if (entry.full_scale_volts !== undefined && volts === undefined) {
+        fail(
+          `${where}: full_scale_volts is the input range of a column in volts, but the column's unit is ${
+            channel.unit === "" ? "not given (set input_unit)" : `[${channel.unit}]`
+          }`,
+        );
+      }
     }
+    // A CSV column's range in its own unit (a WAV channel's rails come from its bit depth).
+    const range = channel.unit !== FULL_SCALE_UNIT && entry.full_scale_volts !== undefined
+      ? entry.full_scale_volts / (volts as number)
+      : undefined;
     let factor = 1;
     let unit = channel.unit;
     if (entry.sensitivity_mv_per_unit !== undefined) {
@@ -210,12 +309,16 @@ export function setupTransforms(
       unit = channel.unit === "" ? entry.unit : channel.unit;
     }
     const role = entry.role ?? channel.role;
-    return inBaseUnit({
+    const transform = inBaseUnit({
       name: entry.name ?? channel.name,
       unit,
       factor,
       ...(role !== undefined ? { role } : {}),
     });
+    return range === undefined ? transform : {
+      ...transform,
+      fullScale: { low: -range * transform.factor, high: range * transform.factor },
+    };
   });
   const names = new Set<string>();
   for (const t of transforms) {

@@ -58,11 +58,14 @@ export interface HeaderCell {
  * import { parseHeaderCell } from "./csv_engine.ts";
  * const h = parseHeaderCell(" seat_rail_z [m/s^2] ");
  * if (h.name !== "seat_rail_z" || h.unit !== "m/s^2") throw new Error();
+ * const b = parseHeaderCell("a[1 [m/s^2]");
+ * if (b.name !== "a[1" || b.unit !== "m/s^2") throw new Error();
  * ```
  */
 export function parseHeaderCell(cell: string): HeaderCell {
   const text = unquote(cell);
-  const match = /^(.*?)\s*\[([^\]]*)\]$/.exec(text);
+  // The unit is the last bracketed group at the end: a `[` before it belongs to the name.
+  const match = /^(.*?)\s*\[([^[\]]*)\]$/.exec(text);
   if (match === null) return { name: text, unit: "" };
   return { name: match[1].trim(), unit: match[2].trim() };
 }
@@ -712,6 +715,7 @@ export class CsvRowParser {
   readonly #values: Float64Array;
   readonly #decimals: Float64Array;
   readonly #wantDecimals: Int8Array;
+  readonly #emptyAsNaN: boolean;
   #mark: number; // decimal mark byte, or −1 until known
   #line = 1;
   #carry: Uint8Array = new Uint8Array(0);
@@ -722,13 +726,20 @@ export class CsvRowParser {
    * `startLine`: the bytes begin at a data row on this line (a checkpoint of
    * {@linkcode CsvScan.checkpoints}), not at the file's start; default: they
    * begin at the file's start.
+   * `emptyAsNaN`: an empty cell is NaN (a result table's cell with no finite
+   * value, table.ts) instead of an error; default false.
    */
   constructor(
     scan: CsvScan,
     width: number,
     sink: RowSink,
-    options: CsvTableOptions & { decimalsOf?: readonly number[]; startLine?: number } = {},
+    options: CsvTableOptions & {
+      decimalsOf?: readonly number[];
+      startLine?: number;
+      emptyAsNaN?: boolean;
+    } = {},
   ) {
+    this.#emptyAsNaN = options.emptyAsNaN ?? false;
     this.#file = options.file;
     this.#width = width;
     this.#delimiter = scan.delimiter.charCodeAt(0);
@@ -889,6 +900,10 @@ export class CsvRowParser {
 
   /** Converts one cell into values[column]; false when it is not a finite number. */
   #cell(bytes: Uint8Array, a: number, b: number, column: number): boolean {
+    if (a === b && this.#emptyAsNaN) {
+      this.#values[column] = NaN;
+      return true;
+    }
     if (this.#mark < 0) {
       for (let k = a; k < b; k++) {
         if (bytes[k] === COMMA || bytes[k] === DOT) {

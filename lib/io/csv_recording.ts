@@ -23,6 +23,7 @@ import {
   parseCellText,
   parseHeaderRow,
 } from "./csv_engine.ts";
+import { checkName } from "./names.ts";
 import { nominalRate } from "./time_axis.ts";
 
 /** Names of the time column (any case). */
@@ -69,7 +70,9 @@ export interface CsvRecordingLayout {
  * The layout of a CSV recording from pass 1.
  *
  * @throws {QuiverError} for a bad header, a time column that cannot give a
- * rate, or a rate that is missing or contradicts the column.
+ * rate, or a rate that is missing or contradicts the column, or a name
+ * or unit that holds a control, bidirectional or zero-width character
+ * (names.ts).
  */
 export function csvRecordingLayout(
   scan: CsvScan,
@@ -77,6 +80,11 @@ export function csvRecordingLayout(
 ): CsvRecordingLayout {
   const file = options.file;
   const header = parseHeaderRow(scan.headerText, scan.delimiter, scan.headerLine, file);
+  header.forEach((cell, i) => {
+    const where = { file, line: scan.headerLine, column: i + 1 };
+    checkName(cell.name, `column ${i + 1}`, where);
+    checkName(cell.unit, `the unit of column ${i + 1}`, where);
+  });
   const fail = (detail: string, line?: number, column?: number): never => {
     throw new QuiverError(detail, { file, line, column });
   };

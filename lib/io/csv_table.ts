@@ -14,6 +14,8 @@ import {
   parseHeaderCell,
   parseHeaderRow,
 } from "./csv_engine.ts";
+import { checkName } from "./names.ts";
+import { restoreFormula } from "./table.ts";
 
 export { type CsvDelimiter, type CsvTableOptions, type HeaderCell, parseHeaderCell };
 
@@ -32,9 +34,14 @@ export interface NumericCsv {
 }
 
 /**
- * Parses a header row and numeric data rows.
+ * Parses a header row and numeric data rows. Column names come back as
+ * quiver wrote them: the spreadsheet guard of a formula-like name (`'-x`,
+ * table.ts) is undone. With `emptyCells`, an empty cell reads as NaN (a
+ * value quiver's writer could not give as a finite number); without, it is
+ * refused.
  *
- * @throws {QuiverError} for anything that is not a clean number table.
+ * @throws {QuiverError} for anything that is not a clean number table, or a
+ * name holding a control, bidirectional or zero-width character (names.ts).
  *
  * @example
  * ```ts
@@ -43,12 +50,21 @@ export interface NumericCsv {
  * if (t.columns[1][1] !== 0.25 || t.header[0].name !== "frequency_hz") throw new Error();
  * ```
  */
-export function parseNumericCsv(text: string, options: CsvTableOptions = {}): NumericCsv {
+export function parseNumericCsv(
+  text: string,
+  options: CsvTableOptions & { emptyCells?: boolean } = {},
+): NumericCsv {
   const bytes = new TextEncoder().encode(text);
   const scanner = new CsvScanner(options);
   scanner.push(bytes);
   const scan = scanner.end();
-  const header = parseHeaderRow(scan.headerText, scan.delimiter, scan.headerLine, options.file);
+  const header = parseHeaderRow(scan.headerText, scan.delimiter, scan.headerLine, options.file)
+    .map((cell, i) => {
+      const where = { file: options.file, line: scan.headerLine, column: i + 1 };
+      checkName(cell.name, `column ${i + 1}`, where);
+      checkName(cell.unit, `the unit of column ${i + 1}`, where);
+      return { name: restoreFormula(cell.name), unit: cell.unit };
+    });
   const columns = header.map(() => new Float64Array(scan.rows));
   const lines = new Array<number>(scan.rows);
   const decimals = header.map(() => 0);
@@ -61,7 +77,11 @@ export function parseNumericCsv(text: string, options: CsvTableOptions = {}): Nu
       }
       lines[r++] = line;
     },
-  }, { ...options, decimalsOf: header.map((_, i) => i) });
+  }, {
+    ...options,
+    decimalsOf: header.map((_, i) => i),
+    emptyAsNaN: options.emptyCells ?? false,
+  });
   parser.push(bytes);
   parser.end();
   return { header, columns, lines, headerLine: scan.headerLine, decimals };

@@ -10,6 +10,8 @@
  */
 import { QuiverError } from "../errors.ts";
 import { type HeaderCell, parseHeaderCell } from "./csv_engine.ts";
+import { checkName } from "./names.ts";
+import { restoreFormula } from "./table.ts";
 
 /** A text table with the line of each row, for messages. */
 export interface TextCsv {
@@ -61,16 +63,20 @@ function records(text: string, delimiter: string): { cells: string[]; line: numb
 }
 
 /**
- * Parses a text CSV table.
+ * Parses a text CSV table. Cells and names come back as quiver wrote them:
+ * the spreadsheet guard of formula-like text (`'+z`, table.ts) is undone,
+ * so a shapes file `modal` wrote reads back with its `+z` directions.
  *
- * @throws {QuiverError} for a table without a header, or a row whose cell
- * count differs from the header's (naming file and line).
+ * @throws {QuiverError} for a table without a header, a row whose cell
+ * count differs from the header's (naming file and line), or a name or cell
+ * holding a control, bidirectional or zero-width character (names.ts).
  *
  * @example
  * ```ts
  * import { parseTextCsv } from "./csv_text.ts";
  * const t = parseTextCsv('\uFEFFmode,point,direction,value [m]\r\n1,"12",+z,0.5\n');
  * if (t.header[3].unit !== "m" || t.rows[0][2] !== "+z" || t.lines[0] !== 2) throw new Error();
+ * if (parseTextCsv("point,direction\n1,'-x\n").rows[0][1] !== "-x") throw new Error();
  * ```
  */
 export function parseTextCsv(text: string, options: { file?: string } = {}): TextCsv {
@@ -85,7 +91,13 @@ export function parseTextCsv(text: string, options: { file?: string } = {}): Tex
     : ",";
   const all = records(body, delimiter);
   if (all.length === 0) throw new QuiverError("the table is empty", { file: options.file });
-  const header = all[0].cells.map(parseHeaderCell);
+  const header = all[0].cells.map((text, i) => {
+    const cell = parseHeaderCell(text);
+    const where = { file: options.file, line: all[0].line, column: i + 1 };
+    checkName(cell.name, `column ${i + 1}`, where);
+    checkName(cell.unit, `the unit of column ${i + 1}`, where);
+    return { name: restoreFormula(cell.name), unit: cell.unit };
+  });
   const rows: string[][] = [];
   const lines: number[] = [];
   for (const { cells, line } of all.slice(1)) {
@@ -95,7 +107,11 @@ export function parseTextCsv(text: string, options: { file?: string } = {}): Tex
         { file: options.file, line },
       );
     }
-    rows.push(cells.map((c) => c.trim()));
+    rows.push(cells.map((c, i) => {
+      const cell = c.trim();
+      checkName(cell, `column ${i + 1}`, { file: options.file, line, column: i + 1 });
+      return restoreFormula(cell);
+    }));
     lines.push(line);
   }
   return { header, rows, lines };

@@ -8,22 +8,25 @@
  * @module
  */
 
-/** The characters a derived file name keeps; every other run becomes one `_`. */
-const NOT_PORTABLE = /[^A-Za-z0-9_.-]+/g;
+/**
+ * What a derived file name does not keep: characters outside the portable
+ * set, and runs of two or more dots (never a `..` in a name, even a harmless one).
+ */
+const NOT_PORTABLE = /[^A-Za-z0-9_.-]+|\.{2,}/g;
 
 /** Longest name kept (bytes of ASCII), far below every common file system's 255. */
 const MAX_LENGTH = 120;
 
 /**
  * `text` reduced to a file name of letters, digits, `_`, `-` and `.`, with
- * no leading dot and at most 120 characters; `fallback` where nothing is
+ * no leading dot, no `..` and at most 120 characters; `fallback` where nothing is
  * left. Distinct names may reduce to the same file name: callers that write
  * several files use {@linkcode uniqueFileNames}.
  *
  * @example
  * ```ts
  * import { safeFileName } from "./file_name.ts";
- * if (safeFileName("a/../../../../victim/pwn_spectrogram") !== "a_.._.._.._.._victim_pwn_spectrogram") throw new Error();
+ * if (safeFileName("a/../../../victim/pwn_spectrogram") !== "a_______victim_pwn_spectrogram") throw new Error();
  * if (safeFileName("..") !== "_") throw new Error();
  * if (safeFileName("mic [Pa]") !== "mic_Pa_") throw new Error();
  * ```

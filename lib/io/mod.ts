@@ -40,7 +40,16 @@ export {
 } from "./channel_setup.ts";
 export { type BaseUnit, baseUnit, STANDARD_GRAVITY } from "./units.ts";
 export { channelWarnings } from "./signal_checks.ts";
-export { formatCsv, formatJson, type Table, type TableColumn } from "./table.ts";
+export {
+  type EmptyCells,
+  formatCsv,
+  formatJson,
+  noteEmptyCells,
+  restoreFormula,
+  type Table,
+  type TableColumn,
+} from "./table.ts";
+export { checkName, escapeName } from "./names.ts";
 export { readSidecar, type Sidecar, writeCsvPair } from "./table_file.ts";
 export { numericColumn, readResultFile, type ResultTable } from "./result_file.ts";
 export {

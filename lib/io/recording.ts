@@ -35,6 +35,24 @@ export interface Channel {
   readonly data: Float64Array;
   /** What the channel measures, when a set-up says so. */
   readonly role?: ChannelRole;
+  /**
+   * The converter's rails (and step) in the channel's unit, when known:
+   * integer PCM WAV, or a CSV column whose set-up gives `full_scale_volts`.
+   */
+  readonly fullScale?: ConverterScale;
+}
+
+/**
+ * An integer converter's lowest and highest codes and its step, in the
+ * channel's unit: samples at `low` or `high` are at full scale.
+ */
+export interface ConverterScale {
+  /** The lowest code's value. */
+  readonly low: number;
+  /** The highest code's value. */
+  readonly high: number;
+  /** One code's step (the LSB), when known (integer PCM; not for a CSV column's range). */
+  readonly step?: number;
 }
 
 /** A multi-channel time history at one sample rate. */

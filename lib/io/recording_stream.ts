@@ -22,7 +22,7 @@ import { changedWhileRead, CsvRowParser, CsvScanner, firstDecimalMark } from "./
 import { csvParseWorkers, readCsvInWorkers } from "./csv_parallel.ts";
 import { csvRecordingLayout, TimeStepCheck } from "./csv_recording.ts";
 import type { ReadRecordingOptions } from "./read_recording.ts";
-import type { ChannelRole, Recording } from "./recording.ts";
+import type { ChannelRole, ConverterScale, Recording } from "./recording.ts";
 import {
   decodeWavFrames,
   FORMAT_FLOAT,
@@ -43,7 +43,13 @@ export interface RecordingStream {
   /** Samples per channel. */
   readonly length: number;
   /** The channels after the set-up (names, units, roles). */
-  readonly channels: readonly { name: string; unit: string; role?: ChannelRole }[];
+  readonly channels: readonly {
+    name: string;
+    unit: string;
+    role?: ChannelRole;
+    /** The converter's rails in the channel's unit, when known (integer PCM WAV, a set-up range). */
+    fullScale?: ConverterScale;
+  }[];
   /**
    * Reads the channels with the given indices in order, chunk by chunk.
    * A chunk's arrays are valid during the callback only: they are reused.
@@ -258,7 +264,15 @@ async function openWavStream(
       rate: f.rate,
       startTime: 0,
       length: frames,
-      channels: transforms.map(({ factor: _f, ...meta }) => meta),
+      channels: transforms.map(({ factor, ...meta }) => {
+        if (f.code === FORMAT_FLOAT) return meta;
+        // Integer PCM reads as code / 2^(bits−1): its rails are the extreme codes, scaled alike.
+        const lsb = 2 ** (1 - f.bits);
+        return {
+          ...meta,
+          fullScale: { low: -factor, high: (1 - lsb) * factor, step: lsb * factor },
+        };
+      }),
       async read(selected, onChunk) {
         const h = await open(path, "r");
         try {
@@ -301,7 +315,7 @@ export async function readChecked(
   indices: readonly number[],
   onChunk: (chunk: Float64Array[]) => void,
 ): Promise<string[]> {
-  const statistics = indices.map(() => new ChannelStatistics());
+  const statistics = indices.map((i) => new ChannelStatistics(stream.channels[i].fullScale));
   await stream.read(indices, (chunk) => {
     chunk.forEach((c, i) => statistics[i].push(c));
     onChunk(chunk);

@@ -5,6 +5,9 @@
  * (no metadata). One strictness: a JSON column holds numbers (`null`, which
  * JSON writes for a value that was not finite, reads as NaN, never 0) or
  * text, never a mix; anything else is refused naming the file and column.
+ * A CSV cell quiver wrote empty (a value that was not finite) reads as NaN
+ * only in the columns its sidecar's `empty_cells` names (table.ts); any
+ * other empty cell is refused.
  *
  * What the metadata of each analysis holds is checked by its own schema
  * (result_metadata.ts), not cast.
@@ -17,7 +20,7 @@ import { z } from "npm:zod@4.6.7";
 import { QuiverError } from "../errors.ts";
 import { type CsvTableOptions, parseNumericCsv } from "./csv_table.ts";
 import type { ColumnValues, TableColumn } from "./table.ts";
-import { readSidecar } from "./table_file.ts";
+import { readSidecar, sidecarPath } from "./table_file.ts";
 
 /** A result table as read back. */
 export interface ResultTable {
@@ -121,12 +124,39 @@ export async function readResultFile(
       ...(parsed.data.metadata !== undefined ? { metadata: parsed.data.metadata } : {}),
     };
   }
-  const table = parseNumericCsv(text, { ...options, file: path });
+  // Which columns the writer left empty is known before the parse, from the sidecar.
+  const declared = await declaredEmptyColumns(path);
+  const table = parseNumericCsv(text, { ...options, file: path, emptyCells: declared.size > 0 });
   const metadata = (await readSidecar(path, text, table.header))?.metadata;
+  table.header.forEach((h, c) => {
+    if (declared.has(h.name)) return;
+    const row = table.columns[c].findIndex((v) => Number.isNaN(v));
+    if (row >= 0) {
+      throw new QuiverError("empty cell where a number was expected", {
+        file: path,
+        line: table.lines[row],
+        column: c + 1,
+      });
+    }
+  });
   return {
     file: path,
     columns: table.header.map((h, i) => ({ name: h.name, unit: h.unit, values: table.columns[i] })),
     lines: table.lines,
     ...(metadata !== undefined ? { metadata } : {}),
   };
+}
+
+/** Names of the columns the sidecar of `path` says were written with empty cells. */
+async function declaredEmptyColumns(path: string): Promise<Set<string>> {
+  let json: unknown;
+  try {
+    json = JSON.parse(await readFile(sidecarPath(path), "utf8"));
+  } catch {
+    return new Set(); // no sidecar, or a bad one that readSidecar will name
+  }
+  const parsed = z.object({
+    metadata: z.object({ empty_cells: z.array(z.object({ column: z.string() })) }),
+  }).safeParse(json);
+  return new Set(parsed.success ? parsed.data.metadata.empty_cells.map((e) => e.column) : []);
 }

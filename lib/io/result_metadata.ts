@@ -44,7 +44,8 @@ const frf = z.looseObject({
 
 const mode = z.looseObject({
   channel: z.string(),
-  mode: z.number(),
+  // null: a candidate flagged noise, listed but not a mode (lib/modal/damping_analysis.ts).
+  mode: z.number().nullable(),
   frequencyHz: finiteOrNull,
   dampingRatio: finiteOrNull,
   qFactor: finiteOrNull,
@@ -200,6 +201,12 @@ export const RESULT_METADATA = {
       simulation_hz: finiteOrNull,
       shift_percent: finiteOrNull,
       mac: z.number(),
+      ambiguous: z.boolean().optional(),
+      rival: z.strictObject({
+        side: z.enum(["simulation", "test"]),
+        mode: z.number(),
+        mac: z.number(),
+      }).nullable().optional(),
     })),
   }),
   compare: z.looseObject({

@@ -118,7 +118,7 @@ export async function spoolChannels(
   };
   try {
     indices.forEach((_, j) => descriptors.push(openSync(join(dir, `${j}.f64`), "w+")));
-    const statistics = indices.map(() => new ChannelStatistics());
+    const statistics = indices.map((i) => new ChannelStatistics(stream.channels[i].fullScale));
     let length = 0;
     await stream.read(indices, (chunk) => {
       chunk.forEach((values, j) => {

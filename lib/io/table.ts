@@ -27,32 +27,66 @@ export interface Table<V extends ColumnValues = Float64Array> {
 }
 
 /**
- * Header text of a column: `name [unit]`, or `name` without a unit.
+ * Header text of a column: `name [unit]`, or `name` without a unit. A name
+ * that itself ends in a bracketed group (`a[1]`) gets an empty unit written
+ * (`a[1] []`), as a reader takes the last bracketed group at the end for the
+ * unit: so the header reads back as the same name and unit.
  *
  * @example
  * ```ts
  * import { columnHeader } from "./table.ts";
  * if (columnHeader({ name: "mic", unit: "Pa^2/Hz", values: new Float64Array() }) !== "mic [Pa^2/Hz]") throw new Error();
+ * if (columnHeader({ name: "a[1]", unit: "", values: new Float64Array() }) !== "a[1] []") throw new Error();
  * ```
  */
 export function columnHeader(column: TableColumn<ColumnValues>): string {
-  return column.unit === "" ? column.name : `${column.name} [${column.unit}]`;
+  if (column.unit === "") return /\]\s*$/.test(column.name) ? `${column.name} []` : column.name;
+  return `${column.name} [${column.unit}]`;
 }
 
 /**
- * A text cell that a spreadsheet would run as a formula (it starts with `=`,
- * `+`, `@`, a tab or a carriage return) gets a leading `'`, which spreadsheets
- * show as text (common practice from spreadsheet-injection guidance, e.g.
- * OWASP "CSV Injection"). Numbers are never text cells, so `-1.5` stays a number.
+ * The characters that make a spreadsheet read a cell as a formula: `=`, `+`,
+ * `-`, `@`, tab and carriage return (OWASP, "CSV Injection",
+ * https://owasp.org/www-community/attacks/CSV_Injection). A text cell that
+ * starts with one of them, after any number of `'`, gets one more leading
+ * `'`, which spreadsheets show as text. The `'`s already there are counted so
+ * that the guard can be undone exactly ({@linkcode restoreFormula}): `'+z`
+ * (a text that really starts with `'`) is written `''+z` and reads back
+ * `'+z`.
+ */
+const GUARDED = /^'*[=+\-@\t\r]/;
+
+/**
+ * A text cell made safe for spreadsheets (see {@linkcode GUARDED}): a leading
+ * `'` before formula-like text. Numbers are never text cells, so a numeric
+ * `-1.5` is written as it is; the text `-x` becomes `'-x`.
  *
  * @example
  * ```ts
  * import { neutraliseFormula } from "./table.ts";
  * if (neutraliseFormula("=HYPERLINK(1)") !== "'=HYPERLINK(1)" || neutraliseFormula("acc") !== "acc") throw new Error();
+ * if (neutraliseFormula("-x") !== "'-x" || neutraliseFormula("'+z") !== "''+z") throw new Error();
  * ```
  */
 export function neutraliseFormula(text: string): string {
-  return /^[=+@\t\r]/.test(text) ? `'${text}` : text;
+  return GUARDED.test(text) ? `'${text}` : text;
+}
+
+/**
+ * Undoes {@linkcode neutraliseFormula}: the text a guarded cell held. Text
+ * that was not guarded comes back unchanged, so quiver's own tables read
+ * back to the same text (`'+z` → `+z`, `''+z` → `'+z`, `don't` stays).
+ *
+ * @example
+ * ```ts
+ * import { neutraliseFormula, restoreFormula } from "./table.ts";
+ * for (const t of ["+z", "-x", "=a", "'+z", "@b", "acc", "'quoted'", "\tx"]) {
+ *   if (restoreFormula(neutraliseFormula(t)) !== t) throw new Error(t);
+ * }
+ * ```
+ */
+export function restoreFormula(text: string): string {
+  return text.startsWith("'") && GUARDED.test(text.slice(1)) ? text.slice(1) : text;
 }
 
 function csvCell(text: string): string {
@@ -61,8 +95,81 @@ function csvCell(text: string): string {
 }
 
 /**
+ * Why a number was not finite, by its kind (IEEE 754 overflow, −∞ of a logarithm, 0/0).
+ *
+ * @example
+ * ```ts
+ * import { nonFiniteReason } from "./table.ts";
+ * if (!nonFiniteReason(-Infinity).includes("dB") || !nonFiniteReason(Infinity).includes("overflow")) throw new Error();
+ * ```
+ */
+export function nonFiniteReason(value: number): string {
+  if (value === -Infinity) {
+    return "-Infinity: the dB (logarithm) of zero, e.g. a line or band with no power";
+  }
+  if (value === Infinity) {
+    return "Infinity: beyond the largest double, about 1.8e308 (IEEE 754 overflow)";
+  }
+  return "NaN: no defined value (e.g. 0/0 where the input had no power)";
+}
+
+/** One column's cells that held no finite number, as the metadata records them. */
+export interface EmptyCells {
+  /** Column name. */
+  readonly column: string;
+  /** How many cells are empty (CSV) / null (JSON). */
+  readonly count: number;
+  /** 0-based row of the first. */
+  readonly first_row: number;
+  /** Why, by the kind of the first value (see {@linkcode nonFiniteReason}). */
+  readonly reason: string;
+}
+
+/**
+ * The table with `metadata.empty_cells` listing every numeric column that
+ * holds values that are not finite (they are written as empty CSV cells or
+ * JSON nulls, never as `NaN`/`Infinity` text), or the table itself when all
+ * are finite. Every table writer calls this, so no such cell goes unexplained.
+ *
+ * @example
+ * ```ts
+ * import { noteEmptyCells } from "./table.ts";
+ * const t = noteEmptyCells({ metadata: {}, columns: [{ name: "level", unit: "dB", values: new Float64Array([-Infinity, 3]) }] });
+ * const e = t.metadata.empty_cells as { column: string; count: number }[];
+ * if (e[0].column !== "level" || e[0].count !== 1) throw new Error();
+ * ```
+ */
+export function noteEmptyCells<V extends ColumnValues>(table: Table<V>): Table<V> {
+  const notes: EmptyCells[] = [];
+  for (const column of table.columns) {
+    const values = column.values;
+    if (!(values instanceof Float64Array)) continue;
+    let count = 0, first = -1;
+    for (let i = 0; i < values.length; i++) {
+      if (values[i] - values[i] !== 0) {
+        count++;
+        if (first < 0) first = i;
+      }
+    }
+    if (count > 0) {
+      notes.push({
+        column: column.name,
+        count,
+        first_row: first,
+        reason: nonFiniteReason(values[first]),
+      });
+    }
+  }
+  return notes.length === 0
+    ? table
+    : { ...table, metadata: { ...table.metadata, empty_cells: notes } };
+}
+
+/**
  * Formats a table as CSV: one header row, then rows of shortest round-trip
- * numbers (so no digit is lost). Metadata is not part of the CSV.
+ * numbers (so no digit is lost). Metadata is not part of the CSV. A number
+ * that is not finite is an empty cell; text cells are guarded against
+ * spreadsheet formulas ({@linkcode neutraliseFormula}).
  *
  * @throws {RangeError} when columns differ in length.
  *
@@ -85,7 +192,9 @@ export function formatCsv(table: Table<ColumnValues>): string {
     lines.push(
       table.columns.map((c) => {
         const value = c.values[r];
-        return typeof value === "string" ? csvCell(value) : String(value);
+        if (typeof value === "string") return csvCell(value);
+        // No `NaN`/`Infinity` text: an empty cell, explained by noteEmptyCells.
+        return value - value === 0 ? String(value) : "";
       }).join(","),
     );
   }
@@ -94,6 +203,7 @@ export function formatCsv(table: Table<ColumnValues>): string {
 
 /**
  * Formats a table as JSON: `{ "metadata": {…}, "columns": [{ "name", "unit", "values" }] }`.
+ * A number that is not finite is `null` (as JSON itself writes it).
  *
  * @example
  * ```ts

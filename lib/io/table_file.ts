@@ -16,7 +16,6 @@ import { createHash } from "node:crypto";
 import { readFile, rm } from "node:fs/promises";
 import { QuiverError } from "../errors.ts";
 import { commitTemporary, writeTemporary } from "./atomic_write.ts";
-import { neutraliseFormula } from "./table.ts";
 
 /** The sidecar format's version. */
 export const SIDECAR_VERSION = 1;
@@ -140,11 +139,9 @@ export async function readSidecar(
     );
   }
   const columns = json.columns ?? [];
-  // The CSV header holds the names as written: neutralised where they looked like formulas.
+  // `header` is as read back: a formula guard in a name is already undone (csv_table.ts).
   const same = columns.length === header.length &&
-    columns.every((c, i) =>
-      neutraliseFormula(c.name) === header[i].name && c.unit === header[i].unit
-    );
+    columns.every((c, i) => c.name === header[i].name && c.unit === header[i].unit);
   if (!same) {
     throw new QuiverError(
       `its columns (${

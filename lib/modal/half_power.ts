@@ -15,6 +15,10 @@
  * each half-power frequency solves the parabola through the three lines
  * around its crossing.
  *
+ * A mode whose interpolated peak stands more than 3 dB above its highest
+ * line has its whole half-power band between two lines: there is no
+ * estimate (undefined).
+ *
  * The damping still carries the method's own bias, which grows with damping
  * and depends on the FRF form; for receptance the exact half-power points
  * are ω₁,₂² = ωₙ²(1 − 2ζ² ∓ 2ζ√(1−ζ²)), so (ω₂ − ω₁)/(2ωₙ) reads high.
@@ -121,6 +125,10 @@ export function halfPower(
   const peakHz = peak.frequencyHz;
   const vertex = 1 / (peak.magnitude * peak.magnitude);
   const target = 2 * vertex;
+  // The interpolated peak more than 3 dB above its own line: the whole half-power band lies
+  // between two lines and cannot be read from them (before, the crossings came out with
+  // f₁ > f₂ and a negative ζ).
+  if (inv(k) >= target) return undefined;
   const crossing = (direction: -1 | 1): number | undefined => {
     let j = k;
     while (j + direction >= lowLimit && j + direction <= highLimit && inv(j) < target) {

@@ -21,22 +21,28 @@
  * @module
  */
 export {
+  DAMPING_FLAGS,
   DAMPING_METHODS,
+  type DampingFlag,
   type DampingMethod,
   type DampingOptions,
   type DampingResult,
+  firstMode,
   modalDamping,
   type ModeEstimate,
 } from "./damping_analysis.ts";
 export { type FrfChannel, type FrfData, frfFromColumns, readFrfFile } from "./frf_input.ts";
-export { findPeaks, type Peak } from "./peaks.ts";
+export { findPeaks, judgeCoherence, type Peak } from "./peaks.ts";
 export { halfPower, type HalfPowerEstimate } from "./half_power.ts";
 export { fitSdof, type SdofFit } from "./sdof_fit.ts";
 export { bestPairing, type ComplexVector, macMatrix, macValue } from "./mac.ts";
 export {
+  AMBIGUITY,
   correlateShapes,
   correlationTables,
+  type ModePair,
   type ModeShape,
+  pairRival,
   parsePointMap,
   parseShapes,
   type ShapeCorrelation,
@@ -49,4 +55,5 @@ export {
   type ModalFitOptions,
   type ModalFitResult,
   modalTables,
+  type UnexplainedPeak,
 } from "./modal_fit.ts";

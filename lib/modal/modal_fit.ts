@@ -4,13 +4,24 @@
  * that stay stable chosen by a stated rule, then residues and shapes by
  * least squares (LSFD) with upper and lower residuals.
  *
- * Stability (common practice; tolerances are options): a pole of order n
- * is stable against the nearest pole of order n − 2 in frequency (relative
- * change ≤ 1 %), damping (≤ 5 %) and shape (MAC ≥ 0.98). Selection: the
- * poles of the highest order that are stable in all three at each of the
- * last `stableOrders` orders (default 5), merged when within the frequency
- * tolerance of each other; or, given `modesHz`, the pole of the highest
- * order nearest each of those frequencies.
+ * Stability (the usual stabilisation-diagram criteria, common practice;
+ * tolerances are options): a pole of order n is compared with the nearest
+ * pole (in frequency) of order n − 2 and is stable when its frequency
+ * changed by ≤ 1 %, its damping by ≤ 5 % and its shape's MAC is ≥ 0.98.
+ *
+ * Selection from the whole chart, not from the last order alone (rule ours):
+ * stable poles are clustered across the orders (frequency within 1 % of the
+ * cluster's median, shape MAC ≥ 0.98 with its latest member, one pole per
+ * order, the closest first); a cluster is a mode when it holds a stable pole
+ * at 5 or more orders and at more than half of the orders from its first
+ * stable pole to the highest order. The mode's frequency and damping are the
+ * medians over the cluster, reported with their spread and counts. Given
+ * `modesHz`, the cluster nearest each frequency (within 2 %) is taken, or,
+ * failing one, the highest order's nearest pole (flagged `unstable`).
+ *
+ * A clear peak of the sum of |H| (prominence ≥ 6 dB, at least 1 % of the
+ * highest peak, mean coherence ≥ 0.8 where known) that no mode explains
+ * (within 2 % or 2 lines) is named in a warning.
  *
  * Shapes are the residues of each degree of freedom, normalised so that
  * the component of largest magnitude is real and 1 (scaling to unit modal
@@ -37,6 +48,8 @@ import {
   type Pole,
 } from "./lscf.ts";
 import { macValue } from "./mac.ts";
+import { findPeaks } from "./peaks.ts";
+import { formatFixed } from "../format_number.ts";
 
 /** One degree of freedom of the fit: an FRF and the point it measures. */
 export interface ModalDof {
@@ -56,7 +69,7 @@ export interface ModalFitOptions {
   minHz?: number;
   /** Highest frequency of the band, Hz. Default: the last line. */
   maxHz?: number;
-  /** Highest model order (even). Default 32. */
+  /** Highest model order (even, at most {@linkcode largestModelOrder} of the band). Default 32. */
   maxOrder?: number;
   /** Relative frequency change for a stable pole. Default 0.01. */
   frequencyTolerance?: number;
@@ -64,7 +77,7 @@ export interface ModalFitOptions {
   dampingTolerance?: number;
   /** Smallest MAC with the previous order's shape for a stable pole. Default 0.98. */
   macTolerance?: number;
-  /** Consecutive orders (steps of 2) a pole must stay stable. Default 5. */
+  /** Fewest orders at which a mode's cluster must hold a stable pole. Default 5. */
   stableOrders?: number;
   /** Instead of the automatic rule: the modes nearest these frequencies, Hz. Default: none. */
   modesHz?: readonly number[];
@@ -82,8 +95,20 @@ export interface FittedMode {
   readonly mpc: number;
   /** The shape, one value per degree of freedom, largest component 1. */
   readonly shape: readonly Complex[];
-  /** Quality flags: `low_mpc` (MPC < 0.9), `form_assumed`, `window_corrected`. */
+  /**
+   * Quality flags: `low_mpc` (MPC < 0.9), `form_assumed`, `window_corrected`,
+   * `named` (taken for `modesHz`, not by the stability rule), `unstable`
+   * (named, but its pole was stable at no order).
+   */
   readonly flags: readonly string[];
+  /** Orders at which the mode's cluster held a stable pole. */
+  readonly stableOrders: number;
+  /** Orders fitted from the cluster's first stable pole to the highest order. */
+  readonly ordersSpanned: number;
+  /** (largest − smallest)/median of the cluster's frequencies, %; NaN without a cluster. */
+  readonly frequencySpreadPercent: number;
+  /** (largest − smallest)/median of the cluster's damping ratios, %; NaN without a cluster. */
+  readonly dampingSpreadPercent: number;
 }
 
 /** One pole of the stability analysis. */
@@ -91,9 +116,22 @@ export interface StabilityPole {
   readonly order: number;
   readonly frequencyHz: number;
   readonly dampingRatio: number;
+  /** Each change against the nearest pole of the order before (see the module notes). */
   readonly stableFrequency: boolean;
   readonly stableDamping: boolean;
   readonly stableShape: boolean;
+  /** The mode (1-based) whose cluster holds this pole; 0 for none. */
+  readonly mode: number;
+}
+
+/** A clear peak of the sum of FRFs that no reported mode explains. */
+export interface UnexplainedPeak {
+  /** Frequency of the peak's line, Hz. */
+  readonly frequencyHz: number;
+  /** Its prominence in the sum of |H|, dB. */
+  readonly prominenceDb: number;
+  /** Mean coherence over the FRFs at the line; undefined when they have none. */
+  readonly coherence?: number;
 }
 
 /** Modes, shapes, the stability analysis and the fit's quality. */
@@ -108,9 +146,46 @@ export interface ModalFitResult {
   readonly synthesis: readonly { re: Float64Array; im: Float64Array }[];
   /** ‖H − Ĥ‖/‖H‖ per degree of freedom. */
   readonly relativeError: Float64Array;
+  /** Clear peaks of the sum of FRFs that no mode explains (each also a warning). */
+  readonly unexplainedPeaks?: readonly UnexplainedPeak[];
   readonly warnings: readonly string[];
   /** The unit of the first FRF as given, e.g. `(m/s^2)/N`. */
   readonly unit?: string;
+}
+
+/**
+ * The selection rule's fixed numbers (ours unless marked): a cluster is a
+ * mode when it holds a stable pole at more than `mostOrders` of the orders
+ * from its first stable pole to the highest order; a clear peak has at least
+ * `peakProminenceDb` of prominence in the sum of |H|, is no lower than
+ * `peakFloor` of the highest peak, and has mean coherence of at least
+ * `peakCoherence` where coherence is known; a mode explains a peak within
+ * `peakReach` of its frequency or `peakLines` lines, whichever is wider.
+ */
+export const SELECTION_RULE = {
+  mostOrders: 0.5,
+  peakProminenceDb: 6,
+  peakFloor: 0.01,
+  peakCoherence: 0.8,
+  peakReach: 0.02,
+  peakLines: 2,
+  orderLimit: 128,
+} as const;
+
+/**
+ * The highest model order a band of `lines` lines supports: LSCF of order n
+ * needs more than n + 1 lines, and above 128 (ours) the fit takes long and
+ * the z-domain polynomial is ill-conditioned; even.
+ *
+ * @example
+ * ```ts
+ * import { largestModelOrder } from "./modal_fit.ts";
+ * if (largestModelOrder(41) !== 38 || largestModelOrder(4000) !== 128) throw new Error();
+ * ```
+ */
+export function largestModelOrder(lines: number): number {
+  const byLines = lines - 2 - ((lines - 2) % 2);
+  return Math.min(byLines, SELECTION_RULE.orderLimit);
 }
 
 function asReceptance(
@@ -136,10 +211,68 @@ function asReceptance(
 }
 
 /**
+ * The band [from, to) of line indices: lines above 0 Hz within [minHz, maxHz].
+ *
+ * @example
+ * ```ts
+ * import { modalBand } from "./modal_fit.ts";
+ * const b = modalBand(new Float64Array([0, 10, 20, 30, 40]), { minHz: 15, maxHz: 30 });
+ * if (b.from !== 2 || b.to !== 4) throw new Error();
+ * ```
+ */
+export function modalBand(
+  frequencies: Float64Array,
+  options: { minHz?: number; maxHz?: number } = {},
+): { from: number; to: number } {
+  const lo = options.minHz ?? 0;
+  const hi = options.maxHz ?? Infinity;
+  let from = 0;
+  while (from < frequencies.length && !(frequencies[from] > 0 && frequencies[from] >= lo)) from++;
+  let to = frequencies.length;
+  while (to > from && frequencies[to - 1] > hi) to--;
+  return { from, to };
+}
+
+/** A pole of one order with its shape, as the selection sees it. */
+interface OrderPole {
+  readonly order: number;
+  readonly pole: Pole;
+  readonly shape: readonly Complex[];
+  readonly stable: boolean;
+  /** Index of its cluster; −1 for none. */
+  cluster: number;
+  /** The reported mode (1-based) its cluster became; 0 for none. */
+  mode: number;
+}
+
+/** Stable poles of several orders that are one mode. */
+interface Cluster {
+  readonly members: OrderPole[];
+  /** Median frequency of the members so far, Hz. */
+  frequencyHz: number;
+}
+
+function median(values: readonly number[]): number {
+  const s = [...values].sort((a, b) => a - b);
+  const m = s.length >> 1;
+  return s.length % 2 === 1 ? s[m] : (s[m - 1] + s[m]) / 2;
+}
+
+function spreadPercent(values: readonly number[]): number {
+  let lo = Infinity, hi = -Infinity;
+  for (const v of values) {
+    lo = Math.min(lo, v);
+    hi = Math.max(hi, v);
+  }
+  return (100 * (hi - lo)) / median(values);
+}
+
+/**
  * Fits the modes of a set of FRFs of one reference.
  *
  * @throws {QuiverError} for FRFs without phase or a band without a stable
- * pole; RangeError for bad options.
+ * pole; RangeError for bad options (an order above what the band supports
+ * is refused before any fitting).
  *
  * @example
  * ```ts
@@ -154,6 +287,7 @@ function asReceptance(
  * const r = modalFit(f, [{ point: "1", direction: "z", frf: frf(1) }, { point: "2", direction: "z", frf: frf(-0.5) }]);
  * const [m] = r.modes;
  * if (Math.abs(m.frequencyHz - 50) > 0.01 || Math.abs(m.shape[1].re + 0.5) > 1e-3) throw new Error();
+ * if (m.stableOrders < 5 || m.frequencySpreadPercent > 0.01) throw new Error();
  * ```
  */
 export function modalFit(
@@ -172,12 +306,16 @@ export function modalFit(
   const tolZ = options.dampingTolerance ?? 0.05;
   const tolMac = options.macTolerance ?? 0.98;
   const stableOrders = options.stableOrders ?? 5;
-  const lo = options.minHz ?? 0;
-  const hi = options.maxHz ?? Infinity;
-  let from = 0;
-  while (from < frequencies.length && !(frequencies[from] > 0 && frequencies[from] >= lo)) from++;
-  let to = frequencies.length;
-  while (to > from && frequencies[to - 1] > hi) to--;
+  const { from, to } = modalBand(frequencies, options);
+  // Refuse at once, not after fitting every lower order.
+  const largest = largestModelOrder(to - from);
+  if (maxOrder > largest) {
+    throw new RangeError(
+      `the highest order ${maxOrder} is more than the band of ${
+        to - from
+      } lines supports: at most ${largest}`,
+    );
+  }
   const band = frequencies.subarray(from, to);
   const converted = dofs.map((d) => asReceptance(d.frf, frequencies, from, to));
   const set: FrfSet = { frequencies: band, responses: converted };
@@ -194,17 +332,20 @@ export function modalFit(
   }
   const shapeOf = (residues: readonly (readonly Complex[])[], r: number) =>
     residues.map((row) => row[r]);
+  const macOf = (a: readonly Complex[], b: readonly Complex[]) => macValue(vector(a), vector(b));
 
-  // Stability over the orders.
-  const stability: StabilityPole[] = [];
-  type Tracked = { pole: Pole; shape: Complex[]; run: number };
-  let previous: Tracked[] = [];
+  // Stability over the orders: each pole against the nearest pole (in
+  // frequency) of the order before, as the stability chart shows it. A pole
+  // doubled at some order may fail here; the clusters below ride over that.
+  const stability: { entry: OrderPole; flags: [boolean, boolean, boolean] }[] = [];
+  const orders: OrderPole[][] = [];
+  let previous: OrderPole[] = [];
   for (let order = 2; order <= maxOrder; order += 2) {
     const poles = lscfPoles(set, order);
     const residues = poles.length > 0 ? fitResidues(set, poles).residues : [];
-    const current: Tracked[] = poles.map((pole, r) => {
+    const current = poles.map((pole, r): OrderPole => {
       const shape = shapeOf(residues, r);
-      let nearest: Tracked | undefined;
+      let nearest: OrderPole | undefined;
       for (const p of previous) {
         if (
           nearest === undefined ||
@@ -212,30 +353,103 @@ export function modalFit(
             Math.abs(nearest.pole.frequencyHz - pole.frequencyHz)
         ) nearest = p;
       }
-      const stableFrequency = nearest !== undefined &&
-        Math.abs(nearest.pole.frequencyHz / pole.frequencyHz - 1) <= tolF;
-      const stableDamping = nearest !== undefined &&
-        Math.abs(nearest.pole.dampingRatio / pole.dampingRatio - 1) <= tolZ;
-      const stableShape = nearest !== undefined &&
-        macValue(vector(shape), vector(nearest.shape)) >= tolMac;
-      stability.push({
+      const flags: [boolean, boolean, boolean] = nearest === undefined ? [false, false, false] : [
+        Math.abs(nearest.pole.frequencyHz / pole.frequencyHz - 1) <= tolF,
+        Math.abs(nearest.pole.dampingRatio / pole.dampingRatio - 1) <= tolZ,
+        macOf(shape, nearest.shape) >= tolMac,
+      ];
+      const entry: OrderPole = {
         order,
-        frequencyHz: pole.frequencyHz,
-        dampingRatio: pole.dampingRatio,
-        stableFrequency,
-        stableDamping,
-        stableShape,
-      });
-      const stable = stableFrequency && stableDamping && stableShape;
-      return { pole, shape, run: stable ? (nearest as Tracked).run + 1 : 0 };
+        pole,
+        shape,
+        stable: flags[0] && flags[1] && flags[2],
+        cluster: -1,
+        mode: 0,
+      };
+      stability.push({ entry, flags });
+      return entry;
     });
+    orders.push(current);
     previous = current;
   }
-  let chosen: Pole[];
+
+  // Clusters of stable poles across the orders: a stable pole joins the
+  // cluster whose median frequency is within the frequency tolerance and
+  // whose latest shape it matches (MAC), at most one pole per cluster and
+  // order, the closest first.
+  const clusters: Cluster[] = [];
+  for (const current of orders) {
+    const candidates: { p: OrderPole; c: number; d: number }[] = [];
+    for (const p of current) {
+      if (!p.stable) continue;
+      clusters.forEach((cluster, c) => {
+        const df = Math.abs(cluster.frequencyHz / p.pole.frequencyHz - 1);
+        const last = cluster.members[cluster.members.length - 1];
+        const mac = macOf(p.shape, last.shape);
+        if (df <= tolF && mac >= tolMac) {
+          candidates.push({ p, c, d: df / tolF + (1 - mac) / (1 - tolMac) });
+        }
+      });
+    }
+    candidates.sort((a, b) => a.d - b.d);
+    const taken = new Set<number>();
+    for (const { p, c } of candidates) {
+      if (p.cluster >= 0 || taken.has(c)) continue;
+      p.cluster = c;
+      taken.add(c);
+    }
+    for (const p of current) {
+      if (!p.stable) continue;
+      if (p.cluster < 0) {
+        p.cluster = clusters.length;
+        clusters.push({ members: [p], frequencyHz: p.pole.frequencyHz });
+      } else if (clusters[p.cluster].members.at(-1)?.order !== p.order) {
+        const cluster = clusters[p.cluster];
+        cluster.members.push(p);
+        cluster.frequencyHz = median(cluster.members.map((m) => m.pole.frequencyHz));
+      }
+    }
+  }
+  const stats = (c: Cluster) => {
+    const first = c.members[0].order;
+    return {
+      stableOrders: c.members.length,
+      ordersSpanned: (maxOrder - first) / 2 + 1,
+      frequencySpreadPercent: spreadPercent(c.members.map((m) => m.pole.frequencyHz)),
+      dampingSpreadPercent: spreadPercent(c.members.map((m) => m.pole.dampingRatio)),
+    };
+  };
+  // The cluster's pole: median frequency and median damping of its members.
+  const clusterPole = (c: Cluster): Pole => {
+    const hz = median(c.members.map((m) => m.pole.frequencyHz));
+    const zeta = median(c.members.map((m) => m.pole.dampingRatio));
+    const wn = 2 * Math.PI * hz;
+    return {
+      frequencyHz: hz,
+      dampingRatio: zeta,
+      lambda: { re: -zeta * wn, im: wn * Math.sqrt(1 - zeta * zeta) },
+    };
+  };
+
+  type Choice = { pole: Pole; cluster?: Cluster; named: boolean };
+  let chosen: Choice[];
   if (options.modesHz !== undefined) {
-    chosen = options.modesHz.map((hz) => {
-      let best: Tracked | undefined;
-      for (const p of previous) {
+    const last = orders[orders.length - 1];
+    chosen = options.modesHz.map((hz): Choice => {
+      // The cluster nearest the frequency asked for, else the highest order's pole.
+      let bestCluster: Cluster | undefined;
+      for (const c of clusters) {
+        if (
+          Math.abs(c.frequencyHz / hz - 1) <= 2 * tolF &&
+          (bestCluster === undefined ||
+            Math.abs(c.frequencyHz - hz) < Math.abs(bestCluster.frequencyHz - hz))
+        ) bestCluster = c;
+      }
+      if (bestCluster !== undefined) {
+        return { pole: clusterPole(bestCluster), cluster: bestCluster, named: true };
+      }
+      let best: OrderPole | undefined;
+      for (const p of last) {
         if (
           best === undefined ||
           Math.abs(p.pole.frequencyHz - hz) < Math.abs(best.pole.frequencyHz - hz)
@@ -244,24 +458,33 @@ export function modalFit(
       if (best === undefined) {
         throw new QuiverError(`no pole at order ${maxOrder} to match ${hz} Hz`);
       }
-      return best.pole;
+      return { pole: best.pole, named: true };
     });
   } else {
-    const stable = previous.filter((p) => p.run >= stableOrders).map((p) => p.pole);
-    chosen = [];
-    for (const p of stable) {
-      const twin = chosen.find((c) => Math.abs(c.frequencyHz / p.frequencyHz - 1) <= tolF);
-      if (twin === undefined) chosen.push(p);
+    const selected = clusters.filter((c) => {
+      const s = stats(c);
+      return s.stableOrders >= stableOrders &&
+        s.stableOrders > SELECTION_RULE.mostOrders * s.ordersSpanned;
+    }).sort((a, b) => b.members.length - a.members.length);
+    // Two clusters of one mode (same frequency within tolerance, same shape): keep the steadier.
+    const kept: Cluster[] = [];
+    for (const c of selected) {
+      const twin = kept.find((k) =>
+        Math.abs(k.frequencyHz / c.frequencyHz - 1) <= tolF &&
+        macOf(k.members.at(-1)!.shape, c.members.at(-1)!.shape) >= tolMac
+      );
+      if (twin === undefined) kept.push(c);
     }
+    chosen = kept.map((c) => ({ pole: clusterPole(c), cluster: c, named: false }));
   }
   if (chosen.length === 0) {
     throw new QuiverError(
-      `no pole stayed stable over ${stableOrders} orders up to order ${maxOrder}; raise --max-order, narrow the band, or name the modes with --modes-hz`,
+      `no cluster of poles was stable at ${stableOrders} or more orders and at most of the orders up to ${maxOrder}; raise --max-order, narrow the band, or name the modes with --modes-hz`,
     );
   }
-  chosen.sort((a, b) => a.frequencyHz - b.frequencyHz);
-  const fit = fitResidues(set, chosen);
-  const modes: FittedMode[] = chosen.map((pole, r) => {
+  chosen.sort((a, b) => a.pole.frequencyHz - b.pole.frequencyHz);
+  const fit = fitResidues(set, chosen.map((c) => c.pole));
+  const modes: FittedMode[] = chosen.map(({ pole, cluster, named }, r) => {
     const raw = shapeOf(fit.residues, r);
     let k = 0;
     raw.forEach((c, i) => {
@@ -277,30 +500,111 @@ export function modalFit(
     const flags = [
       ...(mpc < 0.9 ? ["low_mpc"] : []),
       ...(converted.some((c) => c.assumed) ? ["form_assumed"] : []),
+      ...(tau !== undefined ? ["window_corrected"] : []),
+      ...(named ? ["named"] : []),
+      ...(named && cluster === undefined ? ["unstable"] : []),
     ];
     // Undo the exponential window's shift of the pole: λ_true = λ + 1/τ.
     const re = pole.lambda.re + (tau !== undefined ? 1 / tau : 0);
     const wn = Math.hypot(re, pole.lambda.im);
+    if (cluster !== undefined) cluster.members.forEach((m) => (m.mode = r + 1));
+    const s = cluster !== undefined ? stats(cluster) : undefined;
     return {
       mode: r + 1,
       frequencyHz: wn / (2 * Math.PI),
       dampingRatio: -re / wn,
       mpc,
       shape,
-      flags: tau !== undefined ? [...flags, "window_corrected"] : flags,
+      flags,
+      stableOrders: s?.stableOrders ?? 0,
+      ordersSpanned: s?.ordersSpanned ?? 0,
+      frequencySpreadPercent: s?.frequencySpreadPercent ?? NaN,
+      dampingSpreadPercent: s?.dampingSpreadPercent ?? NaN,
     };
   });
+  // A clear peak that no mode explains is named, never dropped in silence.
+  const unexplainedPeaks = unexplained(frequencies, from, to, dofs, modes);
+  for (const peak of unexplainedPeaks) {
+    const near = clusters.filter((c) =>
+      Math.abs(c.frequencyHz / peak.frequencyHz - 1) <= SELECTION_RULE.peakReach
+    ).sort((a, b) =>
+      b.members.length - a.members.length
+    )[0];
+    warnings.push(
+      `a clear peak of the FRFs at ${formatFixed(peak.frequencyHz, 2)} Hz (${
+        formatFixed(peak.prominenceDb, 1)
+      } dB prominence${
+        peak.coherence !== undefined ? `, coherence ${formatFixed(peak.coherence, 2)}` : ""
+      }) has no mode: ${
+        near === undefined
+          ? "no pole near it was stable"
+          : `poles near it were stable at ${near.members.length} of ${
+            stats(near).ordersSpanned
+          } orders`
+      }; name it with --modes-hz or change --max-order`,
+    );
+  }
   return {
     modes,
     dofs: dofs.map(({ point, direction }) => ({ point, direction })),
-    stability,
+    stability: stability.map(({ entry, flags }) => ({
+      order: entry.order,
+      frequencyHz: entry.pole.frequencyHz,
+      dampingRatio: entry.pole.dampingRatio,
+      stableFrequency: flags[0],
+      stableDamping: flags[1],
+      stableShape: flags[2],
+      mode: entry.mode,
+    })),
     frequencies: band,
     measured: converted.map(({ re, im }) => ({ re, im })),
     synthesis: fit.synthesis,
     relativeError: fit.relativeError,
+    unexplainedPeaks,
     warnings,
     unit: dofs[0].frf.unit,
   };
+}
+
+/**
+ * Clear peaks of the sum of |H| over the FRFs (as given) in the band that no
+ * mode explains: prominence, height and coherence as {@linkcode SELECTION_RULE}.
+ */
+function unexplained(
+  frequencies: Float64Array,
+  from: number,
+  to: number,
+  dofs: readonly ModalDof[],
+  modes: readonly FittedMode[],
+): UnexplainedPeak[] {
+  const sum = new Float64Array(to - from);
+  for (const d of dofs) for (let k = from; k < to; k++) sum[k - from] += d.frf.magnitude[k];
+  const f = frequencies.subarray(from, to);
+  const peaks = findPeaks(f, sum, { prominenceDb: SELECTION_RULE.peakProminenceDb });
+  let top = 0;
+  for (const p of peaks) top = Math.max(top, sum[p.index]);
+  const spacing = f.length > 1 ? (f[f.length - 1] - f[0]) / (f.length - 1) : 0;
+  const withCoherence = dofs.filter((d) => d.frf.coherence !== undefined);
+  const out: UnexplainedPeak[] = [];
+  for (const p of peaks) {
+    if (sum[p.index] < SELECTION_RULE.peakFloor * top) continue;
+    let coherence: number | undefined;
+    if (withCoherence.length > 0) {
+      coherence = 0;
+      for (const d of withCoherence) coherence += d.frf.coherence![from + p.index];
+      coherence /= withCoherence.length;
+      if (coherence < SELECTION_RULE.peakCoherence) continue;
+    }
+    const hz = f[p.index];
+    const reach = Math.max(SELECTION_RULE.peakReach * hz, SELECTION_RULE.peakLines * spacing);
+    if (modes.some((m) => Math.abs(m.frequencyHz - hz) <= reach)) continue;
+    out.push({
+      frequencyHz: hz,
+      prominenceDb: p.prominenceDb,
+      ...(coherence !== undefined ? { coherence } : {}),
+    });
+  }
+  return out;
 }
 
 function vector(shape: readonly Complex[]) {
@@ -318,11 +622,13 @@ export const MODAL_METHOD =
  * @example
  * ```ts
  * import { modalTables } from "./modal_fit.ts";
- * const t = modalTables({ modes: [{ mode: 1, frequencyHz: 50, dampingRatio: 0.02, mpc: 1, shape: [{ re: 1, im: 0 }], flags: [] }],
+ * const t = modalTables({ modes: [{ mode: 1, frequencyHz: 50, dampingRatio: 0.02, mpc: 1, shape: [{ re: 1, im: 0 }], flags: [],
+ *   stableOrders: 12, ordersSpanned: 14, frequencySpreadPercent: 0.1, dampingSpreadPercent: 3 }],
  *   dofs: [{ point: "1", direction: "z" }], stability: [], frequencies: new Float64Array([50]),
  *   measured: [{ re: new Float64Array([0]), im: new Float64Array([1]) }], synthesis: [{ re: new Float64Array([0]), im: new Float64Array([1]) }],
  *   relativeError: new Float64Array([0]), warnings: [] }, {});
  * if (t.modes.columns[1].values[0] !== 50 || t.shapes.columns[1].values[0] !== "1") throw new Error();
+ * if (t.modes.columns[5].values[0] !== 12) throw new Error();
  * ```
  */
 export function modalTables(
@@ -342,6 +648,11 @@ export function modalTables(
     dofs: result.dofs,
     fit_relative_error: Array.from(result.relativeError),
     modes: result.modes.map(({ shape: _s, ...m }) => m),
+    unexplained_peaks: (result.unexplainedPeaks ?? []).map((p) => ({
+      frequency_hz: p.frequencyHz,
+      prominence_db: p.prominenceDb,
+      coherence: p.coherence ?? null,
+    })),
     warnings: result.warnings,
   };
   const num = (
@@ -371,6 +682,10 @@ export function modalTables(
         num("damping_ratio", "", result.modes.map((m) => m.dampingRatio)),
         num("mpc", "", result.modes.map((m) => m.mpc)),
         { name: "flags", unit: "", values: result.modes.map((m) => m.flags.join(" ")) },
+        num("stable_orders", "", result.modes.map((m) => m.stableOrders)),
+        num("orders_spanned", "", result.modes.map((m) => m.ordersSpanned)),
+        num("frequency_spread", "%", result.modes.map((m) => m.frequencySpreadPercent)),
+        num("damping_spread", "%", result.modes.map((m) => m.dampingSpreadPercent)),
       ],
       metadata,
     },
@@ -393,6 +708,7 @@ export function modalTables(
         num("stable_frequency", "", result.stability.map((p) => Number(p.stableFrequency))),
         num("stable_damping", "", result.stability.map((p) => Number(p.stableDamping))),
         num("stable_shape", "", result.stability.map((p) => Number(p.stableShape))),
+        num("mode", "", result.stability.map((p) => p.mode)),
       ],
       metadata: { ...metadata, layout: "one row per pole and model order" },
     },

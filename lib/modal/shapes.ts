@@ -217,14 +217,64 @@ export interface ShapeCorrelation {
   /** MAC of the test modes with each other. */
   readonly autoMac: readonly Float64Array[];
   /** The one-to-one pairs of greatest total MAC. */
-  readonly pairs: readonly {
-    testMode: number;
-    simulationMode: number;
-    testHz: number | undefined;
-    simulationHz: number | undefined;
-    shiftPercent: number | undefined;
-    mac: number;
-  }[];
+  readonly pairs: readonly ModePair[];
+}
+
+/** A test mode paired with a simulation mode. */
+export interface ModePair {
+  readonly testMode: number;
+  readonly simulationMode: number;
+  readonly testHz: number | undefined;
+  readonly simulationHz: number | undefined;
+  readonly shiftPercent: number | undefined;
+  readonly mac: number;
+  /**
+   * The strongest rival that makes the pair ambiguous (see
+   * {@linkcode AMBIGUITY}): another simulation mode for this test mode, or
+   * another test mode for this simulation mode; undefined when the pair is clear.
+   */
+  readonly rival?: {
+    readonly side: "simulation" | "test";
+    readonly mode: number;
+    readonly mac: number;
+  };
+}
+
+/**
+ * When a pair is ambiguous (rule ours): another mode on either side has a MAC
+ * with the pair's partner of at least `floor` and within `margin` of the
+ * pair's MAC (or above it), so the shapes do not tell the two apart.
+ */
+export const AMBIGUITY = { margin: 0.05, floor: 0.5 } as const;
+
+/**
+ * The rival that makes pair (i, j) of a MAC matrix ambiguous, if any: the
+ * highest MAC of row i outside column j, or of column j outside row i, when
+ * it is at least {@linkcode AMBIGUITY}.floor and no more than
+ * {@linkcode AMBIGUITY}.margin below MAC[i][j].
+ *
+ * @example
+ * ```ts
+ * import { pairRival } from "./shapes.ts";
+ * const mac = [new Float64Array([0.954, 0.940, 0.02]), new Float64Array([0.1, 0.3, 0.97])];
+ * const r = pairRival(mac, 0, 0);
+ * if (r?.side !== "simulation" || r.index !== 1) throw new Error();
+ * if (pairRival(mac, 1, 2) !== undefined) throw new Error();
+ * ```
+ */
+export function pairRival(
+  mac: readonly ArrayLike<number>[],
+  i: number,
+  j: number,
+): { side: "simulation" | "test"; index: number; mac: number } | undefined {
+  let best: { side: "simulation" | "test"; index: number; mac: number } | undefined;
+  const consider = (side: "simulation" | "test", index: number, value: number) => {
+    if (value < AMBIGUITY.floor || value < mac[i][j] - AMBIGUITY.margin) return;
+    if (best === undefined || value > best.mac) best = { side, index, mac: value };
+  };
+  for (let k = 0; k < mac[i].length; k++) if (k !== j) consider("simulation", k, mac[i][k]);
+  for (let l = 0; l < mac.length; l++) if (l !== i) consider("test", l, mac[l][j]);
+  return best;
 }
 
 /**
@@ -272,8 +322,9 @@ export function correlateShapes(
   const testVectors = test.map((m) => vector(m, "test", (k) => k));
   const simulationVectors = simulation.map((m) => vector(m, "simulation", rename));
   const mac = macMatrix(testVectors, simulationVectors);
-  const pairs = bestPairing(mac).map(([i, j]) => {
+  const pairs = bestPairing(mac).map(([i, j]): ModePair => {
     const testHz = test[i].frequencyHz, simulationHz = simulation[j].frequencyHz;
+    const rival = pairRival(mac, i, j);
     return {
       testMode: test[i].mode,
       simulationMode: simulation[j].mode,
@@ -283,6 +334,17 @@ export function correlateShapes(
         ? (100 * (simulationHz - testHz)) / testHz
         : undefined,
       mac: mac[i][j],
+      ...(rival !== undefined
+        ? {
+          rival: {
+            side: rival.side,
+            mode: rival.side === "simulation"
+              ? simulation[rival.index].mode
+              : test[rival.index].mode,
+            mac: rival.mac,
+          },
+        }
+        : {}),
     };
   });
   return {
@@ -332,7 +394,13 @@ export function correlationTables(
       simulation_hz: p.simulationHz ?? null,
       shift_percent: p.shiftPercent ?? null,
       mac: p.mac,
+      ambiguous: p.rival !== undefined,
+      rival: p.rival !== undefined
+        ? { side: p.rival.side, mode: p.rival.mode, mac: p.rival.mac }
+        : null,
     })),
+    ambiguity_rule:
+      `a pair is ambiguous when another mode on either side has a MAC with the pair's partner of at least ${AMBIGUITY.floor} and no more than ${AMBIGUITY.margin} below the pair's`,
   };
   const column = (name: string, values: ArrayLike<number | undefined>) => ({
     name,
@@ -356,6 +424,16 @@ export function correlationTables(
         column("simulation_hz", correlation.pairs.map((p) => p.simulationHz)),
         column("shift_percent", correlation.pairs.map((p) => p.shiftPercent)),
         column("mac", correlation.pairs.map((p) => p.mac)),
+        column("ambiguous", correlation.pairs.map((p) => (p.rival !== undefined ? 1 : 0))),
+        column(
+          "rival_simulation_mode",
+          correlation.pairs.map((p) => p.rival?.side === "simulation" ? p.rival.mode : undefined),
+        ),
+        column(
+          "rival_test_mode",
+          correlation.pairs.map((p) => p.rival?.side === "test" ? p.rival.mode : undefined),
+        ),
+        column("rival_mac", correlation.pairs.map((p) => p.rival?.mac)),
       ],
       metadata: { ...metadata, layout: "one row per paired test mode" },
     },

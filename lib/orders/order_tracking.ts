@@ -197,7 +197,12 @@ function ordersOfSeries(
   const weighting = options.weighting ?? "Z";
   const db = options.db ?? false;
   const channels = recording.channels;
-  const { motion, notes } = motionOfSeries(speedSeries, recording.rate, options);
+  const { motion, notes } = motionOfSeries(
+    speedSeries,
+    recording.rate,
+    options,
+    recording.startTime,
+  );
   const warnings = [...notes, ...recording.signalWarnings];
   const { steps, rpmMin, rpmMax, rpmStep: step, recorded: [lowest, highest] } = rpmSteps(
     motion,

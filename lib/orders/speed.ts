@@ -11,7 +11,13 @@ import { QuiverError } from "../errors.ts";
 import { formatNumber } from "../format_number.ts";
 import { type Recording, selectChannels } from "../io/recording.ts";
 import { memorySeries, type SampleSeries } from "../io/sample_series.ts";
-import { motionFromPulses, motionFromRpm, type ShaftMotion, tachoPulses } from "./tacho.ts";
+import {
+  motionFromPulses,
+  motionFromRpm,
+  type ShaftMotion,
+  type TachoPulses,
+  tachoPulses,
+} from "./tacho.ts";
 
 /** Where the speed comes from. Give `tacho` (with `ppr`) or `rpmChannel`. */
 export interface SpeedSource {
@@ -19,8 +25,13 @@ export interface SpeedSource {
   tacho?: string;
   /** Channel that holds rpm directly; give this or `tacho`. */
   rpmChannel?: string;
-  /** Pulses per revolution of the tacho. Required with `tacho`. */
+  /**
+   * Pulses per revolution of the tacho. Required with `tacho`. With
+   * `missingTeeth`, the tooth positions of the full wheel (60 for a 60-2 wheel).
+   */
   ppr?: number;
+  /** Teeth missing from a missing-tooth wheel (2 for a 60-2 wheel). Default 0. */
+  missingTeeth?: number;
   /** Tacho switching level. Default: automatic (see tacho.ts). */
   tachoLevel?: number;
   /** Tacho hysteresis. Default: automatic. */
@@ -90,24 +101,87 @@ export function motionOfSeries(
   series: SampleSeries,
   rate: number,
   source: SpeedSource,
+  startTime = 0,
 ): { motion: ShaftMotion; notes: string[] } {
   speedChannelName(source);
   if (source.rpmChannel !== undefined) {
+    if (source.missingTeeth !== undefined) {
+      throw new RangeError("missing teeth belong to a tacho wheel, not to an rpm channel");
+    }
     return { motion: motionFromRpm(series.read(0, series.length), rate), notes: [] };
   }
   const ppr = source.ppr;
   if (ppr === undefined || !Number.isInteger(ppr) || ppr < 1) {
     throw new RangeError(`pulses per revolution must be a positive integer, got ${ppr}`);
   }
+  const missingTeeth = source.missingTeeth ?? 0;
   const pulses = tachoPulses(series, rate, {
     ppr,
+    missingTeeth,
     ...(source.tachoLevel !== undefined ? { level: source.tachoLevel } : {}),
     ...(source.tachoHysteresis !== undefined ? { hysteresis: source.tachoHysteresis } : {}),
   });
+  return {
+    motion: motionFromPulses(pulses.times, ppr, pulses.angles),
+    notes: tachoNotes(pulses, ppr, missingTeeth, startTime),
+  };
+}
+
+/** Seconds on the recording's time axis, for messages. */
+const seconds = (t: number) => Number(t.toFixed(3)).toString();
+
+/** What the tacho reading found, filled, dropped or recognised, for the warnings. */
+function tachoNotes(
+  pulses: TachoPulses,
+  ppr: number,
+  missingTeeth: number,
+  startTime: number,
+): string[] {
   const notes: string[] = [];
-  if (pulses.inserted > 0) notes.push(`${pulses.inserted} missing tacho pulse(s) filled in`);
+  const stretch = ([a, b]: readonly [number, number]) =>
+    `${seconds(startTime + a)}–${seconds(startTime + b)} s`;
+  for (const s of pulses.silent) {
+    notes.push(
+      `no tacho pulse from ${stretch(s)}: the speed and the orders are not known there`,
+    );
+  }
+  if (pulses.inserted > 0) {
+    const shown = pulses.filled.slice(0, 5).map(stretch).join(", ");
+    const more = pulses.filled.length > 5 ? ` and ${pulses.filled.length - 5} more` : "";
+    notes.push(
+      `${pulses.inserted} missing tacho pulse(s) filled in, in ${pulses.filled.length} gap(s): ${shown}${more}`,
+    );
+  }
   if (pulses.removed > 0) notes.push(`${pulses.removed} extra tacho pulse(s) removed`);
-  return { motion: motionFromPulses(pulses.times, ppr), notes };
+  if (pulses.wheelHint !== undefined) {
+    const { teeth, missing } = pulses.wheelHint;
+    // Filled in, the wheel counts `teeth` pulses a revolution, read as `ppr`.
+    const off = 100 * (teeth / ppr - 1);
+    notes.push(
+      `the tacho looks like a missing-tooth wheel (${teeth}-${missing}): ${missing} pulse(s) were ` +
+        `filled in once every ${teeth - missing} pulses; if it is one, give --ppr ${teeth} ` +
+        `--missing-teeth ${missing}` +
+        (Math.abs(off) > 1e-9
+          ? ` (as read, with --ppr ${ppr}, the speed is ${Math.abs(off).toFixed(1)} % ${
+            off > 0 ? "high" : "low"
+          })`
+          : ""),
+    );
+  }
+  if (missingTeeth > 0) {
+    if (pulses.references === 0) {
+      notes.push(
+        `no gap of ${missingTeeth} missing teeth was found: the angle counts teeth from the first pulse`,
+      );
+    }
+    if (pulses.mismatched > 0) {
+      notes.push(
+        `${pulses.mismatched} gap(s) of ${missingTeeth + 1} tooth pitches came where no ` +
+          `revolution ends: pulses lost there, counted as ${missingTeeth} missing teeth each`,
+      );
+    }
+  }
+  return notes;
 }
 
 /**
@@ -229,7 +303,15 @@ export function rpmSteps(motion: ShaftMotion, options: RpmStepOptions = {}): Rpm
 /** The speed source as written into a result's metadata. */
 export function speedSourceMetadata(source: SpeedSource): Record<string, unknown> {
   return source.tacho !== undefined
-    ? { tacho: source.tacho, ppr: source.ppr }
+    ? {
+      tacho: source.tacho,
+      ppr: source.ppr,
+      missing_teeth: source.missingTeeth ?? 0,
+      // Which trigger read the pulses: following the pulse envelope, or fixed by the caller.
+      trigger: source.tachoLevel !== undefined || source.tachoHysteresis !== undefined
+        ? "fixed"
+        : "envelope",
+    }
     : { rpm_channel: source.rpmChannel };
 }
 

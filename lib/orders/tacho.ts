@@ -1,21 +1,37 @@
 /**
  * Shaft speed and angle from a tachometer channel.
  *
- * Pulses: a Schmitt trigger on the tacho signal. The switching level is the
- * midpoint of the signal's 2nd and 98th percentiles and the hysteresis 20 %
- * of that span (both overridable), so analogue and TTL tachos work alike.
- * Each pulse's time is the sub-sample instant, by linear interpolation,
- * where the signal last crossed the level on its way up.
+ * Pulses: a Schmitt trigger whose level and hysteresis follow the pulses'
+ * own amplitude, so that an inductive tacho (amplitude proportional to
+ * speed, ten times weaker at the start of a run-up than at its end) is read
+ * from its first pulse, as a TTL tacho is. An envelope holds the signal's
+ * recent highest and lowest values: each follows the signal at once outward,
+ * is held for {@linkcode ENVELOPE_HOLD_INTERVALS} pulse intervals after the
+ * signal last came near it, and then relaxes towards the signal with a time
+ * constant of {@linkcode ENVELOPE_RELEASE_INTERVALS} intervals (the latest
+ * interval; before the second pulse it only holds). The switching level is the
+ * envelope's midpoint and the hysteresis {@linkcode HYSTERESIS_FRACTION} of
+ * its width, but never less than {@linkcode HYSTERESIS_FLOOR} of the
+ * record's 2nd–98th percentile span: noise below that, as in a stretch where
+ * the tacho is silent, gives no pulses. A level or hysteresis given by the
+ * caller makes the trigger fixed (the other one from the percentiles: the
+ * midpoint of the 2nd and 98th, and 20 % of their span). Each pulse's time
+ * is the sub-sample instant, by linear interpolation, where the signal last
+ * crossed the level on its way up.
  *
  * Cleaning: an interval more than 1.5 times the local median (of the 11
  * around it) is a gap of n ≈ interval/median pulses, filled evenly; one
  * shorter than half the median comes from an extra pulse, which is dropped.
+ * A missing-tooth wheel (`missingTeeth` > 0, `ppr` the tooth positions of the
+ * full wheel, e.g. 60 for a 60-2 wheel) is never mended: an interval of about
+ * missingTeeth + 1 local medians is its gap, the once-per-revolution
+ * reference, and each pulse gets its tooth's angle. Where no pulse was found
+ * at the record's ends, or pulses were filled in, the stretches are named.
  *
- * Speed: each pulse advances 1/ppr revolution; pulse times are smoothed by
- * a local quadratic fit of time against angle (see
- * {@linkcode motionFromPulses}), the speed read from the fit, and the angle
- * θ(t) interpolated between the smoothed pulses by a monotone cubic
- * (Fritsch–Carlson 1980).
+ * Speed: pulse times are smoothed by a local quadratic fit of angle against
+ * time (see {@linkcode motionFromPulses}), the speed read from the fit, and
+ * the angle θ(t) interpolated between the smoothed pulses by a monotone
+ * cubic (Fritsch–Carlson 1980).
  *
  * @module
  */
@@ -23,31 +39,110 @@ import { minOf } from "../extent.ts";
 import { QuiverError } from "../errors.ts";
 import { kthSmallestOfMany, memorySeries, type SampleSeries } from "../io/sample_series.ts";
 
+/**
+ * The envelope's release time constant in pulse intervals: long enough that
+ * the envelope keeps most of the last peak through a missing tooth's gap
+ * (after the hold, e^(−1/3) = 72 % at the end of a 60-2 wheel's low phase),
+ * short enough to follow a run-up's amplitude (common practice for peak
+ * detectors: a few periods).
+ *
+ * @example
+ * ```ts
+ * import { ENVELOPE_RELEASE_INTERVALS } from "./tacho.ts";
+ * if (ENVELOPE_RELEASE_INTERVALS !== 3) throw new Error();
+ * ```
+ */
+export const ENVELOPE_RELEASE_INTERVALS = 3;
+
+/**
+ * Pulse intervals for which each side of the envelope is held after the
+ * signal last came near it, before it relaxes: a cycle and a half, so that
+ * a steady tacho refreshes it every cycle and is read at its exact midpoint.
+ *
+ * @example
+ * ```ts
+ * import { ENVELOPE_HOLD_INTERVALS } from "./tacho.ts";
+ * if (ENVELOPE_HOLD_INTERVALS !== 1.5) throw new Error();
+ * ```
+ */
+export const ENVELOPE_HOLD_INTERVALS = 1.5;
+
+/**
+ * The hysteresis as a fraction of the envelope's width (of the 2nd–98th
+ * percentile span for a fixed trigger).
+ *
+ * @example
+ * ```ts
+ * import { HYSTERESIS_FRACTION } from "./tacho.ts";
+ * if (HYSTERESIS_FRACTION !== 0.2) throw new Error();
+ * ```
+ */
+export const HYSTERESIS_FRACTION = 0.2;
+
+/**
+ * The least hysteresis, as a fraction of the record's 2nd–98th percentile
+ * span: pulses down to about this fraction of the strongest are read, noise
+ * below it is not.
+ *
+ * @example
+ * ```ts
+ * import { HYSTERESIS_FLOOR } from "./tacho.ts";
+ * if (HYSTERESIS_FLOOR !== 0.01) throw new Error();
+ * ```
+ */
+export const HYSTERESIS_FLOOR = 0.01;
+
 /** Options of {@linkcode tachoPulses}. */
 export interface TachoOptions {
-  /** Pulses per revolution. Required. */
+  /**
+   * Pulses per revolution; with `missingTeeth`, the tooth positions of the
+   * full wheel (60 for a 60-2 wheel, which gives 58 pulses). Required.
+   */
   ppr: number;
-  /** Switching level. Default: midpoint of the 2nd and 98th percentiles. */
+  /** Teeth missing from the wheel, in one gap per revolution. Default 0. */
+  missingTeeth?: number;
+  /** Switching level, fixed. Default: following the pulses (see the module). */
   level?: number;
-  /** Hysteresis (full width). Default: 20 % of the 2nd–98th percentile span. */
+  /** Hysteresis (full width), fixed. Default: following the pulses (see the module). */
   hysteresis?: number;
 }
 
-/** Cleaned pulse times and what was repaired. */
+/** Cleaned pulse times and what was repaired or recognised. */
 export interface TachoPulses {
-  /** Pulse times, s, strictly increasing. */
+  /** Pulse times, s from the first sample, strictly increasing. */
   readonly times: Float64Array;
+  /** The shaft angle at each pulse, revolutions (j/ppr, or the tooth's angle on a missing-tooth wheel). */
+  readonly angles: Float64Array;
   /** Pulses inserted into gaps. */
   readonly inserted: number;
   /** Extra pulses removed. */
   readonly removed: number;
-  /** Switching level used. */
-  readonly level: number;
-  /** Hysteresis used. */
+  /** Switching level: the fixed one, or undefined when it followed the pulses. */
+  readonly level: number | undefined;
+  /** Hysteresis: the fixed one, or the least (the floor) when it followed the pulses. */
   readonly hysteresis: number;
+  /** Stretches (s from the first sample) at the record's ends where no pulse was found. */
+  readonly silent: readonly (readonly [number, number])[];
+  /** Stretches (s) between the pulses that bound each filled gap. */
+  readonly filled: readonly (readonly [number, number])[];
+  /** Missing-tooth gaps recognised (one per revolution). */
+  readonly references: number;
+  /** Gap-sized intervals where no revolution ends (teeth lost there; not taken as the mark). */
+  readonly mismatched: number;
+  /**
+   * Without `missingTeeth`: filled gaps that look like a missing-tooth wheel
+   * (the same number of pulses filled, at the same spacing, at least 3 times).
+   */
+  readonly wheelHint?: { readonly teeth: number; readonly missing: number };
 }
 
-/** The p-th percentile as the value at rank round(p/100·(n − 1)) of the sorted record, exactly. */
+/**
+ * When the 2nd–98th percentile span is below this share of the whole range,
+ * the pulses fill less than 2 % of the record and the range is taken
+ * instead (rule ours).
+ */
+const NARROW_SHARE = 0.1;
+
 /** The samples at the given percentiles (nearest rank), in one set of passes. */
 function percentiles(series: SampleSeries, ps: readonly number[]): number[] {
   const n = series.length;
@@ -76,9 +171,93 @@ function localMedian(values: readonly number[], i: number, scratch: Float64Array
 }
 
 /**
+ * The raw pulse times of a Schmitt trigger over the record, fixed or
+ * following the envelope (see the module).
+ */
+function triggerPulses(
+  series: SampleSeries,
+  rate: number,
+  trigger: { fixed: boolean; level: number; hysteresis: number; floor: number },
+): number[] {
+  const raw: number[] = [];
+  const { fixed, floor } = trigger;
+  let armed = false;
+  let lastCross = NaN;
+  let previous = NaN;
+  let hi = NaN, lo = NaN, release = 1, hold = Infinity, hiAt = 0, loAt = 0;
+  // A Schmitt trigger over the record chunk by chunk; `previous` and the envelope carry
+  // across. The state is copied into locals for each chunk's loop (captured variables cost
+  // more per sample than the comparisons) and stored back after it.
+  series.scan((chunk, offset) => {
+    let isArmed = armed, cross = lastCross, before = previous;
+    let top = hi, bottom = lo, r = release, held = hold, topAt = hiAt, bottomAt = loAt;
+    let level = trigger.level, upper = level + trigger.hysteresis / 2;
+    let lower = level - trigger.hysteresis / 2;
+    for (let j = 0; j < chunk.length; j++) {
+      const i = offset + j;
+      const value = chunk[j];
+      if (i === 0) {
+        // Armed when the record starts below the record's mid level.
+        isArmed = value < lower;
+        before = value;
+        top = bottom = value;
+        continue;
+      }
+      if (!fixed) {
+        // The envelope takes in this sample first, so that the first edge of the record is
+        // timed against the level of its own swing. Each side is held while the signal comes
+        // back near it every cycle (within 5 % of the width): a steady tacho keeps the exact
+        // midpoint; then it relaxes.
+        const near = 0.05 * (top - bottom);
+        if (value > top) top = value;
+        else if (i - topAt > held) top = value + (top - value) * r;
+        if (value >= top - near) topAt = i;
+        if (value < bottom) bottom = value;
+        else if (i - bottomAt > held) bottom = value + (bottom - value) * r;
+        if (value <= bottom + near) bottomAt = i;
+        const h = Math.max(HYSTERESIS_FRACTION * (top - bottom), floor);
+        level = (top + bottom) / 2;
+        upper = level + h / 2;
+        lower = level - h / 2;
+      }
+      if (before < level && value >= level) {
+        cross = (i - 1 + (level - before) / (value - before)) / rate;
+      }
+      if (isArmed && value >= upper) {
+        const t = Number.isNaN(cross) ? i / rate : cross;
+        if (raw.length > 0) {
+          // Hold and release follow the latest pulse interval.
+          const interval = (t - raw[raw.length - 1]) * rate;
+          r = Math.exp(-1 / (ENVELOPE_RELEASE_INTERVALS * interval));
+          held = ENVELOPE_HOLD_INTERVALS * interval;
+        }
+        raw.push(t);
+        isArmed = false;
+      } else if (!isArmed && value <= lower) {
+        isArmed = true;
+        // A pulse is timed by a crossing after its arming, never by an earlier one.
+        cross = NaN;
+      }
+      before = value;
+    }
+    armed = isArmed;
+    lastCross = cross;
+    previous = before;
+    hi = top;
+    lo = bottom;
+    release = r;
+    hold = held;
+    hiAt = topAt;
+    loAt = bottomAt;
+  });
+  return raw;
+}
+
+/**
  * Finds and cleans the tacho pulses.
  *
- * @throws {QuiverError} when fewer than 3 pulses are found.
+ * @throws {QuiverError} when fewer than 3 pulses are found; RangeError for
+ * missing teeth that leave fewer than 2 teeth.
  *
  * @example
  * ```ts
@@ -95,47 +274,31 @@ export function tachoPulses(
   options: TachoOptions,
 ): TachoPulses {
   const series = signal instanceof Float64Array ? memorySeries(signal) : signal;
+  const missingTeeth = options.missingTeeth ?? 0;
+  if (
+    !Number.isInteger(missingTeeth) || missingTeeth < 0 ||
+    (missingTeeth > 0 && options.ppr - missingTeeth < 2)
+  ) {
+    throw new RangeError(
+      `missing teeth must be a whole number from 0 that leaves at least 2 of the ${options.ppr} teeth, got ${missingTeeth}`,
+    );
+  }
   if (series.length < 2) throw new QuiverError("the tacho channel is flat: no pulses to find");
-  const [low, high] = percentiles(series, [2, 98]);
+  const [least, p2, p98, most] = percentiles(series, [0, 2, 98, 100]);
+  // Pulses high (or low) for under 2 % of the time (a once-per-revolution mark, a
+  // narrow optical tacho) leave both percentiles at the resting level: the levels are
+  // then taken from the extremes, and only a channel with no excursion at all is flat.
+  const narrow = p98 - p2 < NARROW_SHARE * (most - least);
+  const low = narrow ? least : p2;
+  const high = narrow ? most : p98;
+  const fixed = options.level !== undefined || options.hysteresis !== undefined;
   const level = options.level ?? (low + high) / 2;
-  const hysteresis = options.hysteresis ?? 0.2 * (high - low);
+  const hysteresis = options.hysteresis ?? HYSTERESIS_FRACTION * (high - low);
+  const floor = HYSTERESIS_FLOOR * (high - low);
   if (!(hysteresis > 0)) {
     throw new QuiverError("the tacho channel is flat: no pulses to find");
   }
-  const upper = level + hysteresis / 2;
-  const lower = level - hysteresis / 2;
-  const raw: number[] = [];
-  let armed = false;
-  let lastCross = NaN;
-  let previous = NaN;
-  // A Schmitt trigger over the record chunk by chunk; `previous` carries the last sample across.
-  // The state is copied into locals for each chunk's loop (captured variables cost more per
-  // sample than the comparisons) and stored back after it.
-  series.scan((chunk, offset) => {
-    let isArmed = armed, cross = lastCross, before = previous;
-    for (let j = 0; j < chunk.length; j++) {
-      const i = offset + j;
-      const value = chunk[j];
-      if (i === 0) {
-        isArmed = value < lower;
-        before = value;
-        continue;
-      }
-      if (before < level && value >= level) {
-        cross = (i - 1 + (level - before) / (value - before)) / rate;
-      }
-      if (isArmed && value >= upper) {
-        raw.push(Number.isNaN(cross) ? i / rate : cross);
-        isArmed = false;
-      } else if (!isArmed && value <= lower) {
-        isArmed = true;
-      }
-      before = value;
-    }
-    armed = isArmed;
-    lastCross = cross;
-    previous = before;
-  });
+  const raw = triggerPulses(series, rate, { fixed, level, hysteresis, floor });
   if (raw.length < 3) {
     throw new QuiverError(
       `only ${raw.length} tacho pulse(s) found; check the channel, level and hysteresis`,
@@ -168,7 +331,6 @@ export function tachoPulses(
     removed++;
     i = Math.max(0, i - 1);
   }
-  let inserted = 0;
   const intervals = times.slice(1).map((t, i) => t - times[i]);
   const medians = new Float64Array(intervals.length);
   for (let i = 0; i < intervals.length; i++) medians[i] = localMedian(intervals, i, scratch);
@@ -180,16 +342,104 @@ export function tachoPulses(
       } samples apart: the sample rate is too low for this tacho (fewer pulses per revolution, or record faster)`,
     );
   }
+  const mended = mendPulses(times, intervals, medians, options.ppr, missingTeeth);
+  const span = series.length / rate;
+  const silent: [number, number][] = [];
+  // A stretch at an end longer than 2 of the nearest pulse intervals held no pulse.
+  if (times[0] > 2 * intervals[0]) silent.push([0, times[0]]);
+  const last = times[times.length - 1];
+  if (span - last > 2 * intervals[intervals.length - 1]) silent.push([last, span]);
+  return {
+    ...mended,
+    removed,
+    level: fixed ? level : undefined,
+    hysteresis: fixed ? hysteresis : floor,
+    silent,
+  };
+}
+
+/**
+ * Gaps filled (or, on a missing-tooth wheel, its reference gap recognised)
+ * and each pulse's angle.
+ */
+function mendPulses(
+  times: readonly number[],
+  intervals: readonly number[],
+  medians: Float64Array,
+  ppr: number,
+  missingTeeth: number,
+): Pick<
+  TachoPulses,
+  "times" | "angles" | "inserted" | "filled" | "references" | "mismatched" | "wheelHint"
+> {
   const filled: number[] = [times[0]];
+  const positions: number[] = [0];
+  const stretches: [number, number][] = [];
+  const fills: { at: number; count: number }[] = [];
+  let inserted = 0;
+  let position = 0;
+  const marks: number[] = [];
   intervals.forEach((interval, i) => {
-    const n = Math.round(interval / medians[i]);
+    const ratio = interval / medians[i];
+    if (missingTeeth > 0 && Math.abs(ratio - (missingTeeth + 1)) < 0.5) {
+      // The wheel's gap: the tooth after it is tooth 0 of a revolution (the marks are sorted
+      // out below). Its teeth are counted on.
+      position += missingTeeth + 1;
+      marks.push(position);
+      filled.push(times[i + 1]);
+      positions.push(position);
+      return;
+    }
+    const n = Math.round(ratio);
     if (interval > 1.5 * medians[i] && n >= 2) {
-      for (let j = 1; j < n; j++) filled.push(times[i] + (j * interval) / n);
+      for (let j = 1; j < n; j++) {
+        filled.push(times[i] + (j * interval) / n);
+        positions.push(++position);
+      }
       inserted += n - 1;
+      stretches.push([times[i], times[i + 1]]);
+      fills.push({ at: i, count: n - 1 });
     }
     filled.push(times[i + 1]);
+    positions.push(++position);
   });
-  return { times: new Float64Array(filled), inserted, removed, level, hysteresis };
+  // The marks: the gap-sized intervals at the tooth position (mod ppr) where most of them
+  // fall. One elsewhere is teeth lost mid-revolution: counted, not taken as a mark (the
+  // teeth are counted on either way, so the angle is right). Angles count from a mark's tooth
+  // 0 when there is one (whole revolutions there).
+  const residues = new Map<number, number>();
+  for (const m of marks) residues.set(m % ppr, (residues.get(m % ppr) ?? 0) + 1);
+  let residue = NaN, references = 0;
+  for (const [r, count] of residues) {
+    if (count > references) [residue, references] = [r, count];
+  }
+  const mismatched = marks.length - references;
+  const origin = marks.find((m) => m % ppr === residue) ?? 0;
+  const angles = new Float64Array(positions.map((p) => (p - origin) / ppr));
+  return {
+    times: new Float64Array(filled),
+    angles,
+    inserted,
+    filled: stretches,
+    references,
+    mismatched,
+    ...(missingTeeth === 0 ? wheelHint(fills) : {}),
+  };
+}
+
+/**
+ * A missing-tooth wheel read as a plain one: the same count filled in at
+ * least 3 gaps, the same number of pulses apart.
+ */
+function wheelHint(
+  fills: readonly { at: number; count: number }[],
+): { wheelHint?: { teeth: number; missing: number } } {
+  if (fills.length < 3) return {};
+  const missing = fills[0].count, spacing = fills[1].at - fills[0].at;
+  for (let k = 1; k < fills.length; k++) {
+    if (fills[k].count !== missing || fills[k].at - fills[k - 1].at !== spacing) return {};
+  }
+  return { wheelHint: { teeth: spacing + missing, missing } };
 }
 
 /** A shaft's angle and speed against time. */
@@ -252,11 +502,15 @@ function linear(x: Float64Array, y: Float64Array): (t: number) => number {
 
 /**
  * Shaft motion from cleaned pulse times. The angle at pulse j is exactly
- * j/ppr revolutions, while its time carries the sampling's jitter (up to a
- * sample for a TTL edge). So time is fitted as a quadratic function of angle
- * over the pulses within max(ppr, 6) either side (local least squares, exact
- * for constant angular acceleration): the fit gives each pulse a smoothed
- * time and the speed 60/(dt/dθ) in rpm.
+ * j/ppr revolutions (or `angles[j]`, as on a missing-tooth wheel), while its
+ * time carries the sampling's jitter (up to a sample for a TTL edge). So the
+ * angle is fitted as a quadratic function of time over the pulses within
+ * max(ppr, 6) either side (local least squares, exact for constant angular
+ * acceleration however much the speed changes across the window; time as a
+ * quadratic of angle is not, and read the low end of a tenfold run-up 3 %
+ * high): each pulse's smoothed time is where the fit reaches its angle (one
+ * Newton step from the measured time), and the speed is 60·dθ/dt there, in
+ * rpm.
  *
  * @example
  * ```ts
@@ -266,10 +520,14 @@ function linear(x: Float64Array, y: Float64Array): (t: number) => number {
  * if (Math.abs(m.rpmAt(0.2) - 3000) > 1e-6 || Math.abs(m.angleAt(0.1) - 5) > 1e-9) throw new Error();
  * ```
  */
-export function motionFromPulses(times: Float64Array, ppr: number): ShaftMotion {
+export function motionFromPulses(
+  times: Float64Array,
+  ppr: number,
+  angles?: Float64Array,
+): ShaftMotion {
   const n = times.length;
   const half = Math.max(ppr, 6);
-  const angle = new Float64Array(n).map((_, j) => j / ppr);
+  const angle = angles ?? new Float64Array(n).map((_, j) => j / ppr);
   const smoothed = new Float64Array(n);
   const rpm = new Float64Array(n);
   const scratch = new Float64Array(17), fit = new Float64Array(3);
@@ -286,9 +544,11 @@ export function motionFromPulses(times: Float64Array, ppr: number): ShaftMotion 
       rpm[j] = NaN;
       continue;
     }
-    polynomialFit(times, angle, { lo, hi, origin: angle[j], degree }, scratch, fit);
-    smoothed[j] = fit[0];
-    rpm[j] = 60 / fit[1];
+    polynomialFit(angle, times, { lo, hi, origin: times[j], degree }, scratch, fit);
+    // One Newton step to where the fit reaches the pulse's angle. The speed is read at the
+    // measured time: the two are a sample's jitter apart, too little for the speed to change.
+    smoothed[j] = times[j] + (angle[j] - fit[0]) / fit[1];
+    rpm[j] = 60 * fit[1];
   }
   for (let j = 1; j < n; j++) {
     if (!(smoothed[j] > smoothed[j - 1])) {
@@ -307,17 +567,17 @@ export function motionFromPulses(times: Float64Array, ppr: number): ShaftMotion 
 }
 
 /**
- * Least-squares polynomial t ≈ Σ c_k·u^k (k ≤ degree ≤ 2), u = θ − θ₀, over
- * pulses lo…hi; writes the coefficients to `out` (c₀ is the smoothed time
- * at θ₀, c₁ = dt/dθ there). Normal equations, solved by Gaussian
- * elimination with partial pivoting (well conditioned: u is centred on the
- * window's pulses). `scratch` holds the augmented matrix row by row and the
+ * Least-squares polynomial y ≈ Σ c_k·u^k (k ≤ degree ≤ 2), u = x − x₀, over
+ * points lo…hi (called with y the angle and x the time: c₀ is the fitted
+ * angle at t₀, c₁ = dθ/dt there); writes the coefficients to `out`. Normal
+ * equations, solved by Gaussian elimination with partial pivoting (well
+ * conditioned: u is measured from a point of the window). `scratch` holds the augmented matrix row by row and the
  * powers of u after it (at least 17 values): one fit per pulse allocates
  * nothing.
  */
 function polynomialFit(
-  times: Float64Array,
-  angle: Float64Array,
+  y: Float64Array,
+  x: Float64Array,
   window: { lo: number; hi: number; origin: number; degree: number },
   scratch: Float64Array,
   out: Float64Array,
@@ -327,12 +587,12 @@ function polynomialFit(
   const powersAt = m * w, powerCount = 2 * m - 1;
   scratch.fill(0, 0, m * w);
   for (let i = lo; i <= hi; i++) {
-    const u = angle[i] - origin;
+    const u = x[i] - origin;
     scratch[powersAt] = 1;
     for (let k = 1; k < powerCount; k++) scratch[powersAt + k] = scratch[powersAt + k - 1] * u;
     for (let r = 0; r < m; r++) {
       for (let c = 0; c < m; c++) scratch[r * w + c] += scratch[powersAt + r + c];
-      scratch[r * w + m] += times[i] * scratch[powersAt + r];
+      scratch[r * w + m] += y[i] * scratch[powersAt + r];
     }
   }
   for (let col = 0; col < m; col++) {

@@ -45,12 +45,23 @@ export const manifestSchema = z.strictObject({
   started: z.string(),
   /** null while the run is under way (or when it was killed). */
   finished: z.string().nullable(),
-  /** `running` until the run ends: a manifest left `running` belongs to a killed run. */
-  status: z.enum(["ok", "failed", "running"]),
+  /**
+   * `running` until the run ends: a manifest left `running` belongs to a run
+   * killed outright (SIGKILL, power). A run stopped by an error of its own or
+   * a signal it could catch says `aborted`, with `error` saying why.
+   */
+  status: z.enum(["ok", "failed", "running", "aborted"]),
+  /** Why the run was aborted. */
+  error: z.string().optional(),
   steps: z.array(step),
   targets: z.array(z.unknown()),
   require_targets: z.boolean(),
   report: z.string().optional(),
+  /**
+   * The report and its figures as written, each with its size and SHA-256:
+   * the next run removes exactly these (and only while their hash holds).
+   */
+  report_files: z.array(fileRecord).optional(),
   /** A shard's partial manifest: which shard of how many. */
   shard: z.strictObject({ index: z.number().int(), count: z.number().int() }).optional(),
   /** A merged manifest: the number of shards it was merged from. */

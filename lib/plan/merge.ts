@@ -16,7 +16,7 @@
  * @module
  */
 import { readdir, readFile } from "node:fs/promises";
-import { join, relative, resolve } from "node:path";
+import { join, resolve } from "node:path";
 import { QuiverError } from "../errors.ts";
 import { writeFileAtomic } from "../io/atomic_write.ts";
 import { sha256Hex } from "../io/table_file.ts";
@@ -29,7 +29,10 @@ import {
   planSteps,
   record,
   type RunOptions,
+  writeRecordedReport,
 } from "./runner.ts";
+import { acquireFolderLock } from "./folder_lock.ts";
+import type { Plan } from "./schema.ts";
 import { evaluateTargets } from "./target_eval.ts";
 
 const SHARD_FILE = /^manifest\.shard-(\d+)-of-(\d+)\.json$/;
@@ -132,8 +135,8 @@ export async function mergeShards(outDirIn: string, options: MergeOptions): Prom
       continue;
     }
     const m = parsed.data;
-    if (m.status === "running" || m.finished === null) {
-      problems.push(`shard ${k} of ${count} did not finish (its manifest says "running")`);
+    if (m.status === "running" || m.status === "aborted" || m.finished === null) {
+      problems.push(`shard ${k} of ${count} did not finish (its manifest says "${m.status}")`);
       continue;
     }
     manifests.push(m);
@@ -165,7 +168,33 @@ export async function mergeShards(outDirIn: string, options: MergeOptions): Prom
   if (problems.length > 0) {
     throw new QuiverError(`cannot merge: ${problems.join("; ")}`, { file: outDir });
   }
+  // Every path the merge writes (manifest, report, figures) checked as a run checks them.
   const order = planSteps(plan, planPath, outDir, options.commands).map((s) => s.id);
+  // The folder's one lock: the campaign's own (taken over when it is this plan's), or a new one.
+  const lock = await acquireFolderLock(outDir, {
+    kind: "merge",
+    planSha256: first.plan.sha256,
+    count,
+  });
+  let merged = false;
+  try {
+    const manifest = await mergeLocked(outDir, order, manifests, plan, count, options);
+    merged = true;
+    return manifest;
+  } finally {
+    await lock.release(merged);
+  }
+}
+
+async function mergeLocked(
+  outDir: string,
+  order: readonly string[],
+  manifests: readonly Manifest[],
+  plan: Plan,
+  count: number,
+  options: MergeOptions,
+): Promise<Manifest> {
+  const first = manifests[0];
   const steps = joinShardSteps(order, manifests.map((m) => m.steps));
   // Every output still the file its shard wrote.
   const changed: string[] = [];
@@ -202,9 +231,10 @@ export async function mergeShards(outDirIn: string, options: MergeOptions): Prom
     targets,
     shards: count,
   };
-  if (plan.report !== undefined && options.report !== undefined) {
-    const reportPath = await options.report(outDir, manifest, plan);
-    manifest = { ...manifest, report: relative(outDir, reportPath) };
+  const report = options.report;
+  if (plan.report !== undefined && report !== undefined) {
+    const written = await writeRecordedReport(outDir, () => report(outDir, manifest, plan));
+    manifest = { ...manifest, report: written.report, report_files: written.files };
   }
   await writeFileAtomic(join(outDir, MANIFEST_FILE), JSON.stringify(manifest, null, 2) + "\n");
   return manifest;

@@ -16,11 +16,25 @@
 import { type FileRecord, type Manifest, manifestSchema } from "./manifest.ts";
 export type { FileRecord, Manifest } from "./manifest.ts";
 import { acquireFolderLock } from "./folder_lock.ts";
-import { assignShards, type Shard, shardLockName, shardManifestName } from "./shards.ts";
+import { assignShards, type Shard, shardManifestName } from "./shards.ts";
+import {
+  type CampaignInput,
+  type CampaignWrite,
+  checkCampaignPaths,
+  FIGURES_FOLDER,
+  isFigureName,
+  isReportFileName,
+  MANIFEST_FILE,
+  outputFileName,
+  outputKeys,
+} from "./campaign_paths.ts";
+export { MANIFEST_FILE } from "./campaign_paths.ts";
 import { realPathOf } from "../io/output_paths.ts";
 import { createHash } from "node:crypto";
-import { existsSync, statSync } from "node:fs";
-import { mkdir, open, readFile, rm } from "node:fs/promises";
+import { existsSync, lstatSync, statSync } from "node:fs";
+import { assertRegularFile, fileKind } from "../io/file_kinds.ts";
+import { mkdir, open, readdir, readFile, rm, rmdir } from "node:fs/promises";
+import process from "node:process";
 import { dirname, isAbsolute, join, relative, resolve, sep } from "node:path";
 import { QuiverError } from "../errors.ts";
 import { sha256Hex } from "../io/table_file.ts";
@@ -55,8 +69,10 @@ export interface PlanStep {
 export async function loadPlan(path: string): Promise<{ plan: Plan; text: string }> {
   let text: string;
   try {
+    assertRegularFile(path, "plan");
     text = await readFile(path, "utf8");
-  } catch {
+  } catch (error) {
+    if (error instanceof QuiverError) throw error;
     throw new QuiverError("cannot read the plan: no such file", { file: resolve(path) }, "usage");
   }
   let json: unknown;
@@ -99,19 +115,27 @@ function planProblems(problems: readonly string[], file: string): QuiverError {
 
 /**
  * The steps of a plan with their arguments and output paths, after checking
- * references, input files and every step's options. Throws before any work.
+ * references, input files, every step's options and every path the campaign
+ * writes (`checkCampaignPaths`; `also` names files written besides the
+ * manifest, the steps' outputs and the report, such as a shard's manifest).
+ * Throws before any work.
  */
 export function planSteps(
   plan: Plan,
   planFile: string,
   outDir: string,
   commands: Readonly<Record<string, PlanCommand>>,
+  also: readonly string[] = [],
 ): PlanStep[] {
   // Every problem is collected, so that one run of validation names them all.
   const problems: string[] = [];
   const fail = (where: string, detail: string): never => {
     problems.push(`plan key ${where}: ${detail}`);
     throw SKIP;
+  };
+  // Notes a problem and goes on, so that every problem of one item is named.
+  const note = (where: string, detail: string) => {
+    problems.push(`plan key ${where}: ${detail}`);
   };
   const each = (check: () => void) => {
     try {
@@ -124,21 +148,34 @@ export function planSteps(
   const at = (p: string) => (isAbsolute(p) ? p : join(base, p));
   const steps: PlanStep[] = [];
   const known = new Map<string, string>(); // id → command
+  // Plan keys are looked up as own properties only: a recording called "toString" is a recording.
+  const recordingOf = (name: string) =>
+    Object.hasOwn(plan.recordings, name) ? plan.recordings[name] : undefined;
+  // An input must be a regular file: a FIFO or /dev/zero would hang the hash that records it.
+  const inputFile = (path: string, shown: string, where: string) => {
+    let stats;
+    try {
+      stats = statSync(path);
+    } catch {
+      fail(where, `no such file: ${shown}`);
+    }
+    if (!stats!.isFile()) {
+      fail(where, `${shown} is ${fileKind(stats!)}; an input must be a regular file`);
+    }
+  };
   for (const [name, rec] of Object.entries(plan.recordings)) {
     each(() => {
-      if (!existsSync(at(rec.file))) fail(`recordings.${name}.file`, `no such file: ${rec.file}`);
+      inputFile(at(rec.file), rec.file, `recordings.${name}.file`);
     });
     each(() => {
-      if (rec.setup !== undefined && !existsSync(at(rec.setup))) {
-        fail(`recordings.${name}.setup`, `no such file: ${rec.setup}`);
-      }
+      if (rec.setup !== undefined) inputFile(at(rec.setup), rec.setup, `recordings.${name}.setup`);
     });
   }
   const check = (where: string, command: string, argv: string[]) => {
-    const c = commands[command];
+    const c = Object.hasOwn(commands, command) ? commands[command] : undefined;
     if (c === undefined) fail(where, `unknown command "${command}"`);
     try {
-      c.validate(argv);
+      c!.validate(argv);
     } catch (error) {
       const message = error instanceof Error ? error.message : String(error);
       const option = /--([a-z0-9-]+)/i.exec(message)?.[1];
@@ -149,6 +186,7 @@ export function planSteps(
     each(() => {
       const where = `analyses[${i}]`;
       if (known.has(a.id)) fail(`${where}.id`, `"${a.id}" is used twice`);
+      refuseOutputOptions(a.options, where, note);
       const argv: string[] = [];
       const inputs: string[] = [];
       const needs: string[] = [];
@@ -162,14 +200,14 @@ export function planSteps(
           if (command !== "frf" && command !== "hammer") {
             fail(`${where}.inputs[${k}]`, `"${source}" is not an earlier frf or hammer analysis`);
           }
-          const path = join(outDir, `${source}.json`);
+          const path = join(outDir, outputFileName(source, "out"));
           argv.push(path);
           inputs.push(path);
           needs.push(source);
         });
         if (a.geometry !== undefined) {
           const file = at(a.geometry.file);
-          if (!existsSync(file)) fail(`${where}.geometry.file`, `no such file: ${a.geometry.file}`);
+          inputFile(file, a.geometry.file, `${where}.geometry.file`);
           argv.push("--geometry", file);
           inputs.push(file);
         }
@@ -181,18 +219,13 @@ export function planSteps(
           fail(`${where}.simulation.file`, "mac needs the simulation's mode shapes");
         }
         const sim = at((a.simulation as { file: string }).file);
-        if (!existsSync(sim)) {
-          fail(
-            `${where}.simulation.file`,
-            `no such file: ${(a.simulation as { file: string }).file}`,
-          );
-        }
-        const shapes = join(outDir, `${a.input}_shapes.json`);
+        inputFile(sim, (a.simulation as { file: string }).file, `${where}.simulation.file`);
+        const shapes = join(outDir, outputFileName(a.input as string, "shapes-out"));
         argv.push(shapes, sim);
         inputs.push(shapes, sim);
         if (a.map !== undefined) {
           const map = at(a.map.file);
-          if (!existsSync(map)) fail(`${where}.map.file`, `no such file: ${a.map.file}`);
+          inputFile(map, a.map.file, `${where}.map.file`);
           argv.push("--map", map);
           inputs.push(map);
         }
@@ -205,7 +238,7 @@ export function planSteps(
         if (source !== "frf" && source !== "hammer") {
           fail(`${where}.input`, `"${a.input}" is not an earlier frf or hammer analysis`);
         }
-        const path = join(outDir, `${a.input}.json`);
+        const path = join(outDir, outputFileName(a.input as string, "out"));
         argv.push(path);
         inputs.push(path);
         needs.push(a.input as string);
@@ -224,7 +257,7 @@ export function planSteps(
               fail(`${where}.inputs[${k}]`, `"${source}" is not an earlier frf or hammer analysis`);
             }
             needs.push(source);
-            return join(outDir, `${source}.json`);
+            return join(outDir, outputFileName(source, "out"));
           });
           if (files.some((f) => f.includes(","))) {
             fail(
@@ -238,50 +271,30 @@ export function planSteps(
         if (a.recording === undefined) {
           fail(`${where}.recording`, `${a.command} needs a recording`);
         }
-        const rec = plan.recordings[a.recording as string];
+        const rec = recordingOf(a.recording as string);
         if (rec === undefined) {
           fail(`${where}.recording`, `no recording "${a.recording}" in recordings`);
         }
-        argv.push(at(rec.file));
-        inputs.push(at(rec.file));
-        if (rec.setup !== undefined) {
-          argv.push("--setup", at(rec.setup));
-          inputs.push(at(rec.setup));
+        argv.push(at(rec!.file));
+        inputs.push(at(rec!.file));
+        if (rec!.setup !== undefined) {
+          argv.push("--setup", at(rec!.setup));
+          inputs.push(at(rec!.setup));
         }
-        if (rec.rate !== undefined) argv.push("--rate", String(rec.rate));
-        // A slice of the recording; an analysis may narrow it with its own start/end options.
-        if (rec.start !== undefined && !("start" in a.options)) {
-          argv.push("--start", String(rec.start));
+        if (rec!.rate !== undefined) argv.push("--rate", String(rec!.rate));
+        // The recording's slice; an analysis may narrow it with its own start/end, never widen it.
+        checkSlice(a.options, rec!, a.recording as string, where, fail);
+        if (rec!.start !== undefined && !Object.hasOwn(a.options, "start")) {
+          argv.push("--start", String(rec!.start));
         }
-        if (rec.end !== undefined && !("end" in a.options)) argv.push("--end", String(rec.end));
-      }
-      const outputs: Record<string, string> = { out: join(outDir, `${a.id}.json`) };
-      if (a.command === "hammer") {
-        outputs["hits-out"] = join(outDir, `${a.id}_hits.csv`);
-        outputs["records-out"] = join(outDir, `${a.id}_records.json`);
-      }
-      if (a.command === "modal") {
-        for (const part of ["shapes", "stability", "synth"]) {
-          outputs[`${part}-out`] = join(outDir, `${a.id}_${part}.json`);
+        if (rec!.end !== undefined && !Object.hasOwn(a.options, "end")) {
+          argv.push("--end", String(rec!.end));
         }
       }
-      if (a.command === "mac") outputs["pairs-out"] = join(outDir, `${a.id}_pairs.json`);
-      if (a.command === "paths") outputs["bands-out"] = join(outDir, `${a.id}_bands.json`);
-      if (a.command === "frf" && severalNames(a.options.inputs)) {
-        outputs["partial-out"] = join(outDir, `${a.id}_partial.json`);
-        outputs["principal-out"] = join(outDir, `${a.id}_principal.json`);
-      }
-      if (a.command === "orders") {
-        outputs["rpm-out"] = join(outDir, `${a.id}_rpm.json`);
-        outputs["map-out"] = join(outDir, `${a.id}_map.json`);
-      }
-      for (const key of Object.keys(outputs)) {
-        if (key in a.options || "format" in a.options) {
-          fail(
-            `${where}.options.${key in a.options ? key : "format"}`,
-            "outputs are set by the plan runner",
-          );
-        }
+      const outputs: Record<string, string> = {};
+      const several = a.command === "frf" && severalNames(a.options.inputs);
+      for (const key of outputKeys(a.command, several)) {
+        outputs[key] = join(outDir, outputFileName(a.id, key));
       }
       argv.push(...optionsToArgv(a.options));
       for (const [key, path] of Object.entries(outputs)) argv.push(`--${key}`, path);
@@ -304,15 +317,20 @@ export function planSteps(
       const where = `comparisons[${i}]`;
       if (known.has(c.id)) fail(`${where}.id`, `"${c.id}" is used twice`);
       if (!known.has(c.test)) fail(`${where}.test`, `no analysis "${c.test}"`);
-      const sim = at(c.simulation.file);
-      if (!existsSync(sim)) {
-        fail(`${where}.simulation.file`, `no such file: ${c.simulation.file}`);
+      if (known.get(c.test) === "compare") {
+        fail(
+          `${where}.test`,
+          `"${c.test}" is a comparison; comparison "${c.id}" must take the curve of an analysis`,
+        );
       }
-      const test = join(outDir, `${c.test}.json`);
-      const outputs = {
-        out: join(outDir, `${c.id}.json`),
-        "summary-out": join(outDir, `${c.id}_summary.json`),
-      };
+      refuseOutputOptions(c.options, where, note);
+      const sim = at(c.simulation.file);
+      inputFile(sim, c.simulation.file, `${where}.simulation.file`);
+      const test = join(outDir, outputFileName(c.test, "out"));
+      const outputs: Record<string, string> = {};
+      for (const key of outputKeys("compare", false)) {
+        outputs[key] = join(outDir, outputFileName(c.id, key));
+      }
       const argv = [test, sim, ...optionsToArgv(c.options)];
       if (c.test_column !== undefined) argv.push("--test-column", c.test_column);
       if (c.simulation.column !== undefined) argv.push("--sim-column", c.simulation.column);
@@ -338,87 +356,141 @@ export function planSteps(
       }
     })
   );
-  each(() => checkPlanOutputs({ plan, planFile, outDir, steps, fail }));
+  each(() => {
+    for (const [where, detail] of campaignPathProblems(plan, planFile, outDir, steps, also)) {
+      problems.push(`plan key ${where}: ${detail}`);
+    }
+  });
   if (problems.length > 0) throw planProblems(problems, planFile);
   return steps;
 }
 
-/** The files a run writes besides the steps' own results. */
-export const MANIFEST_FILE = "manifest.json";
-const FIGURES_FOLDER = "figures";
+/**
+ * Options that would name a file the step writes (`out`, `format`, any
+ * `*-out`), or a list entry holding a comma (which the command would read
+ * as two entries while the runner counts one), are refused.
+ */
+function refuseOutputOptions(
+  options: Readonly<Record<string, unknown>>,
+  where: string,
+  note: (where: string, detail: string) => void,
+): void {
+  let refused = false;
+  const fail = (where: string, detail: string) => {
+    note(where, detail);
+    refused = true;
+  };
+  for (const [key, value] of Object.entries(options)) {
+    if (key === "out" || key === "format" || key.endsWith("-out")) {
+      fail(
+        `${where}.options.${key}`,
+        "the plan runner names every file a step writes (from the step id): remove this option",
+      );
+    }
+    if (Array.isArray(value)) {
+      const k = value.findIndex((entry) => String(entry).includes(","));
+      if (k >= 0) {
+        fail(
+          `${where}.options.${key}[${k}]`,
+          `"${value[k]}" holds a comma: give each entry of the list on its own`,
+        );
+      }
+    }
+  }
+  if (refused) throw SKIP;
+}
+
+/** A bound of an analysis's own slice, as a number; undefined when absent or not a number. */
+function bound(options: Readonly<Record<string, unknown>>, key: string): number | undefined {
+  if (!Object.hasOwn(options, key)) return undefined;
+  const value = Number(options[key]);
+  return typeof options[key] === "boolean" || !Number.isFinite(value) ? undefined : value;
+}
+
+/** An analysis's start/end lie within its recording's slice (they may only narrow it). */
+function checkSlice(
+  options: Readonly<Record<string, unknown>>,
+  rec: { start?: number; end?: number },
+  name: string,
+  where: string,
+  fail: (where: string, detail: string) => never,
+): void {
+  const slice = `the slice of recording "${name}" (${rec.start ?? "its beginning"} to ${
+    rec.end ?? "its end"
+  } s)`;
+  const rule = "an analysis may only narrow its recording's slice";
+  const start = bound(options, "start");
+  const end = bound(options, "end");
+  for (const [key, value] of [["start", start], ["end", end]] as const) {
+    if (value === undefined) continue;
+    if (
+      (rec.start !== undefined && value < rec.start) || (rec.end !== undefined && value > rec.end)
+    ) {
+      fail(`${where}.options.${key}`, `${key} ${value} s lies outside ${slice}: ${rule}`);
+    }
+  }
+  if (start !== undefined && rec.end !== undefined && start >= rec.end) {
+    fail(`${where}.options.start`, `start ${start} s leaves nothing of ${slice}: ${rule}`);
+  }
+  if (end !== undefined && rec.start !== undefined && end <= rec.start) {
+    fail(`${where}.options.end`, `end ${end} s leaves nothing of ${slice}: ${rule}`);
+  }
+}
 
 /**
- * Every file the plan writes stays inside the output folder, is none of the
- * plan's inputs, and is written by one step only; checked before any work.
+ * The campaign's writes and inputs, checked by `checkCampaignPaths`: the
+ * manifest (and any `also`), every step's outputs, the report and its
+ * figures, against the plan, its recordings and every file it names. A
+ * comparison's simulation that is another comparison's result is named as such.
  */
-function checkPlanOutputs(
-  { plan, planFile, outDir, steps, fail }: {
-    plan: Plan;
-    planFile: string;
-    outDir: string;
-    steps: readonly PlanStep[];
-    fail: (where: string, detail: string) => never;
-  },
-): void {
-  const realOut = realPathOf(outDir);
-  const inside = (path: string) => {
-    const real = realPathOf(path);
-    return real === realOut || real.startsWith(realOut + sep);
-  };
-  const written = new Map<string, string>(); // real path → who writes it
-  const claim = (path: string, who: string, where: string) => {
-    if (!inside(path)) fail(where, `${path} lies outside the output folder ${outDir}`);
-    const real = realPathOf(path);
-    const other = written.get(real);
-    if (other !== undefined) fail(where, `${who} would write ${path}, which ${other} writes too`);
-    written.set(real, who);
-  };
-  claim(join(outDir, MANIFEST_FILE), "the manifest", "(output folder)");
+function campaignPathProblems(
+  plan: Plan,
+  planFile: string,
+  outDir: string,
+  steps: readonly PlanStep[],
+  also: readonly string[],
+): [string, string][] {
+  const writes: CampaignWrite[] = [
+    { path: join(outDir, MANIFEST_FILE), who: "the manifest", where: "(output folder)" },
+    ...also.map((path) => ({ path, who: "the run", where: "(output folder)" })),
+  ];
   for (const step of steps) {
     for (const [key, path] of Object.entries(step.outputs)) {
-      claim(path, `step "${step.id}" (${key})`, `${step.where}.id`);
+      writes.push({ path, who: `step "${step.id}" (${key})`, where: `${step.where}.id` });
     }
   }
   if (plan.report !== undefined) {
-    const file = plan.report.file;
-    if (isAbsolute(file) || file.split(/[\\/]/).includes("..") || file === "") {
-      fail("report.file", `"${file}" must be a file name inside the output folder, without ".."`);
-    }
-    if (file.split(/[\\/]/)[0] === FIGURES_FOLDER) {
-      fail("report.file", `the ${FIGURES_FOLDER}/ folder holds the report's figures`);
-    }
-    claim(join(outDir, file), "the report", "report.file");
-    // The report's figures go into figures/: a link there must not lead out either.
-    const figure = join(outDir, FIGURES_FOLDER, "figure.svg");
-    if (!inside(figure)) {
-      fail("report", `${join(outDir, FIGURES_FOLDER)} leads outside the output folder ${outDir}`);
-    }
+    writes.push({ path: join(outDir, plan.report.file), who: "the report", where: "report.file" });
+    // The figures' names come from step ids; one stands for all (a link out of figures/ shows).
+    writes.push({
+      path: join(outDir, FIGURES_FOLDER, "figure.svg"),
+      who: "the report's figures",
+      where: "report",
+    });
   }
   const base = dirname(planFile);
   const at = (p: string) => (isAbsolute(p) ? p : join(base, p));
-  const inputs: [string, string][] = [[planFile, "the plan itself"]];
-  for (const [name, rec] of Object.entries(plan.recordings)) {
-    inputs.push([at(rec.file), `recordings.${name}.file`]);
-    if (rec.setup !== undefined) inputs.push([at(rec.setup), `recordings.${name}.setup`]);
+  const problems: [string, string][] = [];
+  const comparisonOutputs = new Map<string, string>(); // real path → comparison id
+  for (const step of steps) {
+    if (step.kind !== "comparison") continue;
+    for (const path of Object.values(step.outputs)) {
+      comparisonOutputs.set(realPathOf(path), step.id);
+    }
   }
+  const clash = new Set<string>();
   plan.comparisons.forEach((c, i) => {
-    inputs.push([at(c.simulation.file), `comparisons[${i}].simulation.file`]);
+    const other = comparisonOutputs.get(realPathOf(at(c.simulation.file)));
+    if (other !== undefined) {
+      clash.add(`comparisons[${i}].simulation.file`);
+      problems.push([
+        `comparisons[${i}].simulation.file`,
+        `${c.simulation.file} is the result of comparison "${other}"; comparison "${c.id}" must compare with a simulation, not another comparison`,
+      ]);
+    }
   });
-  plan.analyses.forEach((a, i) => {
-    if (a.simulation !== undefined) {
-      inputs.push([at(a.simulation.file), `analyses[${i}].simulation.file`]);
-    }
-    if (a.geometry !== undefined) {
-      inputs.push([at(a.geometry.file), `analyses[${i}].geometry.file`]);
-    }
-    if (a.map !== undefined) inputs.push([at(a.map.file), `analyses[${i}].map.file`]);
-  });
-  for (const [path, what] of inputs) {
-    for (const file of [path, `${path}.meta.json`]) {
-      const writer = written.get(realPathOf(file));
-      if (writer !== undefined) fail(what, `${writer} would overwrite this input (${path})`);
-    }
-  }
+  const inputs = planInputs(plan, planFile).filter((input) => !clash.has(input.what));
+  return [...problems, ...checkCampaignPaths(outDir, writes, inputs)];
 }
 
 // Hashes by path, size and modification time: a recording used by several
@@ -431,25 +503,32 @@ const hashCache = new Map<string, string>();
  */
 export async function record(path: string, outDir: string): Promise<FileRecord> {
   const stat = statSync(path);
+  // A FIFO or device would never end its hash; planSteps refuses them, this is the last guard.
+  if (!stat.isFile()) throw new Error(`${path} is ${fileKind(stat)}, not a regular file`);
   const key = `${path}\u0000${stat.size}\u0000${stat.mtimeMs}`;
   let sha256 = hashCache.get(key);
   if (sha256 === undefined) {
-    const hash = createHash("sha256");
-    const handle = await open(path, "r");
-    try {
-      const buffer = new Uint8Array(1 << 22);
-      for (;;) {
-        const { bytesRead } = await handle.read(buffer, 0, buffer.length, null);
-        if (bytesRead === 0) break;
-        hash.update(buffer.subarray(0, bytesRead));
-      }
-    } finally {
-      await handle.close();
-    }
-    sha256 = hash.digest("hex");
+    sha256 = await hashFile(path);
     hashCache.set(key, sha256);
   }
   return { path: relative(outDir, path) || path, bytes: stat.size, sha256 };
+}
+
+/** SHA-256 of a file's bytes, read in blocks (no cache: the clean-up's proof reads the file now). */
+async function hashFile(path: string): Promise<string> {
+  const hash = createHash("sha256");
+  const handle = await open(path, "r");
+  try {
+    const buffer = new Uint8Array(1 << 22);
+    for (;;) {
+      const { bytesRead } = await handle.read(buffer, 0, buffer.length, null);
+      if (bytesRead === 0) break;
+      hash.update(buffer.subarray(0, bytesRead));
+    }
+  } finally {
+    await handle.close();
+  }
+  return hash.digest("hex");
 }
 
 /** Options of {@linkcode runPlan}. */
@@ -506,16 +585,25 @@ export async function runPlan(planFile: string, options: RunOptions): Promise<Ma
   const started = new Date().toISOString();
   const { plan, text } = await loadPlan(planFile);
   const outDir = resolve(options.outDir);
-  const all = planSteps(plan, resolve(planFile), outDir, options.commands);
   const shard = options.shard;
+  const manifestFile = shard !== undefined ? shardManifestName(shard) : MANIFEST_FILE;
+  const all = planSteps(
+    plan,
+    resolve(planFile),
+    outDir,
+    options.commands,
+    shard !== undefined ? [join(outDir, manifestFile)] : [],
+  );
   // A shard runs its own steps only; the whole plan was validated above all the same.
   const shardOf = shard !== undefined ? assignShards(all, shard.count) : undefined;
   const steps = shardOf === undefined ? all : all.filter((_, i) => shardOf[i] === shard!.index);
-  const manifestFile = shard !== undefined ? shardManifestName(shard) : MANIFEST_FILE;
   await mkdir(outDir, { recursive: true });
+  // One lock per folder: the shards of this plan share it; anything else waits or is refused.
   const lock = await acquireFolderLock(
     outDir,
-    shard !== undefined ? shardLockName(shard) : undefined,
+    shard !== undefined
+      ? { kind: "shards", planSha256: sha256Hex(text), index: shard.index, count: shard.count }
+      : { kind: "run" },
   );
   try {
     if (lock.stale !== undefined) {
@@ -523,54 +611,215 @@ export async function runPlan(planFile: string, options: RunOptions): Promise<Ma
         `run: the lock of a run that was killed (process ${lock.stale.pid}, started ${lock.stale.started}) was found and taken over\n`,
       );
     }
-    const removed = await removePreviousRun(outDir, manifestFile);
+    const inputs = new Set(planInputs(plan, resolve(planFile)).map((i) => realPathOf(i.path)));
+    const { removed, left } = await removePreviousRun(outDir, manifestFile, inputs);
     if (removed > 0) {
       process.stderr.write(`run: removed ${removed} result file(s) of the previous run here\n`);
     }
-    return await runLocked({ plan, text, planFile, outDir, steps, started, options, manifestFile });
+    if (left.length > 0) {
+      process.stderr.write(
+        `run: left ${left.length} file(s) the previous manifest lists, not provably its results: ${
+          left.slice(0, 5).join("; ")
+        }${left.length > 5 ? "; …" : ""}\n`,
+      );
+    }
+    return await runLocked({
+      plan,
+      text,
+      planFile,
+      outDir,
+      steps,
+      started,
+      options,
+      manifestFile,
+      release: () => lock.release(),
+    });
   } finally {
     await lock.release();
   }
 }
 
-/**
- * Removes what the previous run's manifest lists (results, report, figures)
- * and the manifest itself, so that the folder never holds results of two
- * runs side by side. Files no manifest lists are left alone. Returns the
- * number of files removed.
- */
-async function removePreviousRun(outDir: string, manifestFile: string): Promise<number> {
-  let previous: unknown;
-  try {
-    previous = JSON.parse(await readFile(join(outDir, manifestFile), "utf8"));
-  } catch {
-    return 0;
+/** Every file the plan reads: the plan, recordings, set-ups, simulations, geometry, maps. */
+function planInputs(plan: Plan, planFile: string): CampaignInput[] {
+  const base = dirname(planFile);
+  const at = (p: string) => (isAbsolute(p) ? p : join(base, p));
+  const inputs: CampaignInput[] = [{ path: planFile, what: "the plan itself" }];
+  for (const [name, rec] of Object.entries(plan.recordings)) {
+    inputs.push({ path: at(rec.file), what: `recordings.${name}.file` });
+    if (rec.setup !== undefined) {
+      inputs.push({ path: at(rec.setup), what: `recordings.${name}.setup` });
+    }
   }
-  const parsed = manifestSchema.safeParse(previous);
-  if (!parsed.success) return 0; // not ours to interpret: left as it is
-  const realOut = realPathOf(outDir);
-  const files = parsed.data.steps.flatMap((step) =>
-    Object.values(step.outputs).flatMap((o) => [o.path, `${o.path}.meta.json`])
-  );
-  if (parsed.data.report !== undefined) files.push(parsed.data.report);
-  let removed = 0;
-  for (const file of files) {
-    const path = resolve(outDir, file);
-    const real = realPathOf(path);
-    if (!real.startsWith(realOut + sep) || !existsSync(path)) continue;
-    await rm(path, { force: true });
-    removed++;
-  }
-  // A shard removes its own results only: the figures and the merged manifest are the merge's.
-  if (manifestFile === MANIFEST_FILE) {
-    await rm(join(outDir, FIGURES_FOLDER), { recursive: true, force: true });
-  }
-  await rm(join(outDir, manifestFile), { force: true });
-  return removed;
+  plan.comparisons.forEach((c, i) => {
+    inputs.push({ path: at(c.simulation.file), what: `comparisons[${i}].simulation.file` });
+  });
+  plan.analyses.forEach((a, i) => {
+    if (a.simulation !== undefined) {
+      inputs.push({ path: at(a.simulation.file), what: `analyses[${i}].simulation.file` });
+    }
+    if (a.geometry !== undefined) {
+      inputs.push({ path: at(a.geometry.file), what: `analyses[${i}].geometry.file` });
+    }
+    if (a.map !== undefined) inputs.push({ path: at(a.map.file), what: `analyses[${i}].map.file` });
+  });
+  return inputs;
 }
 
+/**
+ * Removes what the previous run's manifest lists and this project can prove
+ * it wrote, then the manifest itself, so that the folder never holds results
+ * of two runs side by side. A listed file is removed only when its name is
+ * one the runner gives (`<id>.json`, `<id>_<part>.json`, the report's
+ * `<name>.html`, `figures/<name>.svg`), it lies inside the folder (no link
+ * on the way, the file itself no link), it is none of this plan's inputs
+ * (`inputs`: real paths), and its size and SHA-256 are still those the
+ * manifest recorded. Everything else is left, and named in `left`.
+ */
+async function removePreviousRun(
+  outDir: string,
+  manifestFile: string,
+  inputs: ReadonlySet<string>,
+): Promise<{ removed: number; left: string[] }> {
+  const manifestPath = join(outDir, manifestFile);
+  let previous: unknown;
+  try {
+    previous = JSON.parse(await readFile(manifestPath, "utf8"));
+  } catch {
+    return { removed: 0, left: [] }; // none, or not JSON: nothing of it is trusted
+  }
+  const parsed = manifestSchema.safeParse(previous);
+  if (!parsed.success) {
+    return { removed: 0, left: [`${manifestFile} (not a quiver manifest: nothing it names)`] };
+  }
+  const candidates: FileRecord[] = [];
+  const left: string[] = [];
+  for (const step of parsed.data.steps) {
+    for (const [key, file] of Object.entries(step.outputs)) {
+      let expected: string | undefined;
+      try {
+        expected = /^[A-Za-z0-9_-]+$/.test(step.id) ? outputFileName(step.id, key) : undefined;
+      } catch {
+        expected = undefined; // not an output key
+      }
+      if (file.path === expected) candidates.push(file);
+      else left.push(`${file.path} (not a name quiver gives step "${step.id}")`);
+    }
+  }
+  for (const file of parsed.data.report_files ?? []) {
+    if (isReportFileName(file.path) || isFigureName(file.path)) candidates.push(file);
+    else left.push(`${file.path} (not a name quiver gives the report)`);
+  }
+  const realOut = realPathOf(outDir);
+  let removed = 0;
+  for (const file of candidates) {
+    const path = join(outDir, file.path);
+    const why = await notProvablyOurs(path, realOut, file, inputs);
+    if (why === undefined) {
+      await rm(path);
+      removed++;
+    } else if (why !== "gone") {
+      left.push(`${file.path} (${why})`);
+    }
+  }
+  // The figures folder goes only when nothing is left in it (rmdir refuses otherwise).
+  await rmdir(join(outDir, FIGURES_FOLDER)).catch(() => {});
+  await rm(manifestPath, { force: true });
+  return { removed, left };
+}
+
+/** Why the file at `path` cannot be proven the one `file` records; undefined when it can. */
+async function notProvablyOurs(
+  path: string,
+  realOut: string,
+  file: FileRecord,
+  inputs: ReadonlySet<string>,
+): Promise<string | undefined> {
+  let stat;
+  try {
+    stat = lstatSync(path);
+  } catch {
+    return "gone";
+  }
+  if (!stat.isFile()) return "not a plain file";
+  const real = realPathOf(path);
+  if (!real.startsWith(realOut + sep)) return "outside the folder";
+  if (inputs.has(real)) return "an input of this plan";
+  if (stat.size !== file.bytes) return "changed since";
+  return (await hashFile(path)) === file.sha256 ? undefined : "changed since";
+}
+
+/**
+ * Writes the report with `write` and lists what it wrote: the report file
+ * and every figure under `figures/` that it created or replaced, each with
+ * its size and SHA-256, so that the next run removes exactly these. Files
+ * already there and left unchanged are not listed. The returned path is
+ * checked to lie directly in the folder.
+ *
+ * @example
+ * ```ts
+ * import { writeRecordedReport } from "./runner.ts";
+ * import { mkdir, mkdtemp, writeFile } from "node:fs/promises";
+ * const dir = await mkdtemp("/tmp/quiver-doc-");
+ * await mkdir(`${dir}/figures`);
+ * await writeFile(`${dir}/figures/notes.txt`, "mine");
+ * const { report, files } = await writeRecordedReport(dir, async () => {
+ *   await writeFile(`${dir}/figures/a.svg`, "<svg/>");
+ *   await writeFile(`${dir}/r.html`, "<html></html>");
+ *   return `${dir}/r.html`;
+ * });
+ * if (report !== "r.html" || files.map((f) => f.path).sort().join() !== "figures/a.svg,r.html") throw new Error();
+ * ```
+ */
+export async function writeRecordedReport(
+  outDir: string,
+  write: () => Promise<string>,
+): Promise<{ report: string; files: FileRecord[] }> {
+  const figures = join(outDir, FIGURES_FOLDER);
+  const before = new Map<string, string>();
+  for (const name of await listFiles(figures)) before.set(name, fileStamp(join(figures, name)));
+  const reportPath = await write();
+  const report = relative(outDir, reportPath);
+  if (!isReportFileName(report)) {
+    throw new Error(`the report was written to ${reportPath}, not a file name in ${outDir}`);
+  }
+  const files = [await record(reportPath, outDir)];
+  for (const name of await listFiles(figures)) {
+    const path = join(figures, name);
+    if (isFigureName(`${FIGURES_FOLDER}/${name}`) && before.get(name) !== fileStamp(path)) {
+      files.push({ ...(await record(path, outDir)), path: `${FIGURES_FOLDER}/${name}` });
+    }
+  }
+  return { report, files };
+}
+
+/** Plain files directly in `folder` (none when it does not exist). */
+async function listFiles(folder: string): Promise<string[]> {
+  try {
+    const entries = await readdir(folder, { withFileTypes: true });
+    return entries.filter((e) => e.isFile()).map((e) => e.name);
+  } catch {
+    return [];
+  }
+}
+
+/** Identity of a file's present content for "did this change": inode, size, mtime; "" when absent. */
+function fileStamp(path: string): string {
+  try {
+    const s = lstatSync(path);
+    return `${s.dev}:${s.ino}:${s.size}:${s.mtimeMs}`;
+  } catch {
+    return "";
+  }
+}
+
+/**
+ * The signals a run catches to leave its manifest `aborted` rather than
+ * `running` (SIGKILL cannot be caught: the next run finds its lock).
+ */
+const CAUGHT_SIGNALS = ["SIGINT", "SIGTERM", "SIGHUP"] as const;
+
 async function runLocked(
-  { plan, text, planFile, outDir, steps, started, options, manifestFile }: {
+  { plan, text, planFile, outDir, steps, started, options, manifestFile, release }: {
     plan: Plan;
     text: string;
     planFile: string;
@@ -579,6 +828,8 @@ async function runLocked(
     started: string;
     options: RunOptions;
     manifestFile: string;
+    /** Lets the folder's lock go (a signal ends the process before any finally runs). */
+    release: () => Promise<void>;
   },
 ): Promise<Manifest> {
   const planBytes = new TextEncoder().encode(text);
@@ -599,99 +850,159 @@ async function runLocked(
   // killed run leaves a manifest that says it did not finish and what it did.
   let writing = Promise.resolve();
   const writeManifest = (manifest: Manifest) => {
-    writing = writing.then(() =>
+    writing = writing.catch(() => {}).then(() =>
       writeFileAtomic(join(outDir, manifestFile), JSON.stringify(manifest, null, 2) + "\n")
     );
     return writing;
   };
+  const results: Manifest["steps"][number][] = new Array(steps.length);
+  const listed = () => results.filter((r) => r !== undefined);
   const progressManifest = (): Manifest => ({
     ...header,
     finished: null,
     status: "running",
-    steps: results.filter((r) => r !== undefined),
+    steps: listed(),
     targets: [],
   });
-  const results: Manifest["steps"][number][] = new Array(steps.length);
-  await writeManifest(progressManifest());
-  const progress = options.progress ?? createProgress(steps.length);
-  const failed = new Set<string>();
-  const done = new Set<string>();
-  const execute = options.execute ??
-    ((command: string, argv: readonly string[]) => options.commands[command].run(argv));
-  const runStep = async (i: number): Promise<void> => {
-    const step = steps[i];
-    const label = `${step.command} ${step.id}`;
-    const begin = performance.now();
-    progress.start(i + 1, label);
-    const blocked = step.needs.find((n) => failed.has(n));
-    const inputs = await Promise.all(
-      step.inputs.filter((p) => existsSync(p)).map((p) => record(p, outDir)),
-    );
-    const base = { id: step.id, kind: step.kind, command: step.command, argv: step.argv, inputs };
-    if (blocked !== undefined) {
-      failed.add(step.id);
-      progress.end(i + 1, label, false, 0, `skipped: "${blocked}" failed`);
-      results[i] = {
-        ...base,
-        outputs: {},
-        status: "skipped",
-        error: `needs "${blocked}", which failed`,
-        seconds: 0,
-      };
-      return;
-    }
+  // Whatever ends the run early (an error of ours, a full disk, a signal), the manifest
+  // then says "aborted" and why, never "running".
+  let ended = false;
+  const abort = async (reason: string) => {
+    if (ended) return;
+    ended = true;
+    await writeManifest({
+      ...header,
+      finished: new Date().toISOString(),
+      status: "aborted",
+      error: reason,
+      steps: listed(),
+      targets: [],
+    }).catch(async () => {
+      // Not even that could be written (a full disk): no manifest rather than one saying "running".
+      await rm(join(outDir, manifestFile), { force: true }).catch(() => {});
+    });
+  };
+  const onSignal = (signal: string, code: number) => () => {
+    process.stderr.write(`run: stopped by ${signal}; the manifest says aborted\n`);
+    void abort(`stopped by ${signal}`).then(release).finally(() => process.exit(code));
+  };
+  const handlers = CAUGHT_SIGNALS.map((signal, k) => {
+    const handler = onSignal(signal, [130, 143, 129][k]);
     try {
-      await execute(step.command, step.argv, step.id);
-      const outputs: Record<string, FileRecord> = {};
-      for (const [key, path] of Object.entries(step.outputs)) {
-        if (existsSync(path) && statSync(path).isFile()) outputs[key] = await record(path, outDir);
-      }
-      const seconds = (performance.now() - begin) / 1000;
-      progress.end(i + 1, label, true, seconds);
-      results[i] = { ...base, outputs, status: "ok", seconds };
-    } catch (error) {
-      failed.add(step.id);
-      const message = error instanceof Error ? error.message : String(error);
-      const seconds = (performance.now() - begin) / 1000;
-      progress.end(i + 1, label, false, seconds, message);
-      results[i] = { ...base, outputs: {}, status: "failed", error: message, seconds };
+      process.on(signal, handler);
+    } catch {
+      return () => {}; // a signal this system does not have (SIGHUP on Windows)
     }
-  };
-  // Steps start in plan order as soon as what they need is done, up to `jobs` at once.
-  const jobs = Math.max(1, options.jobs ?? 1);
-  const running = new Map<number, Promise<number>>();
-  const waiting = steps.map((_, i) => i);
-  while (waiting.length > 0 || running.size > 0) {
-    for (let w = 0; w < waiting.length && running.size < jobs;) {
-      const i = waiting[w];
-      if (steps[i].needs.every((n) => done.has(n))) {
-        waiting.splice(w, 1);
-        running.set(i, runStep(i).then(() => i));
-      } else {
-        w++;
-      }
-    }
-    if (running.size === 0) break; // cannot happen: needs always name earlier steps
-    const finished = await Promise.race(running.values());
-    running.delete(finished);
-    done.add(steps[finished].id);
+    return () => process.off(signal, handler);
+  });
+  try {
     await writeManifest(progressManifest());
+    const manifest = await runSteps();
+    ended = true;
+    return manifest;
+  } catch (error) {
+    await abort(error instanceof Error ? error.message : String(error));
+    throw error;
+  } finally {
+    for (const off of handlers) off();
   }
-  // A shard's targets wait for the merge: they may read any shard's results.
-  const targets = options.shard === undefined ? await evaluateTargets(plan, outDir, failed) : [];
-  let manifest: Manifest = {
-    ...header,
-    finished: new Date().toISOString(),
-    status: results.some((r) => r.status !== "ok") ? "failed" : "ok",
-    steps: results,
-    targets,
-  };
-  if (plan.report !== undefined && options.report !== undefined && options.shard === undefined) {
-    const reportPath = await options.report(outDir, manifest, plan);
-    manifest = { ...manifest, report: relative(outDir, reportPath) };
+
+  async function runSteps(): Promise<Manifest> {
+    const progress = options.progress ?? createProgress(steps.length);
+    const failed = new Set<string>();
+    const done = new Set<string>();
+    const execute = options.execute ??
+      ((command: string, argv: readonly string[]) => options.commands[command].run(argv));
+    const runStep = async (i: number): Promise<void> => {
+      const step = steps[i];
+      const label = `${step.command} ${step.id}`;
+      const begin = performance.now();
+      progress.start(i + 1, label);
+      const blocked = step.needs.find((n) => failed.has(n));
+      const inputs = await Promise.all(
+        step.inputs.filter((p) => existsSync(p)).map((p) => record(p, outDir)),
+      );
+      const base = { id: step.id, kind: step.kind, command: step.command, argv: step.argv, inputs };
+      if (blocked !== undefined) {
+        failed.add(step.id);
+        progress.end(i + 1, label, false, 0, `skipped: "${blocked}" failed`);
+        results[i] = {
+          ...base,
+          outputs: {},
+          status: "skipped",
+          error: `needs "${blocked}", which failed`,
+          seconds: 0,
+        };
+        return;
+      }
+      // What lies at each output path now: after a failure, a file that changed was the step's.
+      const stamps = Object.values(step.outputs).map((path) => [path, fileStamp(path)] as const);
+      try {
+        await execute(step.command, step.argv, step.id);
+        const outputs: Record<string, FileRecord> = {};
+        for (const [key, path] of Object.entries(step.outputs)) {
+          if (existsSync(path) && statSync(path).isFile()) {
+            outputs[key] = await record(path, outDir);
+          }
+        }
+        const seconds = (performance.now() - begin) / 1000;
+        progress.end(i + 1, label, true, seconds);
+        results[i] = { ...base, outputs, status: "ok", seconds };
+      } catch (error) {
+        failed.add(step.id);
+        let message = error instanceof Error ? error.message : String(error);
+        // A step that fails half-way (a full disk) leaves none of its outputs behind.
+        const partial: string[] = [];
+        for (const [path, stamp] of stamps) {
+          const now = fileStamp(path);
+          if (now !== "" && now !== stamp) {
+            await rm(path, { force: true });
+            partial.push(relative(outDir, path));
+          }
+        }
+        if (partial.length > 0) message += ` (its partial outputs removed: ${partial.join(", ")})`;
+        const seconds = (performance.now() - begin) / 1000;
+        progress.end(i + 1, label, false, seconds, message);
+        results[i] = { ...base, outputs: {}, status: "failed", error: message, seconds };
+      }
+    };
+    // Steps start in plan order as soon as what they need is done, up to `jobs` at once.
+    const jobs = Math.max(1, options.jobs ?? 1);
+    const running = new Map<number, Promise<number>>();
+    const waiting = steps.map((_, i) => i);
+    while (waiting.length > 0 || running.size > 0) {
+      for (let w = 0; w < waiting.length && running.size < jobs;) {
+        const i = waiting[w];
+        if (steps[i].needs.every((n) => done.has(n))) {
+          waiting.splice(w, 1);
+          running.set(i, runStep(i).then(() => i));
+        } else {
+          w++;
+        }
+      }
+      if (running.size === 0) break; // cannot happen: needs always name earlier steps
+      const finished = await Promise.race(running.values());
+      running.delete(finished);
+      done.add(steps[finished].id);
+      await writeManifest(progressManifest());
+    }
+    // A shard's targets wait for the merge: they may read any shard's results.
+    const targets = options.shard === undefined ? await evaluateTargets(plan, outDir, failed) : [];
+    let manifest: Manifest = {
+      ...header,
+      finished: new Date().toISOString(),
+      status: results.some((r) => r.status !== "ok") ? "failed" : "ok",
+      steps: results,
+      targets,
+    };
+    const report = options.report;
+    if (plan.report !== undefined && report !== undefined && options.shard === undefined) {
+      const written = await writeRecordedReport(outDir, () => report(outDir, manifest, plan));
+      manifest = { ...manifest, report: written.report, report_files: written.files };
+    }
+    await writeManifest(manifest);
+    return manifest;
   }
-  await writeManifest(manifest);
-  return manifest;
 }
 
 /** Whether an `inputs` option names two or more channels (a list, or "a,b" text). */

@@ -36,6 +36,7 @@
  * @module
  */
 import { z } from "npm:zod@4.6.7";
+import { isReportFileName } from "./campaign_paths.ts";
 
 /** The analysis commands a plan can run. */
 export const PLAN_COMMANDS = [
@@ -162,8 +163,14 @@ export const planSchema = z.strictObject({
   targets: z.array(z.union([valueTarget, curveTarget])).default([]),
   /** When true, a failed or unchecked target makes `run` exit with TARGETS_NOT_MET_EXIT. */
   require_targets: z.boolean().default(false),
-  report: z.strictObject({ title: z.string().optional(), file: z.string().default("report.html") })
-    .optional(),
+  report: z.strictObject({
+    title: z.string().optional(),
+    /** One plain file name ending .html, written in the output folder itself. */
+    file: z.string().refine(
+      isReportFileName,
+      'the report is one file name ending .html, in the output folder itself (no folder, no "." or "..")',
+    ).default("report.html"),
+  }).optional(),
 });
 
 /** A validated plan. */

@@ -80,11 +80,6 @@ export function shardManifestName(shard: Shard): string {
   return `manifest.shard-${shard.index}-of-${shard.count}.json`;
 }
 
-/** The name of a shard's lock file. */
-export function shardLockName(shard: Shard): string {
-  return `.quiver-lock.shard-${shard.index}-of-${shard.count}.json`;
-}
-
 /** What the assignment needs of a step. */
 export interface ShardableStep {
   readonly id: string;

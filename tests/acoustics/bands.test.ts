@@ -1,6 +1,12 @@
 import { describe, expect, test } from "vitest";
 import { bandLevels } from "../../lib/acoustics/band_analysis.ts";
-import { band, bandsInRange, midbandHz } from "../../lib/acoustics/bands.ts";
+import {
+  band,
+  bandHolding,
+  bandsHolding,
+  bandsInRange,
+  midbandHz,
+} from "../../lib/acoustics/bands.ts";
 import { FilterBankMeter, filterBankPowers } from "../../lib/acoustics/filter_bank.ts";
 import { iecA } from "../helpers/iec_weighting.ts";
 import type { Recording } from "../../lib/io/recording.ts";
@@ -153,5 +159,74 @@ describe("the filter bank read in chunks", () => {
     expect(Array.from(chunked.power)).toEqual(Array.from(whole.power));
     expect(Array.from(chunked.bandRate)).toEqual(Array.from(whole.bandRate));
     expect(chunked.shortRecord).toEqual(whole.shortRecord);
+  });
+});
+
+describe("band ranges named by frequency", () => {
+  test("20 Hz and 20 kHz name the bands of those labels, whose exact mid-bands lie just below", () => {
+    // IEC 61260-1:2014 formula 2: band x = −17 has fₘ = 1000·G^(−17/3) = 19.953 Hz, nominal 20
+    // Hz; x = 13 has 19 953 Hz, nominal 20 kHz. A range read as "fₘ ≥ 20 Hz" loses the former.
+    expect(bandHolding(20, 3).index).toBe(-17);
+    assertClose(bandHolding(20, 3).centerHz, 1000 * G ** (-17 / 3), {
+      relative: 1e-14,
+      absolute: 0,
+    });
+    expect(bandHolding(20000, 3).index).toBe(13);
+    const thirds = bandsHolding(3, 20, 20000);
+    expect(thirds.length).toBe(31);
+    expect([thirds[0].nominalHz, thirds[30].nominalHz]).toEqual([20, 20000]);
+    // A frequency on an edge is the geometric mean of two mid-bands: just above it, the upper band.
+    expect(bandHolding(band(0, 3).upperHz * 1.0001, 3).index).toBe(1);
+    expect(bandHolding(band(0, 3).upperHz * 0.9999, 3).index).toBe(0);
+    // Even b (formula 3): fₘ = 1000·G^((2x + 1)/(2b)), so 1000 Hz lies between x = −1 and 0.
+    expect(bandHolding(1000 * G ** (1 / 12), 6).index).toBe(0);
+    expect(bandHolding(1000 * G ** (-1 / 12), 6).index).toBe(-1);
+  });
+
+  test("the default range at 48 kHz holds the 20 Hz and the 20 kHz bands; their tones count in the overall", async () => {
+    // The 20 kHz band's upper edge, 19 953·G^(1/6) = 22 387 Hz, lies below Nyquist (24 kHz).
+    const rate = 48000, n = 6 * rate;
+    const list = [{ f: 20, rms: 0.5 }, { f: 1000, rms: 0.1 }, { f: 20000, rms: 0.5 }];
+    const data = new Float64Array(n).map((_, i) =>
+      list.reduce((s, t) => s + t.rms * Math.SQRT2 * Math.sin(2 * Math.PI * t.f * (i / rate)), 0)
+    );
+    const result = await bandLevels({
+      rate,
+      startTime: 0,
+      channels: [{ name: "mic", unit: "Pa", data }],
+    });
+    const nominal = result.table.columns[1].values;
+    expect(nominal[0]).toBe(20);
+    expect(nominal[nominal.length - 1]).toBe(20000);
+    expect(result.table.metadata.band_range_nominal_hz).toEqual([20, 20000]);
+    // Parseval: the tones are orthogonal, so the overall is the sum of their mean squares.
+    const expected = level(list.reduce((s, t) => s + rms2(t.rms), 0));
+    expect(Math.abs(result.overall[0].levelDb - expected)).toBeLessThan(0.1);
+    expect(result.warnings.join()).not.toMatch(/left out/);
+  });
+
+  test("bands reaching beyond Nyquist are cut, and a range the caller gave says so", async () => {
+    const rec = tones([{ f: 1000, rms: 1 }]); // 16 384 Hz: Nyquist 8192 Hz
+    const given = await bandLevels(rec, { maxHz: 10000 });
+    const nominal = given.table.columns[1].values;
+    // 8 kHz band: upper edge 7943·G^(1/6) = 8913 Hz > 8192 Hz, cut; 6.3 kHz (7079 Hz) kept.
+    expect(nominal[nominal.length - 1]).toBe(6300);
+    expect(given.warnings.join()).toMatch(/above 6300 Hz are left out.*half the sample rate/);
+  });
+
+  test("the default fft block follows the lowest band, as --help says, not the record's length", async () => {
+    // 100 Hz third octave: width 100·(G^(1/6) − G^(−1/6)) = 23.16 Hz (IEC 61260-1 formulas 4, 5);
+    // 5 lines need df ≤ 4.63 Hz: 4096/4.63 = 884 → 1024 samples, while a quarter of the
+    // 8192-sample record is 2048.
+    const width = 100 * (G ** (1 / 6) - G ** (-1 / 6));
+    const expected = 2 ** Math.ceil(Math.log2((5 * 4096) / width));
+    expect(expected).toBe(1024);
+    const data = new Float64Array(8192).map((_, i) => Math.sin(2 * Math.PI * 250 * i / 4096));
+    const result = await bandLevels({
+      rate: 4096,
+      startTime: 0,
+      channels: [{ name: "mic", unit: "Pa", data }],
+    }, { minHz: 100, maxHz: 1000 });
+    expect(result.table.metadata.block).toBe(expected);
   });
 });

@@ -51,3 +51,40 @@ describe("references as an engineer writes them", () => {
     expect(formatReference(2e-3, "FS")).toBe("0.002 FS");
   });
 });
+
+describe("Leq and exceedance levels of a level that changes", () => {
+  const rate = 8000;
+  /** 250 Hz tone at the given rms per 0.1 s step (25 whole cycles per step). */
+  function steps(rmsOfStep: (k: number) => number, count: number) {
+    const n = Math.round(0.1 * rate);
+    const data = new Float64Array(count * n).map((_, i) =>
+      rmsOfStep(Math.floor(i / n)) * Math.SQRT2 * Math.sin(2 * Math.PI * 250 * i / rate)
+    );
+    return { rate, startTime: 0, channels: [{ name: "mic", unit: "Pa", data }] };
+  }
+
+  test("Leq of 2 s at 1 Pa then 2 s at 0.1 Pa is the energy mean, 91.01 dB", async () => {
+    // Definition of Leq (IEC 61672-1:2013, 3.8): 10·lg(mean of p²/p0²) =
+    // 10·lg(((1 + 0.01)/2)/(20 µPa)²) = 91.01 dB; the mean of the dB (83.98) is wrong.
+    const { summary } = await levelHistory(steps((k) => (k < 20 ? 1 : 0.1), 40), {
+      weighting: "Z",
+      timeWeighting: "none",
+    });
+    const expected = 10 * Math.log10(((1 + 0.01) / 2) / (20e-6) ** 2);
+    expect(Math.abs(expected - 91.01)).toBeLessThan(0.005);
+    expect(Math.abs(summary[0].leq - expected)).toBeLessThan(0.01);
+  });
+
+  test("a level rising evenly from 60 to 100 dB: L10 = 96, L50 = 80, L90 = 64 dB", async () => {
+    // L_N is the level exceeded N % of the time (common practice). 100 steps of
+    // 60 + 40·k/99 dB: the 90th percentile of the readings, interpolated, is
+    // 60 + 40·(0.9·99)/99 = 96 dB; the 10th, 64 dB.
+    const { summary } = await levelHistory(
+      steps((k) => 20e-6 * 10 ** ((60 + (40 * k) / 99) / 20), 100),
+      { weighting: "Z", timeWeighting: "none", step: 0.1 },
+    );
+    expect(Math.abs(summary[0].l10 - 96)).toBeLessThan(0.01);
+    expect(Math.abs(summary[0].l50 - 80)).toBeLessThan(0.01);
+    expect(Math.abs(summary[0].l90 - 64)).toBeLessThan(0.01);
+  });
+});

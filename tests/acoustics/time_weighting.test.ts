@@ -102,3 +102,51 @@ describe("Lmax of tone bursts (IEC 61672-1:2013, Table 4)", () => {
     });
   }
 });
+
+describe("the meter starts from rest (IEC 61672-1:2013, 5.8: exponential averaging)", () => {
+  const rate = 48000;
+  const pressure = 20e-6 * 10 ** (110 / 20); // rms of 110 dB re 20 µPa (ISO 1683)
+
+  test("a 20 ms, 110 dB burst at the record's very start: Fast Lmax = 110 + 10·lg(1 − e^(−0.02/0.125))", async () => {
+    // Analytic response from y = 0: y(Tb) = ms·(1 − e^(−Tb/τ)) → 101.70 dB. A meter that
+    // starts from the first τ's mean square instead reads 104.5 dB.
+    const burst = Math.round(0.02 * rate); // 960 samples: 20 whole cycles of 1 kHz
+    const data = new Float64Array(rate).map((_, i) =>
+      i < burst ? pressure * Math.SQRT2 * Math.sin(2 * Math.PI * 1000 * i / rate) : 0
+    );
+    const { summary } = await levelHistory({
+      rate,
+      startTime: 0,
+      channels: [{ name: "mic", unit: "Pa", data }],
+    }, { weighting: "Z", timeWeighting: "fast" });
+    const expected = 110 + 10 * Math.log10(1 - Math.exp(-0.02 / TAU_S.fast));
+    expect(Math.abs(expected - 101.70)).toBeLessThan(0.005);
+    expect(Math.abs(summary[0].lmax - expected)).toBeLessThan(0.1);
+  });
+
+  test("Lmin counts once the meter has settled; a record too short to settle says so", async () => {
+    // A steady tone from the first sample: read from rest, the level rises for a few τ.
+    // Counting that rise would put Lmin tens of dB low; from 5τ on it is the steady level
+    // within 10·lg(1 − e^(−5)) = −0.03 dB (common practice: 5 time constants).
+    const tone = (seconds: number) =>
+      new Float64Array(Math.round(seconds * 8000)).map((_, i) =>
+        Math.SQRT2 * Math.sin(2 * Math.PI * 250 * i / 8000)
+      );
+    const steady = 20 * Math.log10(1 / 20e-6);
+    const long = await levelHistory({
+      rate: 8000,
+      startTime: 0,
+      channels: [{ name: "mic", unit: "Pa", data: tone(3) }],
+    }, { weighting: "Z", timeWeighting: "fast" });
+    expect(Math.abs(long.summary[0].lmin - steady)).toBeLessThan(0.05);
+    expect(Math.abs(long.summary[0].l90 - steady)).toBeLessThan(0.05);
+    expect(long.table.metadata.statistics_settling_s).toBe(5 * TAU_S.fast);
+    expect(long.warnings.join()).not.toMatch(/settling/);
+    const short = await levelHistory({
+      rate: 8000,
+      startTime: 0,
+      channels: [{ name: "mic", unit: "Pa", data: tone(0.5) }],
+    }, { weighting: "Z", timeWeighting: "fast" });
+    expect(short.warnings.join()).toMatch(/shorter than the meter's settling time of 0.625 s/);
+  });
+});

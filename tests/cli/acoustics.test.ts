@@ -58,6 +58,16 @@ describe("quiver bands, level and calibrate", () => {
       "dB(A) re 20 µPa",
     );
     expect(r.stderr).toMatch(/driver_ear: overall \d+\.\d+ dB\(A\)/);
+    // The range the rule chose, said: 20 Hz up to the last band wholly below 8192 Hz.
+    expect(r.stderr).toMatch(/bands 20 Hz to 6300 Hz \(nominal\)/);
+    expect(nominal[0]).toBe(20);
+    // The block --help states: 5 lines in the 20 Hz band (width 4.63 Hz, IEC 61260-1
+    // formulas 4, 5) need 16384/0.926 → 32768, at most a quarter of 8·16384 samples.
+    expect(json.metadata.block).toBe(32768);
+    const help = runQuiver(["bands", "--help"]);
+    expect(help.stdout.replace(/\s+/g, " ")).toMatch(
+      /the power of two that gives the lowest band 5 lines, at most a quarter of the record/,
+    );
   });
 
   test("bands refuses a unit without a standard reference", async () => {

@@ -53,22 +53,31 @@ describe("damping on a short, coarse shaker FRF with default settings", () => {
   });
 
   for (const method of ["both", "half-power", "sdof-fit"]) {
-    test(`--method ${method}: exit 0, the two modes found, no NaN cells, noise peaks left out`, async () => {
+    test(`--method ${method}: exit 0, the two modes found, no NaN cells, noise peaks flagged and not numbered`, async () => {
       const r = runQuiver(
         ["damping", "frf.csv", "--method", method, "--out", `m_${method}.csv`],
         dir,
       );
       expect(r.code, r.stderr).toBe(0);
-      expect(r.stderr).toMatch(/left out as noise/);
+      expect(r.stderr).toMatch(/candidate peak\(s\) of "arm" flagged noise/);
       const text = await readFile(`${dir}/m_${method}.csv`, "utf8");
       expect(text).not.toMatch(/NaN/);
       const rows = text.trim().split("\n").slice(1).map((l) => l.split(","));
-      const frequencies = rows.map((row) => Number(row[2]));
-      // Both modes within 2 lines (4 Hz) of the truth; nothing else (common practice: a
-      // peak that the FRF's coherence does not support is not a mode).
-      expect(frequencies).toHaveLength(2);
-      expect(Math.abs(frequencies[0] - 61)).toBeLessThan(4);
-      expect(Math.abs(frequencies[1] - 173)).toBeLessThan(4);
+      // Rows with a mode number are modes; the others are candidates flagged noise.
+      const modes = rows.filter((row) => row[1] !== "");
+      const noise = rows.filter((row) => row[1] === "");
+      // Both modes within 2 lines (4 Hz) of the truth; nothing else is a mode (common
+      // practice: a peak that the FRF's coherence does not support is not a mode).
+      expect(modes.map((row) => row[1])).toEqual(["1", "2"]);
+      expect(Math.abs(Number(modes[0][2]) - 61)).toBeLessThan(4);
+      expect(Math.abs(Number(modes[1][2]) - 173)).toBeLessThan(4);
+      for (const row of modes) expect(row[6]).not.toMatch(/noise/);
+      // The noise floor above ~400 Hz: listed, flagged, never a mode.
+      expect(noise.length).toBeGreaterThan(0);
+      for (const row of noise) {
+        expect(row[6].split(";")).toContain("noise");
+        expect(Number(row[2])).toBeGreaterThan(300);
+      }
     });
   }
 

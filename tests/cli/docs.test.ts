@@ -1,4 +1,4 @@
-import { readFileSync } from "node:fs";
+import { mkdtempSync, readFileSync, writeFileSync } from "node:fs";
 import { fileURLToPath } from "node:url";
 import { describe, expect, test } from "vitest";
 import { COMMAND_NAMES } from "../../cli/main.ts";
@@ -45,5 +45,33 @@ describe("README agrees with the command line", () => {
     ) {
       expect(README).toContain(`\`${key}\``);
     }
+  });
+});
+
+describe("the textbook's words for spectra", () => {
+  test('no "autopower" in README, any --help, or the spectrum metadata; kind power still works', () => {
+    // Bendat & Piersol, Random Data, 4th ed.: "autospectrum" / power spectrum. The option
+    // values psd, rms and peak are textbook terms and stay; "power" keeps working.
+    expect(README).not.toMatch(/auto-?power/i);
+    for (const name of COMMAND_NAMES) {
+      expect(runQuiver([name, "--help"]).stdout, name).not.toMatch(/auto-?power/i);
+    }
+    const dir = mkdtempSync("/tmp/quiver-words-");
+    const rows = ["time_s,acc [m/s^2]"];
+    for (let i = 0; i < 2048; i++) rows.push(`${i / 1024},${Math.sin(i / 5)}`);
+    writeFileSync(`${dir}/r.csv`, rows.join("\n") + "\n");
+    const r = runQuiver([
+      "spectrum",
+      `${dir}/r.csv`,
+      "--kind",
+      "power",
+      "--block",
+      "256",
+      "--out",
+      `${dir}/p.json`,
+    ]);
+    expect(r.code, r.stderr).toBe(0);
+    expect(r.stderr).not.toMatch(/auto-?power/i);
+    expect(readFileSync(`${dir}/p.json`, "utf8")).not.toMatch(/auto-?power/i);
   });
 });

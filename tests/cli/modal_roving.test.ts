@@ -100,7 +100,13 @@ describe("a roving-hammer campaign: hammer, then modal", () => {
     }
     const stability = await readFile(`${dir}/stability.csv`, "utf8");
     expect(stability.split("\n")[0]).toBe(
-      "order,frequency_hz [Hz],damping_ratio,stable_frequency,stable_damping,stable_shape",
+      "order,frequency_hz [Hz],damping_ratio,stable_frequency,stable_damping,stable_shape,mode",
     );
+    // Each mode names the orders its cluster held a stable pole at, and the chart marks them.
+    const marked = stability.trim().split("\n").slice(1).map((l) => Number(l.split(",")[6]));
+    modes.forEach((row, i) => {
+      expect(row[5], `mode ${i + 1} stable orders`).toBeGreaterThanOrEqual(5);
+      expect(marked.filter((m) => m === i + 1).length).toBe(row[5]);
+    });
   });
 });

@@ -112,4 +112,70 @@ describe("quiver orders", () => {
     expect(r.code).toBe(2);
     expect(r.stderr).toMatch(/--tacho needs --ppr/);
   });
+
+  test("a 60-2 wheel: --ppr 60 --missing-teeth 2 reads the speed; --ppr 58 alone is named", async () => {
+    // Truth: the analytic run-up 1200 → 2400 rpm over 4 s; the wheel's 58 teeth as TTL pulses,
+    // no pulse at the 2 missing positions. Read as 58 plain pulses the speed is 60/58 high.
+    const rate = 16384, seconds = 4;
+    const wheel = linearProfile(1200, 2400, seconds);
+    const n = rate * seconds;
+    const tacho = new Float64Array(n).map((_, i) => {
+      const position = wheel.angle(i / rate) * 60;
+      const tooth = Math.floor(position) % 60;
+      return position - Math.floor(position) < 0.5 && tooth < 58 ? 5 : 0;
+    });
+    const response = new Float64Array(n).map((_, i) =>
+      Math.SQRT2 * Math.sin(2 * Math.PI * 2 * wheel.angle(i / rate))
+    );
+    await writeFile(
+      `${dir}/wheel.csv`,
+      recordingCsv({
+        rate,
+        startTime: 0,
+        channels: [
+          { name: "tacho", unit: "V", data: tacho },
+          { name: "mount_acc", unit: "m/s^2", data: response },
+        ],
+      }),
+    );
+    const common = ["orders", `${dir}/wheel.csv`, "--rate", String(rate), "--tacho", "tacho"];
+    const args = ["--channels", "mount_acc", "--orders", "2", "--rpm-step", "100"];
+    const right = runQuiver([
+      ...common,
+      "--ppr",
+      "60",
+      "--missing-teeth",
+      "2",
+      ...args,
+      "--rpm-out",
+      `${dir}/wheel_rpm.csv`,
+      "--out",
+      `${dir}/wheel_cuts.json`,
+    ]);
+    expect(right.code).toBe(0);
+    expect(right.stderr).not.toMatch(/filled in|missing-tooth wheel/);
+    const rpm = parse(await readFile(`${dir}/wheel_rpm.csv`, "utf8"));
+    for (const [t, v] of rpm.rows) expect(Math.abs(v / wheel.rpm(t) - 1)).toBeLessThan(0.001);
+    const cuts = JSON.parse(await readFile(`${dir}/wheel_cuts.json`, "utf8"));
+    expect(cuts.metadata.speed_source.missing_teeth).toBe(2);
+    expect(cuts.metadata.speed_source.trigger).toBe("envelope");
+    const wrong = runQuiver([...common, "--ppr", "58", ...args]);
+    expect(wrong.code).toBe(0);
+    expect(wrong.stderr).toMatch(
+      /warning: the tacho looks like a missing-tooth wheel \(60-2\).*--ppr 60 --missing-teeth 2/,
+    );
+    const alone = runQuiver([
+      "orders",
+      `${dir}/wheel.csv`,
+      "--rate",
+      String(rate),
+      "--rpm-channel",
+      "mount_acc",
+      "--missing-teeth",
+      "2",
+      ...args,
+    ]);
+    expect(alone.code).toBe(2);
+    expect(alone.stderr).toMatch(/--missing-teeth needs --tacho/);
+  });
 });

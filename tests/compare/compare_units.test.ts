@@ -110,3 +110,19 @@ describe("difference_db is simulation − test, per line and per band", () => {
     assertClose(band.difference_db, 3.010299956639812, { relative: 1e-12, absolute: 0 }, "band");
   });
 });
+
+describe("unit names from files are never keys into an object's prototype", () => {
+  test('a simulation in "constructor" against a test in m/s^2 is refused as a unit mismatch', () => {
+    const curve = (unit: string): Curve => ({
+      frequencies: new Float64Array([10, 20, 30]),
+      magnitude: new Float64Array([1, 2, 1]),
+      quantity: "amplitude",
+      unit,
+      column: "x",
+    });
+    // Before, "constructor" found Object's constructor as a motion order and went on.
+    expect(() => compareCurves(curve("m/s^2"), curve("constructor"))).toThrow(
+      /the test curve is in \[m\/s\^2\]/,
+    );
+  });
+});

@@ -36,6 +36,34 @@ describe("spectrogram against time", () => {
     });
   });
 
+  test("a frame of 3 segments sits at the centre of its segments and averages their PSDs", async () => {
+    // A frame of segments k…k+2 spans from the first's start to the last's end: its centre is
+    // midway between the first and last segments' centres (scipy's times of those segments),
+    // and its PSD is the mean of theirs (Welch 1967: averaged periodograms).
+    const perFrame = 3;
+    const table = await spectrogram(recording, { block: 256, overlap: 0.5, frames: perFrame });
+    const [time, , psd] = table.columns.map((c) => c.values);
+    const lines = ref.frequencies.length;
+    const frames = Math.floor(ref.times.length / perFrame);
+    expect(time.length).toBe(frames * lines);
+    for (let j = 0; j < frames; j++) {
+      const first = ref.times[perFrame * j], last = ref.times[perFrame * j + perFrame - 1];
+      assertClose(
+        time[j * lines],
+        (first + last) / 2,
+        { relative: 1e-12, absolute: 1e-12 },
+        `time of frame ${j}`,
+      );
+      const mean = ref.psd[perFrame * j].map((_, k) =>
+        (ref.psd[perFrame * j][k] + ref.psd[perFrame * j + 1][k] + ref.psd[perFrame * j + 2][k]) / 3
+      );
+      assertClose(psd.subarray(j * lines, (j + 1) * lines), mean, {
+        relative: 1e-6,
+        absolute: 1e-10 * maxAbs(mean),
+      }, `frame ${j}`);
+    }
+  });
+
   test("A-weighted and in dB: scipy's PSD plus A(f) re (20 µPa)²/Hz, line by line", async () => {
     // IEC 61672-1 A-weighting (typed formula, tests/helpers/iec_weighting.ts) and the
     // ISO 1683 reference of sound pressure, 20 µPa.

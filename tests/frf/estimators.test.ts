@@ -1,6 +1,7 @@
 import { readFileSync } from "node:fs";
 import { describe, expect, test } from "vitest";
 import { frequencyResponse } from "../../lib/frf/frf_analysis.ts";
+import { randomError } from "../../lib/frf/estimators.ts";
 import { parseCsvRecording } from "../../lib/io/csv_reader.ts";
 import type { Table } from "../../lib/io/table.ts";
 import { assertClose, maxAbs } from "../helpers/assert_close.ts";
@@ -159,5 +160,66 @@ describe("coherence", () => {
     });
     expect(warnings.join()).toMatch(/only one average/);
     expect((table.metadata.warnings as string[]).length).toBe(1);
+  });
+});
+
+describe("random error of |H| at intermediate coherence", () => {
+  // Bendat & Piersol, Random Data, 4th ed., Table 9.6: ε[|Ĥ|] ≈ √(1 − γ²)/(|γ|·√(2·n_d)).
+  test("γ² = 0.5 with 32 averages: ε = 1/8 (the formula evaluated by hand)", () => {
+    // √0.5/(√0.5·√64) = 1/8; without the factor 2 it would read 1/√32 ≈ 0.177.
+    assertClose(randomError(new Float64Array([0.5]), 32), [0.125], {
+      relative: 1e-12,
+      absolute: 0,
+    });
+    // γ² = 0.8, 50 averages: √0.2/(√0.8·10) = 0.05.
+    assertClose(randomError(new Float64Array([0.8]), 50), [0.05], { relative: 1e-12, absolute: 0 });
+  });
+
+  test("equals the scatter of |H1| over independent runs where γ² ≈ 0.5", async () => {
+    // y = x + n, x and n independent unit white noise: H = 1 and γ² = 1/2 on every line
+    // (B&P eq. 9.57). 40 runs of 32 rectangular, non-overlapping blocks of 64 samples: each
+    // run's lines 2…29 are independent estimates of |H|; their relative standard deviation is
+    // the random error. 1120 estimates give the standard deviation to about ±2 % (standard
+    // error of a standard deviation, 1/√(2N)); the formula is itself a first-order
+    // approximation, so 12 % is allowed, and the factor-2 slip (+41 %) cannot pass.
+    const block = 64, averages = 32;
+    const magnitudes: number[] = [];
+    const predicted: number[] = [];
+    for (let run = 0; run < 40; run++) {
+      const x = gaussianNoise(1000 + run, block * averages);
+      const n = gaussianNoise(2000 + run, block * averages);
+      const { table } = await frequencyResponse({
+        rate: 64,
+        startTime: 0,
+        channels: [
+          { name: "force", unit: "N", data: x },
+          { name: "acc", unit: "m/s^2", data: x.map((v, i) => v + n[i]) },
+        ],
+      }, {
+        input: "force",
+        outputs: ["acc"],
+        block,
+        overlap: 0,
+        window: "rectangular",
+        detrend: "none",
+      });
+      expect(table.metadata.averages).toBe(averages);
+      const re = column(table, "acc_re"), im = column(table, "acc_im");
+      const error = column(table, "acc_random_error");
+      for (let k = 2; k < 30; k++) {
+        magnitudes.push(Math.hypot(re[k], im[k]));
+        predicted.push(error[k]);
+      }
+    }
+    let mean = 0;
+    for (const m of magnitudes) mean += m / magnitudes.length;
+    let variance = 0;
+    for (const m of magnitudes) variance += (m - mean) ** 2 / (magnitudes.length - 1);
+    // The formula at the true coherence, 1/2: ε = 1/8.
+    assertClose(Math.sqrt(variance) / mean, 0.125, { relative: 0.12, absolute: 0 }, "scatter");
+    // The table's own ε (from each line's estimated γ²) scatters around the same value.
+    let meanPredicted = 0;
+    for (const e of predicted) meanPredicted += e / predicted.length;
+    assertClose(meanPredicted, 0.125, { relative: 0.12, absolute: 0 }, "mean tabulated ε");
   });
 });

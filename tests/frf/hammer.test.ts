@@ -3,7 +3,8 @@ import { hammerFrf } from "../../lib/frf/hammer.ts";
 import { findHits } from "../../lib/frf/hits.ts";
 import { recordingSource } from "../../lib/io/recording_stream.ts";
 import { QuiverError } from "../../lib/errors.ts";
-import { MODES_A, MODES_B, RATE, sixHits } from "../helpers/hammer_recording.ts";
+import { driftingHits, MODES_A, MODES_B, RATE, sixHits } from "../helpers/hammer_recording.ts";
+import { assertClose } from "../helpers/assert_close.ts";
 import { receptance } from "../helpers/modal.ts";
 import { gaussianNoise } from "../helpers/random.ts";
 
@@ -213,5 +214,46 @@ describe("usable bandwidth of the hammer", () => {
       200 * Math.sin((Math.PI * 5.5) / 12),
       9,
     );
+  });
+});
+
+describe("hits on a drifting force channel", () => {
+  const { recording, hits: truth } = driftingHits();
+  const force = recording.channels[0].data;
+
+  test("the naive rule's trap: a global median and MAD would put the trigger above the light hits", () => {
+    // Computed here by sorting, independent of hits.ts: 5 × 1.4826 × MAD about the median.
+    const sorted = Float64Array.from(force).sort();
+    const median = sorted[sorted.length >> 1];
+    const deviations = sorted.map((v) => Math.abs(v - median)).sort();
+    const naiveTrigger = 5 * 1.4826 * deviations[deviations.length >> 1];
+    expect(naiveTrigger).toBeGreaterThan(20);
+  });
+
+  test("all ten hits are found above a baseline that follows the drift, peaks within 0.25 N + 0.1 %", () => {
+    const d = findHits(force, { pretriggerSamples: 82 });
+    expect(d.hits.map((h) => h.status)).toEqual(new Array(10).fill("accepted"));
+    expect(d.belowTrigger.count).toBe(0);
+    // 5 % of the largest excursion (≈ 200 N; common practice) wins over 5 σ of 0.05 N noise.
+    assertClose(d.trigger, 10, { relative: 0.01, absolute: 0 });
+    assertClose(d.noiseSigma, 0.05, { relative: 0.1, absolute: 0 });
+    expect(d.triggerRule).toMatch(/5 % of the largest excursion/);
+    d.hits.forEach((h, k) => {
+      // Analytic: a half-sine peaks at P, T/2 after its start. Tolerance: 5 σ of the noise on
+      // the samples the peak is read from, plus 0.1 % for the parabola between samples (the
+      // largest sample alone is 0.46 % low on the 200 N hits, which fall half a sample off).
+      assertClose(h.peak, truth[k].peak, { relative: 0.001, absolute: 0.25 }, `hit ${k + 1}`);
+      expect(Math.abs(h.sample / recording.rate - truth[k].time)).toBeLessThan(0.002);
+    });
+  });
+
+  test("the report counts the hits and tells of pulses left below a given trigger", async () => {
+    const all = await hammerFrf(recording, { force: "hammer", outputs: ["tip"] });
+    expect(all.summary).toBe("10 hits: 10 accepted");
+    expect(all.table.metadata.trigger_rule).toMatch(/local baseline/);
+    const heavy = await hammerFrf(recording, { force: "hammer", outputs: ["tip"], trigger: 50 });
+    expect(heavy.summary).toBe("5 hits: 5 accepted; 5 pulses below the trigger");
+    const note = heavy.warnings.find((w) => /below|not to the trigger/.test(w));
+    expect(note).toMatch(/^5 pulse\(s\) on "hammer" rose above 5 noise sigma .*the largest 20 N\)/);
   });
 });

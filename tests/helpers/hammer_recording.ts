@@ -72,3 +72,52 @@ export async function sixHitsCli(dir: string): Promise<(args: string[]) => CliRe
       ...args,
     ]);
 }
+
+/** One hit of {@linkcode driftingHits}: start time, s, and true peak, N. */
+export interface TrueHit {
+  readonly time: number;
+  readonly peak: number;
+}
+
+/**
+ * Ten half-sine hits of 2 ms, 1.0 to 10.0 s (plus a fraction of a sample so
+ * that no peak falls on a sample; at 8192 Hz the 200 N peaks fall half a
+ * sample off, where the largest sample is 0.46 % low: 1 − cos(π/2/16.384)), five of 200 N and five of 20 N, on a
+ * force channel that drifts slowly by ±8 N (4 % of the largest peak; one
+ * period in 10 s) and carries 0.05 N rms of noise. The truth is analytic:
+ * f(t) = P·sin(π(t − t0)/T) for t0 ≤ t ≤ t0 + T peaks at P.
+ */
+export function driftingHits(rate = 8192): { recording: Recording; hits: TrueHit[] } {
+  const n = Math.round(11.5 * rate);
+  const width = 0.002;
+  const hits = Array.from({ length: 10 }, (_, k) => ({
+    time: 1 + k + [0.308, 0.1, 0.5, 0.308, 0.7, 0.308, 0.9, 0.2, 0.308, 0.6][k] / rate,
+    peak: [200, 20, 20, 200, 20, 200, 200, 20, 200, 20][k],
+  }));
+  const noise = gaussianNoise(2026, n);
+  const force = new Float64Array(n).map((_, i) => {
+    const t = i / rate;
+    let f = 8 * Math.sin(2 * Math.PI * t / 10 + 0.4) + 0.05 * noise[i];
+    for (const h of hits) {
+      if (t >= h.time && t <= h.time + width) {
+        f += h.peak * Math.sin(Math.PI * (t - h.time) / width);
+      }
+    }
+    return f;
+  });
+  return {
+    recording: {
+      rate,
+      startTime: 0,
+      channels: [
+        { name: "hammer", unit: "N", data: force },
+        {
+          name: "tip",
+          unit: "m/s^2",
+          data: force.map((v, i) => 0.01 * v + 1e-3 * noise[n - 1 - i]),
+        },
+      ],
+    },
+    hits,
+  };
+}

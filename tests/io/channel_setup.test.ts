@@ -1,5 +1,9 @@
 import { describe, expect, test } from "vitest";
-import { applyChannelSetup, parseChannelSetup } from "../../lib/io/channel_setup.ts";
+import {
+  applyChannelSetup,
+  parseChannelSetup,
+  setupTransforms,
+} from "../../lib/io/channel_setup.ts";
 import type { Recording } from "../../lib/io/recording.ts";
 import { QuiverError } from "../../lib/errors.ts";
 import { assertClose } from "../helpers/assert_close.ts";
@@ -98,12 +102,63 @@ describe("channel set-up", () => {
 
   test("schema errors name the field", () => {
     expect(() =>
-      parseChannelSetup('{"channels": {"a": {"sensitivity_mv_per_unit": -1}}}', "s.json")
+      parseChannelSetup('{"channels": {"a": {"sensitivity_mv_per_unit": "10"}}}', "s.json")
     )
       .toThrow(/s\.json: channel set-up field channels\.a\.sensitivity_mv_per_unit/);
     expect(() => parseChannelSetup('{"channels": {"a": {"untis": "N"}}}', "s.json"))
       .toThrow(QuiverError);
     expect(() => parseChannelSetup('{"channels": {"a": {"role": "driver"}}}')).toThrow(/role/);
+  });
+
+  test("sensitivity and full scale outside their ranges are refused naming channel and value", () => {
+    const setup = (field: string, value: string) =>
+      parseChannelSetup(`{"channels": {"acc": {"unit": "m/s^2", "${field}": ${value}}}}`, "s.json");
+    for (const value of ["0", "-1", "1e999", "-1e999", "9.9e-7", "1.01e6", "5e-324"]) {
+      expect(() => setup("sensitivity_mv_per_unit", value), value).toThrow(
+        new RegExp(
+          `s\\.json: set-up channel "acc": sensitivity_mv_per_unit ${
+            String(Number(value)).replace(/[.+]/g, "\\$&")
+          } is out of range; quiver accepts 0\\.000001 … 1000000 mV per unit`,
+        ),
+      );
+    }
+    for (const value of ["0", "2e4", "1e999"]) {
+      expect(() => setup("full_scale_volts", value), value).toThrow(
+        /set-up channel "acc": full_scale_volts .* is out of range; quiver accepts 0\.000001 … 10000 V/,
+      );
+    }
+    // Both ends of each range are accepted (the limits are where they are documented).
+    for (const value of ["1e-6", "1e6"]) {
+      expect(setup("sensitivity_mv_per_unit", value).channels.acc.sensitivity_mv_per_unit).toBe(
+        Number(value),
+      );
+    }
+    expect(setup("full_scale_volts", "1e4").channels.acc.full_scale_volts).toBe(1e4);
+  });
+
+  test("channel names are never looked up on an object's prototype", () => {
+    const plain = setupTransforms(
+      [{ name: "constructor", unit: "N" }, { name: "toString", unit: "Pa" }],
+      parseChannelSetup('{"channels": {}}'),
+    );
+    expect(plain.map((t) => t.name)).toEqual(["constructor", "toString"]);
+    // A hand-built set-up object (a plain object with a prototype) is read by own keys too:
+    // looked up as obj[name], "constructor" would find Object (whose .name is "Object").
+    const handMade = setupTransforms([{ name: "constructor", unit: "V" }], { channels: {} });
+    expect(handMade[0]).toEqual({ name: "constructor", unit: "V", factor: 1 });
+    // Callers index the parsed entries by channel name (calibrate): no prototype to find.
+    expect(parseChannelSetup('{"channels": {}}').channels["constructor"]).toBeUndefined();
+    // zod's record drops a "__proto__" key; the set-up keeps it as the channel it names.
+    const proto = parseChannelSetup(
+      '{"channels": {"__proto__": {"unit": "m/s^2", "sensitivity_mv_per_unit": 10}}}',
+    );
+    const [t] = setupTransforms([{ name: "__proto__", unit: "mV" }], proto);
+    expect(t.unit).toBe("m/s^2");
+    // 1 mV = 0.001 V → 0.001·1000/10 = 0.1 m/s^2 per mV.
+    assertClose(t.factor, 0.1, { relative: 1e-12, absolute: 0 });
+    expect(() => setupTransforms([{ name: "a", unit: "V" }], proto)).toThrow(
+      /names channel "__proto__", which the recording does not have/,
+    );
   });
 
   test("JSON syntax errors give line and column", () => {

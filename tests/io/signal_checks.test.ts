@@ -1,5 +1,10 @@
 import { describe, expect, test } from "vitest";
+import { mkdtempSync, rmSync, writeFileSync } from "node:fs";
+import { tmpdir } from "node:os";
+import { join } from "node:path";
 import { channelWarnings } from "../../lib/io/signal_checks.ts";
+import { openRecordingStream, readChecked } from "../../lib/io/recording_stream.ts";
+import { encodeWav } from "../../lib/io/wav.ts";
 import { averagedSpectrum } from "../../lib/dsp/averaged_spectrum.ts";
 import { frequencyResponse } from "../../lib/frf/frf_analysis.ts";
 import { gaussianNoise } from "../helpers/random.ts";
@@ -48,8 +53,15 @@ describe("signal-level warnings", () => {
 
   test("a clipped noise-like accelerometer is found: flat runs that cut the waveform", () => {
     // Road vibration, noise-like, overdriving a ±1 input: flat runs entered continuously.
-    const raw = gaussianNoise(9, 40000);
-    const x = raw.map((v) => Math.max(-1, Math.min(1, 0.8 * v)));
+    // Band-limited as a sampled signal is (sampled at 8× its content by a moving mean of 8:
+    // common practice samples at 2.56× the top frequency or more); white noise has no
+    // continuous waveform to cut.
+    const raw = gaussianNoise(9, 40007);
+    const x = new Float64Array(40000).map((_, i) => {
+      let sum = 0;
+      for (let k = 0; k < 8; k++) sum += raw[i + k];
+      return Math.max(-1, Math.min(1, 0.8 * sum / Math.sqrt(8)));
+    });
     expect(channelWarnings(channel(x)).join()).toMatch(/clipped/);
   });
 
@@ -86,5 +98,149 @@ describe("signal-level warnings", () => {
       block: 256,
     });
     expect(warnings.join()).toMatch(/coherence of "acc" is below 0\.5/);
+  });
+});
+
+/** The warnings of every channel of a file, read through the one reading path. */
+async function fileWarnings(name: string, bytes: Uint8Array | string): Promise<string[]> {
+  const dir = mkdtempSync(join(tmpdir(), "quiver-checks-"));
+  try {
+    const path = join(dir, name);
+    writeFileSync(path, bytes);
+    const stream = await openRecordingStream(path);
+    return await readChecked(stream, stream.channels.map((_, i) => i), () => {});
+  } finally {
+    rmSync(dir, { recursive: true, force: true });
+  }
+}
+
+/** Runs of 3 or more equal samples at the record's maximum, entered and left continuously. */
+function flatRunsAtMaximum(x: Float64Array): number {
+  let max = -Infinity;
+  for (const v of x) if (v > max) max = v;
+  let runs = 0;
+  for (let i = 0; i < x.length;) {
+    let j = i;
+    while (j < x.length && x[j] === x[i]) j++;
+    if (x[i] === max && j - i >= 3) runs++;
+    i = j;
+  }
+  return runs;
+}
+
+describe("clipping judged against the converter and the signal's own crest", () => {
+  const rate = 48000;
+  // A 100 Hz tone 60 dB below full scale: amplitude 10^(−60/20) = 0.001 FS, about 33 LSB of a
+  // 16-bit converter (1 LSB = 2^−15 FS; AES17 defines dBFS from a full-scale sine).
+  const tone = new Float64Array(rate).map((_, i) => 0.001 * Math.sin(2 * Math.PI * 100 * i / rate));
+  const toneWav = (x: Float64Array) =>
+    encodeWav({ rate, startTime: 0, channels: [{ name: "ch1", unit: "FS", data: x }] }, "pcm16");
+
+  test("a 16-bit tone at −60 dBFS is not clipped, though its quantised crests are flat", async () => {
+    // The naive rule's trap: rounding to 1 LSB leaves flat runs at the crests (analytic: within
+    // ½ LSB of a 33-LSB crest for ±acos(1 − 0.5/33)/(2π·100) s, about 28 samples).
+    const quantised = tone.map((v) => Math.round(v * 32768) / 32768);
+    expect(flatRunsAtMaximum(quantised)).toBeGreaterThanOrEqual(50);
+    const fromWav = await fileWarnings("quiet.wav", toneWav(tone));
+    expect(fromWav.join()).not.toMatch(/clipped/);
+    // The same samples without the converter's rails: the step is learned from the data.
+    expect(channelWarnings({ name: "mic", unit: "FS", data: quantised }).join()).not.toMatch(
+      /clipped/,
+    );
+  });
+
+  test("the same tone amplified 2000 times and cut at the 16-bit rails is clipped", async () => {
+    const top = 1 - 2 ** -15; // the highest 16-bit code (common practice: two's complement)
+    const cut = tone.map((v) => Math.max(-1, Math.min(top, 2000 * v)));
+    const warnings = (await fileWarnings("loud.wav", toneWav(cut))).join();
+    expect(warnings).toMatch(/clipped at the converter's full scale/);
+    expect(warnings).toMatch(/looks clipped/);
+  });
+
+  test("a tone cut at the rails only twice a second is still clipped at full scale", async () => {
+    // A quiet tone that touches full scale in two bursts of 5 samples: too few for the 0.1 % of
+    // the shape rule, but a converter's rail is never a clean signal's crest twice in a row.
+    const x = tone.slice();
+    for (const at of [12000, 36000]) x.fill(1 - 2 ** -15, at, at + 5);
+    expect((await fileWarnings("burst.wav", toneWav(x))).join()).toMatch(
+      /full scale .*10 samples .* 2 run\(s\) of 2 or more/,
+    );
+  });
+
+  test("a tone cut below any full scale in a float CSV is clipped", async () => {
+    // 2 V amplitude cut at ±1.5 V by an overdriven stage before the converter.
+    const x = new Float64Array(4800).map((_, i) =>
+      Math.max(-1.5, Math.min(1.5, 2 * Math.sin(2 * Math.PI * 100 * i / rate)))
+    );
+    let csv = "time_s,mic [V]\n";
+    x.forEach((v, i) => (csv += `${i / rate},${v}\n`));
+    const warnings = (await fileWarnings("cut.csv", csv)).join();
+    expect(warnings).toMatch(/looks clipped/);
+    expect(warnings).not.toMatch(/converter's full scale/);
+  });
+
+  test("the same tone written with 3 decimals (a 1 mV step) and 30 mV amplitude is not", () => {
+    // The CSV's last digit is its quantisation: crests 30 steps high, flat runs of ~28 samples.
+    const x = tone.map((v) => Number((30 * v).toFixed(3)));
+    expect(flatRunsAtMaximum(x)).toBeGreaterThanOrEqual(50);
+    expect(channelWarnings({ name: "mic", unit: "V", data: x }).join()).not.toMatch(/clipped/);
+  });
+
+  test("narrow-pulse tachos (1.6 % duty) are neither clipped, flat nor offset", () => {
+    // 0/5 V pulses of 8 samples every 500, with 2-sample edges; active high and active low
+    // (common practice: an optical or inductive tacho gives short pulses once a revolution).
+    const pulse = (k: number) =>
+      k < 2 ? 5 * (k + 1) / 3 : k < 8 ? 5 : k < 10 ? 5 * (10 - k) / 3 : 0;
+    const high = new Float64Array(50000).map((_, i) => pulse(i % 500));
+    const low = high.map((v) => 5 - v);
+    for (const data of [high, low]) {
+      const warnings = channelWarnings({ name: "tacho", unit: "V", data }).join();
+      expect(warnings).not.toMatch(/clipped|flat|constant|DC offset/);
+    }
+  });
+});
+
+describe("a CSV column's converter range from the set-up", () => {
+  test("full_scale_volts on a CSV column in volts: a cut at ±that range is clipping at full scale", async () => {
+    // A ±10 V logger input (common practice for data-acquisition modules) overdriven by a
+    // 12 V tone for its first two cycles, then 5 V.
+    const rate = 10000;
+    const x = new Float64Array(rate).map((_, i) => {
+      const v = (i < 200 ? 12 : 5) * Math.sin(2 * Math.PI * 100 * i / rate);
+      return Math.max(-10, Math.min(10, v));
+    });
+    let csv = "time_s,acc [V]\n";
+    x.forEach((v, i) => (csv += `${i / rate},${v}\n`));
+    const dir = mkdtempSync(join(tmpdir(), "quiver-checks-"));
+    try {
+      writeFileSync(join(dir, "r.csv"), csv);
+      const setup = (entry: object, channel = "acc") => {
+        writeFileSync(join(dir, "s.json"), JSON.stringify({ channels: { [channel]: entry } }));
+        return join(dir, "s.json");
+      };
+      const warningsWith = async (entry: object) => {
+        const stream = await openRecordingStream(join(dir, "r.csv"), { setup: setup(entry) });
+        return (await readChecked(stream, [0], () => {})).join();
+      };
+      // In volts: the rails are ±10 V. With a sensitivity of 100 mV/(m/s^2): ±100 m/s^2.
+      expect(await warningsWith({ full_scale_volts: 10 })).toMatch(
+        /clipped at the converter's full scale \(-10, 10 V\)/,
+      );
+      expect(
+        await warningsWith({ full_scale_volts: 10, unit: "m/s^2", sensitivity_mv_per_unit: 100 }),
+      ).toMatch(/full scale \(-100, 100 m\/s\^2\)/);
+      // A range the signal never reaches: nothing at full scale, while the shape rule still
+      // finds the cut (4 runs of about 19 samples where |12·sin| > 10: 0.74 % of the record).
+      const wide = await warningsWith({ full_scale_volts: 20 });
+      expect(wide).not.toMatch(/converter's full scale/);
+      expect(wide).toMatch(/looks clipped/);
+      // A range on a column that is not in volts means nothing: refused.
+      writeFileSync(join(dir, "n.csv"), "time_s,f [N]\n0,1\n0.001,2\n");
+      await expect(
+        openRecordingStream(join(dir, "n.csv"), { setup: setup({ full_scale_volts: 10 }, "f") }),
+      ).rejects.toThrow(/full_scale_volts is the input range of a column in volts/);
+    } finally {
+      rmSync(dir, { recursive: true, force: true });
+    }
   });
 });

@@ -167,6 +167,20 @@ describe("the half-power method's own bias", () => {
   });
 });
 
+describe("a half-power band narrower than a line", () => {
+  test("gives no estimate, never crossings in the wrong order", () => {
+    // ζ = 0.1 % at 60.1 Hz: the analytic half-power band 2ζfₙ = 0.12 Hz (Ewins, Modal
+    // Testing, sec. 4.3) lies between two 0.25 Hz lines; the interpolated peak stands
+    // 3 dB or more above the highest line, so no line pair brackets a −3 dB point.
+    const f = new Float64Array(801).map((_, k) => k * 0.25);
+    const mag = f.map((v) => {
+      const h = receptance([{ frequencyHz: 60.1, damping: 0.001, residue: 1e4 }], v);
+      return Math.hypot(h.re, h.im);
+    });
+    expect(halfPower(f, mag, mag.indexOf(maxOf(mag)), { power: 0 })).toBeUndefined();
+  });
+});
+
 describe("the exponential-window correction", () => {
   test("recovers the true damping of a lightly damped decay cut short by the record", async () => {
     // Ewins, Modal Testing, sec. 3.11: exp(−t/τ) adds 1/(τ·ωₙ) to the apparent damping.
@@ -248,5 +262,58 @@ describe("a mode that cannot be estimated", () => {
     found.forEach((m, i) => {
       if (m.flags.includes("no_half_power")) expect(damping[i]).toBe("");
     });
+  });
+});
+
+describe("a damping estimate no damped resonance can have", () => {
+  test("ζ above 1 is flagged implausible_damping, its cells left empty, the reason in the notes", () => {
+    // A lopsided hump, not a mode: |H|² = 1/(1 + ((f − 3)/a)²) with a = 0.5 Hz below the
+    // peak and 9 Hz above it, so the −3 dB points are 2.5 and 12 Hz and the half-power
+    // formula (Ewins, Modal Testing, sec. 4.3) reads ζ = (12 − 2.5)/(2·3) ≈ 1.58 (analytic).
+    const f = new Float64Array(201).map((_, k) => 0.25 * k);
+    const magnitude = f.map((v) => 1 / Math.sqrt(1 + ((v - 3) / (v < 3 ? 0.5 : 9)) ** 2));
+    const { modes, table, warnings } = modalDamping({
+      frequencies: f,
+      channels: [{ name: "hump", unit: "m/s/N", form: "mobility", magnitude }],
+    }, { method: "half-power" });
+    expect(modes).toHaveLength(1);
+    const [m] = modes;
+    expect(m.flags).toContain("implausible_damping");
+    expect(m.halfPower).toBeUndefined();
+    expect(Number.isNaN(m.dampingRatio)).toBe(true);
+    // The interpolated peak of a kinked hump is not at 3 Hz exactly, so the value is only
+    // checked to be well above 1.
+    const said = /half-power gave ζ = ([\d.]+): not between 1e-6 and 1, dropped/.exec(
+      m.notes.join(),
+    );
+    expect(Number(said?.[1])).toBeGreaterThan(1.3);
+    const cell = (name: string) => table.columns.find((c) => c.name === name)!.values[0];
+    for (const name of ["damping_ratio", "q_factor", "half_power_damping_ratio"]) {
+      expect(cell(name), name).toBe("");
+    }
+    expect(warnings.join()).toMatch(/outside 1e-6 ≤ ζ ≤ 1 dropped/);
+  });
+
+  test("a corrected damping at or below 0 (the window took it all) is dropped the same way", () => {
+    // ζ = 1 % at 40 Hz; a window of τ = 0.2 s adds 1/(τ·ωₙ) ≈ 2 % (Ewins, sec. 3.11), more
+    // than the measured damping: the corrected value would be negative.
+    const f = new Float64Array(801).map((_, k) => 0.25 * k);
+    const h = Array.from(f, (v) => receptance([{ frequencyHz: 40, damping: 0.01, residue: 1 }], v));
+    const re = new Float64Array(h.map((x) => x.re)), im = new Float64Array(h.map((x) => x.im));
+    const { modes, table } = modalDamping({
+      frequencies: f,
+      channels: [{
+        name: "tip",
+        unit: "m/N",
+        form: "receptance",
+        re,
+        im,
+        magnitude: re.map((r, k) => Math.hypot(r, im[k])),
+      }],
+    }, { expTau: 0.2 });
+    const [m] = modes;
+    expect(m.flags).toContain("implausible_damping");
+    expect(m.notes.join()).toMatch(/after the window correction/);
+    expect(table.columns.find((c) => c.name === "damping_ratio")!.values[0]).toBe("");
   });
 });

@@ -1,7 +1,12 @@
 import { mkdtemp, readFile, writeFile } from "node:fs/promises";
 import { describe, expect, test } from "vitest";
 import { bestPairing, macValue } from "../../lib/modal/mac.ts";
-import { correlateShapes, parseShapes } from "../../lib/modal/shapes.ts";
+import {
+  correlateShapes,
+  correlationTables,
+  type ModeShape,
+  parseShapes,
+} from "../../lib/modal/shapes.ts";
 import { runQuiver } from "../helpers/cli.ts";
 import { gaussianNoise } from "../helpers/random.ts";
 
@@ -102,8 +107,11 @@ describe("quiver mac", () => {
     expect(r.stderr).toMatch(/3 test and 3 simulation mode\(s\) over 6 degree\(s\) of freedom/);
     const pairs = (await readFile(`${dir}/pairs.csv`, "utf8")).trim().split("\n");
     expect(pairs[0]).toBe(
-      "test_mode,simulation_mode,test_hz [Hz],simulation_hz [Hz],shift_percent [%],mac",
+      "test_mode,simulation_mode,test_hz [Hz],simulation_hz [Hz],shift_percent [%],mac,ambiguous,rival_simulation_mode,rival_test_mode,rival_mac",
     );
+    // Sine shapes are orthogonal: no pair has a rival.
+    expect(pairs.slice(1).map((l) => l.split(",")[6])).toEqual(["0", "0", "0"]);
+    expect(r.stderr).not.toMatch(/ambiguous/);
     expect(pairs.slice(1).map((l) => l.split(",").slice(0, 2).join(","))).toEqual([
       "1,3",
       "2,1",
@@ -118,3 +126,101 @@ describe("quiver mac", () => {
     expect(bad.stderr).toMatch(/bad\.csv:2: value "abc" is not a number/);
   });
 });
+
+/**
+ * Four-point shapes of our own with MACs set by construction: a real shape (cos θ, sin θ, 0, 0)
+ * against (1, 0, 0, 0) has MAC cos²θ (Allemang & Brown 1982, for real vectors).
+ */
+function ambiguousSets(secondMac: number, firstMac = 0.954) {
+  const a = Math.acos(Math.sqrt(firstMac)), b = Math.acos(Math.sqrt(secondMac));
+  const row = (mode: number, hz: number, v: readonly number[]) =>
+    v.map((x, p) => `${mode},${hz},P${p + 1},+z,${x}`).join("\n");
+  const test = parseShapes(
+    "mode,frequency_hz,point,direction,value\n" +
+      [row(1, 40, [1, 0, 0, 0]), row(2, 90, [0, 0, 0, 1])].join("\n") + "\n",
+  );
+  const simulation = parseShapes(
+    "mode,frequency_hz,point,direction,value\n" + [
+      row(1, 41, [Math.cos(a), Math.sin(a), 0, 0]),
+      row(2, 44, [Math.cos(b), 0, Math.sin(b), 0]),
+      row(3, 93, [0, 0, 0.1, 1]),
+    ].join("\n") + "\n",
+  );
+  return { test, simulation };
+}
+
+describe("ambiguous pairs (rule ours: a rival of MAC ≥ 0.5 within 0.05 of the pair's)", () => {
+  test("a test mode matching two simulation modes at 0.954 and 0.940 is flagged with its rival", () => {
+    const { test, simulation } = ambiguousSets(0.94);
+    const c = correlateShapes(test, simulation);
+    expect(c.mac[0][0]).toBeCloseTo(0.954, 12);
+    expect(c.mac[0][1]).toBeCloseTo(0.94, 12);
+    // A best-per-row rule (and the assignment) pairs test 1 with simulation 1 and says no more.
+    expect(c.pairs.map((p) => [p.testMode, p.simulationMode])).toEqual([[1, 1], [2, 3]]);
+    expect(c.pairs[0].rival?.side).toBe("simulation");
+    expect(c.pairs[0].rival?.mode).toBe(2);
+    expect(c.pairs[0].rival?.mac).toBeCloseTo(0.94, 12);
+    // Test mode 2 ↔ simulation 3 (MAC 1/1.01) has no rival.
+    expect(c.pairs[1].rival).toBeUndefined();
+    const { pairs } = correlationTables(c, test, simulation);
+    const column = (name: string) => pairs.columns.find((x) => x.name === name)!.values;
+    expect(Array.from(column("ambiguous") as Float64Array)).toEqual([1, 0]);
+    expect((column("rival_simulation_mode") as Float64Array)[0]).toBe(2);
+    expect((pairs.metadata.pairs as { ambiguous: boolean }[]).map((p) => p.ambiguous))
+      .toEqual([true, false]);
+  });
+
+  test("a rival 0.054 below is not flagged; nor are two poor matches below 0.5", () => {
+    const apart = correlateShapes(...setsOf(ambiguousSets(0.9)));
+    expect(apart.pairs[0].rival).toBeUndefined();
+    const poor = correlateShapes(...setsOf(ambiguousSets(0.44, 0.45)));
+    expect(poor.pairs[0].simulationMode).toBe(1);
+    expect(poor.pairs[0].rival).toBeUndefined();
+  });
+
+  test("the other way round: two test modes matching one simulation mode", () => {
+    // Swap the roles: the simulation set is the test set and the other way round.
+    const { test, simulation } = ambiguousSets(0.94);
+    const c = correlateShapes(simulation, test);
+    const pair = c.pairs.find((p) => p.simulationMode === 1)!;
+    expect(pair.testMode).toBe(1);
+    expect(pair.rival).toEqual({ side: "test", mode: 2, mac: expect.closeTo(0.94, 12) });
+  });
+
+  test("quiver mac flags the pair in the pairs file and warns of it", async () => {
+    const dir = await mkdtemp("/tmp/quiver-mac-ambiguous-");
+    const { test, simulation } = ambiguousSets(0.94);
+    const csv = (set: typeof test) =>
+      "mode,frequency_hz,point,direction,value\n" + set.flatMap((m) =>
+        [...m.values.entries()].map(([k, v]) =>
+          `${m.mode},${m.frequencyHz},${k.split(" ")[0]},${k.split(" ")[1]},${v.re}`
+        )
+      ).join("\n") + "\n";
+    await writeFile(`${dir}/test.csv`, csv(test));
+    await writeFile(`${dir}/sim.csv`, csv(simulation));
+    const r = runQuiver([
+      "mac",
+      `${dir}/test.csv`,
+      `${dir}/sim.csv`,
+      "--out",
+      `${dir}/mac.csv`,
+      "--pairs-out",
+      `${dir}/pairs.csv`,
+    ]);
+    expect(r.code, r.stderr).toBe(0);
+    expect(r.stderr).toMatch(
+      /test 1 ↔ simulation 1: MAC 0\.954.*\[ambiguous: simulation mode 2 has MAC 0\.940\]/,
+    );
+    expect(r.stderr).toMatch(/warning: the pair test 1 ↔ simulation 1 \(MAC 0\.954\) is ambiguous/);
+    const lines = (await readFile(`${dir}/pairs.csv`, "utf8")).trim().split("\n");
+    expect(lines[0]).toBe(
+      "test_mode,simulation_mode,test_hz [Hz],simulation_hz [Hz],shift_percent [%],mac,ambiguous,rival_simulation_mode,rival_test_mode,rival_mac",
+    );
+    expect(lines[1].split(",").slice(6, 8)).toEqual(["1", "2"]);
+    expect(lines[2].split(",")[6]).toBe("0");
+  });
+});
+
+function setsOf(s: ReturnType<typeof ambiguousSets>): [ModeShape[], ModeShape[]] {
+  return [s.test, s.simulation];
+}

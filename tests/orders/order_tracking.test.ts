@@ -140,7 +140,7 @@ describe("order tracking of a run-up", () => {
   });
 
   test("a steady order of 1.0 RMS on a line reads 1.0 in the cut, the map and spectrum --kind rms", async () => {
-    // Analytic: a sinusoid of RMS A on a line of a Hann-windowed block has autopower A²
+    // Analytic: a sinusoid of RMS A on a line of a Hann-windowed block has a power spectrum line of A²
     // per line (scipy.signal.welch(scaling="spectrum") convention); the map is documented
     // as RMS per line, like `spectrum --kind rms`. Order 3 with 16 revolutions per block
     // is on line 48 exactly (angle method).

@@ -1,6 +1,9 @@
 import { describe, expect, test } from "vitest";
 import { motionFromPulses, motionFromRpm, tachoPulses } from "../../lib/orders/tacho.ts";
-import { linearProfile, quadraticProfile, ttlTacho } from "../helpers/run_up.ts";
+import { linearProfile, type Profile, quadraticProfile, ttlTacho } from "../helpers/run_up.ts";
+import { motionOfSeries } from "../../lib/orders/speed.ts";
+import { memorySeries } from "../../lib/io/sample_series.ts";
+import { gaussianNoise, uniformGenerator } from "../helpers/random.ts";
 
 const RATE = 51200; // a common acquisition rate; a 60-pulse wheel at 4800 rpm pulses at 4.8 kHz
 
@@ -116,5 +119,211 @@ describe("rpm from a tacho", () => {
     const m = motionFromRpm(new Float64Array(1001).map((_, i) => 600 + i), 100);
     // ∫(600 + 100t) dt /60 from 0 to 10 s = (6000 + 5000)/60 revolutions (analytic).
     expect(Math.abs(m.angleAt(10) - 11000 / 60)).toBeLessThan(1e-9);
+  });
+});
+
+describe("a tacho whose amplitude follows the speed", () => {
+  // An inductive (variable-reluctance) sensor: its voltage is proportional to the rate of
+  // change of flux, so to speed (common practice). 0.18 V peak at 600 rpm, 1.8 V at 6000 rpm.
+  // A 60-tooth wheel (600 Hz at 600 rpm), sampled at 51.2 kHz.
+  const rate = 51200, seconds = 10, ppr = 60;
+  const profile = linearProfile(600, 6000, seconds);
+  const inductive = () => {
+    const noise = gaussianNoise(7, rate * seconds);
+    return new Float64Array(rate * seconds).map((_, i) => {
+      const t = i / rate;
+      return (0.18 * profile.rpm(t) / 600) * Math.sin(2 * Math.PI * ppr * profile.angle(t)) +
+        1e-3 * noise[i];
+    });
+  };
+
+  test("a run-up 600 → 6000 rpm reads 600–6000 rpm within 0.5 %, from its first pulses", () => {
+    // Truth: the analytic linear profile. The record's fixed mid-level and hysteresis (20 % of
+    // the 2nd–98th percentile span, ±0.34 V) would miss every pulse under 0.34 V, i.e. the run
+    // below about 1100 rpm.
+    const signal = inductive();
+    const pulses = tachoPulses(signal, rate, { ppr });
+    // The first pulse within the first two cycles (1/600 s each at 600 rpm).
+    expect(pulses.times[0]).toBeLessThan(2 / (ppr * 10));
+    expect(pulses.silent).toEqual([]);
+    expect(pulses.inserted).toBe(0);
+    const motion = motionFromPulses(pulses.times, ppr, pulses.angles);
+    let worst = 0, lowest = Infinity, highest = -Infinity;
+    motion.times.forEach((t, i) => {
+      worst = Math.max(worst, Math.abs(motion.rpm[i] / profile.rpm(t) - 1));
+      lowest = Math.min(lowest, motion.rpm[i]);
+      highest = Math.max(highest, motion.rpm[i]);
+    });
+    expect(worst).toBeLessThan(0.005);
+    expect(Math.abs(lowest / 600 - 1)).toBeLessThan(0.005);
+    expect(Math.abs(highest / 6000 - 1)).toBeLessThan(0.005);
+    // The naive fixed trigger of the same record, for contrast: its first pulse comes late.
+    const fixed = tachoPulses(signal, rate, { ppr, hysteresis: 0.2 * 3.4 });
+    expect(fixed.times[0]).toBeGreaterThan(0.5);
+  });
+
+  test("a stretch where the tacho is silent is named, from–to seconds", () => {
+    // The first 1.5 s hold only the sensor's noise (the shaft not yet turning past it).
+    const signal = inductive();
+    const quiet = Math.round(1.5 * rate);
+    const noise = gaussianNoise(8, quiet);
+    for (let i = 0; i < quiet; i++) signal[i] = 1e-3 * noise[i];
+    const pulses = tachoPulses(signal, rate, { ppr });
+    expect(pulses.silent.length).toBe(1);
+    expect(pulses.silent[0][0]).toBe(0);
+    // The first pulse within two cycles of 1.5 s (speed there 1410 rpm: 1410 pulses/s).
+    expect(Math.abs(pulses.silent[0][1] - 1.5)).toBeLessThan(2 / 1410);
+    const { notes } = motionOfSeries(memorySeries(signal), rate, { tacho: "n", ppr }, 10);
+    // Times on the recording's axis: the record starts at 10 s.
+    expect(notes.join()).toMatch(/no tacho pulse from 10–11\.5\d* s/);
+  });
+});
+
+/** A missing-tooth wheel (teeth positions, `missing` teeth absent after position 0) as TTL. */
+function missingToothTacho(
+  profile: Profile,
+  rate: number,
+  seconds: number,
+  teeth: number,
+  missing: number,
+): Float64Array {
+  return new Float64Array(Math.round(rate * seconds)).map((_, i) => {
+    const position = profile.angle(i / rate) * teeth;
+    const tooth = Math.floor(position) % teeth;
+    const high = position - Math.floor(position) < 0.5;
+    return high && tooth < teeth - missing ? 5 : 0;
+  });
+}
+
+describe("missing-tooth wheels", () => {
+  const rate = 51200;
+
+  test("a 60-2 wheel at 1500 rpm given as --ppr 60 --missing-teeth 2 reads 1500 rpm within 0.1 %", () => {
+    // Truth: the analytic constant speed. Read as 58 plain pulses a revolution, the two
+    // "missing" pulses are filled in and the speed reads 60/58 = 3.4 % high.
+    const profile = linearProfile(1500, 1500, 4);
+    const signal = missingToothTacho(profile, rate, 4, 60, 2);
+    const pulses = tachoPulses(signal, rate, { ppr: 60, missingTeeth: 2 });
+    expect(pulses.inserted).toBe(0);
+    expect(pulses.references).toBe(99); // 100 revolutions: the gaps between them, and the ends'
+    expect(pulses.mismatched).toBe(0);
+    const motion = motionFromPulses(pulses.times, 60, pulses.angles);
+    for (const r of motion.rpm) expect(Math.abs(r / 1500 - 1)).toBeLessThan(0.001);
+    // The gap is the reference: the tooth after it is at a whole revolution.
+    const firstAfterGap = pulses.angles.findIndex((a) => a === 0);
+    expect(firstAfterGap).toBeGreaterThanOrEqual(0);
+    expect(pulses.times.length).toBe(pulses.angles.length);
+  });
+
+  test("on a run-up 1000 → 4000 rpm the wheel's speed stays within 0.1 %", () => {
+    const profile = linearProfile(1000, 4000, 4);
+    const signal = missingToothTacho(profile, rate, 4, 60, 2);
+    const pulses = tachoPulses(signal, rate, { ppr: 60, missingTeeth: 2 });
+    expect(pulses.inserted).toBe(0);
+    const motion = motionFromPulses(pulses.times, 60, pulses.angles);
+    let worst = 0;
+    motion.times.forEach((t, i) => {
+      worst = Math.max(worst, Math.abs(motion.rpm[i] / profile.rpm(t) - 1));
+    });
+    expect(worst).toBeLessThan(0.001);
+  });
+
+  test("given as --ppr 58 without --missing-teeth, the wheel is named in a warning", () => {
+    const profile = linearProfile(1500, 1500, 2);
+    const signal = missingToothTacho(profile, rate, 2, 60, 2);
+    const { motion, notes } = motionOfSeries(memorySeries(signal), rate, { tacho: "n", ppr: 58 });
+    // What was read: 60/58 − 1 = 3.4 % high (the filled pulses).
+    expect(Math.abs(motion.rpm[motion.rpm.length >> 1] / (1500 * 60 / 58) - 1)).toBeLessThan(0.001);
+    expect(notes.join()).toMatch(
+      /looks like a missing-tooth wheel \(60-2\).*--ppr 60 --missing-teeth 2.*3\.4 % high/,
+    );
+  });
+});
+
+describe("smoothing of pulse times", () => {
+  test("jittered pulse times are pulled back towards the truth", () => {
+    // Truth: a run-up of constant acceleration, pulse j at the analytic time where the angle
+    // is j/ppr; each time jittered by a seeded uniform ±0.2 ms (a sample at 2.5 kHz). A local
+    // least-squares fit over 13 pulses averages the jitter down by about √13 (common practice).
+    const ppr = 4, count = 400;
+    const profile = linearProfile(1200, 2400, 10);
+    // θ(t) = (1200 t + 60 t²)/60 = 20 t + t² revolutions, inverted for t at θ = j/ppr.
+    const truth = new Float64Array(count).map((_, j) => -10 + Math.sqrt(100 + j / ppr));
+    const uniform = uniformGenerator(21);
+    const measured = truth.map((t) => t + 2e-4 * (2 * uniform() - 1));
+    const motion = motionFromPulses(measured, ppr);
+    let before = 0, after = 0;
+    for (let j = 20; j < count - 20; j++) {
+      before += (measured[j] - truth[j]) ** 2;
+      after += (motion.times[j] - truth[j]) ** 2;
+      expect(Math.abs(motion.rpm[j] / profile.rpm(truth[j]) - 1)).toBeLessThan(0.01);
+    }
+    expect(Math.sqrt(after / before)).toBeLessThan(0.5);
+  });
+});
+
+describe("missing-tooth wheels with teeth lost", () => {
+  test("two teeth lost mid-revolution look like the gap but are not taken as the mark", () => {
+    // 60-2 wheel at 1500 rpm (truth: constant speed) with teeth 20 and 21 of the first revolution
+    // giving no pulse: an interval of 3 pitches, before any gap, where no revolution ends. Taking it as the
+    // mark (or snapping the count to it) would put the following teeth 2/60 rev off.
+    const rate = 51200, profile = linearProfile(1500, 1500, 2);
+    const signal = missingToothTacho(profile, rate, 2, 60, 2);
+    for (let i = 0; i < signal.length; i++) {
+      const position = profile.angle(i / rate) * 60;
+      if (Math.floor(position) === 20 || Math.floor(position) === 21) {
+        signal[i] = 0;
+      }
+    }
+    const pulses = tachoPulses(signal, rate, { ppr: 60, missingTeeth: 2 });
+    expect(pulses.mismatched).toBe(1);
+    expect(pulses.references).toBe(49); // 50 revolutions
+    // Every pulse's angle is its tooth's, counted from the gap: tooth k of revolution n at
+    // n + k/60 revolutions, as the analytic angle has it (its pulses rise at whole pitches).
+    // Which revolution is called 0 is free: the difference is a whole number of revolutions.
+    const whole = Math.round(pulses.angles[0] - profile.angle(pulses.times[0]));
+    pulses.times.forEach((t, j) => {
+      expect(Math.abs(pulses.angles[j] - profile.angle(t) - whole)).toBeLessThan(0.1 / 60);
+    });
+    const motion = motionFromPulses(pulses.times, 60, pulses.angles);
+    for (const r of motion.rpm) expect(Math.abs(r / 1500 - 1)).toBeLessThan(0.001);
+    const { notes } = motionOfSeries(memorySeries(signal), rate, {
+      tacho: "n",
+      ppr: 60,
+      missingTeeth: 2,
+    });
+    expect(notes.join()).toMatch(/1 gap\(s\) of 3 tooth pitches came where no revolution ends/);
+  });
+});
+
+describe("a narrow-pulse tacho (a once-per-revolution mark)", () => {
+  // Pulses high for 1.6 % of each revolution: the 2nd and 98th percentiles both sit at the
+  // resting level, so levels taken from them alone call the channel flat (common practice:
+  // reflective-tape and keyphasor marks are this narrow).
+  for (const activeLow of [false, true]) {
+    test(`1.6 % duty, active ${activeLow ? "low" : "high"}: rpm within 0.5 % of the profile`, () => {
+      const rate = 25600;
+      const profile = linearProfile(1200, 3000, 10);
+      const signal = new Float64Array(rate * 10).map((_, i) => {
+        const turn = profile.angle(i / rate);
+        const high = turn - Math.floor(turn) < 0.016;
+        return high !== activeLow ? 5 : 0;
+      });
+      const pulses = tachoPulses(signal, rate, { ppr: 1 });
+      expect(pulses.inserted).toBe(0);
+      const motion = motionFromPulses(pulses.times, 1);
+      let worst = 0;
+      motion.times.forEach((t, i) => {
+        if (t < 0.5 || t > 9.5) return;
+        worst = Math.max(worst, Math.abs(motion.rpm[i] / profile.rpm(t) - 1));
+      });
+      expect(worst).toBeLessThan(0.005);
+    });
+  }
+
+  test("a channel with no excursion at all is still flat", () => {
+    expect(() => tachoPulses(new Float64Array(1000).fill(2.5), 1000, { ppr: 1 })).toThrow(
+      /the tacho channel is flat/,
+    );
   });
 });

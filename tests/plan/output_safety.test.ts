@@ -56,7 +56,10 @@ describe("a plan cannot write outside its folder, over its inputs, or twice to o
       /report\.file/,
     );
     // --out-dir is the plan's own folder and the report is named like the plan.
-    await refused("self", { ...base, report: { file: "self.json" } }, dir, /the plan itself/);
+    await writeFile(`${dir}/self.html`, JSON.stringify({ ...base, report: { file: "self.html" } }));
+    const r = runQuiver(["run", `${dir}/self.html`, "--out-dir", dir]);
+    expect(r.code, r.stderr).toBe(2);
+    expect(r.stderr).toMatch(/the plan itself: the report would overwrite this input/);
   });
 
   test("a symbolic link that leads out of the output folder", async () => {
@@ -66,7 +69,7 @@ describe("a plan cannot write outside its folder, over its inputs, or twice to o
       "link",
       { ...base, report: { file: "figs/report.html" } },
       `${dir}/out4`,
-      /outside the output folder/,
+      /report\.file: the report is one file name ending \.html, in the output folder itself/,
     );
     expect(await readdir(`${dir}/elsewhere`)).toEqual([]);
   });
@@ -74,7 +77,12 @@ describe("a plan cannot write outside its folder, over its inputs, or twice to o
   test("a figures/ folder that is a link leading out of the output folder", async () => {
     await mkdir(`${dir}/out7`);
     await symlink(`${dir}/elsewhere`, `${dir}/out7/figures`);
-    await refused("figs", { ...base, report: {} }, `${dir}/out7`, /figures leads outside/);
+    await refused(
+      "figs",
+      { ...base, report: {} },
+      `${dir}/out7`,
+      /plan key report: .*figures\/figure\.svg leads outside the output folder/,
+    );
     expect(await readdir(`${dir}/elsewhere`)).toEqual([]);
   });
 

@@ -16,7 +16,9 @@ import {
   symlink,
   writeFile,
 } from "node:fs/promises";
+import { hostname } from "node:os";
 import { join } from "node:path";
+import process from "node:process";
 import { afterAll, beforeAll, describe, expect, test } from "vitest";
 import { runQuiver } from "../helpers/cli.ts";
 
@@ -59,7 +61,7 @@ describe("quiver report checks what it is given", () => {
   test("a channel name with ../ becomes a figure inside figures/, nothing outside", async () => {
     expect(await readdir(join(dir, "victim"))).toEqual([]);
     const figures = await readdir(join(dir, "out", "figures"));
-    expect(figures).toContain("map_a_.._.._.._victim_pwn_spectrogram.svg");
+    expect(figures).toContain("map_a_______victim_pwn_spectrogram.svg");
     for (const f of figures) expect(f).toMatch(/^[A-Za-z0-9_][A-Za-z0-9_.-]*\.svg$/);
     const r = runQuiver(["report", join(dir, "out")]);
     expect(r.code, r.stderr).toBe(0);
@@ -93,6 +95,37 @@ describe("quiver report checks what it is given", () => {
     expect(existsSync(join(dir, "escaped.html"))).toBe(false);
   });
 
+  test("a report lists its figures in the manifest (the next run's clean-up reads them)", async () => {
+    const r = runQuiver(["report", join(dir, "out")]);
+    expect(r.code, r.stderr).toBe(0);
+    const manifest = JSON.parse(await readFile(join(dir, "out", "manifest.json"), "utf8"));
+    const listed = manifest.report_files.map((f: { path: string }) => f.path).sort();
+    const figures = (await readdir(join(dir, "out", "figures"))).map((f) => `figures/${f}`);
+    expect(listed).toEqual(["report.html", ...figures].sort());
+  });
+
+  test("a folder that a run is writing (its lock held) gets no report", async () => {
+    const lock = join(dir, "out", ".quiver-lock.json");
+    await writeFile(
+      lock,
+      JSON.stringify({ pid: process.pid, host: hostname(), started: "x", kind: "run" }),
+    );
+    const r = runQuiver(["report", join(dir, "out")]);
+    await rm(lock);
+    expect(r.code).toBe(2);
+    expect(r.stderr.trim().split("\n")).toHaveLength(1);
+  });
+
+  test("a run that was aborted gets no report", async () => {
+    const file = join(dir, "out", "manifest.json");
+    const original = await readFile(file, "utf8");
+    await writeFile(file, JSON.stringify({ ...JSON.parse(original), status: "aborted" }));
+    const r = runQuiver(["report", join(dir, "out")]);
+    await writeFile(file, original);
+    expect(r.code).toBe(1);
+    expect(r.stderr).toMatch(/did not finish \(its manifest says aborted\)/);
+  });
+
   test("a figures/ link leading out of the folder is not followed", async () => {
     const figures = join(dir, "out", "figures");
     await rename(figures, join(dir, "out", "figures.kept"));
@@ -102,7 +135,7 @@ describe("quiver report checks what it is given", () => {
     await rm(figures);
     await rename(join(dir, "out", "figures.kept"), figures);
     expect(r.code).toBe(2);
-    expect(r.stderr).toMatch(/figures is a link/);
+    expect(r.stderr).toMatch(/figures.* (is a symbolic link|leads outside)/);
     expect(await readdir(join(dir, "elsewhere"))).toEqual([]);
   });
 });
