@@ -28,6 +28,7 @@ export interface CommandModule {
 
 /** The commands, by name: each a loader of its module. */
 export const COMMANDS = {
+  info: () => import("./info.ts"),
   spectrum: () => import("./spectrum.ts"),
   spectrogram: () => import("./spectrogram.ts"),
   frf: () => import("./frf.ts"),

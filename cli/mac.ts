@@ -3,6 +3,7 @@
  *
  * @module
  */
+import { resolve } from "node:path";
 import { readFile } from "node:fs/promises";
 import { z } from "npm:zod@4.6.7";
 import { QuiverError } from "../lib/errors.ts";
@@ -73,7 +74,11 @@ async function text(path: string): Promise<string> {
   try {
     return await readFile(path, "utf8");
   } catch (error) {
-    throw new QuiverError(`cannot read: ${(error as Error).message}`, { file: path }, "usage");
+    throw new QuiverError(
+      `cannot read: ${(error as Error).message}`,
+      { file: resolve(path) },
+      "usage",
+    );
   }
 }
 

@@ -86,7 +86,28 @@ function report(error: unknown, command: string, debug: boolean): number {
   return EXIT_INTERNAL;
 }
 
+/**
+ * `deno task quiver` runs in the checkout (the folder of deno.json); the task
+ * passes the folder the user ran it from in QUIVER_TASK_CWD, and quiver works
+ * there, so relative paths mean what the user meant. The variable is removed
+ * so that nothing started from here inherits it.
+ */
+function enterTaskFolder(): void {
+  const from = process.env.QUIVER_TASK_CWD;
+  if (from === undefined) return;
+  delete process.env.QUIVER_TASK_CWD;
+  if (from === "") return;
+  try {
+    process.chdir(from);
+  } catch (error) {
+    const message = error instanceof Error ? error.message : String(error);
+    toStderr(`quiver: cannot work in the folder the task was run from (${from}): ${message}\n`);
+    process.exit(EXIT_USAGE);
+  }
+}
+
 if (import.meta.main) {
+  enterTaskFolder();
   // A closed pipe (`quiver spectrum … | head`) is the reader's choice, not an error.
   process.stdout.on("error", (error: { code?: string }) => {
     if (error.code === "EPIPE") process.exit(process.exitCode ?? 0);

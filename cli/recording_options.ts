@@ -25,6 +25,12 @@ export const RECORDING_TABLE = {
     helpWith: "end",
   }),
   end: option(numberOption(), { value: "S", help: "end of the time slice, s" }),
+  "time-column": option(z.string().trim().min(1, "must name a column"), {
+    value: "NAME",
+    help:
+      'the time column, by name (Zeit) or whole header cell ("Time [s]");\nits unit must be s or none',
+    default: "time_s or time",
+  }),
   setup: option(z.string(), {
     value: "FILE.json",
     help: 'channel set-up: units, sensitivities, roles (README.md,\n"Channel set-up")',
@@ -62,6 +68,7 @@ export function toReadOptions(values: {
   end?: number;
   delimiter?: "auto" | "comma" | "semicolon" | "tab";
   decimal?: "auto" | "point" | "comma";
+  "time-column"?: string;
 }): CommandReadOptions {
   const delimiters = { auto: "auto", comma: ",", semicolon: ";", tab: "\t" } as const;
   const decimals = { auto: "auto", point: ".", comma: "," } as const;
@@ -70,6 +77,7 @@ export function toReadOptions(values: {
     ...(values.setup !== undefined ? { setup: values.setup } : {}),
     ...(values.start !== undefined ? { start: values.start } : {}),
     ...(values.end !== undefined ? { end: values.end } : {}),
+    ...(values["time-column"] !== undefined ? { timeColumn: values["time-column"] } : {}),
     delimiter: delimiters[values.delimiter ?? "auto"],
     decimal: decimals[values.decimal ?? "auto"],
     sizing: values as Readonly<Record<string, unknown>>,

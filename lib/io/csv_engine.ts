@@ -448,6 +448,10 @@ export class CsvScanner {
       const detected = this.#delimiterOption === "auto"
         ? detectDelimiter(text)
         : this.#delimiterOption;
+      if (this.#delimiterOption !== "auto") {
+        const wrong = forcedDelimiterMismatch(text, this.#delimiterOption);
+        if (wrong !== undefined) throw new QuiverError(wrong, { file: this.#file, line }, "usage");
+      }
       this.#delimiter = detected.charCodeAt(0);
       return false;
     }
@@ -570,6 +574,39 @@ function byteKinds(bytes: Uint8Array): number {
     else if (b === QUOTE) kinds |= QUOTE_BYTE;
   }
   return kinds;
+}
+
+/** The delimiters by the names the command line gives them (`--delimiter`). */
+const DELIMITER_NAMES: Record<CsvDelimiter, string> = {
+  ",": "comma",
+  ";": "semicolon",
+  "\t": "tab",
+};
+
+/**
+ * The message for a delimiter that was given (not found) and leaves the
+ * header one column although the delimiter the header suggests splits it;
+ * undefined when the given delimiter is plausible.
+ *
+ * @example
+ * ```ts
+ * import { forcedDelimiterMismatch } from "./csv_engine.ts";
+ * const m = forcedDelimiterMismatch("time_s,a [g],b [g]", ";");
+ * if (m !== "the file has one column with the delimiter semicolon; its header suggests comma (3 columns): give --delimiter comma, or auto") throw new Error(m);
+ * if (forcedDelimiterMismatch("a [g]", ";") !== undefined) throw new Error();
+ * ```
+ */
+export function forcedDelimiterMismatch(
+  headerText: string,
+  given: CsvDelimiter,
+): string | undefined {
+  if (splitQuoted(headerText, given).length !== 1) return undefined;
+  const suggested = detectDelimiter(headerText);
+  const columns = splitQuoted(headerText, suggested).length;
+  if (suggested === given || columns < 2) return undefined;
+  const name = DELIMITER_NAMES[suggested];
+  return `the file has one column with the delimiter ${DELIMITER_NAMES[given]}; ` +
+    `its header suggests ${name} (${columns} columns): give --delimiter ${name}, or auto`;
 }
 
 function detectDelimiter(headerLine: string): CsvDelimiter {

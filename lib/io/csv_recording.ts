@@ -3,11 +3,12 @@
  * channels, on top of the one CSV reader (csv_engine.ts). The same code
  * serves a file read in chunks and text held in memory.
  *
- * Time: a column named `time_s` or `time` (any case, unit `s` or none) is
- * the time axis. The rate comes from its first and last values (the nominal
+ * Time: the column named by the `timeColumn` option, or else a column named
+ * `time_s` or `time` (any case), in unit `s` or none, is the time axis. The rate comes from its first and last values (the nominal
  * rate of a rounded column, time_axis.ts); every step is checked against the
  * median of the first 1001 steps (1 % by default), so a gap, jump or jitter
- * is named by its line. Without a time column the rate must be given.
+ * is named by its line. Without a time column the rate must be given; the
+ * message then lists the header's columns.
  *
  * @module
  */
@@ -44,6 +45,12 @@ export interface CsvReadOptions extends CsvTableOptions {
    * fraction of that step. Default 0.01 (1 %).
    */
   timeTolerance?: number;
+  /**
+   * The time column, by its name (`Zeit`) or its whole header cell
+   * (`Time [s]`). Default: the column named `time_s` or `time` (any case),
+   * if there is one.
+   */
+  timeColumn?: string;
 }
 
 /** What a CSV recording's header and end rows say. */
@@ -81,27 +88,7 @@ export function csvRecordingLayout(
   const fail = (detail: string, line?: number, column?: number): never => {
     throw new QuiverError(detail, { file, line, column });
   };
-  let timeColumn = -1;
-  header.forEach((cell, i) => {
-    if (!TIME_NAMES.has(cell.name.toLowerCase())) return;
-    if (timeColumn >= 0) {
-      fail(
-        `two time columns ("${header[timeColumn].name}" in column ${
-          timeColumn + 1
-        } and "${cell.name}")`,
-        scan.headerLine,
-        i + 1,
-      );
-    }
-    if (cell.unit !== "" && cell.unit !== "s") {
-      fail(
-        `time column "${cell.name}" is in [${cell.unit}]; quiver expects seconds [s]`,
-        scan.headerLine,
-        i + 1,
-      );
-    }
-    timeColumn = i;
-  });
+  const timeColumn = findTimeColumn(header, scan.headerLine, options);
   const channelColumns = header.map((_, i) => i).filter((i) => i !== timeColumn);
   if (channelColumns.length === 0) fail("the header names no channel columns", scan.headerLine);
   let rate: number;
@@ -153,11 +140,7 @@ export function csvRecordingLayout(
     }
   } else {
     if (options.rate === undefined) {
-      throw new QuiverError(
-        `no time column ("time_s" or "time") in the header; give the sample rate`,
-        { file, line: scan.headerLine },
-        "usage",
-      );
+      throw new QuiverError(noTimeColumn(header), { file, line: scan.headerLine }, "usage");
     }
     rate = options.rate;
   }
@@ -165,6 +148,107 @@ export function csvRecordingLayout(
     throw new RangeError(`sample rate must be a positive number, got ${rate}`);
   }
   return { header, timeColumn, channelColumns, rate, startTime, length: scan.rows };
+}
+
+/** Columns named in a message before the rest are counted. */
+const LISTED_COLUMNS = 12;
+
+/**
+ * The message for a header without a time column: the columns it has, and
+ * the two ways on (`--time-column`, `--rate`).
+ *
+ * @example
+ * ```ts
+ * import { noTimeColumn } from "./csv_recording.ts";
+ * const m = noTimeColumn([{ name: "Zeit", unit: "s" }, { name: "acc", unit: "g" }]);
+ * if (!m.startsWith('no time column: the header\'s columns are "Zeit [s]", "acc [g]"')) throw new Error(m);
+ * ```
+ */
+export function noTimeColumn(header: readonly HeaderCell[]): string {
+  return `no time column: the header's columns are ${
+    listColumns(header)
+  }, none named time_s or time; ` +
+    `name the time column with --time-column NAME, or give the sample rate with --rate HZ`;
+}
+
+/** The header's cells, quoted, the first {@linkcode LISTED_COLUMNS} of them, then how many more. */
+function listColumns(header: readonly HeaderCell[]): string {
+  const shown = header.slice(0, LISTED_COLUMNS).map((c) => `"${cellText(c)}"`).join(", ");
+  return header.length > LISTED_COLUMNS
+    ? `${shown} and ${header.length - LISTED_COLUMNS} more`
+    : shown;
+}
+
+/** A header cell as written: `name [unit]`, or the name alone. */
+function cellText(cell: HeaderCell): string {
+  return cell.unit === "" ? cell.name : `${cell.name} [${cell.unit}]`;
+}
+
+/**
+ * The time column of a header (0-based), −1 when there is none: the column
+ * named by `options.timeColumn` (its name, or its whole cell `Time [s]`), or
+ * else the one named `time_s` or `time` in any case. Its unit must be
+ * seconds or none.
+ *
+ * @throws {QuiverError} for a named column the header lacks (usage), two
+ * columns with time names, or a time column in another unit.
+ *
+ * @example
+ * ```ts
+ * import { findTimeColumn } from "./csv_recording.ts";
+ * const header = [{ name: "Zeit", unit: "s" }, { name: "time", unit: "" }];
+ * if (findTimeColumn(header, 1) !== 1) throw new Error();
+ * if (findTimeColumn(header, 1, { timeColumn: "Zeit [s]" }) !== 0) throw new Error();
+ * ```
+ */
+export function findTimeColumn(
+  header: readonly HeaderCell[],
+  headerLine: number,
+  options: { timeColumn?: string; file?: string } = {},
+): number {
+  const file = options.file;
+  const fail = (detail: string, column?: number): never => {
+    throw new QuiverError(detail, { file, line: headerLine, column });
+  };
+  let found = -1;
+  const wanted = options.timeColumn?.trim();
+  if (wanted !== undefined) {
+    // A whole cell is compared with its spacing normalised: "Time[s]" and "Time [s]" are one cell.
+    const norm = (text: string) => text.replace(/\s*\[\s*/, " [").replace(/\s*\]$/, "]");
+    found = header.findIndex((c) => c.name === wanted || norm(cellText(c)) === norm(wanted));
+    if (found < 0) {
+      throw new QuiverError(
+        `--time-column "${wanted}" names no column; the header's columns are ${
+          listColumns(header)
+        }`,
+        { file, line: headerLine },
+        "usage",
+      );
+    }
+  } else {
+    header.forEach((cell, i) => {
+      if (!TIME_NAMES.has(cell.name.toLowerCase())) return;
+      if (found >= 0) {
+        fail(
+          `two time columns ("${header[found].name}" in column ${
+            found + 1
+          } and "${cell.name}"); name one with --time-column`,
+          i + 1,
+        );
+      }
+      found = i;
+    });
+  }
+  if (found >= 0) {
+    const cell = header[found];
+    if (cell.unit !== "" && cell.unit !== "s") {
+      fail(
+        `time column "${cell.name}" is in [${cell.unit}]; quiver expects seconds [s]`,
+        found + 1,
+      );
+    }
+  }
+  return found;
 }
 
 /**

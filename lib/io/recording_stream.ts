@@ -13,6 +13,7 @@
  *
  * @module
  */
+import { resolve } from "node:path";
 import { open } from "node:fs/promises";
 import { QuiverError } from "../errors.ts";
 import { formatNumber } from "../format_number.ts";
@@ -245,6 +246,9 @@ async function openWavStream(
     if (options.rate !== undefined) {
       fail("a WAV file states its own sample rate; do not give one", "usage");
     }
+    if (options.timeColumn !== undefined) {
+      fail("a WAV file has no time column; do not name one (--time-column)", "usage");
+    }
     const f = format;
     // Validate the format with the in-memory decoder on a header-only copy.
     const probe = new Uint8Array(dataStart + f.blockAlign);
@@ -433,7 +437,7 @@ export function unreadable(path: string, error: unknown): QuiverError {
     : error instanceof Error
     ? error.message
     : String(error);
-  return new QuiverError(`cannot read: ${why}`, { file: path }, "usage");
+  return new QuiverError(`cannot read: ${why}`, { file: resolve(path) }, "usage");
 }
 
 /**

@@ -14,6 +14,7 @@
  *
  * @module
  */
+import { resolve } from "node:path";
 import { readFile } from "node:fs/promises";
 import { z } from "npm:zod@4.6.7";
 import { QuiverError } from "../errors.ts";
@@ -91,7 +92,7 @@ export async function readResultFile(
     const code = (error as { code?: string }).code;
     throw new QuiverError(
       `cannot read: ${code === "ENOENT" ? "no such file" : (error as Error).message}`,
-      { file: path },
+      { file: resolve(path) },
       "usage",
     );
   }

@@ -13,6 +13,7 @@
  *
  * @module
  */
+import { resolve } from "node:path";
 import { readFile } from "node:fs/promises";
 import { QuiverError } from "../errors.ts";
 import { readResultFile } from "../io/result_file.ts";
@@ -153,7 +154,11 @@ export async function readShapesFile(path: string): Promise<ModeShape[]> {
   try {
     text = await readFile(path, "utf8");
   } catch (error) {
-    throw new QuiverError(`cannot read: ${(error as Error).message}`, { file: path }, "usage");
+    throw new QuiverError(
+      `cannot read: ${(error as Error).message}`,
+      { file: resolve(path) },
+      "usage",
+    );
   }
   if (!text.trimStart().startsWith("{")) return parseShapes(text, { file: path });
   const table = await readResultFile(path);

@@ -73,7 +73,7 @@ export async function loadPlan(path: string): Promise<{ plan: Plan; text: string
     text = await readFile(path, "utf8");
   } catch (error) {
     if (error instanceof QuiverError) throw error;
-    throw new QuiverError("cannot read the plan: no such file", { file: path }, "usage");
+    throw new QuiverError("cannot read the plan: no such file", { file: resolve(path) }, "usage");
   }
   let json: unknown;
   try {
