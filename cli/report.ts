@@ -53,6 +53,9 @@ export async function run(argv: readonly string[]): Promise<void> {
   if (!existsSync(join(outDir, MANIFEST_FILE))) {
     throw new QuiverError("no manifest.json here; run a plan first", { file: outDir }, "usage");
   }
+  // An unfinished run is refused before the lock is asked for: taking over a killed run's
+  // lock here would hide it from the next run, which reports it.
+  await unfinishedRefused(outDir);
   // The folder's one lock, as every run takes it: no run, shard or merge writes meanwhile.
   const lock = await acquireFolderLock(outDir, { kind: "report" });
   let path: string;
@@ -62,6 +65,22 @@ export async function run(argv: readonly string[]): Promise<void> {
     await lock.release();
   }
   toStderr(`report: ${path}\n`);
+}
+
+/** Refuses a folder whose manifest says its run did not finish (read only, no lock). */
+async function unfinishedRefused(outDir: string): Promise<void> {
+  let status: unknown;
+  try {
+    status = JSON.parse(await readFile(join(outDir, MANIFEST_FILE), "utf8"))?.status;
+  } catch {
+    return; // unreadable: verifiedManifest says so under the lock
+  }
+  if (status === "running" || status === "aborted") {
+    throw new QuiverError(
+      `the run that wrote this folder did not finish (its manifest says ${status}): run the plan again`,
+      { file: outDir },
+    );
+  }
 }
 
 /** Checks the folder as `run` does, writes the report, and lists it and its figures. */

@@ -612,7 +612,13 @@ export async function runPlan(planFile: string, options: RunOptions): Promise<Ma
       );
     }
     const inputs = new Set(planInputs(plan, resolve(planFile)).map((i) => realPathOf(i.path)));
-    const { removed, left } = await removePreviousRun(outDir, manifestFile, inputs);
+    // What this run writes: a file there that is not provably the previous run's (a result
+    // edited since, a file of the user's) is refused before anything is removed or written.
+    const writes = steps.flatMap((s) => Object.values(s.outputs));
+    if (plan.report !== undefined && shard === undefined) {
+      writes.push(join(outDir, plan.report.file));
+    }
+    const { removed, left } = await removePreviousRun(outDir, manifestFile, inputs, writes);
     if (removed > 0) {
       process.stderr.write(`run: removed ${removed} result file(s) of the previous run here\n`);
     }
@@ -679,21 +685,22 @@ async function removePreviousRun(
   outDir: string,
   manifestFile: string,
   inputs: ReadonlySet<string>,
+  writes: readonly string[],
 ): Promise<{ removed: number; left: string[] }> {
   const manifestPath = join(outDir, manifestFile);
-  let previous: unknown;
+  let previous: unknown = undefined;
   try {
     previous = JSON.parse(await readFile(manifestPath, "utf8"));
   } catch {
-    return { removed: 0, left: [] }; // none, or not JSON: nothing of it is trusted
+    // none, or not JSON: nothing of it is trusted
   }
-  const parsed = manifestSchema.safeParse(previous);
-  if (!parsed.success) {
-    return { removed: 0, left: [`${manifestFile} (not a quiver manifest: nothing it names)`] };
-  }
+  const parsed = previous === undefined ? undefined : manifestSchema.safeParse(previous);
   const candidates: FileRecord[] = [];
   const left: string[] = [];
-  for (const step of parsed.data.steps) {
+  if (parsed !== undefined && !parsed.success) {
+    left.push(`${manifestFile} (not a quiver manifest: nothing it names)`);
+  }
+  for (const step of parsed?.success === true ? parsed.data.steps : []) {
     for (const [key, file] of Object.entries(step.outputs)) {
       let expected: string | undefined;
       try {
@@ -705,22 +712,37 @@ async function removePreviousRun(
       else left.push(`${file.path} (not a name quiver gives step "${step.id}")`);
     }
   }
-  for (const file of parsed.data.report_files ?? []) {
+  for (const file of (parsed?.success === true ? parsed.data.report_files : undefined) ?? []) {
     if (isReportFileName(file.path) || isFigureName(file.path)) candidates.push(file);
     else left.push(`${file.path} (not a name quiver gives the report)`);
   }
   const realOut = realPathOf(outDir);
-  let removed = 0;
+  const proven: string[] = [];
   for (const file of candidates) {
     const path = join(outDir, file.path);
     const why = await notProvablyOurs(path, realOut, file, inputs);
-    if (why === undefined) {
-      await rm(path);
-      removed++;
-    } else if (why !== "gone") {
-      left.push(`${file.path} (${why})`);
-    }
+    if (why === undefined) proven.push(resolve(path));
+    else if (why !== "gone") left.push(`${file.path} (${why})`);
   }
+  // Checked before anything is removed: this run would replace a file it cannot prove the
+  // previous run's (edited since, or never a quiver result), and that is the user's data.
+  const removable = new Set(proven);
+  const kept = writes.filter((w) => existsSync(w) && !removable.has(resolve(w)));
+  if (kept.length > 0) {
+    throw new QuiverError(
+      `this run would replace ${kept.length} file(s) that are not provably results of the previous run here (edited since, or not written by quiver): ${
+        kept.slice(0, 5).map((w) => relative(outDir, w)).join(", ")
+      }${kept.length > 5 ? ", …" : ""}; move them away or remove them, then run again`,
+      { file: outDir },
+      "usage",
+    );
+  }
+  let removed = 0;
+  for (const path of proven) {
+    await rm(path);
+    removed++;
+  }
+  if (parsed === undefined || !parsed.success) return { removed, left };
   // The figures folder goes only when nothing is left in it (rmdir refuses otherwise).
   await rmdir(join(outDir, FIGURES_FOLDER)).catch(() => {});
   await rm(manifestPath, { force: true });

@@ -353,6 +353,25 @@ describe("the clean-up deletes only what quiver wrote and can prove", () => {
     expect(errors.join("")).toMatch(/psd2\.json \(changed since\)/);
   });
 
+  test("a run that would replace a result edited since is refused before any work", async () => {
+    expect((await run(await plan(base()))).status).toBe("ok");
+    await writeFile(`${dir}/out/psd.json`, '{"edited": "by hand"}');
+    // The same step again: before, the clean-up named psd.json as left and the step then
+    // overwrote it. Now nothing is removed or written.
+    await expect(run(await plan(base()))).rejects.toThrow(
+      /would replace 1 file\(s\) that are not provably results of the previous run here .*: psd\.json; move them away/,
+    );
+    expect(await readFile(`${dir}/out/psd.json`, "utf8")).toBe('{"edited": "by hand"}');
+    expect(existsSync(`${dir}/out/manifest.json`), "the previous manifest stays").toBe(true);
+  });
+
+  test("a file quiver never wrote, at a path a step writes, is refused, not replaced", async () => {
+    await mkdir(`${dir}/out`);
+    await writeFile(`${dir}/out/psd.json`, "my own notes");
+    await expect(run(await plan(base()))).rejects.toThrow(/would replace 1 file\(s\).*psd\.json/);
+    expect(await readFile(`${dir}/out/psd.json`, "utf8")).toBe("my own notes");
+  });
+
   test("figures/: the previous report's figures go file by file; the user's files there stay", async () => {
     let figure = "a";
     const report = async (outDir: string) => {
@@ -412,8 +431,9 @@ describe("a failed step leaves none of its outputs", () => {
     const p = base();
     p.analyses = [{ id: "tap", command: "hammer", recording: "road", options: {} }];
     await mkdir(`${dir}/out`);
-    // Not listed by any manifest, so the clean-up leaves it; the step fails before writing it.
-    await writeFile(`${dir}/out/tap_records.json`, "mine");
+    // A file of the user's beside the outputs (one at an output's own path is refused before
+    // any work: see above).
+    await writeFile(`${dir}/out/notes.txt`, "mine");
     const failing = writer((_argv, written) =>
       written.length === 2
         ? Promise.reject(new Error("no space left on device (simulated)"))
@@ -426,7 +446,8 @@ describe("a failed step leaves none of its outputs", () => {
     );
     expect(existsSync(`${dir}/out/tap.json`)).toBe(false);
     expect(existsSync(`${dir}/out/tap_hits.csv`)).toBe(false);
-    expect(await readFile(`${dir}/out/tap_records.json`, "utf8")).toBe("mine");
+    expect(existsSync(`${dir}/out/tap_records.json`)).toBe(false);
+    expect(await readFile(`${dir}/out/notes.txt`, "utf8")).toBe("mine");
   });
 
   test("on a full tmpfs (a real ENOSPC, needs root to mount): the outputs written before are removed", async (context) => {
