@@ -295,7 +295,8 @@
     const readout = document.createElement("div");
     readout.className = "map-readout";
     readout.textContent = "Move the pointer over the map to read a cell";
-    figure.appendChild(readout);
+    // Under its own picture: a figure holds a wide and a narrow one, only one of them shown.
+    (map.closest(".wide-picture, .narrow-picture") || figure).appendChild(readout);
     const picture = new Image();
     const canvas = document.createElement("canvas");
     let pixels = null;

@@ -1048,9 +1048,9 @@ figure.small { display: inline-block; vertical-align: top; width: calc(50% - 20p
 .chart-tools button { font: inherit; background: #f4f1ea; border: 1px solid #b9b2a2; border-radius: 3px; padding: 2px 8px; cursor: pointer; }
 .chart-hint { color: #6b7785; }
 .map-readout { font-size: 12px; color: #22313f; padding: 4px 2px; min-height: 1.4em; }
-.uplot { font-family: Helvetica, Arial, sans-serif; }
-.u-title { font-size: 13px; }
-.u-legend { font-size: 12px; text-align: left; }
+figure .uplot { font-family: Helvetica, Arial, sans-serif; }
+figure .u-title { font-size: 14px; font-weight: 600; }
+figure .u-legend { font-size: 12px; text-align: left; }
 table { border-collapse: collapse; margin: 8px 0 16px 0; font-size: 13px; background: #ffffff; }
 th, td { border: 1px solid #d9d4c7; padding: 4px 8px; text-align: left; }
 th { background: #e8e2d4; }
@@ -1060,6 +1060,8 @@ tr.unchecked td { color: #6b7785; }
 .note { font-size: 12px; color: #5b6b7b; }
 td .failing { font-size: 12px; color: #b02e1f; margin-top: 2px; }
 .caveat { border-left: 4px solid #edae49; background: #fff8e6; padding: 8px 12px; font-size: 13px; }
+figure .u-legend th, figure .u-legend td { border: none; background: none; padding: 1px 4px; font-weight: 400; }
+figure .u-legend .u-value { color: #3d4b59; }
 figure.live.legend-beside .uplot { display: grid; grid-template-columns: max-content minmax(0, 1fr); align-items: start; width: auto; }
 figure.live.legend-beside .u-title { grid-column: 1 / -1; }
 figure.live.legend-beside .u-legend { margin: 8px 0 0 12px; text-align: left; }

@@ -649,7 +649,7 @@ export function barPlot(plot: BarPlot): string {
   const entries: LegendEntry[] = [
     ...plot.groups,
     ...limits.map((l) => ({ name: l.name, dashed: true, colour: "#22313f" })),
-    ...(anyFailing ? [{ name: "over the limit (hatched bar, warning mark)", over: true }] : []),
+    ...(anyFailing ? [{ name: "over the limit", over: true }] : []),
   ];
   const place = legendPlace(width, entries.length);
   const height = (plot.height ?? 400) + extra + place.height;
