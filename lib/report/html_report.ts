@@ -50,6 +50,8 @@ interface Figure {
   readonly chart?: ChartSpec;
   /** One of a set of small pictures, laid out side by side. */
   readonly small?: boolean;
+  /** A drawing (a mode shape): shown at about its own size, side by side, never page-wide. */
+  readonly drawing?: boolean;
 }
 
 /**
@@ -700,6 +702,7 @@ async function modalSection(
       }
       figures.push({
         name: `${id}_shape_${fitted.mode}`,
+        drawing: true,
         svg: wireframe({
           title: `Mode ${fitted.mode}: ${formatFixed(fitted.frequencyHz, 1)} Hz, ζ ${
             formatFixed(100 * fitted.dampingRatio, 2)
@@ -939,7 +942,7 @@ function contents(entries: readonly ContentsEntry[]): string {
   const count = (status: SectionStatus) => entries.filter((e) => e.status === status).length;
   const summary = (["failed", "target failed", "warnings", "ok"] as const)
     .filter((s) => count(s) > 0)
-    .map((s) => `${count(s)} ${s}`)
+    .map((s) => `${count(s)} × ${s}`)
     .join(" · ");
   return `<nav id="contents" class="contents" aria-label="Contents"><h2>Contents</h2><p class="note">${
     escapeXml(summary)
@@ -978,7 +981,7 @@ function sectionAnchor(stepId: string): string {
  */
 function figureHtml(f: Figure, file: string): string {
   const id = `figure-${escapeXml(file)}`;
-  const small = f.small === true ? ' class="small"' : "";
+  const small = f.small === true ? ' class="small"' : f.drawing === true ? ' class="drawing"' : "";
   // Two layouts of the picture; the style sheet shows the one that suits the window.
   const pictures = f.narrow === undefined
     ? f.svg
@@ -1043,6 +1046,7 @@ h3 { font-size: 15px; margin-bottom: 4px; }
 figure { margin: 12px 0; background: #ffffff; border: 1px solid #d9d4c7; padding: 6px; display: block; }
 figure svg { width: 100%; max-width: 1400px; height: auto; display: block; }
 figure.live > .static { display: none; }
+figure.drawing { display: inline-block; vertical-align: top; width: 440px; max-width: calc(100% - 14px); margin-right: 8px; }
 figure.small { display: inline-block; vertical-align: top; width: calc(50% - 20px); min-width: 320px; margin-right: 8px; }
 .chart-tools { font-size: 12px; margin: 0 0 4px 0; display: flex; flex-wrap: wrap; gap: 6px; align-items: center; }
 .chart-tools button { font: inherit; background: #f4f1ea; border: 1px solid #b9b2a2; border-radius: 3px; padding: 2px 8px; cursor: pointer; }
