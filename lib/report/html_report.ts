@@ -1046,7 +1046,7 @@ h3 { font-size: 15px; margin-bottom: 4px; }
 figure { margin: 12px 0; background: #ffffff; border: 1px solid #d9d4c7; padding: 6px; display: block; }
 figure svg { width: 100%; max-width: 1400px; height: auto; display: block; }
 figure.live > .static { display: none; }
-figure.drawing { display: inline-block; vertical-align: top; width: 440px; max-width: calc(100% - 14px); margin-right: 8px; }
+figure.drawing { display: inline-block; vertical-align: top; width: 420px; max-width: calc(100% - 14px); margin-right: 8px; }
 figure.small { display: inline-block; vertical-align: top; width: calc(50% - 20px); min-width: 320px; margin-right: 8px; }
 .chart-tools { font-size: 12px; margin: 0 0 4px 0; display: flex; flex-wrap: wrap; gap: 6px; align-items: center; }
 .chart-tools button { font: inherit; background: #f4f1ea; border: 1px solid #b9b2a2; border-radius: 3px; padding: 2px 8px; cursor: pointer; }

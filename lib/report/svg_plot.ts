@@ -891,7 +891,10 @@ export interface HeatMap {
  */
 export function heatMap(plot: HeatMap): string {
   const width = plot.width ?? 720;
-  const height = plot.height ?? 380;
+  // A title wrapped on a narrow map pushes the map down, never over it.
+  const extra = titleExtra(plot.title, width);
+  const height = (plot.height ?? 380) + extra;
+  const top = MARGIN.top + extra;
   const right = MARGIN.right + 66;
   let lowest = Infinity, highest = -Infinity;
   for (const col of plot.z) {
@@ -904,7 +907,7 @@ export function heatMap(plot: HeatMap): string {
   }
   const domain = plot.zDomain ?? [Math.max(lowest, highest - 50), highest];
   const x = scaleLinear().domain([0, plot.x.length]).range([MARGIN.left, width - right]);
-  const y = scaleLinear().domain([0, plot.y.length]).range([height - MARGIN.bottom, MARGIN.top]);
+  const y = scaleLinear().domain([0, plot.y.length]).range([height - MARGIN.bottom, top]);
   // What the report's script needs to read a cell under the pointer: the axes' first and last
   // cell centres, the grid size, and the colour bar's range and ramp (a colour names its value,
   // as the ramp is monotone in lightness).
@@ -952,13 +955,13 @@ export function heatMap(plot: HeatMap): string {
   const barX = width - right + 10;
   const zs = scaleLinear().domain(domain as [number, number]).range([
     height - MARGIN.bottom,
-    MARGIN.top,
+    top,
   ]);
   for (let k = 0; k < 40; k++) {
-    const y0 = MARGIN.top + ((height - MARGIN.bottom - MARGIN.top) * k) / 40;
+    const y0 = top + ((height - MARGIN.bottom - top) * k) / 40;
     parts.push(
       `<rect x="${barX}" y="${y0.toFixed(1)}" width="14" height="${
-        ((height - MARGIN.bottom - MARGIN.top) / 40 + 0.5).toFixed(1)
+        ((height - MARGIN.bottom - top) / 40 + 0.5).toFixed(1)
       }" fill="${mapColour(1 - k / 40)}"/>`,
     );
   }
@@ -968,7 +971,7 @@ export function heatMap(plot: HeatMap): string {
   // The colour bar's title runs up beside its tick labels, so a long unit fits the margin.
   parts.push(
     `<text transform="translate(${width - 6} ${
-      (height - MARGIN.bottom + MARGIN.top) / 2
+      (height - MARGIN.bottom + top) / 2
     }) rotate(-90)" text-anchor="middle" fill="#22313f">${escapeXml(plot.zLabel)}</text>`,
   );
   for (const line of plot.lines ?? []) parts.push(overlayLine(line, xs, ys));
@@ -986,7 +989,7 @@ export function heatMap(plot: HeatMap): string {
       }
     });
   }
-  parts.push(plotFrame({ width, height, right, xLabel: plot.xLabel, yLabel: plot.yLabel }));
+  parts.push(plotFrame({ width, height, right, top, xLabel: plot.xLabel, yLabel: plot.yLabel }));
   return frame(width, height, plot.title, parts.join("\n"));
 }
 

@@ -1,5 +1,5 @@
 import { describe, expect, test } from "vitest";
-import { barPlot, chartSpec, linePlot } from "../../lib/report/svg_plot.ts";
+import { barPlot, chartSpec, heatMap, linePlot } from "../../lib/report/svg_plot.ts";
 
 /** The frame of a plot: the first rect with a slate outline after the background. */
 function frameBox(svg: string): { x: number; y: number; right: number; bottom: number } {
@@ -134,5 +134,25 @@ describe("the chart's value axis label on each scale", () => {
     });
     expect(narrow.y.labels.log).toBe("Power [W]");
     expect(narrow.y.logMin).toBeCloseTo(0.001, 12);
+  });
+});
+
+describe("a narrow colour map", () => {
+  test("a title wrapped on two lines pushes the map down instead of running over it", () => {
+    const svg = heatMap({
+      title: "Link arm: test against simulation (MAC): MAC, test against simulation (5 points)",
+      xLabel: "Simulation mode",
+      yLabel: "Test mode",
+      zLabel: "MAC [-]",
+      x: [1, 2],
+      y: [1, 2],
+      z: [[1, 0.1], [0.1, 1]],
+      width: 600,
+    });
+    const lines = (svg.match(/<tspan /g) ?? []).length;
+    expect(lines).toBe(2);
+    // The title's second baseline is at 20 + 16 px; the map starts below it with room to spare.
+    const mapTop = Number(/<svg class="map"[^>]* y="([\d.]+)"/.exec(svg)![1]);
+    expect(mapTop).toBeGreaterThan(20 + 16 + 8);
   });
 });
