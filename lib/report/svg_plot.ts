@@ -270,7 +270,7 @@ interface LegendEntry {
 }
 
 /** Plots narrower than this put their legend under the frame, where it does not squeeze the data. */
-export const LEGEND_BESIDE_MIN_WIDTH = 720;
+const LEGEND_BESIDE_MIN_WIDTH = 720;
 
 /** Height of one legend row. */
 const LEGEND_ROW = 16;
