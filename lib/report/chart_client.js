@@ -37,7 +37,18 @@
     }
     return ticks;
   };
-  const chartWidth = (figure) => Math.max(320, Math.min(figure.clientWidth - 16, 1600));
+  // A figure this wide or wider shows the legend in a column beside the plot (as the static
+  // pictures do); a narrower one under it, so the plot keeps the width.
+  const LEGEND_BESIDE_MIN = 760;
+  const LEGEND_COLUMN = 240;
+  const besideLegend = (figure) => figure.clientWidth >= LEGEND_BESIDE_MIN;
+  const chartWidth = (figure) =>
+    Math.max(
+      280,
+      Math.min(figure.clientWidth - 16 - (besideLegend(figure) ? LEGEND_COLUMN : 0), 1600),
+    );
+  // The label of the value axis on the scale shown: only a logarithmic view is cut to 120 dB.
+  const yLabel = (spec, state) => (state.yLog ? spec.y.labels.log : spec.y.labels.linear);
 
   // The data a view can draw: on a log axis only positive values exist.
   const viewData = (spec, xLog, yLog) => {
@@ -48,6 +59,15 @@
       const part = column.slice(start);
       return i > 0 && yLog ? part.map((v) => (v !== null && v > 0 ? v : null)) : part;
     });
+  };
+
+  // Whether a view differs from the whole range (relative to the range's span; in decades on a
+  // logarithmic scale, where the bottom of a 12-decade range is a hair above zero).
+  const zoomedFrom = (view, home, log) => {
+    const to = log ? (v) => Math.log10(v) : (v) => v;
+    const [v0, v1, h0, h1] = [view[0], view[1], home[0], home[1]].map(to);
+    const span = Math.abs(h1 - h0) || 1;
+    return Math.abs(v0 - h0) > 1e-6 * span || Math.abs(v1 - h1) > 1e-6 * span;
   };
 
   const build = (figure, spec, state) => {
@@ -90,7 +110,7 @@
           x: { time: false, distr: state.xLog ? 3 : 1, log: 10, auto: false, range: asked },
           y: { distr: state.yLog ? 3 : 1, log: 10, auto: false, range: asked },
         },
-        axes: [axis(spec.x.label, 50, state.xLog), axis(spec.y.label, 72, state.yLog)],
+        axes: [axis(spec.x.label, 50, state.xLog), axis(yLabel(spec, state), 72, state.yLog)],
         series,
         cursor: { drag: { x: true, y: true, uni: 24 } },
         legend: { live: true },
@@ -103,11 +123,16 @@
       viewData(spec, state.xLog, state.yLog),
       holder,
     );
+    // The report's whole range on each axis, for the scale shown.
+    u.quiverHome = () => ({
+      x: [state.xLog && !(spec.x.min > 0) ? u.data[0][0] : spec.x.min, spec.x.max],
+      y: [state.yLog ? state.yMinLog : spec.y.min, spec.y.max],
+    });
     u.quiverReset = () => {
-      const xMin = state.xLog && !(spec.x.min > 0) ? u.data[0][0] : spec.x.min;
+      const home = u.quiverHome();
       u.batch(() => {
-        u.setScale("x", { min: xMin, max: spec.x.max });
-        u.setScale("y", { min: state.yLog ? state.yMinLog : spec.y.min, max: spec.y.max });
+        u.setScale("x", { min: home.x[0], max: home.x[1] });
+        u.setScale("y", { min: home.y[0], max: home.y[1] });
       });
     };
     u.quiverReset();
@@ -171,17 +196,34 @@
       xLog: spec.x.log,
       yLog: spec.y.log,
       shown: spec.series.map(() => true),
-      // A linear axis turned logarithmic shows 120 dB of a power below the largest value.
-      yMinLog: spec.y.log ? spec.y.min : spec.y.max / 1e12,
+      // A logarithmic view shows at most 120 dB below the largest value (the report's rule).
+      yMinLog: spec.y.logMin,
     };
     const tools = document.createElement("div");
     tools.className = "chart-tools";
     const holder = document.createElement("div");
     holder.className = "interactive";
     let u;
-    const rebuild = () => {
+    // A switch of one axis's scale keeps the view: the other axis as it was, the switched one
+    // as it was when the reader had zoomed it and the range exists on the new scale (no zero
+    // or negative end on a logarithmic one), else the whole range.
+    const rebuild = (switched) => {
+      const home = u.quiverHome();
+      const view = { x: [u.scales.x.min, u.scales.x.max], y: [u.scales.y.min, u.scales.y.max] };
+      const wasLog = switched === "x" ? state.xLog : state.yLog;
+      const zoomed = zoomedFrom(view[switched], home[switched], wasLog);
+      if (switched === "x") state.xLog = !state.xLog;
+      else state.yLog = !state.yLog;
       u.destroy();
       u = build(figure, spec, state);
+      const next = u.quiverHome();
+      const log = switched === "x" ? state.xLog : state.yLog;
+      const keep = zoomed && (!log || view[switched][0] > 0);
+      const range = { ...view, [switched]: keep ? view[switched] : next[switched] };
+      u.batch(() => {
+        u.setScale("x", { min: range.x[0], max: range.x[1] });
+        u.setScale("y", { min: range.y[0], max: range.y[1] });
+      });
     };
     tools.appendChild(
       button("Reset view", "Back to the whole range (or double-click the plot)", () => {
@@ -190,14 +232,12 @@
     );
     if (positive(spec.data[0])) {
       tools.appendChild(button("x: lin / log", "Linear or logarithmic x axis", () => {
-        state.xLog = !state.xLog;
-        rebuild();
+        rebuild("x");
       }));
     }
     if (spec.data.slice(1).some(positive) && spec.y.max > 0) {
       tools.appendChild(button("y: lin / log", "Linear or logarithmic y axis", () => {
-        state.yLog = !state.yLog;
-        rebuild();
+        rebuild("y");
       }));
     }
     const hint = document.createElement("span");
@@ -208,15 +248,25 @@
     figure.appendChild(tools);
     figure.appendChild(holder);
     figure.classList.add("live");
+    figure.classList.toggle("legend-beside", besideLegend(figure));
     u = build(figure, spec, state);
     let resizing = 0;
+    const fit = () => {
+      // A figure in a closed section has no width: it is fitted when the section opens.
+      if (figure.clientWidth === 0) return;
+      figure.classList.toggle("legend-beside", besideLegend(figure));
+      u.setSize({ width: chartWidth(figure), height: spec.height });
+    };
     globalThis.addEventListener("resize", () => {
       clearTimeout(resizing);
-      resizing = setTimeout(
-        () => u.setSize({ width: chartWidth(figure), height: spec.height }),
-        100,
-      );
+      resizing = setTimeout(fit, 100);
     });
+    const section = figure.closest("details");
+    if (section !== null) {
+      section.addEventListener("toggle", () => {
+        if (section.open) fit();
+      });
+    }
   });
 
   // Colour maps stay pictures; a readout under each names the cell under the pointer: its x and
@@ -245,7 +295,8 @@
     const readout = document.createElement("div");
     readout.className = "map-readout";
     readout.textContent = "Move the pointer over the map to read a cell";
-    figure.appendChild(readout);
+    // Under its own picture: a figure holds a wide and a narrow one, only one of them shown.
+    (map.closest(".wide-picture, .narrow-picture") || figure).appendChild(readout);
     const picture = new Image();
     const canvas = document.createElement("canvas");
     let pixels = null;
@@ -306,4 +357,21 @@
         " " + withUnit(y, unit(yLabel)) + ": " + value;
     });
   });
+
+  // Sections: "Open all" and "Close all" beside the contents' heading (the sections open and
+  // close on their own headings without this script), and every section open for printing.
+  const sections = () => document.querySelectorAll("details.section");
+  const heading = document.querySelector("#contents h2");
+  if (heading !== null) {
+    const tools = document.createElement("span");
+    tools.className = "contents-tools";
+    tools.appendChild(button("Open all", "Open every section", () => {
+      sections().forEach((d) => (d.open = true));
+    }));
+    tools.appendChild(button("Close all", "Close every section to its heading", () => {
+      sections().forEach((d) => (d.open = false));
+    }));
+    heading.appendChild(tools);
+  }
+  globalThis.addEventListener("beforeprint", () => sections().forEach((d) => (d.open = true)));
 })();

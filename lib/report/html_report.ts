@@ -20,10 +20,12 @@ import type { Plan } from "../plan/schema.ts";
 import type { TargetOutcome } from "../plan/target_eval.ts";
 import { limitAt } from "../compare/targets.ts";
 import {
+  type BarPlot,
   barPlot,
   type ChartSpec,
   chartSpec,
   escapeXml,
+  type HeatMap,
   heatMap,
   type LinePlot,
   linePlot,
@@ -38,15 +40,47 @@ type ResultJson = ResultTable;
 interface Figure {
   readonly name: string;
   readonly svg: string;
+  /**
+   * The same picture laid out for a narrow screen ({@linkcode NARROW_WIDTH}
+   * px, legend under the frame), shown instead of `svg` where `svg` would
+   * shrink its text below 11 px.
+   */
+  readonly narrow?: string;
   /** For a line plot: its data for the interactive chart. */
   readonly chart?: ChartSpec;
   /** One of a set of small pictures, laid out side by side. */
   readonly small?: boolean;
+  /** A drawing (a mode shape): shown at about its own size, side by side, never page-wide. */
+  readonly drawing?: boolean;
 }
 
-/** A line plot's static SVG and the data of its interactive chart. */
-function lineFigure(plot: LinePlot): { svg: string; chart: ChartSpec } {
-  return { svg: linePlot(plot), chart: chartSpec(plot) };
+/**
+ * The width of a figure's narrow picture. Shown at least this wide up to a
+ * 700 px window (the narrow layout's margins leave 666 px), its 11 px text
+ * stays at 11 px or more.
+ */
+const NARROW_WIDTH = 600;
+
+/** A line plot's static SVG (wide and narrow) and the data of its interactive chart. */
+function lineFigure(plot: LinePlot): { svg: string; narrow?: string; chart: ChartSpec } {
+  const wide = linePlot(plot);
+  return {
+    svg: wide,
+    ...((plot.width ?? 960) > NARROW_WIDTH
+      ? { narrow: linePlot({ ...plot, width: NARROW_WIDTH }) }
+      : {}),
+    chart: chartSpec(plot),
+  };
+}
+
+/** A bar chart, wide and narrow. */
+function barFigure(plot: BarPlot): { svg: string; narrow: string } {
+  return { svg: barPlot(plot), narrow: barPlot({ ...plot, width: NARROW_WIDTH }) };
+}
+
+/** A colour map, wide and narrow. */
+function mapFigure(plot: HeatMap): { svg: string; narrow: string } {
+  return { svg: heatMap(plot), narrow: heatMap({ ...plot, width: NARROW_WIDTH }) };
 }
 
 interface Section {
@@ -54,6 +88,8 @@ interface Section {
   readonly note?: string;
   readonly figures: Figure[];
   readonly html?: string;
+  /** The step's result could not be shown (the step failed or its result is unreadable). */
+  readonly failed?: boolean;
 }
 
 // The reader gives NaN, never 0, for a value that was not finite (e.g. −∞ dB): plots skip it.
@@ -232,7 +268,7 @@ async function hammerFigures(
               y: peakNormalised(response.values),
             },
           ],
-          width: 640,
+          width: NARROW_WIDTH,
           height: 220,
         }),
       });
@@ -369,7 +405,7 @@ async function pathsSection(
     if (nominal !== undefined && groups.length > 0) {
       figures.push({
         name: `${id}_bands`,
-        svg: barPlot({
+        ...barFigure({
           title: `${title}: per-band contributions (${m.level_unit})`,
           labels: Array.from(nominal.values, (v) => formatNumber(v, 4)),
           groups,
@@ -436,15 +472,18 @@ function bandFigures(
     );
     return {
       name: `limit ${l.id}`,
+      group: l.channel,
       values: Array.from(centre, (f) => limitAt(l.points, f) ?? null),
       failing: Array.from(centre, (f) => failed.has(f)),
     };
   });
   return [{
     name: `${id}_bands`,
-    svg: barPlot({
+    ...barFigure({
       title: `${title}: 1/${m.fraction}-octave bands, ${m.weighting}-weighted${
-        drawn.length > 0 ? "; bands over the limit marked ▲" : ""
+        drawn.some((l) => l.failing.some((f) => f))
+          ? "; bands over the limit hatched and marked"
+          : ""
       }`,
       labels: Array.from(numbers(nominal), (v) => formatNumber(v, 4)),
       groups: channels.map((c) => ({ name: c.name, values: numbers(c) })),
@@ -497,7 +536,7 @@ function spectrogramFigures(id: string, title: string, r: ResultJson): Figure[] 
     );
     return {
       name: `${id}_${c.name}_spectrogram`,
-      svg: heatMap({
+      ...mapFigure({
         title: `${title}: ${c.name}`,
         xLabel: againstRpm ? "Speed [rpm]" : "Time [s]",
         yLabel: "Frequency [Hz]",
@@ -557,7 +596,7 @@ async function orderFigures(
     const unit = map.columns[2].unit;
     figures.push({
       name: `${id}_map`,
-      svg: heatMap({
+      ...mapFigure({
         title: `${title}: ${map.columns[2].name}, level against speed and ${
           map.columns[1].name === "order" ? "order" : "frequency"
         }`,
@@ -665,6 +704,7 @@ async function modalSection(
       }
       figures.push({
         name: `${id}_shape_${fitted.mode}`,
+        drawing: true,
         svg: wireframe({
           title: `Mode ${fitted.mode}: ${formatFixed(fitted.frequencyHz, 1)} Hz, ζ ${
             formatFixed(100 * fitted.dampingRatio, 2)
@@ -707,7 +747,7 @@ function macSection(id: string, title: string, r: ResultJson): { figures: Figure
   return {
     figures: [{
       name: `${id}_mac`,
-      svg: heatMap({
+      ...mapFigure({
         title: `${title}: MAC, test against simulation (${m.dofs_used} points)`,
         xLabel: "Simulation mode",
         yLabel: "Test mode",
@@ -760,7 +800,7 @@ function comparisonFigures(
   if (bands.length > 0) {
     figures.push({
       name: `${id}_bands`,
-      svg: barPlot({
+      ...barFigure({
         title: `${title}: simulation − test per band`,
         labels: bands.map((b) => formatNumber(b.nominal_hz, 4)),
         groups: [{
@@ -827,16 +867,131 @@ function targetTable(targets: readonly TargetOutcome[]): string {
 }
 
 /**
+ * What a section's source line names: the files the run read for the step
+ * (from the manifest, which every step has), else the source its result
+ * names; "no recorded input" when neither says.
+ */
+function sourceNames(
+  step: Manifest["steps"][number],
+  common: { source?: string; test?: string },
+): string {
+  const names = step.inputs.map((i) => String(i.path).split("/").pop() ?? "");
+  const fromResult = common.source ?? common.test;
+  if (names.length === 0 && fromResult !== undefined) names.push(fromResult.split("/").pop() ?? "");
+  const shown = names.filter((n) => n !== "");
+  return shown.length > 0 ? shown.join(", ") : "no recorded input";
+}
+
+/** A section's state in the contents, worst first. */
+type SectionStatus = "failed" | "target failed" | "warnings" | "ok";
+
+/**
+ * The state of a step's section: failed (no result shown), a target on it
+ * not met, warnings (of the analysis, or a target on it that could not be
+ * checked), or ok.
+ */
+function sectionStatus(
+  section: Section,
+  step: Manifest["steps"][number] | undefined,
+  targets: readonly { id: string; analysis: string }[],
+  outcomes: ReadonlyMap<string, TargetOutcome>,
+  warned: ReadonlySet<string>,
+): { status: SectionStatus; detail: string } {
+  if (section.failed === true || step === undefined) return { status: "failed", detail: "" };
+  const own = targets.filter((t) => t.analysis === step.id).map((t) => outcomes.get(t.id));
+  const failing = own.filter((o) => o?.status === "checked" && !o.pass);
+  if (failing.length > 0) {
+    return { status: "target failed", detail: failing.map((o) => o!.id).join(", ") };
+  }
+  const unchecked = own.filter((o) => o === undefined || o.status === "not_checked");
+  if (warned.has(step.id) || unchecked.length > 0) {
+    return {
+      status: "warnings",
+      detail: unchecked.length > 0 ? `${unchecked.length} target(s) not checked` : "",
+    };
+  }
+  return { status: "ok", detail: "" };
+}
+
+/** A section as the contents list it. */
+interface ContentsEntry {
+  readonly anchor: string;
+  readonly heading: string;
+  readonly status: SectionStatus;
+  readonly detail: string;
+}
+
+/** The targets' own entry: failed when any is not met, warnings when any was not checked. */
+function targetsStatus(targets: readonly TargetOutcome[]): ContentsEntry {
+  const checked = targets.filter((t) => t.status === "checked");
+  const failed = checked.filter((t) => !t.pass).length;
+  const detail = targets.length === 0
+    ? "none set"
+    : `${checked.length - failed} of ${targets.length} met`;
+  return {
+    anchor: "targets",
+    heading: "Targets",
+    status: failed > 0 ? "target failed" : checked.length < targets.length ? "warnings" : "ok",
+    detail,
+  };
+}
+
+/**
+ * The table of contents: every section with its status, each a link to it.
+ * Plain links and `<details>` sections: it all works without JavaScript.
+ */
+function contents(entries: readonly ContentsEntry[]): string {
+  const count = (status: SectionStatus) => entries.filter((e) => e.status === status).length;
+  const summary = (["failed", "target failed", "warnings", "ok"] as const)
+    .filter((s) => count(s) > 0)
+    .map((s) => `${count(s)} × ${s}`)
+    .join(" · ");
+  return `<nav id="contents" class="contents" aria-label="Contents"><h2>Contents</h2><p class="note">${
+    escapeXml(summary)
+  }. Each section below opens and closes on its heading.</p><ol>${
+    entries.map((e) =>
+      `<li class="contents-${e.status.replace(" ", "-")}"><a href="#${escapeXml(e.anchor)}">${
+        escapeXml(e.heading)
+      }</a> ${statusBadge(e.status, e.detail)}</li>`
+    ).join("")
+  }<li><a href="#trace">Trace</a></li></ol></nav>`;
+}
+
+/** A section that opens and closes on its heading (open to start with, and in print). */
+function collapsible(entry: ContentsEntry, inner: string): string {
+  return `<details class="section" id="${escapeXml(entry.anchor)}" open><summary><h2>${
+    escapeXml(entry.heading)
+  }</h2> ${statusBadge(entry.status, entry.detail)}</summary>\n${inner}\n</details>`;
+}
+
+/** A status as a badge: a symbol and a word, so it reads without colour. */
+function statusBadge(status: SectionStatus, detail = ""): string {
+  const symbol = { "failed": "✕", "target failed": "✕", "warnings": "!", "ok": "✓" }[status];
+  return `<span class="status status-${status.replace(" ", "-")}">${symbol} ${status}${
+    detail !== "" ? `: ${escapeXml(detail)}` : ""
+  }</span>`;
+}
+
+/** The anchor of a step's section (step ids are the plan's; encoded all the same). */
+function sectionAnchor(stepId: string): string {
+  return `section-${encodeURIComponent(stepId)}`;
+}
+
+/**
  * A figure: its static SVG (what prints and what shows without JavaScript)
  * and, for a line plot, its data for the interactive chart.
  */
 function figureHtml(f: Figure, file: string): string {
   const id = `figure-${escapeXml(file)}`;
-  const small = f.small === true ? ' class="small"' : "";
-  if (f.chart === undefined) return `<figure id="${id}"${small}>${f.svg}</figure>`;
+  const small = f.small === true ? ' class="small"' : f.drawing === true ? ' class="drawing"' : "";
+  // Two layouts of the picture; the style sheet shows the one that suits the window.
+  const pictures = f.narrow === undefined
+    ? f.svg
+    : `<div class="wide-picture">${f.svg}</div><div class="narrow-picture">${f.narrow}</div>`;
+  if (f.chart === undefined) return `<figure id="${id}"${small}>${pictures}</figure>`;
   // JSON inside a script element: "<" escaped so that no "</script" can end it early.
   const json = JSON.stringify(f.chart).replace(/</g, "\\u003c");
-  return `<figure id="${id}"${small} data-chart=""><div class="static">${f.svg}</div><script type="application/json" class="chart-data">${json}</script></figure>`;
+  return `<figure id="${id}"${small} data-chart=""><div class="static">${pictures}</div><script type="application/json" class="chart-data">${json}</script></figure>`;
 }
 
 /**
@@ -893,14 +1048,15 @@ h3 { font-size: 15px; margin-bottom: 4px; }
 figure { margin: 12px 0; background: #ffffff; border: 1px solid #d9d4c7; padding: 6px; display: block; }
 figure svg { width: 100%; max-width: 1400px; height: auto; display: block; }
 figure.live > .static { display: none; }
+figure.drawing { display: inline-block; vertical-align: top; width: 420px; max-width: calc(100% - 14px); margin-right: 8px; }
 figure.small { display: inline-block; vertical-align: top; width: calc(50% - 20px); min-width: 320px; margin-right: 8px; }
 .chart-tools { font-size: 12px; margin: 0 0 4px 0; display: flex; flex-wrap: wrap; gap: 6px; align-items: center; }
 .chart-tools button { font: inherit; background: #f4f1ea; border: 1px solid #b9b2a2; border-radius: 3px; padding: 2px 8px; cursor: pointer; }
 .chart-hint { color: #6b7785; }
 .map-readout { font-size: 12px; color: #22313f; padding: 4px 2px; min-height: 1.4em; }
-.uplot { font-family: Helvetica, Arial, sans-serif; }
-.u-title { font-size: 13px; }
-.u-legend { font-size: 12px; text-align: left; }
+figure .uplot { font-family: Helvetica, Arial, sans-serif; }
+figure .u-title { font-size: 14px; font-weight: 600; }
+figure .u-legend { font-size: 12px; text-align: left; }
 table { border-collapse: collapse; margin: 8px 0 16px 0; font-size: 13px; background: #ffffff; }
 th, td { border: 1px solid #d9d4c7; padding: 4px 8px; text-align: left; }
 th { background: #e8e2d4; }
@@ -910,8 +1066,36 @@ tr.unchecked td { color: #6b7785; }
 .note { font-size: 12px; color: #5b6b7b; }
 td .failing { font-size: 12px; color: #b02e1f; margin-top: 2px; }
 .caveat { border-left: 4px solid #edae49; background: #fff8e6; padding: 8px 12px; font-size: 13px; }
-@media print { body { background: #ffffff; } header { background: #ffffff; color: #000000; } figure { break-inside: avoid; } figure.live > .static { display: block; } .interactive, .chart-tools, .map-readout { display: none; } }
-@media (max-width: 760px) { main { padding: 8px 10px 24px 10px; } header { padding: 12px 10px; } table { font-size: 11px; } }
+figure .u-legend th, figure .u-legend td { border: none; background: none; padding: 1px 4px; font-weight: 400; }
+figure .u-legend .u-value { color: #3d4b59; }
+figure.live.legend-beside .uplot { display: grid; grid-template-columns: max-content minmax(0, 1fr); align-items: start; width: auto; }
+figure.live.legend-beside .u-title { grid-column: 1 / -1; }
+figure.live.legend-beside .u-legend { margin: 8px 0 0 12px; text-align: left; }
+figure.live.legend-beside .u-legend.u-inline tr { display: block; margin: 0 0 4px 0; }
+.narrow-picture { display: none; }
+.contents { background: #ffffff; border: 1px solid #d9d4c7; padding: 6px 16px 10px 16px; margin: 16px 0; }
+.contents h2 { border: none; margin: 6px 0 2px 0; }
+.contents ol { columns: 2 340px; column-gap: 32px; padding-left: 24px; margin: 6px 0 0 0; font-size: 13px; }
+.contents li { break-inside: avoid; margin: 3px 0; }
+.contents a { color: #1d4e89; }
+.contents-tools { display: inline-flex; gap: 6px; margin-left: 8px; }
+.contents-tools button { font: inherit; font-size: 12px; background: #f4f1ea; border: 1px solid #b9b2a2; border-radius: 3px; padding: 1px 8px; cursor: pointer; }
+.status { display: inline-block; font-size: 12px; font-weight: 700; line-height: 1.3; padding: 0 6px; border: 1px solid; border-radius: 3px; white-space: nowrap; }
+.status-ok { color: #1f6f3f; background: #e8f3ec; border-color: #9cc5aa; }
+.status-warnings { color: #6e4a00; background: #fff4d6; border-color: #d9a93e; }
+.status-failed, .status-target-failed { color: #ffffff; background: #b02e1f; border-color: #6f1a10; }
+details.section > summary { list-style: none; cursor: pointer; display: flex; flex-wrap: wrap; align-items: baseline; gap: 4px 10px; border-bottom: 2px solid #c8553d; margin-top: 28px; padding-bottom: 4px; }
+details.section > summary::-webkit-details-marker { display: none; }
+details.section > summary::before { content: "\\25BE"; font-size: 14px; width: 14px; color: #c8553d; }
+details.section:not([open]) > summary::before { content: "\\25B8"; }
+details.section > summary h2 { display: inline; border: none; margin: 0; padding: 0; }
+details.section > summary:focus-visible { outline: 2px solid #1d4e89; outline-offset: 2px; }
+.to-contents { position: fixed; right: 14px; bottom: 14px; z-index: 10; background: #22313f; color: #f4f1ea; padding: 6px 14px; border-radius: 16px; font-size: 13px; text-decoration: none; box-shadow: 0 1px 4px rgba(0, 0, 0, 0.3); }
+.to-contents:focus-visible { outline: 2px solid #edae49; }
+@media print { body { background: #ffffff; } header { background: #ffffff; color: #000000; } figure { break-inside: avoid; } figure.live > .static { display: block; } .interactive, .chart-tools, .map-readout, .to-contents, .contents-tools { display: none; } }
+@media (max-width: 1340px) { figure.small { display: block; width: auto; min-width: 0; margin-right: 0; } }
+@media (max-width: 1039px) { .wide-picture { display: none; } .narrow-picture { display: block; } .narrow-picture svg { max-width: 760px; } }
+@media (max-width: 760px) { main { padding: 8px 10px 24px 10px; } header { padding: 12px 10px; } table { font-size: 11px; } .contents { padding: 4px 10px 8px 10px; } .contents ol { padding-left: 20px; } }
 `;
 
 /**
@@ -950,7 +1134,18 @@ export async function writeReport(outDir: string, manifest: Manifest, plan: Plan
         ? [{ id: t.id, channel: t.of.channel, points: t.points, outcome: outcomes.get(t.id) }]
         : []
     );
+  // Each step's section, for its anchor and status in the contents.
+  const stepOf = new Map<Section, Manifest["steps"][number]>();
+  const warned = new Set<string>();
   for (const step of manifest.steps) {
+    const start = sections.length;
+    try {
+      await stepSection(step);
+    } finally {
+      for (let k = start; k < sections.length; k++) stepOf.set(sections[k], step);
+    }
+  }
+  async function stepSection(step: Manifest["steps"][number]): Promise<void> {
     const title = titles.get(step.id) ?? step.id;
     if (step.status !== "ok") {
       sections.push({
@@ -959,18 +1154,24 @@ export async function writeReport(outDir: string, manifest: Manifest, plan: Plan
           step.error !== undefined ? ` — ${step.error}` : ""
         }`,
         figures: [],
+        failed: true,
       });
-      continue;
+      return;
     }
     const r = await readJson(join(outDir, `${step.id}.json`));
     if (r instanceof QuiverError) {
-      sections.push({ heading: title, note: `cannot show the result: ${r.message}`, figures: [] });
-      continue;
+      sections.push({
+        heading: title,
+        note: `cannot show the result: ${r.message}`,
+        figures: [],
+        failed: true,
+      });
+      return;
     }
     const common = commonMetadata(r);
-    const source = common.source ?? common.test ?? "";
     const warnings = common.warnings ?? [];
-    const note = `${step.command} of ${source.split("/").pop()}${
+    if (warnings.length > 0) warned.add(step.id);
+    const note = `${step.command} of ${sourceNames(step, common)}${
       warnings.length > 0 ? `. Warnings: ${warnings.join("; ")}` : ""
     }`;
     // A result whose metadata is not what its command writes is named, not drawn from guesses.
@@ -1069,6 +1270,7 @@ export async function writeReport(outDir: string, manifest: Manifest, plan: Plan
         heading: title,
         note: `cannot show the result: ${error.message}`,
         figures: [],
+        failed: true,
       });
     }
   }
@@ -1093,13 +1295,24 @@ export async function writeReport(outDir: string, manifest: Manifest, plan: Plan
     }</td><td>${Object.values(s.outputs).map((o) => escapeXml(o.path)).join("<br>")}</td></tr>`
   ).join("\n");
   const title = plan.report?.title ?? plan.title;
-  const body = sections.map((s) =>
-    `<section><h2>${escapeXml(s.heading)}</h2>${
-      s.note !== undefined ? `<p class="note">${escapeXml(s.note)}</p>` : ""
-    }${s.figures.map((f) => figureHtml(f, fileOf.get(f) ?? "")).join("\n")}${
-      s.html ?? ""
-    }</section>`
+  const planTargets = plan.targets.map((t) => ({ id: t.id, analysis: t.of.analysis }));
+  const entries: ContentsEntry[] = sections.map((s) => {
+    const step = stepOf.get(s);
+    return {
+      anchor: sectionAnchor(step?.id ?? s.heading),
+      heading: s.heading,
+      ...sectionStatus(s, step, planTargets, outcomes, warned),
+    };
+  });
+  const body = sections.map((s, i) =>
+    collapsible(
+      entries[i],
+      `${s.note !== undefined ? `<p class="note">${escapeXml(s.note)}</p>` : ""}${
+        s.figures.map((f) => figureHtml(f, fileOf.get(f) ?? "")).join("\n")
+      }${s.html ?? ""}`,
+    )
   ).join("\n");
+  const targetsEntry = targetsStatus(manifest.targets as TargetOutcome[]);
   const html = `<!DOCTYPE html>
 <html lang="en"><head><meta charset="utf-8"><title>${escapeXml(title)}</title>
 <meta name="generator" content="quiver ${escapeXml(manifest.quiver_version)}">
@@ -1113,13 +1326,15 @@ export async function writeReport(outDir: string, manifest: Manifest, plan: Plan
   } · status ${escapeXml(manifest.status)}</p></header>
 <main>
 <p class="caveat">Levels in this report are for engineering comparison between tests, simulations and targets. quiver is not a certified sound level meter; for occupational noise exposure and hearing protection follow local regulations and use certified instruments.</p>
-<h2>Targets</h2>
-${targetTable(manifest.targets as TargetOutcome[])}
+${contents([targetsEntry, ...entries])}
+${collapsible(targetsEntry, targetTable(manifest.targets as TargetOutcome[]))}
 ${body}
-<h2>Trace</h2>
+<details class="section" id="trace" open><summary><h2>Trace</h2></summary>
 <p class="note">Every result in this folder, with the inputs it was computed from; manifest.json holds the full record (options, hashes, times).</p>
 <table><thead><tr><th>Step</th><th>Command</th><th>Status</th><th>Inputs</th><th>Outputs</th></tr></thead><tbody>${trace}</tbody></table>
+</details>
 </main>
+<a class="to-contents" href="#contents">↑ Contents</a>
 ${chartScripts()}
 </body></html>
 `;

@@ -260,23 +260,126 @@ function logTicks([lo, hi]: [number, number]): number[] {
   return ticks;
 }
 
+/** One legend entry: a line (solid or dashed), or the mark of bars over a limit. */
+interface LegendEntry {
+  readonly name: string;
+  readonly dashed?: boolean;
+  readonly colour?: string;
+  /** The entry explains the over-limit marking (hatched bar and warning mark). */
+  readonly over?: boolean;
+}
+
+/** Plots narrower than this put their legend under the frame, where it does not squeeze the data. */
+const LEGEND_BESIDE_MIN_WIDTH = 720;
+
+/** Height of one legend row. */
+const LEGEND_ROW = 16;
+
+/**
+ * Where a plot of `width` px puts its legend: beside the frame in a column
+ * of {@linkcode LEGEND_WIDTH} (wide plots), or under it in rows of columns
+ * (narrow plots), with the extra height that takes.
+ */
+function legendPlace(width: number, entries: number): {
+  right: number;
+  below: boolean;
+  columns: number;
+  height: number;
+} {
+  if (width >= LEGEND_BESIDE_MIN_WIDTH || entries === 0) {
+    return {
+      right: width - MARGIN.right - (entries === 0 ? 0 : LEGEND_WIDTH),
+      below: false,
+      columns: 1,
+      height: 0,
+    };
+  }
+  const columns = Math.max(1, Math.floor((width - MARGIN.left - MARGIN.right) / 230));
+  return {
+    right: width - MARGIN.right,
+    below: true,
+    columns,
+    height: LEGEND_ROW * Math.ceil(entries / columns) + 8,
+  };
+}
+
+/**
+ * Diagonal hatching (45°) inside a rectangle, as one path: the lines of
+ * u + v = c cut to the rectangle, so no clipping element (and no id shared
+ * between the pictures of one page) is needed.
+ */
+function hatchPath(x: number, y: number, w: number, h: number, spacing = 5): string {
+  let d = "";
+  for (let c = x + y + spacing; c < x + w + y + h; c += spacing) {
+    const u1 = Math.max(x, c - (y + h)), u2 = Math.min(x + w, c - y);
+    if (u2 <= u1) continue;
+    d += `M${u1.toFixed(1)},${(c - u1).toFixed(1)}L${u2.toFixed(1)},${(c - u2).toFixed(1)}`;
+  }
+  return d;
+}
+
+/** Hatching that reads on any bar colour and in greyscale: a light line under a dark one. */
+function hatching(x: number, y: number, w: number, h: number): string {
+  const d = hatchPath(x, y, w, h);
+  if (d === "") return "";
+  return `<path class="hatch" d="${d}" stroke="#ffffff" stroke-width="2.4" fill="none"/><path class="hatch" d="${d}" stroke="#22313f" stroke-width="1" fill="none"/>`;
+}
+
+/** The over-limit mark: a red triangle with a white bar and dot, its tip at (x, y − size). */
+function overMark(x: number, y: number, size = 13): string {
+  const h = size * 0.9, half = size / 2;
+  return `<g class="failing-mark"><path d="M${x.toFixed(1)},${(y - h).toFixed(1)}L${
+    (x + half).toFixed(1)
+  },${y.toFixed(1)}L${(x - half).toFixed(1)},${
+    y.toFixed(1)
+  }Z" fill="#b02e1f" stroke="#22313f" stroke-width="0.8"/><rect x="${(x - 0.8).toFixed(1)}" y="${
+    (y - h * 0.68).toFixed(1)
+  }" width="1.6" height="${(h * 0.4).toFixed(1)}" fill="#ffffff"/><rect x="${
+    (x - 0.8).toFixed(1)
+  }" y="${(y - h * 0.2).toFixed(1)}" width="1.6" height="1.6" fill="#ffffff"/></g>`;
+}
+
 function legend(
-  names: readonly { name: string; dashed?: boolean; colour?: string }[],
+  names: readonly LegendEntry[],
   x: number,
   y: number,
+  columns = 1,
+  columnWidth = 0,
 ): string {
-  // Entries stacked in a column that starts at x, outside the frame; long names are
-  // shortened on the picture and given whole in a tooltip.
+  // Entries stacked in a column that starts at x, outside the frame (or in rows under it on a
+  // narrow plot); long names are shortened on the picture and given whole in a tooltip.
+  const longest = columns > 1 ? Math.max(12, Math.floor((columnWidth - 30) / 6.2)) : 24;
   return names.map((s, i) => {
-    const shown = s.name.length > 24 ? `${s.name.slice(0, 23)}…` : s.name;
-    return `<g class="legend-entry" transform="translate(${x} ${y + 6 + 14 * i})"><title>${
-      escapeXml(s.name)
-    }</title><line x1="0" x2="18" y1="0" y2="0" stroke="${
-      s.colour ?? PALETTE[i % PALETTE.length]
-    }" stroke-width="2"${
-      s.dashed === true ? ' stroke-dasharray="5 3"' : ""
-    }/><text x="24" y="4" fill="#22313f">${escapeXml(shown)}</text></g>`;
+    const shown = s.name.length > longest ? `${s.name.slice(0, longest - 1)}…` : s.name;
+    const at = `translate(${x + (i % columns) * columnWidth} ${
+      y + 6 + LEGEND_ROW * Math.floor(i / columns)
+    })`;
+    const key = s.over === true
+      ? `<rect x="1" y="-6" width="16" height="12" fill="#9aa5b1" stroke="#b02e1f" stroke-width="2"/>${
+        hatching(1, -6, 16, 12)
+      }${overMark(28, 6, 11)}`
+      : `<line x1="0" x2="18" y1="0" y2="0" stroke="${
+        s.colour ?? PALETTE[i % PALETTE.length]
+      }" stroke-width="2"${s.dashed === true ? ' stroke-dasharray="5 3"' : ""}/>`;
+    return `<g class="legend-entry${
+      s.over === true ? " legend-over" : ""
+    }" transform="${at}"><title>${escapeXml(s.name)}</title>${key}<text x="${
+      s.over === true ? 40 : 24
+    }" y="4" fill="#22313f">${escapeXml(shown)}</text></g>`;
   }).join("\n");
+}
+
+/** The legend where {@linkcode legendPlace} put it, for a plot of `width` × `height` px. */
+function placedLegend(
+  entries: readonly LegendEntry[],
+  place: ReturnType<typeof legendPlace>,
+  width: number,
+  height: number,
+  top: number,
+): string {
+  if (!place.below) return legend(entries, place.right + 12, top);
+  const columnWidth = (width - MARGIN.left - MARGIN.right) / place.columns;
+  return legend(entries, MARGIN.left, height - place.height + 4, place.columns, columnWidth);
 }
 
 /**
@@ -293,13 +396,16 @@ function legend(
 export function linePlot(plot: LinePlot): string {
   const width = plot.width ?? 960;
   const extra = titleExtra(plot.title, width);
-  const height = (plot.height ?? 400) + extra;
+  const place = legendPlace(width, plot.series.length);
+  const height = (plot.height ?? 400) + extra + place.height;
+  // The axes end above a legend placed under the frame.
+  const axesHeight = height - place.height;
   const top = MARGIN.top + extra;
   const xs = plot.series.flatMap((s) => Array.from(s.x));
   const ys = plot.series.flatMap((s) => Array.from(s.y));
-  const right = width - MARGIN.right - LEGEND_WIDTH;
+  const right = place.right;
   const x = makeScale(plot.x, xs, [MARGIN.left, right]);
-  const y = makeScale(plot.y, ys, [height - MARGIN.bottom, top], true);
+  const y = makeScale(plot.y, ys, [axesHeight - MARGIN.bottom, top], true);
   const yAxis = labelledAxis(plot.y, ys);
   const [xlo, xhi] = x.domain() as [number, number];
   const paths = plot.series.map((s, i) => {
@@ -340,8 +446,8 @@ export function linePlot(plot: LinePlot): string {
     width,
     height,
     plot.title,
-    `${axes({ x, y, xAxis: plot.x, yAxis, height })}\n${paths.join("\n")}\n${
-      legend(plot.series, right + 12, top)
+    `${axes({ x, y, xAxis: plot.x, yAxis, height: axesHeight })}\n${paths.join("\n")}\n${
+      placedLegend(plot.series, place, width, height, top)
     }`,
   );
 }
@@ -353,12 +459,41 @@ function labelledAxis(axis: Axis, values: number[]): Axis {
     : axis;
 }
 
+/**
+ * A value axis's label on either scale and the bottom of its logarithmic
+ * view, for the chart's linear/logarithmic switch: on a linear scale nothing
+ * is cut, so the label drops the "top 120 dB shown" that a limited
+ * logarithmic scale carries.
+ */
+function switchedLabels(axis: Axis, values: number[]): {
+  labels: { linear: string; log: string };
+  logMin: number;
+} {
+  // A linear axis's fixed range (e.g. coherence 0 … 1) is no logarithmic range: the data's is.
+  const asLog: Axis = { ...axis, log: true, domain: axis.log === true ? axis.domain : undefined };
+  const { domain } = shownDomain(asLog, values, true);
+  return {
+    labels: { linear: axis.label, log: labelledAxis(asLog, values).label },
+    logMin: domain[0],
+  };
+}
+
 /** A line plot's data and look for the report's interactive chart (JSON-ready). */
 export interface ChartSpec {
   readonly title: string;
   readonly height: number;
   readonly x: { label: string; unit: string; log: boolean; min: number; max: number };
-  readonly y: { label: string; unit: string; log: boolean; min: number; max: number };
+  readonly y: {
+    label: string;
+    unit: string;
+    log: boolean;
+    min: number;
+    max: number;
+    /** The label on a linear and on a logarithmic scale (the reader may switch). */
+    labels: { linear: string; log: string };
+    /** The bottom of the logarithmic scale: the top 120 dB of the data. */
+    logMin: number;
+  };
   readonly series: readonly { name: string; colour: string; dashed: boolean; markers: boolean }[];
   /** x, then one y array per series, all on x; null where a series has no value. */
   readonly data: readonly (readonly (number | null)[])[];
@@ -428,6 +563,7 @@ export function chartSpec(plot: LinePlot): ChartSpec {
       log: plot.y.log === true,
       min: yDomain[0],
       max: yDomain[1],
+      ...switchedLabels(plot.y, ys),
     },
     series: plot.series.map((s, i) => ({
       name: s.name,
@@ -482,11 +618,14 @@ export interface BarPlot {
   readonly baseline?: number;
   /**
    * Limit curves over the bars: a value per label (null outside the curve's
-   * range), drawn as a dashed step line; the bars that break it are outlined
-   * and flagged. Default none.
+   * range), drawn as a dashed step line; the bars that break it are outlined,
+   * hatched and marked with a warning triangle, and the legend says so.
+   * Default none.
    */
   readonly limits?: readonly {
     readonly name: string;
+    /** The group (channel) the limit applies to; default every group. */
+    readonly group?: string;
     readonly values: readonly (number | null)[];
     readonly failing: readonly boolean[];
   }[];
@@ -505,21 +644,31 @@ export interface BarPlot {
 export function barPlot(plot: BarPlot): string {
   const width = plot.width ?? 960;
   const extra = titleExtra(plot.title, width);
-  const height = (plot.height ?? 400) + extra;
+  const limits = plot.limits ?? [];
+  const anyFailing = limits.some((l) => l.failing.some((f) => f));
+  const entries: LegendEntry[] = [
+    ...plot.groups,
+    ...limits.map((l) => ({ name: l.name, dashed: true, colour: "#22313f" })),
+    ...(anyFailing ? [{ name: "over the limit", over: true }] : []),
+  ];
+  const place = legendPlace(width, entries.length);
+  const height = (plot.height ?? 400) + extra + place.height;
+  const axesHeight = height - place.height;
   const top = MARGIN.top + extra;
-  const right = width - MARGIN.right - LEGEND_WIDTH;
-  const limitValues = (plot.limits ?? []).flatMap((l) => l.values.filter((v) => v !== null));
+  const right = place.right;
+  const limitValues = limits.flatMap((l) => l.values.filter((v) => v !== null));
   const values = [...plot.groups.flatMap((g) => Array.from(g.values)), ...limitValues]
     .filter(Number.isFinite) as number[];
   const lo = minOf(values);
   const hi = maxOf(values);
   const baseline = plot.baseline;
+  // Headroom above the highest value for the over-limit marks.
   const domain: [number, number] = baseline === undefined
-    ? [Math.floor((lo - 10) / 10) * 10, Math.ceil((hi + 5) / 10) * 10]
+    ? [Math.floor((lo - 10) / 10) * 10, Math.ceil((hi + (anyFailing ? 8 : 5)) / 10) * 10]
     : [Math.min(baseline, lo), Math.max(baseline, hi)];
-  const y = scaleLinear().domain(domain).range([height - MARGIN.bottom, top]);
+  const y = scaleLinear().domain(domain).range([axesHeight - MARGIN.bottom, top]);
   if (baseline !== undefined) y.nice();
-  const base = baseline === undefined ? height - MARGIN.bottom : y(baseline);
+  const base = baseline === undefined ? axesHeight - MARGIN.bottom : y(baseline);
   const x = scaleLinear().domain([0, plot.labels.length]).range([MARGIN.left, right]);
   const slot = x(1) - x(0);
   const barWidth = (0.8 * slot) / plot.groups.length;
@@ -534,12 +683,17 @@ export function barPlot(plot: BarPlot): string {
       }</text>`,
     );
   }
-  const every = Math.max(1, Math.ceil(plot.labels.length / 16));
+  // Band labels at least 36 px apart (a five-digit label at 11 px is about 32 px wide).
+  const every = Math.max(1, Math.ceil(36 / slot));
+  // A bar fails when a limit on its group (or on every group) is broken in its band.
+  const failsAt = (i: number, group: string) =>
+    limits.some((l) => (l.group === undefined || l.group === group) && l.failing[i] === true);
+  const marks: string[] = [];
   plot.labels.forEach((label, i) => {
     if (i % every === 0) {
       parts.push(
         `<text x="${x(i + 0.5)}" y="${
-          height - MARGIN.bottom + 14
+          axesHeight - MARGIN.bottom + 14
         }" text-anchor="middle" fill="#3d4b59">${escapeXml(label)}</text>`,
       );
     }
@@ -547,33 +701,44 @@ export function barPlot(plot: BarPlot): string {
       const v = g.values[i];
       if (!Number.isFinite(v)) return;
       const end = y(v);
-      const fails = (plot.limits ?? []).some((l) => l.failing[i] === true);
+      const fails = failsAt(i, g.name);
+      const bx = x(i) + 0.1 * slot + j * barWidth;
+      const by = Math.min(end, base), bh = Math.abs(base - end);
       parts.push(
-        `<rect class="bar${fails ? " failing" : ""}" x="${
-          (x(i) + 0.1 * slot + j * barWidth).toFixed(1)
-        }" y="${Math.min(end, base).toFixed(1)}" width="${barWidth.toFixed(1)}" height="${
-          Math.abs(base - end).toFixed(1)
-        }" fill="${PALETTE[j % PALETTE.length]}"${
-          fails ? ' stroke="#b02e1f" stroke-width="2"' : ""
-        }><title>${
-          escapeXml(`${g.name}, ${label}: ${formatTick(v)} (${plot.yLabel})`)
+        `<rect class="bar${fails ? " failing" : ""}" x="${bx.toFixed(1)}" y="${
+          by.toFixed(1)
+        }" width="${barWidth.toFixed(1)}" height="${bh.toFixed(1)}" fill="${
+          PALETTE[j % PALETTE.length]
+        }"${fails ? ' stroke="#b02e1f" stroke-width="2"' : ""}><title>${
+          escapeXml(
+            `${g.name}, ${label}: ${formatTick(v)} (${plot.yLabel})${
+              fails ? ", over the limit" : ""
+            }`,
+          )
         }</title></rect>`,
       );
+      if (fails) {
+        parts.push(overBar(bx, by, barWidth, bh));
+        // The mark stands above the bar and the limit, whichever is higher.
+        const limitTop = limits.reduce(
+          (
+            t,
+            l,
+          ) => (l.values[i] !== null && Number.isFinite(l.values[i])
+            ? Math.min(t, y(l.values[i]!))
+            : t),
+          by,
+        );
+        marks.push(overMark(bx + barWidth / 2, Math.min(by, limitTop) - 3));
+      }
     });
   });
-  // Limit curves as dashed steps across each band's slot, failing bands flagged above.
-  (plot.limits ?? []).forEach((limit) => {
+  // Limit curves as dashed steps across each band's slot.
+  limits.forEach((limit) => {
     let d = "";
     limit.values.forEach((v, i) => {
       if (v === null || !Number.isFinite(v)) return;
       d += `M${x(i).toFixed(1)},${y(v).toFixed(1)}L${x(i + 1).toFixed(1)},${y(v).toFixed(1)}`;
-      if (limit.failing[i]) {
-        parts.push(
-          `<text class="failing-mark" x="${x(i + 0.5).toFixed(1)}" y="${
-            (y(v) - 4).toFixed(1)
-          }" text-anchor="middle" fill="#b02e1f" font-weight="700">▲</text>`,
-        );
-      }
     });
     parts.push(
       `<path class="limit" d="${d}" fill="none" stroke="#22313f" stroke-width="1.6" stroke-dasharray="6 3"><title>${
@@ -581,21 +746,28 @@ export function barPlot(plot: BarPlot): string {
       }</title></path>`,
     );
   });
+  parts.push(...marks);
   parts.push(
     plotFrame({
       width,
-      height,
+      height: axesHeight,
       top,
       right: width - right,
       xLabel: plot.xLabel,
       yLabel: plot.yLabel,
     }),
   );
-  const entries = [
-    ...plot.groups,
-    ...(plot.limits ?? []).map((l) => ({ name: l.name, dashed: true, colour: "#22313f" })),
-  ];
-  return frame(width, height, plot.title, parts.join("\n") + legend(entries, right + 12, top));
+  return frame(
+    width,
+    height,
+    plot.title,
+    parts.join("\n") + placedLegend(entries, place, width, height, top),
+  );
+}
+
+/** A failing bar's hatching (the bar keeps its group colour underneath). */
+function overBar(x: number, y: number, w: number, h: number): string {
+  return h >= 2 && w >= 2 ? hatching(x, y, w, h) : "";
 }
 
 /**
@@ -719,7 +891,10 @@ export interface HeatMap {
  */
 export function heatMap(plot: HeatMap): string {
   const width = plot.width ?? 720;
-  const height = plot.height ?? 380;
+  // A title wrapped on a narrow map pushes the map down, never over it.
+  const extra = titleExtra(plot.title, width);
+  const height = (plot.height ?? 380) + extra;
+  const top = MARGIN.top + extra;
   const right = MARGIN.right + 66;
   let lowest = Infinity, highest = -Infinity;
   for (const col of plot.z) {
@@ -732,7 +907,7 @@ export function heatMap(plot: HeatMap): string {
   }
   const domain = plot.zDomain ?? [Math.max(lowest, highest - 50), highest];
   const x = scaleLinear().domain([0, plot.x.length]).range([MARGIN.left, width - right]);
-  const y = scaleLinear().domain([0, plot.y.length]).range([height - MARGIN.bottom, MARGIN.top]);
+  const y = scaleLinear().domain([0, plot.y.length]).range([height - MARGIN.bottom, top]);
   // What the report's script needs to read a cell under the pointer: the axes' first and last
   // cell centres, the grid size, and the colour bar's range and ramp (a colour names its value,
   // as the ramp is monotone in lightness).
@@ -755,7 +930,7 @@ export function heatMap(plot: HeatMap): string {
     x(plot.x.length - 0.5),
   ]);
   // A small grid of categories (mode numbers) is labelled cell by cell, a large one by ticks.
-  const xTicks = plot.values === true ? plot.x : xs.ticks(8);
+  const xTicks = plot.values === true ? plot.x : xs.ticks(width < LEGEND_BESIDE_MIN_WIDTH ? 5 : 8);
   xTicks.forEach((t, i) => {
     const at = plot.values === true ? x(i + 0.5) : xs(t);
     parts.push(
@@ -780,13 +955,13 @@ export function heatMap(plot: HeatMap): string {
   const barX = width - right + 10;
   const zs = scaleLinear().domain(domain as [number, number]).range([
     height - MARGIN.bottom,
-    MARGIN.top,
+    top,
   ]);
   for (let k = 0; k < 40; k++) {
-    const y0 = MARGIN.top + ((height - MARGIN.bottom - MARGIN.top) * k) / 40;
+    const y0 = top + ((height - MARGIN.bottom - top) * k) / 40;
     parts.push(
       `<rect x="${barX}" y="${y0.toFixed(1)}" width="14" height="${
-        ((height - MARGIN.bottom - MARGIN.top) / 40 + 0.5).toFixed(1)
+        ((height - MARGIN.bottom - top) / 40 + 0.5).toFixed(1)
       }" fill="${mapColour(1 - k / 40)}"/>`,
     );
   }
@@ -796,7 +971,7 @@ export function heatMap(plot: HeatMap): string {
   // The colour bar's title runs up beside its tick labels, so a long unit fits the margin.
   parts.push(
     `<text transform="translate(${width - 6} ${
-      (height - MARGIN.bottom + MARGIN.top) / 2
+      (height - MARGIN.bottom + top) / 2
     }) rotate(-90)" text-anchor="middle" fill="#22313f">${escapeXml(plot.zLabel)}</text>`,
   );
   for (const line of plot.lines ?? []) parts.push(overlayLine(line, xs, ys));
@@ -814,7 +989,7 @@ export function heatMap(plot: HeatMap): string {
       }
     });
   }
-  parts.push(plotFrame({ width, height, right, xLabel: plot.xLabel, yLabel: plot.yLabel }));
+  parts.push(plotFrame({ width, height, right, top, xLabel: plot.xLabel, yLabel: plot.yLabel }));
   return frame(width, height, plot.title, parts.join("\n"));
 }
 
