@@ -27,6 +27,7 @@ import {
   MANIFEST_FILE,
   outputFileName,
   outputKeys,
+  sideOutputNote,
 } from "./campaign_paths.ts";
 export { MANIFEST_FILE } from "./campaign_paths.ts";
 import { realPathOf } from "../io/output_paths.ts";
@@ -687,7 +688,13 @@ function campaignPathProblems(
   ];
   for (const step of steps) {
     for (const [key, path] of Object.entries(step.outputs)) {
-      writes.push({ path, who: `step "${step.id}" (${key})`, where: `${step.where}.id` });
+      const why = sideOutputNote(step.id, key);
+      writes.push({
+        path,
+        who: `step "${step.id}" (${key})`,
+        where: `${step.where}.id`,
+        ...(why !== undefined ? { why } : {}),
+      });
     }
   }
   if (plan.report !== undefined) {
