@@ -42,8 +42,8 @@ export async function planCommandTable(): Promise<Readonly<Record<string, PlanCo
  * import { z } from "npm:zod@4.6.7";
  * const spec = { kind: { type: "string" as const }, block: { type: "string" as const } };
  * const schema = z.strictObject({ kind: z.enum(["psd", "rms"]).optional(), block: z.string().optional() });
- * const [p] = optionProblems(["--kind", "rsm"], spec, schema);
- * if (p.option !== "kind" || p.message !== 'unknown value "rsm"; did you mean "rms"? (allowed: psd, rms)') throw new Error();
+ * const [p] = optionProblems(["--kind", "rm"], spec, schema);
+ * if (p.option !== "kind" || p.message !== 'unknown value "rm"; did you mean "rms"? (allowed: psd, rms)') throw new Error();
  * ```
  */
 export function optionProblems(
