@@ -346,7 +346,12 @@ function checkSteps(
     return usable;
   };
   /** The command's own check of the arguments, each problem at its option's key path. */
-  const check = (where: string, command: string, argv: string[]) => {
+  const check = (
+    where: string,
+    command: string,
+    argv: string[],
+    given: ReadonlySet<string> = new Set(),
+  ) => {
     const c = Object.hasOwn(commands, command) ? commands[command] : undefined;
     if (c === undefined) {
       note(`${where}.command`, `unknown command "${command}"`);
@@ -364,6 +369,8 @@ function checkSteps(
       }
     }
     for (const p of found) {
+      // An option the runner gives from a reference that failed: that failure is named already.
+      if (p.option !== undefined && given.has(p.option)) continue;
       note(p.option !== undefined ? `${where}.options.${p.option}` : `${where}.options`, p.message);
     }
   };
@@ -389,6 +396,8 @@ function checkSteps(
     const needs: string[] = [];
     const options = usableOptions(a.options, a.command, where);
     const frfSource = "frf or hammer analysis";
+    // Options the runner would give from references that failed (named there, not again).
+    const withheld = new Set<string>();
     each(() => {
       if (a.command === "modal") {
         const sources = a.inputs ?? (a.input !== undefined ? [a.input] : []);
@@ -462,10 +471,10 @@ function checkSteps(
               "an output folder whose path holds a comma cannot list transfers",
             );
           }
-          if (files.length > 0) {
+          if (files.length > 0 && files.length === sources.length) {
             argv.push("--transfer", files.join(","));
             inputs.push(...files);
-          }
+          } else withheld.add("transfer");
         }
         if (a.recording === undefined) {
           fail(`${where}.recording`, `${a.command} needs a recording`);
@@ -505,7 +514,7 @@ function checkSteps(
     }
     argv.push(...optionsToArgv(options));
     for (const [key, path] of Object.entries(outputs)) argv.push(`--${key}`, path);
-    check(where, a.command, argv);
+    check(where, a.command, argv, withheld);
     // A step whose id another step has writes nothing of its own: no second clash on its files.
     if (unique) {
       steps.push({

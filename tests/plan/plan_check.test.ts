@@ -190,6 +190,30 @@ describe("what each problem says", () => {
     ]);
   });
 
+  test("a paths step whose transfer is misspelt: no follow-on about the --transfer the runner gives", async () => {
+    const lines = await problemsOf("paths_ref", {
+      recordings,
+      analyses: [
+        {
+          id: "mount_frf",
+          command: "frf",
+          recording: "road",
+          options: { input: "mic", outputs: "mic" },
+        },
+        {
+          id: "paths",
+          command: "paths",
+          recording: "road",
+          inputs: ["mount_fr"],
+          options: { references: "mic", target: "mic" },
+        },
+      ],
+    });
+    expect(lines).toEqual([
+      'plan key analyses[1].inputs[0]: "mount_fr" is not an earlier frf or hammer analysis: no step has this id; did you mean "mount_frf"?',
+    ]);
+  });
+
   test("two bad options of one step are both named", async () => {
     const lines = await problemsOf("two_options", {
       recordings,
