@@ -146,6 +146,7 @@ describe("what each problem says", () => {
         { id: "psd", command: "spectrum", recording: "road" },
         { id: "psd_modes", command: "damping", input: "psd" },
       ],
+      comparisons: [{ id: "c", test: "bracket_fr", simulation: { file: "road.csv" } }],
       targets: [
         {
           id: "t",
@@ -159,6 +160,7 @@ describe("what each problem says", () => {
       'plan key analyses[1].input: "bracket_frq" is not an earlier frf or hammer analysis: no step has this id; did you mean "bracket_frf"?',
       'plan key analyses[2].input: "late_frf" is not an earlier frf or hammer analysis: it comes later in the plan, and a step takes only earlier steps\' results',
       'plan key analyses[5].input: "psd" is not an earlier frf or hammer analysis: it is a spectrum step',
+      'plan key comparisons[0].test: no analysis "bracket_fr"; did you mean "bracket_frf"?',
       'plan key targets[0].of.analysis: no analysis "bracket_mode"; did you mean "bracket_modes"?',
     ]);
   });
