@@ -11,7 +11,7 @@ import process from "node:process";
 import { z } from "npm:zod@4.6.7";
 import { calibrateMicrophone } from "../lib/acoustics/calibration.ts";
 import { QuiverError } from "../lib/errors.ts";
-import { formatNumber } from "../lib/format_number.ts";
+import { formatFixed, formatNumber } from "../lib/format_number.ts";
 import { writeFileAtomic } from "../lib/io/atomic_write.ts";
 import { type ChannelSetup, parseChannelSetup } from "../lib/io/channel_setup.ts";
 import { openRecordingStream } from "../lib/io/recording_stream.ts";
@@ -162,4 +162,34 @@ export async function run(argv: readonly string[]): Promise<void> {
       } mV/Pa` +
       `${target !== undefined ? ` (written to ${target})` : ""}\n`,
   );
+  toStderr(`${values.channel}: ${sensitivityChange(entry, result.sensitivityMvPerPa)}\n`);
+}
+
+/**
+ * The new sensitivity beside the one the set-up held before, and the change
+ * in dB: 20·lg(new/old), a ratio of field quantities (mV/Pa), as IEC 60027-3
+ * defines the decibel for them. Without an old sensitivity in mV/Pa, says so.
+ *
+ * @example
+ * ```ts
+ * import { sensitivityChange } from "./calibrate.ts";
+ * const line = sensitivityChange({ unit: "Pa", sensitivity_mv_per_unit: 50 }, 100);
+ * if (line !== "sensitivity was 50.0000 mV/Pa, now 100.000 mV/Pa: +6.02 dB") throw new Error();
+ * ```
+ */
+export function sensitivityChange(
+  before: { unit?: string; sensitivity_mv_per_unit?: number },
+  nowMvPerPa: number,
+): string {
+  const now = `now ${nowMvPerPa.toPrecision(6)} mV/Pa`;
+  const old = before.sensitivity_mv_per_unit;
+  if (old === undefined) return `the set-up had no sensitivity for this channel; ${now}`;
+  if (before.unit !== "Pa") {
+    return `sensitivity was ${old.toPrecision(6)} mV per ${
+      before.unit === undefined || before.unit === "" ? "unit (no unit given)" : before.unit
+    }, not per Pa, so no change in dB is given; ${now}`;
+  }
+  const db = 20 * Math.log10(nowMvPerPa / old);
+  const signed = `${db >= 0 ? "+" : "-"}${formatFixed(Math.abs(db), 2)} dB`;
+  return `sensitivity was ${old.toPrecision(6)} mV/Pa, ${now}: ${signed}`;
 }

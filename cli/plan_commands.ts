@@ -7,9 +7,11 @@
  *
  * @module
  */
-import type { PlanCommand } from "../lib/plan/runner.ts";
+import { parseArgs } from "node:util";
+import type { z } from "npm:zod@4.6.7";
+import type { PlanCommand, PlanOptionProblem } from "../lib/plan/runner.ts";
 import { PLAN_COMMANDS } from "../lib/plan/schema.ts";
-import { parseCommandArgs } from "./args.ts";
+import { COMMON_OPTIONS, nearestName, type OptionSpec, parseCommandArgs } from "./args.ts";
 import { loadCommands } from "./commands.ts";
 
 /** The plan runner's command table, with the modules of the plan's commands loaded. */
@@ -21,7 +23,76 @@ export async function planCommandTable(): Promise<Readonly<Record<string, PlanCo
     return [name, {
       validate: (argv: readonly string[]) =>
         void parseCommandArgs(argv, command.options, command.schema),
+      problems: (argv: readonly string[]) => optionProblems(argv, command.options, command.schema),
+      optionNames: Object.keys(command.options),
       run: command.run,
     }];
   }));
+}
+
+/**
+ * Every problem the command's own schema finds in `argv`, one per option, so
+ * that a plan step with two bad options gets both named at their key paths;
+ * a value outside a list of names gets the allowed names and the nearest.
+ * When the values pass, the command's full check (outputs, inputs) runs.
+ *
+ * @example
+ * ```ts
+ * import { optionProblems } from "./plan_commands.ts";
+ * import { z } from "npm:zod@4.6.7";
+ * const spec = { kind: { type: "string" as const }, block: { type: "string" as const } };
+ * const schema = z.strictObject({ kind: z.enum(["psd", "rms"]).optional(), block: z.string().optional() });
+ * const [p] = optionProblems(["--kind", "rm"], spec, schema);
+ * if (p.option !== "kind" || p.message !== 'unknown value "rm"; did you mean "rms"? (allowed: psd, rms)') throw new Error();
+ * ```
+ */
+export function optionProblems(
+  argv: readonly string[],
+  spec: OptionSpec,
+  schema: z.ZodType,
+): PlanOptionProblem[] {
+  const whole = (): PlanOptionProblem[] => {
+    try {
+      parseCommandArgs(argv, spec, schema);
+      return [];
+    } catch (error) {
+      const message = error instanceof Error ? error.message : String(error);
+      return [{ option: /--([a-z0-9-]+)/i.exec(message)?.[1], message }];
+    }
+  };
+  let values: Record<string, unknown>;
+  try {
+    const parsed = parseArgs({
+      args: [...argv],
+      options: { ...COMMON_OPTIONS, ...spec },
+      allowPositionals: true,
+      strict: true,
+    });
+    const { help: _help, debug: _debug, ...rest } = parsed.values;
+    values = rest;
+  } catch {
+    return whole(); // the syntax itself: the command's own words
+  }
+  const result = schema.safeParse(values);
+  if (result.success) return whole();
+  return result.error.issues.map((issue) => {
+    const option = issue.path.length > 0 ? String(issue.path[0]) : undefined;
+    const given = option !== undefined && Object.hasOwn(values, option)
+      ? values[option]
+      : undefined;
+    if (option !== undefined && given === undefined) {
+      return { option, message: `--${option} is required` };
+    }
+    if (issue.code === "invalid_value" && typeof given === "string" && issue.values.length > 1) {
+      const allowed = issue.values.map(String);
+      const near = nearestName(given, allowed);
+      return {
+        option,
+        message: `unknown value "${given}"${
+          near !== undefined ? `; did you mean "${near}"?` : ""
+        } (allowed: ${allowed.join(", ")})`,
+      };
+    }
+    return { option, message: issue.message };
+  });
 }

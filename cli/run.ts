@@ -13,7 +13,7 @@ import { parseShard } from "../lib/plan/shards.ts";
 import { slurmScript } from "../lib/plan/slurm.ts";
 import { fileURLToPath } from "node:url";
 import { resolve } from "node:path";
-import { integerOption, parseCommandArgs, usageError } from "./args.ts";
+import { integerOption, nearestName, parseCommandArgs, usageError } from "./args.ts";
 import { option, shapeOf, specOf } from "./option_table.ts";
 import { TARGETS_NOT_MET_EXIT } from "./exit_codes.ts";
 import { withStderrLabel } from "./terminal.ts";
@@ -110,7 +110,7 @@ export async function run(argv: readonly string[]): Promise<void> {
   if (values["slurm-script"] !== undefined) {
     // The script is run later, on another machine: a plan that cannot be read or is not valid
     // is refused now rather than found by every shard.
-    await loadPlan(planFile);
+    await loadPlan(planFile, nearestName);
     process.stdout.write(slurmScript({
       shards: values["slurm-script"],
       plan: resolve(planFile),
@@ -138,6 +138,7 @@ export async function run(argv: readonly string[]): Promise<void> {
       commands,
       report: writeReport,
       jobs,
+      nearest: nearestName,
       requireTargets: values["require-targets"] === true,
       ...(shard !== undefined ? { shard } : {}),
       // Every line a step writes carries its id, so parallel steps' logs stay apart.

@@ -113,6 +113,31 @@ export interface CampaignWrite {
   readonly path: string;
   readonly who: string;
   readonly where: string;
+  /**
+   * Why the file has its name, when that is not plain from `who`: a side
+   * output's name, which another step's id can equal (see {@linkcode sideOutputNote}).
+   */
+  readonly why?: string;
+}
+
+/**
+ * Why a side output has its name: `the map side output of step "ru" is
+ * named ru_map.json`. Step ids may hold `_`, so a step `ru_map` writes the
+ * same `ru_map.json`; a clash names this, so that the user sees which step
+ * to rename.
+ *
+ * @example
+ * ```ts
+ * import { sideOutputNote } from "./campaign_paths.ts";
+ * const why = sideOutputNote("ru", "map-out");
+ * if (why !== 'the map side output of step "ru" is named ru_map.json (side outputs are named <step id>_<part>)') throw new Error();
+ * ```
+ */
+export function sideOutputNote(id: string, key: string): string | undefined {
+  if (key === "out") return undefined;
+  return `the ${key.replace(/-out$/, "")} side output of step "${id}" is named ${
+    outputFileName(id, key)
+  } (side outputs are named <step id>_<part>)`;
 }
 
 /** A file the plan reads, and which key of the plan names it. */
@@ -191,9 +216,12 @@ export function checkCampaignPaths(
     }
     const other = written.get(real);
     if (other !== undefined) {
+      const why = other.why ?? write.why;
       problems.push([
         write.where,
-        `${write.who} would write ${write.path}, which ${other.who} writes too`,
+        `${write.who} would write ${write.path}, which ${other.who} writes too${
+          why !== undefined ? `: ${why}; give one of the two steps another id` : ""
+        }`,
       ]);
       continue;
     }

@@ -27,6 +27,7 @@ import {
   MANIFEST_FILE,
   outputFileName,
   outputKeys,
+  sideOutputNote,
 } from "./campaign_paths.ts";
 export { MANIFEST_FILE } from "./campaign_paths.ts";
 import { realPathOf } from "../io/output_paths.ts";
@@ -40,14 +41,39 @@ import { QuiverError } from "../errors.ts";
 import { sha256Hex } from "../io/table_file.ts";
 import { writeFileAtomic } from "../io/atomic_write.ts";
 import { QUIVER_VERSION } from "../version.ts";
-import { keyPath, optionsToArgv, type Plan, planSchema } from "./schema.ts";
+import {
+  didYouMean,
+  draftOfPlan,
+  type Nearest,
+  optionsToArgv,
+  type OptionValue,
+  type Plan,
+  PLAN_COMMANDS,
+  type PlanDraft,
+  readPlanJson,
+} from "./schema.ts";
+export type { Nearest } from "./schema.ts";
 import { createProgress, type Progress } from "./progress.ts";
 import { evaluateTargets } from "./target_eval.ts";
+
+/** One problem a command finds in a step's arguments: the option (without dashes) and why. */
+export interface PlanOptionProblem {
+  /** The option at fault; undefined for a problem of several options or of none. */
+  readonly option?: string;
+  readonly message: string;
+}
 
 /** What the runner needs of a command: a dry check of its arguments, and a run. */
 export interface PlanCommand {
   /** Parses and validates `argv` as the command would; throws on bad options. */
   validate(argv: readonly string[]): void;
+  /**
+   * Every problem of `argv`, one per option, none when it would run; when
+   * absent, `validate`'s first complaint is used.
+   */
+  problems?(argv: readonly string[]): PlanOptionProblem[];
+  /** The command's option names (without dashes), to name an unknown one; absent: not checked. */
+  readonly optionNames?: readonly string[];
   /** Runs the command with `argv`. */
   run(argv: readonly string[]): Promise<void>;
 }
@@ -65,8 +91,8 @@ export interface PlanStep {
   readonly where: string;
 }
 
-/** Reads and validates a plan file's JSON against the schema. */
-export async function loadPlan(path: string): Promise<{ plan: Plan; text: string }> {
+/** Reads a plan file's JSON (a usage error when it cannot be read or is not JSON). */
+async function readPlanFile(path: string): Promise<{ json: unknown; text: string }> {
   let text: string;
   try {
     assertRegularFile(path, "plan");
@@ -75,9 +101,8 @@ export async function loadPlan(path: string): Promise<{ plan: Plan; text: string
     if (error instanceof QuiverError) throw error;
     throw new QuiverError("cannot read the plan: no such file", { file: resolve(path) }, "usage");
   }
-  let json: unknown;
   try {
-    json = JSON.parse(text);
+    return { json: JSON.parse(text), text };
   } catch (error) {
     throw new QuiverError(
       `the plan is not valid JSON: ${(error as Error).message}`,
@@ -85,29 +110,82 @@ export async function loadPlan(path: string): Promise<{ plan: Plan; text: string
       "usage",
     );
   }
-  const parsed = planSchema.safeParse(json);
-  if (!parsed.success) {
-    throw planProblems(
-      parsed.error.issues.map((issue) => {
-        const path_ = keyPath(issue.path);
-        const hint = issue.code === "unrecognized_keys" ? ` (${issue.keys.join(", ")})` : "";
-        return `plan key ${path_ === "" ? "(top level)" : path_}: ${issue.message}${hint}`;
-      }),
-      path,
-    );
-  }
-  return { plan: parsed.data, text };
 }
 
-/** Thrown inside plan validation to skip the rest of one item once a problem is noted. */
+/**
+ * Reads and validates a plan file's JSON against the schema; every schema
+ * problem is named with its key path and what was expected (`nearest`
+ * suggests names). The checks of references, files and options are
+ * {@linkcode checkPlan}'s.
+ */
+export async function loadPlan(
+  path: string,
+  nearest?: Nearest,
+): Promise<{ plan: Plan; text: string }> {
+  const { json, text } = await readPlanFile(path);
+  const { plan, problems } = readPlanJson(json, nearest);
+  if (plan === undefined) throw planProblems(problems, path);
+  return { plan, text };
+}
+
+/**
+ * Reads a plan file and checks all of it before any work: the schema, the
+ * references between steps, recordings and targets, every input file, each
+ * step's options against its command's own schema, and every path the
+ * campaign writes. All problems are named at once, each with its key path
+ * and what is allowed (the nearest name when `nearest` finds one), and none
+ * follows from another: an item that fails its schema, or a step with a bad
+ * option, still counts as there for the references to it.
+ *
+ * @throws {QuiverError} (usage) naming every problem.
+ */
+export async function checkPlan(
+  path: string,
+  outDir: string,
+  commands: Readonly<Record<string, PlanCommand>>,
+  { also = [], nearest }: { also?: readonly string[]; nearest?: Nearest } = {},
+): Promise<{ plan: Plan; text: string; steps: PlanStep[] }> {
+  const { json, text } = await readPlanFile(path);
+  const { plan, draft, problems } = readPlanJson(json, nearest);
+  const checked = checkSteps(draft, resolve(path), outDir, commands, also, nearest);
+  const all = [...problems, ...checked.problems];
+  if (plan === undefined || all.length > 0) throw planProblems(all, path);
+  return { plan, text, steps: checked.steps };
+}
+
+/** Thrown inside plan validation to skip the rest of one check once a problem is noted. */
 const SKIP = Symbol("skip");
 
-/** One usage error naming every problem of a plan, one per line after the first. */
-function planProblems(problems: readonly string[], file: string): QuiverError {
+/** Where a key path stands in the plan: its section, then its index, for sorting problems. */
+function planOrder(where: string): [number, number] {
+  const sections = [
+    "(top level)",
+    "quiver_plan",
+    "title",
+    "description",
+    "recordings",
+    "analyses",
+    "comparisons",
+    "targets",
+    "require_targets",
+    "report",
+  ];
+  const section = /^[a-z_]+/.exec(where)?.[0] ?? where;
+  const rank = sections.indexOf(section);
+  const index = Number(/^[a-z_]+\[(\d+)\]/.exec(where)?.[1] ?? -1);
+  return [rank < 0 ? sections.length : rank, index];
+}
+
+/** One usage error naming every problem of a plan, one per line after the first, in plan order. */
+function planProblems(problems: readonly [string, string][], file: string): QuiverError {
+  const sorted = problems.map((p, k) => ({ p, k, o: planOrder(p[0]) })).sort((a, b) =>
+    a.o[0] - b.o[0] || a.o[1] - b.o[1] || a.k - b.k
+  );
+  const lines = sorted.map(({ p }) => `plan key ${p[0]}: ${p[1]}`);
   return new QuiverError(
-    problems.length === 1
-      ? problems[0]
-      : `the plan has ${problems.length} problems:\n  ${problems.join("\n  ")}`,
+    lines.length === 1
+      ? lines[0]
+      : `the plan has ${lines.length} problems:\n  ${lines.join("\n  ")}`,
     { file },
     "usage",
   );
@@ -118,7 +196,7 @@ function planProblems(problems: readonly string[], file: string): QuiverError {
  * references, input files, every step's options and every path the campaign
  * writes (`checkCampaignPaths`; `also` names files written besides the
  * manifest, the steps' outputs and the report, such as a shard's manifest).
- * Throws before any work.
+ * Throws before any work, naming every problem.
  */
 export function planSteps(
   plan: Plan,
@@ -126,16 +204,44 @@ export function planSteps(
   outDir: string,
   commands: Readonly<Record<string, PlanCommand>>,
   also: readonly string[] = [],
+  nearest?: Nearest,
 ): PlanStep[] {
+  const { steps, problems } = checkSteps(
+    draftOfPlan(plan),
+    planFile,
+    outDir,
+    commands,
+    also,
+    nearest,
+  );
+  if (problems.length > 0) throw planProblems(problems, planFile);
+  return steps;
+}
+
+/** The option names a runner gives itself or refuses: not offered as suggestions. */
+function isRunnerOption(name: string): boolean {
+  return name === "out" || name === "format" || name.endsWith("-out") || name === "help" ||
+    name === "debug";
+}
+
+/** The checks of {@linkcode planSteps} on a draft: the steps, and every problem found. */
+function checkSteps(
+  draft: PlanDraft,
+  planFile: string,
+  outDir: string,
+  commands: Readonly<Record<string, PlanCommand>>,
+  also: readonly string[],
+  nearest: Nearest | undefined,
+): { steps: PlanStep[]; problems: [string, string][] } {
   // Every problem is collected, so that one run of validation names them all.
-  const problems: string[] = [];
+  const problems: [string, string][] = [];
   const fail = (where: string, detail: string): never => {
-    problems.push(`plan key ${where}: ${detail}`);
+    problems.push([where, detail]);
     throw SKIP;
   };
   // Notes a problem and goes on, so that every problem of one item is named.
   const note = (where: string, detail: string) => {
-    problems.push(`plan key ${where}: ${detail}`);
+    problems.push([where, detail]);
   };
   const each = (check: () => void) => {
     try {
@@ -147,10 +253,16 @@ export function planSteps(
   const base = dirname(planFile);
   const at = (p: string) => (isAbsolute(p) ? p : join(base, p));
   const steps: PlanStep[] = [];
-  const known = new Map<string, string>(); // id → command
-  // Plan keys are looked up as own properties only: a recording called "toString" is a recording.
-  const recordingOf = (name: string) =>
-    Object.hasOwn(plan.recordings, name) ? plan.recordings[name] : undefined;
+  // id → its command (undefined when the step's own entry is broken) and where it stands.
+  const known = new Map<string, { command: string | undefined; where: string }>();
+  const allIds = new Set<string>();
+  for (const list of [draft.analyses, draft.comparisons]) {
+    for (const item of list) {
+      const id = item.ok ? item.value.id : item.id;
+      if (id !== undefined) allIds.add(id);
+    }
+  }
+  const recordingNames = [...draft.recordings.keys(), ...draft.brokenRecordings];
   // An input must be a regular file: a FIFO or /dev/zero would hang the hash that records it.
   const inputFile = (path: string, shown: string, where: string) => {
     let stats;
@@ -163,7 +275,7 @@ export function planSteps(
       fail(where, `${shown} is ${fileKind(stats!)}; an input must be a regular file`);
     }
   };
-  for (const [name, rec] of Object.entries(plan.recordings)) {
+  for (const [name, rec] of draft.recordings) {
     each(() => {
       inputFile(at(rec.file), rec.file, `recordings.${name}.file`);
     });
@@ -171,35 +283,130 @@ export function planSteps(
       if (rec.setup !== undefined) inputFile(at(rec.setup), rec.setup, `recordings.${name}.setup`);
     });
   }
-  const check = (where: string, command: string, argv: string[]) => {
+  /** Registers a step's id; false (and a problem) when an earlier step has it. */
+  const claimId = (id: string, command: string | undefined, where: string): boolean => {
+    const other = known.get(id);
+    if (other !== undefined) {
+      note(`${where}.id`, `"${id}" is used twice (${other.where}.id has it too): ids must differ`);
+      return false;
+    }
+    known.set(id, { command, where });
+    return true;
+  };
+  /**
+   * Whether `ref` names an earlier step whose command is one of `accept`;
+   * notes why not, except for a step whose own entry is broken (named already).
+   */
+  const earlier = (ref: string, where: string, accept: readonly string[], what: string) => {
+    const step = known.get(ref);
+    if (step === undefined) {
+      note(
+        where,
+        allIds.has(ref)
+          ? `"${ref}" is not an earlier ${what}: it comes later in the plan, and a step takes only earlier steps' results`
+          : `"${ref}" is not an earlier ${what}: no step has this id${
+            didYouMean(ref, [...known.keys()], nearest)
+          }`,
+      );
+      return false;
+    }
+    if (step.command === undefined) return false;
+    if (!accept.includes(step.command)) {
+      note(where, `"${ref}" is not an earlier ${what}: it is a ${step.command} step`);
+      return false;
+    }
+    return true;
+  };
+  /** The options the command will see: those refused or unknown are named and left out. */
+  const usableOptions = (
+    options: Readonly<Record<string, OptionValue>>,
+    command: string,
+    where: string,
+  ): Record<string, OptionValue> => {
+    const refused = refuseOutputOptions(options, where, note);
+    const names = Object.hasOwn(commands, command) ? commands[command].optionNames : undefined;
+    const usable: Record<string, OptionValue> = {};
+    for (const [key, value] of Object.entries(options)) {
+      if (refused.has(key)) continue;
+      if (names !== undefined && !names.includes(key)) {
+        const offered = names.filter((n) => !isRunnerOption(n));
+        const near = nearest?.(key, offered);
+        note(
+          `${where}.options.${key}`,
+          `${command} has no option "${key}"${
+            near !== undefined
+              ? `; did you mean "${near}"?`
+              : ` (its options: ${offered.join(", ")})`
+          }`,
+        );
+        continue;
+      }
+      usable[key] = value;
+    }
+    return usable;
+  };
+  /** The command's own check of the arguments, each problem at its option's key path. */
+  const check = (
+    where: string,
+    command: string,
+    argv: string[],
+    given: ReadonlySet<string> = new Set(),
+  ) => {
     const c = Object.hasOwn(commands, command) ? commands[command] : undefined;
-    if (c === undefined) fail(where, `unknown command "${command}"`);
-    try {
-      c!.validate(argv);
-    } catch (error) {
-      const message = error instanceof Error ? error.message : String(error);
-      const option = /--([a-z0-9-]+)/i.exec(message)?.[1];
-      fail(option !== undefined ? `${where}.options.${option}` : `${where}.options`, message);
+    if (c === undefined) {
+      note(`${where}.command`, `unknown command "${command}"`);
+      return;
+    }
+    let found: PlanOptionProblem[];
+    if (c.problems !== undefined) found = c.problems(argv);
+    else {
+      try {
+        c.validate(argv);
+        found = [];
+      } catch (error) {
+        const message = error instanceof Error ? error.message : String(error);
+        found = [{ option: /--([a-z0-9-]+)/i.exec(message)?.[1], message }];
+      }
+    }
+    for (const p of found) {
+      // An option the runner gives from a reference that failed: that failure is named already.
+      if (p.option !== undefined && given.has(p.option)) continue;
+      note(p.option !== undefined ? `${where}.options.${p.option}` : `${where}.options`, p.message);
     }
   };
-  plan.analyses.forEach((a, i) =>
+  draft.analyses.forEach((item, i) => {
+    const where = `analyses[${i}]`;
+    if (!item.ok) {
+      // Its own problems are named by the schema; it still holds its id.
+      if (item.id !== undefined) {
+        claimId(
+          item.id,
+          (PLAN_COMMANDS as readonly string[]).includes(item.command ?? "")
+            ? item.command
+            : undefined,
+          where,
+        );
+      }
+      return;
+    }
+    const a = item.value;
+    const unique = claimId(a.id, a.command, where);
+    const argv: string[] = [];
+    const inputs: string[] = [];
+    const needs: string[] = [];
+    const options = usableOptions(a.options, a.command, where);
+    const frfSource = "frf or hammer analysis";
+    // Options the runner would give from references that failed (named there, not again).
+    const withheld = new Set<string>();
     each(() => {
-      const where = `analyses[${i}]`;
-      if (known.has(a.id)) fail(`${where}.id`, `"${a.id}" is used twice`);
-      refuseOutputOptions(a.options, where, note);
-      const argv: string[] = [];
-      const inputs: string[] = [];
-      const needs: string[] = [];
       if (a.command === "modal") {
         const sources = a.inputs ?? (a.input !== undefined ? [a.input] : []);
         if (sources.length === 0) {
-          fail(`${where}.inputs`, "modal needs the ids of frf or hammer analyses");
+          note(`${where}.inputs`, "modal needs the ids of frf or hammer analyses");
         }
         sources.forEach((source, k) => {
-          const command = known.get(source);
-          if (command !== "frf" && command !== "hammer") {
-            fail(`${where}.inputs[${k}]`, `"${source}" is not an earlier frf or hammer analysis`);
-          }
+          const where_ = a.inputs !== undefined ? `${where}.inputs[${k}]` : `${where}.input`;
+          if (!earlier(source, where_, ["frf", "hammer"], frfSource)) return;
           const path = join(outDir, outputFileName(source, "out"));
           argv.push(path);
           inputs.push(path);
@@ -207,73 +414,81 @@ export function planSteps(
         });
         if (a.geometry !== undefined) {
           const file = at(a.geometry.file);
-          inputFile(file, a.geometry.file, `${where}.geometry.file`);
+          each(() => inputFile(file, a.geometry!.file, `${where}.geometry.file`));
           argv.push("--geometry", file);
           inputs.push(file);
         }
       } else if (a.command === "mac") {
-        if (a.input === undefined || known.get(a.input) !== "modal") {
-          fail(`${where}.input`, "mac needs the id of an earlier modal analysis");
+        if (a.input === undefined) {
+          note(`${where}.input`, "mac needs the id of an earlier modal analysis");
+        } else if (earlier(a.input, `${where}.input`, ["modal"], "modal analysis")) {
+          const shapes = join(outDir, outputFileName(a.input, "shapes-out"));
+          argv.push(shapes);
+          inputs.push(shapes);
+          needs.push(a.input);
         }
         if (a.simulation === undefined) {
-          fail(`${where}.simulation.file`, "mac needs the simulation's mode shapes");
+          note(`${where}.simulation.file`, "mac needs the simulation's mode shapes");
+        } else {
+          const sim = at(a.simulation.file);
+          each(() => inputFile(sim, a.simulation!.file, `${where}.simulation.file`));
+          argv.push(sim);
+          inputs.push(sim);
         }
-        const sim = at((a.simulation as { file: string }).file);
-        inputFile(sim, (a.simulation as { file: string }).file, `${where}.simulation.file`);
-        const shapes = join(outDir, outputFileName(a.input as string, "shapes-out"));
-        argv.push(shapes, sim);
-        inputs.push(shapes, sim);
         if (a.map !== undefined) {
           const map = at(a.map.file);
-          inputFile(map, a.map.file, `${where}.map.file`);
+          each(() => inputFile(map, a.map!.file, `${where}.map.file`));
           argv.push("--map", map);
           inputs.push(map);
         }
-        needs.push(a.input as string);
       } else if (a.command === "damping") {
         if (a.input === undefined) {
-          fail(`${where}.input`, "damping needs the id of an frf or hammer analysis");
+          note(`${where}.input`, "damping needs the id of an frf or hammer analysis");
+        } else if (earlier(a.input, `${where}.input`, ["frf", "hammer"], frfSource)) {
+          const path = join(outDir, outputFileName(a.input, "out"));
+          argv.push(path);
+          inputs.push(path);
+          needs.push(a.input);
         }
-        const source = known.get(a.input as string);
-        if (source !== "frf" && source !== "hammer") {
-          fail(`${where}.input`, `"${a.input}" is not an earlier frf or hammer analysis`);
-        }
-        const path = join(outDir, outputFileName(a.input as string, "out"));
-        argv.push(path);
-        inputs.push(path);
-        needs.push(a.input as string);
       } else {
         if (a.command === "paths") {
           const sources = a.inputs ?? [];
           if (sources.length === 0) {
-            fail(
+            note(
               `${where}.inputs`,
               "paths needs the ids of the frf or hammer analyses holding each path's transfer, one per reference",
             );
           }
-          const files = sources.map((source, k) => {
-            const command = known.get(source);
-            if (command !== "frf" && command !== "hammer") {
-              fail(`${where}.inputs[${k}]`, `"${source}" is not an earlier frf or hammer analysis`);
-            }
+          const files: string[] = [];
+          sources.forEach((source, k) => {
+            if (!earlier(source, `${where}.inputs[${k}]`, ["frf", "hammer"], frfSource)) return;
             needs.push(source);
-            return join(outDir, outputFileName(source, "out"));
+            files.push(join(outDir, outputFileName(source, "out")));
           });
           if (files.some((f) => f.includes(","))) {
-            fail(
+            note(
               `${where}.inputs`,
               "an output folder whose path holds a comma cannot list transfers",
             );
           }
-          argv.push("--transfer", files.join(","));
-          inputs.push(...files);
+          if (files.length > 0 && files.length === sources.length) {
+            argv.push("--transfer", files.join(","));
+            inputs.push(...files);
+          } else withheld.add("transfer");
         }
         if (a.recording === undefined) {
           fail(`${where}.recording`, `${a.command} needs a recording`);
         }
-        const rec = recordingOf(a.recording as string);
+        const name = a.recording as string;
+        if (draft.brokenRecordings.has(name)) return; // its entry's problems are named
+        const rec = draft.recordings.get(name);
         if (rec === undefined) {
-          fail(`${where}.recording`, `no recording "${a.recording}" in recordings`);
+          fail(
+            `${where}.recording`,
+            `no recording "${name}" in recordings${didYouMean(name, recordingNames, nearest)}${
+              recordingNames.length > 0 ? ` (recordings: ${recordingNames.join(", ")})` : ""
+            }`,
+          );
         }
         argv.push(at(rec!.file));
         inputs.push(at(rec!.file));
@@ -283,23 +498,25 @@ export function planSteps(
         }
         if (rec!.rate !== undefined) argv.push("--rate", String(rec!.rate));
         // The recording's slice; an analysis may narrow it with its own start/end, never widen it.
-        checkSlice(a.options, rec!, a.recording as string, where, fail);
-        if (rec!.start !== undefined && !Object.hasOwn(a.options, "start")) {
+        checkSlice(options, rec!, name, where, fail);
+        if (rec!.start !== undefined && !Object.hasOwn(options, "start")) {
           argv.push("--start", String(rec!.start));
         }
-        if (rec!.end !== undefined && !Object.hasOwn(a.options, "end")) {
+        if (rec!.end !== undefined && !Object.hasOwn(options, "end")) {
           argv.push("--end", String(rec!.end));
         }
       }
-      const outputs: Record<string, string> = {};
-      const several = a.command === "frf" && severalNames(a.options.inputs);
-      for (const key of outputKeys(a.command, several)) {
-        outputs[key] = join(outDir, outputFileName(a.id, key));
-      }
-      argv.push(...optionsToArgv(a.options));
-      for (const [key, path] of Object.entries(outputs)) argv.push(`--${key}`, path);
-      check(where, a.command, argv);
-      known.set(a.id, a.command);
+    });
+    const outputs: Record<string, string> = {};
+    const several = a.command === "frf" && severalNames(options.inputs);
+    for (const key of outputKeys(a.command, several)) {
+      outputs[key] = join(outDir, outputFileName(a.id, key));
+    }
+    argv.push(...optionsToArgv(options));
+    for (const [key, path] of Object.entries(outputs)) argv.push(`--${key}`, path);
+    check(where, a.command, argv, withheld);
+    // A step whose id another step has writes nothing of its own: no second clash on its files.
+    if (unique) {
       steps.push({
         id: a.id,
         kind: "analysis",
@@ -310,33 +527,46 @@ export function planSteps(
         needs,
         where,
       });
-    })
-  );
-  plan.comparisons.forEach((c, i) =>
-    each(() => {
-      const where = `comparisons[${i}]`;
-      if (known.has(c.id)) fail(`${where}.id`, `"${c.id}" is used twice`);
-      if (!known.has(c.test)) fail(`${where}.test`, `no analysis "${c.test}"`);
-      if (known.get(c.test) === "compare") {
-        fail(
-          `${where}.test`,
-          `"${c.test}" is a comparison; comparison "${c.id}" must take the curve of an analysis`,
-        );
-      }
-      refuseOutputOptions(c.options, where, note);
-      const sim = at(c.simulation.file);
-      inputFile(sim, c.simulation.file, `${where}.simulation.file`);
-      const test = join(outDir, outputFileName(c.test, "out"));
-      const outputs: Record<string, string> = {};
-      for (const key of outputKeys("compare", false)) {
-        outputs[key] = join(outDir, outputFileName(c.id, key));
-      }
-      const argv = [test, sim, ...optionsToArgv(c.options)];
-      if (c.test_column !== undefined) argv.push("--test-column", c.test_column);
-      if (c.simulation.column !== undefined) argv.push("--sim-column", c.simulation.column);
-      for (const [key, path] of Object.entries(outputs)) argv.push(`--${key}`, path);
-      check(where, "compare", argv);
-      known.set(c.id, "compare");
+    }
+  });
+  draft.comparisons.forEach((item, i) => {
+    const where = `comparisons[${i}]`;
+    if (!item.ok) {
+      if (item.id !== undefined) claimId(item.id, "compare", where);
+      return;
+    }
+    const c = item.value;
+    const unique = claimId(c.id, "compare", where);
+    const options = usableOptions(c.options, "compare", where);
+    const test = join(outDir, outputFileName(c.test, "out"));
+    const testKnown = known.get(c.test);
+    if (testKnown === undefined) {
+      note(
+        `${where}.test`,
+        `no analysis "${c.test}"${
+          allIds.has(c.test)
+            ? ": it comes later in the plan, and a comparison takes only earlier analyses"
+            : didYouMean(c.test, [...known.keys()], nearest)
+        }`,
+      );
+    } else if (testKnown.command === "compare") {
+      note(
+        `${where}.test`,
+        `"${c.test}" is a comparison; comparison "${c.id}" must take the curve of an analysis`,
+      );
+    }
+    const sim = at(c.simulation.file);
+    each(() => inputFile(sim, c.simulation.file, `${where}.simulation.file`));
+    const outputs: Record<string, string> = {};
+    for (const key of outputKeys("compare", false)) {
+      outputs[key] = join(outDir, outputFileName(c.id, key));
+    }
+    const argv = [test, sim, ...optionsToArgv(options)];
+    if (c.test_column !== undefined) argv.push("--test-column", c.test_column);
+    if (c.simulation.column !== undefined) argv.push("--sim-column", c.simulation.column);
+    for (const [key, path] of Object.entries(outputs)) argv.push(`--${key}`, path);
+    check(where, "compare", argv);
+    if (unique) {
       steps.push({
         id: c.id,
         kind: "comparison",
@@ -347,57 +577,68 @@ export function planSteps(
         needs: [c.test],
         where,
       });
-    })
-  );
-  plan.targets.forEach((t, i) =>
-    each(() => {
-      if (!known.has(t.of.analysis)) {
-        fail(`targets[${i}].of.analysis`, `no analysis "${t.of.analysis}"`);
-      }
-    })
-  );
-  each(() => {
-    for (const [where, detail] of campaignPathProblems(plan, planFile, outDir, steps, also)) {
-      problems.push(`plan key ${where}: ${detail}`);
     }
   });
-  if (problems.length > 0) throw planProblems(problems, planFile);
-  return steps;
+  const targetIds = new Map<string, string>();
+  draft.targets.forEach((item, i) => {
+    const where = `targets[${i}]`;
+    const id = item.ok ? item.value.id : item.id;
+    if (id !== undefined) {
+      const other = targetIds.get(id);
+      if (other !== undefined) {
+        note(
+          `${where}.id`,
+          `"${id}" is used twice (${other}.id has it too): target ids must differ`,
+        );
+      } else targetIds.set(id, where);
+    }
+    if (!item.ok) return;
+    const ref = item.value.of.analysis;
+    if (!known.has(ref)) {
+      note(
+        `${where}.of.analysis`,
+        `no analysis "${ref}"${didYouMean(ref, [...known.keys()], nearest)}`,
+      );
+    }
+  });
+  each(() => {
+    problems.push(...campaignPathProblems(draft, planFile, outDir, steps, also));
+  });
+  return { steps, problems };
 }
 
 /**
  * Options that would name a file the step writes (`out`, `format`, any
  * `*-out`), or a list entry holding a comma (which the command would read
- * as two entries while the runner counts one), are refused.
+ * as two entries while the runner counts one), are refused: named, and
+ * their keys returned so that the command's own check leaves them out.
  */
 function refuseOutputOptions(
   options: Readonly<Record<string, unknown>>,
   where: string,
   note: (where: string, detail: string) => void,
-): void {
-  let refused = false;
-  const fail = (where: string, detail: string) => {
-    note(where, detail);
-    refused = true;
-  };
+): Set<string> {
+  const refused = new Set<string>();
   for (const [key, value] of Object.entries(options)) {
     if (key === "out" || key === "format" || key.endsWith("-out")) {
-      fail(
+      note(
         `${where}.options.${key}`,
         "the plan runner names every file a step writes (from the step id): remove this option",
       );
+      refused.add(key);
     }
     if (Array.isArray(value)) {
       const k = value.findIndex((entry) => String(entry).includes(","));
       if (k >= 0) {
-        fail(
+        note(
           `${where}.options.${key}[${k}]`,
           `"${value[k]}" holds a comma: give each entry of the list on its own`,
         );
+        refused.add(key);
       }
     }
   }
-  if (refused) throw SKIP;
+  return refused;
 }
 
 /** A bound of an analysis's own slice, as a number; undefined when absent or not a number. */
@@ -444,7 +685,7 @@ function checkSlice(
  * comparison's simulation that is another comparison's result is named as such.
  */
 function campaignPathProblems(
-  plan: Plan,
+  plan: PlanDraft,
   planFile: string,
   outDir: string,
   steps: readonly PlanStep[],
@@ -456,7 +697,13 @@ function campaignPathProblems(
   ];
   for (const step of steps) {
     for (const [key, path] of Object.entries(step.outputs)) {
-      writes.push({ path, who: `step "${step.id}" (${key})`, where: `${step.where}.id` });
+      const why = sideOutputNote(step.id, key);
+      writes.push({
+        path,
+        who: `step "${step.id}" (${key})`,
+        where: `${step.where}.id`,
+        ...(why !== undefined ? { why } : {}),
+      });
     }
   }
   if (plan.report !== undefined) {
@@ -479,7 +726,9 @@ function campaignPathProblems(
     }
   }
   const clash = new Set<string>();
-  plan.comparisons.forEach((c, i) => {
+  plan.comparisons.forEach((item, i) => {
+    if (!item.ok) return;
+    const c = item.value;
     const other = comparisonOutputs.get(realPathOf(at(c.simulation.file)));
     if (other !== undefined) {
       clash.add(`comparisons[${i}].simulation.file`);
@@ -541,6 +790,8 @@ export interface RunOptions {
   progress?: Progress;
   /** Writes the report; called when the plan has a `report` section. */
   report?: (outDir: string, manifest: Manifest, plan: Plan) => Promise<string>;
+  /** Suggests the nearest name for a slip in the plan (cli/args.ts `nearestName`). Default: none. */
+  nearest?: Nearest;
   /** Steps run at once, each as soon as the steps it needs are done. Default 1. */
   jobs?: number;
   /** Unmet targets make the run exit with its own code, whatever the plan says. Default false. */
@@ -583,17 +834,13 @@ export interface RunOptions {
  */
 export async function runPlan(planFile: string, options: RunOptions): Promise<Manifest> {
   const started = new Date().toISOString();
-  const { plan, text } = await loadPlan(planFile);
   const outDir = resolve(options.outDir);
   const shard = options.shard;
   const manifestFile = shard !== undefined ? shardManifestName(shard) : MANIFEST_FILE;
-  const all = planSteps(
-    plan,
-    resolve(planFile),
-    outDir,
-    options.commands,
-    shard !== undefined ? [join(outDir, manifestFile)] : [],
-  );
+  const { plan, text, steps: all } = await checkPlan(planFile, outDir, options.commands, {
+    also: shard !== undefined ? [join(outDir, manifestFile)] : [],
+    ...(options.nearest !== undefined ? { nearest: options.nearest } : {}),
+  });
   // A shard runs its own steps only; the whole plan was validated above all the same.
   const shardOf = shard !== undefined ? assignShards(all, shard.count) : undefined;
   const steps = shardOf === undefined ? all : all.filter((_, i) => shardOf[i] === shard!.index);
@@ -611,7 +858,9 @@ export async function runPlan(planFile: string, options: RunOptions): Promise<Ma
         `run: the lock of a run that was killed (process ${lock.stale.pid}, started ${lock.stale.started}) was found and taken over\n`,
       );
     }
-    const inputs = new Set(planInputs(plan, resolve(planFile)).map((i) => realPathOf(i.path)));
+    const inputs = new Set(
+      planInputs(draftOfPlan(plan), resolve(planFile)).map((i) => realPathOf(i.path)),
+    );
     // What this run writes: a file there that is not provably the previous run's (a result
     // edited since, a file of the user's) is refused before anything is removed or written.
     const writes = steps.flatMap((s) => Object.values(s.outputs));
@@ -646,20 +895,24 @@ export async function runPlan(planFile: string, options: RunOptions): Promise<Ma
 }
 
 /** Every file the plan reads: the plan, recordings, set-ups, simulations, geometry, maps. */
-function planInputs(plan: Plan, planFile: string): CampaignInput[] {
+function planInputs(plan: PlanDraft, planFile: string): CampaignInput[] {
   const base = dirname(planFile);
   const at = (p: string) => (isAbsolute(p) ? p : join(base, p));
   const inputs: CampaignInput[] = [{ path: planFile, what: "the plan itself" }];
-  for (const [name, rec] of Object.entries(plan.recordings)) {
+  for (const [name, rec] of plan.recordings) {
     inputs.push({ path: at(rec.file), what: `recordings.${name}.file` });
     if (rec.setup !== undefined) {
       inputs.push({ path: at(rec.setup), what: `recordings.${name}.setup` });
     }
   }
-  plan.comparisons.forEach((c, i) => {
+  plan.comparisons.forEach((item, i) => {
+    if (!item.ok) return;
+    const c = item.value;
     inputs.push({ path: at(c.simulation.file), what: `comparisons[${i}].simulation.file` });
   });
-  plan.analyses.forEach((a, i) => {
+  plan.analyses.forEach((item, i) => {
+    if (!item.ok) return;
+    const a = item.value;
     if (a.simulation !== undefined) {
       inputs.push({ path: at(a.simulation.file), what: `analyses[${i}].simulation.file` });
     }

@@ -61,7 +61,7 @@ const optionValue = z.union([
   z.array(z.union([z.string(), z.number()])),
 ]);
 
-const recording = z.strictObject({
+const recordingSchema = z.strictObject({
   file: z.string().min(1),
   setup: z.string().min(1).optional(),
   rate: z.number().positive().optional(),
@@ -81,7 +81,7 @@ const optionName = z.string().regex(
   "an option name is the command's option without dashes, e.g. rpm-step",
 ).refine((name) => name !== "help" && name !== "debug", "help and debug are not plan options");
 
-const analysis = z.strictObject({
+const analysisSchema = z.strictObject({
   id,
   command: z.enum(PLAN_COMMANDS),
   recording: z.string().optional(),
@@ -101,7 +101,7 @@ const analysis = z.strictObject({
   options: z.record(optionName, optionValue).default({}),
 });
 
-const comparison = z.strictObject({
+const comparisonSchema = z.strictObject({
   id,
   test: z.string(),
   test_column: z.string().optional(),
@@ -139,7 +139,10 @@ const curveTarget = z.strictObject({
   unit: z.string().default(""),
   description: z.string().optional(),
   of: z.strictObject({ analysis: z.string(), channel: z.string() }),
-  points: z.array(z.tuple([z.number().positive(), z.number()])).min(2),
+  points: z.array(z.tuple([z.number().positive(), z.number()])).min(
+    2,
+    "a limit curve needs at least two points [Hz, value]",
+  ),
 });
 
 /**
@@ -157,10 +160,11 @@ export const planSchema = z.strictObject({
   quiver_plan: z.literal(1),
   title: z.string().min(1),
   description: z.string().optional(),
-  recordings: z.record(z.string(), recording),
-  analyses: z.array(analysis).min(1),
-  comparisons: z.array(comparison).default([]),
-  targets: z.array(z.union([valueTarget, curveTarget])).default([]),
+  recordings: z.record(z.string(), recordingSchema),
+  analyses: z.array(analysisSchema).min(1, "a plan needs at least one analysis"),
+  comparisons: z.array(comparisonSchema).default([]),
+  // Discriminated by `type`, so that a mistake inside a target is named, not a bare "Invalid input".
+  targets: z.array(z.discriminatedUnion("type", [valueTarget, curveTarget])).default([]),
   /** When true, a failed or unchecked target makes `run` exit with TARGETS_NOT_MET_EXIT. */
   require_targets: z.boolean().default(false),
   report: z.strictObject({
@@ -172,6 +176,9 @@ export const planSchema = z.strictObject({
     ).default("report.html"),
   }).optional(),
 });
+
+/** The value of an option in a plan: text, a number, a flag or a list. */
+export type OptionValue = z.infer<typeof optionValue>;
 
 /** A validated plan. */
 export type Plan = z.infer<typeof planSchema>;
@@ -209,11 +216,267 @@ export function keyPath(path: readonly PropertyKey[]): string {
  * ```
  */
 export function optionsToArgv(
-  options: Readonly<Record<string, z.infer<typeof optionValue>>>,
+  options: Readonly<Record<string, OptionValue>>,
 ): string[] {
   return Object.entries(options).flatMap(([key, value]) => {
     if (value === true) return [`--${key}`];
     if (value === false) return [];
     return [`--${key}`, Array.isArray(value) ? value.join(",") : String(value)];
   });
+}
+
+/** One recording of a plan. */
+export type PlanRecording = Plan["recordings"][string];
+
+/**
+ * The nearest known name to a slip, or undefined: the command line's
+ * `nearestName` (cli/args.ts), passed in because lib/ never imports cli/.
+ */
+export type Nearest = (name: string, known: readonly string[]) => string | undefined;
+
+/** ` did you mean "x"?` when `nearest` finds one, else "". */
+export function didYouMean(
+  name: string,
+  known: readonly string[],
+  nearest: Nearest | undefined,
+): string {
+  const near = nearest?.(name, known);
+  return near === undefined ? "" : `; did you mean "${near}"?`;
+}
+
+/** What each target type needs, for messages. */
+const TARGET_TYPES =
+  'type "min" or "max" checks one value (keys id, value, of: {analysis, quantity}; optional unit, description, of.channel, of.mode); ' +
+  'type "limit_curve" checks a spectrum against a curve (keys id, limit: "min" or "max", of: {analysis, channel}, points: [[Hz, value], …]; optional unit, description)';
+
+/** An item of a plan list that passed its schema, or what could be read of one that did not. */
+export type Drafted<T> =
+  | { readonly ok: true; readonly value: T }
+  | { readonly ok: false; readonly id?: string; readonly command?: string };
+
+/**
+ * A plan read as far as it goes: each recording, analysis, comparison and
+ * target that passes its own schema, and the id (and command) of each that
+ * does not, so that the checks after the schema still run on the rest and a
+ * reference to a broken item is no second problem.
+ */
+export interface PlanDraft {
+  readonly recordings: ReadonlyMap<string, PlanRecording>;
+  /** Recordings named in the plan whose entry is broken: references to them are not problems. */
+  readonly brokenRecordings: ReadonlySet<string>;
+  readonly analyses: readonly Drafted<PlanAnalysis>[];
+  readonly comparisons: readonly Drafted<PlanComparison>[];
+  readonly targets: readonly Drafted<PlanTarget>[];
+  /** The report section, when present and valid. */
+  readonly report: Plan["report"];
+}
+
+/**
+ * The draft of a plan that passed the schema (nothing broken).
+ *
+ * @example
+ * ```ts
+ * import { draftOfPlan, planSchema } from "./schema.ts";
+ * const plan = planSchema.parse({ quiver_plan: 1, title: "t", recordings: { r: { file: "r.csv" } },
+ *   analyses: [{ id: "s", command: "spectrum", recording: "r" }] });
+ * if (!draftOfPlan(plan).analyses[0].ok) throw new Error();
+ * ```
+ */
+export function draftOfPlan(plan: Plan): PlanDraft {
+  const ok = <T>(value: T): Drafted<T> => ({ ok: true, value });
+  return {
+    recordings: new Map(Object.entries(plan.recordings)),
+    brokenRecordings: new Set(),
+    analyses: plan.analyses.map(ok),
+    comparisons: plan.comparisons.map(ok),
+    targets: plan.targets.map(ok),
+    report: plan.report,
+  };
+}
+
+/** A plain JSON object (not an array, not null). */
+function isObject(value: unknown): value is Record<string, unknown> {
+  return typeof value === "object" && value !== null && !Array.isArray(value);
+}
+
+/**
+ * Reads a plan's JSON item by item: the whole plan when it passes the schema,
+ * else a draft of what passes and every schema problem as `[key path, detail]`,
+ * each naming what was expected (allowed values, keys, the nearest name).
+ *
+ * @example
+ * ```ts
+ * import { readPlanJson } from "./schema.ts";
+ * const { draft, problems } = readPlanJson({ quiver_plan: 1, title: "t", recordings: {},
+ *   analyses: [{ id: "a", command: "spectrun" }, { id: "b", command: "spectrum", recording: "r" }] });
+ * if (problems.length !== 1 || problems[0][0] !== "analyses[0].command") throw new Error();
+ * if (draft.analyses[0].ok || draft.analyses[0].id !== "a" || !draft.analyses[1].ok) throw new Error();
+ * ```
+ */
+export function readPlanJson(
+  json: unknown,
+  nearest?: Nearest,
+): { plan?: Plan; draft: PlanDraft; problems: [string, string][] } {
+  const parsed = planSchema.safeParse(json);
+  if (parsed.success) return { plan: parsed.data, draft: draftOfPlan(parsed.data), problems: [] };
+  const problems = parsed.error.issues.flatMap((issue) => issueProblems(issue, json, nearest));
+  const top = isObject(json) ? json : {};
+  const recordings = new Map<string, PlanRecording>();
+  const brokenRecordings = new Set<string>();
+  if (isObject(top.recordings)) {
+    for (const [name, entry] of Object.entries(top.recordings)) {
+      const r = recordingSchema.safeParse(entry);
+      if (r.success) recordings.set(name, r.data);
+      else brokenRecordings.add(name);
+    }
+  }
+  const items = <T>(list: unknown, schema: z.ZodType<T>): Drafted<T>[] =>
+    (Array.isArray(list) ? list : []).map((item): Drafted<T> => {
+      const r = schema.safeParse(item);
+      if (r.success) return { ok: true, value: r.data };
+      const raw = isObject(item) ? item : {};
+      return {
+        ok: false,
+        ...(typeof raw.id === "string" ? { id: raw.id } : {}),
+        ...(typeof raw.command === "string" ? { command: raw.command } : {}),
+      };
+    });
+  const report = planSchema.shape.report.safeParse(top.report);
+  return {
+    draft: {
+      recordings,
+      brokenRecordings,
+      analyses: items(top.analyses, analysisSchema),
+      comparisons: items(top.comparisons, comparisonSchema),
+      targets: items(top.targets, planSchema.shape.targets.unwrap().element),
+      report: report.success ? report.data : undefined,
+    },
+    problems,
+  };
+}
+
+/** The value at `path` in `json`, or undefined. */
+function valueAt(json: unknown, path: readonly PropertyKey[]): unknown {
+  let value = json;
+  for (const key of path) {
+    if (Array.isArray(value) && typeof key === "number") value = value[key];
+    else if (isObject(value) && typeof key === "string" && Object.hasOwn(value, key)) {
+      value = value[key];
+    } else return undefined;
+  }
+  return value;
+}
+
+/** The schema that applies at `path`, following the data through unions; undefined when none. */
+function schemaAt(path: readonly PropertyKey[], json: unknown): z.ZodType | undefined {
+  let schema: z.ZodType | undefined = planSchema;
+  let value = json;
+  const unwrap = (s: z.ZodType | undefined, v: unknown): z.ZodType | undefined => {
+    for (;;) {
+      if (s instanceof z.ZodOptional || s instanceof z.ZodDefault) s = s.unwrap() as z.ZodType;
+      else if (s instanceof z.ZodDiscriminatedUnion) {
+        const options = s.options as readonly z.ZodType[];
+        s = options.find((o) =>
+          o instanceof z.ZodObject && isObject(v) && o.shape.type.safeParse(v.type).success
+        );
+      } else return s;
+    }
+  };
+  for (const key of path) {
+    schema = unwrap(schema, value);
+    if (schema instanceof z.ZodObject && typeof key === "string") {
+      schema = Object.hasOwn(schema.shape, key) ? schema.shape[key] as z.ZodType : undefined;
+    } else if (schema instanceof z.ZodArray) schema = schema.element as z.ZodType;
+    else if (schema instanceof z.ZodRecord) schema = schema.valueType as z.ZodType;
+    else return undefined;
+    value = valueAt(value, [key]);
+  }
+  return unwrap(schema, value);
+}
+
+/** "a string", "a number", … for a JSON value. */
+function jsonKind(value: unknown): string {
+  if (value === null) return "null";
+  if (Array.isArray(value)) return "a list";
+  if (typeof value === "object") return "an object";
+  if (typeof value === "boolean") return `${value}`;
+  return `${typeof value === "number" ? "a number" : "a string"} (${JSON.stringify(value)})`;
+}
+
+/** One zod issue of a plan as `[key path, detail]` problems, each saying what was expected. */
+function issueProblems(
+  issue: z.core.$ZodIssue,
+  json: unknown,
+  nearest: Nearest | undefined,
+): [string, string][] {
+  const where = (path: readonly PropertyKey[]) => keyPath(path) || "(top level)";
+  const got = valueAt(json, issue.path);
+  const last = issue.path.at(-1);
+  switch (issue.code) {
+    case "unrecognized_keys": {
+      const schema = schemaAt(issue.path, json);
+      const allowed = schema instanceof z.ZodObject ? Object.keys(schema.shape) : [];
+      return issue.keys.map((key) => [
+        where([...issue.path, key]),
+        `unknown key "${key}"${didYouMean(key, allowed, nearest)}${
+          allowed.length > 0 ? ` (keys here: ${allowed.join(", ")})` : ""
+        }`,
+      ]);
+    }
+    case "invalid_union": {
+      if (issue.discriminator === "type") {
+        const head = typeof got === "string"
+          ? `"${got}" is not a target type${
+            didYouMean(got, ["min", "max", "limit_curve"], nearest)
+          }`
+          : got === undefined
+          ? "a target needs a type"
+          : `a target's type is a string, not ${jsonKind(got)}`;
+        return [[where(issue.path), `${head} (${TARGET_TYPES})`]];
+      }
+      if (issue.path.includes("options")) {
+        return [[
+          where(issue.path),
+          `an option's value is a string, a number, true/false or a list of strings and numbers, not ${
+            jsonKind(got)
+          }`,
+        ]];
+      }
+      const forms = issue.errors.map((e) => e[0]?.message ?? "").filter((m) => m !== "");
+      return [[where(issue.path), `matches none of its forms: ${forms.join("; or ")}`]];
+    }
+    case "invalid_value": {
+      const values = issue.values.map((v) => String(v));
+      if (values.length === 1) {
+        return [[
+          where(issue.path),
+          `must be ${JSON.stringify(issue.values[0])}, not ${
+            got === undefined ? "missing" : jsonKind(got)
+          }`,
+        ]];
+      }
+      const name = typeof last === "string" ? last : "value";
+      const head = typeof got === "string"
+        ? `unknown ${name} "${got}"${didYouMean(got, values, nearest)}`
+        : got === undefined
+        ? `${name} is missing`
+        : `${name} must be one of the names below, not ${jsonKind(got)}`;
+      return [[where(issue.path), `${head} (allowed: ${values.join(", ")})`]];
+    }
+    case "invalid_type": {
+      const expected = issue.expected === "array"
+        ? "a list"
+        : issue.expected === "object"
+        ? "an object"
+        : `a ${issue.expected}`;
+      return [[
+        where(issue.path),
+        got === undefined
+          ? `missing: ${expected} is needed`
+          : `${expected} is needed, not ${jsonKind(got)}`,
+      ]];
+    }
+    default:
+      return [[where(issue.path), issue.message]];
+  }
 }

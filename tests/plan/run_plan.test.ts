@@ -23,7 +23,7 @@ describe("quiver run", () => {
     [
       "a wrong key",
       (p) => ((p.analyses as Record<string, unknown>[])[1].optoins = {}),
-      /plan key analyses\[1\]: .*optoins/,
+      /plan key analyses\[1\]\.optoins: unknown key "optoins"; did you mean "options"\?/,
     ],
     [
       "a missing recording file",
