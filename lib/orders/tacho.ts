@@ -92,6 +92,46 @@ export const HYSTERESIS_FRACTION = 0.2;
  */
 export const HYSTERESIS_FLOOR = 0.01;
 
+/**
+ * The pulses are timed on the signal's falling crossings when these pass from one side of the
+ * hysteresis to the other in under this share of the rising ones' time (medians over the
+ * pulses), else on its rising crossings. A bipolar inductive pulse crosses quickly between
+ * its lobes, which is its timing point (common practice), and slowly from rest into its first
+ * lobe; a TTL or sine tacho crosses both ways alike and keeps its rising edges.
+ *
+ * @example
+ * ```ts
+ * import { TRANSIT_RATIO } from "./tacho.ts";
+ * if (TRANSIT_RATIO !== 0.5) throw new Error();
+ * ```
+ */
+export const TRANSIT_RATIO = 0.5;
+
+/**
+ * The most pulses filled into one gap: 2 (an interval of up to 3.5 local intervals). A longer
+ * gap is a silence of the tacho, named, and never filled with invented pulses.
+ *
+ * @example
+ * ```ts
+ * import { FILL_MOST } from "./tacho.ts";
+ * if (FILL_MOST !== 2) throw new Error();
+ * ```
+ */
+export const FILL_MOST = 2;
+
+/**
+ * The largest share of the pulses found that may be repaired (filled in plus removed): 5 %
+ * (rule ours). A tacho read well needs an odd repair; beyond this the trigger is misreading
+ * the pulses, or `ppr` is wrong, and the tacho is refused.
+ *
+ * @example
+ * ```ts
+ * import { REPAIR_LIMIT } from "./tacho.ts";
+ * if (REPAIR_LIMIT !== 0.05) throw new Error();
+ * ```
+ */
+export const REPAIR_LIMIT = 0.05;
+
 /** Options of {@linkcode tachoPulses}. */
 export interface TachoOptions {
   /**
@@ -121,8 +161,17 @@ export interface TachoPulses {
   readonly level: number | undefined;
   /** Hysteresis: the fixed one, or the least (the floor) when it followed the pulses. */
   readonly hysteresis: number;
-  /** Stretches (s from the first sample) at the record's ends where no pulse was found. */
+  /**
+   * Stretches (s from the first sample) where no pulse was found: at the record's ends, and
+   * within it where no pulse came for more than {@linkcode FILL_MOST} + 1 local intervals
+   * (never filled in: the angle is counted across from the speed either side).
+   */
   readonly silent: readonly (readonly [number, number])[];
+  /**
+   * Which crossings time the pulses: "rising", or "falling" for a bipolar (inductive) pulse,
+   * timed at the crossing between its lobes (see {@linkcode TRANSIT_RATIO}).
+   */
+  readonly edge: "rising" | "falling";
   /** Stretches (s) between the pulses that bound each filled gap. */
   readonly filled: readonly (readonly [number, number])[];
   /** Missing-tooth gaps recognised (one per revolution). */
@@ -177,10 +226,12 @@ function localMedian(values: readonly number[], i: number, scratch: Float64Array
 function triggerPulses(
   series: SampleSeries,
   rate: number,
-  trigger: { fixed: boolean; level: number; hysteresis: number; floor: number },
-): number[] {
+  trigger: { fixed: boolean; level: number; hysteresis: number; floor: number; sign: 1 | -1 },
+): { raw: number[]; transit: number } {
   const raw: number[] = [];
-  const { fixed, floor } = trigger;
+  const transits: number[] = [];
+  const { fixed, floor, sign } = trigger;
+  let lastLow = 0;
   let armed = false;
   let lastCross = NaN;
   let previous = NaN;
@@ -195,7 +246,7 @@ function triggerPulses(
     let lower = level - trigger.hysteresis / 2;
     for (let j = 0; j < chunk.length; j++) {
       const i = offset + j;
-      const value = chunk[j];
+      const value = sign * chunk[j];
       if (i === 0) {
         // Armed when the record starts below the record's mid level.
         isArmed = value < lower;
@@ -232,12 +283,14 @@ function triggerPulses(
           held = ENVELOPE_HOLD_INTERVALS * interval;
         }
         raw.push(t);
+        transits.push(i - lastLow);
         isArmed = false;
       } else if (!isArmed && value <= lower) {
         isArmed = true;
         // A pulse is timed by a crossing after its arming, never by an earlier one.
         cross = NaN;
       }
+      if (isArmed && value <= lower) lastLow = i;
       before = value;
     }
     armed = isArmed;
@@ -250,7 +303,8 @@ function triggerPulses(
     hiAt = topAt;
     loAt = bottomAt;
   });
-  return raw;
+  transits.sort((a, b) => a - b);
+  return { raw, transit: transits.length > 0 ? transits[transits.length >> 1] : Infinity };
 }
 
 /**
@@ -298,7 +352,24 @@ export function tachoPulses(
   if (!(hysteresis > 0)) {
     throw new QuiverError("the tacho channel is flat: no pulses to find");
   }
-  const raw = triggerPulses(series, rate, { fixed, level, hysteresis, floor });
+  // Both polarities are read; the rising crossings unless the falling ones go from one side of
+  // the hysteresis to the other in under half the time (median over the pulses). A bipolar
+  // inductive pulse (a positive lobe, then a negative one) passes quickly between its lobes
+  // but rests at the level for most of the cycle between pulses: read on rising crossings, each
+  // pulse would be timed by noise at rest, and missed or doubled (see TRANSIT_RATIO).
+  const rising = triggerPulses(series, rate, { fixed, level, hysteresis, floor, sign: 1 });
+  const falling = triggerPulses(series, rate, {
+    fixed,
+    level: -level,
+    hysteresis,
+    floor,
+    sign: -1,
+  });
+  const edge: "rising" | "falling" =
+    falling.raw.length >= 3 && falling.transit < TRANSIT_RATIO * rising.transit
+      ? "falling"
+      : "rising";
+  const raw = edge === "rising" ? rising.raw : falling.raw;
   if (raw.length < 3) {
     throw new QuiverError(
       `only ${raw.length} tacho pulse(s) found; check the channel, level and hysteresis`,
@@ -342,15 +413,33 @@ export function tachoPulses(
       } samples apart: the sample rate is too low for this tacho (fewer pulses per revolution, or record faster)`,
     );
   }
-  const mended = mendPulses(times, intervals, medians, options.ppr, missingTeeth);
+  const { silences, ...mended } = mendPulses(times, intervals, medians, options.ppr, missingTeeth);
   const span = series.length / rate;
+  // A stretch at an end longer than 2 of the nearest local median intervals held no pulse
+  // (missingTeeth + 2 on a missing-tooth wheel: a record may end inside the wheel's gap).
+  const allowed = missingTeeth + 2;
   const silent: [number, number][] = [];
-  // A stretch at an end longer than 2 of the nearest pulse intervals held no pulse.
-  if (times[0] > 2 * intervals[0]) silent.push([0, times[0]]);
+  if (times[0] > allowed * medians[0]) silent.push([0, times[0]]);
+  silent.push(...silences);
   const last = times[times.length - 1];
-  if (span - last > 2 * intervals[intervals.length - 1]) silent.push([last, span]);
+  if (span - last > allowed * medians[medians.length - 1]) silent.push([last, span]);
+  // Repair on this scale means the trigger misreads the pulses (or --ppr is wrong): the
+  // speed would be invented, so it is refused rather than written.
+  const repaired = mended.inserted + removed;
+  if (repaired > REPAIR_LIMIT * raw.length) {
+    const hint = mended.wheelHint === undefined
+      ? ""
+      : ` The pulses look like a missing-tooth wheel (${mended.wheelHint.teeth}-${mended.wheelHint.missing}): give --ppr ${mended.wheelHint.teeth} --missing-teeth ${mended.wheelHint.missing}.`;
+    throw new QuiverError(
+      `the tacho pulses cannot be trusted: of ${raw.length} pulses found, ${mended.inserted} had to be filled in and ${removed} removed (${
+        (100 * repaired / raw.length).toFixed(1)
+      } %, more than ${100 * REPAIR_LIMIT} %), so the speed would be invented; ` +
+        `look at the tacho channel and set the trigger (--tacho-level, --tacho-hysteresis), and check the pulses per revolution (--ppr, --missing-teeth).${hint}`,
+    );
+  }
   return {
     ...mended,
+    edge,
     removed,
     level: fixed ? level : undefined,
     hysteresis: fixed ? hysteresis : floor,
@@ -368,10 +457,13 @@ function mendPulses(
   medians: Float64Array,
   ppr: number,
   missingTeeth: number,
-): Pick<
-  TachoPulses,
-  "times" | "angles" | "inserted" | "filled" | "references" | "mismatched" | "wheelHint"
-> {
+):
+  & Pick<
+    TachoPulses,
+    "times" | "angles" | "inserted" | "filled" | "references" | "mismatched" | "wheelHint"
+  >
+  & { silences: [number, number][] } {
+  const silences: [number, number][] = [];
   const filled: number[] = [times[0]];
   const positions: number[] = [0];
   const stretches: [number, number][] = [];
@@ -391,6 +483,22 @@ function mendPulses(
       return;
     }
     const n = Math.round(ratio);
+    if (n > FILL_MOST + 1) {
+      // A silence: no pulse is invented. The angle is counted across it from the pulse rate
+      // either side (the median of up to 5 intervals each side, averaged as rates: exact for
+      // a pulse rate changing linearly).
+      silences.push([times[i], times[i + 1]]);
+      const before = medianOf(intervals, i - 5, i), after = medianOf(intervals, i + 1, i + 6);
+      const rate = Number.isNaN(before)
+        ? 1 / after
+        : Number.isNaN(after)
+        ? 1 / before
+        : (1 / before + 1 / after) / 2;
+      position += Math.max(1, Math.round(interval * rate));
+      filled.push(times[i + 1]);
+      positions.push(position);
+      return;
+    }
     if (interval > 1.5 * medians[i] && n >= 2) {
       for (let j = 1; j < n; j++) {
         filled.push(times[i] + (j * interval) / n);
@@ -417,6 +525,7 @@ function mendPulses(
   const origin = marks.find((m) => m % ppr === residue) ?? 0;
   const angles = new Float64Array(positions.map((p) => (p - origin) / ppr));
   return {
+    silences,
     times: new Float64Array(filled),
     angles,
     inserted,
@@ -425,6 +534,12 @@ function mendPulses(
     mismatched,
     ...(missingTeeth === 0 ? wheelHint(fills) : {}),
   };
+}
+
+/** The median of values[from … to − 1], clipped to the array; NaN when none. */
+function medianOf(values: readonly number[], from: number, to: number): number {
+  const part = values.slice(Math.max(0, from), Math.min(values.length, to)).sort((a, b) => a - b);
+  return part.length === 0 ? NaN : part[part.length >> 1];
 }
 
 /**
