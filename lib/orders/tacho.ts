@@ -93,19 +93,20 @@ export const HYSTERESIS_FRACTION = 0.2;
 export const HYSTERESIS_FLOOR = 0.01;
 
 /**
- * The pulses are timed on the signal's falling crossings when these pass from one side of the
- * hysteresis to the other in under this share of the rising ones' time (medians over the
- * pulses), else on its rising crossings. A bipolar inductive pulse crosses quickly between
- * its lobes, which is its timing point (common practice), and slowly from rest into its first
- * lobe; a TTL or sine tacho crosses both ways alike and keeps its rising edges.
+ * The pulses are timed on the signal's falling crossings when its rising crossings of the
+ * level are less than this share as steep (the sample step across the crossing over the
+ * hysteresis, medians over the pulses), else on its rising crossings. A bipolar inductive
+ * pulse falls steepest between its lobes, which is its timing point (common practice), and
+ * rises into its first lobe from rest slowly (about a fifth as steep, and by noise when it
+ * rests at the level); a TTL or sine tacho is as steep both ways and keeps its rising edges.
  *
  * @example
  * ```ts
- * import { TRANSIT_RATIO } from "./tacho.ts";
- * if (TRANSIT_RATIO !== 0.5) throw new Error();
+ * import { STEEPNESS_RATIO } from "./tacho.ts";
+ * if (STEEPNESS_RATIO !== 0.5) throw new Error();
  * ```
  */
-export const TRANSIT_RATIO = 0.5;
+export const STEEPNESS_RATIO = 0.5;
 
 /**
  * The most pulses filled into one gap: 2 (an interval of up to 3.5 local intervals). A longer
@@ -131,6 +132,20 @@ export const FILL_MOST = 2;
  * ```
  */
 export const REPAIR_LIMIT = 0.05;
+
+/**
+ * A tacho is taken as bipolar, and may be timed on its falling crossings (see
+ * {@linkcode STEEPNESS_RATIO}), only when its median sample lies within this share of the
+ * 2nd–98th percentile span (of the range, for narrow pulses) from their midpoint: an inductive
+ * pickup rests at zero between its positive and negative lobes, a TTL tacho on a rail.
+ *
+ * @example
+ * ```ts
+ * import { BIPOLAR_REST } from "./tacho.ts";
+ * if (BIPOLAR_REST !== 0.2) throw new Error();
+ * ```
+ */
+export const BIPOLAR_REST = 0.2;
 
 /** Options of {@linkcode tachoPulses}. */
 export interface TachoOptions {
@@ -169,7 +184,7 @@ export interface TachoPulses {
   readonly silent: readonly (readonly [number, number])[];
   /**
    * Which crossings time the pulses: "rising", or "falling" for a bipolar (inductive) pulse,
-   * timed at the crossing between its lobes (see {@linkcode TRANSIT_RATIO}).
+   * timed at the crossing between its lobes (see {@linkcode STEEPNESS_RATIO}).
    */
   readonly edge: "rising" | "falling";
   /** Stretches (s) between the pulses that bound each filled gap. */
@@ -227,11 +242,11 @@ function triggerPulses(
   series: SampleSeries,
   rate: number,
   trigger: { fixed: boolean; level: number; hysteresis: number; floor: number; sign: 1 | -1 },
-): { raw: number[]; transit: number } {
+): { raw: number[]; steepness: number } {
   const raw: number[] = [];
-  const transits: number[] = [];
+  const steps: number[] = [];
   const { fixed, floor, sign } = trigger;
-  let lastLow = 0;
+  let crossStep = NaN;
   let armed = false;
   let lastCross = NaN;
   let previous = NaN;
@@ -273,6 +288,7 @@ function triggerPulses(
       }
       if (before < level && value >= level) {
         cross = (i - 1 + (level - before) / (value - before)) / rate;
+        crossStep = (value - before) / (upper - lower);
       }
       if (isArmed && value >= upper) {
         const t = Number.isNaN(cross) ? i / rate : cross;
@@ -283,14 +299,14 @@ function triggerPulses(
           held = ENVELOPE_HOLD_INTERVALS * interval;
         }
         raw.push(t);
-        transits.push(i - lastLow);
+        steps.push(Number.isNaN(crossStep) ? 0 : crossStep);
         isArmed = false;
       } else if (!isArmed && value <= lower) {
         isArmed = true;
         // A pulse is timed by a crossing after its arming, never by an earlier one.
         cross = NaN;
+        crossStep = NaN;
       }
-      if (isArmed && value <= lower) lastLow = i;
       before = value;
     }
     armed = isArmed;
@@ -303,8 +319,8 @@ function triggerPulses(
     hiAt = topAt;
     loAt = bottomAt;
   });
-  transits.sort((a, b) => a - b);
-  return { raw, transit: transits.length > 0 ? transits[transits.length >> 1] : Infinity };
+  steps.sort((a, b) => a - b);
+  return { raw, steepness: steps.length > 0 ? steps[steps.length >> 1] : 0 };
 }
 
 /**
@@ -338,7 +354,7 @@ export function tachoPulses(
     );
   }
   if (series.length < 2) throw new QuiverError("the tacho channel is flat: no pulses to find");
-  const [least, p2, p98, most] = percentiles(series, [0, 2, 98, 100]);
+  const [least, p2, median, p98, most] = percentiles(series, [0, 2, 50, 98, 100]);
   // Pulses high (or low) for under 2 % of the time (a once-per-revolution mark, a
   // narrow optical tacho) leave both percentiles at the resting level: the levels are
   // then taken from the extremes, and only a channel with no excursion at all is flat.
@@ -352,13 +368,15 @@ export function tachoPulses(
   if (!(hysteresis > 0)) {
     throw new QuiverError("the tacho channel is flat: no pulses to find");
   }
-  // Both polarities are read; the rising crossings unless the falling ones go from one side of
-  // the hysteresis to the other in under half the time (median over the pulses). A bipolar
-  // inductive pulse (a positive lobe, then a negative one) passes quickly between its lobes
-  // but rests at the level for most of the cycle between pulses: read on rising crossings, each
-  // pulse would be timed by noise at rest, and missed or doubled (see TRANSIT_RATIO).
+  // Both polarities are read, and the steeper crossings time the pulses (STEEPNESS_RATIO).
+  // A bipolar inductive pulse (a positive lobe, then a negative one) falls steeply between its
+  // lobes but rests at the level between pulses: read on rising crossings, each pulse would be
+  // timed by noise at rest, and missed or doubled.
   const rising = triggerPulses(series, rate, { fixed, level, hysteresis, floor, sign: 1 });
-  const falling = triggerPulses(series, rate, {
+  // Only a signal that rests mid-way between its extremes can be bipolar: a TTL tacho rests on a
+  // rail, and one whose falling edges are steeper than its rising ones keeps its rising edges.
+  const resting = Math.abs(median - (low + high) / 2) < BIPOLAR_REST * (high - low);
+  const falling = !resting ? { raw: [], steepness: 0 } : triggerPulses(series, rate, {
     fixed,
     level: -level,
     hysteresis,
@@ -366,7 +384,7 @@ export function tachoPulses(
     sign: -1,
   });
   const edge: "rising" | "falling" =
-    falling.raw.length >= 3 && falling.transit < TRANSIT_RATIO * rising.transit
+    falling.raw.length >= 3 && rising.steepness < STEEPNESS_RATIO * falling.steepness
       ? "falling"
       : "rising";
   const raw = edge === "rising" ? rising.raw : falling.raw;
