@@ -12,21 +12,32 @@
  * interval; before the second pulse it only holds). The switching level is the
  * envelope's midpoint and the hysteresis {@linkcode HYSTERESIS_FRACTION} of
  * its width, but never less than {@linkcode HYSTERESIS_FLOOR} of the
- * record's 2nd–98th percentile span: noise below that, as in a stretch where
- * the tacho is silent, gives no pulses. A level or hysteresis given by the
- * caller makes the trigger fixed (the other one from the percentiles: the
- * midpoint of the 2nd and 98th, and 20 % of their span). Each pulse's time
- * is the sub-sample instant, by linear interpolation, where the signal last
- * crossed the level on its way up.
+ * record's range: noise below that, as in a stretch where the tacho is
+ * silent, gives no pulses. A level or hysteresis given by the caller makes
+ * the trigger fixed (the other one from the percentiles: the midpoint of the
+ * 2nd and 98th, and 20 % of their span). Each pulse's time is the sub-sample
+ * instant, by linear interpolation, where the signal last crossed the level
+ * on its way up. A bipolar tacho, one that rests mid-way between its
+ * extremes ({@linkcode BIPOLAR_REST}), is also read upside down, and its
+ * falling crossings time the pulses when they are much the steeper
+ * ({@linkcode STEEPNESS_RATIO}): an inductive pickup's pulse, a positive lobe
+ * then a negative one, is timed at the zero crossing between its lobes
+ * (common practice), not by noise at rest before its first lobe.
  *
  * Cleaning: an interval more than 1.5 times the local median (of the 11
- * around it) is a gap of n ≈ interval/median pulses, filled evenly; one
- * shorter than half the median comes from an extra pulse, which is dropped.
+ * around it) is a gap of n ≈ interval/median pulses, filled evenly when n is
+ * at most {@linkcode FILL_MOST} + 1; a longer gap is a silence of the tacho,
+ * named and never filled (the angle is counted across it from the pulse rate
+ * either side). One shorter than half the median comes from an extra pulse,
+ * which is dropped. More repair than {@linkcode REPAIR_LIMIT} of the pulses
+ * found (filled plus dropped) is refused.
  * A missing-tooth wheel (`missingTeeth` > 0, `ppr` the tooth positions of the
  * full wheel, e.g. 60 for a 60-2 wheel) is never mended: an interval of about
  * missingTeeth + 1 local medians is its gap, the once-per-revolution
  * reference, and each pulse gets its tooth's angle. Where no pulse was found
- * at the record's ends, or pulses were filled in, the stretches are named.
+ * at the record's ends (for longer than missingTeeth + 2 local intervals:
+ * a record may end inside the wheel's gap), or pulses were filled in, the
+ * stretches are named.
  *
  * Speed: pulse times are smoothed by a local quadratic fit of angle against
  * time (see {@linkcode motionFromPulses}), the speed read from the fit, and
@@ -80,17 +91,21 @@ export const ENVELOPE_HOLD_INTERVALS = 1.5;
 export const HYSTERESIS_FRACTION = 0.2;
 
 /**
- * The least hysteresis, as a fraction of the record's 2nd–98th percentile
- * span: pulses down to about this fraction of the strongest are read, noise
- * below it is not.
+ * The least hysteresis, as a fraction of the record's range (least to most
+ * sample): pulses down to about this fraction
+ * of the strongest are read (a 25:1 amplitude range, so an inductive
+ * pickup's 10:1 run-up with room), and noise of up to about a tenth of it
+ * RMS is not, also through a silence of the tacho within the record (rule
+ * ours; at 1 %, 2 mV of noise on a 0.55 V inductive pulse set off a pulse
+ * every few ms through a silence).
  *
  * @example
  * ```ts
  * import { HYSTERESIS_FLOOR } from "./tacho.ts";
- * if (HYSTERESIS_FLOOR !== 0.01) throw new Error();
+ * if (HYSTERESIS_FLOOR !== 0.04) throw new Error();
  * ```
  */
-export const HYSTERESIS_FLOOR = 0.01;
+export const HYSTERESIS_FLOOR = 0.04;
 
 /**
  * The pulses are timed on the signal's falling crossings when its rising crossings of the
@@ -326,7 +341,8 @@ function triggerPulses(
 /**
  * Finds and cleans the tacho pulses.
  *
- * @throws {QuiverError} when fewer than 3 pulses are found; RangeError for
+ * @throws {QuiverError} when fewer than 3 pulses are found, or more than
+ * {@linkcode REPAIR_LIMIT} of them need repair; RangeError for
  * missing teeth that leave fewer than 2 teeth.
  *
  * @example
@@ -364,7 +380,9 @@ export function tachoPulses(
   const fixed = options.level !== undefined || options.hysteresis !== undefined;
   const level = options.level ?? (low + high) / 2;
   const hysteresis = options.hysteresis ?? HYSTERESIS_FRACTION * (high - low);
-  const floor = HYSTERESIS_FLOOR * (high - low);
+  // The floor from the whole range: a narrow bipolar pulse can leave the 2nd–98th percentiles
+  // on its lobes' flanks, a span of a few times the noise, and the noise then sets off pulses.
+  const floor = HYSTERESIS_FLOOR * (most - least);
   if (!(hysteresis > 0)) {
     throw new QuiverError("the tacho channel is flat: no pulses to find");
   }

@@ -392,3 +392,97 @@ describe("an inductive (variable-reluctance) tacho: narrow bipolar pulses", () =
     pulses.times.slice(1).forEach((t, k) => expect(t * 8000).toBeCloseTo((k + 1) * period + 4, 6));
   });
 });
+
+describe("silences and repairs", () => {
+  test("a 0.3 s silence mid-record is named from–to and never filled; the angle is counted across it", () => {
+    // Truth: the analytic profile. The 1-pulse inductive run-up of 600 → 6000 rpm in 10 s with
+    // its pickup silent (noise only) from 4.5 to 4.8 s: about 15.6 revolutions at ~3050 rpm.
+    // Filled as before this rule, the stretch got 15 invented pulses.
+    const rate = 10_000, seconds = 10;
+    const profile = linearProfile(600, 6000, seconds);
+    const signal = inductiveTacho(profile, rate, seconds, 1, {
+      peakAt600: 0.055,
+      width: 0.01,
+      noise: 0.002,
+      // Teeth whose centre lies in 4.5–4.8 s give nothing (θ(4.5) = 50.6, θ(4.8) = 66.2 rev).
+      absent: (k) => k > profile.angle(4.5) && k < profile.angle(4.8),
+    });
+    const pulses = tachoPulses(signal, rate, { ppr: 1 });
+    expect(pulses.inserted).toBe(0);
+    expect(pulses.silent.length).toBe(1);
+    // The stretch runs between the last tooth before 4.5 s and the first after 4.8 s: within one
+    // revolution (under 1/50 s there) of each.
+    const [from, to] = pulses.silent[0];
+    expect(from).toBeLessThanOrEqual(4.5);
+    expect(4.5 - from).toBeLessThan(1 / 50);
+    expect(to).toBeGreaterThanOrEqual(4.8);
+    expect(to - 4.8).toBeLessThan(1 / 50);
+    // Every pulse's angle, after the silence too, is its tooth's: a whole number of
+    // revolutions from the analytic angle, the same one throughout.
+    const whole = Math.round(pulses.angles[0] - profile.angle(pulses.times[0]));
+    pulses.times.forEach((t, j) => {
+      expect(Math.abs(pulses.angles[j] - profile.angle(t) - whole)).toBeLessThan(0.01);
+    });
+    const motion = motionFromPulses(pulses.times, 1, pulses.angles);
+    motion.times.forEach((t, i) => {
+      expect(Math.abs(motion.rpm[i] / profile.rpm(t) - 1)).toBeLessThan(0.005);
+    });
+    const { notes } = motionOfSeries(memorySeries(signal), rate, { tacho: "n", ppr: 1 });
+    expect(notes.join()).toMatch(/no tacho pulse from 4\.4\d*–4\.8\d* s: .*no pulses filled in/);
+    expect(notes.join()).not.toMatch(/filled in, in/);
+  });
+
+  test("one or two pulses missing in a row are still filled in (isolated gaps)", () => {
+    // Constant 1200 rpm, 1 pulse/rev TTL (truth: 20 Hz); pulse 20 missing, and 50 and 51.
+    const profile = linearProfile(1200, 1200, 5);
+    const signal = ttlTacho(profile, 8192, 5, 1).map((v, i) => {
+      const turn = Math.floor(profile.angle(i / 8192));
+      return turn === 20 || turn === 50 || turn === 51 ? 0 : v;
+    });
+    const pulses = tachoPulses(signal, 8192, { ppr: 1 });
+    expect(pulses.inserted).toBe(3);
+    expect(pulses.silent).toEqual([]);
+  });
+
+  for (const [every, refused] of [[15, true], [25, false]] as const) {
+    test(`every ${every}th pulse missing (1 in ${every} absent): ${refused ? "refused, naming the counts" : "read"}`, () => {
+      // 1200 rpm, 1 pulse/rev TTL for 10 s: rising edges at revolutions 1…199 (the record starts
+      // high), every `every`-th revolution's absent. REPAIR_LIMIT is 5 % of the pulses found:
+      // 1 in 15: 13 absent, 186 found, 13 filled = 7.0 %; 1 in 25: 8 absent (the last, at
+      // revolution 199, ends the record: nothing to fill), 191 found, 7 filled = 3.7 %.
+      const profile = linearProfile(1200, 1200, 10);
+      const signal = ttlTacho(profile, 8192, 10, 1).map((v, i) =>
+        Math.floor(profile.angle(i / 8192)) % every === every - 1 ? 0 : v
+      );
+      const read = () => tachoPulses(signal, 8192, { ppr: 1 });
+      if (refused) {
+        expect(read).toThrow(
+          /cannot be trusted: of 186 pulses found, 13 had to be filled in and 0 removed \(7\.0 %.*--tacho-level.*--ppr/,
+        );
+      } else {
+        expect(read().inserted).toBe(7);
+      }
+    });
+  }
+});
+
+describe("a missing-tooth wheel whose record ends inside its gap", () => {
+  // 60-2 wheel at 1500 rpm (truth: constant speed; 25 rev/s, a pitch of 1/1500 s).
+  const rate = 51200, profile = linearProfile(1500, 1500, 5);
+  test("no silence is named when the record ends 2.5 pitches after the last tooth", () => {
+    // The record ends half-way into the gap: 99 revolutions plus 59.5 pitches.
+    const seconds = (99 + 59.5 / 60) / 25;
+    const signal = missingToothTacho(profile, rate, seconds, 60, 2);
+    const pulses = tachoPulses(signal, rate, { ppr: 60, missingTeeth: 2 });
+    expect(pulses.silent).toEqual([]);
+  });
+  test("a real silence at its end (half a revolution, 30 pitches) is still named", () => {
+    const seconds = (99 + 59.5 / 60) / 25;
+    const signal = missingToothTacho(profile, rate, seconds, 60, 2);
+    const longer = new Float64Array(signal.length + Math.round(0.02 * rate));
+    longer.set(signal);
+    const pulses = tachoPulses(longer, rate, { ppr: 60, missingTeeth: 2 });
+    expect(pulses.silent.length).toBe(1);
+    expect(pulses.silent[0][1]).toBeCloseTo(longer.length / rate, 9);
+  });
+});
