@@ -1,8 +1,12 @@
+import { mkdtemp, readFile, writeFile } from "node:fs/promises";
 import { describe, expect, test } from "vitest";
+import { runQuiver } from "../helpers/cli.ts";
+import { recordingCsv } from "../helpers/csv.ts";
 import { motionFromPulses, motionFromRpm, tachoPulses } from "../../lib/orders/tacho.ts";
 import {
   inductiveTacho,
   linearProfile,
+  orderResponse,
   type Profile,
   quadraticProfile,
   ttlTacho,
@@ -484,5 +488,89 @@ describe("a missing-tooth wheel whose record ends inside its gap", () => {
     const pulses = tachoPulses(longer, rate, { ppr: 60, missingTeeth: 2 });
     expect(pulses.silent.length).toBe(1);
     expect(pulses.silent[0][1]).toBeCloseTo(longer.length / rate, 9);
+  });
+});
+
+describe("quiver orders with these tachos (end to end)", () => {
+  test("the inductive 1-pulse run-up reads right (exit 0); a tacho needing 7 % repair is refused (exit 1)", async () => {
+    // Truth: the analytic profile (600 → 6000 rpm in 10 s, 10 kHz, 0.055 V at 600 rpm, 2 mV).
+    // Before the bipolar rule this record gave "2719 rpm step(s) from 1600 to 170450 rpm", exit 0.
+    const dir = await mkdtemp("/tmp/quiver-tacho-");
+    const rate = 10_000, seconds = 10;
+    const profile = linearProfile(600, 6000, seconds);
+    const tacho = inductiveTacho(profile, rate, seconds, 1, {
+      peakAt600: 0.055,
+      width: 0.01,
+      noise: 0.002,
+    });
+    const response = orderResponse(profile, rate, seconds, [{ order: 2, rms: () => 1 }]);
+    await writeFile(
+      `${dir}/vr.csv`,
+      recordingCsv({
+        rate,
+        startTime: 0,
+        channels: [
+          { name: "tacho", unit: "V", data: tacho },
+          { name: "acc", unit: "m/s^2", data: response },
+        ],
+      }),
+    );
+    const common = ["orders", `${dir}/vr.csv`, "--rate", String(rate), "--tacho", "tacho"];
+    const ok = runQuiver([
+      ...common,
+      "--ppr",
+      "1",
+      "--channels",
+      "acc",
+      "--orders",
+      "2",
+      "--rpm-step",
+      "100",
+      "--out",
+      `${dir}/cuts.csv`,
+      "--rpm-out",
+      `${dir}/rpm.csv`,
+    ]);
+    expect(ok.code, ok.stderr).toBe(0);
+    expect(ok.stderr).toMatch(/bipolar \(as from an inductive pickup\)/);
+    const rows = (await readFile(`${dir}/rpm.csv`, "utf8")).trim().split("\n").slice(1);
+    expect(rows.length).toBeGreaterThan(500); // a reading per pulse: 549 pulses in 550 revolutions
+    for (const row of rows) {
+      const [t, v] = row.split(",").map(Number);
+      expect(Math.abs(v / profile.rpm(t) - 1)).toBeLessThan(0.005);
+    }
+    // A TTL tacho with 1 pulse in 15 absent needs 7 % repair and is refused (counts as in the
+    // test of REPAIR_LIMIT above), and nothing is written.
+    const ttl = ttlTacho(linearProfile(1200, 1200, 10), 8192, 10, 1).map((v, i) =>
+      Math.floor((1200 / 60) * (i / 8192)) % 15 === 14 ? 0 : v
+    );
+    await writeFile(
+      `${dir}/gappy.csv`,
+      recordingCsv({
+        rate: 8192,
+        startTime: 0,
+        channels: [
+          { name: "tacho", unit: "V", data: ttl },
+          { name: "acc", unit: "m/s^2", data: new Float64Array(ttl.length) },
+        ],
+      }),
+    );
+    const refused = runQuiver([
+      "orders",
+      `${dir}/gappy.csv`,
+      "--rate",
+      "8192",
+      "--tacho",
+      "tacho",
+      "--ppr",
+      "1",
+      "--channels",
+      "acc",
+      "--out",
+      `${dir}/gappy_cuts.csv`,
+    ]);
+    expect(refused.code).toBe(1);
+    expect(refused.stderr).toMatch(/of 186 pulses found, 13 had to be filled in and 0 removed/);
+    await expect(readFile(`${dir}/gappy_cuts.csv`, "utf8")).rejects.toThrow();
   });
 });
