@@ -140,9 +140,21 @@ function tachoNotes(
   const notes: string[] = [];
   const stretch = ([a, b]: readonly [number, number]) =>
     `${seconds(startTime + a)}–${seconds(startTime + b)} s`;
+  const first = pulses.times[0], last = pulses.times[pulses.times.length - 1];
   for (const s of pulses.silent) {
+    // Within the record the angle is counted across the silence, never pulses invented in it.
+    const inside = s[0] >= first && s[1] <= last;
     notes.push(
-      `no tacho pulse from ${stretch(s)}: the speed and the orders are not known there`,
+      `no tacho pulse from ${stretch(s)}: the speed and the orders are not known there` +
+        (inside
+          ? " (no pulses filled in; the angle is counted across it from the speed either side)"
+          : ""),
+    );
+  }
+  if (pulses.edge === "falling") {
+    notes.push(
+      "the tacho pulses are bipolar (as from an inductive pickup): each is timed where it " +
+        "falls through the level between its lobes",
     );
   }
   if (pulses.inserted > 0) {

@@ -12,21 +12,32 @@
  * interval; before the second pulse it only holds). The switching level is the
  * envelope's midpoint and the hysteresis {@linkcode HYSTERESIS_FRACTION} of
  * its width, but never less than {@linkcode HYSTERESIS_FLOOR} of the
- * record's 2nd–98th percentile span: noise below that, as in a stretch where
- * the tacho is silent, gives no pulses. A level or hysteresis given by the
- * caller makes the trigger fixed (the other one from the percentiles: the
- * midpoint of the 2nd and 98th, and 20 % of their span). Each pulse's time
- * is the sub-sample instant, by linear interpolation, where the signal last
- * crossed the level on its way up.
+ * record's range: noise below that, as in a stretch where the tacho is
+ * silent, gives no pulses. A level or hysteresis given by the caller makes
+ * the trigger fixed (the other one from the percentiles: the midpoint of the
+ * 2nd and 98th, and 20 % of their span). Each pulse's time is the sub-sample
+ * instant, by linear interpolation, where the signal last crossed the level
+ * on its way up. A bipolar tacho, one that rests mid-way between its
+ * extremes ({@linkcode BIPOLAR_REST}), is also read upside down, and its
+ * falling crossings time the pulses when they are much the steeper
+ * ({@linkcode STEEPNESS_RATIO}): an inductive pickup's pulse, a positive lobe
+ * then a negative one, is timed at the zero crossing between its lobes
+ * (common practice), not by noise at rest before its first lobe.
  *
  * Cleaning: an interval more than 1.5 times the local median (of the 11
- * around it) is a gap of n ≈ interval/median pulses, filled evenly; one
- * shorter than half the median comes from an extra pulse, which is dropped.
+ * around it) is a gap of n ≈ interval/median pulses, filled evenly when n is
+ * at most {@linkcode FILL_MOST} + 1; a longer gap is a silence of the tacho,
+ * named and never filled (the angle is counted across it from the pulse rate
+ * either side). One shorter than half the median comes from an extra pulse,
+ * which is dropped. More repair than {@linkcode REPAIR_LIMIT} of the pulses
+ * found (filled plus dropped) is refused.
  * A missing-tooth wheel (`missingTeeth` > 0, `ppr` the tooth positions of the
  * full wheel, e.g. 60 for a 60-2 wheel) is never mended: an interval of about
  * missingTeeth + 1 local medians is its gap, the once-per-revolution
  * reference, and each pulse gets its tooth's angle. Where no pulse was found
- * at the record's ends, or pulses were filled in, the stretches are named.
+ * at the record's ends (for longer than missingTeeth + 2 local intervals:
+ * a record may end inside the wheel's gap), or pulses were filled in, the
+ * stretches are named.
  *
  * Speed: pulse times are smoothed by a local quadratic fit of angle against
  * time (see {@linkcode motionFromPulses}), the speed read from the fit, and
@@ -80,17 +91,76 @@ export const ENVELOPE_HOLD_INTERVALS = 1.5;
 export const HYSTERESIS_FRACTION = 0.2;
 
 /**
- * The least hysteresis, as a fraction of the record's 2nd–98th percentile
- * span: pulses down to about this fraction of the strongest are read, noise
- * below it is not.
+ * The least hysteresis, as a fraction of the record's range (least to most
+ * sample): pulses down to about this fraction
+ * of the strongest are read (a 25:1 amplitude range, so an inductive
+ * pickup's 10:1 run-up with room), and noise of up to about a tenth of it
+ * RMS is not, also through a silence of the tacho within the record (rule
+ * ours; at 1 %, 2 mV of noise on a 0.55 V inductive pulse set off a pulse
+ * every few ms through a silence).
  *
  * @example
  * ```ts
  * import { HYSTERESIS_FLOOR } from "./tacho.ts";
- * if (HYSTERESIS_FLOOR !== 0.01) throw new Error();
+ * if (HYSTERESIS_FLOOR !== 0.04) throw new Error();
  * ```
  */
-export const HYSTERESIS_FLOOR = 0.01;
+export const HYSTERESIS_FLOOR = 0.04;
+
+/**
+ * The pulses are timed on the signal's falling crossings when its rising crossings of the
+ * level are less than this share as steep (the sample step across the crossing over the
+ * hysteresis, medians over the pulses), else on its rising crossings. A bipolar inductive
+ * pulse falls steepest between its lobes, which is its timing point (common practice), and
+ * rises into its first lobe from rest slowly (about a fifth as steep, and by noise when it
+ * rests at the level); a TTL or sine tacho is as steep both ways and keeps its rising edges.
+ *
+ * @example
+ * ```ts
+ * import { STEEPNESS_RATIO } from "./tacho.ts";
+ * if (STEEPNESS_RATIO !== 0.5) throw new Error();
+ * ```
+ */
+export const STEEPNESS_RATIO = 0.5;
+
+/**
+ * The most pulses filled into one gap: 2 (an interval of up to 3.5 local intervals). A longer
+ * gap is a silence of the tacho, named, and never filled with invented pulses.
+ *
+ * @example
+ * ```ts
+ * import { FILL_MOST } from "./tacho.ts";
+ * if (FILL_MOST !== 2) throw new Error();
+ * ```
+ */
+export const FILL_MOST = 2;
+
+/**
+ * The largest share of the pulses found that may be repaired (filled in plus removed): 5 %
+ * (rule ours). A tacho read well needs an odd repair; beyond this the trigger is misreading
+ * the pulses, or `ppr` is wrong, and the tacho is refused.
+ *
+ * @example
+ * ```ts
+ * import { REPAIR_LIMIT } from "./tacho.ts";
+ * if (REPAIR_LIMIT !== 0.05) throw new Error();
+ * ```
+ */
+export const REPAIR_LIMIT = 0.05;
+
+/**
+ * A tacho is taken as bipolar, and may be timed on its falling crossings (see
+ * {@linkcode STEEPNESS_RATIO}), only when its median sample lies within this share of the
+ * 2nd–98th percentile span (of the range, for narrow pulses) from their midpoint: an inductive
+ * pickup rests at zero between its positive and negative lobes, a TTL tacho on a rail.
+ *
+ * @example
+ * ```ts
+ * import { BIPOLAR_REST } from "./tacho.ts";
+ * if (BIPOLAR_REST !== 0.2) throw new Error();
+ * ```
+ */
+export const BIPOLAR_REST = 0.2;
 
 /** Options of {@linkcode tachoPulses}. */
 export interface TachoOptions {
@@ -121,8 +191,17 @@ export interface TachoPulses {
   readonly level: number | undefined;
   /** Hysteresis: the fixed one, or the least (the floor) when it followed the pulses. */
   readonly hysteresis: number;
-  /** Stretches (s from the first sample) at the record's ends where no pulse was found. */
+  /**
+   * Stretches (s from the first sample) where no pulse was found: at the record's ends, and
+   * within it where no pulse came for more than {@linkcode FILL_MOST} + 1 local intervals
+   * (never filled in: the angle is counted across from the speed either side).
+   */
   readonly silent: readonly (readonly [number, number])[];
+  /**
+   * Which crossings time the pulses: "rising", or "falling" for a bipolar (inductive) pulse,
+   * timed at the crossing between its lobes (see {@linkcode STEEPNESS_RATIO}).
+   */
+  readonly edge: "rising" | "falling";
   /** Stretches (s) between the pulses that bound each filled gap. */
   readonly filled: readonly (readonly [number, number])[];
   /** Missing-tooth gaps recognised (one per revolution). */
@@ -177,10 +256,12 @@ function localMedian(values: readonly number[], i: number, scratch: Float64Array
 function triggerPulses(
   series: SampleSeries,
   rate: number,
-  trigger: { fixed: boolean; level: number; hysteresis: number; floor: number },
-): number[] {
+  trigger: { fixed: boolean; level: number; hysteresis: number; floor: number; sign: 1 | -1 },
+): { raw: number[]; steepness: number } {
   const raw: number[] = [];
-  const { fixed, floor } = trigger;
+  const steps: number[] = [];
+  const { fixed, floor, sign } = trigger;
+  let crossStep = NaN;
   let armed = false;
   let lastCross = NaN;
   let previous = NaN;
@@ -195,7 +276,7 @@ function triggerPulses(
     let lower = level - trigger.hysteresis / 2;
     for (let j = 0; j < chunk.length; j++) {
       const i = offset + j;
-      const value = chunk[j];
+      const value = sign * chunk[j];
       if (i === 0) {
         // Armed when the record starts below the record's mid level.
         isArmed = value < lower;
@@ -222,6 +303,7 @@ function triggerPulses(
       }
       if (before < level && value >= level) {
         cross = (i - 1 + (level - before) / (value - before)) / rate;
+        crossStep = (value - before) / (upper - lower);
       }
       if (isArmed && value >= upper) {
         const t = Number.isNaN(cross) ? i / rate : cross;
@@ -232,11 +314,13 @@ function triggerPulses(
           held = ENVELOPE_HOLD_INTERVALS * interval;
         }
         raw.push(t);
+        steps.push(Number.isNaN(crossStep) ? 0 : crossStep);
         isArmed = false;
       } else if (!isArmed && value <= lower) {
         isArmed = true;
         // A pulse is timed by a crossing after its arming, never by an earlier one.
         cross = NaN;
+        crossStep = NaN;
       }
       before = value;
     }
@@ -250,13 +334,15 @@ function triggerPulses(
     hiAt = topAt;
     loAt = bottomAt;
   });
-  return raw;
+  steps.sort((a, b) => a - b);
+  return { raw, steepness: steps.length > 0 ? steps[steps.length >> 1] : 0 };
 }
 
 /**
  * Finds and cleans the tacho pulses.
  *
- * @throws {QuiverError} when fewer than 3 pulses are found; RangeError for
+ * @throws {QuiverError} when fewer than 3 pulses are found, or more than
+ * {@linkcode REPAIR_LIMIT} of them need repair; RangeError for
  * missing teeth that leave fewer than 2 teeth.
  *
  * @example
@@ -284,7 +370,7 @@ export function tachoPulses(
     );
   }
   if (series.length < 2) throw new QuiverError("the tacho channel is flat: no pulses to find");
-  const [least, p2, p98, most] = percentiles(series, [0, 2, 98, 100]);
+  const [least, p2, median, p98, most] = percentiles(series, [0, 2, 50, 98, 100]);
   // Pulses high (or low) for under 2 % of the time (a once-per-revolution mark, a
   // narrow optical tacho) leave both percentiles at the resting level: the levels are
   // then taken from the extremes, and only a channel with no excursion at all is flat.
@@ -294,11 +380,32 @@ export function tachoPulses(
   const fixed = options.level !== undefined || options.hysteresis !== undefined;
   const level = options.level ?? (low + high) / 2;
   const hysteresis = options.hysteresis ?? HYSTERESIS_FRACTION * (high - low);
-  const floor = HYSTERESIS_FLOOR * (high - low);
+  // The floor from the whole range: a narrow bipolar pulse can leave the 2nd–98th percentiles
+  // on its lobes' flanks, a span of a few times the noise, and the noise then sets off pulses.
+  const floor = HYSTERESIS_FLOOR * (most - least);
   if (!(hysteresis > 0)) {
     throw new QuiverError("the tacho channel is flat: no pulses to find");
   }
-  const raw = triggerPulses(series, rate, { fixed, level, hysteresis, floor });
+  // Both polarities are read, and the steeper crossings time the pulses (STEEPNESS_RATIO).
+  // A bipolar inductive pulse (a positive lobe, then a negative one) falls steeply between its
+  // lobes but rests at the level between pulses: read on rising crossings, each pulse would be
+  // timed by noise at rest, and missed or doubled.
+  const rising = triggerPulses(series, rate, { fixed, level, hysteresis, floor, sign: 1 });
+  // Only a signal that rests mid-way between its extremes can be bipolar: a TTL tacho rests on a
+  // rail, and one whose falling edges are steeper than its rising ones keeps its rising edges.
+  const resting = Math.abs(median - (low + high) / 2) < BIPOLAR_REST * (high - low);
+  const falling = !resting ? { raw: [], steepness: 0 } : triggerPulses(series, rate, {
+    fixed,
+    level: -level,
+    hysteresis,
+    floor,
+    sign: -1,
+  });
+  const edge: "rising" | "falling" =
+    falling.raw.length >= 3 && rising.steepness < STEEPNESS_RATIO * falling.steepness
+      ? "falling"
+      : "rising";
+  const raw = edge === "rising" ? rising.raw : falling.raw;
   if (raw.length < 3) {
     throw new QuiverError(
       `only ${raw.length} tacho pulse(s) found; check the channel, level and hysteresis`,
@@ -342,15 +449,33 @@ export function tachoPulses(
       } samples apart: the sample rate is too low for this tacho (fewer pulses per revolution, or record faster)`,
     );
   }
-  const mended = mendPulses(times, intervals, medians, options.ppr, missingTeeth);
+  const { silences, ...mended } = mendPulses(times, intervals, medians, options.ppr, missingTeeth);
   const span = series.length / rate;
+  // A stretch at an end longer than 2 of the nearest local median intervals held no pulse
+  // (missingTeeth + 2 on a missing-tooth wheel: a record may end inside the wheel's gap).
+  const allowed = missingTeeth + 2;
   const silent: [number, number][] = [];
-  // A stretch at an end longer than 2 of the nearest pulse intervals held no pulse.
-  if (times[0] > 2 * intervals[0]) silent.push([0, times[0]]);
+  if (times[0] > allowed * medians[0]) silent.push([0, times[0]]);
+  silent.push(...silences);
   const last = times[times.length - 1];
-  if (span - last > 2 * intervals[intervals.length - 1]) silent.push([last, span]);
+  if (span - last > allowed * medians[medians.length - 1]) silent.push([last, span]);
+  // Repair on this scale means the trigger misreads the pulses (or --ppr is wrong): the
+  // speed would be invented, so it is refused rather than written.
+  const repaired = mended.inserted + removed;
+  if (repaired > REPAIR_LIMIT * raw.length) {
+    const hint = mended.wheelHint === undefined
+      ? ""
+      : ` The pulses look like a missing-tooth wheel (${mended.wheelHint.teeth}-${mended.wheelHint.missing}): give --ppr ${mended.wheelHint.teeth} --missing-teeth ${mended.wheelHint.missing}.`;
+    throw new QuiverError(
+      `the tacho pulses cannot be trusted: of ${raw.length} pulses found, ${mended.inserted} had to be filled in and ${removed} removed (${
+        (100 * repaired / raw.length).toFixed(1)
+      } %, more than ${100 * REPAIR_LIMIT} %), so the speed would be invented; ` +
+        `look at the tacho channel and set the trigger (--tacho-level, --tacho-hysteresis), and check the pulses per revolution (--ppr, --missing-teeth).${hint}`,
+    );
+  }
   return {
     ...mended,
+    edge,
     removed,
     level: fixed ? level : undefined,
     hysteresis: fixed ? hysteresis : floor,
@@ -368,10 +493,13 @@ function mendPulses(
   medians: Float64Array,
   ppr: number,
   missingTeeth: number,
-): Pick<
-  TachoPulses,
-  "times" | "angles" | "inserted" | "filled" | "references" | "mismatched" | "wheelHint"
-> {
+):
+  & Pick<
+    TachoPulses,
+    "times" | "angles" | "inserted" | "filled" | "references" | "mismatched" | "wheelHint"
+  >
+  & { silences: [number, number][] } {
+  const silences: [number, number][] = [];
   const filled: number[] = [times[0]];
   const positions: number[] = [0];
   const stretches: [number, number][] = [];
@@ -391,6 +519,22 @@ function mendPulses(
       return;
     }
     const n = Math.round(ratio);
+    if (n > FILL_MOST + 1) {
+      // A silence: no pulse is invented. The angle is counted across it from the pulse rate
+      // either side (the median of up to 5 intervals each side, averaged as rates: exact for
+      // a pulse rate changing linearly).
+      silences.push([times[i], times[i + 1]]);
+      const before = medianOf(intervals, i - 5, i), after = medianOf(intervals, i + 1, i + 6);
+      const rate = Number.isNaN(before)
+        ? 1 / after
+        : Number.isNaN(after)
+        ? 1 / before
+        : (1 / before + 1 / after) / 2;
+      position += Math.max(1, Math.round(interval * rate));
+      filled.push(times[i + 1]);
+      positions.push(position);
+      return;
+    }
     if (interval > 1.5 * medians[i] && n >= 2) {
       for (let j = 1; j < n; j++) {
         filled.push(times[i] + (j * interval) / n);
@@ -417,6 +561,7 @@ function mendPulses(
   const origin = marks.find((m) => m % ppr === residue) ?? 0;
   const angles = new Float64Array(positions.map((p) => (p - origin) / ppr));
   return {
+    silences,
     times: new Float64Array(filled),
     angles,
     inserted,
@@ -425,6 +570,12 @@ function mendPulses(
     mismatched,
     ...(missingTeeth === 0 ? wheelHint(fills) : {}),
   };
+}
+
+/** The median of values[from … to − 1], clipped to the array; NaN when none. */
+function medianOf(values: readonly number[], from: number, to: number): number {
+  const part = values.slice(Math.max(0, from), Math.min(values.length, to)).sort((a, b) => a - b);
+  return part.length === 0 ? NaN : part[part.length >> 1];
 }
 
 /**

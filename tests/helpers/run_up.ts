@@ -99,3 +99,44 @@ export function runUpRecording(
     ],
   };
 }
+
+/**
+ * An inductive (variable-reluctance) pickup: each tooth passing the sensor is a Gaussian bump of
+ * flux in shaft angle, Φ ∝ exp(−(θ − θₖ)²/2w²), and the voltage is dΦ/dt = dΦ/dθ · ω (Faraday's
+ * law), so a positive lobe then a negative lobe whose amplitude grows with speed, crossing zero at
+ * the tooth's centre θₖ = k/ppr (common practice: that zero crossing is the pickup's timing point).
+ * `peakAt600` is the lobes' peak voltage at 600 rpm; `width` is w in revolutions; `noise` the RMS
+ * of added white noise. Teeth whose index is in `absent` (k counted from 0) give nothing.
+ */
+export function inductiveTacho(
+  profile: Profile,
+  rate: number,
+  seconds: number,
+  ppr: number,
+  options: {
+    peakAt600: number;
+    width: number;
+    noise?: number;
+    seed?: number;
+    absent?: (k: number) => boolean;
+  },
+): Float64Array {
+  const n = Math.round(rate * seconds);
+  const w = gaussianNoise(options.seed ?? 3, n);
+  const width = options.width;
+  return new Float64Array(n).map((_, i) => {
+    const t = i / rate;
+    const theta = profile.angle(t);
+    let v = 0;
+    // The teeth within 6 widths of the angle (the rest add less than e^-18).
+    const first = Math.ceil((theta - 6 * width) * ppr),
+      last = Math.floor((theta + 6 * width) * ppr);
+    for (let k = first; k <= last; k++) {
+      if (options.absent?.(k)) continue;
+      const x = (theta - k / ppr) / width;
+      // −x·e^(−x²/2) peaks at e^(−1/2) (x = −1): scaled to 1 there.
+      v += -x * Math.exp(0.5 - x * x / 2);
+    }
+    return options.peakAt600 * (profile.rpm(t) / 600) * v + (options.noise ?? 0) * w[i];
+  });
+}
