@@ -11,7 +11,8 @@ import { parseArgs } from "node:util";
 import type { z } from "npm:zod@4.6.7";
 import type { PlanCommand, PlanOptionProblem } from "../lib/plan/runner.ts";
 import { PLAN_COMMANDS } from "../lib/plan/schema.ts";
-import { COMMON_OPTIONS, nearestName, type OptionSpec, parseCommandArgs } from "./args.ts";
+import { COMMON_OPTIONS, type OptionSpec, parseCommandArgs } from "./args.ts";
+import { nearestName } from "../lib/nearest_name.ts";
 import { loadCommands } from "./commands.ts";
 
 /** The plan runner's command table, with the modules of the plan's commands loaded. */

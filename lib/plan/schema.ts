@@ -230,7 +230,7 @@ export type PlanRecording = Plan["recordings"][string];
 
 /**
  * The nearest known name to a slip, or undefined: the command line's
- * `nearestName` (cli/args.ts), passed in because lib/ never imports cli/.
+ * `nearestName` (lib/nearest_name.ts), passed in by the caller.
  */
 export type Nearest = (name: string, known: readonly string[]) => string | undefined;
 

@@ -6,7 +6,7 @@
 import { existsSync } from "node:fs";
 import { mkdtemp, rm, writeFile } from "node:fs/promises";
 import { afterAll, beforeAll, describe, expect, test } from "vitest";
-import { nearestName } from "../../cli/args.ts";
+import { nearestName } from "../../lib/nearest_name.ts";
 import { planCommandTable } from "../../cli/plan_commands.ts";
 import { checkPlan, type PlanCommand } from "../../lib/plan/runner.ts";
 import { runQuiver } from "../helpers/cli.ts";
