@@ -28,8 +28,9 @@ import {
   type LinePlot,
   linePlot,
   type Series,
-  wireframe,
 } from "./svg_plot.ts";
+import { recordingsSection, VIEWS_STYLE } from "./time_history.ts";
+import { shapeFigure } from "./shape_view.ts";
 import { readFileSync } from "node:fs";
 import { fileURLToPath } from "node:url";
 
@@ -42,6 +43,8 @@ interface Figure {
   readonly chart?: ChartSpec;
   /** One of a set of small pictures, laid out side by side. */
   readonly small?: boolean;
+  /** Markup in place of the plain SVG (a view with its own data: time_history.ts, shape_view.ts). */
+  readonly html?: string;
 }
 
 /** A line plot's static SVG and the data of its interactive chart. */
@@ -648,36 +651,17 @@ async function modalSection(
     const geometry = m.geometry;
     const [mode] = [shapes.columns[0]].map(numbers);
     const point = shapes.columns[1].values, direction = shapes.columns[2].values;
-    const re = numbers(shapes.columns[3]);
+    const re = numbers(shapes.columns[3]), im = numbers(shapes.columns[4]);
     const index = new Map(geometry.points.map((p, i) => [p.point, i]));
     for (const fitted of m.modes) {
-      const move = geometry.points.map(() => [0, 0, 0] as [number, number, number]);
-      for (let k = 0; k < mode.length; k++) {
-        if (mode[k] !== fitted.mode) continue;
-        const i = index.get(String(point[k]));
-        if (i === undefined) continue;
-        // Direction "+z", "-x" …; none given means z. The real part of the normalised shape.
-        const d = /^([+-]?)([xyz])$/i.exec(String(direction[k]));
-        const axis = d === null ? 2 : "xyz".indexOf(d[2].toLowerCase());
-        move[i][axis] += (d !== null && d[1] === "-" ? -1 : 1) * re[k];
-      }
-      figures.push({
-        name: `${id}_shape_${fitted.mode}`,
-        svg: wireframe({
-          title: `Mode ${fitted.mode}: ${formatFixed(fitted.frequencyHz, 1)} Hz, ζ ${
-            formatFixed(100 * fitted.dampingRatio, 2)
-          } %`,
-          points: geometry.points.map((p, i) => ({
-            name: p.point,
-            at: [p.x, p.y, p.z],
-            move: move[i],
-          })),
-          lines: geometry.lines.flatMap(([a, b]) => {
-            const ia = index.get(a), ib = index.get(b);
-            return ia === undefined || ib === undefined ? [] : [[ia, ib] as [number, number]];
-          }),
-        }),
+      const { figure } = shapeFigure(id, fitted, geometry, index, {
+        mode,
+        point,
+        direction,
+        re,
+        im,
       });
+      figures.push(figure);
     }
   }
   return { figures, html };
@@ -831,6 +815,7 @@ function targetTable(targets: readonly TargetOutcome[]): string {
 function figureHtml(f: Figure, file: string): string {
   const id = `figure-${escapeXml(file)}`;
   const small = f.small === true ? ' class="small"' : "";
+  if (f.html !== undefined) return `<figure id="${id}"${small}>${f.html}</figure>`;
   if (f.chart === undefined) return `<figure id="${id}"${small}>${f.svg}</figure>`;
   // JSON inside a script element: "<" escaped so that no "</script" can end it early.
   const json = JSON.stringify(f.chart).replace(/</g, "\\u003c");
@@ -870,14 +855,15 @@ function vendor(file: string): string {
 /** The inlined chart library with its licence notice, and the script that draws the charts. */
 function chartScripts(): string {
   const client = readFileSync(fileURLToPath(new URL("./chart_client.js", import.meta.url)), "utf8");
+  const views = readFileSync(fileURLToPath(new URL("./views_client.js", import.meta.url)), "utf8");
   // "</" inside inlined code could close the script element; none may appear.
   const library = vendor("uPlot.iife.min.js");
-  for (const code of [library, client]) {
+  for (const code of [library, client, views]) {
     if (code.includes("</script")) throw new Error("inlined script holds </script");
   }
   return `<!-- uPlot 1.6.32, MIT licence:\n${
     vendor("LICENSE").replace(/--/g, "- -")
-  }\n-->\n<script>${library}</script>\n<script>${client}</script>`;
+  }\n-->\n<script>${library}</script>\n<script>${client}</script>\n<script>${views}</script>`;
 }
 
 const STYLE = `
@@ -941,6 +927,8 @@ export async function writeReport(outDir: string, manifest: Manifest, plan: Plan
   const titles = new Map<string, string>();
   for (const a of plan.analyses) titles.set(a.id, a.title ?? a.id);
   for (const c of plan.comparisons) titles.set(c.id, c.title ?? c.id);
+  // The raw time histories first: what an engineer checks before any result.
+  sections.push(await recordingsSection(plan, manifest.plan.path));
   const outcomes = new Map((manifest.targets as TargetOutcome[]).map((t) => [t.id, t]));
   const limitsOf = (analysis: string): CurveLimit[] =>
     plan.targets.flatMap((t) =>
@@ -1101,7 +1089,7 @@ export async function writeReport(outDir: string, manifest: Manifest, plan: Plan
   const html = `<!DOCTYPE html>
 <html lang="en"><head><meta charset="utf-8"><title>${escapeXml(title)}</title>
 <meta name="generator" content="quiver ${escapeXml(manifest.quiver_version)}">
-<style>${STYLE}${vendor("uPlot.min.css")}</style></head>
+<style>${STYLE}${VIEWS_STYLE}${vendor("uPlot.min.css")}</style></head>
 <body><header><h1>${escapeXml(title)}</h1>
 <p>${escapeXml(plan.description ?? "")}</p>
 <p>quiver ${escapeXml(manifest.quiver_version)} · plan ${
