@@ -188,35 +188,67 @@ function placeLabels(
   at: readonly (readonly [number, number])[],
   segments: readonly number[][][],
 ): string[] {
-  const placed: [number, number][] = [];
-  const R = 13;
+  const placed: { x: number; y: number; half: number }[] = [];
   return names.map((name, i) => {
-    const half = 3.2 * Math.max(1, name.length); // half the label's width at 11 px
-    let best: [number, number] = [at[i][0] + R, at[i][1] - R], score = -Infinity;
-    for (let d = 0; d < 8; d++) {
-      const angle = (d * Math.PI) / 4;
-      const cx = at[i][0] + (R + half * Math.abs(Math.cos(angle))) * Math.cos(angle);
-      const cy = at[i][1] - R * Math.sin(angle);
-      // The label's clearance: its centre and both ends against every line and label.
-      let clear = Infinity;
-      for (const [a, b] of segments) {
-        for (const ex of [cx - half, cx, cx + half]) {
-          clear = Math.min(clear, toSegment(ex, cy, a, b));
+    // The label's box at 11 px: about 6 px a character (with a margin), 14 px tall.
+    const half = 3.4 * Math.max(1, name.length) + 2, halfHeight = 7;
+    let best = { x: at[i][0] + 12 + half, y: at[i][1] - 12 }, score = -Infinity;
+    for (const radius of [12, 20, 30]) {
+      for (let d = 0; d < 16; d++) {
+        const angle = (d * Math.PI) / 8;
+        const x = at[i][0] + (radius + half * Math.abs(Math.cos(angle))) * Math.cos(angle);
+        const y = at[i][1] - (radius + halfHeight * Math.abs(Math.sin(angle))) * Math.sin(angle);
+        const box = { x0: x - half, x1: x + half, y0: y - halfHeight, y1: y + halfHeight };
+        // Clearance: to every line and every label already placed; nearer places win ties.
+        let clear = Infinity;
+        for (const [a, b] of segments) clear = Math.min(clear, boxToSegment(box, a, b));
+        for (const p of placed) {
+          clear = Math.min(
+            clear,
+            Math.max(Math.abs(p.x - x) - p.half - half, Math.abs(p.y - y) - 2 * halfHeight),
+          );
+        }
+        const value = Math.min(clear, 12) - 0.01 * radius;
+        if (value > score) {
+          score = value;
+          best = { x, y };
         }
       }
-      for (const [lx, ly] of placed) {
-        clear = Math.min(clear, Math.hypot(cx - lx, cy - ly) - 2 * half);
-      }
-      if (clear > score) {
-        score = clear;
-        best = [cx, cy];
-      }
     }
-    placed.push(best);
-    return `<text class="point-label" x="${best[0].toFixed(1)}" y="${
-      (best[1] + 4).toFixed(1)
+    placed.push({ ...best, half });
+    return `<text class="point-label" x="${best.x.toFixed(1)}" y="${
+      (best.y + 4).toFixed(1)
     }" text-anchor="middle" fill="#3d4b59">${escapeXml(name)}</text>`;
   });
+}
+
+/** Distance from a box to the segment a–b: 0 when the segment enters the box. */
+function boxToSegment(
+  box: { x0: number; x1: number; y0: number; y1: number },
+  a: number[],
+  b: number[],
+): number {
+  const inside = (p: number[]) =>
+    p[0] >= box.x0 && p[0] <= box.x1 && p[1] >= box.y0 && p[1] <= box.y1;
+  if (inside(a) || inside(b)) return 0;
+  const corners = [[box.x0, box.y0], [box.x1, box.y0], [box.x1, box.y1], [box.x0, box.y1]];
+  // A segment that crosses an edge of the box.
+  const cross = (p: number[], q: number[], r: number[], s: number[]) => {
+    const d = (q[0] - p[0]) * (s[1] - r[1]) - (q[1] - p[1]) * (s[0] - r[0]);
+    if (d === 0) return false;
+    const t = ((r[0] - p[0]) * (s[1] - r[1]) - (r[1] - p[1]) * (s[0] - r[0])) / d;
+    const u = ((r[0] - p[0]) * (q[1] - p[1]) - (r[1] - p[1]) * (q[0] - p[0])) / d;
+    return t >= 0 && t <= 1 && u >= 0 && u <= 1;
+  };
+  for (let k = 0; k < 4; k++) if (cross(a, b, corners[k], corners[(k + 1) % 4])) return 0;
+  let distance = Infinity;
+  for (const [x, y] of corners) distance = Math.min(distance, toSegment(x, y, a, b));
+  for (const p of [a, b]) {
+    const dx = Math.max(box.x0 - p[0], 0, p[0] - box.x1);
+    const dy = Math.max(box.y0 - p[1], 0, p[1] - box.y1);
+    distance = Math.min(distance, Math.hypot(dx, dy));
+  }
+  return distance;
 }
 
 /**
