@@ -169,7 +169,7 @@
     const motion = JSON.parse(source.textContent);
     const lines = [...svg.querySelectorAll("line.deformed")];
     const points = [...svg.querySelectorAll("circle.moving")];
-    const state = { playing: false, theta: 0, frame: 0, last: 0 };
+    const state = { playing: false, theta: 0, frame: 0, last: 0, place: (theta) => place(theta) };
     const place = (theta) => {
       const c = Math.cos(theta), s = Math.sin(theta);
       const at = motion.base.map((b, i) => [

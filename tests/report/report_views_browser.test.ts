@@ -12,6 +12,8 @@ import { beforeAll, describe, expect, test } from "vitest";
 import { runQuiver } from "../helpers/cli.ts";
 import { demoFolder } from "../helpers/demo_campaign.ts";
 import { CHROMIUM, CHROMIUM_ARGS } from "../../fixtures/demo/screenshots.ts";
+import { shapeDrawing, shapeFigureHtml } from "../../lib/report/shape_view.ts";
+import { fileURLToPath } from "node:url";
 
 async function launch(options: { javaScriptEnabled?: boolean } = {}) {
   const profile = await mkdtemp("/tmp/quiver-chromium-");
@@ -315,6 +317,61 @@ describe("the report's views in a browser", () => {
         // Each order line is drawn as two guides beside the ridge, none over it.
         expect(await figure.locator("g.overlay path.guide").count()).toBe(4);
         expect(errors).toEqual([]);
+      } finally {
+        await context.close();
+      }
+    },
+  );
+
+  test.skipIf(skip)(
+    "the animation draws Re(φ·e^{iθ}): a quarter cycle on, a real point is at rest and an imaginary one at its extreme",
+    async () => {
+      expect(existsSync(CHROMIUM), `${CHROMIUM} is needed for this test`).toBe(true);
+      // Two points moving in z: φ = 1 and φ = i (a travelling wave, analytic).
+      const view = shapeDrawing({
+        title: "t",
+        lines: [[0, 1]],
+        points: [
+          { name: "a", at: [0, 0, 0], re: [0, 0, 1], im: [0, 0, 0] },
+          { name: "b", at: [1, 0, 0], re: [0, 0, 0], im: [0, 0, 1] },
+        ],
+      });
+      const client = await readFile(
+        fileURLToPath(new URL("../../lib/report/views_client.js", import.meta.url)),
+        "utf8",
+      );
+      const { context } = await launch();
+      try {
+        const page = await context.newPage();
+        await page.setContent(
+          `<!DOCTYPE html><html><body><figure id="figure-t">${
+            shapeFigureHtml(view)
+          }</figure><script>${client}</script></body></html>`,
+        );
+        const drawn = (theta: number) =>
+          page.locator("svg.shape").evaluate((svg, t) => {
+            (globalThis as unknown as { quiverShapes: Record<string, { place(t: number): void }> })
+              .quiverShapes.t.place(t);
+            const rest = svg.querySelector("line.undeformed")!;
+            const points = [...svg.querySelectorAll("circle.moving")];
+            return {
+              rest: [["x1", "y1"], ["x2", "y2"]].map((p) =>
+                p.map((a) => Number(rest.getAttribute(a)))
+              ),
+              at: points.map((c) => ["cx", "cy"].map((a) => Number(c.getAttribute(a)))),
+            };
+          }, theta);
+        // θ = 0: Re φ: a up (z up is up the page), b at rest.
+        const start = await drawn(0);
+        const amplitude = start.rest[0][1] - start.at[0][1];
+        expect(amplitude).toBeGreaterThan(20);
+        expect(start.at[1][1]).toBeCloseTo(start.rest[1][1], 0);
+        // θ = π/2: Re(φ·i) = −Im φ: a at rest, b down by the same amplitude.
+        const quarter = await drawn(Math.PI / 2);
+        expect(quarter.at[0][1]).toBeCloseTo(quarter.rest[0][1], 0);
+        expect(quarter.at[1][1] - quarter.rest[1][1]).toBeCloseTo(amplitude, 0);
+        // z motion only: nothing moves sideways.
+        expect(quarter.at[1][0]).toBeCloseTo(quarter.rest[1][0], 0);
       } finally {
         await context.close();
       }
