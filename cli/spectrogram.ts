@@ -57,12 +57,12 @@ const ANALYSIS = {
   }),
   "min-hz": option(numberOption().pipe(z.number().min(0, "must be at least 0")), {
     value: "F",
-    help: "lowest frequency kept (lines below are left out)",
+    help: "lowest frequency kept",
     default: "0",
   }),
   "max-hz": option(numberOption().pipe(z.number().positive("must be positive")), {
     value: "F",
-    help: "highest frequency kept, at most half the rate",
+    help: "highest frequency kept (at most half the rate)",
     default: "half the rate",
   }),
   "max-cells": option(integerOption(), {

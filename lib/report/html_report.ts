@@ -927,8 +927,6 @@ export async function writeReport(outDir: string, manifest: Manifest, plan: Plan
   const titles = new Map<string, string>();
   for (const a of plan.analyses) titles.set(a.id, a.title ?? a.id);
   for (const c of plan.comparisons) titles.set(c.id, c.title ?? c.id);
-  // The raw time histories first: what an engineer checks before any result.
-  sections.push(await recordingsSection(plan, manifest.plan.path));
   const outcomes = new Map((manifest.targets as TargetOutcome[]).map((t) => [t.id, t]));
   const limitsOf = (analysis: string): CurveLimit[] =>
     plan.targets.flatMap((t) =>
@@ -1058,6 +1056,8 @@ export async function writeReport(outDir: string, manifest: Manifest, plan: Plan
       });
     }
   }
+  // The raw time histories of the recordings, after the results they were read for.
+  sections.push(await recordingsSection(plan, manifest.plan.path));
   // Figure names hold channel names read from data: each becomes a safe, distinct file name.
   const allFigures = sections.flatMap((s) => s.figures);
   const fileOf = new Map(

@@ -179,7 +179,7 @@ export function planSlices(plan: Plan, recording: string): SliceMark[] {
 }
 
 /** Pixel size of a time-history picture: width, and height per channel. */
-const WIDTH = 960, PANEL = 96, TOP = 34, GAP = 10, BOTTOM = 40, LEFT = 78, RIGHT = 18;
+const WIDTH = 960, PANEL = 72, TOP = 34, GAP = 10, BOTTOM = 40, LEFT = 78, RIGHT = 18;
 
 /** What the report's script needs to draw the interactive view (JSON-ready). */
 export interface HistorySpec {
@@ -345,6 +345,8 @@ export interface ViewFigure {
   readonly svg: string;
   /** The figure's inner HTML (static picture and data), in place of the plain SVG. */
   readonly html: string;
+  /** One of a set of small pictures, laid out side by side. */
+  readonly small?: boolean;
 }
 
 /** A section of the report. */
@@ -417,6 +419,8 @@ export async function recordingsSection(plan: Plan, planPath: string): Promise<V
         name: `history_${name}`,
         svg,
         html: `<div class="static">${svg}</div>${scriptJson(spec, "history-data")}`,
+        // Two abreast on a wide page: an overview to zoom into, not a page per recording.
+        small: true,
       });
     } catch (error) {
       if (!(error instanceof QuiverError)) throw error;
@@ -439,6 +443,8 @@ export async function recordingsSection(plan: Plan, planPath: string): Promise<V
  */
 export const VIEWS_STYLE = `
 figure.view-live > .static { display: none; }
+.history-title { font-size: 13px; font-weight: 600; margin: 2px 0 0 4px; }
+.history .u-title { font-size: 12px; text-align: right; padding-right: 18px; height: 18px; line-height: 18px; }
 .shape-view svg { max-height: 600px; }
 @media print { figure.view-live > .static { display: block; } }
 `;

@@ -39,7 +39,11 @@
     tools.className = "chart-tools";
     const holder = document.createElement("div");
     holder.className = "interactive history";
+    const heading = document.createElement("div");
+    heading.className = "history-title";
+    heading.textContent = spec.title;
     figure.appendChild(tools);
+    figure.appendChild(heading);
     figure.appendChild(holder);
     const t0 = spec.t[0], t1 = spec.t[spec.t.length - 1];
     const width = () => Math.max(320, Math.min(figure.clientWidth - 16, 1600));
@@ -81,25 +85,14 @@
       }
       ctx.restore();
     };
-    // The channel's name in the panel's corner (a legend per panel would take a row each).
-    const nameHook = (u, c) => {
-      const ctx = u.ctx;
-      const ratio = globalThis.devicePixelRatio || 1;
-      ctx.save();
-      ctx.font = `600 ${12 * ratio}px Helvetica, Arial, sans-serif`;
-      ctx.fillStyle = "#22313f";
-      ctx.textAlign = "right";
-      ctx.fillText(c.name, u.bbox.left + u.bbox.width - 6 * ratio, u.bbox.top + 14 * ratio);
-      ctx.restore();
-    };
     spec.channels.forEach((c, k) => {
       const colour = PALETTE[k % PALETTE.length];
       const unit = c.unit ? " " + c.unit : "";
       const u = new uPlot(
         {
           width: width(),
-          height: 150,
-          title: k === 0 ? spec.title : undefined,
+          height: 120,
+          title: c.name,
           scales: { x: { time: false, auto: false, range: (_u, min, max) => [min, max] } },
           series: [
             { label: "Time", value: (_u, v) => (v === null ? "–" : fmt(v) + " s") },
@@ -124,7 +117,7 @@
           cursor: { drag: { x: true, y: false } },
           legend: { show: false },
           hooks: {
-            draw: [(u) => marksHook(u, k), (u) => nameHook(u, c)],
+            draw: [(u) => marksHook(u, k)],
             setScale: [(u, key) => {
               if (key !== "x" || syncing) return;
               syncing = true;
@@ -154,7 +147,7 @@
     globalThis.addEventListener("resize", () => {
       clearTimeout(resizing);
       resizing = setTimeout(
-        () => panels.forEach((u) => u.setSize({ width: width(), height: 150 })),
+        () => panels.forEach((u) => u.setSize({ width: width(), height: 120 })),
         100,
       );
     });
