@@ -799,7 +799,8 @@ export function heatMap(plot: HeatMap): string {
       (height - MARGIN.bottom + MARGIN.top) / 2
     }) rotate(-90)" text-anchor="middle" fill="#22313f">${escapeXml(plot.zLabel)}</text>`,
   );
-  for (const line of plot.lines ?? []) parts.push(overlayLine(line, xs, ys));
+  const area = { x0: x(0), x1: x(plot.x.length), y0: y(plot.y.length), y1: y(0) };
+  for (const line of plot.lines ?? []) parts.push(overlayLine(line, xs, ys, area));
   if (plot.values === true) {
     plot.z.forEach((col, i) => {
       for (let j = 0; j < plot.y.length; j++) {
@@ -826,6 +827,7 @@ function overlayLine(
   line: { name: string; x: ArrayLike<number>; y: ArrayLike<number> },
   xs: (v: number) => number,
   ys: ScaleLinear<number, number>,
+  area: MapArea,
 ): string {
   const [lo, hi] = ys.domain() as [number, number];
   const points: [number, number][] = [];
@@ -844,7 +846,15 @@ function overlayLine(
     if (inside) points.push([x, y]);
   }
   if (points.length < 2) return "";
-  return overlayGuides(line.name, points.map(([x, y]) => [xs(x), ys(y)]), ys.range());
+  return overlayGuides(line.name, points.map(([x, y]) => [xs(x), ys(y)]), area);
+}
+
+/** The map's rectangle in the picture, px (y0 its top). */
+interface MapArea {
+  readonly x0: number;
+  readonly x1: number;
+  readonly y0: number;
+  readonly y1: number;
 }
 
 /** Gap between an order line's ridge and each of its guides, px. */
@@ -858,8 +868,9 @@ const GUIDE_GAP = 6;
 function overlayGuides(
   name: string,
   pixels: readonly [number, number][],
-  [bottom, top]: number[],
+  area: MapArea,
 ): string {
+  const top = area.y0, bottom = area.y1;
   // Each vertex moved along the normal of its neighbours' chord (exact for a straight line).
   const shifted = (gap: number) =>
     pixels.map(([x, y], i) => {
@@ -880,13 +891,21 @@ function overlayGuides(
   let side = sign;
   if (ly + side * away * up[1] - 10 < top || ly + side * away * up[1] + 4 > bottom) side = -side;
   const tx = lx + side * away * up[0] - 4, ty = ly + side * away * up[1] + 4;
-  return `<g class="overlay" data-name="${escapeXml(name)}"><path class="guide" d="${
-    path(shifted(GUIDE_GAP))
-  }" fill="none" stroke="#ffffff" stroke-width="0.8" stroke-opacity="0.75" stroke-dasharray="2 4"/><path class="guide" d="${
-    path(shifted(-GUIDE_GAP))
-  }" fill="none" stroke="#ffffff" stroke-width="0.8" stroke-opacity="0.75" stroke-dasharray="2 4"/><text class="overlay-label" x="${
-    tx.toFixed(1)
-  }" y="${
+  // The guides in a viewport of the map's own rectangle: what is offset past its edge is cut.
+  const box = `x="${area.x0.toFixed(1)}" y="${area.y0.toFixed(1)}" width="${
+    (area.x1 - area.x0).toFixed(1)
+  }" height="${(area.y1 - area.y0).toFixed(1)}"`;
+  const guide = (p: [number, number][]) =>
+    `<path class="guide" d="${
+      path(p)
+    }" fill="none" stroke="#ffffff" stroke-width="0.8" stroke-opacity="0.75" stroke-dasharray="2 4"/>`;
+  return `<g class="overlay" data-name="${escapeXml(name)}"><svg class="guides" ${box} viewBox="${
+    area.x0.toFixed(1)
+  } ${area.y0.toFixed(1)} ${(area.x1 - area.x0).toFixed(1)} ${
+    (area.y1 - area.y0).toFixed(1)
+  }" overflow="hidden">${guide(shifted(GUIDE_GAP))}${
+    guide(shifted(-GUIDE_GAP))
+  }</svg><text class="overlay-label" x="${tx.toFixed(1)}" y="${
     ty.toFixed(1)
   }" text-anchor="end" fill="#ffffff" stroke="#1a1038" stroke-width="2.4" paint-order="stroke" font-weight="600">${
     escapeXml(name)
