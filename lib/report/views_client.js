@@ -91,7 +91,7 @@
       const u = new uPlot(
         {
           width: width(),
-          height: 120,
+          height: 100,
           title: c.name,
           scales: { x: { time: false, auto: false, range: (_u, min, max) => [min, max] } },
           series: [
@@ -147,7 +147,7 @@
     globalThis.addEventListener("resize", () => {
       clearTimeout(resizing);
       resizing = setTimeout(
-        () => panels.forEach((u) => u.setSize({ width: width(), height: 120 })),
+        () => panels.forEach((u) => u.setSize({ width: width(), height: 100 })),
         100,
       );
     });
