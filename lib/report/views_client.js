@@ -71,6 +71,8 @@
       ctx.lineWidth = 1.4 * ratio;
       ctx.setLineDash([6 * ratio, 3 * ratio]);
       ctx.font = `${11 * ratio}px Helvetica, Arial, sans-serif`;
+      // Labels that would run into one another drop a line.
+      const taken = [];
       for (const m of spec.marks) {
         const x = u.valToPos(m.t, "x", true);
         if (x < left || x > left + w) continue;
@@ -79,8 +81,18 @@
         ctx.lineTo(x, top + h);
         ctx.stroke();
         if (k === 0) {
-          ctx.textAlign = m.edge === "start" ? "left" : "right";
-          ctx.fillText(m.label, x + (m.edge === "start" ? 4 : -4) * ratio, top + 12 * ratio);
+          const size = ctx.measureText(m.label).width;
+          const from = m.edge === "start" ? x + 4 * ratio : x - 4 * ratio - size;
+          let row = 0;
+          while (taken.some((b) => b.row === row && from < b.to && from + size > b.from)) row++;
+          taken.push({ from, to: from + size, row });
+          ctx.textAlign = "left";
+          const base = top + (12 + 13 * row) * ratio;
+          // A pale ground under the label, so it reads over the band.
+          ctx.fillStyle = "rgba(255,255,255,0.85)";
+          ctx.fillRect(from - 2 * ratio, base - 10 * ratio, size + 4 * ratio, 13 * ratio);
+          ctx.fillStyle = "#22313f";
+          ctx.fillText(m.label, from, base);
         }
       }
       ctx.restore();
