@@ -55,6 +55,16 @@ const ANALYSIS = {
     value: "R",
     help: "level reference for --db",
   }),
+  "min-hz": option(numberOption().pipe(z.number().min(0, "must be at least 0")), {
+    value: "F",
+    help: "lowest frequency kept",
+    default: "0",
+  }),
+  "max-hz": option(numberOption().pipe(z.number().positive("must be positive")), {
+    value: "F",
+    help: "highest frequency kept (at most half the rate)",
+    default: "half the rate",
+  }),
   "max-cells": option(integerOption(), {
     value: "N",
     help: "refuse an output larger than N cells",
@@ -115,7 +125,11 @@ export const schema = z.strictObject(shapeOf(TABLE))
     message:
       "--against rpm needs --tacho (with --ppr) or --rpm-channel; the speed options and --orders apply to --against rpm only",
   })
-  .refine(pprWithTacho, { message: "--tacho needs --ppr" });
+  .refine(pprWithTacho, { message: "--tacho needs --ppr" })
+  .refine(
+    (v) => v["min-hz"] === undefined || v["max-hz"] === undefined || v["max-hz"] > v["min-hz"],
+    { message: "--max-hz must be above --min-hz" },
+  );
 
 /** parseArgs spec of the options. */
 export const options = specOf(TABLE);
@@ -150,6 +164,8 @@ export async function run(argv: readonly string[]): Promise<void> {
       table.columns.length - 2
     } channel(s), ${m.kind}, ${m.frames} frame(s) of ${m.segments_per_frame} segment(s) of ${m.block} samples, df ${
       formatNumber(m.df_hz, 6)
-    } Hz${values.out !== undefined ? ` -> ${values.out}` : ""}\n`,
+    } Hz, ${formatNumber(m.min_hz, 6)}–${formatNumber(m.max_hz, 6)} Hz (${m.lines} lines)${
+      values.out !== undefined ? ` -> ${values.out}` : ""
+    }\n`,
   );
 }

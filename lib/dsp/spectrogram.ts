@@ -42,6 +42,68 @@ export interface SpectrogramOptions extends FrameScalingOptions {
   frames?: number;
   /** Largest number of cells (frames × lines × channels). Default {@linkcode MAX_SPECTROGRAM_CELLS}. */
   maxCells?: number;
+  /** Lowest frequency kept, Hz (lines below it are left out). Default 0. */
+  minHz?: number;
+  /** Highest frequency kept, Hz, at most half the rate. Default: half the rate. */
+  maxHz?: number;
+}
+
+/** The lines a frequency range keeps: the first index and how many. */
+export interface LineRange {
+  /** Index of the first line kept (line k is at k·df). */
+  readonly first: number;
+  /** Lines kept. */
+  readonly count: number;
+}
+
+/**
+ * The lines of a spectrum of `block` samples at `rate` that lie inside
+ * [minHz, maxHz] (both ends included): line k is at k·rate/block.
+ *
+ * @throws {RangeError} for a negative or reversed range, or a limit above
+ * half the rate (no line lies there: the limit would be a silent no-op).
+ * @throws {QuiverError} (usage) when no line lies inside the range.
+ *
+ * @example
+ * ```ts
+ * import { linesInRange } from "./spectrogram.ts";
+ * // Lines 1 Hz apart (rate 1024, block 1024): 10 … 20 Hz holds lines 10 to 20.
+ * const r = linesInRange(1024, 1024, 10, 20);
+ * if (r.first !== 10 || r.count !== 11) throw new Error();
+ * ```
+ */
+export function linesInRange(
+  rate: number,
+  block: number,
+  minHz: number | undefined,
+  maxHz: number | undefined,
+): LineRange {
+  const lines = Math.floor(block / 2) + 1;
+  const df = rate / block;
+  const nyquist = rate / 2;
+  const lo = minHz ?? 0, hi = maxHz ?? nyquist;
+  if (!(Number.isFinite(lo) && lo >= 0)) {
+    throw new RangeError(`the lowest frequency must be 0 Hz or more, got ${lo}`);
+  }
+  if (!(Number.isFinite(hi) && hi > lo)) {
+    throw new RangeError(`the highest frequency (${hi} Hz) must be above the lowest (${lo} Hz)`);
+  }
+  if (hi > nyquist || lo > nyquist) {
+    throw new RangeError(
+      `the frequency range ${lo}–${hi} Hz reaches above half the rate (${nyquist} Hz)`,
+    );
+  }
+  // A small tolerance: a limit written as a line's frequency keeps that line.
+  const first = Math.max(0, Math.ceil(lo / df - 1e-9));
+  const last = Math.min(lines - 1, Math.floor(hi / df + 1e-9));
+  if (last < first) {
+    throw new QuiverError(
+      `no line of the spectrum (lines ${df} Hz apart) lies within ${lo}–${hi} Hz; widen the range or use a longer block`,
+      {},
+      "usage",
+    );
+  }
+  return { first, count: last - first + 1 };
 }
 
 /**
@@ -79,7 +141,8 @@ export async function spectrogram(
   const hop = block - overlapSamples;
   const segments = stream.length >= block ? Math.floor((stream.length - block) / hop) + 1 : 0;
   const frameCount = Math.floor(segments / perFrame);
-  const lines = Math.floor(block / 2) + 1;
+  const kept = linesInRange(rate, block, options.minHz, options.maxHz);
+  const lines = kept.count;
   const cells = frameCount * lines * channels.length;
   const maxCells = options.maxCells ?? MAX_SPECTROGRAM_CELLS;
   if (cells > maxCells) {
@@ -108,9 +171,9 @@ export async function spectrogram(
         const offset = frame * lines;
         for (let k = 0; k < lines; k++) {
           time[offset + k] = centre;
-          frequency[offset + k] = estimate.frequencies[k];
+          frequency[offset + k] = estimate.frequencies[kept.first + k];
         }
-        scaling.write(estimate, values, offset);
+        scaling.write(estimate, values, offset, kept);
         frame++;
       },
     },
@@ -142,10 +205,31 @@ export async function spectrogram(
       kind,
       segments_per_frame: perFrame,
       frames: frameCount,
+      ...rangeMetadata(rate, block, kept),
       ...scaling.metadata(),
       warnings,
     },
   };
+}
+
+/**
+ * The frequency range a spectrogram kept, for its metadata: the first and
+ * last line's frequency, Hz, and the lines per frame.
+ *
+ * @example
+ * ```ts
+ * import { rangeMetadata } from "./spectrogram.ts";
+ * const m = rangeMetadata(1024, 512, { first: 5, count: 3 }); // lines 2 Hz apart
+ * if (m.min_hz !== 10 || m.max_hz !== 14 || m.lines !== 3) throw new Error();
+ * ```
+ */
+export function rangeMetadata(rate: number, block: number, kept: LineRange): {
+  min_hz: number;
+  max_hz: number;
+  lines: number;
+} {
+  const df = rate / block;
+  return { min_hz: kept.first * df, max_hz: (kept.first + kept.count - 1) * df, lines: kept.count };
 }
 
 /** How a frame's lines become a spectrogram's values: spectrum kind, weighting, dB. */
@@ -208,8 +292,16 @@ export class FrameScaling {
     );
   }
 
-  /** Writes every channel's scaled lines of `estimate` into `out[c]` from `offset`. */
-  write(estimate: SpectralEstimate, out: readonly Float64Array[], offset: number): void {
+  /**
+   * Writes every channel's scaled lines of `estimate` (those of `range`,
+   * default all) into `out[c]` from `offset`.
+   */
+  write(
+    estimate: SpectralEstimate,
+    out: readonly Float64Array[],
+    offset: number,
+    range: LineRange = { first: 0, count: estimate.frequencies.length },
+  ): void {
     const amplitude = this.#kind === "rms" || this.#kind === "peak";
     const weighting = this.#weighting;
     const gain = this.#gain ??= estimate.frequencies.map((f) => {
@@ -220,9 +312,10 @@ export class FrameScaling {
       const spectrum = autoSpectrum(estimate, c, this.#kind);
       const values = out[c];
       const reference = this.#references[c];
-      for (let k = 0; k < spectrum.length; k++) {
+      for (let i = 0; i < range.count; i++) {
+        const k = range.first + i;
         const v = spectrum[k] * gain[k];
-        values[offset + k] = !this.#db
+        values[offset + i] = !this.#db
           ? v
           : amplitude
           ? 20 * Math.log10(v / reference)

@@ -22,7 +22,9 @@ import type { Table, TableColumn } from "../io/table.ts";
 import { resolveBlock, SpectralAccumulator } from "../dsp/spectral_core.ts";
 import {
   FrameScaling,
+  linesInRange,
   MAX_SPECTROGRAM_CELLS,
+  rangeMetadata,
   type SpectrogramOptions,
 } from "../dsp/spectrogram.ts";
 import {
@@ -117,7 +119,8 @@ export async function spectrogramAgainstRpm(
       `no rpm step has a whole frame of ${span} samples inside the record; use a smaller block or fewer segments per frame`,
     );
   }
-  const lines = Math.floor(block / 2) + 1;
+  const kept = linesInRange(rate, block, options.minHz, options.maxHz);
+  const lines = kept.count;
   const cells = frames.length * lines * channels.length;
   const maxCells = options.maxCells ?? MAX_SPECTROGRAM_CELLS;
   if (cells > maxCells) {
@@ -134,7 +137,7 @@ export async function spectrogramAgainstRpm(
   frames.forEach((f, j) => {
     for (let k = 0; k < lines; k++) {
       rpmColumn[j * lines + k] = f.rpm;
-      frequency[j * lines + k] = k * df;
+      frequency[j * lines + k] = (kept.first + k) * df;
     }
   });
 
@@ -163,7 +166,7 @@ export async function spectrogramAgainstRpm(
       const to = Math.min(first + span, end) - position;
       accumulator.push(chunk.map((c) => c.subarray(from, to)));
       if (first + span <= end) {
-        scaling.write(accumulator.finish(), values, j * lines);
+        scaling.write(accumulator.finish(), values, j * lines, kept);
         open.delete(j);
       }
     }
@@ -199,6 +202,7 @@ export async function spectrogramAgainstRpm(
       kind: options.kind ?? "psd",
       segments_per_frame: perFrame,
       frames: frames.length,
+      ...rangeMetadata(rate, block, kept),
       frame_centre: "the first instant the speed passes the step",
       rpm_min: steps.rpmMin,
       rpm_max: steps.rpmMax,

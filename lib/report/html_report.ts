@@ -30,8 +30,9 @@ import {
   type LinePlot,
   linePlot,
   type Series,
-  wireframe,
 } from "./svg_plot.ts";
+import { recordingsSection, VIEWS_STYLE } from "./time_history.ts";
+import { shapeFigure } from "./shape_view.ts";
 import { readFileSync } from "node:fs";
 import { fileURLToPath } from "node:url";
 
@@ -50,8 +51,8 @@ interface Figure {
   readonly chart?: ChartSpec;
   /** One of a set of small pictures, laid out side by side. */
   readonly small?: boolean;
-  /** A drawing (a mode shape): shown at about its own size, side by side, never page-wide. */
-  readonly drawing?: boolean;
+  /** Markup in place of the plain SVG (a view with its own data: time_history.ts, shape_view.ts). */
+  readonly html?: string;
 }
 
 /**
@@ -689,37 +690,17 @@ async function modalSection(
     const geometry = m.geometry;
     const [mode] = [shapes.columns[0]].map(numbers);
     const point = shapes.columns[1].values, direction = shapes.columns[2].values;
-    const re = numbers(shapes.columns[3]);
+    const re = numbers(shapes.columns[3]), im = numbers(shapes.columns[4]);
     const index = new Map(geometry.points.map((p, i) => [p.point, i]));
     for (const fitted of m.modes) {
-      const move = geometry.points.map(() => [0, 0, 0] as [number, number, number]);
-      for (let k = 0; k < mode.length; k++) {
-        if (mode[k] !== fitted.mode) continue;
-        const i = index.get(String(point[k]));
-        if (i === undefined) continue;
-        // Direction "+z", "-x" …; none given means z. The real part of the normalised shape.
-        const d = /^([+-]?)([xyz])$/i.exec(String(direction[k]));
-        const axis = d === null ? 2 : "xyz".indexOf(d[2].toLowerCase());
-        move[i][axis] += (d !== null && d[1] === "-" ? -1 : 1) * re[k];
-      }
-      figures.push({
-        name: `${id}_shape_${fitted.mode}`,
-        drawing: true,
-        svg: wireframe({
-          title: `Mode ${fitted.mode}: ${formatFixed(fitted.frequencyHz, 1)} Hz, ζ ${
-            formatFixed(100 * fitted.dampingRatio, 2)
-          } %`,
-          points: geometry.points.map((p, i) => ({
-            name: p.point,
-            at: [p.x, p.y, p.z],
-            move: move[i],
-          })),
-          lines: geometry.lines.flatMap(([a, b]) => {
-            const ia = index.get(a), ib = index.get(b);
-            return ia === undefined || ib === undefined ? [] : [[ia, ib] as [number, number]];
-          }),
-        }),
+      const { figure } = shapeFigure(id, fitted, geometry, index, {
+        mode,
+        point,
+        direction,
+        re,
+        im,
       });
+      figures.push(figure);
     }
   }
   return { figures, html };
@@ -983,7 +964,8 @@ function sectionAnchor(stepId: string): string {
  */
 function figureHtml(f: Figure, file: string): string {
   const id = `figure-${escapeXml(file)}`;
-  const small = f.small === true ? ' class="small"' : f.drawing === true ? ' class="drawing"' : "";
+  const small = f.small === true ? ' class="small"' : "";
+  if (f.html !== undefined) return `<figure id="${id}"${small}>${f.html}</figure>`;
   // Two layouts of the picture; the style sheet shows the one that suits the window.
   const pictures = f.narrow === undefined
     ? f.svg
@@ -1027,14 +1009,15 @@ function vendor(file: string): string {
 /** The inlined chart library with its licence notice, and the script that draws the charts. */
 function chartScripts(): string {
   const client = readFileSync(fileURLToPath(new URL("./chart_client.js", import.meta.url)), "utf8");
+  const views = readFileSync(fileURLToPath(new URL("./views_client.js", import.meta.url)), "utf8");
   // "</" inside inlined code could close the script element; none may appear.
   const library = vendor("uPlot.iife.min.js");
-  for (const code of [library, client]) {
+  for (const code of [library, client, views]) {
     if (code.includes("</script")) throw new Error("inlined script holds </script");
   }
   return `<!-- uPlot 1.6.32, MIT licence:\n${
     vendor("LICENSE").replace(/--/g, "- -")
-  }\n-->\n<script>${library}</script>\n<script>${client}</script>`;
+  }\n-->\n<script>${library}</script>\n<script>${client}</script>\n<script>${views}</script>`;
 }
 
 const STYLE = `
@@ -1048,7 +1031,6 @@ h3 { font-size: 15px; margin-bottom: 4px; }
 figure { margin: 12px 0; background: #ffffff; border: 1px solid #d9d4c7; padding: 6px; display: block; }
 figure svg { width: 100%; max-width: 1400px; height: auto; display: block; }
 figure.live > .static { display: none; }
-figure.drawing { display: inline-block; vertical-align: top; width: 420px; max-width: calc(100% - 14px); margin-right: 8px; }
 figure.small { display: inline-block; vertical-align: top; width: calc(50% - 20px); min-width: 320px; margin-right: 8px; }
 .chart-tools { font-size: 12px; margin: 0 0 4px 0; display: flex; flex-wrap: wrap; gap: 6px; align-items: center; }
 .chart-tools button { font: inherit; background: #f4f1ea; border: 1px solid #b9b2a2; border-radius: 3px; padding: 2px 8px; cursor: pointer; }
@@ -1274,6 +1256,8 @@ export async function writeReport(outDir: string, manifest: Manifest, plan: Plan
       });
     }
   }
+  // The raw time histories of the recordings, after the results they were read for.
+  sections.push(await recordingsSection(plan, manifest.plan.path));
   // Figure names hold channel names read from data: each becomes a safe, distinct file name.
   const allFigures = sections.flatMap((s) => s.figures);
   const fileOf = new Map(
@@ -1316,7 +1300,7 @@ export async function writeReport(outDir: string, manifest: Manifest, plan: Plan
   const html = `<!DOCTYPE html>
 <html lang="en"><head><meta charset="utf-8"><title>${escapeXml(title)}</title>
 <meta name="generator" content="quiver ${escapeXml(manifest.quiver_version)}">
-<style>${STYLE}${vendor("uPlot.min.css")}</style></head>
+<style>${STYLE}${VIEWS_STYLE}${vendor("uPlot.min.css")}</style></head>
 <body><header><h1>${escapeXml(title)}</h1>
 <p>${escapeXml(plan.description ?? "")}</p>
 <p>quiver ${escapeXml(manifest.quiver_version)} · plan ${

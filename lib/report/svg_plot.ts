@@ -974,7 +974,8 @@ export function heatMap(plot: HeatMap): string {
       (height - MARGIN.bottom + top) / 2
     }) rotate(-90)" text-anchor="middle" fill="#22313f">${escapeXml(plot.zLabel)}</text>`,
   );
-  for (const line of plot.lines ?? []) parts.push(overlayLine(line, xs, ys));
+  const area = { x0: x(0), x1: x(plot.x.length), y0: y(plot.y.length), y1: y(0) };
+  for (const line of plot.lines ?? []) parts.push(overlayLine(line, xs, ys, area));
   if (plot.values === true) {
     plot.z.forEach((col, i) => {
       for (let j = 0; j < plot.y.length; j++) {
@@ -1001,6 +1002,7 @@ function overlayLine(
   line: { name: string; x: ArrayLike<number>; y: ArrayLike<number> },
   xs: (v: number) => number,
   ys: ScaleLinear<number, number>,
+  area: MapArea,
 ): string {
   const [lo, hi] = ys.domain() as [number, number];
   const points: [number, number][] = [];
@@ -1019,18 +1021,69 @@ function overlayLine(
     if (inside) points.push([x, y]);
   }
   if (points.length < 2) return "";
-  const d = points.map(([x, y], i) =>
-    `${i === 0 ? "M" : "L"}${xs(x).toFixed(1)},${ys(y).toFixed(1)}`
-  )
-    .join("");
-  const [lx, ly] = points[points.length - 1];
-  // Thin and dashed, so the ridge it marks stays visible under it.
-  return `<g class="overlay"><path d="${d}" fill="none" stroke="#ffffff" stroke-width="1" stroke-opacity="0.8" stroke-dasharray="3 5"/><text x="${
-    (xs(lx) - 4).toFixed(1)
-  }" y="${
-    (ys(ly) + 12).toFixed(1)
-  }" text-anchor="end" fill="#ffffff" stroke="#1a1038" stroke-width="0.6" paint-order="stroke">${
-    escapeXml(line.name)
+  return overlayGuides(line.name, points.map(([x, y]) => [xs(x), ys(y)]), area);
+}
+
+/** The map's rectangle in the picture, px (y0 its top). */
+interface MapArea {
+  readonly x0: number;
+  readonly x1: number;
+  readonly y0: number;
+  readonly y1: number;
+}
+
+/** Gap between an order line's ridge and each of its guides, px. */
+const GUIDE_GAP = 6;
+
+/**
+ * An order line drawn so that the ridge it marks stays in view: two thin
+ * dashed guides offset either side of it (never over it), and its name
+ * beside its last point, on the side with room inside the map.
+ */
+function overlayGuides(
+  name: string,
+  pixels: readonly [number, number][],
+  area: MapArea,
+): string {
+  const top = area.y0, bottom = area.y1;
+  // Each vertex moved along the normal of its neighbours' chord (exact for a straight line).
+  const shifted = (gap: number) =>
+    pixels.map(([x, y], i) => {
+      const [ax, ay] = pixels[Math.max(0, i - 1)],
+        [bx, by] = pixels[Math.min(pixels.length - 1, i + 1)];
+      const length = Math.hypot(bx - ax, by - ay) || 1;
+      return [x + (gap * (by - ay)) / length, y - (gap * (bx - ax)) / length] as [number, number];
+    });
+  const path = (p: [number, number][]) =>
+    p.map(([x, y], i) => `${i === 0 ? "M" : "L"}${x.toFixed(1)},${y.toFixed(1)}`).join("");
+  const [lx, ly] = pixels[pixels.length - 1];
+  const [px, py] = pixels[pixels.length - 2];
+  // The upper side (the normal that points up the page) if the label fits there, else the lower.
+  const length = Math.hypot(lx - px, ly - py) || 1;
+  const up = [(ly - py) / length, -(lx - px) / length];
+  const sign = up[1] <= 0 ? 1 : -1;
+  const away = GUIDE_GAP + 9;
+  let side = sign;
+  if (ly + side * away * up[1] - 10 < top || ly + side * away * up[1] + 4 > bottom) side = -side;
+  const tx = lx + side * away * up[0] - 4, ty = ly + side * away * up[1] + 4;
+  // The guides in a viewport of the map's own rectangle: what is offset past its edge is cut.
+  const box = `x="${area.x0.toFixed(1)}" y="${area.y0.toFixed(1)}" width="${
+    (area.x1 - area.x0).toFixed(1)
+  }" height="${(area.y1 - area.y0).toFixed(1)}"`;
+  const guide = (p: [number, number][]) =>
+    `<path class="guide" d="${
+      path(p)
+    }" fill="none" stroke="#ffffff" stroke-width="0.8" stroke-opacity="0.75" stroke-dasharray="2 4"/>`;
+  return `<g class="overlay" data-name="${escapeXml(name)}"><svg class="guides" ${box} viewBox="${
+    area.x0.toFixed(1)
+  } ${area.y0.toFixed(1)} ${(area.x1 - area.x0).toFixed(1)} ${
+    (area.y1 - area.y0).toFixed(1)
+  }" overflow="hidden">${guide(shifted(GUIDE_GAP))}${
+    guide(shifted(-GUIDE_GAP))
+  }</svg><text class="overlay-label" x="${tx.toFixed(1)}" y="${
+    ty.toFixed(1)
+  }" text-anchor="end" fill="#ffffff" stroke="#1a1038" stroke-width="2.4" paint-order="stroke" font-weight="600">${
+    escapeXml(name)
   }</text></g>`;
 }
 

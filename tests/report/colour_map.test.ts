@@ -120,12 +120,18 @@ describe("colour maps", () => {
       z: x.map(() => [0, 1, 2]),
       lines: [{ name: "order 8", x, y: x.map((r) => (8 * r) / 60) }],
     });
-    const path = svg.match(/<g class="overlay"><path d="([^"]+)"/)![1];
-    const points = path.match(/[ML][\d.]+,[\d.]+/g)!.map((p) => p.slice(1).split(",").map(Number));
+    // Drawn as two guides either side of the ridge: each vertex pair's midpoint is the ridge.
+    const guides = [...svg.matchAll(/<path class="guide" d="([^"]+)"/g)].map((m) =>
+      m[1].match(/[ML][\d.]+,[\d.]+/g)!.map((p) => p.slice(1).split(",").map(Number))
+    );
+    expect(guides).toHaveLength(2);
+    const points = guides[0].map((p, k) => p.map((v, j) => (v + guides[1][k][j]) / 2));
     // 8·rpm/60 reaches the top line (200 Hz) at 1500 rpm: two points, the second on the edge.
     expect(points).toHaveLength(2);
     const ys = points.map((p) => p[1]);
-    expect(Math.min(...ys)).toBeGreaterThanOrEqual(34 - 1e-9); // the plot's top margin
+    expect(Math.min(...ys)).toBeGreaterThanOrEqual(34 - 0.1); // the plot's top margin (1-decimal px)
+    // The guides are cut at the map's edges: they sit in a viewport of the map's rectangle.
+    expect(svg).toMatch(/<svg class="guides" x="70\.0" y="34\.0"[^>]*overflow="hidden">/);
     expect(svg).toMatch(/>order 8<\/text>/);
   });
 });
