@@ -39,6 +39,25 @@ export function escapeName(text: string): string {
 }
 
 /**
+ * Whether `text` holds only characters that show as themselves (see
+ * {@linkcode checkName}); `allowNewlines` lets line feeds through, for
+ * free text such as a description.
+ *
+ * @example
+ * ```ts
+ * import { isShowable } from "./names.ts";
+ * if (!isShowable("Tamarack E5, build 2") || isShowable("a\u202eb") || !isShowable("a\nb", true)) throw new Error();
+ * ```
+ */
+export function isShowable(text: string, allowNewlines = false): boolean {
+  UNSHOWABLE.lastIndex = 0;
+  const checked = allowNewlines ? text.replaceAll("\n", "") : text;
+  const found = UNSHOWABLE.test(checked);
+  UNSHOWABLE.lastIndex = 0;
+  return !found;
+}
+
+/**
  * Checks a name read from a file.
  *
  * @throws {QuiverError} (data) at `where`, naming `what` and showing the

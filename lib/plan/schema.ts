@@ -36,6 +36,7 @@
  * @module
  */
 import { z } from "npm:zod@4.6.7";
+import { isShowable } from "../io/names.ts";
 import { isReportFileName } from "./campaign_paths.ts";
 
 /** The analysis commands a plan can run. */
@@ -53,7 +54,20 @@ export const PLAN_COMMANDS = [
   "paths",
 ] as const;
 
-const id = z.string().regex(/^[A-Za-z0-9_-]+$/, "ids use letters, digits, _ and - only");
+// Ids name files (<id>.json, <id>_<part>.json): a portable set, and short enough for any file system.
+const id = z.string().regex(/^[A-Za-z0-9_-]+$/, "ids use letters, digits, _ and - only")
+  .max(100, "ids are at most 100 characters (they name the step's files)");
+
+/**
+ * Text a plan shows (titles, descriptions) in the report and on the terminal:
+ * no control, bidirectional or zero-width character (lib/io/names.ts), which
+ * would reorder or hide what is shown around it; a description may hold line feeds.
+ */
+const shown = (allowNewlines = false) =>
+  z.string().refine(
+    (text) => isShowable(text, allowNewlines),
+    "holds a control, bidirectional or zero-width character, which would change how the report and the terminal show it",
+  );
 const optionValue = z.union([
   z.string(),
   z.number(),
@@ -97,7 +111,7 @@ const analysisSchema = z.strictObject({
   simulation: z.strictObject({ file: z.string().min(1) }).optional(),
   /** `mac`: which simulation point is which test point (simulation_point, …, test_direction). */
   map: z.strictObject({ file: z.string().min(1) }).optional(),
-  title: z.string().optional(),
+  title: shown().optional(),
   options: z.record(optionName, optionValue).default({}),
 });
 
@@ -106,7 +120,7 @@ const comparisonSchema = z.strictObject({
   test: z.string(),
   test_column: z.string().optional(),
   simulation: z.strictObject({ file: z.string().min(1), column: z.string().optional() }),
-  title: z.string().optional(),
+  title: shown().optional(),
   options: z.record(optionName, optionValue).default({}),
 });
 
@@ -158,8 +172,8 @@ const curveTarget = z.strictObject({
  */
 export const planSchema = z.strictObject({
   quiver_plan: z.literal(1),
-  title: z.string().min(1),
-  description: z.string().optional(),
+  title: shown().pipe(z.string().min(1)),
+  description: shown(true).optional(),
   recordings: z.record(z.string(), recordingSchema),
   analyses: z.array(analysisSchema).min(1, "a plan needs at least one analysis"),
   comparisons: z.array(comparisonSchema).default([]),
@@ -168,7 +182,7 @@ export const planSchema = z.strictObject({
   /** When true, a failed or unchecked target makes `run` exit with TARGETS_NOT_MET_EXIT. */
   require_targets: z.boolean().default(false),
   report: z.strictObject({
-    title: z.string().optional(),
+    title: shown().optional(),
     /** One plain file name ending .html, written in the output folder itself. */
     file: z.string().refine(
       isReportFileName,
