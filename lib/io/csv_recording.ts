@@ -7,7 +7,9 @@
  * `time_s` or `time` (any case), in unit `s` or none, is the time axis. The rate comes from its first and last values (the nominal
  * rate of a rounded column, time_axis.ts); every step is checked against the
  * median of the first 1001 steps (1 % by default), so a gap, jump or jitter
- * is named by its line. Without a time column the rate must be given; the
+ * is named by its line; a step that rounding of the times to the decimals or
+ * significant digits the file shows explains is "too few digits" instead
+ * (and let pass when the rate is given). Without a time column the rate must be given; the
  * message then lists the header's columns.
  *
  * @module
