@@ -5,8 +5,8 @@ import { recordingCsv } from "../helpers/csv.ts";
 import { driftingHits } from "../helpers/hammer_recording.ts";
 
 // Sources: the hits are half-sine pulses whose peaks and times are analytic
-// (tests/helpers/hammer_recording.ts: P·sin(π(t − t0)/T) peaks at P, Ewins, Modal Testing,
-// 2000, 3.6.3); a force baseline that drifts between hits is common practice to expect
+// (tests/helpers/hammer_recording.ts: P·sin(π(t − t0)/T) peaks at P, analytic; the half-sine
+// as an impact pulse is common practice); a force baseline that drifts between hits is common practice to expect
 // (charge amplifiers, temperature), and the counts below follow from the invented
 // recording by construction (10 hits, 5 of them at 20 N below a 50 N trigger).
 describe("quiver hammer on a drifting force channel", () => {
