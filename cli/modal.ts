@@ -44,7 +44,7 @@ const ANALYSIS = {
   "max-order": option(integerOption(), {
     value: "N",
     help:
-      "highest model order (even, at most 128 and at most the\nband's lines − 2); orders 2, 4, … N are fitted",
+      "highest model order (even, at least 12 without --modes-hz,\nat most 128 and at most the band's lines − 2); orders\n2, 4, … N are fitted",
     default: "32",
   }),
   "modes-hz": option(positiveListOption("frequencies"), {
