@@ -9,7 +9,7 @@ import { RECORDING_TABLE } from "./recording_options.ts";
 import { readFile } from "node:fs/promises";
 import process from "node:process";
 import { z } from "npm:zod@4.6.7";
-import { calibrateMicrophone } from "../lib/acoustics/calibration.ts";
+import { calibrateMicrophone, CALIBRATOR_LEVEL_DB } from "../lib/acoustics/calibration.ts";
 import { QuiverError } from "../lib/errors.ts";
 import { formatFixed, formatNumber } from "../lib/format_number.ts";
 import { writeFileAtomic } from "../lib/io/atomic_write.ts";
@@ -23,13 +23,25 @@ import { inFile, inFileAsync, numberOption, parseCommandArgs, usageError } from 
 export const summary =
   "microphone sensitivity from an acoustic calibrator recording; updates the set-up";
 
+// A calibrator level outside this is a slip (pascals, a lost decimal point), refused as such.
+const LEVEL_RANGE =
+  `must lie above ${CALIBRATOR_LEVEL_DB.above} dB and at most ${CALIBRATOR_LEVEL_DB.atMost} dB re 20 uPa (calibrators give 94 or 114 dB, pistonphones about 124 dB)`;
+
 const ANALYSIS = {
-  level: option(numberOption().pipe(z.number().positive("must be a positive number of dB")), {
-    value: "DB",
-    help: "calibrator level, dB re 20 uPa",
-    default: "94",
-    feeds: "levelDb",
-  }),
+  level: option(
+    numberOption().pipe(
+      z.number().gt(CALIBRATOR_LEVEL_DB.above, LEVEL_RANGE).lte(
+        CALIBRATOR_LEVEL_DB.atMost,
+        LEVEL_RANGE,
+      ),
+    ),
+    {
+      value: "DB",
+      help: "calibrator level, dB re 20 uPa",
+      default: "94",
+      feeds: "levelDb",
+    },
+  ),
   frequency: option(numberOption().pipe(z.number().positive("must be a positive number of Hz")), {
     value: "HZ",
     help: "calibrator frequency",

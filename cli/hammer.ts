@@ -77,7 +77,8 @@ const WINDOWS = {
   }),
   "exp-window": option(positive("seconds"), {
     value: "TAU_S",
-    help: "exponential window exp(-t/TAU) on every channel",
+    help:
+      "exponential window exp(-t/TAU) on every channel; at least\nthe record / ln(1e4) (its end value at least 1e-4)",
     feeds: "expTau",
   }),
   "exp-end": option(

@@ -12,10 +12,12 @@ import { readFrfFile } from "../lib/modal/frf_input.ts";
 import { parseGeometry } from "../lib/modal/geometry.ts";
 import {
   largestModelOrder,
+  linesForOrder,
   modalBand,
   type ModalDof,
   modalFit,
   modalTables,
+  smallestAutomaticOrder,
 } from "../lib/modal/modal_fit.ts";
 import { readFile } from "node:fs/promises";
 import { integerOption, numberOption, parseCommandArgs, usageError } from "./args.ts";
@@ -42,7 +44,7 @@ const ANALYSIS = {
   "max-order": option(integerOption(), {
     value: "N",
     help:
-      "highest model order (even, at most 128 and at most the\nband's lines − 2); orders 2, 4, … N are fitted",
+      "highest model order (even, at least 12 without --modes-hz,\nat most 128 and at most the band's lines − 2); orders\n2, 4, … N are fitted",
     default: "32",
   }),
   "modes-hz": option(positiveListOption("frequencies"), {
@@ -115,6 +117,11 @@ export const schema = z.strictObject(shapeOf(TABLE));
 /** parseArgs spec of the options. */
 export const options = specOf(TABLE);
 
+/** The band's ends as text, or "(empty)". */
+function bandText(axis: Float64Array, from: number, to: number): string {
+  return to > from ? `${formatFixed(axis[from], 2)}–${formatFixed(axis[to - 1], 2)} Hz` : "(empty)";
+}
+
 /** Runs the command. */
 export async function run(argv: readonly string[]): Promise<void> {
   const { positionals, values } = parseCommandArgs(argv, options, schema);
@@ -173,18 +180,45 @@ export async function run(argv: readonly string[]): Promise<void> {
     ? parseGeometry(await readFile(values.geometry, "utf8"), { file: values.geometry })
     : undefined;
   const analysis = libraryOptions(ANALYSIS, values);
-  // Refuse an order the band cannot hold before any fitting.
+  // Refuse a band or order that cannot give a mode before any fitting.
+  if (
+    analysis.minHz !== undefined && analysis.maxHz !== undefined && analysis.minHz >= analysis.maxHz
+  ) {
+    usageError(
+      `--min-hz ${analysis.minHz} is not below --max-hz ${analysis.maxHz}: give the band's lower end first`,
+    );
+  }
   const { from, to } = modalBand(axis, analysis);
-  const largest = largestModelOrder(to - from);
+  const lines = to - from;
+  const largest = largestModelOrder(lines);
   const maxOrder = values["max-order"] ?? 32;
+  const automatic = values["modes-hz"] === undefined;
+  // The automatic rule needs a cluster stable at 5 orders; orders start at 2 in steps of 2.
+  const needed = automatic ? smallestAutomaticOrder() : 4;
   if (maxOrder < 4 || maxOrder % 2 !== 0) {
     usageError(`--max-order ${maxOrder}: the highest order must be even and at least 4`);
   }
+  if (largest < needed) {
+    usageError(
+      `the band ${bandText(axis, from, to)} holds ${lines} line(s): too narrow for any fit; ${
+        automatic
+          ? `the automatic choice of modes fits orders up to at least ${needed} and needs at least ${
+            linesForOrder(needed)
+          } lines`
+          : `a fit of order 4 needs at least ${linesForOrder(4)} lines`
+      }; widen --min-hz/--max-hz`,
+    );
+  }
+  if (maxOrder < needed) {
+    usageError(
+      `--max-order ${maxOrder} cannot give a mode: orders 2, 4, … ${maxOrder} hold at most ${
+        maxOrder / 2 - 1
+      } stable poles (order 2 has none before it) and a mode needs a cluster stable at 5; the smallest that can is --max-order ${needed} (or name the modes with --modes-hz)`,
+    );
+  }
   if (maxOrder > largest) {
     usageError(
-      `--max-order ${maxOrder} is more than quiver fits on this band of ${
-        to - from
-      } lines: at most ${largest}`,
+      `--max-order ${maxOrder} is more than quiver fits on this band of ${lines} lines: at most ${largest}`,
     );
   }
   const result = modalFit(axis, dofs, analysis);

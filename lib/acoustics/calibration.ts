@@ -29,6 +29,14 @@ import { autoSpectrum } from "../dsp/spectrum_kinds.ts";
 /** Frame length for judging the tone's steadiness, seconds (at least 20 periods of the tone). */
 export const FRAME_S = 0.1;
 
+/**
+ * The calibrator levels quiver accepts, dB re 20 µPa: above 0 and at most
+ * 200 (common practice: sound calibrators give 94 or 114 dB and
+ * pistonphones about 124 dB; 200 dB, 2·10⁵ Pa, is far above any, and a
+ * larger number is a slip, e.g. pascals or a lost decimal point).
+ */
+export const CALIBRATOR_LEVEL_DB = { above: 0, atMost: 200 } as const;
+
 /** How far a frame's level may lie from the median frame level and still be steady, dB. */
 export const STEADY_DB = 0.3;
 
@@ -101,6 +109,11 @@ export async function calibrateMicrophone(
   const levelDb = options.levelDb ?? 94;
   const frequencyHz = options.frequencyHz ?? 1000;
   const scale = options.voltsPerUnit ?? 1;
+  if (!(levelDb > CALIBRATOR_LEVEL_DB.above && levelDb <= CALIBRATOR_LEVEL_DB.atMost)) {
+    throw new RangeError(
+      `the calibrator level must lie above ${CALIBRATOR_LEVEL_DB.above} dB and at most ${CALIBRATOR_LEVEL_DB.atMost} dB re 20 µPa, got ${levelDb}`,
+    );
+  }
   if (!(frequencyHz > 0 && frequencyHz < rate / 2)) {
     throw new RangeError(
       `the calibrator frequency must lie below ${rate / 2} Hz, got ${frequencyHz}`,

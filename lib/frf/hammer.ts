@@ -86,6 +86,22 @@ export interface HammerResult {
  */
 export const USABLE_DROP_DB = 20;
 
+/**
+ * The lowest value the exponential window may fall to at the record's end:
+ * 10⁻⁴ (−80 dB), so τ ≥ T/ln(10⁴) ≈ T/9.2 for a record of T seconds. Common
+ * practice ends the window near 1 to 5 % (τ ≈ T/4.6 … T/3); a shorter τ
+ * leaves little of the response, and the damping it adds (1/τ on every
+ * pole) swamps the structure's. The bound is ours, twice as short as the
+ * shortest common choice.
+ */
+export const EXP_WINDOW_END_FLOOR = 1e-4;
+
+/**
+ * When a response's median coherence over the lines is below this, its FRF
+ * is warned of (ours: half its power unrelated to the force at most lines).
+ */
+export const LOW_COHERENCE = 0.5;
+
 /** The hammer's usable frequency range. */
 export interface UsableBandwidth {
   /** Upper limit, Hz: the first line where the force autospectrum is USABLE_DROP_DB down. */
@@ -232,6 +248,12 @@ export async function hammerFrf(
     }, options));
 }
 
+/** `x` rounded up to `digits` significant digits (a bound that, as printed, still holds). */
+function ceilSignificant(x: number, digits: number): number {
+  const step = 10 ** (Math.floor(Math.log10(x)) - digits + 1);
+  return Math.ceil(x / step) * step;
+}
+
 /** The hammer analysis on the channels' series (force first). */
 function analyseHits(
   series: readonly SampleSeries[],
@@ -271,6 +293,21 @@ function analyseHits(
   }
   const tau = options.expTau ??
     (options.expEnd !== undefined ? -(recordSamples / rate) / Math.log(options.expEnd) : undefined);
+  // A τ given too short for the record is refused before any averaging (see EXP_WINDOW_END_FLOOR).
+  const shortestTau = (recordSamples / rate) / -Math.log(EXP_WINDOW_END_FLOOR);
+  if (options.expTau !== undefined && options.expTau < shortestTau) {
+    throw new QuiverError(
+      `an exponential window of ${
+        formatNumber(options.expTau, 3)
+      } s is too short for the record of ${
+        formatNumber(recordSamples / rate, 6)
+      } s (${recordSamples} samples): it falls below ${EXP_WINDOW_END_FLOOR} at the record's end and adds damping 1/τ that swamps the structure's; the smallest τ quiver takes is the record / ln(1/${EXP_WINDOW_END_FLOOR}) = ${
+        formatNumber(ceilSignificant(shortestTau, 4), 4)
+      } s`,
+      {},
+      "usage",
+    );
+  }
 
   const forceWindow = forceWindowSamples(recordSamples, forceWindowLength);
   const exponential = new Float64Array(recordSamples).map((_, i) =>
@@ -317,6 +354,23 @@ function analyseHits(
       } Hz: the hammer excites the whole band (or the force channel is noise)`,
     ]),
     ...channelInfo.signalWarnings,
+    // Coherence low over the band: the response is not driven by this force (wrong channel,
+    // a window that left nothing of the response, a loose sensor). The median, not the
+    // largest: with few averages, noise alone tops 0.5 at some line of a thousand.
+    ...parts.frf.channels.flatMap((c) => {
+      if (c.coherence === undefined || c.coherence.length === 0) return [];
+      const sorted = Float64Array.from(c.coherence).sort();
+      const median = sorted[sorted.length >> 1];
+      let below = 0;
+      for (const v of c.coherence) if (v < LOW_COHERENCE) below++;
+      return median < LOW_COHERENCE
+        ? [
+          `the coherence of "${c.name}" is below ${LOW_COHERENCE} at ${below} of ${c.coherence.length} lines (median ${
+            formatNumber(median, 2)
+          }): its FRF is not to be trusted (is the response driven by this force? is a window too short?)`,
+        ]
+        : [];
+    }),
     ...(detection.belowTrigger.count > 0
       ? [
         `${detection.belowTrigger.count} pulse(s) on "${force.name}" rose above ${NOISE_SIGMAS} noise sigma (${

@@ -7,7 +7,9 @@
  * `time_s` or `time` (any case), in unit `s` or none, is the time axis. The rate comes from its first and last values (the nominal
  * rate of a rounded column, time_axis.ts); every step is checked against the
  * median of the first 1001 steps (1 % by default), so a gap, jump or jitter
- * is named by its line. Without a time column the rate must be given; the
+ * is named by its line; a step that rounding of the times to the decimals or
+ * significant digits the file shows explains is "too few digits" instead
+ * (and let pass when the rate is given). Without a time column the rate must be given; the
  * message then lists the header's columns.
  *
  * @module
@@ -259,20 +261,30 @@ export class TimeStepCheck {
   readonly #tolerance: number;
   readonly #column: number;
   readonly #file?: string;
+  /** With a rate given, steps that only rounding of the times moved are let pass. */
+  readonly #rateGiven: boolean;
   #previous = NaN;
   #reference = NaN;
   #decimals = 0;
+  /** The most significant digits a time was written with (%.7g writes 7). */
+  #significant = 0;
   readonly #head: { dt: number; line: number; from: number; to: number }[] = [];
 
   constructor(column: number, options: CsvReadOptions = {}) {
     this.#column = column;
     this.#tolerance = options.timeTolerance ?? 0.01;
     this.#file = options.file;
+    this.#rateGiven = options.rate !== undefined;
   }
 
   /** The next row's time, line and decimals written. @throws {QuiverError} at a bad step. */
   push(time: number, line: number, decimals: number): void {
     if (decimals > this.#decimals) this.#decimals = decimals;
+    // Digits written: those before the point (from the magnitude) plus the decimals.
+    if (time !== 0 && Number.isFinite(decimals)) {
+      const significant = Math.floor(Math.log10(Math.abs(time))) + 1 + decimals;
+      if (significant > this.#significant) this.#significant = significant;
+    }
     const previous = this.#previous;
     this.#previous = time;
     if (Number.isNaN(previous)) return;
@@ -285,7 +297,7 @@ export class TimeStepCheck {
       if (this.#head.length === REFERENCE_STEPS) this.#settle();
       return;
     }
-    this.#judge(dt, line);
+    this.#judge(dt, line, previous, time);
   }
 
   /** Ends the check (judges the steps held back when there were few). */
@@ -296,29 +308,57 @@ export class TimeStepCheck {
   #settle(): void {
     const sorted = this.#head.map((h) => h.dt).sort((a, b) => a - b);
     this.#reference = sorted[Math.floor((sorted.length - 1) / 2)];
-    for (const h of this.#head) this.#judge(h.dt, h.line);
+    for (const h of this.#head) this.#judge(h.dt, h.line, h.from, h.to);
     this.#head.length = 0;
   }
 
-  #judge(dt: number, line: number): void {
+  /**
+   * The rounding quantum of a written time: one unit of the last decimal, or,
+   * for a column written to a number of significant digits (%.7g), one unit
+   * of the last digit at this magnitude (10⁻⁵ s from 10 s on), whichever is
+   * larger.
+   */
+  #quantum(time: number): number {
+    const decimals = this.#decimals;
+    if (!Number.isFinite(decimals)) return 0;
+    const byDecimals = 10 ** -decimals;
+    if (time === 0 || this.#significant === 0) return byDecimals;
+    const bySignificant = 10 ** (Math.floor(Math.log10(Math.abs(time))) - this.#significant + 1);
+    return Math.max(byDecimals, bySignificant);
+  }
+
+  #judge(dt: number, line: number, from: number, to: number): void {
     const step = this.#reference;
     const tolerance = this.#tolerance;
     const deviation = Math.abs(dt - step);
     if (deviation <= tolerance * step) return;
-    // Rounding the printed times to d places moves a step by up to one quantum; a
-    // deviation that rounding alone explains means too few digits.
-    const decimals = this.#decimals;
-    const quantum = Number.isFinite(decimals) ? 10 ** -decimals : 0;
+    // Rounding the printed times moves a step by up to one quantum of its ends; a deviation
+    // that rounding alone explains means too few digits, not a gap.
+    const quantum = Math.max(this.#quantum(from), this.#quantum(to));
+    if (deviation <= quantum * (1 + 1e-6)) {
+      // The rate was given: the column's rounding does not matter.
+      if (this.#rateGiven) return;
+      const decimals = this.#decimals;
+      const bySignificant = quantum > 10 ** -decimals * (1 + 1e-6);
+      this.#fail(
+        `the time column has too few digits for this rate (${
+          bySignificant
+            ? `written with ${this.#significant} significant digits, a time near ${
+              formatNumber(to, 3)
+            } s is known to ${formatNumber(quantum, 3)} s`
+            : `written with ${decimals} decimals, too few`
+        } for a sample interval of ${formatNumber(step, 4)} s, rate ${
+          formatNumber(1 / step, 4)
+        } Hz: steps vary by more than ${tolerance * 100} %; write at least ${
+          Math.ceil(-Math.log10(tolerance * step))
+        } decimals); give --rate HZ to ignore it`,
+        line,
+      );
+    }
     this.#fail(
-      deviation <= quantum * (1 + 1e-6)
-        ? `the time column is written with ${decimals} decimals, too few for a sample interval of ${step} s ` +
-          `(rate ${1 / step} Hz): steps vary by more than ${tolerance * 100} %; write at least ` +
-          `${
-            Math.ceil(-Math.log10(tolerance * step))
-          } decimals, or drop the column and give the rate`
-        : `time step of ${dt} s differs from the mean step ${step} s by more than ${
-          tolerance * 100
-        } %: a gap, jump or jitter in the time column`,
+      `time step of ${dt} s differs from the mean step ${step} s by more than ${
+        tolerance * 100
+      } %: a gap, jump or jitter in the time column`,
       line,
     );
   }

@@ -188,6 +188,37 @@ export function largestModelOrder(lines: number): number {
   return Math.min(byLines, SELECTION_RULE.orderLimit);
 }
 
+/**
+ * The lowest highest-order with which the automatic rule can find a mode:
+ * orders run 2, 4, …, and a pole of order 2 has no order before it to be
+ * stable against, so orders 4 … N hold N/2 − 1 stable poles at most; a
+ * mode needs `stableOrders` of them (default 5, hence 12).
+ *
+ * @example
+ * ```ts
+ * import { smallestAutomaticOrder } from "./modal_fit.ts";
+ * if (smallestAutomaticOrder() !== 12 || smallestAutomaticOrder(3) !== 8) throw new Error();
+ * ```
+ */
+export function smallestAutomaticOrder(stableOrders = 5): number {
+  // Orders 4, 6, …, N can each hold one stable pole: N/2 − 1 ≥ stableOrders.
+  return 2 * stableOrders + 2;
+}
+
+/**
+ * The fewest band lines a fit of order `order` needs (the inverse of
+ * {@linkcode largestModelOrder}: more than order + 1 lines).
+ *
+ * @example
+ * ```ts
+ * import { largestModelOrder, linesForOrder } from "./modal_fit.ts";
+ * if (linesForOrder(12) !== 14 || largestModelOrder(linesForOrder(12)) !== 12) throw new Error();
+ * ```
+ */
+export function linesForOrder(order: number): number {
+  return order + 2;
+}
+
 function asReceptance(
   frf: FrfChannel,
   frequencies: Float64Array,
@@ -309,6 +340,14 @@ export function modalFit(
   const { from, to } = modalBand(frequencies, options);
   // Refuse at once, not after fitting every lower order.
   const largest = largestModelOrder(to - from);
+  const automatic = smallestAutomaticOrder(stableOrders);
+  if (options.modesHz === undefined && maxOrder < automatic) {
+    throw new RangeError(
+      `the highest order ${maxOrder} cannot give a mode: orders 2, 4, … ${maxOrder} hold at most ${
+        Math.max(0, maxOrder / 2 - 1)
+      } stable poles (order 2 has none before it) and a mode needs ${stableOrders}; at least ${automatic}`,
+    );
+  }
   if (maxOrder > largest) {
     throw new RangeError(
       `the highest order ${maxOrder} is more than the band of ${
@@ -478,8 +517,25 @@ export function modalFit(
     chosen = kept.map((c) => ({ pole: clusterPole(c), cluster: c, named: false }));
   }
   if (chosen.length === 0) {
+    // Name the clear peaks the fit left without a mode, as the success path does.
+    // The most prominent first, at most five, so that noise peaks do not bury the clear ones.
+    const peaks = unexplained(frequencies, from, to, dofs, []).sort((a, b) =>
+      b.prominenceDb - a.prominenceDb
+    );
+    const shown = peaks.slice(0, 5);
+    const named = peaks.length === 0
+      ? `the FRFs show no clear peak (${SELECTION_RULE.peakProminenceDb} dB prominence) either`
+      : `clear peaks of the FRFs no mode explains${
+        peaks.length > shown.length
+          ? ` (the ${shown.length} most prominent of ${peaks.length})`
+          : ""
+      }: ${
+        shown.map((p) =>
+          `${formatFixed(p.frequencyHz, 2)} Hz (${formatFixed(p.prominenceDb, 1)} dB)`
+        ).join(", ")
+      }`;
     throw new QuiverError(
-      `no cluster of poles was stable at ${stableOrders} or more orders and at most of the orders up to ${maxOrder}; raise --max-order, narrow the band, or name the modes with --modes-hz`,
+      `no cluster of poles was stable at ${stableOrders} or more orders and at most of the orders up to ${maxOrder}; ${named}; raise --max-order, narrow the band, or name the modes with --modes-hz`,
     );
   }
   chosen.sort((a, b) => a.pole.frequencyHz - b.pole.frequencyHz);

@@ -4,6 +4,11 @@ import { runQuiver } from "../helpers/cli.ts";
 import { recordingCsv } from "../helpers/csv.ts";
 import { driftingHits } from "../helpers/hammer_recording.ts";
 
+// Sources: the hits are half-sine pulses whose peaks and times are analytic
+// (tests/helpers/hammer_recording.ts: P·sin(π(t − t0)/T) peaks at P, analytic; the half-sine
+// as an impact pulse is common practice); a force baseline that drifts between hits is common practice to expect
+// (charge amplifiers, temperature), and the counts below follow from the invented
+// recording by construction (10 hits, 5 of them at 20 N below a 50 N trigger).
 describe("quiver hammer on a drifting force channel", () => {
   let dir: string;
   beforeAll(async () => {
@@ -34,7 +39,8 @@ describe("quiver hammer on a drifting force channel", () => {
     const r = run();
     expect(r.code, r.stderr).toBe(0);
     expect(r.stderr).toMatch(/^10 hits: 10 accepted; usable bandwidth/m);
-    // 0.05 s at 4096 Hz: round(204.8) = 205 samples per block.
+    // 0.05 s at 4096 Hz: round(204.8) = 205 samples per block (arithmetic; the block
+    // length is quiver's DEFAULT_BASELINE_S, a running median baseline is common practice).
     expect(r.stderr).toMatch(
       /^trigger level derived: the larger of 5 % of the largest excursion \(\d+(\.\d+)?\) .*\(median of each 205-sample block/m,
     );

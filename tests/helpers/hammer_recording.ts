@@ -85,7 +85,12 @@ export interface TrueHit {
  * sample off, where the largest sample is 0.46 % low: 1 − cos(π/2/16.384)), five of 200 N and five of 20 N, on a
  * force channel that drifts slowly by ±8 N (4 % of the largest peak; one
  * period in 10 s) and carries 0.05 N rms of noise. The truth is analytic:
- * f(t) = P·sin(π(t − t0)/T) for t0 ≤ t ≤ t0 + T peaks at P.
+ * f(t) = P·sin(π(t − t0)/T) for t0 ≤ t ≤ t0 + T peaks at P at t0 + T/2
+ * (analytic: sin is 1 at π/2; a half-sine is the usual model of an impact
+ * pulse, common practice); the largest sample of one sampled half a sample off the crest
+ * is P·cos(π/(2·T·rate)) (analytic). A slow drift of the force baseline
+ * between hits (charge amplifier drift, thermal drift) is common practice
+ * to expect; its size here is invented for the test.
  */
 export function driftingHits(rate = 8192): { recording: Recording; hits: TrueHit[] } {
   const n = Math.round(11.5 * rate);
