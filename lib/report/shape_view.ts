@@ -167,9 +167,9 @@ export function shapeDrawing(plot: ShapeDrawing): { svg: string; motion: ShapeMo
   const svg =
     `<svg xmlns="http://www.w3.org/2000/svg" class="shape" viewBox="0 0 ${width} ${height}" width="${width}" height="${height}" style="max-width:1000px" role="img" aria-label="${
       escapeXml(plot.title)
-    }" font-family="Helvetica, Arial, sans-serif" font-size="11">
+    }" font-family="Helvetica, Arial, sans-serif" font-size="13">
 <rect width="${width}" height="${height}" fill="#ffffff"/>
-<text x="${pad}" y="22" font-size="13" font-weight="600" fill="#22313f">${
+<text x="${pad}" y="22" font-size="15" font-weight="600" fill="#22313f">${
       escapeXml(plot.title)
     }</text>
 <text x="${pad}" y="37" fill="#6b7785">grey dashed: geometry at rest; blue: real part of the shape</text>
@@ -190,8 +190,9 @@ function placeLabels(
 ): string[] {
   const placed: { x: number; y: number; half: number }[] = [];
   return names.map((name, i) => {
-    // The label's box at 11 px: about 6 px a character (with a margin), 14 px tall.
-    const half = 3.4 * Math.max(1, name.length) + 2, halfHeight = 7;
+    // The label's box at 13 px (11 px or more where the 720 px picture is shown 648 px wide):
+    // about 8 px a character (with a margin), 16 px tall.
+    const half = 4 * Math.max(1, name.length) + 2, halfHeight = 8;
     let best = { x: at[i][0] + 12 + half, y: at[i][1] - 12 }, score = -Infinity;
     for (const radius of [12, 20, 30]) {
       for (let d = 0; d < 16; d++) {

@@ -179,7 +179,9 @@ export function planSlices(plan: Plan, recording: string): SliceMark[] {
 }
 
 /** Pixel size of a time-history picture: width, and height per channel. */
-const WIDTH = 960, PANEL = 72, TOP = 34, GAP = 10, BOTTOM = 40, LEFT = 78, RIGHT = 18;
+// 640 px wide, shown at most 960 px wide (VIEWS_STYLE): its 11 px text stays 11 px or more from
+// a 700 px window (a 666 px figure) up.
+const WIDTH = 640, PANEL = 72, TOP = 34, GAP = 10, BOTTOM = 40, LEFT = 78, RIGHT = 18;
 
 /** What the report's script needs to draw the interactive view (JSON-ready). */
 export interface HistorySpec {
@@ -418,9 +420,7 @@ export async function recordingsSection(plan: Plan, planPath: string): Promise<V
       figures.push({
         name: `history_${name}`,
         svg,
-        html: `<div class="static">${svg}</div>${scriptJson(spec, "history-data")}`,
-        // Two abreast on a wide page: an overview to zoom into, not a page per recording.
-        small: true,
+        html: `<div class="static history-static">${svg}</div>${scriptJson(spec, "history-data")}`,
       });
     } catch (error) {
       if (!(error instanceof QuiverError)) throw error;
@@ -446,5 +446,6 @@ figure.view-live > .static { display: none; }
 .history-title { font-size: 13px; font-weight: 600; margin: 2px 0 0 4px; }
 .history .u-title { font-size: 12px; text-align: right; padding-right: 18px; height: 18px; line-height: 18px; }
 .shape-view svg { max-height: 600px; }
+.history-static svg { max-width: 960px; }
 @media print { figure.view-live > .static { display: block; } }
 `;

@@ -29,12 +29,17 @@ function installLine(): string {
 let root = "";
 let data = "";
 // The installed script calls `deno` by name: the deno running the tests comes first on PATH.
-const env = () => ({
-  ...process.env,
-  NO_COLOR: "1",
-  DENO_INSTALL_ROOT: root,
-  PATH: `${dirname(process.execPath)}${delimiter}${process.env.PATH ?? ""}`,
-});
+// INIT_CWD is left out as a user's shell has none: npx, which runs this suite in CI, sets it,
+// and deno task keeps an INIT_CWD already set (README says so).
+const env = () => {
+  const { INIT_CWD: _set, ...rest } = process.env;
+  return {
+    ...rest,
+    NO_COLOR: "1",
+    DENO_INSTALL_ROOT: root,
+    PATH: `${dirname(process.execPath)}${delimiter}${process.env.PATH ?? ""}`,
+  };
+};
 
 function run(command: string, args: readonly string[], cwd: string) {
   const r = spawnSync(command, args, {

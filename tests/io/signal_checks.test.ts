@@ -107,8 +107,12 @@ describe("signal-level warnings", () => {
 
 describe("numbers in the warnings are rounded and carry the channel's unit", () => {
   test("a DC offset: mean and standard deviation in the channel's unit", () => {
-    // Alternating 10.1 and 9.9: mean 10, standard deviation 0.1 (analytic).
-    const x = new Float64Array(1000).map((_, i) => (i % 2 === 0 ? 10.1 : 9.9));
+    // 10 plus a sine of RMS 0.1 over 20 whole periods: mean 10, standard deviation 0.1
+    // (analytic: the mean of sin² over whole periods is 1/2). Two alternating levels would read
+    // as a pulse train, which gets no offset warning.
+    const x = new Float64Array(1000).map((_, i) =>
+      10 + 0.1 * Math.SQRT2 * Math.sin((2 * Math.PI * i) / 50)
+    );
     expect(channelWarnings(channel(x))).toEqual([
       'channel "acc" has a DC offset of 10 m/s^2, over 3 times its standard deviation (0.1 m/s^2)',
     ]);

@@ -124,7 +124,7 @@ describe("quiver run", () => {
         "utf8",
       );
       expect(map).toMatch(/>Speed \[rpm\]</);
-      expect((map.match(/<g class="overlay">/g) ?? []).length).toBe(2);
+      expect((map.match(/<g class="overlay"[ >]/g) ?? []).length).toBe(2);
       const cuts = await readFile(`${dir}/out/figures/cabin_orders_cuts.svg`, "utf8");
       expect(cuts).toMatch(/>Level \[dB\(A\) re 20 µPa\]</);
       // The rear mounts: the FRF matrix with multiple coherence and principal components, and

@@ -392,7 +392,8 @@ describe("the HTML report in a browser", () => {
         // The demo shows each kind it can: a failed target, warnings and plain ok.
         expect(new Set(expected.values())).toEqual(new Set(["target failed", "warnings", "ok"]));
         const items = page.locator("nav#contents li");
-        expect(await items.count()).toBe(manifest.steps.length + 2); // + targets and trace
+        // + targets, the recordings' time histories and the trace
+        expect(await items.count()).toBe(manifest.steps.length + 3);
         for (const step of manifest.steps) {
           const link = page.locator(`nav#contents a[href="#section-${step.id}"]`);
           expect(await link.count(), step.id).toBe(1);

@@ -279,7 +279,8 @@ describe("the report's views in a browser", () => {
         const maxHz = step.options!["max-hz"] as number;
         const figure = page.locator("#figure-runup_spectrogram_cabin_mic_spectrogram");
         await figure.scrollIntoViewIfNeeded();
-        const map = figure.locator("svg.map");
+        // The wide picture (the window is wide); the narrow copy is hidden.
+        const map = figure.locator(".wide-picture svg.map");
         const grid = await map.evaluate((m) => ({
           x: (m as unknown as { dataset: Record<string, string> }).dataset.x.split(",").map(Number),
           y: (m as unknown as { dataset: Record<string, string> }).dataset.y.split(",").map(Number),
@@ -297,7 +298,7 @@ describe("the report's views in a browser", () => {
           box.y + box.height -
           (((hz - grid.y[0]) / (grid.y[1] - grid.y[0])) * (grid.y[2] - 1) + 0.5) / grid.y[2] *
             box.height;
-        const labels = figure.locator("text.overlay-label");
+        const labels = figure.locator(".wide-picture text.overlay-label");
         expect(await labels.count()).toBe(2);
         for (let i = 0; i < 2; i++) {
           const label = labels.nth(i);
@@ -315,7 +316,7 @@ describe("the report's views in a browser", () => {
           }
         }
         // Each order line is drawn as two guides beside the ridge, none over it.
-        expect(await figure.locator("g.overlay path.guide").count()).toBe(4);
+        expect(await figure.locator(".wide-picture g.overlay path.guide").count()).toBe(4);
         expect(errors).toEqual([]);
       } finally {
         await context.close();
