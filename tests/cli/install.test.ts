@@ -29,22 +29,21 @@ function installLine(): string {
 let root = "";
 let data = "";
 // The installed script calls `deno` by name: the deno running the tests comes first on PATH.
-// INIT_CWD is left out as a user's shell has none: npx, which runs this suite in CI, sets it,
-// and deno task keeps an INIT_CWD already set (README says so).
-const env = () => {
-  const { INIT_CWD: _set, ...rest } = process.env;
-  return {
-    ...rest,
-    NO_COLOR: "1",
-    DENO_INSTALL_ROOT: root,
-    PATH: `${dirname(process.execPath)}${delimiter}${process.env.PATH ?? ""}`,
-  };
-};
+// INIT_CWD is what deno task sets from a user's shell, the folder the task is run from. It is
+// given here because npx, which runs this suite in CI, sets it to the checkout, deno task keeps
+// an INIT_CWD already set (README says so), and a child's env does not drop an inherited one.
+const env = (cwd: string) => ({
+  ...process.env,
+  NO_COLOR: "1",
+  DENO_INSTALL_ROOT: root,
+  INIT_CWD: cwd,
+  PATH: `${dirname(process.execPath)}${delimiter}${process.env.PATH ?? ""}`,
+});
 
 function run(command: string, args: readonly string[], cwd: string) {
   const r = spawnSync(command, args, {
     cwd,
-    env: env(),
+    env: env(cwd),
     encoding: "utf8",
     timeout: SUBPROCESS_TIMEOUT_MS,
   });
