@@ -1,3 +1,4 @@
+import { ambiguousSets } from "../helpers/ambiguous_shapes.ts";
 import { mkdtemp, readFile, writeFile } from "node:fs/promises";
 import { describe, expect, test } from "vitest";
 import { bestPairing, macValue } from "../../lib/modal/mac.ts";
@@ -126,28 +127,6 @@ describe("quiver mac", () => {
     expect(bad.stderr).toMatch(/bad\.csv:2: value "abc" is not a number/);
   });
 });
-
-/**
- * Four-point shapes of our own with MACs set by construction: a real shape (cos θ, sin θ, 0, 0)
- * against (1, 0, 0, 0) has MAC cos²θ (Allemang & Brown 1982, for real vectors).
- */
-function ambiguousSets(secondMac: number, firstMac = 0.954) {
-  const a = Math.acos(Math.sqrt(firstMac)), b = Math.acos(Math.sqrt(secondMac));
-  const row = (mode: number, hz: number, v: readonly number[]) =>
-    v.map((x, p) => `${mode},${hz},P${p + 1},+z,${x}`).join("\n");
-  const test = parseShapes(
-    "mode,frequency_hz,point,direction,value\n" +
-      [row(1, 40, [1, 0, 0, 0]), row(2, 90, [0, 0, 0, 1])].join("\n") + "\n",
-  );
-  const simulation = parseShapes(
-    "mode,frequency_hz,point,direction,value\n" + [
-      row(1, 41, [Math.cos(a), Math.sin(a), 0, 0]),
-      row(2, 44, [Math.cos(b), 0, Math.sin(b), 0]),
-      row(3, 93, [0, 0, 0.1, 1]),
-    ].join("\n") + "\n",
-  );
-  return { test, simulation };
-}
 
 describe("ambiguous pairs (rule ours: a rival of MAC ≥ 0.5 within 0.05 of the pair's)", () => {
   test("a test mode matching two simulation modes at 0.954 and 0.940 is flagged with its rival", () => {

@@ -1,35 +1,14 @@
 import { mkdtemp, writeFile } from "node:fs/promises";
 import { describe, expect, test } from "vitest";
 import { formatJson } from "../../lib/io/table.ts";
-import { correlateShapes, correlationTables, parseShapes } from "../../lib/modal/shapes.ts";
+import { correlateShapes, correlationTables } from "../../lib/modal/shapes.ts";
+import { ambiguousSets } from "../helpers/ambiguous_shapes.ts";
 import { planSchema } from "../../lib/plan/schema.ts";
 import { evaluateTargets } from "../../lib/plan/target_eval.ts";
 
-/**
- * Four-point shapes of our own whose MACs are set by construction: a real shape
- * (cos θ, sin θ, 0, 0) against (1, 0, 0, 0) has MAC cos²θ (Allemang & Brown 1982, for real
- * vectors). Test mode 1 matches simulation mode 1 at `first` and simulation mode 2 at `second`.
- */
-function shapes(first: number, second: number) {
-  const a = Math.acos(Math.sqrt(first)), b = Math.acos(Math.sqrt(second));
-  const row = (mode: number, hz: number, v: readonly number[]) =>
-    v.map((x, p) => `${mode},${hz},P${p + 1},+z,${x}`).join("\n");
-  const head = "mode,frequency_hz,point,direction,value\n";
-  return {
-    test: parseShapes(head + [row(1, 40, [1, 0, 0, 0]), row(2, 90, [0, 0, 0, 1])].join("\n")),
-    simulation: parseShapes(
-      head + [
-        row(1, 41, [Math.cos(a), Math.sin(a), 0, 0]),
-        row(2, 44, [Math.cos(b), 0, Math.sin(b), 0]),
-        row(3, 93, [0, 0, 0.1, 1]),
-      ].join("\n"),
-    ),
-  };
-}
-
 async function pairTargets(first: number, second: number) {
   const dir = await mkdtemp("/tmp/quiver-target-mac-");
-  const { test, simulation } = shapes(first, second);
+  const { test, simulation } = ambiguousSets(second, first);
   const { pairs } = correlationTables(correlateShapes(test, simulation), test, simulation);
   await writeFile(`${dir}/link_mac.json`, formatJson(pairs));
   const plan = planSchema.parse({
