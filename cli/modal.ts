@@ -7,7 +7,7 @@ import { basename, extname } from "node:path";
 import { z } from "npm:zod@4.6.7";
 import { QuiverError } from "../lib/errors.ts";
 import { formatFixed } from "../lib/format_number.ts";
-import { parseTextCsv } from "../lib/io/csv_text.ts";
+import { parseTextCsv } from "../lib/io/csv_table.ts";
 import { readFrfFile } from "../lib/modal/frf_input.ts";
 import { parseGeometry } from "../lib/modal/geometry.ts";
 import {

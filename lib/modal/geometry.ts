@@ -6,7 +6,7 @@
  * @module
  */
 import { QuiverError } from "../errors.ts";
-import { parseTextCsv } from "../io/csv_text.ts";
+import { parseTextCsv } from "../io/csv_table.ts";
 import { parseDecimal } from "../io/numbers.ts";
 
 /** Points and the lines between them. */

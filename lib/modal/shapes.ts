@@ -17,7 +17,7 @@ import { resolve } from "node:path";
 import { readFile } from "node:fs/promises";
 import { QuiverError } from "../errors.ts";
 import { readResultFile } from "../io/result_file.ts";
-import { parseTextCsv } from "../io/csv_text.ts";
+import { parseTextCsv } from "../io/csv_table.ts";
 import { parseDecimal } from "../io/numbers.ts";
 import type { Table } from "../io/table.ts";
 import { bestPairing, type ComplexVector, macMatrix } from "./mac.ts";

@@ -2,7 +2,7 @@ import { mkdtemp, readFile, writeFile } from "node:fs/promises";
 import { describe, expect, test } from "vitest";
 import { parseHeaderCell } from "../../lib/io/csv_engine.ts";
 import { parseNumericCsv } from "../../lib/io/csv_table.ts";
-import { parseTextCsv } from "../../lib/io/csv_text.ts";
+import { parseTextCsv } from "../../lib/io/csv_table.ts";
 import { readResultFile } from "../../lib/io/result_file.ts";
 import {
   type ColumnValues,
