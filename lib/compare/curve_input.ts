@@ -3,9 +3,9 @@
  * quiver wrote (CSV with its `.meta.json` sidecar, or JSON) or a plain table
  * from a solver.
  *
- * Column choice for name C (or, without C, the first that fits):
- * - `C_re` and `C_im`: complex (an FRF from `frf`/`hammer`);
- * - `C_mag` (with `C_phase_deg` if present), or `C_mag_db`;
+ * Column choice for name C (or, without C, the first that fits): the
+ * convention of foreign tables (curve_columns.ts: `C_re`/`C_im`, `C_mag`
+ * with an optional `C_phase_deg`, `C_mag_db`), else
  * - a column named C: linear values, unless its unit starts with "dB";
  * - without C: plain `re`/`im`, `mag` (+ `phase_deg`), `mag_db` or `db`, else
  *   the first column after `frequency_hz`.
@@ -23,6 +23,13 @@
  */
 import { QuiverError } from "../errors.ts";
 import type { CsvTableOptions } from "../io/csv_table.ts";
+import {
+  curveOfStem,
+  curveStems,
+  fromLevels,
+  holdsLevels,
+  type NamedColumn,
+} from "../io/curve_columns.ts";
 import { readResultFile } from "../io/result_file.ts";
 import { RESULT_METADATA } from "../io/result_metadata.ts";
 import { didYouMean } from "../nearest_name.ts";
@@ -212,17 +219,10 @@ export function withQuantity(
   };
 }
 
-/** The names a column option may give: each column's, and the stem of `C_re`, `C_mag`, `C_mag_db`. */
+/** The names a column option may give: each column's, and the stems of the convention. */
 function curveNames(columns: readonly { name: string }[]): string[] {
-  const stems = columns.map((c) => /^(.+)_(?:re|im|mag|mag_db|phase_deg)$/.exec(c.name)?.[1]);
   const names = columns.map((c) => c.name).filter((n) => n !== "frequency_hz");
-  return [...new Set([...stems.filter((s) => s !== undefined), ...names])];
-}
-
-interface NamedColumn {
-  readonly name: string;
-  readonly unit: string;
-  readonly values: Float64Array;
+  return [...new Set([...curveStems(columns), ...names])];
 }
 
 /**
@@ -277,56 +277,20 @@ export function curveFromColumns(
       ? { ...curve, quantity: byUnit.quantity, quantitySource: "unit", fromLevels }
       : { ...curve, quantitySource: "default", fromLevels };
   };
-  const isDb = (c: NamedColumn) => /(^|_)db$/i.test(c.name) || /^dB/.test(c.unit);
-  const fromDb = (v: Float64Array) => v.map((x) => 10 ** (x / (quantity === "power" ? 10 : 20)));
   const build = (prefix: string): Curve | undefined => {
-    const p = prefix === "" ? "" : `${prefix}_`;
-    const re = get(`${p}re`);
-    const im = get(`${p}im`);
-    if (re !== undefined && im !== undefined) {
-      return finish({
-        frequencies: f,
-        re: re.values,
-        im: im.values,
-        magnitude: re.values.map((r, k) => Math.hypot(r, im.values[k])),
-        quantity,
-        unit: re.unit,
-        column: prefix || "re/im",
-      }, false);
-    }
-    const mag = get(`${p}mag`);
-    const phase = get(`${p}phase_deg`);
-    if (mag !== undefined) {
-      const magnitude = isDb(mag) ? fromDb(mag.values) : mag.values;
-      if (phase !== undefined) {
-        const rad = phase.values.map((d) => (d * Math.PI) / 180);
-        return finish({
-          frequencies: f,
-          magnitude,
-          re: magnitude.map((m, k) => m * Math.cos(rad[k])),
-          im: magnitude.map((m, k) => m * Math.sin(rad[k])),
-          quantity,
-          unit: mag.unit,
-          column: `${p}mag`,
-        }, isDb(mag));
-      }
-      return finish(
-        { frequencies: f, magnitude, quantity, unit: mag.unit, column: `${p}mag` },
-        isDb(mag),
-      );
-    }
-    const db = get(`${p}mag_db`) ?? (prefix === "" ? get("db") : undefined);
-    if (db !== undefined) {
-      return finish({
-        frequencies: f,
-        magnitude: fromDb(db.values),
-        quantity,
-        unit: db.unit,
-        column: db.name,
-      }, true);
-    }
-    return undefined;
+    const found = curveOfStem(columns, prefix, { quantity, file: options.file });
+    if (found === undefined) return undefined;
+    const { coherence: _, fromLevels: levels, ...curve } = found;
+    return finish({ frequencies: f, quantity, ...curve }, levels);
   };
+  const plainColumn = (c: NamedColumn): Curve =>
+    finish({
+      frequencies: f,
+      magnitude: holdsLevels(c) ? fromLevels(c.values, quantity) : c.values,
+      quantity,
+      unit: c.unit,
+      column: c.name,
+    }, holdsLevels(c));
   if (frfResult.success) {
     // An FRF quiver wrote: a response by the name its metadata lists (default the first).
     const names = frfResult.data.responses.map((r) => r.name);
@@ -357,14 +321,7 @@ export function curveFromColumns(
         }`,
       );
     }
-    const c = plain as NamedColumn;
-    return finish({
-      frequencies: f,
-      magnitude: isDb(c) ? fromDb(c.values) : c.values,
-      quantity,
-      unit: c.unit,
-      column: c.name,
-    }, isDb(c));
+    return plainColumn(plain as NamedColumn);
   }
   const plain = build("");
   if (plain !== undefined) return plain;
@@ -379,14 +336,7 @@ export function curveFromColumns(
     c !== frequency && !["nominal_hz", "lower_hz", "upper_hz"].includes(c.name)
   );
   if (first === undefined) fail("no value column besides the frequencies");
-  const c = first as NamedColumn;
-  return finish({
-    frequencies: f,
-    magnitude: isDb(c) ? fromDb(c.values) : c.values,
-    quantity,
-    unit: c.unit,
-    column: c.name,
-  }, isDb(c));
+  return plainColumn(first as NamedColumn);
 }
 
 /**

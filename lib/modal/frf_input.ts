@@ -6,30 +6,23 @@
  *   (result_metadata.ts), and each response R's columns are read by their
  *   exact names `R_re`, `R_im`, `R_coherence`.
  * - A plain table from elsewhere, such as a solver export, without quiver
- *   metadata: `frequency_hz` plus `re` and `im`, or `mag` (linear) with an
- *   optional `phase_deg`, or `mag_db` (20·log10|H|); several FRFs as
- *   `R_re`/`R_im` (or `R_mag`, `R_mag_db`, `R_phase_deg`) per name R. This
- *   naming convention is the only thing a foreign table can tell us.
+ *   metadata: `frequency_hz` plus the columns of the convention of foreign
+ *   tables (curve_columns.ts, shared with `compare`): `re` and `im`, or
+ *   `mag` with an optional `phase_deg`, or `mag_db` (20·log10|H|: an FRF is
+ *   an amplitude); several FRFs as `R_re`/`R_im` (or `R_mag`, `R_mag_db`,
+ *   `R_phase_deg`) per name R.
  *
  * @module
  */
 import { QuiverError } from "../errors.ts";
 import type { CsvTableOptions } from "../io/csv_table.ts";
+import { curveOfStem, curveStems, type NamedColumn } from "../io/curve_columns.ts";
 import { readResultFile } from "../io/result_file.ts";
 import { RESULT_METADATA } from "../io/result_metadata.ts";
 import { formOfResponseUnit, type FrfForm } from "../frf/forms.ts";
 
 export type { FrfChannel, FrfData } from "../frf/frf_data.ts";
 import type { FrfChannel, FrfData } from "../frf/frf_data.ts";
-
-/** A column as found in a file. */
-interface NamedColumn {
-  readonly name: string;
-  readonly unit: string;
-  readonly values: Float64Array;
-}
-
-const SUFFIXES = ["_re", "_im", "_mag", "_mag_db", "_phase_deg", "_coherence", "_random_error"];
 
 /**
  * The response form implied by an FRF unit such as `(m/s^2)/N` or `m/N`.
@@ -94,58 +87,33 @@ export function frfFromColumns(
     }
   } else {
     // A foreign table: FRFs by the naming convention R_re/R_im, R_mag, R_mag_db.
-    names = [];
-    for (const c of columns) {
-      const suffix = SUFFIXES.find((s) => c.name.endsWith(s) && c.name.length > s.length);
-      if (suffix === undefined) continue;
-      const prefix = c.name.slice(0, -suffix.length);
-      if (!names.includes(prefix)) names.push(prefix);
-    }
+    names = curveStems(columns);
   }
-  const build = (
-    name: string,
-    get: (part: string) => NamedColumn | undefined,
-  ): FrfChannel | undefined => {
-    const re = get("re");
-    const im = get("im");
-    const mag = get("mag");
-    const magDb = get("mag_db");
-    const phase = get("phase_deg");
-    if ((re === undefined) !== (im === undefined)) {
-      fail(`FRF "${name}" has only one of its real and imaginary columns`);
-    }
-    let complex: { re: Float64Array; im: Float64Array } | undefined;
-    if (re !== undefined && im !== undefined) complex = { re: re.values, im: im.values };
-    const magnitudeSource = mag?.values ?? magDb?.values.map((v) => 10 ** (v / 20));
-    if (complex === undefined && magnitudeSource !== undefined && phase !== undefined) {
-      const rad = phase.values.map((d) => (d * Math.PI) / 180);
-      complex = {
-        re: magnitudeSource.map((m, k) => m * Math.cos(rad[k])),
-        im: magnitudeSource.map((m, k) => m * Math.sin(rad[k])),
-      };
-    }
-    const magnitude = complex !== undefined
-      ? complex.re.map((v, k) => Math.hypot(v, (complex as { im: Float64Array }).im[k]))
-      : magnitudeSource;
-    if (magnitude === undefined) return undefined;
-    const unit = (re ?? mag ?? magDb)?.unit ?? "";
+  const build = (stem: string): FrfChannel | undefined => {
+    const curve = curveOfStem(columns, stem, { quantity: "amplitude", file });
+    if (curve === undefined) return undefined;
+    const { re, im, coherence, unit } = curve;
+    const name = stem || "frf";
     const form = responseForms.get(name) ?? formOfFrfUnit(unit);
     return {
       name,
       unit,
-      magnitude,
-      ...(complex !== undefined ? complex : {}),
-      ...(get("coherence") !== undefined ? { coherence: get("coherence")?.values } : {}),
+      // A channel's magnitude is |H| whenever its phase is known.
+      magnitude: re !== undefined && im !== undefined
+        ? re.map((v, k) => Math.hypot(v, im[k]))
+        : curve.magnitude,
+      ...(re !== undefined && im !== undefined ? { re, im } : {}),
+      ...(coherence !== undefined ? { coherence } : {}),
       ...(form !== undefined ? { form } : {}),
     };
   };
   const channels: FrfChannel[] = [];
   for (const prefix of names) {
-    const channel = build(prefix, (part) => byName.get(`${prefix}_${part}`));
+    const channel = build(prefix);
     if (channel !== undefined) channels.push(channel);
   }
   if (channels.length === 0 && !quiver.success) {
-    const plain = build("frf", (part) => byName.get(part));
+    const plain = build("");
     if (plain !== undefined) channels.push(plain);
   }
   if (channels.length === 0) {
