@@ -262,6 +262,27 @@ export interface TextCsv {
   readonly rows: readonly (readonly string[])[];
   /** 1-based file line of each row. */
   readonly lines: readonly number[];
+  /** The delimiter in use. */
+  readonly delimiter: CsvDelimiter;
+}
+
+/**
+ * The number in a cell of a text table, or undefined when it holds none
+ * (numbers.ts grammar; never "" as 0). A `,` is a decimal mark only when
+ * the delimiter is not a comma: in a comma-delimited table it separates
+ * cells, and a quoted "1,5" there is more likely a pair than a number.
+ *
+ * @example
+ * ```ts
+ * import { numberOfTextCell } from "./csv_table.ts";
+ * if (numberOfTextCell("0,25", ";") !== 0.25 || numberOfTextCell("0,25", ",") !== undefined) throw new Error();
+ * if (numberOfTextCell("", ";") !== undefined) throw new Error();
+ * ```
+ */
+export function numberOfTextCell(cell: string, delimiter: CsvDelimiter): number | undefined {
+  const value = parseDecimal(cell, ".") ??
+    (delimiter !== "," ? parseDecimal(cell, ",") : undefined);
+  return value !== undefined && Number.isFinite(value) ? value : undefined;
 }
 
 /**
@@ -301,5 +322,5 @@ export function parseTextCsv(text: string, options: { file?: string } = {}): Tex
       return restoreFormula(cell);
     });
   });
-  return { header, rows, lines: split.lines };
+  return { header, rows, lines: split.lines, delimiter: split.delimiter };
 }

@@ -6,8 +6,7 @@
  * @module
  */
 import { QuiverError } from "../errors.ts";
-import { parseTextCsv } from "../io/csv_table.ts";
-import { parseDecimal } from "../io/numbers.ts";
+import { numberOfTextCell, parseTextCsv } from "../io/csv_table.ts";
 
 /** Points and the lines between them. */
 export interface Geometry {
@@ -48,8 +47,8 @@ export function parseGeometry(text: string, options: { file?: string } = {}): Ge
   table.rows.forEach((row, r) => {
     const line = table.lines[r];
     const coordinate = (name: string) => {
-      const value = parseDecimal(row[at(name)], ".");
-      if (value === undefined || !Number.isFinite(value)) {
+      const value = numberOfTextCell(row[at(name)], table.delimiter);
+      if (value === undefined) {
         throw new QuiverError(`${name} "${row[at(name)]}" is not a number`, {
           file: options.file,
           line,

@@ -17,8 +17,7 @@ import { resolve } from "node:path";
 import { readFile } from "node:fs/promises";
 import { QuiverError } from "../errors.ts";
 import { readResultFile } from "../io/result_file.ts";
-import { parseTextCsv } from "../io/csv_table.ts";
-import { parseDecimal } from "../io/numbers.ts";
+import { type CsvDelimiter, numberOfTextCell, parseTextCsv } from "../io/csv_table.ts";
 import type { Table } from "../io/table.ts";
 import { bestPairing, type ComplexVector, macMatrix } from "./mac.ts";
 
@@ -52,7 +51,7 @@ export function parseShapes(text: string, options: { file?: string } = {}): Mode
   const table = parseTextCsv(text, options);
   return shapesFromColumns(
     table.header.map((h, c) => ({ name: h.name, values: table.rows.map((r) => r[c]) })),
-    { file: options.file, lines: table.lines },
+    { file: options.file, lines: table.lines, delimiter: table.delimiter },
   );
 }
 
@@ -72,7 +71,7 @@ export function parseShapes(text: string, options: { file?: string } = {}): Mode
  */
 export function shapesFromColumns(
   columns: readonly { name: string; values: readonly string[] | Float64Array }[],
-  options: { file?: string; lines?: readonly number[] } = {},
+  options: { file?: string; lines?: readonly number[]; delimiter?: CsvDelimiter } = {},
 ): ModeShape[] {
   const rowCount = columns[0]?.values.length ?? 0;
   const table = {
@@ -98,8 +97,8 @@ export function shapesFromColumns(
     const line = table.lines[r];
     const number = (column: string) => {
       const text = row[at(column)];
-      const value = parseDecimal(text, ".");
-      if (value === undefined || !Number.isFinite(value)) {
+      const value = numberOfTextCell(text, options.delimiter ?? ",");
+      if (value === undefined) {
         throw new QuiverError(`${column} "${text}" is not a number`, { file: options.file, line });
       }
       return value;
