@@ -52,6 +52,6 @@ export {
   modalFit,
   type ModalFitOptions,
   type ModalFitResult,
-  modalTables,
-  type UnexplainedPeak,
 } from "./modal_fit.ts";
+export { modalTables } from "./modal_tables.ts";
+export { type UnexplainedPeak } from "./unexplained_peaks.ts";
