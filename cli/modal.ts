@@ -14,11 +14,10 @@ import {
   largestModelOrder,
   linesForOrder,
   modalBand,
-  type ModalDof,
-  modalFit,
-  modalTables,
   smallestAutomaticOrder,
-} from "../lib/modal/modal_fit.ts";
+} from "../lib/modal/modal_band.ts";
+import { type ModalDof, modalFit } from "../lib/modal/modal_fit.ts";
+import { modalTables } from "../lib/modal/modal_tables.ts";
 import { readFile } from "node:fs/promises";
 import { integerOption, numberOption, parseCommandArgs, usageError } from "./args.ts";
 import { commandHelp, libraryOptions, option, shapeOf, specOf } from "./option_table.ts";

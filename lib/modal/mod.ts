@@ -25,12 +25,10 @@ export {
   DAMPING_METHODS,
   type DampingFlag,
   type DampingMethod,
-  type DampingOptions,
-  type DampingResult,
-  firstMode,
-  modalDamping,
-  type ModeEstimate,
-} from "./damping_analysis.ts";
+} from "./damping_flags.ts";
+export { type DampingOptions, type DampingResult, modalDamping } from "./damping_analysis.ts";
+export { type ModeEstimate } from "./damping_estimates.ts";
+export { firstMode } from "./first_mode.ts";
 export { type FrfChannel, type FrfData, frfFromColumns, readFrfFile } from "./frf_input.ts";
 export { findPeaks, judgeCoherence, type Peak } from "./peaks.ts";
 export { halfPower, type HalfPowerEstimate } from "./half_power.ts";
@@ -54,6 +52,6 @@ export {
   modalFit,
   type ModalFitOptions,
   type ModalFitResult,
-  modalTables,
-  type UnexplainedPeak,
 } from "./modal_fit.ts";
+export { modalTables } from "./modal_tables.ts";
+export { type UnexplainedPeak } from "./unexplained_peaks.ts";

@@ -4,24 +4,11 @@
  * that stay stable chosen by a stated rule, then residues and shapes by
  * least squares (LSFD) with upper and lower residuals.
  *
- * Stability (the usual stabilisation-diagram criteria, common practice;
- * tolerances are options): a pole of order n is compared with the nearest
- * pole (in frequency) of order n − 2 and is stable when its frequency
- * changed by ≤ 1 %, its damping by ≤ 5 % and its shape's MAC is ≥ 0.98.
- *
- * Selection from the whole chart, not from the last order alone (rule ours):
- * stable poles are clustered across the orders (frequency within 1 % of the
- * cluster's median, shape MAC ≥ 0.98 with its latest member, one pole per
- * order, the closest first); a cluster is a mode when it holds a stable pole
- * at 5 or more orders and at more than half of the orders from its first
- * stable pole to the highest order. The mode's frequency and damping are the
- * medians over the cluster, reported with their spread and counts. Given
- * `modesHz`, the cluster nearest each frequency (within 2 %) is taken, or,
- * failing one, the highest order's nearest pole (flagged `unstable`).
- *
- * A clear peak of the sum of |H| (prominence ≥ 6 dB, at least 1 % of the
- * highest peak, mean coherence ≥ 0.8 where known) that no mode explains
- * (within 2 % or 2 lines) is named in a warning.
+ * The steps have their own modules: the band and the orders it supports
+ * (modal_band.ts), stability of each pole against the order before
+ * (stability_chart.ts), the modes chosen from clusters of stable poles over
+ * the whole chart (pole_clusters.ts), the clear peaks no mode explains
+ * (unexplained_peaks.ts), and the result as tables (modal_tables.ts).
  *
  * Shapes are the residues of each degree of freedom, normalised so that
  * the component of largest magnitude is real and 1 (scaling to unit modal
@@ -38,18 +25,23 @@
  */
 import { QuiverError } from "../errors.ts";
 import type { FrfChannel } from "../frf/frf_data.ts";
-import type { Table, TableColumn } from "../io/table.ts";
-import {
-  type Complex,
-  fitResidues,
-  type FrfSet,
-  lscfPoles,
-  modalPhaseCollinearity,
-  type Pole,
-} from "./lscf.ts";
-import { macValue } from "./mac.ts";
-import { findPeaks } from "./peaks.ts";
+import { type Complex, fitResidues, type FrfSet, modalPhaseCollinearity } from "./lscf.ts";
 import { formatFixed } from "../format_number.ts";
+import {
+  asReceptance,
+  largestModelOrder,
+  modalBand,
+  smallestAutomaticOrder,
+} from "./modal_band.ts";
+import { chooseModes, type Cluster, clusterStablePoles, clusterStats } from "./pole_clusters.ts";
+import { SELECTION_RULE } from "./selection_rule.ts";
+import {
+  shapeOf,
+  stabilityChart,
+  type StabilityPole,
+  type StabilityTolerances,
+} from "./stability_chart.ts";
+import { findUnexplainedPeaks, type UnexplainedPeak } from "./unexplained_peaks.ts";
 
 /** One degree of freedom of the fit: an FRF and the point it measures. */
 export interface ModalDof {
@@ -111,29 +103,6 @@ export interface FittedMode {
   readonly dampingSpreadPercent: number;
 }
 
-/** One pole of the stability analysis. */
-export interface StabilityPole {
-  readonly order: number;
-  readonly frequencyHz: number;
-  readonly dampingRatio: number;
-  /** Each change against the nearest pole of the order before (see the module notes). */
-  readonly stableFrequency: boolean;
-  readonly stableDamping: boolean;
-  readonly stableShape: boolean;
-  /** The mode (1-based) whose cluster holds this pole; 0 for none. */
-  readonly mode: number;
-}
-
-/** A clear peak of the sum of FRFs that no reported mode explains. */
-export interface UnexplainedPeak {
-  /** Frequency of the peak's line, Hz. */
-  readonly frequencyHz: number;
-  /** Its prominence in the sum of |H|, dB. */
-  readonly prominenceDb: number;
-  /** Mean coherence over the FRFs at the line; undefined when they have none. */
-  readonly coherence?: number;
-}
-
 /** Modes, shapes, the stability analysis and the fit's quality. */
 export interface ModalFitResult {
   readonly modes: readonly FittedMode[];
@@ -151,151 +120,6 @@ export interface ModalFitResult {
   readonly warnings: readonly string[];
   /** The unit of the first FRF as given, e.g. `(m/s^2)/N`. */
   readonly unit?: string;
-}
-
-/**
- * The selection rule's fixed numbers (ours unless marked): a cluster is a
- * mode when it holds a stable pole at more than `mostOrders` of the orders
- * from its first stable pole to the highest order; a clear peak has at least
- * `peakProminenceDb` of prominence in the sum of |H|, is no lower than
- * `peakFloor` of the highest peak, and has mean coherence of at least
- * `peakCoherence` where coherence is known; a mode explains a peak within
- * `peakReach` of its frequency or `peakLines` lines, whichever is wider.
- */
-export const SELECTION_RULE = {
-  mostOrders: 0.5,
-  peakProminenceDb: 6,
-  peakFloor: 0.01,
-  peakCoherence: 0.8,
-  peakReach: 0.02,
-  peakLines: 2,
-  orderLimit: 128,
-} as const;
-
-/**
- * The highest model order a band of `lines` lines supports: LSCF of order n
- * needs more than n + 1 lines, and above 128 (ours) the fit takes long and
- * the z-domain polynomial is ill-conditioned; even.
- *
- * @example
- * ```ts
- * import { largestModelOrder } from "./modal_fit.ts";
- * if (largestModelOrder(41) !== 38 || largestModelOrder(4000) !== 128) throw new Error();
- * ```
- */
-export function largestModelOrder(lines: number): number {
-  const byLines = lines - 2 - ((lines - 2) % 2);
-  return Math.min(byLines, SELECTION_RULE.orderLimit);
-}
-
-/**
- * The lowest highest-order with which the automatic rule can find a mode:
- * orders run 2, 4, …, and a pole of order 2 has no order before it to be
- * stable against, so orders 4 … N hold N/2 − 1 stable poles at most; a
- * mode needs `stableOrders` of them (default 5, hence 12).
- *
- * @example
- * ```ts
- * import { smallestAutomaticOrder } from "./modal_fit.ts";
- * if (smallestAutomaticOrder() !== 12 || smallestAutomaticOrder(3) !== 8) throw new Error();
- * ```
- */
-export function smallestAutomaticOrder(stableOrders = 5): number {
-  // Orders 4, 6, …, N can each hold one stable pole: N/2 − 1 ≥ stableOrders.
-  return 2 * stableOrders + 2;
-}
-
-/**
- * The fewest band lines a fit of order `order` needs (the inverse of
- * {@linkcode largestModelOrder}: more than order + 1 lines).
- *
- * @example
- * ```ts
- * import { largestModelOrder, linesForOrder } from "./modal_fit.ts";
- * if (linesForOrder(12) !== 14 || largestModelOrder(linesForOrder(12)) !== 12) throw new Error();
- * ```
- */
-export function linesForOrder(order: number): number {
-  return order + 2;
-}
-
-function asReceptance(
-  frf: FrfChannel,
-  frequencies: Float64Array,
-  from: number,
-  to: number,
-): { re: Float64Array; im: Float64Array; assumed: boolean } {
-  if (frf.re === undefined || frf.im === undefined) {
-    throw new QuiverError(`FRF "${frf.name}" has no phase: a modal fit needs complex FRFs`);
-  }
-  const power = frf.form === "accelerance" ? 2 : frf.form === "mobility" ? 1 : 0;
-  const re = new Float64Array(to - from), im = new Float64Array(to - from);
-  for (let k = from; k < to; k++) {
-    const w = 2 * Math.PI * frequencies[k];
-    let r = frf.re[k], i = frf.im[k];
-    // Divide by jω once per power: (r + ji)/(jω) = (i − jr)/ω.
-    for (let p = 0; p < power; p++) [r, i] = [i / w, -r / w];
-    re[k - from] = r;
-    im[k - from] = i;
-  }
-  return { re, im, assumed: frf.form === undefined };
-}
-
-/**
- * The band [from, to) of line indices: lines above 0 Hz within [minHz, maxHz].
- *
- * @example
- * ```ts
- * import { modalBand } from "./modal_fit.ts";
- * const b = modalBand(new Float64Array([0, 10, 20, 30, 40]), { minHz: 15, maxHz: 30 });
- * if (b.from !== 2 || b.to !== 4) throw new Error();
- * ```
- */
-export function modalBand(
-  frequencies: Float64Array,
-  options: { minHz?: number; maxHz?: number } = {},
-): { from: number; to: number } {
-  const lo = options.minHz ?? 0;
-  const hi = options.maxHz ?? Infinity;
-  let from = 0;
-  while (from < frequencies.length && !(frequencies[from] > 0 && frequencies[from] >= lo)) from++;
-  let to = frequencies.length;
-  while (to > from && frequencies[to - 1] > hi) to--;
-  return { from, to };
-}
-
-/** A pole of one order with its shape, as the selection sees it. */
-interface OrderPole {
-  readonly order: number;
-  readonly pole: Pole;
-  readonly shape: readonly Complex[];
-  readonly stable: boolean;
-  /** Index of its cluster; −1 for none. */
-  cluster: number;
-  /** The reported mode (1-based) its cluster became; 0 for none. */
-  mode: number;
-}
-
-/** Stable poles of several orders that are one mode. */
-interface Cluster {
-  readonly members: OrderPole[];
-  /** Median frequency of the members so far, Hz. */
-  frequencyHz: number;
-}
-
-function median(values: readonly number[]): number {
-  const s = [...values].sort((a, b) => a - b);
-  const m = s.length >> 1;
-  return s.length % 2 === 1 ? s[m] : (s[m - 1] + s[m]) / 2;
-}
-
-function spreadPercent(values: readonly number[]): number {
-  let lo = Infinity, hi = -Infinity;
-  for (const v of values) {
-    lo = Math.min(lo, v);
-    hi = Math.max(hi, v);
-  }
-  return (100 * (hi - lo)) / median(values);
 }
 
 /**
@@ -369,157 +193,22 @@ export function modalFit(
   if (converted.some((c) => c.assumed)) {
     warnings.push("an FRF does not state its form: read as receptance (flagged form_assumed)");
   }
-  const shapeOf = (residues: readonly (readonly Complex[])[], r: number) =>
-    residues.map((row) => row[r]);
-  const macOf = (a: readonly Complex[], b: readonly Complex[]) => macValue(vector(a), vector(b));
-
-  // Stability over the orders: each pole against the nearest pole (in
-  // frequency) of the order before, as the stability chart shows it. A pole
-  // doubled at some order may fail here; the clusters below ride over that.
-  const stability: { entry: OrderPole; flags: [boolean, boolean, boolean] }[] = [];
-  const orders: OrderPole[][] = [];
-  let previous: OrderPole[] = [];
-  for (let order = 2; order <= maxOrder; order += 2) {
-    const poles = lscfPoles(set, order);
-    const residues = poles.length > 0 ? fitResidues(set, poles).residues : [];
-    const current = poles.map((pole, r): OrderPole => {
-      const shape = shapeOf(residues, r);
-      let nearest: OrderPole | undefined;
-      for (const p of previous) {
-        if (
-          nearest === undefined ||
-          Math.abs(p.pole.frequencyHz - pole.frequencyHz) <
-            Math.abs(nearest.pole.frequencyHz - pole.frequencyHz)
-        ) nearest = p;
-      }
-      const flags: [boolean, boolean, boolean] = nearest === undefined ? [false, false, false] : [
-        Math.abs(nearest.pole.frequencyHz / pole.frequencyHz - 1) <= tolF,
-        Math.abs(nearest.pole.dampingRatio / pole.dampingRatio - 1) <= tolZ,
-        macOf(shape, nearest.shape) >= tolMac,
-      ];
-      const entry: OrderPole = {
-        order,
-        pole,
-        shape,
-        stable: flags[0] && flags[1] && flags[2],
-        cluster: -1,
-        mode: 0,
-      };
-      stability.push({ entry, flags });
-      return entry;
-    });
-    orders.push(current);
-    previous = current;
-  }
-
-  // Clusters of stable poles across the orders: a stable pole joins the
-  // cluster whose median frequency is within the frequency tolerance and
-  // whose latest shape it matches (MAC), at most one pole per cluster and
-  // order, the closest first.
-  const clusters: Cluster[] = [];
-  for (const current of orders) {
-    const candidates: { p: OrderPole; c: number; d: number }[] = [];
-    for (const p of current) {
-      if (!p.stable) continue;
-      clusters.forEach((cluster, c) => {
-        const df = Math.abs(cluster.frequencyHz / p.pole.frequencyHz - 1);
-        const last = cluster.members[cluster.members.length - 1];
-        const mac = macOf(p.shape, last.shape);
-        if (df <= tolF && mac >= tolMac) {
-          candidates.push({ p, c, d: df / tolF + (1 - mac) / (1 - tolMac) });
-        }
-      });
-    }
-    candidates.sort((a, b) => a.d - b.d);
-    const taken = new Set<number>();
-    for (const { p, c } of candidates) {
-      if (p.cluster >= 0 || taken.has(c)) continue;
-      p.cluster = c;
-      taken.add(c);
-    }
-    for (const p of current) {
-      if (!p.stable) continue;
-      if (p.cluster < 0) {
-        p.cluster = clusters.length;
-        clusters.push({ members: [p], frequencyHz: p.pole.frequencyHz });
-      } else if (clusters[p.cluster].members.at(-1)?.order !== p.order) {
-        const cluster = clusters[p.cluster];
-        cluster.members.push(p);
-        cluster.frequencyHz = median(cluster.members.map((m) => m.pole.frequencyHz));
-      }
-    }
-  }
-  const stats = (c: Cluster) => {
-    const first = c.members[0].order;
-    return {
-      stableOrders: c.members.length,
-      ordersSpanned: (maxOrder - first) / 2 + 1,
-      frequencySpreadPercent: spreadPercent(c.members.map((m) => m.pole.frequencyHz)),
-      dampingSpreadPercent: spreadPercent(c.members.map((m) => m.pole.dampingRatio)),
-    };
-  };
-  // The cluster's pole: median frequency and median damping of its members.
-  const clusterPole = (c: Cluster): Pole => {
-    const hz = median(c.members.map((m) => m.pole.frequencyHz));
-    const zeta = median(c.members.map((m) => m.pole.dampingRatio));
-    const wn = 2 * Math.PI * hz;
-    return {
-      frequencyHz: hz,
-      dampingRatio: zeta,
-      lambda: { re: -zeta * wn, im: wn * Math.sqrt(1 - zeta * zeta) },
-    };
-  };
-
-  type Choice = { pole: Pole; cluster?: Cluster; named: boolean };
-  let chosen: Choice[];
-  if (options.modesHz !== undefined) {
-    const last = orders[orders.length - 1];
-    chosen = options.modesHz.map((hz): Choice => {
-      // The cluster nearest the frequency asked for, else the highest order's pole.
-      let bestCluster: Cluster | undefined;
-      for (const c of clusters) {
-        if (
-          Math.abs(c.frequencyHz / hz - 1) <= 2 * tolF &&
-          (bestCluster === undefined ||
-            Math.abs(c.frequencyHz - hz) < Math.abs(bestCluster.frequencyHz - hz))
-        ) bestCluster = c;
-      }
-      if (bestCluster !== undefined) {
-        return { pole: clusterPole(bestCluster), cluster: bestCluster, named: true };
-      }
-      let best: OrderPole | undefined;
-      for (const p of last) {
-        if (
-          best === undefined ||
-          Math.abs(p.pole.frequencyHz - hz) < Math.abs(best.pole.frequencyHz - hz)
-        ) best = p;
-      }
-      if (best === undefined) {
-        throw new QuiverError(`no pole at order ${maxOrder} to match ${hz} Hz`);
-      }
-      return { pole: best.pole, named: true };
-    });
-  } else {
-    const selected = clusters.filter((c) => {
-      const s = stats(c);
-      return s.stableOrders >= stableOrders &&
-        s.stableOrders > SELECTION_RULE.mostOrders * s.ordersSpanned;
-    }).sort((a, b) => b.members.length - a.members.length);
-    // Two clusters of one mode (same frequency within tolerance, same shape): keep the steadier.
-    const kept: Cluster[] = [];
-    for (const c of selected) {
-      const twin = kept.find((k) =>
-        Math.abs(k.frequencyHz / c.frequencyHz - 1) <= tolF &&
-        macOf(k.members.at(-1)!.shape, c.members.at(-1)!.shape) >= tolMac
-      );
-      if (twin === undefined) kept.push(c);
-    }
-    chosen = kept.map((c) => ({ pole: clusterPole(c), cluster: c, named: false }));
-  }
+  const tolerances: StabilityTolerances = { frequency: tolF, damping: tolZ, mac: tolMac };
+  const { stability, orders } = stabilityChart(set, maxOrder, tolerances);
+  const clusters = clusterStablePoles(orders, tolerances);
+  const stats = (c: Cluster) => clusterStats(c, maxOrder);
+  const chosen = chooseModes({
+    orders,
+    clusters,
+    maxOrder,
+    stableOrders,
+    tolerances,
+    modesHz: options.modesHz,
+  });
   if (chosen.length === 0) {
     // Name the clear peaks the fit left without a mode, as the success path does.
     // The most prominent first, at most five, so that noise peaks do not bury the clear ones.
-    const peaks = unexplained(frequencies, from, to, dofs, []).sort((a, b) =>
+    const peaks = findUnexplainedPeaks(frequencies, from, to, dofs, []).sort((a, b) =>
       b.prominenceDb - a.prominenceDb
     );
     const shown = peaks.slice(0, 5);
@@ -579,7 +268,7 @@ export function modalFit(
     };
   });
   // A clear peak that no mode explains is named, never dropped in silence.
-  const unexplainedPeaks = unexplained(frequencies, from, to, dofs, modes);
+  const unexplainedPeaks = findUnexplainedPeaks(frequencies, from, to, dofs, modes);
   for (const peak of unexplainedPeaks) {
     const near = clusters.filter((c) =>
       Math.abs(c.frequencyHz / peak.frequencyHz - 1) <= SELECTION_RULE.peakReach
@@ -619,169 +308,5 @@ export function modalFit(
     unexplainedPeaks,
     warnings,
     unit: dofs[0].frf.unit,
-  };
-}
-
-/**
- * Clear peaks of the sum of |H| over the FRFs (as given) in the band that no
- * mode explains: prominence, height and coherence as {@linkcode SELECTION_RULE}.
- */
-function unexplained(
-  frequencies: Float64Array,
-  from: number,
-  to: number,
-  dofs: readonly ModalDof[],
-  modes: readonly FittedMode[],
-): UnexplainedPeak[] {
-  const sum = new Float64Array(to - from);
-  for (const d of dofs) for (let k = from; k < to; k++) sum[k - from] += d.frf.magnitude[k];
-  const f = frequencies.subarray(from, to);
-  const peaks = findPeaks(f, sum, { prominenceDb: SELECTION_RULE.peakProminenceDb });
-  let top = 0;
-  for (const p of peaks) top = Math.max(top, sum[p.index]);
-  const spacing = f.length > 1 ? (f[f.length - 1] - f[0]) / (f.length - 1) : 0;
-  const withCoherence = dofs.filter((d) => d.frf.coherence !== undefined);
-  const out: UnexplainedPeak[] = [];
-  for (const p of peaks) {
-    if (sum[p.index] < SELECTION_RULE.peakFloor * top) continue;
-    let coherence: number | undefined;
-    if (withCoherence.length > 0) {
-      coherence = 0;
-      for (const d of withCoherence) coherence += d.frf.coherence![from + p.index];
-      coherence /= withCoherence.length;
-      if (coherence < SELECTION_RULE.peakCoherence) continue;
-    }
-    const hz = f[p.index];
-    const reach = Math.max(SELECTION_RULE.peakReach * hz, SELECTION_RULE.peakLines * spacing);
-    if (modes.some((m) => Math.abs(m.frequencyHz - hz) <= reach)) continue;
-    out.push({
-      frequencyHz: hz,
-      prominenceDb: p.prominenceDb,
-      ...(coherence !== undefined ? { coherence } : {}),
-    });
-  }
-  return out;
-}
-
-function vector(shape: readonly Complex[]) {
-  return { re: Float64Array.from(shape, (c) => c.re), im: Float64Array.from(shape, (c) => c.im) };
-}
-
-/** The method as written into the metadata. */
-export const MODAL_METHOD =
-  "LSCF common-denominator poles (Guillaume, Verboven, Vanlanduit, Van der Auweraer & Peeters, IMAC XXI, 2003); residues by least squares (LSFD) with complex upper and lower residuals; MPC (Pappa, Elliott & Schenk 1993)";
-
-/**
- * The fit as tables: modes, shapes (tidy), stability, and measured against
- * synthesised FRFs.
- *
- * @example
- * ```ts
- * import { modalTables } from "./modal_fit.ts";
- * const t = modalTables({ modes: [{ mode: 1, frequencyHz: 50, dampingRatio: 0.02, mpc: 1, shape: [{ re: 1, im: 0 }], flags: [],
- *   stableOrders: 12, ordersSpanned: 14, frequencySpreadPercent: 0.1, dampingSpreadPercent: 3 }],
- *   dofs: [{ point: "1", direction: "z" }], stability: [], frequencies: new Float64Array([50]),
- *   measured: [{ re: new Float64Array([0]), im: new Float64Array([1]) }], synthesis: [{ re: new Float64Array([0]), im: new Float64Array([1]) }],
- *   relativeError: new Float64Array([0]), warnings: [] }, {});
- * if (t.modes.columns[1].values[0] !== 50 || t.shapes.columns[1].values[0] !== "1") throw new Error();
- * if (t.modes.columns[5].values[0] !== 12) throw new Error();
- * ```
- */
-export function modalTables(
-  result: ModalFitResult,
-  settings: Readonly<Record<string, unknown>>,
-): {
-  modes: Table<Float64Array | readonly string[]>;
-  shapes: Table<Float64Array | readonly string[]>;
-  stability: Table;
-  synthesis: Table;
-} {
-  const metadata = {
-    analysis: "modal",
-    method: MODAL_METHOD,
-    shape_normalisation: "largest component real and 1",
-    ...settings,
-    dofs: result.dofs,
-    fit_relative_error: Array.from(result.relativeError),
-    modes: result.modes.map(({ shape: _s, ...m }) => m),
-    unexplained_peaks: (result.unexplainedPeaks ?? []).map((p) => ({
-      frequency_hz: p.frequencyHz,
-      prominence_db: p.prominenceDb,
-      coherence: p.coherence ?? null,
-    })),
-    warnings: result.warnings,
-  };
-  const num = (
-    name: string,
-    unit: string,
-    values: ArrayLike<number>,
-  ): TableColumn<Float64Array> => ({
-    name,
-    unit,
-    values: Float64Array.from(values),
-  });
-  const shapeRows = result.modes.flatMap((m) =>
-    m.shape.map((c, i) => ({ m, c, dof: result.dofs[i] }))
-  );
-  // Receptance's unit: metres per the FRF's input unit (what follows its last "/").
-  const inputUnit = /\/([^/()]+)$/.exec(result.unit ?? "")?.[1];
-  const unit = inputUnit === undefined ? "" : `m/${inputUnit}`;
-  const dofName = (i: number) =>
-    `${result.dofs[i].point}${
-      result.dofs[i].direction === "" ? "" : `_${result.dofs[i].direction}`
-    }`;
-  return {
-    modes: {
-      columns: [
-        num("mode", "", result.modes.map((m) => m.mode)),
-        num("frequency_hz", "Hz", result.modes.map((m) => m.frequencyHz)),
-        num("damping_ratio", "", result.modes.map((m) => m.dampingRatio)),
-        num("mpc", "", result.modes.map((m) => m.mpc)),
-        { name: "flags", unit: "", values: result.modes.map((m) => m.flags.join(" ")) },
-        num("stable_orders", "", result.modes.map((m) => m.stableOrders)),
-        num("orders_spanned", "", result.modes.map((m) => m.ordersSpanned)),
-        num("frequency_spread", "%", result.modes.map((m) => m.frequencySpreadPercent)),
-        num("damping_spread", "%", result.modes.map((m) => m.dampingSpreadPercent)),
-      ],
-      metadata,
-    },
-    shapes: {
-      columns: [
-        num("mode", "", shapeRows.map((r) => r.m.mode)),
-        { name: "point", unit: "", values: shapeRows.map((r) => r.dof.point) },
-        { name: "direction", unit: "", values: shapeRows.map((r) => r.dof.direction) },
-        num("re", "", shapeRows.map((r) => r.c.re)),
-        num("im", "", shapeRows.map((r) => r.c.im)),
-        num("frequency_hz", "Hz", shapeRows.map((r) => r.m.frequencyHz)),
-      ],
-      metadata: { ...metadata, layout: "tidy: one row per (mode, degree of freedom)" },
-    },
-    stability: {
-      columns: [
-        num("order", "", result.stability.map((p) => p.order)),
-        num("frequency_hz", "Hz", result.stability.map((p) => p.frequencyHz)),
-        num("damping_ratio", "", result.stability.map((p) => p.dampingRatio)),
-        num("stable_frequency", "", result.stability.map((p) => Number(p.stableFrequency))),
-        num("stable_damping", "", result.stability.map((p) => Number(p.stableDamping))),
-        num("stable_shape", "", result.stability.map((p) => Number(p.stableShape))),
-        num("mode", "", result.stability.map((p) => p.mode)),
-      ],
-      metadata: { ...metadata, layout: "one row per pole and model order" },
-    },
-    synthesis: {
-      columns: [
-        num("frequency_hz", "Hz", result.frequencies),
-        ...result.dofs.flatMap((_, i) => [
-          num(`${dofName(i)}_measured_re`, unit, result.measured[i].re),
-          num(`${dofName(i)}_measured_im`, unit, result.measured[i].im),
-          num(`${dofName(i)}_synth_re`, unit, result.synthesis[i].re),
-          num(`${dofName(i)}_synth_im`, unit, result.synthesis[i].im),
-        ]),
-      ],
-      metadata: {
-        ...metadata,
-        layout: "receptance, measured beside synthesised, per degree of freedom",
-      },
-    },
   };
 }

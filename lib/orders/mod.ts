@@ -18,7 +18,8 @@ export {
   type OrderResult,
   trackOrders,
 } from "./order_tracking.ts";
-export { motionFromPulses, motionFromRpm, type ShaftMotion, tachoPulses } from "./tacho.ts";
+export { motionFromPulses, motionFromRpm, type ShaftMotion } from "./shaft_motion.ts";
+export { tachoPulses } from "./tacho.ts";
 export { type RpmSpectrogramOptions, spectrogramAgainstRpm } from "./rpm_spectrogram.ts";
 export {
   type RpmStepOptions,

@@ -1,8 +1,8 @@
 /**
  * The shaft speed of a run-up as every rpm-based analysis sees it: from a
- * tacho channel (pulses, tacho.ts) or from a channel that holds rpm, the
- * time at which the speed first passes each rpm step, and the steps
- * themselves. `orders` and the spectrogram against rpm share it, so their
+ * tacho channel (pulses, tacho.ts; speed and angle, shaft_motion.ts) or from
+ * a channel that holds rpm, the time at which the speed first passes each
+ * rpm step, and the steps themselves. `orders` and the spectrogram against rpm share it, so their
  * frames sit at the same instants.
  *
  * @module
@@ -11,13 +11,8 @@ import { QuiverError } from "../errors.ts";
 import { formatNumber } from "../format_number.ts";
 import { type Recording, selectChannels } from "../io/recording.ts";
 import { memorySeries, type SampleSeries } from "../io/sample_series.ts";
-import {
-  motionFromPulses,
-  motionFromRpm,
-  type ShaftMotion,
-  type TachoPulses,
-  tachoPulses,
-} from "./tacho.ts";
+import { motionFromPulses, motionFromRpm, type ShaftMotion } from "./shaft_motion.ts";
+import { type TachoPulses, tachoPulses } from "./tacho.ts";
 
 /** Where the speed comes from. Give `tacho` (with `ppr`) or `rpmChannel`. */
 export interface SpeedSource {
@@ -203,7 +198,7 @@ function tachoNotes(
  * @example
  * ```ts
  * import { lowestRpmBetween } from "./speed.ts";
- * import { motionFromRpm } from "./tacho.ts";
+ * import { motionFromRpm } from "./shaft_motion.ts";
  * const m = motionFromRpm(new Float64Array([900, 600, 1200]), 1); // readings at 0, 1, 2 s
  * if (lowestRpmBetween(m, 0.5, 1.5) !== 600) throw new Error();
  * ```
@@ -224,7 +219,7 @@ export function lowestRpmBetween(motion: ShaftMotion, from: number, to: number):
  * @example
  * ```ts
  * import { timeAtRpm } from "./speed.ts";
- * import { motionFromRpm } from "./tacho.ts";
+ * import { motionFromRpm } from "./shaft_motion.ts";
  * const ramp = new Float64Array(101).map((_, i) => 1000 + 10 * i); // 1000 → 2000 rpm in 1 s
  * if (Math.abs(timeAtRpm(motionFromRpm(ramp, 100), 1500)! - 0.5) > 1e-9) throw new Error();
  * ```
@@ -270,7 +265,7 @@ export interface RpmSteps {
  * @example
  * ```ts
  * import { rpmSteps } from "./speed.ts";
- * import { motionFromRpm } from "./tacho.ts";
+ * import { motionFromRpm } from "./shaft_motion.ts";
  * const ramp = new Float64Array(101).map((_, i) => 1010 + 10 * i); // 1010 → 2010 rpm
  * const s = rpmSteps(motionFromRpm(ramp, 100), { rpmStep: 250 });
  * if (s.steps.join() !== "1250,1500,1750,2000") throw new Error();

@@ -21,7 +21,7 @@ import { numericColumn, readResultFile, type ResultTable } from "../io/result_fi
 import { resultMetadata } from "../io/result_metadata.ts";
 import { checkCurve, checkValue, type TargetResult } from "../compare/targets.ts";
 import type { Plan, PlanTarget } from "./schema.ts";
-import { describeSkipped, firstMode, isMode } from "../modal/damping_analysis.ts";
+import { describeSkipped, firstMode, isMode } from "../modal/first_mode.ts";
 import { formatNumber } from "../format_number.ts";
 
 /** A target's outcome: a result, or why it could not be checked. */

@@ -1,7 +1,7 @@
 import { readFileSync } from "node:fs";
 import { fileURLToPath } from "node:url";
 import { expect, test } from "vitest";
-import { DAMPING_FLAGS } from "../../lib/modal/damping_analysis.ts";
+import { DAMPING_FLAGS } from "../../lib/modal/damping_flags.ts";
 import { runQuiver } from "../helpers/cli.ts";
 
 // Every flag the damping table can carry is documented where the engineer reads (README's

@@ -42,7 +42,7 @@ async function frfFile(noise: number, modes: readonly Mode[] = MODES): Promise<s
 
 describe("quiver modal: an order that cannot give a mode is refused at once", () => {
   // Orders 2, 4, … N: order 2 has no order before it, so at most N/2 − 1 stable poles;
-  // the rule (modal_fit.ts, ours) needs 5, so N = 12 is the smallest that can.
+  // the rule (pole_clusters.ts, ours) needs 5, so N = 12 is the smallest that can.
   test("--max-order 4, 6, 8 and 10: exit 2 naming 12; 12 finds the mode of one-mode data", async () => {
     const file = await frfFile(0, MODES.slice(0, 1));
     for (const n of [4, 6, 8, 10]) {

@@ -1,12 +1,13 @@
 import { beforeAll, describe, expect, test } from "vitest";
 import { frequencyResponse } from "../../lib/frf/frf_analysis.ts";
 import type { FrfData } from "../../lib/frf/frf_data.ts";
-import { firstMode, modalDamping } from "../../lib/modal/damping_analysis.ts";
+import { modalDamping } from "../../lib/modal/damping_analysis.ts";
+import { firstMode } from "../../lib/modal/first_mode.ts";
 import { judgeCoherence } from "../../lib/modal/peaks.ts";
 import { type Mode, receptance, simulateReceptance } from "../helpers/modal.ts";
 import { gaussianNoise } from "../helpers/random.ts";
 
-// The peak policy of `damping` (lib/modal/damping_analysis.ts): coherence judges a candidate,
+// The peak policy of `damping` (lib/modal/damping_estimates.ts): coherence judges a candidate,
 // it never deletes a real resonance, and a candidate flagged noise is never the mode a
 // target is judged on. Every data set here is simulated in the test.
 

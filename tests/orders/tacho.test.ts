@@ -2,7 +2,8 @@ import { mkdtemp, readFile, writeFile } from "node:fs/promises";
 import { describe, expect, test } from "vitest";
 import { runQuiver } from "../helpers/cli.ts";
 import { recordingCsv } from "../helpers/csv.ts";
-import { motionFromPulses, motionFromRpm, tachoPulses } from "../../lib/orders/tacho.ts";
+import { motionFromPulses, motionFromRpm } from "../../lib/orders/shaft_motion.ts";
+import { tachoPulses } from "../../lib/orders/tacho.ts";
 import {
   inductiveTacho,
   linearProfile,
