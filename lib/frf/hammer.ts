@@ -19,7 +19,7 @@ import { QuiverError } from "../errors.ts";
 import { channelIndices } from "../io/recording.ts";
 import { asStream, type RecordingSource } from "../io/recording_stream.ts";
 import { type SampleSeries, withChannelSeries } from "../io/sample_series.ts";
-import type { Table, TableColumn } from "../io/table.ts";
+import type { Table, TableColumn, TableMetadata } from "../io/table.ts";
 import { SpectralAccumulator } from "../dsp/spectral_core.ts";
 import type { FrfForm } from "./forms.ts";
 import { frfTableParts, SINGLE_AVERAGE_WARNING } from "./frf_analysis.ts";
@@ -64,7 +64,7 @@ export interface HammerResult {
   /** FRF table, the same layout as `frf`'s. */
   readonly table: Table;
   /** Hit log: `hit`, `time_s`, `peak`, `status`. */
-  readonly hitLog: Table<Float64Array | readonly string[]>;
+  readonly hitLog: Table<TableMetadata, Float64Array | readonly string[]>;
   /** The hits with their classification. */
   readonly hits: readonly Hit[];
   /** Warnings, also in the table's metadata. */
@@ -426,7 +426,7 @@ function analyseHits(
       warnings,
     },
   };
-  const hitLog: Table<Float64Array | readonly string[]> = {
+  const hitLog: Table<TableMetadata, Float64Array | readonly string[]> = {
     columns: [
       { name: "hit", unit: "", values: new Float64Array(hits.map((h) => h.hit)) },
       {

@@ -38,7 +38,7 @@
  */
 import { QuiverError } from "../errors.ts";
 import type { FrfChannel } from "../frf/frf_data.ts";
-import type { Table, TableColumn } from "../io/table.ts";
+import type { Table, TableColumn, TableMetadata } from "../io/table.ts";
 import {
   type Complex,
   fitResidues,
@@ -691,8 +691,8 @@ export function modalTables(
   result: ModalFitResult,
   settings: Readonly<Record<string, unknown>>,
 ): {
-  modes: Table<Float64Array | readonly string[]>;
-  shapes: Table<Float64Array | readonly string[]>;
+  modes: Table<TableMetadata, Float64Array | readonly string[]>;
+  shapes: Table<TableMetadata, Float64Array | readonly string[]>;
   stability: Table;
   synthesis: Table;
 } {
