@@ -7,7 +7,7 @@
  * @module
  */
 import { z } from "npm:zod@4.6.7";
-import { COMMON_FIELDS, finiteOrNull } from "../io/result_common.ts";
+import { COMMON_FIELDS, finiteOrNull, type Written } from "../io/result_common.ts";
 
 /**
  * The schema of a band levels result's metadata.
@@ -30,4 +30,4 @@ export const BANDS_METADATA = z.looseObject({
 });
 
 /** A band levels result's metadata as `bandLevels` writes it. */
-export type BandsMetadata = z.input<typeof BANDS_METADATA>;
+export type BandsMetadata = Written<z.input<typeof BANDS_METADATA>>;

@@ -7,7 +7,7 @@
  * @module
  */
 import { z } from "npm:zod@4.6.7";
-import { COMMON_FIELDS, finiteOrNull } from "../io/result_common.ts";
+import { COMMON_FIELDS, finiteOrNull, type Written } from "../io/result_common.ts";
 
 /**
  * The schema of a level history's metadata.
@@ -34,4 +34,4 @@ export const LEVEL_METADATA = z.looseObject({
 });
 
 /** A level history's metadata as `levelHistory` writes it. */
-export type LevelMetadata = z.input<typeof LEVEL_METADATA>;
+export type LevelMetadata = Written<z.input<typeof LEVEL_METADATA>>;

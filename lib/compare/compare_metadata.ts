@@ -7,7 +7,7 @@
  * @module
  */
 import { z } from "npm:zod@4.6.7";
-import { COMMON_FIELDS, finiteOrNull } from "../io/result_common.ts";
+import { COMMON_FIELDS, finiteOrNull, type Written } from "../io/result_common.ts";
 
 /**
  * The schema of a comparison's metadata.
@@ -38,4 +38,4 @@ export const COMPARE_METADATA = z.looseObject({
 });
 
 /** A comparison's metadata as `compareCurves` writes it. */
-export type CompareMetadata = z.input<typeof COMPARE_METADATA>;
+export type CompareMetadata = Written<z.input<typeof COMPARE_METADATA>>;

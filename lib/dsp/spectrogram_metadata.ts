@@ -7,7 +7,7 @@
  * @module
  */
 import { z } from "npm:zod@4.6.7";
-import { COMMON_FIELDS } from "../io/result_common.ts";
+import { COMMON_FIELDS, type Written } from "../io/result_common.ts";
 
 /**
  * The schema of a spectrogram's metadata.
@@ -30,4 +30,4 @@ export const SPECTROGRAM_METADATA = z.looseObject({
 });
 
 /** A spectrogram's metadata as its producers write it. */
-export type SpectrogramMetadata = z.input<typeof SPECTROGRAM_METADATA>;
+export type SpectrogramMetadata = Written<z.input<typeof SPECTROGRAM_METADATA>>;

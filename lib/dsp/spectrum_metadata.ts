@@ -7,7 +7,7 @@
  * @module
  */
 import { z } from "npm:zod@4.6.7";
-import { COMMON_FIELDS } from "../io/result_common.ts";
+import { COMMON_FIELDS, type Written } from "../io/result_common.ts";
 
 /**
  * The schema of a spectrum's metadata.
@@ -30,4 +30,4 @@ export const SPECTRUM_METADATA = z.looseObject({
 });
 
 /** A spectrum's metadata as `averagedSpectrum` writes it. */
-export type SpectrumMetadata = z.input<typeof SPECTRUM_METADATA>;
+export type SpectrumMetadata = Written<z.input<typeof SPECTRUM_METADATA>>;

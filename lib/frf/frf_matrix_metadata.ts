@@ -8,7 +8,7 @@
  * @module
  */
 import { z } from "npm:zod@4.6.7";
-import { channelSchema, COMMON_FIELDS } from "../io/result_common.ts";
+import { channelSchema, COMMON_FIELDS, type Written } from "../io/result_common.ts";
 
 /**
  * The schema of an FRF matrix's metadata.
@@ -29,7 +29,7 @@ export const FRF_MATRIX_METADATA = z.looseObject({
 });
 
 /** An FRF matrix's metadata as `multipleInputFrf` writes it. */
-export type FrfMatrixMetadata = z.input<typeof FRF_MATRIX_METADATA>;
+export type FrfMatrixMetadata = Written<z.input<typeof FRF_MATRIX_METADATA>>;
 
 /**
  * The schema of the partial coherences' metadata.
@@ -48,7 +48,7 @@ export const FRF_PARTIAL_METADATA = z.looseObject({
 });
 
 /** The partial coherences' metadata as `multipleInputFrf` writes it. */
-export type FrfPartialMetadata = z.input<typeof FRF_PARTIAL_METADATA>;
+export type FrfPartialMetadata = Written<z.input<typeof FRF_PARTIAL_METADATA>>;
 
 /**
  * The schema of the principal components' metadata.
@@ -67,4 +67,4 @@ export const FRF_PRINCIPAL_METADATA = z.looseObject({
 });
 
 /** The principal components' metadata as `multipleInputFrf` writes it. */
-export type FrfPrincipalMetadata = z.input<typeof FRF_PRINCIPAL_METADATA>;
+export type FrfPrincipalMetadata = Written<z.input<typeof FRF_PRINCIPAL_METADATA>>;

@@ -8,7 +8,7 @@
  * @module
  */
 import { z } from "npm:zod@4.6.7";
-import { COMMON_FIELDS } from "../io/result_common.ts";
+import { COMMON_FIELDS, type Written } from "../io/result_common.ts";
 
 const frfResponse = z.looseObject({
   name: z.string(),
@@ -39,4 +39,4 @@ export const FRF_METADATA = z.looseObject({
 });
 
 /** An FRF's metadata as `frequencyResponse` (frf_analysis.ts) writes it. */
-export type FrfMetadata = z.input<typeof FRF_METADATA>;
+export type FrfMetadata = Written<z.input<typeof FRF_METADATA>>;

@@ -7,7 +7,7 @@
  * @module
  */
 import { z } from "npm:zod@4.6.7";
-import { channelSchema } from "../io/result_common.ts";
+import { channelSchema, type Written } from "../io/result_common.ts";
 import { FRF_METADATA } from "./frf_metadata.ts";
 
 /**
@@ -27,7 +27,7 @@ export const HAMMER_METADATA = FRF_METADATA.extend({
 });
 
 /** A hammer FRF's metadata as `hammerFrf` writes it. */
-export type HammerMetadata = z.input<typeof HAMMER_METADATA>;
+export type HammerMetadata = Written<z.input<typeof HAMMER_METADATA>>;
 
 /**
  * The schema of the hit records' metadata: force and response channel, and
@@ -53,4 +53,4 @@ export const HAMMER_RECORDS_METADATA = z.looseObject({
 });
 
 /** The hit records' metadata as `hammerFrf` writes it. */
-export type HammerRecordsMetadata = z.input<typeof HAMMER_RECORDS_METADATA>;
+export type HammerRecordsMetadata = Written<z.input<typeof HAMMER_RECORDS_METADATA>>;

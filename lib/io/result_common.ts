@@ -44,3 +44,19 @@ export const COMMON_FIELDS = {
  * ```
  */
 export const channelSchema = z.looseObject({ name: z.string(), unit: z.string() });
+
+/**
+ * A result's metadata as a producer writes it: the schema's type with every
+ * array and object read-only, so a producer may hand over what it holds
+ * (a `readonly number[]` option) without a copy. Nested objects list only
+ * their known keys, so that a producer's own interfaces (which have no
+ * index signature) fit them. Readers get the schema's own type
+ * (lib/io/result_metadata.ts).
+ */
+export type Written<T> = { readonly [K in keyof T]: WrittenField<T[K]> };
+
+/** A field of {@linkcode Written}: read-only, nested objects without index signature. */
+export type WrittenField<T> = T extends readonly (infer E)[] ? readonly WrittenField<E>[]
+  : T extends object
+    ? { readonly [K in keyof T as string extends K ? never : K]: WrittenField<T[K]> }
+  : T;

@@ -50,7 +50,8 @@
  */
 import { QuiverError } from "../errors.ts";
 import { formatNumber } from "../format_number.ts";
-import type { Table, TableMetadata } from "../io/table.ts";
+import type { Table } from "../io/table.ts";
+import type { DampingMetadata } from "./damping_metadata.ts";
 import { formPower, type FrfForm } from "../frf/forms.ts";
 import type { FrfChannel, FrfData } from "./frf_input.ts";
 import { halfPower, type HalfPowerEstimate } from "./half_power.ts";
@@ -197,7 +198,7 @@ export interface DampingResult {
   /** Every candidate of every channel (those flagged `noise` with mode null). */
   readonly modes: readonly ModeEstimate[];
   /** The mode table (text columns for optional values, see the command's help). */
-  readonly table: Table<TableMetadata, Float64Array | readonly string[]>;
+  readonly table: Table<DampingMetadata, Float64Array | readonly string[]>;
   /** The target check, when a target was given. */
   readonly target?: FrequencyTarget;
   /** Warnings. */
@@ -635,7 +636,7 @@ export function modalDamping(data: FrfData, options: DampingOptions = {}): Dampi
     unit: "",
     values,
   });
-  const table: Table<TableMetadata, Float64Array | readonly string[]> = {
+  const table: Table<DampingMetadata, Float64Array | readonly string[]> = {
     columns: [
       column("channel", modes.map((m) => m.channel)),
       column("mode", modes.map((m) => text(m.mode))),

@@ -7,7 +7,7 @@
  * @module
  */
 import { z } from "npm:zod@4.6.7";
-import { COMMON_FIELDS, finiteOrNull } from "../io/result_common.ts";
+import { COMMON_FIELDS, finiteOrNull, type Written } from "../io/result_common.ts";
 
 const mode = z.looseObject({
   channel: z.string(),
@@ -39,4 +39,4 @@ export const DAMPING_METADATA = z.looseObject({
 });
 
 /** A damping result's metadata as `modalDamping` writes it. */
-export type DampingMetadata = z.input<typeof DAMPING_METADATA>;
+export type DampingMetadata = Written<z.input<typeof DAMPING_METADATA>>;

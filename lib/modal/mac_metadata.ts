@@ -7,7 +7,7 @@
  * @module
  */
 import { z } from "npm:zod@4.6.7";
-import { COMMON_FIELDS, finiteOrNull } from "../io/result_common.ts";
+import { COMMON_FIELDS, finiteOrNull, type Written } from "../io/result_common.ts";
 
 /**
  * The schema of a shape correlation's metadata.
@@ -46,4 +46,4 @@ export const MAC_METADATA = z.looseObject({
 });
 
 /** A shape correlation's metadata as `correlationTables` writes it. */
-export type MacMetadata = z.input<typeof MAC_METADATA>;
+export type MacMetadata = Written<z.input<typeof MAC_METADATA>>;

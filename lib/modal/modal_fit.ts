@@ -38,7 +38,8 @@
  */
 import { QuiverError } from "../errors.ts";
 import type { FrfChannel } from "../frf/frf_data.ts";
-import type { Table, TableColumn, TableMetadata } from "../io/table.ts";
+import type { Table, TableColumn } from "../io/table.ts";
+import type { ModalMetadata } from "./modal_metadata.ts";
 import {
   type Complex,
   fitResidues,
@@ -691,12 +692,12 @@ export function modalTables(
   result: ModalFitResult,
   settings: Readonly<Record<string, unknown>>,
 ): {
-  modes: Table<TableMetadata, Float64Array | readonly string[]>;
-  shapes: Table<TableMetadata, Float64Array | readonly string[]>;
-  stability: Table;
-  synthesis: Table;
+  modes: Table<ModalMetadata, Float64Array | readonly string[]>;
+  shapes: Table<ModalMetadata, Float64Array | readonly string[]>;
+  stability: Table<ModalMetadata>;
+  synthesis: Table<ModalMetadata>;
 } {
-  const metadata = {
+  const metadata: ModalMetadata = {
     analysis: "modal",
     method: MODAL_METHOD,
     shape_normalisation: "largest component real and 1",

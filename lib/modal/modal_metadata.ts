@@ -7,7 +7,7 @@
  * @module
  */
 import { z } from "npm:zod@4.6.7";
-import { COMMON_FIELDS, finiteOrNull } from "../io/result_common.ts";
+import { COMMON_FIELDS, finiteOrNull, type Written } from "../io/result_common.ts";
 
 /**
  * The schema of a modal fit's metadata.
@@ -42,4 +42,4 @@ export const MODAL_METADATA = z.looseObject({
 });
 
 /** A modal fit's metadata as `modalTables` writes it. */
-export type ModalMetadata = z.input<typeof MODAL_METADATA>;
+export type ModalMetadata = Written<z.input<typeof MODAL_METADATA>>;

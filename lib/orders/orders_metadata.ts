@@ -8,7 +8,7 @@
  * @module
  */
 import { z } from "npm:zod@4.6.7";
-import { COMMON_FIELDS } from "../io/result_common.ts";
+import { COMMON_FIELDS, type Written } from "../io/result_common.ts";
 
 /**
  * The schema of the order cuts' metadata.
@@ -30,7 +30,7 @@ export const ORDERS_METADATA = z.looseObject({
 });
 
 /** The order cuts' metadata as `trackOrders` writes it. */
-export type OrdersMetadata = z.input<typeof ORDERS_METADATA>;
+export type OrdersMetadata = Written<z.input<typeof ORDERS_METADATA>>;
 
 /**
  * The schema of the order map's metadata (readers ask only which analysis it is).
@@ -47,4 +47,4 @@ export const ORDER_MAP_METADATA = z.looseObject({
 });
 
 /** The order map's metadata as `trackOrders` writes it. */
-export type OrderMapMetadata = z.input<typeof ORDER_MAP_METADATA>;
+export type OrderMapMetadata = Written<z.input<typeof ORDER_MAP_METADATA>>;

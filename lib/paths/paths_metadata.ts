@@ -7,7 +7,7 @@
  * @module
  */
 import { z } from "npm:zod@4.6.7";
-import { channelSchema, COMMON_FIELDS, finiteOrNull } from "../io/result_common.ts";
+import { channelSchema, COMMON_FIELDS, finiteOrNull, type Written } from "../io/result_common.ts";
 
 /**
  * The schema of a path contribution result's metadata.
@@ -38,4 +38,4 @@ export const PATHS_METADATA = z.looseObject({
 });
 
 /** A path contribution result's metadata as `pathContributions` writes it. */
-export type PathsMetadata = z.input<typeof PATHS_METADATA>;
+export type PathsMetadata = Written<z.input<typeof PATHS_METADATA>>;
