@@ -120,9 +120,9 @@ const WRITERS: { [K in SegmentKey]-?: (s: Segmenting) => SegmentMetadata[K] } = 
  * import { segmentMetadata } from "./segment_metadata.ts";
  * import { spectralEstimate } from "./spectral_core.ts";
  * const e = spectralEstimate([new Float64Array(64).map((_, i) => Math.sin(i))], { rate: 8, block: 16 });
- * const m = segmentMetadata({ ...e, overlap: 0.5 }, ["df_hz", "averages", "overlap_samples", "tau_s", "window_source"]);
- * if (m.df_hz !== 0.5 || m.averages !== 7 || m.overlap_samples !== 8 || "tau_s" in m) throw new Error();
- * if (Object.keys(m).join() !== "df_hz,averages,overlap_samples,window_source") throw new Error("in the order asked");
+ * const m = segmentMetadata({ ...e, overlap: 0.5 }, ["df_hz", "averages", "overlap", "overlap_samples", "tau_s", "window_source"]);
+ * if (m.df_hz !== 0.5 || m.averages !== 7 || m.overlap !== 0.5 || m.overlap_samples !== 8 || "tau_s" in m) throw new Error();
+ * if (Object.keys(m).join() !== "df_hz,averages,overlap,overlap_samples,window_source") throw new Error("in the order asked");
  * ```
  */
 export function segmentMetadata<const K extends readonly SegmentKey[]>(
