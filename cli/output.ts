@@ -13,6 +13,7 @@ import {
   formatJson,
   noteEmptyCells,
   type Table,
+  type TableMetadata,
 } from "../lib/io/table.ts";
 
 /** Output formats of table-writing commands. */
@@ -43,7 +44,7 @@ export function resolveFormat(
  * Cells that hold no finite number are listed in `metadata.empty_cells`.
  */
 export async function writeTable(
-  written: Table<ColumnValues>,
+  written: Table<TableMetadata, ColumnValues>,
   format: TableFormat,
   out: string | undefined,
 ): Promise<void> {
@@ -82,7 +83,7 @@ export async function writeTable(
  * the format the options ask for (see {@linkcode resolveFormat}).
  */
 export async function writeResult(
-  table: Table<ColumnValues>,
+  table: Table<TableMetadata, ColumnValues>,
   source: string,
   values: { format?: TableFormat; out?: string; start?: number; end?: number },
 ): Promise<void> {

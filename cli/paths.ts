@@ -169,9 +169,7 @@ export async function run(argv: readonly string[]): Promise<void> {
     });
   }
   for (const w of result.warnings) toStderr(`quiver paths: warning: ${w}\n`);
-  const ranking = (result.table.metadata.ranking as {
-    paths: { name: string; level_db: number; share_percent: number | null }[];
-  }[])[0];
+  const ranking = result.table.metadata.ranking[0];
   toStderr(
     `paths: ${values.references.length} path(s) to ${values.target}, ${method}; over the analysed range: ${
       ranking.paths.map((p) =>

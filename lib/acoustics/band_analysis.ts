@@ -29,6 +29,8 @@
 import { formatNumber } from "../format_number.ts";
 import { channelIndices } from "../io/recording.ts";
 import type { Table, TableColumn } from "../io/table.ts";
+import { segmentMetadata } from "../dsp/segment_metadata.ts";
+import type { BandsMetadata } from "./bands_metadata.ts";
 import { resolveBlock, type SpectralEstimate } from "../dsp/spectral_core.ts";
 import { spectralEstimateOf } from "../dsp/spectral_pipeline.ts";
 import { asStream, readChecked, type RecordingSource } from "../io/recording_stream.ts";
@@ -83,7 +85,7 @@ export interface BandLevelOptions {
 /** Band levels and their summary. */
 export interface BandLevelResult {
   /** center_hz, nominal_hz, lower_hz, upper_hz, then one dB column per channel. */
-  readonly table: Table;
+  readonly table: Table<BandsMetadata>;
   /** Overall level per channel (energy sum of the bands), dB. */
   readonly overall: readonly { channel: string; levelDb: number; unit: string }[];
   /** Warnings. */
@@ -282,13 +284,10 @@ function fftBandPowers(estimate: SpectralEstimate, plan: BandPlan): Float64Array
         } Hz; their levels are unreliable (use a longer block or --method filter)`,
     );
   }
-  Object.assign(metadata, {
-    block: estimate.block,
-    df_hz: estimate.df,
-    averages: estimate.averages,
-    window: estimate.window,
-    overlap_samples: estimate.overlapSamples,
-  });
+  Object.assign(
+    metadata,
+    segmentMetadata(estimate, ["block", "df_hz", "averages", "window", "overlap_samples"]),
+  );
   return estimate.auto.map((density) =>
     bandPowersFromDensity(
       { frequencies: estimate.frequencies, density, df: estimate.df },

@@ -19,6 +19,7 @@
  */
 import { channelIndices } from "../io/recording.ts";
 import type { Table, TableColumn } from "../io/table.ts";
+import type { LevelMetadata } from "./level_metadata.ts";
 import { asStream, readChecked, type RecordingSource } from "../io/recording_stream.ts";
 import { CascadeFilter } from "./biquad.ts";
 import { levelDb, levelReference, levelUnit } from "./levels.ts";
@@ -54,7 +55,7 @@ export interface LevelOptions {
 /** Levels against time and their statistics. */
 export interface LevelResult {
   /** time_s, then one dB column per channel. */
-  readonly table: Table;
+  readonly table: Table<LevelMetadata>;
   /** Warnings. */
   readonly warnings: readonly string[];
   /** Per-channel statistics. */

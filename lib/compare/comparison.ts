@@ -17,6 +17,7 @@
  * @module
  */
 import type { Table } from "../io/table.ts";
+import type { CompareMetadata } from "./compare_metadata.ts";
 import { type BandFraction, bandsInRange } from "../acoustics/bands.ts";
 import { alignCurves } from "./align.ts";
 import { type Curve, quantityOfUnit, withQuantity } from "./curve_input.ts";
@@ -70,7 +71,7 @@ export interface ComparisonSummary {
 /** The comparison table and summary. */
 export interface ComparisonResult {
   /** frequency_hz, test, simulation, difference_db. */
-  readonly table: Table;
+  readonly table: Table<CompareMetadata>;
   /** Summary. */
   readonly summary: ComparisonSummary;
 }

@@ -12,7 +12,8 @@ import { asStream, type RecordingSource } from "../io/recording_stream.ts";
 import { resolveBlock, type SpectralEstimate, type SpectralOptions } from "./spectral_core.ts";
 import { spectralEstimateOf, type SpectralSinkOptions } from "./spectral_pipeline.ts";
 import { autoSpectrum, type SpectrumKind, spectrumUnit } from "./spectrum_kinds.ts";
-import { WINDOW_DEFINITIONS, windowGains, windowSamples } from "./windows.ts";
+import { segmentMetadata } from "./segment_metadata.ts";
+import type { SpectrumMetadata } from "./spectrum_metadata.ts";
 
 /** Options of {@linkcode averagedSpectrum}. */
 export interface AveragedSpectrumOptions extends Omit<SpectralOptions, "rate" | "block" | "pairs"> {
@@ -53,7 +54,7 @@ export interface AveragedSpectrumOptions extends Omit<SpectralOptions, "rate" | 
 export async function averagedSpectrum(
   source: RecordingSource,
   options: AveragedSpectrumOptions = {},
-): Promise<Table> {
+): Promise<Table<SpectrumMetadata>> {
   const stream = asStream(source);
   const indices = channelIndices(stream.channels, options.channels);
   const channels = indices.map((i) => stream.channels[i]);
@@ -87,10 +88,9 @@ function spectrumTable(
     startTime: number;
     warnings: string[];
   },
-): Table {
+): Table<SpectrumMetadata> {
   checkAutoSpectra(estimate, channels);
   const kind = options.kind ?? "psd";
-  const gains = windowGains(windowSamples(estimate.window, estimate.block));
   const columns: TableColumn[] = [
     { name: "frequency_hz", unit: "", values: estimate.frequencies },
     ...channels.map((c, i) => ({
@@ -104,20 +104,22 @@ function spectrumTable(
     metadata: {
       analysis: "spectrum",
       kind,
-      rate_hz: estimate.rate,
-      block: estimate.block,
-      df_hz: estimate.df,
-      overlap: options.overlap ?? 0.5,
-      overlap_samples: estimate.overlapSamples,
-      averages: estimate.averages,
-      average: estimate.average,
-      ...(estimate.tau !== undefined ? { tau_s: estimate.tau } : {}),
-      window: estimate.window,
-      window_source: WINDOW_DEFINITIONS[estimate.window].source,
-      window_coherent_gain: gains.coherentGain,
-      window_enbw_bins: gains.enbwBins,
-      enbw_hz: estimate.enbwHz,
-      detrend: estimate.detrend,
+      ...segmentMetadata({ ...estimate, overlap: options.overlap ?? 0.5 }, [
+        "rate_hz",
+        "block",
+        "df_hz",
+        "overlap",
+        "overlap_samples",
+        "averages",
+        "average",
+        "tau_s",
+        "window",
+        "window_source",
+        "window_coherent_gain",
+        "window_enbw_bins",
+        "enbw_hz",
+        "detrend",
+      ]),
       record_samples: length,
       record_start_s: startTime,
       warnings,

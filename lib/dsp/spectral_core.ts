@@ -21,13 +21,7 @@ import { QuiverError } from "../errors.ts";
 import { formatNumber } from "../format_number.ts";
 import { MAX_FFT_SIZE, type RealFftPlan, realFftPlan } from "./fft.ts";
 import { detrendInPlace, type DetrendMode, parseDetrendMode } from "./detrend.ts";
-import {
-  parseWindowName,
-  WINDOW_DEFINITIONS,
-  windowGains,
-  type WindowName,
-  windowSamples,
-} from "./windows.ts";
+import { parseWindowName, windowGains, type WindowName, windowSamples } from "./windows.ts";
 import { parseChoice } from "../choices.ts";
 
 /**
@@ -131,43 +125,6 @@ export interface SpectralEstimate {
   readonly auto: readonly Float64Array[];
   /** The requested cross spectral densities. */
   readonly cross: readonly CrossSpectrum[];
-}
-
-/**
- * The segmenting an estimate was made with, as result metadata: rate, block,
- * line spacing, overlap (as asked and in samples), averages, window with its
- * source, and detrend. One writer for every analysis that averages segments.
- *
- * @example
- * ```ts
- * import { segmentMetadata, spectralEstimate } from "./spectral_core.ts";
- * const e = spectralEstimate([new Float64Array(64).map((_, i) => Math.sin(i))], { rate: 8, block: 16 });
- * const m = segmentMetadata(e, 0.5);
- * if (m.df_hz !== 0.5 || m.averages !== 7 || m.overlap_samples !== 8) throw new Error();
- * ```
- */
-export function segmentMetadata(estimate: SpectralEstimate, overlap: number): {
-  rate_hz: number;
-  block: number;
-  df_hz: number;
-  overlap: number;
-  overlap_samples: number;
-  averages: number;
-  window: WindowName;
-  window_source: string;
-  detrend: DetrendMode;
-} {
-  return {
-    rate_hz: estimate.rate,
-    block: estimate.block,
-    df_hz: estimate.df,
-    overlap,
-    overlap_samples: estimate.overlapSamples,
-    averages: estimate.averages,
-    window: estimate.window,
-    window_source: WINDOW_DEFINITIONS[estimate.window].source,
-    detrend: estimate.detrend,
-  };
 }
 
 /**

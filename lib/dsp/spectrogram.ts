@@ -20,6 +20,8 @@ import type { DetrendMode } from "./detrend.ts";
 import { resolveBlock, SpectralAccumulator, type SpectralEstimate } from "./spectral_core.ts";
 import { autoSpectrum, type SpectrumKind, spectrumUnit } from "./spectrum_kinds.ts";
 import type { WindowName } from "./windows.ts";
+import { type SegmentMetadata, segmentMetadata } from "./segment_metadata.ts";
+import type { SpectrogramMetadata } from "./spectrogram_metadata.ts";
 
 /** The most cells a spectrogram writes unless asked for more. */
 export const MAX_SPECTROGRAM_CELLS = 5_000_000;
@@ -128,7 +130,7 @@ export function linesInRange(
 export async function spectrogram(
   source: RecordingSource,
   options: SpectrogramOptions = {},
-): Promise<Table> {
+): Promise<Table<SpectrogramMetadata>> {
   const stream = asStream(source);
   const indices = channelIndices(stream.channels, options.channels);
   const channels = indices.map((i) => stream.channels[i]);
@@ -196,12 +198,7 @@ export async function spectrogram(
       analysis: "spectrogram",
       against: "time",
       layout: "tidy: one row per (frame, line)",
-      rate_hz: rate,
-      block,
-      df_hz: rate / block,
-      overlap_samples: overlapSamples,
-      window: options.window ?? "hann",
-      detrend: options.detrend ?? "mean",
+      ...spectrogramSegmenting(rate, block, overlapSamples, options),
       kind,
       segments_per_frame: perFrame,
       frames: frameCount,
@@ -210,6 +207,34 @@ export async function spectrogram(
       warnings,
     },
   };
+}
+
+/**
+ * The segmenting of a spectrogram (against time or rpm), as its metadata
+ * writes it: rate, block, line spacing, overlap in samples, window and
+ * detrend (the core's defaults where the options give none).
+ *
+ * @example
+ * ```ts
+ * import { spectrogramSegmenting } from "./spectrogram.ts";
+ * const m = spectrogramSegmenting(1024, 256, 128, {});
+ * if (m.df_hz !== 4 || m.window !== "hann" || Object.keys(m)[0] !== "rate_hz") throw new Error();
+ * ```
+ */
+export function spectrogramSegmenting(
+  rate: number,
+  block: number,
+  overlapSamples: number,
+  options: Pick<SpectrogramOptions, "window" | "detrend">,
+): Pick<SegmentMetadata, "rate_hz" | "block" | "df_hz" | "overlap_samples" | "window" | "detrend"> {
+  return segmentMetadata({
+    rate,
+    block,
+    df: rate / block,
+    overlapSamples,
+    window: options.window ?? "hann",
+    detrend: options.detrend ?? "mean",
+  }, ["rate_hz", "block", "df_hz", "overlap_samples", "window", "detrend"]);
 }
 
 /**
@@ -325,7 +350,7 @@ export class FrameScaling {
   }
 
   /** The scaling as written into a result's metadata. */
-  metadata(): Record<string, unknown> {
+  metadata(): { weighting: Weighting; db: boolean; references?: readonly number[] } {
     return {
       weighting: this.#weighting,
       db: this.#db,

@@ -8,12 +8,7 @@
 import { QuiverError } from "../errors.ts";
 import { channelIndices } from "../io/recording.ts";
 import type { Table, TableColumn } from "../io/table.ts";
-import {
-  resolveBlock,
-  segmentMetadata,
-  type SpectralEstimate,
-  type SpectralOptions,
-} from "../dsp/spectral_core.ts";
+import { resolveBlock, type SpectralEstimate, type SpectralOptions } from "../dsp/spectral_core.ts";
 import type { DetrendMode } from "../dsp/detrend.ts";
 import type { WindowName } from "../dsp/windows.ts";
 import { asStream, type RecordingSource, type RecordingStream } from "../io/recording_stream.ts";
@@ -29,6 +24,8 @@ import {
   responseUnitOfForm,
 } from "./forms.ts";
 import { responseColumns, type ResponseFrf } from "./frf_table.ts";
+import type { FrfMetadata } from "./frf_metadata.ts";
+import { FRF_SEGMENT_KEYS, segmentMetadata } from "../dsp/segment_metadata.ts";
 import type { FrfData } from "./frf_data.ts";
 import {
   QUIET_LEVEL,
@@ -65,7 +62,7 @@ export interface FrfResult {
   /** The FRFs, typed. */
   readonly frf: FrfData;
   /** The table (see frf_table.ts for its columns). */
-  readonly table: Table;
+  readonly table: Table<FrfMetadata>;
   /** Warnings, also in `table.metadata.warnings`. */
   readonly warnings: readonly string[];
 }
@@ -75,7 +72,10 @@ export interface FrfTableParts {
   /** `frequency_hz`, then six columns per response. */
   readonly columns: TableColumn[];
   /** estimator, input, responses (with forms and units), first_line_dropped. */
-  readonly metadata: Readonly<Record<string, unknown>>;
+  readonly metadata: Pick<FrfMetadata, "estimator" | "responses"> & {
+    readonly input: { name: string; unit: string };
+    readonly first_line_dropped: boolean;
+  };
   /** The same FRFs, typed (without the 0 Hz line when it was dropped). */
   readonly frf: FrfData;
 }
@@ -341,7 +341,7 @@ function frfResult(
       metadata: {
         analysis: "frf",
         ...parts.metadata,
-        ...segmentMetadata(estimate, options.overlap ?? 0.5),
+        ...segmentMetadata({ ...estimate, overlap: options.overlap ?? 0.5 }, FRF_SEGMENT_KEYS),
         record_samples: length,
         excitation,
         warnings,

@@ -19,7 +19,9 @@ import { QuiverError } from "../errors.ts";
 import { channelIndices } from "../io/recording.ts";
 import { asStream, type RecordingSource } from "../io/recording_stream.ts";
 import { type SampleSeries, withChannelSeries } from "../io/sample_series.ts";
-import type { Table, TableColumn } from "../io/table.ts";
+import type { Table, TableColumn, TableMetadata } from "../io/table.ts";
+import type { HammerMetadata, HammerRecordsMetadata } from "./hammer_metadata.ts";
+import { segmentMetadata } from "../dsp/segment_metadata.ts";
 import { SpectralAccumulator } from "../dsp/spectral_core.ts";
 import type { FrfForm } from "./forms.ts";
 import { frfTableParts, SINGLE_AVERAGE_WARNING } from "./frf_analysis.ts";
@@ -62,9 +64,9 @@ export interface HammerResult {
   /** The FRFs, typed, with the exponential window's time constant when one was applied. */
   readonly frf: FrfData;
   /** FRF table, the same layout as `frf`'s. */
-  readonly table: Table;
+  readonly table: Table<HammerMetadata>;
   /** Hit log: `hit`, `time_s`, `peak`, `status`. */
-  readonly hitLog: Table<Float64Array | readonly string[]>;
+  readonly hitLog: Table<TableMetadata, Float64Array | readonly string[]>;
   /** The hits with their classification. */
   readonly hits: readonly Hit[];
   /** Warnings, also in the table's metadata. */
@@ -76,7 +78,7 @@ export interface HammerResult {
   /** Where the force autospectrum has fallen {@linkcode USABLE_DROP_DB} below its low-frequency level. */
   readonly usableBandwidth: UsableBandwidth;
   /** Every hit's record (force and first response, as seen before windowing), for a quality plot. */
-  readonly hitRecords: Table;
+  readonly hitRecords: Table<HammerRecordsMetadata>;
 }
 
 /**
@@ -396,7 +398,7 @@ function analyseHits(
       parts.frf.frequencies.length < estimate.frequencies.length ? 1 : 0,
     ),
   };
-  const table: Table = {
+  const table: Table<HammerMetadata> = {
     columns: [...parts.columns, forceColumn],
     metadata: {
       analysis: "hammer",
@@ -406,10 +408,8 @@ function analyseHits(
       usable_bandwidth_rule:
         `first line where the force autospectrum is ${USABLE_DROP_DB} dB below its mean over the lowest 2 % of the band (common practice: 10 to 20 dB)`,
       usable_bandwidth_reached: usable.reached,
-      rate_hz: rate,
-      block: recordSamples,
-      df_hz: rate / recordSamples,
-      averages: estimate.averages,
+      // The estimate's block is the record (rate and block as the accumulator was given them).
+      ...segmentMetadata(estimate, ["rate_hz", "block", "df_hz", "averages"]),
       hits_summary: summary,
       hits_accepted: accepted.map((h) => h.hit),
       trigger_level: detection.trigger,
@@ -426,7 +426,7 @@ function analyseHits(
       warnings,
     },
   };
-  const hitLog: Table<Float64Array | readonly string[]> = {
+  const hitLog: Table<TableMetadata, Float64Array | readonly string[]> = {
     columns: [
       { name: "hit", unit: "", values: new Float64Array(hits.map((h) => h.hit)) },
       {
@@ -476,7 +476,7 @@ function recordsOfHits(
     force: { name: string; unit: string };
     response: { name: string; unit: string };
   },
-): Table {
+): Table<HammerRecordsMetadata> {
   const { rate, pretriggerSamples, recordSamples } = context;
   const stretches = Math.min(RECORD_POINTS / 2, recordSamples);
   const per = recordSamples / stretches;

@@ -31,7 +31,13 @@ import { channelIndices } from "../io/recording.ts";
 import { asStream, type RecordingSource } from "../io/recording_stream.ts";
 import { spectralEstimateOf } from "../dsp/spectral_pipeline.ts";
 import type { Table, TableColumn } from "../io/table.ts";
-import { resolveBlock, segmentMetadata, type SpectralEstimate } from "../dsp/spectral_core.ts";
+import { resolveBlock, type SpectralEstimate } from "../dsp/spectral_core.ts";
+import { FRF_SEGMENT_KEYS, segmentMetadata } from "../dsp/segment_metadata.ts";
+import type {
+  FrfMatrixMetadata,
+  FrfPartialMetadata,
+  FrfPrincipalMetadata,
+} from "./frf_matrix_metadata.ts";
 import type { DetrendMode } from "../dsp/detrend.ts";
 import type { WindowName } from "../dsp/windows.ts";
 import { frfUnit } from "./forms.ts";
@@ -104,11 +110,11 @@ export interface MultipleInputResult {
   /** The typed result. */
   readonly frf: MultipleInputFrf;
   /** H per output and input, multiple coherence, condition number. */
-  readonly table: Table;
+  readonly table: Table<FrfMatrixMetadata>;
   /** Partial coherences and conditioned spectra. */
-  readonly partialTable: Table;
+  readonly partialTable: Table<FrfPartialMetadata>;
   /** Principal components and virtual coherences. */
-  readonly principalTable: Table;
+  readonly principalTable: Table<FrfPrincipalMetadata>;
   /** Warnings, also in each table's metadata. */
   readonly warnings: readonly string[];
 }
@@ -406,7 +412,7 @@ function tables(
     outputs: outputs.map((c) => ({ name: c.name, unit: c.unit })),
     column_naming: "output/input_re|im|mag|phase_deg; output_multiple_coherence",
     ill_conditioned_above: ILL_CONDITIONED,
-    ...segmentMetadata(estimate, options.overlap ?? 0.5),
+    ...segmentMetadata({ ...estimate, overlap: options.overlap ?? 0.5 }, FRF_SEGMENT_KEYS),
     record_samples: length,
     method: "Bendat & Piersol, Random Data, 4th ed., ch. 7 (multiple-input/output relations)",
     warnings,

@@ -48,6 +48,7 @@ export {
   restoreFormula,
   type Table,
   type TableColumn,
+  type TableMetadata,
 } from "./table.ts";
 export { checkName, escapeName } from "./names.ts";
 export { readSidecar, type Sidecar, writeCsvPair } from "./table_file.ts";

@@ -1,7 +1,8 @@
 /**
  * What the metadata of each analysis's result holds, as far as quiver's own
  * readers use it (damping, compare, targets, the report): one zod schema per
- * analysis, keyed by the `analysis` name the result carries. Readers ask for
+ * analysis, kept beside the analysis (e.g. lib/dsp/spectrum_metadata.ts) and
+ * listed here, keyed by the `analysis` name the result carries. Readers ask for
  * the analysis they expect and get typed metadata or a message naming the
  * file and the key; nothing is cast. Keys a reader does not use pass
  * through unchecked, so adding metadata never breaks a reader.
@@ -14,45 +15,25 @@
 import { z } from "npm:zod@4.6.7";
 import { QuiverError } from "../errors.ts";
 import type { ResultTable } from "./result_file.ts";
-
-const finiteOrNull = z.number().nullable();
-
-// What every result may carry: where it came from and what went wrong on the way.
-const common = {
-  source: z.string().optional(),
-  warnings: z.array(z.string()).optional(),
-};
-
-const channel = z.looseObject({ name: z.string(), unit: z.string() });
-
-const frfResponse = z.looseObject({
-  name: z.string(),
-  unit: z.string(),
-  form: z.enum(["receptance", "mobility", "accelerance"]).nullable(),
-  frf_unit: z.string(),
-});
-
-const frf = z.looseObject({
-  ...common,
-  analysis: z.enum(["frf", "hammer"]),
-  estimator: z.string(),
-  averages: z.number(),
-  responses: z.array(frfResponse),
-  exponential_window_tau_s: z.number().nullable().optional(),
-  hits_summary: z.string().optional(),
-});
-
-const mode = z.looseObject({
-  channel: z.string(),
-  // null: a candidate flagged noise, listed but not a mode (lib/modal/damping_analysis.ts).
-  mode: z.number().nullable(),
-  frequencyHz: finiteOrNull,
-  dampingRatio: finiteOrNull,
-  qFactor: finiteOrNull,
-  method: z.string(),
-  flags: z.array(z.string()),
-  halfPower: z.looseObject({ dampingRatio: finiteOrNull }).optional(),
-});
+import { COMMON_FIELDS } from "./result_common.ts";
+// Each schema lives beside its analysis; only schemas are imported (no analysis code).
+import { SPECTRUM_METADATA } from "../dsp/spectrum_metadata.ts";
+import { SPECTROGRAM_METADATA } from "../dsp/spectrogram_metadata.ts";
+import { FRF_METADATA } from "../frf/frf_metadata.ts";
+import { HAMMER_METADATA, HAMMER_RECORDS_METADATA } from "../frf/hammer_metadata.ts";
+import {
+  FRF_MATRIX_METADATA,
+  FRF_PARTIAL_METADATA,
+  FRF_PRINCIPAL_METADATA,
+} from "../frf/frf_matrix_metadata.ts";
+import { PATHS_METADATA } from "../paths/paths_metadata.ts";
+import { DAMPING_METADATA } from "../modal/damping_metadata.ts";
+import { BANDS_METADATA } from "../acoustics/bands_metadata.ts";
+import { LEVEL_METADATA } from "../acoustics/level_metadata.ts";
+import { ORDER_MAP_METADATA, ORDERS_METADATA } from "../orders/orders_metadata.ts";
+import { MODAL_METADATA } from "../modal/modal_metadata.ts";
+import { MAC_METADATA } from "../modal/mac_metadata.ts";
+import { COMPARE_METADATA } from "../compare/compare_metadata.ts";
 
 /**
  * The metadata schema of each analysis: what every reader of a quiver result
@@ -69,163 +50,23 @@ const mode = z.looseObject({
  * ```
  */
 export const RESULT_METADATA = {
-  spectrum: z.looseObject({
-    ...common,
-    analysis: z.literal("spectrum"),
-    kind: z.enum(["psd", "power", "rms", "peak"]),
-    df_hz: z.number(),
-    averages: z.number(),
-    window: z.string(),
-  }),
-  spectrogram: z.looseObject({
-    ...common,
-    analysis: z.literal("spectrogram"),
-    against: z.enum(["time", "rpm"]),
-    kind: z.enum(["psd", "power", "rms", "peak"]),
-    db: z.boolean(),
-    order_lines: z.array(z.number()).optional(),
-  }),
-  frf,
-  hammer: frf.extend({
-    analysis: z.literal("hammer"),
-    usable_bandwidth_hz: z.number().nullable().optional(),
-    usable_bandwidth_drop_db: z.number().optional(),
-  }),
-  hammer_records: z.looseObject({
-    analysis: z.literal("hammer_records"),
-    force: channel,
-    response: channel,
-    hits: z.array(z.looseObject({
-      hit: z.number(),
-      status: z.string(),
-      reason: z.string().nullable(),
-    })),
-  }),
-  paths: z.looseObject({
-    ...common,
-    analysis: z.literal("paths"),
-    method: z.enum(["direct", "inverse"]),
-    paths: z.array(z.looseObject({ name: z.string() })),
-    target: channel,
-    level_unit: z.string(),
-    ranking: z.array(z.looseObject({
-      band: z.string(),
-      paths: z.array(z.looseObject({
-        name: z.string(),
-        level_db: finiteOrNull,
-        share_percent: finiteOrNull,
-      })),
-    })),
-  }),
-  frf_matrix: z.looseObject({
-    ...common,
-    analysis: z.literal("frf_matrix"),
-    averages: z.number(),
-    inputs: z.array(channel),
-    outputs: z.array(channel),
-  }),
-  frf_partial: z.looseObject({
-    ...common,
-    analysis: z.literal("frf_partial"),
-    inputs: z.array(channel),
-    outputs: z.array(channel),
-  }),
-  frf_principal: z.looseObject({
-    ...common,
-    analysis: z.literal("frf_principal"),
-    inputs: z.array(channel),
-    outputs: z.array(channel),
-  }),
-  damping: z.looseObject({ ...common, analysis: z.literal("damping"), modes: z.array(mode) }),
-  bands: z.looseObject({
-    ...common,
-    analysis: z.literal("bands"),
-    fraction: z.number(),
-    weighting: z.string(),
-    overall: z.array(
-      z.looseObject({ channel: z.string(), level_db: finiteOrNull, unit: z.string() }),
-    ),
-  }),
-  level: z.looseObject({
-    ...common,
-    analysis: z.literal("level"),
-    weighting: z.string(),
-    time_weighting: z.string(),
-    summary: z.array(z.looseObject({
-      channel: z.string(),
-      unit: z.string(),
-      leq_db: finiteOrNull,
-      lmax_db: finiteOrNull,
-    })),
-  }),
-  orders: z.looseObject({
-    ...common,
-    analysis: z.literal("orders"),
-    amplitude: z.enum(["rms", "peak"]),
-    method: z.enum(["angle", "time"]),
-    weighting: z.string(),
-    db: z.boolean(),
-  }),
-  "order map": z.looseObject({ ...common, analysis: z.literal("order map") }),
-  modal: z.looseObject({
-    ...common,
-    analysis: z.literal("modal"),
-    method: z.string(),
-    dofs: z.array(z.looseObject({ point: z.string(), direction: z.string() })),
-    fit_relative_error: z.array(finiteOrNull),
-    geometry: z.looseObject({
-      points: z.array(
-        z.looseObject({ point: z.string(), x: z.number(), y: z.number(), z: z.number() }),
-      ),
-      lines: z.array(z.tuple([z.string(), z.string()])),
-    }).optional(),
-    modes: z.array(z.looseObject({
-      mode: z.number(),
-      frequencyHz: z.number(),
-      dampingRatio: z.number(),
-      mpc: finiteOrNull,
-      flags: z.array(z.string()),
-    })),
-  }),
-  mac: z.looseObject({
-    ...common,
-    analysis: z.literal("mac"),
-    dofs_used: z.number(),
-    dofs_test_only: z.number(),
-    dofs_simulation_only: z.number(),
-    auto_mac: z.array(z.array(finiteOrNull)),
-    pairs: z.array(z.looseObject({
-      test_mode: z.number(),
-      simulation_mode: z.number(),
-      test_hz: finiteOrNull,
-      simulation_hz: finiteOrNull,
-      shift_percent: finiteOrNull,
-      mac: z.number(),
-      ambiguous: z.boolean().optional(),
-      rival: z.strictObject({
-        side: z.enum(["simulation", "test"]),
-        mode: z.number(),
-        mac: z.number(),
-      }).nullable().optional(),
-    })),
-  }),
-  compare: z.looseObject({
-    ...common,
-    analysis: z.literal("compare"),
-    frac: finiteOrNull,
-    frac_on: z.enum(["complex", "magnitude"]),
-    peaks: z.array(z.looseObject({
-      test_hz: z.number(),
-      simulation_hz: z.number(),
-      shift_percent: z.number(),
-      level_difference_db: finiteOrNull,
-    })),
-    grid: z.looseObject({ from: z.enum(["test", "simulation"]), lines: z.number() }),
-    bands: z.array(z.looseObject({ nominal_hz: z.number(), difference_db: finiteOrNull }))
-      .optional(),
-    test: z.string().optional(),
-    simulation: z.string().optional(),
-  }),
+  spectrum: SPECTRUM_METADATA,
+  spectrogram: SPECTROGRAM_METADATA,
+  frf: FRF_METADATA,
+  hammer: HAMMER_METADATA,
+  hammer_records: HAMMER_RECORDS_METADATA,
+  paths: PATHS_METADATA,
+  frf_matrix: FRF_MATRIX_METADATA,
+  frf_partial: FRF_PARTIAL_METADATA,
+  frf_principal: FRF_PRINCIPAL_METADATA,
+  damping: DAMPING_METADATA,
+  bands: BANDS_METADATA,
+  level: LEVEL_METADATA,
+  orders: ORDERS_METADATA,
+  "order map": ORDER_MAP_METADATA,
+  modal: MODAL_METADATA,
+  mac: MAC_METADATA,
+  compare: COMPARE_METADATA,
 } as const;
 
 /** An analysis whose result metadata has a schema. */
@@ -291,7 +132,7 @@ export function isResultOf(table: ResultTable, analysis: ResultAnalysis): boolea
     RESULT_METADATA[analysis].safeParse(table.metadata).success;
 }
 
-const commonSchema = z.looseObject({ ...common, test: z.string().optional() });
+const commonSchema = z.looseObject({ ...COMMON_FIELDS, test: z.string().optional() });
 
 /**
  * What any result may say about itself: its source file (or a comparison's

@@ -18,12 +18,23 @@ export interface TableColumn<V extends ColumnValues = Float64Array> {
   readonly values: V;
 }
 
-/** A table with the metadata that makes it traceable. */
-export interface Table<V extends ColumnValues = Float64Array> {
+/** Metadata of a table whose analysis has no schema: any JSON-serialisable fields. */
+export type TableMetadata = Readonly<Record<string, unknown>>;
+
+/**
+ * A table with the metadata that makes it traceable. `M` types the
+ * metadata: an analysis's result is a `Table<SpectrumMetadata>` etc., the
+ * type its metadata schema gives (so a producer that renames a key fails
+ * the type check); `V` is what its columns hold.
+ */
+export interface Table<
+  M extends TableMetadata = TableMetadata,
+  V extends ColumnValues = Float64Array,
+> {
   /** The columns, all of one length. */
   readonly columns: readonly TableColumn<V>[];
   /** Anything a reader needs to reproduce the numbers (JSON-serialisable). */
-  readonly metadata: Readonly<Record<string, unknown>>;
+  readonly metadata: Readonly<M>;
 }
 
 /**
@@ -139,7 +150,9 @@ export interface EmptyCells {
  * if (e[0].column !== "level" || e[0].count !== 1) throw new Error();
  * ```
  */
-export function noteEmptyCells<V extends ColumnValues>(table: Table<V>): Table<V> {
+export function noteEmptyCells<M extends TableMetadata, V extends ColumnValues>(
+  table: Table<M, V>,
+): Table<M, V> {
   const notes: EmptyCells[] = [];
   for (const column of table.columns) {
     const values = column.values;
@@ -182,7 +195,7 @@ export function noteEmptyCells<V extends ColumnValues>(table: Table<V>): Table<V
  * if (csv !== "frequency_hz,a [V]\n0,1\n0.5,2\n") throw new Error();
  * ```
  */
-export function formatCsv(table: Table<ColumnValues>): string {
+export function formatCsv(table: Table<TableMetadata, ColumnValues>): string {
   const rows = table.columns[0]?.values.length ?? 0;
   if (table.columns.some((c) => c.values.length !== rows)) {
     throw new RangeError("every column of a table must have the same length");
@@ -212,7 +225,7 @@ export function formatCsv(table: Table<ColumnValues>): string {
  * if (json.columns[0].values[0] !== 1 || json.metadata.rate !== 8) throw new Error();
  * ```
  */
-export function formatJson(table: Table<ColumnValues>): string {
+export function formatJson(table: Table<TableMetadata, ColumnValues>): string {
   return JSON.stringify(
     {
       metadata: table.metadata,

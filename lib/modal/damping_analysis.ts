@@ -10,6 +10,7 @@
 import { QuiverError } from "../errors.ts";
 import { formatNumber } from "../format_number.ts";
 import type { Table } from "../io/table.ts";
+import type { DampingMetadata } from "./damping_metadata.ts";
 import type { FrfForm } from "../frf/forms.ts";
 import type { FrfChannel, FrfData } from "./frf_input.ts";
 import { findPeaks } from "./peaks.ts";
@@ -55,7 +56,7 @@ export interface DampingResult {
   /** Every candidate of every channel (those flagged `noise` with mode null). */
   readonly modes: readonly ModeEstimate[];
   /** The mode table (text columns for optional values, see the command's help). */
-  readonly table: Table<Float64Array | readonly string[]>;
+  readonly table: Table<DampingMetadata, Float64Array | readonly string[]>;
   /** The target check, when a target was given. */
   readonly target?: FrequencyTarget;
   /** Warnings. */
@@ -172,7 +173,7 @@ export function modalDamping(data: FrfData, options: DampingOptions = {}): Dampi
     unit: "",
     values,
   });
-  const table: Table<Float64Array | readonly string[]> = {
+  const table: Table<DampingMetadata, Float64Array | readonly string[]> = {
     columns: [
       column("channel", modes.map((m) => m.channel)),
       column("mode", modes.map((m) => text(m.mode))),

@@ -6,6 +6,7 @@
  */
 import type { Table, TableColumn } from "../io/table.ts";
 import type { ModalFitResult } from "./modal_fit.ts";
+import type { ModalMetadata } from "./modal_metadata.ts";
 
 /** The method as written into the metadata. */
 export const MODAL_METHOD =
@@ -31,12 +32,12 @@ export function modalTables(
   result: ModalFitResult,
   settings: Readonly<Record<string, unknown>>,
 ): {
-  modes: Table<Float64Array | readonly string[]>;
-  shapes: Table<Float64Array | readonly string[]>;
-  stability: Table;
-  synthesis: Table;
+  modes: Table<ModalMetadata, Float64Array | readonly string[]>;
+  shapes: Table<ModalMetadata, Float64Array | readonly string[]>;
+  stability: Table<ModalMetadata>;
+  synthesis: Table<ModalMetadata>;
 } {
-  const metadata = {
+  const metadata: ModalMetadata = {
     analysis: "modal",
     method: MODAL_METHOD,
     shape_normalisation: "largest component real and 1",

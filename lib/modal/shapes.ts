@@ -19,6 +19,7 @@ import { QuiverError } from "../errors.ts";
 import { readResultFile } from "../io/result_file.ts";
 import { type CsvDelimiter, numberOfTextCell, parseTextCsv } from "../io/csv_table.ts";
 import type { Table } from "../io/table.ts";
+import type { MacMetadata } from "./mac_metadata.ts";
 import { bestPairing, type ComplexVector, macMatrix } from "./mac.ts";
 
 /** One mode of a set. */
@@ -372,11 +373,11 @@ export function correlationTables(
   correlation: ShapeCorrelation,
   test: readonly ModeShape[],
   simulation: readonly ModeShape[],
-): { matrix: Table; pairs: Table } {
+): { matrix: Table<MacMetadata>; pairs: Table<MacMetadata> } {
   const rows = test.flatMap((t, i) =>
     simulation.map((s, j) => [t.mode, s.mode, correlation.mac[i][j]])
   );
-  const metadata = {
+  const metadata: MacMetadata = {
     analysis: "mac",
     method:
       "MAC, complex (Allemang & Brown 1982); pairs by the assignment of greatest total MAC (Hungarian method, Kuhn 1955)",

@@ -36,6 +36,7 @@ import { channelIndices } from "../io/recording.ts";
 import { asStream, type RecordingSource } from "../io/recording_stream.ts";
 import { type SampleSeries, withChannelSeries } from "../io/sample_series.ts";
 import type { Table, TableColumn } from "../io/table.ts";
+import type { OrderMapMetadata, OrdersMetadata } from "./orders_metadata.ts";
 import { SpectralAccumulator } from "../dsp/spectral_core.ts";
 import { autoSpectrum } from "../dsp/spectrum_kinds.ts";
 import { levelReference, levelUnit } from "../acoustics/levels.ts";
@@ -99,11 +100,11 @@ export interface OrderOptions extends SpeedSource, RpmStepOptions {
 /** Order cuts, rpm profile, map and warnings. */
 export interface OrderResult {
   /** rpm, then `<channel>_order<k>` per channel and order, then `<channel>_overall`. */
-  readonly cuts: Table;
+  readonly cuts: Table<OrdersMetadata>;
   /** time_s, rpm. */
   readonly rpm: Table;
   /** Tidy map: rpm, order (angle) or frequency_hz (time), then one RMS-per-line column per channel. */
-  readonly map: Table;
+  readonly map: Table<OrderMapMetadata>;
   /** Warnings. */
   readonly warnings: readonly string[];
 }
@@ -388,7 +389,7 @@ function ordersOfSeries(
       ),
     })),
   ];
-  const metadata = {
+  const metadata: OrdersMetadata = {
     analysis: "orders",
     method,
     amplitude,

@@ -26,7 +26,9 @@ import {
   MAX_SPECTROGRAM_CELLS,
   rangeMetadata,
   type SpectrogramOptions,
+  spectrogramSegmenting,
 } from "../dsp/spectrogram.ts";
+import type { SpectrogramMetadata } from "../dsp/spectrogram_metadata.ts";
 import {
   motionOfSeries,
   type RpmStepOptions,
@@ -75,7 +77,7 @@ export interface RpmSpectrogramOptions extends SpectrogramOptions, SpeedSource, 
 export async function spectrogramAgainstRpm(
   source: RecordingSource,
   options: RpmSpectrogramOptions,
-): Promise<Table> {
+): Promise<Table<SpectrogramMetadata>> {
   const stream = asStream(source);
   const speedName = speedChannelName(options);
   // Default: every channel but the speed's.
@@ -193,12 +195,7 @@ export async function spectrogramAgainstRpm(
       analysis: "spectrogram",
       against: "rpm",
       layout: "tidy: one row per (rpm step, line)",
-      rate_hz: rate,
-      block,
-      df_hz: df,
-      overlap_samples: overlapSamples,
-      window: options.window ?? "hann",
-      detrend: options.detrend ?? "mean",
+      ...spectrogramSegmenting(rate, block, overlapSamples, options),
       kind: options.kind ?? "psd",
       segments_per_frame: perFrame,
       frames: frames.length,

@@ -33,6 +33,8 @@ import { channelIndices } from "../io/recording.ts";
 import { asStream, type RecordingSource } from "../io/recording_stream.ts";
 import { spectralEstimateOf } from "../dsp/spectral_pipeline.ts";
 import type { Table, TableColumn } from "../io/table.ts";
+import { segmentMetadata } from "../dsp/segment_metadata.ts";
+import type { PathsMetadata } from "./paths_metadata.ts";
 import { scaleFactor, type Scaling, type SpectralEstimate } from "../dsp/spectral_core.ts";
 import type { DetrendMode } from "../dsp/detrend.ts";
 import type { WindowName } from "../dsp/windows.ts";
@@ -145,7 +147,7 @@ export interface PathResult {
   /** Typed result. */
   readonly contributions: PathContributions;
   /** Per-line table. */
-  readonly table: Table;
+  readonly table: Table<PathsMetadata>;
   /** Per-band levels of each path, the sum and the target. */
   readonly bandTable: Table;
   /** Warnings, also in the metadata. */
@@ -540,7 +542,7 @@ function tablesOf(
         .sort((a, b) => b.level_db - a.level_db),
     };
   });
-  const metadata = {
+  const metadata: PathsMetadata = {
     analysis: "paths",
     method,
     paths: paths.map((name) => ({ name })),
@@ -553,11 +555,8 @@ function tablesOf(
     weighting,
     level_unit: levelName,
     ranking,
-    rate_hz: estimate.rate,
-    block: estimate.block,
-    df_hz: df,
-    averages: estimate.averages,
-    window: estimate.window,
+    // df: the transfers' own line spacing (checked against the block's above).
+    ...segmentMetadata({ ...estimate, df }, ["rate_hz", "block", "df_hz", "averages", "window"]),
     method_source: method === "inverse"
       ? "matrix-inverse TPA: forces from indicators by a regularised pseudo-inverse (e.g. van der Seijs, de Klerk & Rixen, MSSP 68-69, 2016)"
       : "direct forces; contributions Hᵢ·E[Fᵢ·p*]/√Gpp with the target as phase reference",

@@ -121,7 +121,9 @@ describe("level's default frequency weighting follows each channel's unit", () =
     expect(summary.map((s) => s.unit)).toEqual(["dB(A) re 20 µPa", "dB re 1 µm/s^2"]);
     expect(table.metadata.weighting).toBe("per channel");
     expect(table.metadata.weighting_from).toBe("channel unit (A for Pa, Z otherwise)");
-    const perChannel = (table.metadata.summary as { weighting: string }[]).map((s) => s.weighting);
+    const perChannel = (table.metadata.summary as readonly { weighting?: string }[]).map((s) =>
+      s.weighting
+    );
     expect(perChannel).toEqual(["A", "Z"]);
   });
 

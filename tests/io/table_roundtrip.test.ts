@@ -10,6 +10,7 @@ import {
   formatJson,
   noteEmptyCells,
   type Table,
+  type TableMetadata,
 } from "../../lib/io/table.ts";
 import { writeCsvPair } from "../../lib/io/table_file.ts";
 
@@ -20,7 +21,7 @@ const FORMULA_LIKE = ["+z", "-x", "=a", "@b", '=HYPERLINK("x")', "'+z", "''-x", 
 describe("tables quiver writes read back through quiver to the same text and values", () => {
   test("formula-like text cells are guarded in the CSV and restored when read", () => {
     const values = new Float64Array(10).map((_, i) => 1.5 - 1.5 * i);
-    const table: Table<ColumnValues> = {
+    const table: Table<TableMetadata, ColumnValues> = {
       metadata: {},
       columns: [
         { name: "direction", unit: "", values: [...FORMULA_LIKE, "z", "don't"] },

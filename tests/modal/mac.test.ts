@@ -145,7 +145,7 @@ describe("ambiguous pairs (rule ours: a rival of MAC ≥ 0.5 within 0.05 of the 
     const column = (name: string) => pairs.columns.find((x) => x.name === name)!.values;
     expect(Array.from(column("ambiguous") as Float64Array)).toEqual([1, 0]);
     expect((column("rival_simulation_mode") as Float64Array)[0]).toBe(2);
-    expect((pairs.metadata.pairs as { ambiguous: boolean }[]).map((p) => p.ambiguous))
+    expect(pairs.metadata.pairs.map((p) => p.ambiguous))
       .toEqual([true, false]);
   });
 
