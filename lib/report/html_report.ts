@@ -19,18 +19,11 @@ import type { Manifest } from "../plan/runner.ts";
 import type { Plan } from "../plan/schema.ts";
 import type { TargetOutcome } from "../plan/target_eval.ts";
 import { limitAt } from "../compare/targets.ts";
-import {
-  type BarPlot,
-  barPlot,
-  type ChartSpec,
-  chartSpec,
-  escapeXml,
-  type HeatMap,
-  heatMap,
-  type LinePlot,
-  linePlot,
-  type Series,
-} from "./svg_plot.ts";
+import { escapeXml } from "./escape_xml.ts";
+import { type BarPlot, barPlot } from "./plot/bar_plot.ts";
+import { type ChartSpec, chartSpec } from "./plot/chart_spec.ts";
+import { type HeatMap, heatMap } from "./plot/heat_map.ts";
+import { type LinePlot, linePlot, type Series } from "./plot/line_plot.ts";
 import { recordingsSection, VIEWS_STYLE } from "./time_history.ts";
 import { shapeFigure } from "./shape_view.ts";
 import { readFileSync } from "node:fs";

@@ -17,7 +17,8 @@ import { ChannelStatistics } from "../io/signal_checks.ts";
 import type { Plan } from "../plan/schema.ts";
 // @ts-types="npm:@types/d3-scale@4.0.9"
 import { scaleLinear } from "npm:d3-scale@4.0.3";
-import { escapeXml, PALETTE } from "./svg_plot.ts";
+import { escapeXml } from "./escape_xml.ts";
+import { PALETTE } from "./plot/frame.ts";
 
 /** Columns of an envelope unless asked for fewer: about one per pixel of a wide plot. */
 export const ENVELOPE_COLUMNS = 2000;
