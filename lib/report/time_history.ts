@@ -179,7 +179,7 @@ export function planSlices(plan: Plan, recording: string): SliceMark[] {
 }
 
 /** Pixel size of a time-history picture: width, and height per channel. */
-// 640 px wide, shown at most 960 px wide (VIEWS_STYLE): its 11 px text stays 11 px or more from
+// 640 px wide, shown at most 960 px wide (style.ts VIEWS_STYLE): its 11 px text stays 11 px or more from
 // a 700 px window (a 666 px figure) up.
 const WIDTH = 640, PANEL = 72, TOP = 34, GAP = 10, BOTTOM = 40, LEFT = 78, RIGHT = 18;
 
