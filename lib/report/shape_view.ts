@@ -9,7 +9,8 @@
  * @module
  */
 import { formatFixed } from "../format_number.ts";
-import { escapeXml, PALETTE } from "./svg_plot.ts";
+import { escapeXml } from "./escape_xml.ts";
+import { PALETTE } from "./plot/frame.ts";
 import { scriptJson } from "./time_history.ts";
 
 /** A point of a shape: position, and the complex shape in x, y, z. */

@@ -9,15 +9,15 @@
  *
  * @module
  */
-import { isAbsolute, join } from "node:path";
 import { QuiverError } from "../errors.ts";
 import { formatNumber } from "../format_number.ts";
-import { openRecordingStream, type RecordingStream } from "../io/recording_stream.ts";
+import type { RecordingStream } from "../io/recording_stream.ts";
 import { ChannelStatistics } from "../io/signal_checks.ts";
 import type { Plan } from "../plan/schema.ts";
 // @ts-types="npm:@types/d3-scale@4.0.9"
 import { scaleLinear } from "npm:d3-scale@4.0.3";
-import { escapeXml, PALETTE } from "./svg_plot.ts";
+import { escapeXml } from "./escape_xml.ts";
+import { PALETTE } from "./plot/frame.ts";
 
 /** Columns of an envelope unless asked for fewer: about one per pixel of a wide plot. */
 export const ENVELOPE_COLUMNS = 2000;
@@ -179,7 +179,7 @@ export function planSlices(plan: Plan, recording: string): SliceMark[] {
 }
 
 /** Pixel size of a time-history picture: width, and height per channel. */
-// 640 px wide, shown at most 960 px wide (VIEWS_STYLE): its 11 px text stays 11 px or more from
+// 640 px wide, shown at most 960 px wide (style.ts VIEWS_STYLE): its 11 px text stays 11 px or more from
 // a 700 px window (a 666 px figure) up.
 const WIDTH = 640, PANEL = 72, TOP = 34, GAP = 10, BOTTOM = 40, LEFT = 78, RIGHT = 18;
 
@@ -341,24 +341,6 @@ ${parts.join("\n")}
   return { svg, spec };
 }
 
-/** A figure of the report: static SVG, and the markup that carries its interactive data. */
-export interface ViewFigure {
-  readonly name: string;
-  readonly svg: string;
-  /** The figure's inner HTML (static picture and data), in place of the plain SVG. */
-  readonly html: string;
-  /** One of a set of small pictures, laid out side by side. */
-  readonly small?: boolean;
-}
-
-/** A section of the report. */
-export interface ViewSection {
-  readonly heading: string;
-  readonly note?: string;
-  readonly figures: ViewFigure[];
-  readonly html?: string;
-}
-
 /**
  * JSON inside a script element: "<" escaped so that no "</script" can end it early.
  *
@@ -374,78 +356,3 @@ export function scriptJson(value: unknown, className: string): string {
     JSON.stringify(value).replace(/</g, "\\u003c")
   }</script>`;
 }
-
-/**
- * The report's "Recordings" section: the time history of every recording
- * the plan names, each read once more through the one reading path (with
- * its set-up and rate). A recording that cannot be read is named with the
- * reason instead of a picture.
- */
-export async function recordingsSection(plan: Plan, planPath: string): Promise<ViewSection> {
-  const base = planPath.replace(/[^/]*$/, "");
-  const at = (p: string) => (isAbsolute(p) ? p : join(base, p));
-  const figures: ViewFigure[] = [];
-  const problems: string[] = [];
-  for (const [name, rec] of Object.entries(plan.recordings)) {
-    // A CSV's layout options, as the analyses of the recording give them (their command-line
-    // spelling, as cli/recording_options.ts maps it).
-    const delimiters = { comma: ",", semicolon: ";", tab: "\t" } as const;
-    const decimals = { point: ".", comma: "," } as const;
-    let delimiter: "," | ";" | "\t" | undefined, decimal: "." | "," | undefined;
-    for (const a of plan.analyses) {
-      if (a.recording !== name) continue;
-      const o = (a.options ?? {}) as Record<string, unknown>;
-      if (o.delimiter === "comma" || o.delimiter === "semicolon" || o.delimiter === "tab") {
-        delimiter ??= delimiters[o.delimiter];
-      }
-      if (o.decimal === "point" || o.decimal === "comma") decimal ??= decimals[o.decimal];
-    }
-    try {
-      const stream = await openRecordingStream(at(rec.file), {
-        setup: rec.setup === undefined ? undefined : at(rec.setup),
-        rate: rec.rate,
-        delimiter,
-        decimal,
-      });
-      const envelope = await timeEnvelope(stream);
-      const clipped = envelope.channels.filter((c) => c.clipped.length > 0).map((c) => c.name);
-      const title = `${name}: ${
-        rec.file.split("/").pop()
-      }, ${envelope.channels.length} channel(s), ${
-        formatNumber(envelope.length / envelope.rate, 4)
-      } s at ${formatNumber(envelope.rate, 6)} Hz; min and max per column${
-        clipped.length > 0 ? `; clipping marked on ${clipped.join(", ")}` : ""
-      }`;
-      const { svg, spec } = historyView(title, envelope, planSlices(plan, name));
-      figures.push({
-        name: `history_${name}`,
-        svg,
-        html: `<div class="static history-static">${svg}</div>${scriptJson(spec, "history-data")}`,
-      });
-    } catch (error) {
-      if (!(error instanceof QuiverError)) throw error;
-      problems.push(`${name}: ${error.message}`);
-    }
-  }
-  return {
-    heading: "Recordings",
-    note:
-      `The raw time history of each recording the plan reads, as the smallest and largest sample in each of at most ${ENVELOPE_COLUMNS} columns; dashed lines mark the plan's time slices, red ticks where the signal checks found clipping.${
-        problems.length > 0 ? ` Not shown: ${problems.join("; ")}` : ""
-      }`,
-    figures,
-  };
-}
-
-/**
- * The CSS of the report's own views: a live time history hides its static
- * picture on screen (print shows it), and a mode shape keeps its size.
- */
-export const VIEWS_STYLE = `
-figure.view-live > .static { display: none; }
-.history-title { font-size: 13px; font-weight: 600; margin: 2px 0 0 4px; }
-.history .u-title { font-size: 12px; text-align: right; padding-right: 18px; height: 18px; line-height: 18px; }
-.shape-view svg { max-height: 600px; }
-.history-static svg { max-width: 960px; }
-@media print { figure.view-live > .static { display: block; } }
-`;

@@ -1,6 +1,6 @@
 import { describe, expect, test } from "vitest";
 import { parseGeometry } from "../../lib/modal/geometry.ts";
-import { wireframe } from "../../lib/report/svg_plot.ts";
+import { wireframe } from "../../lib/report/plot/wireframe.ts";
 
 describe("test geometry for shape drawings", () => {
   test("points, lines, and the faults named with their line", () => {

@@ -1,6 +1,6 @@
 import { inflateSync } from "node:zlib";
 import { describe, expect, test } from "vitest";
-import { heatMap, mapColour } from "../../lib/report/svg_plot.ts";
+import { heatMap, mapColour } from "../../lib/report/plot/heat_map.ts";
 import { crc32 } from "../../lib/report/png.ts";
 
 /** CIE 1976 L* of an sRGB colour "rgb(r,g,b)": sRGB transfer (IEC 61966-2-1), Y from the

@@ -1,5 +1,8 @@
 import { describe, expect, test } from "vitest";
-import { barPlot, chartSpec, heatMap, linePlot } from "../../lib/report/svg_plot.ts";
+import { barPlot } from "../../lib/report/plot/bar_plot.ts";
+import { chartSpec } from "../../lib/report/plot/chart_spec.ts";
+import { heatMap } from "../../lib/report/plot/heat_map.ts";
+import { linePlot } from "../../lib/report/plot/line_plot.ts";
 
 /** The frame of a plot: the first rect with a slate outline after the background. */
 function frameBox(svg: string): { x: number; y: number; right: number; bottom: number } {

@@ -1,5 +1,5 @@
 import { describe, expect, test } from "vitest";
-import { linePlot } from "../../lib/report/svg_plot.ts";
+import { linePlot } from "../../lib/report/plot/line_plot.ts";
 
 const yLabels = (svg: string) =>
   [...svg.matchAll(
