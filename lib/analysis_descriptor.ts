@@ -11,7 +11,8 @@
 import type { z } from "npm:zod@4.6.7";
 import { z as zod } from "npm:zod@4.6.7";
 import type { ParseArgsOptionsConfig } from "node:util";
-import { option, type OptionEntry } from "../cli/option_table.ts";
+// Types only: lib/ loads cli/ modules only through a descriptor's `load`.
+import type { OptionEntry } from "../cli/option_table.ts";
 import type { QuantityReader } from "./quantity_reading.ts";
 
 /** What every command module exports. */
@@ -57,7 +58,8 @@ export function sideOutput(
   writes: "json" | "csv",
   entry: { help: string; onlyWith?: (options: StepOptions) => boolean },
 ): OptionEntry<z.ZodString> & { readonly required: false } & SideOutput {
-  return { ...option(zod.string().min(1), { value: "FILE", help: entry.help }), ...entry, writes };
+  // The entry cli/option_table.ts's `option` makes of a required-less FILE option.
+  return { schema: zod.string().min(1), value: "FILE", required: false, ...entry, writes };
 }
 
 /** Earlier plan steps' results that a step reads. */
