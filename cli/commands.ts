@@ -1,7 +1,8 @@
 /**
  * The one list of quiver's commands, in the order of `quiver --help` and
- * README's command table. The command line, the plan runner's table and its
- * workers all take their commands from here.
+ * README's command table: every analysis of lib/analyses.ts and the tool
+ * commands below. The command line, the plan runner's table and its workers
+ * all take their commands from here.
  *
  * Each command's module is loaded when it is asked for, so that
  * `quiver spectrum` does not compile the plan runner, the report or the modal
@@ -9,49 +10,57 @@
  *
  * @module
  */
-import type { z } from "npm:zod@4.6.7";
-import type { ParseArgsOptionsConfig } from "node:util";
+import { ANALYSES } from "../lib/analyses.ts";
+import type { CommandModule } from "../lib/analysis_descriptor.ts";
+export type { CommandModule } from "../lib/analysis_descriptor.ts";
 
-/** What every command module exports. */
-export interface CommandModule {
-  /** One-line summary for the command list. */
-  readonly summary: string;
-  /** The command's help text. */
-  readonly help: string;
-  /** parseArgs spec of the options. */
-  readonly options: ParseArgsOptionsConfig;
-  /** zod schema of the options. */
-  readonly schema: z.ZodType;
-  /** Runs the command. */
-  run(argv: readonly string[]): Promise<void>;
-}
-
-/** The commands, by name: each a loader of its module. */
-export const COMMANDS = {
+/** The commands that are no analysis: a file's contents, calibration, campaigns. */
+const TOOLS: Readonly<Record<string, () => Promise<CommandModule>>> = {
   info: () => import("./info.ts"),
-  spectrum: () => import("./spectrum.ts"),
-  spectrogram: () => import("./spectrogram.ts"),
-  frf: () => import("./frf.ts"),
-  hammer: () => import("./hammer.ts"),
-  damping: () => import("./damping.ts"),
-  modal: () => import("./modal.ts"),
-  mac: () => import("./mac.ts"),
-  bands: () => import("./bands.ts"),
-  level: () => import("./level.ts"),
   calibrate: () => import("./calibrate.ts"),
-  orders: () => import("./orders.ts"),
-  paths: () => import("./paths.ts"),
-  compare: () => import("./compare.ts"),
   run: () => import("./run.ts"),
   merge: () => import("./merge.ts"),
   report: () => import("./report.ts"),
-} as const satisfies Record<string, () => Promise<CommandModule>>;
+};
+
+/**
+ * The order of `quiver --help` and README's command table. An analysis not
+ * named here is listed after those that are.
+ */
+const HELP_ORDER = [
+  "info",
+  "spectrum",
+  "spectrogram",
+  "frf",
+  "hammer",
+  "damping",
+  "modal",
+  "mac",
+  "bands",
+  "level",
+  "calibrate",
+  "orders",
+  "paths",
+  "compare",
+  "run",
+  "merge",
+  "report",
+];
+
+/** The commands, by name: each a loader of its module. */
+export const COMMANDS: Readonly<Record<string, () => Promise<CommandModule>>> = (() => {
+  const all = new Map<string, () => Promise<CommandModule>>(Object.entries(TOOLS));
+  for (const d of ANALYSES.descriptors) all.set(d.name, d.load);
+  const named = HELP_ORDER.filter((name) => all.has(name));
+  const rest = [...all.keys()].filter((name) => !HELP_ORDER.includes(name));
+  return Object.fromEntries([...named, ...rest].map((name) => [name, all.get(name)!]));
+})();
 
 /** A command's name. */
-export type CommandName = keyof typeof COMMANDS;
+export type CommandName = string;
 
 /** The command names, in the order of `quiver --help` and README's command table. */
-export const COMMAND_NAMES = Object.keys(COMMANDS) as CommandName[];
+export const COMMAND_NAMES: readonly CommandName[] = Object.keys(COMMANDS);
 
 /** Whether `name` is a command. */
 export function isCommandName(name: string): name is CommandName {

@@ -3,6 +3,7 @@
  *
  * @module
  */
+import { COMPARE_OUTPUTS } from "../lib/compare/compare_descriptor.ts";
 import { toStderr } from "./terminal.ts";
 import { formatFixed, formatNumber } from "../lib/format_number.ts";
 import { z } from "npm:zod@4.6.7";
@@ -63,11 +64,7 @@ const ANALYSIS = {
 
 const OUTPUTS = {
   ...OUTPUT_TABLE,
-  "summary-out": option(z.string().min(1), {
-    value: "FILE",
-    help:
-      "JSON summary: frac, peaks (test_hz, simulation_hz,\nshift_percent, level_difference_db, coarse, note),\ntest_only_peaks, simulation_only_peaks, bands, grid, quantity",
-  }),
+  ...COMPARE_OUTPUTS,
 };
 
 const TABLE = { ...CURVES, ...ANALYSIS, ...OUTPUTS };

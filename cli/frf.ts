@@ -3,6 +3,7 @@
  *
  * @module
  */
+import { FRF_OUTPUTS } from "../lib/frf/frf_descriptor.ts";
 import { toStderr } from "./terminal.ts";
 import { formatNumber } from "../lib/format_number.ts";
 import { z } from "npm:zod@4.6.7";
@@ -59,17 +60,8 @@ const ANALYSIS = {
   }),
 };
 
-const SEVERAL = {
-  "partial-out": option(z.string().min(1), {
-    value: "FILE",
-    help: "with --inputs: partial coherences and conditioned spectra",
-  }),
-  "principal-out": option(z.string().min(1), {
-    value: "FILE",
-    help:
-      "with --inputs: principal components of the inputs (eigenvalues\nof Gxx) and virtual coherences",
-  }),
-};
+// Written with several inputs only: declared with the analysis (lib/frf/frf_descriptor.ts).
+const SEVERAL = FRF_OUTPUTS;
 
 const TABLE = { ...CHANNELS, ...ANALYSIS, ...RECORDING_TABLE, ...OUTPUT_TABLE, ...SEVERAL };
 

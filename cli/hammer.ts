@@ -3,6 +3,7 @@
  *
  * @module
  */
+import { HAMMER_OUTPUTS } from "../lib/frf/hammer_descriptor.ts";
 import { toStderr } from "./terminal.ts";
 import { z } from "npm:zod@4.6.7";
 import { FRF_FORMS } from "../lib/frf/forms.ts";
@@ -94,15 +95,7 @@ const WINDOWS = {
 
 const OUTPUTS = {
   ...OUTPUT_TABLE,
-  "hits-out": option(z.string().min(1), {
-    value: "FILE",
-    help: "hit log CSV: hit, time_s, peak, status",
-  }),
-  "records-out": option(z.string().min(1), {
-    value: "FILE",
-    help:
-      "every hit's force and first response against time (CSV or\nJSON), for checking each hit by eye",
-  }),
+  ...HAMMER_OUTPUTS,
 };
 
 const TABLE = { ...CHANNELS, ...HITS, ...WINDOWS, ...RECORDING_TABLE, ...OUTPUTS };

@@ -3,6 +3,7 @@
  *
  * @module
  */
+import { MAC_OUTPUTS } from "../lib/modal/mac_descriptor.ts";
 import { resolve } from "node:path";
 import { readFile } from "node:fs/promises";
 import { z } from "npm:zod@4.6.7";
@@ -34,11 +35,7 @@ const INPUTS = {
 
 const OUTPUTS = {
   ...OUTPUT_TABLE,
-  "pairs-out": option(z.string().min(1), {
-    value: "FILE",
-    help:
-      "pairs CSV: test_mode, simulation_mode, test_hz, simulation_hz,\nshift_percent, mac, ambiguous, rival_simulation_mode,\nrival_test_mode, rival_mac (one row per paired test mode)",
-  }),
+  ...MAC_OUTPUTS,
 };
 
 const TABLE = { ...INPUTS, ...OUTPUTS };

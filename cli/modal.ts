@@ -3,6 +3,7 @@
  *
  * @module
  */
+import { MODAL_OUTPUTS } from "../lib/modal/modal_descriptor.ts";
 import { basename, extname } from "node:path";
 import { z } from "npm:zod@4.6.7";
 import { QuiverError } from "../lib/errors.ts";
@@ -69,19 +70,7 @@ const INPUTS = {
 
 const OUTPUTS = {
   ...OUTPUT_TABLE,
-  "shapes-out": option(z.string().min(1), {
-    value: "FILE",
-    help: "shapes, tidy: mode, point, direction, re, im, frequency_hz",
-  }),
-  "stability-out": option(z.string().min(1), {
-    value: "FILE",
-    help:
-      "poles per order: order, frequency_hz, damping_ratio,\nstable_frequency, stable_damping, stable_shape, mode",
-  }),
-  "synth-out": option(z.string().min(1), {
-    value: "FILE",
-    help: "measured and synthesised FRFs (as receptance) per point",
-  }),
+  ...MODAL_OUTPUTS,
 };
 
 const TABLE = { ...ANALYSIS, ...INPUTS, ...OUTPUTS };

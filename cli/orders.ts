@@ -3,6 +3,7 @@
  *
  * @module
  */
+import { ORDERS_OUTPUTS } from "../lib/orders/orders_descriptor.ts";
 import { toStderr } from "./terminal.ts";
 import { z } from "npm:zod@4.6.7";
 import { WEIGHTINGS } from "../lib/acoustics/weighting.ts";
@@ -83,12 +84,7 @@ const ANALYSIS = {
 
 const OUTPUTS = {
   ...OUTPUT_TABLE,
-  "rpm-out": option(z.string().min(1), { value: "FILE", help: "rpm profile: time_s, rpm" }),
-  "map-out": option(z.string().min(1), {
-    value: "FILE",
-    help:
-      "map, tidy: one row per (rpm, order) for angle or (rpm,\nfrequency_hz) for time, then one column per channel: RMS\n(or peak) per line, scaled as spectrum --kind rms (or peak)",
-  }),
+  ...ORDERS_OUTPUTS,
 };
 
 const TABLE = { ...SPEED_TABLE, ...ANALYSIS, ...RECORDING_TABLE, ...OUTPUTS };

@@ -3,6 +3,7 @@
  *
  * @module
  */
+import { PATHS_OUTPUTS } from "../lib/paths/paths_descriptor.ts";
 import { z } from "npm:zod@4.6.7";
 import { formatFixed } from "../lib/format_number.ts";
 import type { FrfData } from "../lib/frf/frf_data.ts";
@@ -84,10 +85,7 @@ const ANALYSIS = {
     help: "weighting of band levels and rankings",
     default: "A for a target in Pa, else Z",
   }),
-  "bands-out": option(z.string().min(1), {
-    value: "FILE",
-    help: "per-band levels of every path, their sum and the target",
-  }),
+  ...PATHS_OUTPUTS,
   "band-width": option(z.enum(["octave", "third"]), {
     value: "B",
     help: "octave | third (third-octave) bands",

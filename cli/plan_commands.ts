@@ -1,26 +1,29 @@
 /**
  * The commands a plan can run, as the plan runner sees them: a dry check of
  * the arguments (each command's own option schema) and the run itself. The
- * names are the plan schema's (lib/plan/schema.ts) plus `compare` for
- * comparisons; the modules come from the one command list (commands.ts), so
- * a plan command without a command fails to compile.
+ * names are those of the analyses a plan can run as steps or comparisons
+ * (lib/analyses.ts); each module is loaded through its descriptor.
  *
  * @module
  */
 import { parseArgs } from "node:util";
 import type { z } from "npm:zod@4.6.7";
-import type { PlanCommand, PlanOptionProblem } from "../lib/plan/runner.ts";
-import { PLAN_COMMANDS } from "../lib/plan/schema.ts";
+import type { PlanCommand, PlanOptionProblem } from "../lib/plan/step_options.ts";
+import { ANALYSES, type AnalysisTable } from "../lib/analyses.ts";
 import { COMMON_OPTIONS, type OptionSpec, parseCommandArgs } from "./args.ts";
 import { nearestName } from "../lib/nearest_name.ts";
-import { loadCommands } from "./commands.ts";
 
-/** The plan runner's command table, with the modules of the plan's commands loaded. */
-export async function planCommandTable(): Promise<Readonly<Record<string, PlanCommand>>> {
-  const names = [...PLAN_COMMANDS, "compare"] as const;
-  const modules = await loadCommands(names);
-  return Object.fromEntries(names.map((name) => {
-    const command = modules[name];
+/**
+ * The plan runner's command table, with the modules of the commands of the
+ * analyses of `table` (quiver's by default) that a plan can run loaded.
+ */
+export async function planCommandTable(
+  table: AnalysisTable = ANALYSES,
+): Promise<Readonly<Record<string, PlanCommand>>> {
+  const runnable = table.descriptors.filter((d) => d.plan !== undefined);
+  const modules = await Promise.all(runnable.map((d) => d.load()));
+  return Object.fromEntries(runnable.map(({ name }, i) => {
+    const command = modules[i];
     return [name, {
       validate: (argv: readonly string[]) =>
         void parseCommandArgs(argv, command.options, command.schema),

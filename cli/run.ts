@@ -14,7 +14,6 @@ import { slurmScript } from "../lib/plan/slurm.ts";
 import { fileURLToPath } from "node:url";
 import { resolve } from "node:path";
 import { integerOption, parseCommandArgs, usageError } from "./args.ts";
-import { nearestName } from "../lib/nearest_name.ts";
 import { option, shapeOf, specOf } from "./option_table.ts";
 import { TARGETS_NOT_MET_EXIT } from "./exit_codes.ts";
 import { withStderrLabel } from "./terminal.ts";
@@ -111,7 +110,7 @@ export async function run(argv: readonly string[]): Promise<void> {
   if (values["slurm-script"] !== undefined) {
     // The script is run later, on another machine: a plan that cannot be read or is not valid
     // is refused now rather than found by every shard.
-    await loadPlan(planFile, nearestName);
+    await loadPlan(planFile);
     process.stdout.write(slurmScript({
       shards: values["slurm-script"],
       plan: resolve(planFile),
@@ -139,7 +138,6 @@ export async function run(argv: readonly string[]): Promise<void> {
       commands,
       report: writeReport,
       jobs,
-      nearest: nearestName,
       requireTargets: values["require-targets"] === true,
       ...(shard !== undefined ? { shard } : {}),
       // Every line a step writes carries its id, so parallel steps' logs stay apart.

@@ -70,3 +70,19 @@ function editDistance(a: string, b: string): number {
   }
   return previous[b.length];
 }
+
+/**
+ * `; did you mean "X"?` for the {@linkcode nearestName} of `name`, or `""`:
+ * the form of the plan's messages, where the suggestion follows a clause.
+ *
+ * @example
+ * ```ts
+ * import { didYouMeanClause } from "./nearest_name.ts";
+ * if (didYouMeanClause("spectrun", ["spectrum", "frf"]) !== '; did you mean "spectrum"?') throw new Error();
+ * if (didYouMeanClause("zzz", ["spectrum"]) !== "") throw new Error();
+ * ```
+ */
+export function didYouMeanClause(name: string, known: readonly string[]): string {
+  const near = nearestName(name, known);
+  return near === undefined ? "" : `; did you mean "${near}"?`;
+}

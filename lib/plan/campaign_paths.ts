@@ -17,6 +17,7 @@
 import { lstatSync } from "node:fs";
 import { isAbsolute, join, relative, resolve, sep } from "node:path";
 import { realPathOf } from "../io/output_paths.ts";
+import type { AnalysisDescriptor, StepOptions } from "../analysis_descriptor.ts";
 
 /** The run's manifest, inside the output folder. */
 export const MANIFEST_FILE = "manifest.json";
@@ -24,44 +25,54 @@ export const MANIFEST_FILE = "manifest.json";
 export const FIGURES_FOLDER = "figures";
 
 /**
- * The side outputs each command writes, by option key; every step also
- * writes `out`. Commands not listed write `out` only.
- */
-const SIDE_OUTPUTS: Readonly<Record<string, readonly string[]>> = {
-  hammer: ["hits-out", "records-out"],
-  modal: ["shapes-out", "stability-out", "synth-out"],
-  mac: ["pairs-out"],
-  paths: ["bands-out"],
-  orders: ["rpm-out", "map-out"],
-  compare: ["summary-out"],
-};
-
-/** Outputs written as CSV (no sidecar: the hit log is a plain table); all others are JSON. */
-const CSV_OUTPUTS = new Set(["hits-out"]);
-
-/**
- * The output keys of a step of `command`: `out` and its side outputs. `frf`
- * with two or more inputs adds `partial-out` and `principal-out`.
+ * The output keys of a step of the analysis `descriptor` with `options`:
+ * `out`, then its side outputs (the `*-out` options of its option table, as
+ * its descriptor declares them), each only when its options call for it
+ * (`frf`'s multiple-input outputs need two or more inputs).
  *
  * @example
  * ```ts
  * import { outputKeys } from "./campaign_paths.ts";
- * if (outputKeys("orders", false).join() !== "out,rpm-out,map-out") throw new Error();
- * if (outputKeys("frf", true).length !== 3) throw new Error();
+ * import { ordersDescriptor } from "../orders/orders_descriptor.ts";
+ * import { frfDescriptor } from "../frf/frf_descriptor.ts";
+ * if (outputKeys(ordersDescriptor, {}).join() !== "out,rpm-out,map-out") throw new Error();
+ * if (outputKeys(frfDescriptor, { inputs: ["a", "b"] }).length !== 3) throw new Error();
+ * if (outputKeys(frfDescriptor, { inputs: "a" }).length !== 1) throw new Error();
  * ```
  */
-export function outputKeys(command: string, severalInputs: boolean): string[] {
-  const side = Object.hasOwn(SIDE_OUTPUTS, command) ? SIDE_OUTPUTS[command] : [];
-  return [
-    "out",
-    ...side,
-    ...(command === "frf" && severalInputs ? ["partial-out", "principal-out"] : []),
-  ];
+export function outputKeys(
+  descriptor: AnalysisDescriptor | undefined,
+  options: StepOptions,
+): string[] {
+  const side = Object.entries(descriptor?.outputs ?? {}).filter(([, output]) =>
+    output.onlyWith === undefined || output.onlyWith(options)
+  );
+  return ["out", ...side.map(([key]) => key)];
+}
+
+/**
+ * What output `key` of the analysis `descriptor` writes: CSV (the hit log,
+ * a plain table without a sidecar) or JSON (all others, `out` too).
+ *
+ * @example
+ * ```ts
+ * import { outputWrites } from "./campaign_paths.ts";
+ * import { hammerDescriptor } from "../frf/hammer_descriptor.ts";
+ * if (outputWrites(hammerDescriptor, "hits-out") !== "csv" || outputWrites(hammerDescriptor, "out") !== "json") throw new Error();
+ * ```
+ */
+export function outputWrites(
+  descriptor: AnalysisDescriptor | undefined,
+  key: string,
+): "json" | "csv" {
+  const outputs = descriptor?.outputs ?? {};
+  return Object.hasOwn(outputs, key) ? outputs[key].writes : "json";
 }
 
 /**
  * The file name (inside the output folder) of output `key` of step `id`:
- * `out` → `<id>.json`, `<part>-out` → `<id>_<part>.json` (`hits-out` is CSV).
+ * `out` → `<id>.json`, `<part>-out` → `<id>_<part>.json`, or `.csv` for an
+ * output that `writes` CSV.
  *
  * @throws {RangeError} for a key that is not an output key.
  *
@@ -69,14 +80,14 @@ export function outputKeys(command: string, severalInputs: boolean): string[] {
  * ```ts
  * import { outputFileName } from "./campaign_paths.ts";
  * if (outputFileName("mo", "rpm-out") !== "mo_rpm.json") throw new Error();
- * if (outputFileName("h", "hits-out") !== "h_hits.csv") throw new Error();
+ * if (outputFileName("h", "hits-out", "csv") !== "h_hits.csv") throw new Error();
  * ```
  */
-export function outputFileName(id: string, key: string): string {
+export function outputFileName(id: string, key: string, writes: "json" | "csv" = "json"): string {
   if (key === "out") return `${id}.json`;
   const part = /^([a-z]+)-out$/.exec(key)?.[1];
   if (part === undefined) throw new RangeError(`"${key}" is not an output key`);
-  return `${id}_${part}.${CSV_OUTPUTS.has(key) ? "csv" : "json"}`;
+  return `${id}_${part}.${writes}`;
 }
 
 /**
@@ -121,7 +132,7 @@ export interface CampaignWrite {
 }
 
 /**
- * Why a side output has its name: `the map side output of step "ru" is
+ * Why side output `key` of step `id` is named `file`: `the map side output of step "ru" is
  * named ru_map.json`. Step ids may hold `_`, so a step `ru_map` writes the
  * same `ru_map.json`; a clash names this, so that the user sees which step
  * to rename.
@@ -129,15 +140,15 @@ export interface CampaignWrite {
  * @example
  * ```ts
  * import { sideOutputNote } from "./campaign_paths.ts";
- * const why = sideOutputNote("ru", "map-out");
+ * const why = sideOutputNote("ru", "map-out", "ru_map.json");
  * if (why !== 'the map side output of step "ru" is named ru_map.json (side outputs are named <step id>_<part>)') throw new Error();
  * ```
  */
-export function sideOutputNote(id: string, key: string): string | undefined {
+export function sideOutputNote(id: string, key: string, file: string): string | undefined {
   if (key === "out") return undefined;
-  return `the ${key.replace(/-out$/, "")} side output of step "${id}" is named ${
-    outputFileName(id, key)
-  } (side outputs are named <step id>_<part>)`;
+  return `the ${
+    key.replace(/-out$/, "")
+  } side output of step "${id}" is named ${file} (side outputs are named <step id>_<part>)`;
 }
 
 /** A file the plan reads, and which key of the plan names it. */

@@ -38,21 +38,16 @@
 import { z } from "npm:zod@4.6.7";
 import { isShowable } from "../io/names.ts";
 import { isReportFileName } from "./campaign_paths.ts";
+import { ANALYSES, type AnalysisTable } from "../analyses.ts";
+import { didYouMeanClause } from "../nearest_name.ts";
 
-/** The analysis commands a plan can run. */
-export const PLAN_COMMANDS = [
-  "spectrum",
-  "frf",
-  "hammer",
-  "damping",
-  "bands",
-  "level",
-  "orders",
-  "spectrogram",
-  "modal",
-  "mac",
-  "paths",
-] as const;
+/** The analysis commands a plan can run (lib/analyses.ts). */
+export const PLAN_COMMANDS: readonly string[] = ANALYSES.planCommands;
+
+/** A list of names as zod's enum takes it (the table never leaves one empty). */
+function names(list: readonly string[]): [string, ...string[]] {
+  return (list.length > 0 ? [...list] : [""]) as [string, ...string[]];
+}
 
 // Ids name files (<id>.json, <id>_<part>.json): a portable set, and short enough for any file system.
 const id = z.string().regex(/^[A-Za-z0-9_-]+$/, "ids use letters, digits, _ and - only")
@@ -95,25 +90,29 @@ const optionName = z.string().regex(
   "an option name is the command's option without dashes, e.g. rpm-step",
 ).refine((name) => name !== "help" && name !== "debug", "help and debug are not plan options");
 
-const analysisSchema = z.strictObject({
-  id,
-  command: z.enum(PLAN_COMMANDS),
-  recording: z.string().optional(),
-  input: z.string().optional(),
-  /**
-   * `modal`: the ids of the frf or hammer analyses whose FRFs it fits together;
-   * `paths`: those holding each path's transfer, in the order of its references.
-   */
-  inputs: z.array(z.string()).min(1).optional(),
-  /** `modal`: the test geometry (point, x, y, z, line_to) for the report's shape drawings. */
-  geometry: z.strictObject({ file: z.string().min(1) }).optional(),
-  /** `mac`: the simulation's mode shapes. */
-  simulation: z.strictObject({ file: z.string().min(1) }).optional(),
-  /** `mac`: which simulation point is which test point (simulation_point, …, test_direction). */
-  map: z.strictObject({ file: z.string().min(1) }).optional(),
-  title: shown().optional(),
-  options: z.record(optionName, optionValue).default({}),
-});
+/** The schema of one analysis step, for the analyses of `table`. */
+function analysisSchemaOf(table: AnalysisTable) {
+  const files = Object.fromEntries(
+    table.planFiles.map((key) => [key, z.strictObject({ file: z.string().min(1) }).optional()]),
+  );
+  return z.strictObject({
+    id,
+    command: z.enum(names(table.planCommands)),
+    recording: z.string().optional(),
+    input: z.string().optional(),
+    /**
+     * The ids of the earlier steps whose results it reads (lib/analysis_descriptor.ts
+     * `ResultsRead`), e.g. `modal`'s frf or hammer analyses, `paths`' transfers.
+     */
+    inputs: z.array(z.string()).min(1).optional(),
+    // The plan files steps read, `{ "file": … }` under a key each (modal's geometry, mac's
+    // simulation and map): typed as the files of any analysis.
+    // (Typed as no key: read them with stepFile.)
+    ...(files as Record<never, never>),
+    title: shown().optional(),
+    options: z.record(optionName, optionValue).default({}),
+  });
+}
 
 const comparisonSchema = z.strictObject({
   id,
@@ -124,27 +123,22 @@ const comparisonSchema = z.strictObject({
   options: z.record(optionName, optionValue).default({}),
 });
 
-const valueTarget = z.strictObject({
-  id,
-  type: z.enum(["min", "max"]),
-  value: z.number(),
-  unit: z.string().default(""),
-  description: z.string().optional(),
-  of: z.strictObject({
-    analysis: z.string(),
-    quantity: z.enum([
-      "first_mode_hz",
-      "mode_hz",
-      "overall_db",
-      "leq_db",
-      "lmax_db",
-      "pair_mac",
-      "pair_shift_percent",
-    ]),
-    channel: z.string().optional(),
-    mode: z.number().int().positive().optional(),
-  }),
-});
+/** The schema of a single-value target, for the quantities of `table`. */
+function valueTargetOf(table: AnalysisTable) {
+  return z.strictObject({
+    id,
+    type: z.enum(["min", "max"]),
+    value: z.number(),
+    unit: z.string().default(""),
+    description: z.string().optional(),
+    of: z.strictObject({
+      analysis: z.string(),
+      quantity: z.enum(names(table.quantities)),
+      channel: z.string().optional(),
+      mode: z.number().int().positive().optional(),
+    }),
+  });
+}
 
 const curveTarget = z.strictObject({
   id,
@@ -159,6 +153,55 @@ const curveTarget = z.strictObject({
   ),
 });
 
+/** The plan schema of the analyses of `table`. */
+function buildPlanSchema(table: AnalysisTable) {
+  return z.strictObject({
+    quiver_plan: z.literal(1),
+    title: shown().pipe(z.string().min(1)),
+    description: shown(true).optional(),
+    recordings: z.record(z.string(), recordingSchema),
+    analyses: z.array(analysisSchemaOf(table)).min(1, "a plan needs at least one analysis"),
+    comparisons: z.array(comparisonSchema).default([]),
+    // Discriminated by `type`, so that a mistake inside a target is named, not a bare "Invalid input".
+    targets: z.array(z.discriminatedUnion("type", [valueTargetOf(table), curveTarget])).default([]),
+    /** When true, a failed or unchecked target makes `run` exit with TARGETS_NOT_MET_EXIT. */
+    require_targets: z.boolean().default(false),
+    report: z.strictObject({
+      title: shown().optional(),
+      /** One plain file name ending .html, written in the output folder itself. */
+      file: z.string().refine(
+        isReportFileName,
+        'the report is one file name ending .html, in the output folder itself (no folder, no "." or "..")',
+      ).default("report.html"),
+    }).optional(),
+  });
+}
+
+const schemas = new WeakMap<AnalysisTable, ReturnType<typeof buildPlanSchema>>();
+
+/**
+ * The zod schema of a plan file whose steps and targets are those of the
+ * analyses of `table` (quiver's own by default).
+ *
+ * @example
+ * ```ts
+ * import { planSchemaOf } from "./schema.ts";
+ * import { analysisTable } from "../analyses.ts";
+ * import { spectrumDescriptor } from "../dsp/spectrum_descriptor.ts";
+ * const only = planSchemaOf(analysisTable([spectrumDescriptor]));
+ * const plan = { quiver_plan: 1, title: "t", recordings: {}, analyses: [{ id: "f", command: "frf", recording: "r" }] };
+ * if (only.safeParse(plan).success || !planSchemaOf().safeParse(plan).success) throw new Error();
+ * ```
+ */
+export function planSchemaOf(table: AnalysisTable = ANALYSES): ReturnType<typeof buildPlanSchema> {
+  let schema = schemas.get(table);
+  if (schema === undefined) {
+    schema = buildPlanSchema(table);
+    schemas.set(table, schema);
+  }
+  return schema;
+}
+
 /**
  * The zod schema of a plan file.
  *
@@ -170,26 +213,7 @@ const curveTarget = z.strictObject({
  * if (plan.analyses[0].command !== "spectrum") throw new Error();
  * ```
  */
-export const planSchema = z.strictObject({
-  quiver_plan: z.literal(1),
-  title: shown().pipe(z.string().min(1)),
-  description: shown(true).optional(),
-  recordings: z.record(z.string(), recordingSchema),
-  analyses: z.array(analysisSchema).min(1, "a plan needs at least one analysis"),
-  comparisons: z.array(comparisonSchema).default([]),
-  // Discriminated by `type`, so that a mistake inside a target is named, not a bare "Invalid input".
-  targets: z.array(z.discriminatedUnion("type", [valueTarget, curveTarget])).default([]),
-  /** When true, a failed or unchecked target makes `run` exit with TARGETS_NOT_MET_EXIT. */
-  require_targets: z.boolean().default(false),
-  report: z.strictObject({
-    title: shown().optional(),
-    /** One plain file name ending .html, written in the output folder itself. */
-    file: z.string().refine(
-      isReportFileName,
-      'the report is one file name ending .html, in the output folder itself (no folder, no "." or "..")',
-    ).default("report.html"),
-  }).optional(),
-});
+export const planSchema = planSchemaOf(ANALYSES);
 
 /** The value of an option in a plan: text, a number, a flag or a list. */
 export type OptionValue = z.infer<typeof optionValue>;
@@ -243,19 +267,20 @@ export function optionsToArgv(
 export type PlanRecording = Plan["recordings"][string];
 
 /**
- * The nearest known name to a slip, or undefined: the command line's
- * `nearestName` (lib/nearest_name.ts), passed in by the caller.
+ * The file a step names under the plan key `key` (`geometry`, `simulation`,
+ * `map`: see its analysis's `FileRead`), if it names one.
+ *
+ * @example
+ * ```ts
+ * import { planSchema, stepFile } from "./schema.ts";
+ * const plan = planSchema.parse({ quiver_plan: 1, title: "t", recordings: {},
+ *   analyses: [{ id: "m", command: "modal", inputs: ["f"], geometry: { file: "g.csv" } }] });
+ * if (stepFile(plan.analyses[0], "geometry") !== "g.csv" || stepFile(plan.analyses[0], "map") !== undefined) throw new Error();
+ * ```
  */
-export type Nearest = (name: string, known: readonly string[]) => string | undefined;
-
-/** ` did you mean "x"?` when `nearest` finds one, else "". */
-export function didYouMean(
-  name: string,
-  known: readonly string[],
-  nearest: Nearest | undefined,
-): string {
-  const near = nearest?.(name, known);
-  return near === undefined ? "" : `; did you mean "${near}"?`;
+export function stepFile(step: PlanAnalysis, key: string): string | undefined {
+  const entry = (step as Readonly<Record<string, unknown>>)[key];
+  return isObject(entry) && typeof entry.file === "string" ? entry.file : undefined;
 }
 
 /** What each target type needs, for messages. */
@@ -329,11 +354,12 @@ function isObject(value: unknown): value is Record<string, unknown> {
  */
 export function readPlanJson(
   json: unknown,
-  nearest?: Nearest,
+  table: AnalysisTable = ANALYSES,
 ): { plan?: Plan; draft: PlanDraft; problems: [string, string][] } {
-  const parsed = planSchema.safeParse(json);
+  const schema = planSchemaOf(table);
+  const parsed = schema.safeParse(json);
   if (parsed.success) return { plan: parsed.data, draft: draftOfPlan(parsed.data), problems: [] };
-  const problems = parsed.error.issues.flatMap((issue) => issueProblems(issue, json, nearest));
+  const problems = parsed.error.issues.flatMap((issue) => issueProblems(issue, json, schema));
   const top = isObject(json) ? json : {};
   const recordings = new Map<string, PlanRecording>();
   const brokenRecordings = new Set<string>();
@@ -355,14 +381,14 @@ export function readPlanJson(
         ...(typeof raw.command === "string" ? { command: raw.command } : {}),
       };
     });
-  const report = planSchema.shape.report.safeParse(top.report);
+  const report = schema.shape.report.safeParse(top.report);
   return {
     draft: {
       recordings,
       brokenRecordings,
-      analyses: items(top.analyses, analysisSchema),
+      analyses: items(top.analyses, schema.shape.analyses.element),
       comparisons: items(top.comparisons, comparisonSchema),
-      targets: items(top.targets, planSchema.shape.targets.unwrap().element),
+      targets: items(top.targets, schema.shape.targets.unwrap().element),
       report: report.success ? report.data : undefined,
     },
     problems,
@@ -382,8 +408,12 @@ function valueAt(json: unknown, path: readonly PropertyKey[]): unknown {
 }
 
 /** The schema that applies at `path`, following the data through unions; undefined when none. */
-function schemaAt(path: readonly PropertyKey[], json: unknown): z.ZodType | undefined {
-  let schema: z.ZodType | undefined = planSchema;
+function schemaAt(
+  path: readonly PropertyKey[],
+  json: unknown,
+  plan: z.ZodType,
+): z.ZodType | undefined {
+  let schema: z.ZodType | undefined = plan;
   let value = json;
   const unwrap = (s: z.ZodType | undefined, v: unknown): z.ZodType | undefined => {
     for (;;) {
@@ -421,18 +451,18 @@ function jsonKind(value: unknown): string {
 function issueProblems(
   issue: z.core.$ZodIssue,
   json: unknown,
-  nearest: Nearest | undefined,
+  plan: z.ZodType,
 ): [string, string][] {
   const where = (path: readonly PropertyKey[]) => keyPath(path) || "(top level)";
   const got = valueAt(json, issue.path);
   const last = issue.path.at(-1);
   switch (issue.code) {
     case "unrecognized_keys": {
-      const schema = schemaAt(issue.path, json);
+      const schema = schemaAt(issue.path, json, plan);
       const allowed = schema instanceof z.ZodObject ? Object.keys(schema.shape) : [];
       return issue.keys.map((key) => [
         where([...issue.path, key]),
-        `unknown key "${key}"${didYouMean(key, allowed, nearest)}${
+        `unknown key "${key}"${didYouMeanClause(key, allowed)}${
           allowed.length > 0 ? ` (keys here: ${allowed.join(", ")})` : ""
         }`,
       ]);
@@ -440,9 +470,7 @@ function issueProblems(
     case "invalid_union": {
       if (issue.discriminator === "type") {
         const head = typeof got === "string"
-          ? `"${got}" is not a target type${
-            didYouMean(got, ["min", "max", "limit_curve"], nearest)
-          }`
+          ? `"${got}" is not a target type${didYouMeanClause(got, ["min", "max", "limit_curve"])}`
           : got === undefined
           ? "a target needs a type"
           : `a target's type is a string, not ${jsonKind(got)}`;
@@ -471,7 +499,7 @@ function issueProblems(
       }
       const name = typeof last === "string" ? last : "value";
       const head = typeof got === "string"
-        ? `unknown ${name} "${got}"${didYouMean(got, values, nearest)}`
+        ? `unknown ${name} "${got}"${didYouMeanClause(got, values)}`
         : got === undefined
         ? `${name} is missing`
         : `${name} must be one of the names below, not ${jsonKind(got)}`;

@@ -1,6 +1,7 @@
 import { describe, expect, test } from "vitest";
 import { loadCommands } from "../../cli/commands.ts";
 import { PLAN_COMMANDS } from "../../lib/plan/schema.ts";
+import { ANALYSES } from "../../lib/analyses.ts";
 
 describe("the one command table", () => {
   test("every option a command parses is in its --help, and nothing else is", async () => {
@@ -23,6 +24,14 @@ describe("the one command table", () => {
       // The plan runner validates plan options with the command's own schema: an unknown
       // option is refused there as on the command line.
       expect(command.schema.safeParse({ "no-such-option": "1" }).success, name).toBe(false);
+    }
+  });
+
+  test("an analysis's side outputs are exactly the *-out options of its command", async () => {
+    const commands = await loadCommands(ANALYSES.descriptors.map((d) => d.name));
+    for (const d of ANALYSES.descriptors) {
+      const parsed = Object.keys(commands[d.name].options).filter((o) => o.endsWith("-out"));
+      expect(Object.keys(d.outputs ?? {}), d.name).toEqual(parsed);
     }
   });
 });

@@ -6,7 +6,6 @@
 import { existsSync } from "node:fs";
 import { mkdtemp, rm, writeFile } from "node:fs/promises";
 import { afterAll, beforeAll, describe, expect, test } from "vitest";
-import { nearestName } from "../../lib/nearest_name.ts";
 import { planCommandTable } from "../../cli/plan_commands.ts";
 import { checkPlan, type PlanCommand } from "../../lib/plan/runner.ts";
 import { runQuiver } from "../helpers/cli.ts";
@@ -26,13 +25,11 @@ afterAll(async () => {
 
 const recordings = { road: { file: "road.csv" }, tunnel: { file: "tunnel.csv" } };
 
-/** The problem lines of checking `plan` (in-process, with the command line's nearest names). */
+/** The problem lines of checking `plan` (in-process; the nearest names are the command line's). */
 async function problemsOf(name: string, plan: Record<string, unknown>): Promise<string[]> {
   await writeFile(`${dir}/${name}.json`, JSON.stringify({ quiver_plan: 1, title: name, ...plan }));
   try {
-    await checkPlan(`${dir}/${name}.json`, `${dir}/${name}_out`, commands, {
-      nearest: nearestName,
-    });
+    await checkPlan(`${dir}/${name}.json`, `${dir}/${name}_out`, commands);
   } catch (error) {
     const lines = (error as Error).message.split("\n");
     // One problem: "<plan file>: plan key …"; several: a heading, then one per line.

@@ -1,0 +1,127 @@
+/**
+ * What quiver knows about one analysis, in one place: its command, the
+ * schema of its result's metadata, what a plan step of it reads, the side
+ * outputs it writes and the target quantities read from its result. Each
+ * analysis keeps its descriptor beside its code (`lib/<folder>/<name>_descriptor.ts`);
+ * lib/analyses.ts lists them, and the command table, the plan schema, the
+ * plan runner and the targets loop over that list.
+ *
+ * @module
+ */
+import type { z } from "npm:zod@4.6.7";
+import { z as zod } from "npm:zod@4.6.7";
+import type { ParseArgsOptionsConfig } from "node:util";
+// Types only: lib/ loads cli/ modules only through a descriptor's `load`.
+import type { OptionEntry } from "../cli/option_table.ts";
+import type { QuantityReader } from "./quantity_reading.ts";
+
+/** What every command module exports. */
+export interface CommandModule {
+  /** One-line summary for the command list. */
+  readonly summary: string;
+  /** The command's help text. */
+  readonly help: string;
+  /** parseArgs spec of the options. */
+  readonly options: ParseArgsOptionsConfig;
+  /** zod schema of the options. */
+  readonly schema: z.ZodType;
+  /** Runs the command. */
+  run(argv: readonly string[]): Promise<void>;
+}
+
+/** A plan step's options, as the plan gives them (names without dashes). */
+export type StepOptions = Readonly<Record<string, unknown>>;
+
+/**
+ * A side output: an `*-out` option of the command's option table, with the
+ * kind of file the plan runner names for it (`<id>_<part>.json` or `.csv`).
+ */
+export interface SideOutput extends OptionEntry {
+  /** The file the option writes, as the runner names it. */
+  readonly writes: "json" | "csv";
+  /** The output is written only when this holds of the step's options. Default: always. */
+  readonly onlyWith?: (options: StepOptions) => boolean;
+}
+
+/**
+ * Declares a side output: a `FILE` option of the command (the command's
+ * option table spreads it in) that the plan runner gives a file name.
+ *
+ * @example
+ * ```ts
+ * import { sideOutput } from "./analysis_descriptor.ts";
+ * const hits = sideOutput("csv", { help: "hit log" });
+ * if (hits.writes !== "csv" || hits.value !== "FILE" || hits.schema.safeParse("").success) throw new Error();
+ * ```
+ */
+export function sideOutput(
+  writes: "json" | "csv",
+  entry: { help: string; onlyWith?: (options: StepOptions) => boolean },
+): OptionEntry<z.ZodString> & { readonly required: false } & SideOutput {
+  // The entry cli/option_table.ts's `option` makes of a required-less FILE option.
+  return { schema: zod.string().min(1), value: "FILE", required: false, ...entry, writes };
+}
+
+/** Earlier plan steps' results that a step reads. */
+export interface ResultsRead {
+  /**
+   * The plan key naming them: `input` (one id) or `inputs` (a list of ids;
+   * with `inputOrInputs`, one id under `input` is taken as a list of one).
+   */
+  readonly key: "input" | "inputs";
+  /** `inputs` may also be given as one `input`. Default false. */
+  readonly inputOrInputs?: boolean;
+  /** The commands whose results it reads. */
+  readonly from: readonly string[];
+  /** Which output of theirs: `out` or a side output key. */
+  readonly output: string;
+  /** The command's option that takes them, as a comma-separated list; absent: positional arguments. */
+  readonly option?: string;
+  /** The problem named when the plan gives none. */
+  readonly missing: string;
+}
+
+/** A plan file a step reads besides recordings and results: `{ "file": … }` under `key`. */
+export interface FileRead {
+  /** The plan key (`geometry`, `simulation`, `map`). */
+  readonly key: string;
+  /** The command's option taking it; absent: a positional argument. */
+  readonly option?: string;
+  /** The problem named when the plan leaves it out; absent: the file is optional. */
+  readonly missing?: string;
+}
+
+/**
+ * What a plan step of the analysis reads, given to its command in this
+ * order: earlier results, plan files, then the recording (with its set-up,
+ * rate and slice).
+ */
+export interface StepReads {
+  readonly results?: ResultsRead;
+  readonly files?: readonly FileRead[];
+  /** The step names a recording of the plan. */
+  readonly recording: boolean;
+}
+
+/** One analysis. */
+export interface AnalysisDescriptor {
+  /** The command's name (`quiver <name>`, a plan step's `command`). */
+  readonly name: string;
+  /** Loads the command's module, only when it is asked for (start-up loads no other command). */
+  readonly load: () => Promise<CommandModule>;
+  /** The zod schema of its result's metadata. */
+  readonly metadata: z.ZodType;
+  /**
+   * How a plan runs it: as an analysis (reading `reads`), as a comparison
+   * (the plan's `comparisons` section), or not at all.
+   */
+  readonly plan?:
+    | { readonly step: "analysis"; readonly reads: StepReads }
+    | { readonly step: "comparison" };
+  /** Its side outputs, by option name (every `*-out` option but `out`). Default: none. */
+  readonly outputs?: Readonly<Record<string, SideOutput>>;
+  /** The target quantities read from its result, by name. Default: none. */
+  readonly quantities?: Readonly<Record<string, QuantityReader>>;
+  /** Loads its report section (wired by the report). Default: none. */
+  readonly report?: () => Promise<unknown>;
+}

@@ -1,0 +1,25 @@
+/**
+ * The impact-hammer analysis, as the command table, plans and targets see it.
+ *
+ * @module
+ */
+import { type AnalysisDescriptor, sideOutput } from "../analysis_descriptor.ts";
+import { RESULT_METADATA } from "../io/result_metadata.ts";
+
+/** hammer's side outputs (its option table spreads them in): the hit log is a plain CSV table. */
+export const HAMMER_OUTPUTS = {
+  "hits-out": sideOutput("csv", { help: "hit log CSV: hit, time_s, peak, status" }),
+  "records-out": sideOutput("json", {
+    help:
+      "every hit's force and first response against time (CSV or\nJSON), for checking each hit by eye",
+  }),
+};
+
+/** `quiver hammer`: FRFs from an impact-hammer test. */
+export const hammerDescriptor: AnalysisDescriptor = {
+  name: "hammer",
+  load: () => import("../../cli/hammer.ts"),
+  metadata: RESULT_METADATA.hammer,
+  plan: { step: "analysis", reads: { recording: true } },
+  outputs: HAMMER_OUTPUTS,
+};

@@ -1,0 +1,44 @@
+/**
+ * The modal fit, as the command table, plans and targets see it.
+ *
+ * @module
+ */
+import { type AnalysisDescriptor, sideOutput } from "../analysis_descriptor.ts";
+import { RESULT_METADATA } from "../io/result_metadata.ts";
+
+/** modal's side outputs (its option table spreads them in). */
+export const MODAL_OUTPUTS = {
+  "shapes-out": sideOutput("json", {
+    help: "shapes, tidy: mode, point, direction, re, im, frequency_hz",
+  }),
+  "stability-out": sideOutput("json", {
+    help:
+      "poles per order: order, frequency_hz, damping_ratio,\nstable_frequency, stable_damping, stable_shape, mode",
+  }),
+  "synth-out": sideOutput("json", {
+    help: "measured and synthesised FRFs (as receptance) per point",
+  }),
+};
+
+/** `quiver modal`: modes fitted to the FRFs of several frf or hammer results. */
+export const modalDescriptor: AnalysisDescriptor = {
+  name: "modal",
+  load: () => import("../../cli/modal.ts"),
+  metadata: RESULT_METADATA.modal,
+  plan: {
+    step: "analysis",
+    reads: {
+      results: {
+        key: "inputs",
+        inputOrInputs: true,
+        from: ["frf", "hammer"],
+        output: "out",
+        missing: "modal needs the ids of frf or hammer analyses",
+      },
+      // The test geometry (point, x, y, z, line_to) for the report's shape drawings.
+      files: [{ key: "geometry", option: "geometry" }],
+      recording: false,
+    },
+  },
+  outputs: MODAL_OUTPUTS,
+};
