@@ -14,6 +14,7 @@ import type { ParseArgsOptionsConfig } from "node:util";
 // Types only: lib/ loads cli/ modules only through a descriptor's `load`.
 import type { OptionEntry } from "../cli/option_table.ts";
 import type { QuantityReader } from "./quantity_reading.ts";
+import type { SectionModule } from "./report/section.ts";
 
 /** What every command module exports. */
 export interface CommandModule {
@@ -122,6 +123,6 @@ export interface AnalysisDescriptor {
   readonly outputs?: Readonly<Record<string, SideOutput>>;
   /** The target quantities read from its result, by name. Default: none. */
   readonly quantities?: Readonly<Record<string, QuantityReader>>;
-  /** Loads its report section (wired by the report). Default: none. */
-  readonly report?: () => Promise<unknown>;
+  /** Loads the module that builds its steps' report sections. Default: none (no section). */
+  readonly report?: () => Promise<SectionModule>;
 }

@@ -5,14 +5,16 @@
  * @module
  */
 import type { AnalysisDescriptor } from "../analysis_descriptor.ts";
-import { RESULT_METADATA, resultMetadata } from "../io/result_metadata.ts";
+import { BANDS_METADATA } from "./bands_metadata.ts";
+import { resultMetadata } from "../io/result_metadata.ts";
 import { finiteValue, oneChannel } from "../quantity_reading.ts";
 
 /** `quiver bands`: octave or third-octave band levels of a recording. */
 export const bandsDescriptor: AnalysisDescriptor = {
   name: "bands",
   load: () => import("../../cli/bands.ts"),
-  metadata: RESULT_METADATA.bands,
+  metadata: BANDS_METADATA,
+  report: () => import("../report/sections/bands.ts"),
   plan: { step: "analysis", reads: { recording: true } },
   quantities: {
     /** The overall level of `channel`. */

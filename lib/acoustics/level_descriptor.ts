@@ -5,7 +5,8 @@
  * @module
  */
 import type { AnalysisDescriptor } from "../analysis_descriptor.ts";
-import { RESULT_METADATA, resultMetadata } from "../io/result_metadata.ts";
+import { LEVEL_METADATA } from "./level_metadata.ts";
+import { resultMetadata } from "../io/result_metadata.ts";
 import type { ResultTable } from "../io/result_file.ts";
 import { finiteValue, oneChannel, type QuantityOf } from "../quantity_reading.ts";
 
@@ -26,7 +27,8 @@ function summaryValue(
 export const levelDescriptor: AnalysisDescriptor = {
   name: "level",
   load: () => import("../../cli/level.ts"),
-  metadata: RESULT_METADATA.level,
+  metadata: LEVEL_METADATA,
+  report: () => import("../report/sections/level.ts"),
   plan: { step: "analysis", reads: { recording: true } },
   quantities: {
     leq_db: (result, of) => summaryValue(result, of, "leq_db"),

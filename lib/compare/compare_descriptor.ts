@@ -4,7 +4,7 @@
  * @module
  */
 import { type AnalysisDescriptor, sideOutput } from "../analysis_descriptor.ts";
-import { RESULT_METADATA } from "../io/result_metadata.ts";
+import { COMPARE_METADATA } from "./compare_metadata.ts";
 
 /** compare's side outputs (its option table spreads them in). */
 export const COMPARE_OUTPUTS = {
@@ -18,7 +18,8 @@ export const COMPARE_OUTPUTS = {
 export const compareDescriptor: AnalysisDescriptor = {
   name: "compare",
   load: () => import("../../cli/compare.ts"),
-  metadata: RESULT_METADATA.compare,
+  metadata: COMPARE_METADATA,
+  report: () => import("../report/sections/compare.ts"),
   plan: { step: "comparison" },
   outputs: COMPARE_OUTPUTS,
 };

@@ -4,12 +4,13 @@
  * @module
  */
 import type { AnalysisDescriptor } from "../analysis_descriptor.ts";
-import { RESULT_METADATA } from "../io/result_metadata.ts";
+import { SPECTROGRAM_METADATA } from "./spectrogram_metadata.ts";
 
 /** `quiver spectrogram`: spectra against time or rpm. */
 export const spectrogramDescriptor: AnalysisDescriptor = {
   name: "spectrogram",
   load: () => import("../../cli/spectrogram.ts"),
-  metadata: RESULT_METADATA.spectrogram,
+  metadata: SPECTROGRAM_METADATA,
+  report: () => import("../report/sections/spectrogram.ts"),
   plan: { step: "analysis", reads: { recording: true } },
 };

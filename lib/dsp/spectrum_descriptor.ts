@@ -4,12 +4,13 @@
  * @module
  */
 import type { AnalysisDescriptor } from "../analysis_descriptor.ts";
-import { RESULT_METADATA } from "../io/result_metadata.ts";
+import { SPECTRUM_METADATA } from "./spectrum_metadata.ts";
 
 /** `quiver spectrum`: averaged spectra of a recording. */
 export const spectrumDescriptor: AnalysisDescriptor = {
   name: "spectrum",
   load: () => import("../../cli/spectrum.ts"),
-  metadata: RESULT_METADATA.spectrum,
+  metadata: SPECTRUM_METADATA,
+  report: () => import("../report/sections/spectrum.ts"),
   plan: { step: "analysis", reads: { recording: true } },
 };

@@ -4,7 +4,7 @@
  * @module
  */
 import { type AnalysisDescriptor, sideOutput, type StepOptions } from "../analysis_descriptor.ts";
-import { RESULT_METADATA } from "../io/result_metadata.ts";
+import { FRF_METADATA } from "./frf_metadata.ts";
 
 /**
  * Whether a step's `inputs` option names two or more channels (a list, or
@@ -39,7 +39,8 @@ export const FRF_OUTPUTS = {
 export const frfDescriptor: AnalysisDescriptor = {
   name: "frf",
   load: () => import("../../cli/frf.ts"),
-  metadata: RESULT_METADATA.frf,
+  metadata: FRF_METADATA,
+  report: () => import("../report/sections/frf.ts"),
   plan: { step: "analysis", reads: { recording: true } },
   outputs: FRF_OUTPUTS,
 };

@@ -4,7 +4,7 @@
  * @module
  */
 import { type AnalysisDescriptor, sideOutput } from "../analysis_descriptor.ts";
-import { RESULT_METADATA } from "../io/result_metadata.ts";
+import { HAMMER_METADATA } from "./hammer_metadata.ts";
 
 /** hammer's side outputs (its option table spreads them in): the hit log is a plain CSV table. */
 export const HAMMER_OUTPUTS = {
@@ -19,7 +19,8 @@ export const HAMMER_OUTPUTS = {
 export const hammerDescriptor: AnalysisDescriptor = {
   name: "hammer",
   load: () => import("../../cli/hammer.ts"),
-  metadata: RESULT_METADATA.hammer,
+  metadata: HAMMER_METADATA,
+  report: () => import("../report/sections/hammer.ts"),
   plan: { step: "analysis", reads: { recording: true } },
   outputs: HAMMER_OUTPUTS,
 };

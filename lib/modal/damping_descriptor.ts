@@ -5,7 +5,8 @@
  * @module
  */
 import type { AnalysisDescriptor } from "../analysis_descriptor.ts";
-import { RESULT_METADATA, resultMetadata } from "../io/result_metadata.ts";
+import { DAMPING_METADATA } from "./damping_metadata.ts";
+import { resultMetadata } from "../io/result_metadata.ts";
 import type { ResultTable } from "../io/result_file.ts";
 import {
   finiteValue,
@@ -60,7 +61,8 @@ async function modeHz(result: ResultTable, { channel, mode }: QuantityOf): Promi
 export const dampingDescriptor: AnalysisDescriptor = {
   name: "damping",
   load: () => import("../../cli/damping.ts"),
-  metadata: RESULT_METADATA.damping,
+  metadata: DAMPING_METADATA,
+  report: () => import("../report/sections/damping.ts"),
   plan: {
     step: "analysis",
     reads: {

@@ -5,7 +5,8 @@
  * @module
  */
 import { type AnalysisDescriptor, sideOutput } from "../analysis_descriptor.ts";
-import { RESULT_METADATA, resultMetadata } from "../io/result_metadata.ts";
+import { MAC_METADATA } from "./mac_metadata.ts";
+import { resultMetadata } from "../io/result_metadata.ts";
 import type { ResultTable } from "../io/result_file.ts";
 import { finiteValue, type QuantityOf } from "../quantity_reading.ts";
 import { formatNumber } from "../format_number.ts";
@@ -48,7 +49,8 @@ function pairOf(result: ResultTable, { mode }: QuantityOf) {
 export const macDescriptor: AnalysisDescriptor = {
   name: "mac",
   load: () => import("../../cli/mac.ts"),
-  metadata: RESULT_METADATA.mac,
+  metadata: MAC_METADATA,
+  report: () => import("../report/sections/mac.ts"),
   plan: {
     step: "analysis",
     reads: {

@@ -4,7 +4,7 @@
  * @module
  */
 import { type AnalysisDescriptor, sideOutput } from "../analysis_descriptor.ts";
-import { RESULT_METADATA } from "../io/result_metadata.ts";
+import { MODAL_METADATA } from "./modal_metadata.ts";
 
 /** modal's side outputs (its option table spreads them in). */
 export const MODAL_OUTPUTS = {
@@ -24,7 +24,8 @@ export const MODAL_OUTPUTS = {
 export const modalDescriptor: AnalysisDescriptor = {
   name: "modal",
   load: () => import("../../cli/modal.ts"),
-  metadata: RESULT_METADATA.modal,
+  metadata: MODAL_METADATA,
+  report: () => import("../report/sections/modal.ts"),
   plan: {
     step: "analysis",
     reads: {

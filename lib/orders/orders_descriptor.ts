@@ -4,7 +4,7 @@
  * @module
  */
 import { type AnalysisDescriptor, sideOutput } from "../analysis_descriptor.ts";
-import { RESULT_METADATA } from "../io/result_metadata.ts";
+import { ORDERS_METADATA } from "./orders_metadata.ts";
 
 /** orders' side outputs (its option table spreads them in). */
 export const ORDERS_OUTPUTS = {
@@ -19,7 +19,8 @@ export const ORDERS_OUTPUTS = {
 export const ordersDescriptor: AnalysisDescriptor = {
   name: "orders",
   load: () => import("../../cli/orders.ts"),
-  metadata: RESULT_METADATA.orders,
+  metadata: ORDERS_METADATA,
+  report: () => import("../report/sections/orders.ts"),
   plan: { step: "analysis", reads: { recording: true } },
   outputs: ORDERS_OUTPUTS,
 };

@@ -4,7 +4,7 @@
  * @module
  */
 import { type AnalysisDescriptor, sideOutput } from "../analysis_descriptor.ts";
-import { RESULT_METADATA } from "../io/result_metadata.ts";
+import { PATHS_METADATA } from "./paths_metadata.ts";
 
 /** paths' side outputs (its option table spreads them in). */
 export const PATHS_OUTPUTS = {
@@ -17,7 +17,8 @@ export const PATHS_OUTPUTS = {
 export const pathsDescriptor: AnalysisDescriptor = {
   name: "paths",
   load: () => import("../../cli/paths.ts"),
-  metadata: RESULT_METADATA.paths,
+  metadata: PATHS_METADATA,
+  report: () => import("../report/sections/paths.ts"),
   plan: {
     step: "analysis",
     reads: {

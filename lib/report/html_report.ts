@@ -24,6 +24,7 @@ import { recordingsSection } from "./recordings_section.ts";
 import type { CurveLimit, ManifestStep, ReportSection } from "./section.ts";
 import { readResult } from "./section_data.ts";
 import { loaderFor } from "./section_loaders.ts";
+import { ANALYSES, type AnalysisTable } from "../analyses.ts";
 
 /**
  * What a section's source line names: the files the run read for the step
@@ -54,11 +55,12 @@ function failedSection(heading: string, note: string): ReportSection {
  */
 async function stepSection(
   step: ManifestStep,
-  { title, outDir, limits, warned }: {
+  { title, outDir, limits, warned, table }: {
     title: string;
     outDir: string;
     limits: readonly CurveLimit[];
     warned: Set<string>;
+    table: AnalysisTable;
   },
 ): Promise<ReportSection | undefined> {
   if (step.status !== "ok") {
@@ -77,7 +79,7 @@ async function stepSection(
   const note = `${step.command} of ${sourceNames(step, common)}${
     warnings.length > 0 ? `. Warnings: ${warnings.join("; ")}` : ""
   }`;
-  const load = loaderFor(step.command);
+  const load = loaderFor(step.command, table);
   if (load === undefined) return undefined;
   // A result whose metadata is not what its command writes is named, not drawn from guesses.
   try {
@@ -116,7 +118,8 @@ async function figuresFolder(outDir: string): Promise<string> {
 
 /**
  * Writes `<outDir>/<file>` and `<outDir>/figures/*.svg` from a finished run.
- * Returns the report's path.
+ * Returns the report's path. Each step's section comes from its analysis's
+ * descriptor in `table` (default: quiver's analyses).
  *
  * @example
  * ```ts
@@ -138,7 +141,12 @@ async function figuresFolder(outDir: string): Promise<string> {
  * if (!(await readFile(`${dir}/out/report.html`, "utf8")).includes("<svg")) throw new Error();
  * ```
  */
-export async function writeReport(outDir: string, manifest: Manifest, plan: Plan): Promise<string> {
+export async function writeReport(
+  outDir: string,
+  manifest: Manifest,
+  plan: Plan,
+  table: AnalysisTable = ANALYSES,
+): Promise<string> {
   const titles = new Map<string, string>();
   for (const a of plan.analyses) titles.set(a.id, a.title ?? a.id);
   for (const c of plan.comparisons) titles.set(c.id, c.title ?? c.id);
@@ -159,6 +167,7 @@ export async function writeReport(outDir: string, manifest: Manifest, plan: Plan
       outDir,
       limits: limitsOf(step.id),
       warned,
+      table,
     });
     if (section === undefined) continue;
     sections.push(section);

@@ -17,6 +17,7 @@ import { ANALYSES, analysisTable } from "../../lib/analyses.ts";
 import { finiteValue } from "../../lib/quantity_reading.ts";
 import { checkPlan, runPlan } from "../../lib/plan/runner.ts";
 import { planCommandTable } from "../../cli/plan_commands.ts";
+import { writeReport } from "../../lib/report/html_report.ts";
 
 // The toy's "folder": its command module and its descriptor.
 const toyMetadata = z.looseObject({ analysis: z.literal("toy"), peak: z.number() });
@@ -55,6 +56,17 @@ const toyDescriptor: AnalysisDescriptor = {
   metadata: toyMetadata,
   plan: { step: "analysis", reads: { recording: true } },
   outputs: TOY_OUTPUTS,
+  // Its report section: the peak in words (a real one draws figures: lib/report/sections/).
+  report: () =>
+    Promise.resolve({
+      section: (input) =>
+        Promise.resolve({
+          heading: input.title,
+          note: input.note,
+          figures: [],
+          html: `<p class="toy-peak">toy peak ${toyMetadata.parse(input.result.metadata).peak}</p>`,
+        }),
+    }),
   quantities: {
     toy_peak: (result) => ({ value: finiteValue(toyMetadata.parse(result.metadata).peak, "peak") }),
   },
@@ -78,6 +90,7 @@ const plan = (gain: unknown, limit: number) => ({
   recordings: { road: { file: "road.csv", rate: 2 } },
   analyses: [{ id: "t", command: "toy", recording: "road", options: { gain } }],
   targets: [{ id: "p", type: "max", value: limit, of: { analysis: "t", quantity: "toy_peak" } }],
+  report: { title: "toy" },
 });
 const quiet = { start() {}, end() {} };
 
@@ -90,8 +103,13 @@ describe("a toy analysis added as one descriptor and one table line", () => {
       commands,
       table,
       progress: quiet,
+      report: (outDir, manifest, plan) => writeReport(outDir, manifest, plan, table),
     });
     expect(manifest.status).toBe("ok");
+    // The report found the toy's section through its descriptor.
+    expect(await readFile(`${dir}/out/report.html`, "utf8")).toContain(
+      '<p class="toy-peak">toy peak 6</p>',
+    );
     const [step] = manifest.steps;
     expect(step.argv).toEqual([
       `${dir}/road.csv`,
