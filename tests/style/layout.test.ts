@@ -24,7 +24,10 @@ const rel = (path: string) => path.slice(ROOT.length);
 test("no source file is over 600 lines (lib/, cli/, tests/, fixtures/demo/)", () => {
   const long = ["lib", "cli", "tests", "fixtures/demo"]
     .flatMap((dir) => files(join(ROOT, dir), /\.ts$/))
-    .map((path) => ({ path: rel(path), lines: (readFileSync(path, "utf8").match(/\n/g) ?? []).length }))
+    .map((path) => ({
+      path: rel(path),
+      lines: (readFileSync(path, "utf8").match(/\n/g) ?? []).length,
+    }))
     .filter((f) => f.lines > 600);
   expect(long).toEqual([]);
 });
