@@ -1,15 +1,18 @@
 /**
- * The spectral core behind a reader: in the same thread, or, for long
- * records, in a worker thread that transforms while the reader reads and
- * checks the next chunks. Either way the estimate is the same
- * {@linkcode SpectralAccumulator}'s, fed the same samples in the same order,
- * so the numbers are identical to the last bit.
+ * The spectral core behind a reader, its transforms on every core for long
+ * records: the channels fall into groups (a channel stays with those it
+ * forms cross spectra with), this thread keeps one group and a worker takes
+ * each other, each group with its own {@linkcode SpectralAccumulator} fed
+ * the same samples in the same order. A channel's spectra depend on that
+ * channel's samples alone (a cross spectrum on its pair's), so the numbers
+ * are identical to the last bit wherever they were made.
  *
  * The reader calls `push` synchronously (a CSV chunk is handed on from inside
- * the parser), so the hand-over is a ring of a few slots in shared memory:
- * `push` copies a chunk into a free slot and waits (Atomics.wait) only when
- * every slot is still full, which bounds the memory whatever the speed of
- * either side.
+ * the parser), so a worker's share goes through a ring of a few slots in
+ * shared memory: `push` copies the worker's channels into a free slot and
+ * waits (Atomics.wait) only when every slot is still full, which bounds the
+ * memory whatever the speed of either side, then transforms this thread's
+ * channels while the worker transforms its own.
  *
  * @module
  */
@@ -34,7 +37,7 @@ export interface SpectralSink {
   push(chunk: readonly Float64Array[]): void;
   /** The averaged estimate, as {@linkcode SpectralAccumulator.finish} gives it. */
   finish(): Promise<SpectralEstimate>;
-  /** Drops the work after a failed read: stops the worker, if any, so the process can end. */
+  /** Drops the work after a failed read: stops the workers, if any, so the process can end. */
   cancel(): void;
 }
 
@@ -42,24 +45,24 @@ export interface SpectralSink {
 export interface SpectralSinkOptions {
   /**
    * Samples per channel the reader will deliver, when known (the recording's
-   * length). Default: unknown, which keeps the core in this thread.
+   * length). Default: unknown, which keeps every transform in this thread.
    */
   samples?: number;
   /**
-   * Where the core runs: `"auto"` uses a worker for at least
-   * {@linkcode WORKER_MIN_SAMPLES} samples over all channels on a machine with
-   * two or more cores, outside a worker; `"worker"` and `"here"` force the
-   * choice. Default `"auto"`.
+   * Threads that share the channels' transforms, for tests that compare the
+   * paths bit for bit (the choice is otherwise automatic: one per core, at
+   * most one per channel group, for at least {@linkcode SPLIT_MIN_SAMPLES}
+   * samples over all channels, outside a worker, without `frames`). Values
+   * above the channel groups are cut to them. Default: automatic.
    */
-  thread?: "auto" | "worker" | "here";
+  threads?: number;
 }
 
 /**
- * Samples over all channels from which `"auto"` hands the core to a worker:
- * below it, the transforms are too few to repay the worker's start (at 2^22,
- * the bench's CSV, ten alternating runs showed no gain).
+ * Samples over all channels from which the transforms are shared out:
+ * below it they are too few to repay a worker's start.
  */
-export const WORKER_MIN_SAMPLES = 2 ** 23;
+export const SPLIT_MIN_SAMPLES = 2 ** 23;
 
 /** Slots in the ring between reader and worker. */
 const SLOTS = 4;
@@ -69,21 +72,76 @@ const SLOT_ROWS = 65536;
 const STALL_MS = 300_000;
 
 /**
- * The spectral core for `channelCount` channels, in this thread or in a
- * worker (see {@linkcode SpectralSinkOptions.thread}). Options are checked
- * here, before any worker starts, with the same errors as
+ * The channels `0 … channelCount−1` in at most `parts` groups whose
+ * transforms can be made apart: the two channels of a pair are in one group.
+ * The groups are as even as the pairs allow, the smallest first (this
+ * thread's, as it also reads); each lists its channels in ascending order.
+ *
+ * @example
+ * ```ts
+ * import { channelGroups } from "./spectral_pipeline.ts";
+ * if (JSON.stringify(channelGroups(4, [], 2)) !== "[[0,2],[1,3]]") throw new Error();
+ * if (JSON.stringify(channelGroups(3, [[0, 2]], 2)) !== "[[1],[0,2]]") throw new Error();
+ * if (channelGroups(2, [[0, 1]], 2).length !== 1) throw new Error();
+ * ```
+ */
+export function channelGroups(
+  channelCount: number,
+  pairs: readonly (readonly [number, number])[],
+  parts: number,
+): number[][] {
+  // Channels joined by pairs, as components of a union–find.
+  const root = Array.from({ length: channelCount }, (_, c) => c);
+  const find = (c: number): number => root[c] === c ? c : (root[c] = find(root[c]));
+  for (const [x, y] of pairs) root[find(x)] = find(y);
+  const components = new Map<number, number[]>();
+  for (let c = 0; c < channelCount; c++) {
+    const r = find(c);
+    components.set(r, [...(components.get(r) ?? []), c]);
+  }
+  // Largest component first into the group with fewest channels: an even split.
+  const sorted = [...components.values()].sort((a, b) => b.length - a.length || a[0] - b[0]);
+  const groups: number[][] = Array.from(
+    { length: Math.max(1, Math.min(parts, sorted.length)) },
+    () => [],
+  );
+  for (const component of sorted) {
+    let smallest = groups[0];
+    for (const g of groups) if (g.length < smallest.length) smallest = g;
+    smallest.push(...component);
+  }
+  for (const g of groups) g.sort((a, b) => a - b);
+  return groups.sort((a, b) => a.length - b.length || a[0] - b[0]);
+}
+
+/** How many threads share the transforms when the caller leaves it to the pipeline. */
+function automaticThreads(
+  channelCount: number,
+  options: SpectralOptions,
+  samples: number | undefined,
+): number {
+  return samples !== undefined && samples * channelCount >= SPLIT_MIN_SAMPLES &&
+      options.frames === undefined && !insideWorker()
+    ? navigator.hardwareConcurrency ?? 1
+    : 1;
+}
+
+/**
+ * The spectral core for `channelCount` channels, its transforms shared
+ * among threads as {@linkcode SpectralSinkOptions.threads} says. Options are
+ * checked here, before any worker starts, with the same errors as
  * {@linkcode SpectralAccumulator}.
  *
- * @throws {RangeError} for impossible options; `frames` is refused in a worker.
+ * @throws {RangeError} for impossible options; `frames` with more than one thread.
  *
  * @example
  * ```ts
  * import { spectralSink } from "./spectral_pipeline.ts";
  * const x = new Float64Array(4096).map((_, i) => Math.sin(i));
- * const sink = spectralSink(1, { rate: 1024, block: 256 }, { thread: "worker" });
- * sink.push([x]);
+ * const sink = spectralSink(2, { rate: 1024, block: 256 }, { threads: 2 });
+ * sink.push([x, x]);
  * const e = await sink.finish();
- * if (e.averages !== 31) throw new Error();
+ * if (e.averages !== 31 || e.auto[0].join() !== e.auto[1].join()) throw new Error();
  * ```
  */
 export function spectralSink(
@@ -91,13 +149,11 @@ export function spectralSink(
   options: SpectralOptions,
   sinkOptions: SpectralSinkOptions = {},
 ): SpectralSink {
-  const thread = sinkOptions.thread ?? "auto";
-  const samples = sinkOptions.samples;
-  const useWorker = thread === "worker" ||
-    (thread === "auto" && samples !== undefined && samples * channelCount >= WORKER_MIN_SAMPLES &&
-      (navigator.hardwareConcurrency ?? 1) >= 2 && options.frames === undefined &&
-      !insideWorker());
-  if (!useWorker) {
+  validateSpectralOptions(channelCount, options);
+  const threads = sinkOptions.threads ??
+    automaticThreads(channelCount, options, sinkOptions.samples);
+  const groups = channelGroups(channelCount, options.pairs ?? [], threads);
+  if (groups.length === 1) {
     const accumulator = new SpectralAccumulator(channelCount, options);
     return {
       push: (chunk) => accumulator.push(chunk),
@@ -106,21 +162,34 @@ export function spectralSink(
     };
   }
   if (options.frames !== undefined) {
-    throw new RangeError('frames cannot be handed out of a worker; use thread: "here"');
+    throw new RangeError("frames cannot be handed out of a worker; use one thread");
   }
-  validateSpectralOptions(channelCount, options);
-  return new WorkerSink(channelCount, options);
+  return new SharedSink(channelCount, options, groups);
 }
 
-class WorkerSink implements SpectralSink {
-  readonly #channelCount: number;
+/** The options of one group's accumulator: its pairs, numbered within the group. */
+function groupOptions(options: SpectralOptions, group: readonly number[]): SpectralOptions {
+  const pairs = (options.pairs ?? []).filter(([x]) => group.includes(x));
+  return {
+    ...options,
+    pairs: pairs.map(([x, y]) => [group.indexOf(x), group.indexOf(y)] as const),
+  };
+}
+
+/** A group's channels of a chunk. */
+const pick = (chunk: readonly Float64Array[], group: readonly number[]) =>
+  group.map((c) => chunk[c]);
+
+/** One group's accumulator in a worker, fed through a ring. */
+class WorkerPart {
+  readonly group: readonly number[];
   readonly #ring: SharedRing;
   readonly #reply: Promise<SpectralWorkerReply>;
   readonly #worker: Worker;
 
-  constructor(channelCount: number, options: SpectralOptions) {
-    this.#channelCount = channelCount;
-    this.#ring = SharedRing.create(SLOTS, channelCount * SLOT_ROWS);
+  constructor(group: readonly number[], options: SpectralOptions) {
+    this.group = group;
+    this.#ring = SharedRing.create(SLOTS, group.length * SLOT_ROWS);
     this.#worker = new Worker(new URL("./spectral_worker.ts", import.meta.url).href, {
       type: "module",
     });
@@ -132,8 +201,8 @@ class WorkerSink implements SpectralSink {
       };
     });
     const start: SpectralWorkerStart = {
-      channelCount,
-      options,
+      channelCount: group.length,
+      options: groupOptions(options, group),
       ring: this.#ring.buffers,
       slotRows: SLOT_ROWS,
     };
@@ -150,23 +219,15 @@ class WorkerSink implements SpectralSink {
     throw new Error(`the spectral worker took no chunk in ${STALL_MS / 1000} s`);
   }
 
+  /** Copies the group's channels of `chunk` into the ring, a slot at a time. */
   push(chunk: readonly Float64Array[]): void {
-    if (chunk.length !== this.#channelCount) {
-      throw new RangeError(`chunk has ${chunk.length} channels, expected ${this.#channelCount}`);
-    }
     const length = chunk[0].length;
-    if (chunk.some((c) => c.length !== length)) {
-      throw new RangeError("every channel of a chunk must have the same length");
-    }
     for (let from = 0; from < length; from += SLOT_ROWS) {
       const rows = Math.min(SLOT_ROWS, length - from);
       const slot = this.#freeSlot();
-      for (let c = 0; c < chunk.length; c++) {
-        slot.set(
-          rows === length ? chunk[c] : chunk[c].subarray(from, from + rows),
-          c * SLOT_ROWS,
-        );
-      }
+      this.group.forEach((c, i) => {
+        slot.set(rows === length ? chunk[c] : chunk[c].subarray(from, from + rows), i * SLOT_ROWS);
+      });
       this.#ring.publish(rows);
     }
   }
@@ -185,11 +246,74 @@ class WorkerSink implements SpectralSink {
   }
 }
 
+/** The first group here, every other in a worker; the estimates joined in channel order. */
+class SharedSink implements SpectralSink {
+  readonly #channelCount: number;
+  readonly #pairs: readonly (readonly [number, number])[];
+  readonly #group: readonly number[];
+  readonly #here: SpectralAccumulator;
+  readonly #workers: WorkerPart[];
+
+  constructor(channelCount: number, options: SpectralOptions, groups: readonly number[][]) {
+    this.#channelCount = channelCount;
+    this.#pairs = options.pairs ?? [];
+    const [here, ...others] = groups;
+    this.#group = here;
+    this.#here = new SpectralAccumulator(here.length, groupOptions(options, here));
+    this.#workers = others.map((group) => new WorkerPart(group, options));
+  }
+
+  push(chunk: readonly Float64Array[]): void {
+    if (chunk.length !== this.#channelCount) {
+      throw new RangeError(`chunk has ${chunk.length} channels, expected ${this.#channelCount}`);
+    }
+    const length = chunk[0].length;
+    if (chunk.some((c) => c.length !== length)) {
+      throw new RangeError("every channel of a chunk must have the same length");
+    }
+    // The workers' shares first, so that they transform while this thread does its own.
+    for (const worker of this.#workers) worker.push(chunk);
+    this.#here.push(pick(chunk, this.#group));
+  }
+
+  cancel(): void {
+    for (const worker of this.#workers) worker.cancel();
+  }
+
+  async finish(): Promise<SpectralEstimate> {
+    const replies = this.#workers.map((w) => w.finish());
+    for (const reply of replies) reply.catch(() => {}); // awaited below, after this thread's
+    let here: SpectralEstimate;
+    try {
+      here = this.#here.finish();
+    } catch (error) {
+      this.cancel();
+      throw error;
+    }
+    const parts = [{ group: this.#group, estimate: here }];
+    for (let w = 0; w < replies.length; w++) {
+      parts.push({ group: this.#workers[w].group, estimate: await replies[w] });
+    }
+    // Each channel's spectrum, and each pair's, from the group that made it.
+    const auto = new Array<Float64Array>(this.#channelCount);
+    const made = new Map<string, SpectralEstimate["cross"][number]>();
+    for (const { group, estimate } of parts) {
+      group.forEach((c, i) => auto[c] = estimate.auto[i]);
+      for (const s of estimate.cross) {
+        made.set(`${group[s.x]},${group[s.y]}`, { ...s, x: group[s.x], y: group[s.y] });
+      }
+    }
+    const cross = this.#pairs.map(([x, y]) => made.get(`${x},${y}`)!);
+    return { ...here, auto, cross };
+  }
+}
+
 /**
- * Reads the channels at `indices` of `stream` through the spectral core (in
- * a worker when {@linkcode spectralSink} chooses one for the stream's length)
- * and returns the estimate with the signal warnings of the read. A failed
- * read stops the worker before the error goes on.
+ * Reads the channels at `indices` of `stream` through the spectral core
+ * (its transforms shared among threads as {@linkcode spectralSink} chooses
+ * for the stream's length) and returns the estimate with the signal
+ * warnings of the read. A failed read stops the workers before the error
+ * goes on.
  *
  * @throws {QuiverError} as the reader and the core do.
  *

@@ -1,7 +1,7 @@
 /**
- * The worker side of {@linkcode spectralSink}: takes chunks from the shared
- * ring in order, feeds them to one {@linkcode SpectralAccumulator}, frees
- * each slot, and at the end posts the estimate (or the error) once.
+ * The worker side of {@linkcode spectralSink}: takes its group's chunks from
+ * the shared ring in order, feeds them to one {@linkcode SpectralAccumulator},
+ * frees each slot, and at the end posts the estimate (or the error) once.
  *
  * @module
  */
