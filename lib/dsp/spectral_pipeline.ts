@@ -8,8 +8,8 @@
  * are identical to the last bit wherever they were made.
  *
  * The reader calls `push` synchronously (a CSV chunk is handed on from inside
- * the parser), so a worker's share goes through a ring of a few slots in
- * shared memory: `push` copies the worker's channels into a free slot and
+ * the parser), so a worker's share goes through a ring of slots in shared
+ * memory (16 MiB): `push` copies the worker's channels into a free slot and
  * waits (Atomics.wait) only when every slot is still full, which bounds the
  * memory whatever the speed of either side, then transforms this thread's
  * channels while the worker transforms its own.
@@ -64,10 +64,18 @@ export interface SpectralSinkOptions {
  */
 export const SPLIT_MIN_SAMPLES = 2 ** 23;
 
-/** Slots in the ring between reader and worker. */
-const SLOTS = 4;
 /** Rows per slot (a longer chunk goes through in pieces). */
 const SLOT_ROWS = 65536;
+/**
+ * Shared memory of one worker's ring: 16 slots of two channels. The reader
+ * fills slots while the worker starts (tens of milliseconds, far more on a
+ * busy machine) and goes on with its own channels meanwhile; with too few
+ * slots it would wait for the start instead.
+ */
+const RING_BYTES = 16 * 2 ** 20;
+/** Slots in a ring of `channels` channels: as many as {@linkcode RING_BYTES} hold, at least 2. */
+const slotsFor = (channels: number) =>
+  Math.max(2, Math.floor(RING_BYTES / (channels * SLOT_ROWS * 8)));
 /** How long push waits for a slot before it calls the worker lost. */
 const STALL_MS = 300_000;
 
@@ -189,7 +197,7 @@ class WorkerPart {
 
   constructor(group: readonly number[], options: SpectralOptions) {
     this.group = group;
-    this.#ring = SharedRing.create(SLOTS, group.length * SLOT_ROWS);
+    this.#ring = SharedRing.create(slotsFor(group.length), group.length * SLOT_ROWS);
     this.#worker = new Worker(new URL("./spectral_worker.ts", import.meta.url).href, {
       type: "module",
     });
