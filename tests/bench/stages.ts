@@ -1,12 +1,12 @@
 /**
  * Where the time of `quiver spectrum` goes, stage by stage, each timed alone
- * in this process and in one thread: reading (the file's bytes, one pass),
+ * in this process: reading (the file's bytes, one pass),
  * parsing (opening and reading the recording through the one reader, its
  * signal checks included, less the reading), transforms (the spectral core
  * over the same chunks, held in memory) and writing (the PSD table and its
  * sidecar). Start-up is a process's own and is timed by the bench as the
- * floor (`quiver --version`, a tiny `spectrum`). The command overlaps
- * stages on two cores, so its time may be below their sum.
+ * floor (`quiver --version`, a tiny `spectrum`). The command runs them one
+ * after the other in one thread, so its time is about their sum.
  */
 import { closeSync, openSync, readSync } from "node:fs";
 import { SpectralAccumulator, type SpectralEstimate } from "../../lib/dsp/spectral_core.ts";
@@ -50,12 +50,12 @@ export async function stageTimes(
   const reading: number[] = [], read: number[] = [], transforms: number[] = [];
   const writing: number[] = [];
   let chunks: Float64Array[][] = [];
-  let stream = await openRecordingStream(path, { csvParsing: "here" });
+  let stream = await openRecordingStream(path);
   for (let i = 0; i < runs; i++) {
     reading.push(await seconds(() => readBytes(path)));
     read.push(
       await seconds(async () => {
-        stream = await openRecordingStream(path, { csvParsing: "here" });
+        stream = await openRecordingStream(path);
         await readChecked(stream, stream.channels.map((_, c) => c), () => {});
       }),
     );
