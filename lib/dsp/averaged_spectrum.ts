@@ -10,7 +10,7 @@ import { channelIndices } from "../io/recording.ts";
 import type { Table, TableColumn } from "../io/table.ts";
 import { asStream, type RecordingSource } from "../io/recording_stream.ts";
 import { resolveBlock, type SpectralEstimate, type SpectralOptions } from "./spectral_core.ts";
-import { spectralEstimateOf, type SpectralSinkOptions } from "./spectral_pipeline.ts";
+import { spectralEstimateOf } from "./spectral_pipeline.ts";
 import { autoSpectrum, type SpectrumKind, spectrumUnit } from "./spectrum_kinds.ts";
 import { segmentMetadata } from "./segment_metadata.ts";
 import type { SpectrumMetadata } from "./spectrum_metadata.ts";
@@ -25,11 +25,6 @@ export interface AveragedSpectrumOptions extends Omit<SpectralOptions, "rate" | 
   resolution?: number;
   /** Spectrum kind. Default `"psd"`. */
   kind?: SpectrumKind;
-  /**
-   * Where the spectral core runs (spectral_pipeline.ts): `"auto"` moves it to a worker
-   * for long records, so that reading and transforming overlap. Default `"auto"`.
-   */
-  thread?: SpectralSinkOptions["thread"];
 }
 
 /**
@@ -62,7 +57,6 @@ export async function averagedSpectrum(
     stream,
     indices,
     spectralOptionsFor(stream.rate, options),
-    { thread: options.thread },
   );
   return spectrumTable({
     estimate,

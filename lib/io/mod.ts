@@ -21,7 +21,6 @@ export {
 } from "./recording.ts";
 export { parseCsvRecording } from "./csv_reader.ts";
 export type { CsvReadOptions } from "./csv_recording.ts";
-export type { CsvParsing } from "./csv_parallel.ts";
 export { type NumericCsv, parseNumericCsv } from "./csv_table.ts";
 export { encodeWav, parseWav, type WavEncoding } from "./wav.ts";
 export { readRecordingFile, type ReadRecordingOptions } from "./read_recording.ts";

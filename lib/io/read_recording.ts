@@ -6,7 +6,6 @@
  *
  * @module
  */
-import type { CsvParsing } from "./csv_parallel.ts";
 import type { CsvReadOptions } from "./csv_recording.ts";
 import type { Recording } from "./recording.ts";
 import { collectRecording, openRecordingStream } from "./recording_stream.ts";
@@ -19,14 +18,6 @@ export interface ReadRecordingOptions extends Omit<CsvReadOptions, "file"> {
   start?: number;
   /** End of the stretch to read (exclusive), s. Default: its end. */
   end?: number;
-  /**
-   * Where a CSV file's numbers are parsed: `"auto"` in workers for a large
-   * file on two or more cores (csv_parallel.ts), `"workers"` whenever the
-   * file allows it (no quoted cells, a decimal mark known from the options,
-   * the delimiter or the first data row), `"here"` in this thread. The
-   * values, chunks and errors are the same either way. Default `"auto"`.
-   */
-  csvParsing?: CsvParsing;
 }
 
 /**

@@ -18,8 +18,7 @@ import { open } from "node:fs/promises";
 import { QuiverError } from "../errors.ts";
 import { formatNumber } from "../format_number.ts";
 import { type ChannelTransform, parseChannelSetup, setupTransforms } from "./channel_setup.ts";
-import { changedWhileRead, CsvRowParser, CsvScanner, firstDecimalMark } from "./csv_engine.ts";
-import { csvParseWorkers, readCsvInWorkers } from "./csv_parallel.ts";
+import { changedWhileRead, CsvRowParser, CsvScanner } from "./csv_engine.ts";
 import { csvRecordingLayout, TimeStepCheck } from "./csv_recording.ts";
 import type { ReadRecordingOptions } from "./read_recording.ts";
 import type { ChannelRole, ConverterScale, Recording } from "./recording.ts";
@@ -108,7 +107,7 @@ async function openCsvStream(
   options: ReadRecordingOptions,
 ): Promise<RecordingStream> {
   const csvOptions = { ...options, file: path };
-  const scanner = new CsvScanner({ ...csvOptions, checkpointEvery: CHUNK_ROWS });
+  const scanner = new CsvScanner(csvOptions);
   let bytes = 0;
   await eachChunk(path, (chunk) => {
     bytes += chunk.length;
@@ -127,28 +126,6 @@ async function openCsvStream(
       const factors = selected.map((s) => transforms[s].factor);
       const columns = selected.map((s) => channelColumns[s]);
       const check = timeColumn >= 0 ? new TimeStepCheck(timeColumn, csvOptions) : undefined;
-      const decimal = firstDecimalMark(scan, csvOptions.decimal);
-      const workers = csvParseWorkers(
-        scan,
-        { bytes, channels: columns.length, timeColumn, mark: decimal },
-        options.csvParsing ?? "auto",
-      );
-      if (workers > 0) {
-        await readCsvInWorkers({
-          path,
-          file: path,
-          size: bytes,
-          scan,
-          width: header.length,
-          columns,
-          factors,
-          timeColumn,
-          decimal: decimal!,
-          workers,
-          ...(check !== undefined ? { check } : {}),
-        }, onChunk);
-        return;
-      }
       // One array per channel, reused for every chunk.
       const chunkRows = Math.min(CHUNK_ROWS, length);
       const buffers = selected.map(() => new Float64Array(chunkRows));

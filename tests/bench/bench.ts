@@ -3,62 +3,74 @@
  * with the peer a practitioner would write instead (tests/bench/peer_welch.py:
  * pandas.read_csv + scipy.signal.welch + DataFrame.to_csv, run with Debian's
  * /usr/bin/python3). Ours and the peer run alternately on the same generated
- * files; medians are reported. Benchmarks, not tests: nothing here asserts.
+ * files; medians are reported. It says which machine it ran on and how
+ * loaded it was (other work shares the cores), prints the start-up floor
+ * and, for each headline row, where the time goes (stages.ts). Benchmarks,
+ * not tests: nothing here asserts. `deno task bench --headline` runs the
+ * headline rows only.
  *
  * Needs /usr/bin/time (GNU time) for peak RSS and, for the peer figures,
  * `apt-get install -y python3-pandas python3-scipy`.
  */
 import { maxOf } from "../../lib/extent.ts";
 import { spawn, spawnSync } from "node:child_process";
-import { existsSync, statSync } from "node:fs";
+import { statSync } from "node:fs";
 import { mkdir, writeFile } from "node:fs/promises";
 import os from "node:os";
 import process from "node:process";
 import { fileURLToPath } from "node:url";
 import { spectralEstimate } from "../../lib/dsp/spectral_core.ts";
 import { openRecordingStream } from "../../lib/io/recording_stream.ts";
-import { encodeWav } from "../../lib/io/wav.ts";
-import { uniformGenerator } from "../helpers/random.ts";
+import { BLOCK, DIR, median, seeded, writeCsv, writeRigWav } from "./bench_files.ts";
+import { stageTimes } from "./stages.ts";
 import { timed } from "./timed.ts";
 
-const DIR = "out/bench";
 const MAIN = fileURLToPath(new URL("../../cli/main.ts", import.meta.url));
 const PEER = fileURLToPath(new URL("./peer_welch.py", import.meta.url));
 const RUNS = 7; // CSV → PSD runs of each side, alternating
-const BLOCK = 8192; // 4096 lines
-const median = (v: number[]) => v.slice().sort((a, b) => a - b)[Math.floor(v.length / 2)];
-
-/** Uniform noise on [−0.5, 0.5) from a seed (tests/helpers/random.ts). */
-function seeded(seed: number): () => number {
-  const uniform = uniformGenerator(seed);
-  return () => uniform() - 0.5;
-}
-
-async function writeCsv(path: string, samples: number): Promise<void> {
-  if (existsSync(path)) return;
-  const r = seeded(samples);
-  const rows: string[] = ["time_s,wheel_hub_z [m/s^2],seat_rail_z [m/s^2]"];
-  for (let i = 0; i < samples; i++) {
-    rows.push(`${i / 51200},${r().toPrecision(9)},${r().toPrecision(9)}`);
-  }
-  await writeFile(path, rows.join("\n") + "\n");
-}
 
 const deno = process.execPath;
 const quiver = (args: string[]) => timed(deno, ["run", "-A", MAIN, ...args]);
 const peerAvailable = spawnSync("/usr/bin/python3", ["-c", "import pandas, scipy"]).status === 0;
+const load = () => os.loadavg().map((l) => l.toFixed(2)).join(", ");
 
 await mkdir(DIR, { recursive: true });
 console.log(
   `machine: ${os.cpus().length} × ${os.cpus()[0]?.model ?? "cpu"}, ${
     (os.totalmem() / 2 ** 30).toFixed(0)
-  } GiB; deno ${Deno.version.deno}`,
+  } GiB; deno ${Deno.version.deno}; ${new Date().toISOString().slice(0, 10)}`,
 );
+console.log(`load average (1, 5, 15 min) at the start: ${load()}`);
 console.log(
   peerAvailable
     ? "peer: /usr/bin/python3 with pandas and scipy"
     : "peer: not installed (apt-get install -y python3-pandas python3-scipy); peer figures skipped",
 );
+
+// 0. The start-up floor: a process that loads the command line and prints, and a spectrum of a
+// record too short to take any time.
+const tiny = `${DIR}/tiny.csv`;
+await writeCsv(tiny, 1024);
+const floor = (args: string[]) => median([0, 1, 2, 3, 4].map(() => quiver(args).seconds));
+const versionFloor = floor(["--version"]);
+const spectrumFloor = floor(["spectrum", tiny, "--block", "256", "--out", `${DIR}/tiny_psd.csv`]);
+console.log(
+  `\nstart-up floor (median of 5): quiver --version ${versionFloor.toFixed(2)} s, ` +
+    `spectrum of 1024 samples ${spectrumFloor.toFixed(2)} s`,
+);
+
+/** One line of where a command's time goes (stages.ts), beside the command's own time. */
+async function printStages(path: string, command: number): Promise<void> {
+  const t = await stageTimes(path, BLOCK, `${DIR}/stages_psd.csv`);
+  const f = (s: number) => `${s.toFixed(2)} s`;
+  console.log(
+    `  stages: start-up ${f(spectrumFloor)}, reading ${f(t.reading)}, parsing ${
+      f(t.parsing)
+    }, transforms ${f(t.transforms)}, writing ${f(t.writing)}; sum ${
+      f(spectrumFloor + t.reading + t.parsing + t.transforms + t.writing)
+    }, command ${f(command)}`,
+  );
+}
 
 // 1. End to end: CSV → averaged PSD → CSV, 2 channels × 2^21 samples.
 const csv = `${DIR}/two_channels_2e21.csv`;
@@ -109,6 +121,7 @@ if (peerAvailable) {
   );
   console.log(`  memory ratio ${(ourRss / peerRss).toFixed(2)} (target ≤ 1.0)`);
 }
+await printStages(csv, ourTime);
 
 // 2. The spectral core alone, in memory.
 const n = 2 ** 21;
@@ -152,39 +165,7 @@ if (peerAvailable) {
 
 // 4. WAV → PSD against scipy.io.wavfile + welch, and memory against record length for every
 // recording command: a 4-channel WAV (TTL tacho of a run-up, hammer hits, a response, a
-// calibrator tone) of 2^20
-// and of 2^24 samples.
-async function writeRigWav(path: string, samples: number): Promise<void> {
-  if (existsSync(path)) return;
-  const rate = 51200;
-  const rr = seeded(samples + 1);
-  const tacho = new Float32Array(samples), force = new Float32Array(samples);
-  const response = new Float32Array(samples), calibrator = new Float32Array(samples);
-  const seconds = samples / rate;
-  let angle = 0;
-  for (let i = 0; i < samples; i++) {
-    const t = i / rate;
-    angle += (1000 + (4000 * t) / seconds) / 60 / rate; // a linear run-up 1000 → 5000 rpm
-    tacho[i] = angle * 2 - Math.floor(angle * 2) < 0.5 ? 0.5 : 0; // 2 pulses per revolution
-    const sinceHit = i % (rate / 2); // a hit every 0.5 s, 2 ms half-sine
-    force[i] = sinceHit < 102 ? 0.8 * Math.sin((Math.PI * sinceHit) / 102) : 0;
-    response[i] = 0.3 * Math.sin(2 * Math.PI * 2 * angle) + 0.05 * rr();
-    calibrator[i] = 0.05 * Math.sin(2 * Math.PI * 1000 * t); // a 1 kHz calibrator tone, volts
-  }
-  const toF64 = (x: Float32Array) => Float64Array.from(x);
-  await writeFile(
-    path,
-    encodeWav({
-      rate,
-      startTime: 0,
-      channels: [tacho, force, response, calibrator].map((d, c) => ({
-        name: `ch${c + 1}`,
-        unit: "FS",
-        data: toF64(d),
-      })),
-    }, "float32"),
-  );
-}
+// calibrator tone) of 2^20 and of 2^24 samples.
 const setup = `${DIR}/rig_setup.json`;
 await writeFile(
   setup,
@@ -237,90 +218,105 @@ console.log(
   `\nWAV → PSD, 4 × 2^24 samples (${(statSync(rigs[1]).size / 1e6).toFixed(0)} MB float32):`,
 );
 {
-  const wavOurs = [0, 1, 2].map(() => quiver(commands.spectrum(rigs[1])).seconds);
+  // Alternating, as for CSV: the median of the pairs' ratios is the figure.
+  const wavOurs: number[] = [], wavPeer: number[] = [];
+  for (let i = 0; i < 3; i++) {
+    wavOurs.push(quiver(commands.spectrum(rigs[1])).seconds);
+    if (peerAvailable) {
+      wavPeer.push(
+        timed("/usr/bin/python3", [PEER, "--wav", rigs[1], `${DIR}/peer_wav.csv`, String(BLOCK)])
+          .seconds,
+      );
+    }
+  }
   const ourWav = median(wavOurs);
   console.log(`  quiver: ${ourWav.toFixed(2)} s median`);
   if (peerAvailable) {
-    const peerWav = median(
-      [0, 1, 2].map(() =>
-        timed("/usr/bin/python3", [PEER, "--wav", rigs[1], `${DIR}/peer_wav.csv`, String(BLOCK)])
-          .seconds
-      ),
-    );
+    const pairs = wavOurs.map((o, i) => o / wavPeer[i]);
     console.log(
-      `  peer:   ${peerWav.toFixed(2)} s median; ratio ${
-        (ourWav / peerWav).toFixed(2)
-      } (target ≤ 0.25)`,
+      `  peer:   ${median(wavPeer).toFixed(2)} s median; time ratio quiver/peer: median of 3 ` +
+        `paired runs ${median(pairs).toFixed(2)} (target ≤ 0.25; pairs ${
+          pairs.map((r) => r.toFixed(2)).join(", ")
+        })`,
     );
   }
+  await printStages(rigs[1], ourWav);
 }
-console.log("\nPeak RSS against record length (4-channel WAV, 2^20 and 2^24 samples):");
-for (const [name, args] of Object.entries(commands)) {
-  const rss = rigs.map((w) => maxOf([0, 1].map(() => quiver(args(w)).rssMb)));
+// `--headline`: the headline rows only (start-up floor, CSV and WAV → PSD with their stages, the
+// core, ingest), without the memory table and the campaign.
+if (!Deno.args.includes("--headline")) await memoryAndCampaign();
+
+async function memoryAndCampaign(): Promise<void> {
+  console.log("\nPeak RSS against record length (4-channel WAV, 2^20 and 2^24 samples):");
+  for (const [name, args] of Object.entries(commands)) {
+    const rss = rigs.map((w) => maxOf([0, 1].map(() => quiver(args(w)).rssMb)));
+    console.log(
+      `  ${name.padEnd(15)} ${rss[0].toFixed(0).padStart(5)} MB → ${
+        rss[1].toFixed(0).padStart(5)
+      } MB; ratio ${(rss[1] / rss[0]).toFixed(2)} (target ≤ 1.5)`,
+    );
+  }
+
+  // 5. A campaign of 8 recordings: --jobs 1 against --jobs 2.
+  const campaign = {
+    quiver_plan: 1,
+    title: "bench campaign",
+    recordings: Object.fromEntries(
+      Array.from({ length: 8 }, (_, i) => [`r${i}`, { file: "two_channels_2e21.csv" }]),
+    ),
+    analyses: Array.from(
+      { length: 8 },
+      (_, i) => ({
+        id: `psd${i}`,
+        command: "spectrum",
+        recording: `r${i}`,
+        options: { block: BLOCK },
+      }),
+    ),
+  };
+  await writeFile(`${DIR}/campaign.json`, JSON.stringify(campaign));
+  const campaignTimes: Record<string, number[]> = { 1: [], 2: [] };
+  for (let i = 0; i < 3; i++) {
+    for (const jobs of [1, 2]) {
+      campaignTimes[jobs].push(
+        quiver([
+          "run",
+          `${DIR}/campaign.json`,
+          "--out-dir",
+          `${DIR}/campaign_${jobs}`,
+          "--jobs",
+          String(jobs),
+        ]).seconds,
+      );
+    }
+  }
+  const c1 = median(campaignTimes[1]), c2 = median(campaignTimes[2]);
+  // What this machine gives two independent processes: two spectra one after the other,
+  // against the same two side by side.
+  const pair = ["spectrum", csv, "--block", String(BLOCK), "--out"];
+  const sequential: number[] = [], parallel: number[] = [];
+  for (let i = 0; i < 3; i++) {
+    const t0 = performance.now();
+    quiver([...pair, `${DIR}/p1.csv`]);
+    quiver([...pair, `${DIR}/p2.csv`]);
+    sequential.push((performance.now() - t0) / 1000);
+    const t1 = performance.now();
+    await Promise.all([`${DIR}/p1.csv`, `${DIR}/p2.csv`].map((out) =>
+      new Promise<void>((done) => {
+        const child = spawn(deno, ["run", "-A", MAIN, ...pair, out]);
+        child.on("exit", () => done());
+      })
+    ));
+    parallel.push((performance.now() - t1) / 1000);
+  }
+  const independent = median(sequential) / median(parallel);
   console.log(
-    `  ${name.padEnd(15)} ${rss[0].toFixed(0).padStart(5)} MB → ${
-      rss[1].toFixed(0).padStart(5)
-    } MB; ratio ${(rss[1] / rss[0]).toFixed(2)} (target ≤ 1.5)`,
+    `\nCampaign of 8 recordings: --jobs 1 ${c1.toFixed(2)} s, --jobs 2 ${
+      c2.toFixed(2)
+    } s; speed-up ${(c1 / c2).toFixed(2)}; two independent processes ${
+      independent.toFixed(2)
+    }; ratio ${(c1 / c2 / independent).toFixed(2)} (target ≥ 0.9)`,
   );
 }
 
-// 5. A campaign of 8 recordings: --jobs 1 against --jobs 2.
-const campaign = {
-  quiver_plan: 1,
-  title: "bench campaign",
-  recordings: Object.fromEntries(
-    Array.from({ length: 8 }, (_, i) => [`r${i}`, { file: "two_channels_2e21.csv" }]),
-  ),
-  analyses: Array.from(
-    { length: 8 },
-    (_, i) => ({
-      id: `psd${i}`,
-      command: "spectrum",
-      recording: `r${i}`,
-      options: { block: BLOCK },
-    }),
-  ),
-};
-await writeFile(`${DIR}/campaign.json`, JSON.stringify(campaign));
-const campaignTimes: Record<string, number[]> = { 1: [], 2: [] };
-for (let i = 0; i < 3; i++) {
-  for (const jobs of [1, 2]) {
-    campaignTimes[jobs].push(
-      quiver([
-        "run",
-        `${DIR}/campaign.json`,
-        "--out-dir",
-        `${DIR}/campaign_${jobs}`,
-        "--jobs",
-        String(jobs),
-      ]).seconds,
-    );
-  }
-}
-const c1 = median(campaignTimes[1]), c2 = median(campaignTimes[2]);
-// What this machine gives two independent processes: two spectra one after the other,
-// against the same two side by side.
-const pair = ["spectrum", csv, "--block", String(BLOCK), "--out"];
-const sequential: number[] = [], parallel: number[] = [];
-for (let i = 0; i < 3; i++) {
-  const t0 = performance.now();
-  quiver([...pair, `${DIR}/p1.csv`]);
-  quiver([...pair, `${DIR}/p2.csv`]);
-  sequential.push((performance.now() - t0) / 1000);
-  const t1 = performance.now();
-  await Promise.all([`${DIR}/p1.csv`, `${DIR}/p2.csv`].map((out) =>
-    new Promise<void>((done) => {
-      const child = spawn(deno, ["run", "-A", MAIN, ...pair, out]);
-      child.on("exit", () => done());
-    })
-  ));
-  parallel.push((performance.now() - t1) / 1000);
-}
-const independent = median(sequential) / median(parallel);
-console.log(
-  `\nCampaign of 8 recordings: --jobs 1 ${c1.toFixed(2)} s, --jobs 2 ${c2.toFixed(2)} s; speed-up ${
-    (c1 / c2).toFixed(2)
-  }; two independent processes ${independent.toFixed(2)}; ratio ${
-    (c1 / c2 / independent).toFixed(2)
-  } (target ≥ 0.9)`,
-);
+console.log(`\nload average (1, 5, 15 min) at the end: ${load()}`);
