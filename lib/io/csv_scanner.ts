@@ -343,10 +343,7 @@ export class NotUtf8Error extends QuiverError {
   constructor(file?: string) {
     const advice =
       "save a CSV as UTF-8: a header in Latin-1 or Windows-1252, e.g. with µ or °, is not UTF-8";
-    super(
-      `neither a WAV file nor UTF-8 text; quiver reads CSV and WAV recordings (${advice})`,
-      { file },
-    );
+    super(`not UTF-8 text (${advice})`, { file });
     this.advice = advice;
   }
 }
@@ -357,7 +354,7 @@ export class NotUtf8Error extends QuiverError {
  * @example
  * ```ts
  * import { notUtf8 } from "./csv_scanner.ts";
- * if (!notUtf8("r.csv").message.startsWith("r.csv: neither a WAV file nor UTF-8 text")) throw new Error();
+ * if (!notUtf8("r.csv").message.startsWith("r.csv: not UTF-8 text")) throw new Error();
  * ```
  */
 export function notUtf8(file?: string): NotUtf8Error {

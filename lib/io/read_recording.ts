@@ -1,36 +1,20 @@
 /**
  * A recording file read whole into memory, through the one reading path
- * (recording_stream.ts): opened (CSV or WAV, told by its first bytes, with
+ * (recording_stream.ts): opened (its format told by its first bytes, with
  * the set-up applied), then read chunk by chunk into arrays sized from its
  * header.
  *
  * @module
  */
-import type { CsvParsing } from "./csv_parallel.ts";
-import type { CsvReadOptions } from "./csv_recording.ts";
 import type { Recording } from "./recording.ts";
-import { collectRecording, openRecordingStream } from "./recording_stream.ts";
+import type { ReadRecordingOptions } from "./formats/format.ts";
+import { collectRecording } from "./recording_source.ts";
+import { openRecordingStream } from "./recording_stream.ts";
 
-/** Options of {@linkcode readRecordingFile}. */
-export interface ReadRecordingOptions extends Omit<CsvReadOptions, "file"> {
-  /** Path of a channel set-up JSON file. Default: none. */
-  setup?: string;
-  /** Start of the stretch to read, s on the recording's own time axis. Default: its start. */
-  start?: number;
-  /** End of the stretch to read (exclusive), s. Default: its end. */
-  end?: number;
-  /**
-   * Where a CSV file's numbers are parsed: `"auto"` in workers for a large
-   * file on two or more cores (csv_parallel.ts), `"workers"` whenever the
-   * file allows it (no quoted cells, a decimal mark known from the options,
-   * the delimiter or the first data row), `"here"` in this thread. The
-   * values, chunks and errors are the same either way. Default `"auto"`.
-   */
-  csvParsing?: CsvParsing;
-}
+export type { ReadRecordingOptions } from "./formats/format.ts";
 
 /**
- * Reads a CSV or WAV recording with an optional channel set-up.
+ * Reads a recording (CSV, WAV: formats/mod.ts) with an optional channel set-up.
  *
  * @throws {QuiverError} for unreadable files and bad content.
  *
