@@ -7,8 +7,8 @@
  *   whether any cell is quoted, and refuses what is not CSV text (NUL bytes,
  *   bytes that are not UTF-8, unbalanced quotes).
  * - Pass 2 ({@linkcode CsvRowParser}, csv_row_parser.ts) splits rows into
- *   cells and turns each cell into a number straight from its bytes
- *   (csv_number_bytes.ts), with no string per cell.
+ *   cells and turns each cell into a number straight from its bytes, with no
+ *   string per cell.
  *
  * A whole file in memory and a file read from disk go through the same two
  * classes (push the bytes, then end), so the rules exist once: delimiter and
@@ -42,7 +42,6 @@ export {
   parseHeaderCell,
   parseHeaderRow,
 } from "./csv_cells.ts";
-export { parseCellText, parseNumberBytes } from "./csv_number_bytes.ts";
 export {
   type CsvCheckpoints,
   type CsvScan,
@@ -54,5 +53,7 @@ export {
   changedWhileRead,
   CsvRowParser,
   firstDecimalMark,
+  parseCellText,
+  parseNumberBytes,
   type RowSink,
 } from "./csv_row_parser.ts";

@@ -1,5 +1,5 @@
 import { describe, expect, test } from "vitest";
-import { parseNumberBytes } from "../../lib/io/csv_number_bytes.ts";
+import { parseNumberBytes } from "../../lib/io/csv_engine.ts";
 import { uniformGenerator } from "../helpers/random.ts";
 
 const DOT = 46, COMMA = 44;
