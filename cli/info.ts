@@ -8,27 +8,17 @@
  * @module
  */
 import process from "node:process";
-import { open, readFile } from "node:fs/promises";
 import { resolve } from "node:path";
 import { z } from "npm:zod@4.6.7";
 import { formatNumber } from "../lib/format_number.ts";
 import {
   type ChannelSetup,
   type ChannelTransform,
-  parseChannelSetup,
+  readChannelSetup,
   setupTransforms,
 } from "../lib/io/channel_setup.ts";
-import {
-  type CsvDelimiter,
-  CsvScanner,
-  firstDecimalMark,
-  markOfRow,
-  parseHeaderRow,
-} from "../lib/io/csv_engine.ts";
-import { csvRecordingLayout, findTimeColumn } from "../lib/io/csv_recording.ts";
-import { assertRegularFile } from "../lib/io/file_kinds.ts";
-import { openRecordingStream, unreadable } from "../lib/io/recording_stream.ts";
-import { looksLikeWav } from "../lib/io/wav.ts";
+import { type CsvDelimiter, DELIMITER_NAMES } from "../lib/io/csv_dialect.ts";
+import { type DescribedChannel, sniffRecording } from "../lib/io/formats/mod.ts";
 import type { DecimalMark } from "../lib/io/numbers.ts";
 import { inFileAsync, parseCommandArgs, usageError } from "./args.ts";
 import { commandHelp, option, shapeOf, specOf } from "./option_table.ts";
@@ -87,7 +77,8 @@ interface ChannelInfo {
 /** What `quiver info` finds; the JSON form as it is printed. */
 interface RecordingInfo {
   readonly file: string;
-  readonly format: "csv" | "wav";
+  /** The format's name (formats/mod.ts): "csv", "wav". */
+  readonly format: string;
   readonly delimiter: { readonly char: CsvDelimiter; readonly from: string } | null;
   readonly decimal_mark: { readonly char: DecimalMark; readonly from: string } | null;
   readonly time_column:
@@ -102,50 +93,11 @@ interface RecordingInfo {
   readonly setup: string | null;
 }
 
-const DELIMITER_NAMES: Record<CsvDelimiter, string> = {
-  ",": "comma",
-  ";": "semicolon",
-  "\t": "tab",
-};
 const MARK_NAMES: Record<DecimalMark, string> = { ".": "point", ",": "comma" };
 
-/** Reads and validates the set-up file, as the reader does. */
-async function loadSetup(path: string | undefined): Promise<ChannelSetup | undefined> {
-  if (path === undefined) return undefined;
-  assertRegularFile(path, "channel set-up");
-  let text: string;
-  try {
-    text = await readFile(path, "utf8");
-  } catch (error) {
-    throw unreadable(path, error);
-  }
-  return parseChannelSetup(text, path);
-}
-
-/** Pass 1 of the CSV reader over the whole file. */
-async function scanCsv(path: string, delimiter: CsvDelimiter | "auto") {
-  const scanner = new CsvScanner({ file: path, delimiter });
-  const handle = await open(path, "r");
-  try {
-    const buffer = new Uint8Array(1 << 20);
-    for (;;) {
-      const { bytesRead } = await handle.read(buffer, 0, buffer.length, null);
-      if (bytesRead === 0) break;
-      scanner.push(buffer.subarray(0, bytesRead));
-    }
-  } finally {
-    await handle.close();
-  }
-  return scanner.end();
-}
-
-function channelInfo(
-  column: number,
-  raw: { name: string; unit: string },
-  t: ChannelTransform,
-): ChannelInfo {
+function channelInfo(raw: DescribedChannel, t: ChannelTransform): ChannelInfo {
   return {
-    column,
+    column: raw.position,
     name: raw.name,
     unit: raw.unit,
     read_as: {
@@ -157,121 +109,39 @@ function channelInfo(
   };
 }
 
-async function csvInfo(
-  path: string,
-  read: ReturnType<typeof toReadOptions>,
-  setup: ChannelSetup | undefined,
-  setupPath: string | undefined,
-): Promise<Omit<RecordingInfo, "file" | "setup">> {
-  const scan = await scanCsv(path, read.delimiter ?? "auto");
-  const header = parseHeaderRow(scan.headerText, scan.delimiter, scan.headerLine, path);
-  const timeColumn = findTimeColumn(header, scan.headerLine, { ...read, file: path });
-  let rate: number | null = null;
-  let rateFrom: string | null = null;
-  let startTime: number | null = null;
-  if (timeColumn >= 0 || read.rate !== undefined) {
-    const layout = csvRecordingLayout(scan, { ...read, file: path });
-    rate = layout.rate;
-    rateFrom = read.rate !== undefined
-      ? (timeColumn >= 0 ? "--rate, agreeing with the time column" : "--rate")
-      : "the time column";
-    startTime = layout.startTime;
-  }
-  const columns = header.map((_, i) => i).filter((i) => i !== timeColumn);
-  const raw = columns.map((i) => header[i]);
-  const transforms = setupTransforms(raw, setup ?? { channels: {} }, setupPath);
-  const delimiterFrom = read.delimiter !== undefined && read.delimiter !== "auto"
-    ? "given with --delimiter"
-    : scan.delimiter === ","
-    ? "the header holds no semicolon or tab"
-    : `the header holds a ${DELIMITER_NAMES[scan.delimiter]}`;
-  const given = read.decimal !== undefined && read.decimal !== "auto";
-  const first = firstDecimalMark(scan, read.decimal);
-  const last = first === undefined ? markOfRow(scan.last?.text ?? "", scan.delimiter) : undefined;
-  const mark = first !== undefined
-    ? {
-      char: first,
-      from: given
-        ? "given with --decimal"
-        : scan.delimiter === ","
-        ? "implied by the comma delimiter"
-        : "found in the first data row",
-    }
-    : last !== undefined
-    ? { char: last, from: "found in the last data row; the first shows none" }
-    : null;
-  return {
-    format: "csv",
-    delimiter: { char: scan.delimiter, from: delimiterFrom },
-    decimal_mark: mark,
-    time_column: timeColumn >= 0
-      ? { name: header[timeColumn].name, unit: header[timeColumn].unit, column: timeColumn + 1 }
-      : null,
-    rate_hz: rate,
-    rate_from: rateFrom,
-    start_time_s: startTime,
-    samples: scan.rows,
-    duration_s: rate === null ? null : scan.rows / rate,
-    channels: raw.map((cell, j) => channelInfo(columns[j] + 1, cell, transforms[j])),
-  };
-}
-
-async function wavInfo(
-  path: string,
-  read: ReturnType<typeof toReadOptions>,
-  setup: ChannelSetup | undefined,
-  setupPath: string | undefined,
-): Promise<Omit<RecordingInfo, "file" | "setup">> {
-  // The header only: the stream is opened, never read. Without a set-up the
-  // channels are as the file holds them (fractions of full scale).
-  const { sizing: _sizing, setup: _setup, ...plain } = read;
-  const stream = await openRecordingStream(path, plain);
-  const raw = stream.channels.map((c) => ({ name: c.name, unit: c.unit }));
-  const transforms = setupTransforms(raw, setup ?? { channels: {} }, setupPath);
-  return {
-    format: "wav",
-    delimiter: null,
-    decimal_mark: null,
-    time_column: null,
-    rate_hz: stream.rate,
-    rate_from: "the WAV header",
-    start_time_s: stream.startTime,
-    samples: stream.length,
-    duration_s: stream.length / stream.rate,
-    channels: raw.map((c, i) => channelInfo(i + 1, c, transforms[i])),
-  };
-}
-
 /**
- * What `quiver info` finds in a recording (CSV or WAV, told by its first
- * bytes), without reading its samples.
+ * What `quiver info` finds in a recording (its format told by its first
+ * bytes: formats/mod.ts), without reading its samples; with what a
+ * channel's place is called in the text.
  */
 async function recordingInfo(
   input: string,
   read: ReturnType<typeof toReadOptions>,
-): Promise<RecordingInfo> {
-  assertRegularFile(input, "recording");
-  const magic = new Uint8Array(12);
-  try {
-    const h = await open(input, "r");
-    try {
-      await h.read(magic, 0, 12, 0);
-    } finally {
-      await h.close();
-    }
-  } catch (error) {
-    throw unreadable(input, error);
-  }
-  const setup = await loadSetup(read.setup);
+): Promise<{ info: RecordingInfo; where: string }> {
+  const format = await sniffRecording(input);
   const setupPath = read.setup;
-  const found = looksLikeWav(magic)
-    ? await wavInfo(input, read, setup, setupPath)
-    : await csvInfo(input, read, setup, setupPath);
-  return {
+  const setup: ChannelSetup | undefined = setupPath === undefined
+    ? undefined
+    : await readChannelSetup(setupPath);
+  // The set-up is applied here, to the channels as the file holds them.
+  const { sizing: _sizing, setup: _setup, ...plain } = read;
+  const found = await format.describe(input, plain);
+  const transforms = setupTransforms(found.channels, setup ?? { channels: {} }, setupPath);
+  const info: RecordingInfo = {
     file: resolve(input),
-    ...found,
+    format: format.name,
+    delimiter: found.delimiter,
+    decimal_mark: found.decimalMark,
+    time_column: found.timeColumn,
+    rate_hz: found.rate,
+    rate_from: found.rateFrom,
+    start_time_s: found.startTime,
+    samples: found.samples,
+    duration_s: found.rate === null ? null : found.samples / found.rate,
+    channels: found.channels.map((c, i) => channelInfo(c, transforms[i])),
     setup: setupPath === undefined ? null : resolve(setupPath),
   };
+  return { info, where: found.positionName };
 }
 
 const quote = (text: string) => `"${printable(text)}"`;
@@ -279,7 +149,7 @@ const withUnit = (name: string, unit: string) =>
   unit === "" ? printable(name) : `${printable(name)} [${printable(unit)}]`;
 
 /** The human-readable form. */
-function infoText(info: RecordingInfo): string {
+function infoText(info: RecordingInfo, where: string): string {
   const lines = [`file: ${printable(info.file)}`, `format: ${info.format.toUpperCase()}`];
   if (info.delimiter !== null) {
     lines.push(`delimiter: ${DELIMITER_NAMES[info.delimiter.char]} (${info.delimiter.from})`);
@@ -311,7 +181,6 @@ function infoText(info: RecordingInfo): string {
       : `length: ${info.samples} samples, ${formatNumber(info.duration_s, 10)} s`,
   );
   lines.push(`channels: ${info.channels.length}`);
-  const where = info.format === "csv" ? "column" : "channel";
   for (const c of info.channels) {
     const r = c.read_as;
     const changed = r.name !== c.name || r.unit !== c.unit || r.factor !== 1 ||
@@ -344,8 +213,11 @@ export async function run(argv: readonly string[]): Promise<void> {
   const { positionals, values } = parseCommandArgs(argv, options, schema);
   if (positionals.length !== 1) usageError(`info takes one recording, got ${positionals.length}`);
   const [input] = positionals;
-  const info = await inFileAsync(input, () => recordingInfo(input, toReadOptions(values)));
+  const { info, where } = await inFileAsync(
+    input,
+    () => recordingInfo(input, toReadOptions(values)),
+  );
   process.stdout.write(
-    values.json === true ? `${JSON.stringify(info, null, 2)}\n` : infoText(info),
+    values.json === true ? `${JSON.stringify(info, null, 2)}\n` : infoText(info, where),
   );
 }

@@ -40,6 +40,7 @@
  *
  * @module
  */
+import { readFile } from "node:fs/promises";
 import { z } from "npm:zod@4.6.7";
 import { QuiverError } from "../errors.ts";
 import {
@@ -53,6 +54,7 @@ import { FULL_SCALE_UNIT } from "./wav.ts";
 import { baseUnit, sameQuantity } from "./units.ts";
 import { checkName } from "./names.ts";
 import { didYouMean } from "../nearest_name.ts";
+import { assertRegularFile, unreadable } from "./file_kinds.ts";
 
 /**
  * Sensitivities accepted, in mV per engineering unit: 1e-6 … 1e6. Real
@@ -155,6 +157,32 @@ export function parseChannelSetup(text: string, file?: string): ChannelSetup {
     Object.defineProperty(channels, key, { value: entry.data, enumerable: true, writable: true });
   }
   return { ...result.data, channels };
+}
+
+/**
+ * Reads and validates the set-up file at `path` ({@linkcode parseChannelSetup}).
+ *
+ * @throws {QuiverError} (usage) for a path that is not a regular file or
+ * cannot be read; as {@linkcode parseChannelSetup} for its content.
+ *
+ * @example
+ * ```ts
+ * import { readChannelSetup } from "./channel_setup.ts";
+ * import { mkdtemp, writeFile } from "node:fs/promises";
+ * const dir = await mkdtemp("/tmp/quiver-doc-");
+ * await writeFile(`${dir}/s.json`, '{ "channels": { "a": { "role": "tacho" } } }');
+ * if ((await readChannelSetup(`${dir}/s.json`)).channels.a.role !== "tacho") throw new Error();
+ * ```
+ */
+export async function readChannelSetup(path: string): Promise<ChannelSetup> {
+  assertRegularFile(path, "channel set-up");
+  let text: string;
+  try {
+    text = await readFile(path, "utf8");
+  } catch (error) {
+    throw unreadable(path, error);
+  }
+  return parseChannelSetup(text, path);
 }
 
 /** Names and numbers of the raw entries, checked before the schema so the message names both. */

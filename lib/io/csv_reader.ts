@@ -2,15 +2,17 @@
  * CSV text held in memory as a recording. The rules (delimiter, decimal
  * mark, header `name [unit]`, time column, rate) are those of the one CSV
  * reader (csv_engine.ts, csv_recording.ts); a file on disk is read in chunks
- * by the same code (recording_stream.ts).
+ * by the same code (formats/csv.ts).
  *
  * @module
  */
 import type { Channel, Recording } from "./recording.ts";
-import { CsvRowParser, CsvScanner } from "./csv_engine.ts";
+import { CsvRowParser } from "./csv_row_parser.ts";
+import { CsvScanner } from "./csv_scanner.ts";
 import { type CsvReadOptions, csvRecordingLayout, TimeStepCheck } from "./csv_recording.ts";
 
-export { type CsvDelimiter, type HeaderCell, parseHeaderCell } from "./csv_engine.ts";
+export type { CsvDelimiter } from "./csv_dialect.ts";
+export { type HeaderCell, parseHeaderCell } from "./csv_cells.ts";
 export { type CsvReadOptions, REFERENCE_STEPS, TIME_NAMES } from "./csv_recording.ts";
 
 /**

@@ -16,15 +16,10 @@
  */
 import { QuiverError } from "../errors.ts";
 import { formatNumber } from "../format_number.ts";
-import {
-  cellOfRow,
-  type CsvScan,
-  type CsvTableOptions,
-  type HeaderCell,
-  markOfRow,
-  parseCellText,
-  parseHeaderRow,
-} from "./csv_engine.ts";
+import { cellOfRow, type HeaderCell, markOfRow, parseHeaderRow } from "./csv_cells.ts";
+import type { CsvTableOptions } from "./csv_dialect.ts";
+import { parseCellText } from "./csv_row_parser.ts";
+import type { CsvScan } from "./csv_scanner.ts";
 import { checkName } from "./names.ts";
 import { nominalRate } from "./time_axis.ts";
 

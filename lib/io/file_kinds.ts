@@ -4,11 +4,13 @@
  * for reading until a writer comes (a hang), a device such as /dev/zero never
  * ends, and a folder cannot be read as a recording; renaming a result over a
  * device node or a FIFO would replace the node itself. Each is refused with
- * one line before anything is opened.
+ * one line before anything is opened. A file that cannot be opened is named
+ * with the reason in words ({@linkcode unreadable}).
  *
  * @module
  */
 import { lstatSync, type Stats, statSync } from "node:fs";
+import { resolve } from "node:path";
 import { QuiverError } from "../errors.ts";
 
 /**
@@ -126,4 +128,29 @@ export function assertFolderOrAbsent(path: string, option: string): void {
 
 function article(word: string): string {
   return /^[aeiou]/i.test(word) ? "an" : "a";
+}
+
+/**
+ * The usage error for a file that cannot be opened: the reason in words
+ * (no such file, a folder, permission denied) and the file's full path.
+ *
+ * @example
+ * ```ts
+ * import { unreadable } from "./file_kinds.ts";
+ * const e = unreadable("/tmp/quiver-surely-not-there.csv", Object.assign(new Error(), { code: "ENOENT" }));
+ * if (e.message !== "/tmp/quiver-surely-not-there.csv: cannot read: no such file" || e.kind !== "usage") throw new Error(e.message);
+ * ```
+ */
+export function unreadable(path: string, error: unknown): QuiverError {
+  const code = (error as { code?: string }).code;
+  const why = code === "ENOENT"
+    ? "no such file"
+    : code === "EISDIR"
+    ? "is a folder, not a file"
+    : code === "EACCES"
+    ? "permission denied"
+    : error instanceof Error
+    ? error.message
+    : String(error);
+  return new QuiverError(`cannot read: ${why}`, { file: resolve(path) }, "usage");
 }

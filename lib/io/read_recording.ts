@@ -1,27 +1,20 @@
 /**
  * A recording file read whole into memory, through the one reading path
- * (recording_stream.ts): opened (CSV or WAV, told by its first bytes, with
+ * (recording_stream.ts): opened (its format told by its first bytes, with
  * the set-up applied), then read chunk by chunk into arrays sized from its
  * header.
  *
  * @module
  */
-import type { CsvReadOptions } from "./csv_recording.ts";
 import type { Recording } from "./recording.ts";
-import { collectRecording, openRecordingStream } from "./recording_stream.ts";
+import type { ReadRecordingOptions } from "./formats/format.ts";
+import { collectRecording } from "./recording_source.ts";
+import { openRecordingStream } from "./recording_stream.ts";
 
-/** Options of {@linkcode readRecordingFile}. */
-export interface ReadRecordingOptions extends Omit<CsvReadOptions, "file"> {
-  /** Path of a channel set-up JSON file. Default: none. */
-  setup?: string;
-  /** Start of the stretch to read, s on the recording's own time axis. Default: its start. */
-  start?: number;
-  /** End of the stretch to read (exclusive), s. Default: its end. */
-  end?: number;
-}
+export type { ReadRecordingOptions } from "./formats/format.ts";
 
 /**
- * Reads a CSV or WAV recording with an optional channel set-up.
+ * Reads a recording (CSV, WAV: formats/mod.ts) with an optional channel set-up.
  *
  * @throws {QuiverError} for unreadable files and bad content.
  *
