@@ -22,7 +22,12 @@ export {
   spectralEstimate,
   type SpectralOptions,
 } from "./spectral_core.ts";
-export { spectralEstimateOf } from "./spectral_pipeline.ts";
+export {
+  spectralEstimateOf,
+  type SpectralSink,
+  spectralSink,
+  type SpectralSinkOptions,
+} from "./spectral_pipeline.ts";
 export { autoSpectrum, SPECTRUM_KINDS, type SpectrumKind, spectrumUnit } from "./spectrum_kinds.ts";
 export { averagedSpectrum, type AveragedSpectrumOptions } from "./averaged_spectrum.ts";
 export { spectrogram, type SpectrogramOptions } from "./spectrogram.ts";

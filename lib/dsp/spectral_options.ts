@@ -1,7 +1,7 @@
 /**
  * The spectral core's options (spectral_core.ts): segmenting, window,
  * detrend, averaging and pairs, the block from a resolution, and the one
- * check of them all.
+ * check of them all, which every thread that runs the core shares.
  *
  * @module
  */
@@ -130,8 +130,8 @@ export interface ResolvedOptions {
 
 /**
  * Checks the options as {@linkcode SpectralAccumulator}'s constructor does,
- * with the same errors, without building anything: for a caller that wants
- * the errors before any work starts.
+ * with the same errors, without building anything: for a caller that hands
+ * the core to another thread and wants the errors here.
  *
  * @throws {RangeError} for impossible options.
  *

@@ -64,9 +64,9 @@ async function printStages(path: string, command: number): Promise<void> {
   const t = await stageTimes(path, BLOCK, `${DIR}/stages_psd.csv`);
   const f = (s: number) => `${s.toFixed(2)} s`;
   console.log(
-    `  stages: start-up ${f(spectrumFloor)}, reading ${f(t.reading)}, parsing ${
-      f(t.parsing)
-    }, transforms ${f(t.transforms)}, writing ${f(t.writing)}; sum ${
+    `  stages, each alone in one thread: start-up ${f(spectrumFloor)}, reading ${
+      f(t.reading)
+    }, parsing ${f(t.parsing)}, transforms ${f(t.transforms)}, writing ${f(t.writing)}; sum ${
       f(spectrumFloor + t.reading + t.parsing + t.transforms + t.writing)
     }, command ${f(command)}`,
   );

@@ -1,12 +1,13 @@
 /**
  * Where the time of `quiver spectrum` goes, stage by stage, each timed alone
- * in this process: reading (the file's bytes, one pass),
+ * in this process and in one thread: reading (the file's bytes, one pass),
  * parsing (opening and reading the recording through the one reader, its
  * signal checks included, less the reading), transforms (the spectral core
  * over the same chunks, held in memory) and writing (the PSD table and its
  * sidecar). Start-up is a process's own and is timed by the bench as the
- * floor (`quiver --version`, a tiny `spectrum`). The command runs them one
- * after the other in one thread, so its time is about their sum.
+ * floor (`quiver --version`, a tiny `spectrum`). The command overlaps
+ * reading and parsing with transforms on two cores for long records
+ * (lib/dsp/spectral_pipeline.ts), so its time may be below their sum.
  */
 import { closeSync, openSync, readSync } from "node:fs";
 import { SpectralAccumulator, type SpectralEstimate } from "../../lib/dsp/spectral_core.ts";
