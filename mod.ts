@@ -6,7 +6,7 @@
  * the one spectral core into tables; writers put tables into CSV (with a
  * verifiable sidecar) or JSON files atomically. Entry points per area:
  * `lib/io/mod.ts`, `lib/dsp/mod.ts`, `lib/frf/mod.ts`, `lib/modal/mod.ts`,
- * `lib/acoustics/mod.ts`, `lib/orders/mod.ts`, `lib/compare/mod.ts`.
+ * `lib/acoustics/mod.ts`, `lib/orders/mod.ts`, `lib/compare/mod.ts`, `lib/comfort/mod.ts`.
  *
  * @example
  * ```ts
@@ -29,6 +29,7 @@ export * from "./lib/modal/mod.ts";
 export * from "./lib/acoustics/mod.ts";
 export * from "./lib/orders/mod.ts";
 export * from "./lib/compare/mod.ts";
+export * from "./lib/comfort/mod.ts";
 export { QUIVER_VERSION } from "./lib/version.ts";
 export { runPlan } from "./lib/plan/runner.ts";
 export { type Plan, planSchema } from "./lib/plan/schema.ts";

@@ -40,6 +40,8 @@ const HELP_ORDER = [
   "level",
   "calibrate",
   "orders",
+  "comfort",
+  "hand-arm",
   "paths",
   "compare",
   "run",

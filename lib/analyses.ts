@@ -24,6 +24,8 @@ import { modalDescriptor } from "./modal/modal_descriptor.ts";
 import { macDescriptor } from "./modal/mac_descriptor.ts";
 import { pathsDescriptor } from "./paths/paths_descriptor.ts";
 import { compareDescriptor } from "./compare/compare_descriptor.ts";
+import { comfortDescriptor } from "./comfort/comfort_descriptor.ts";
+import { handArmDescriptor } from "./comfort/hand_arm_descriptor.ts";
 
 /** A table of analyses with what the command table, plans and targets ask of it. */
 export interface AnalysisTable {
@@ -100,4 +102,6 @@ export const ANALYSES: AnalysisTable = analysisTable([
   macDescriptor,
   pathsDescriptor,
   compareDescriptor,
+  comfortDescriptor,
+  handArmDescriptor,
 ]);

@@ -36,6 +36,7 @@ const COMMANDS: Record<string, string[]> = {
   // before the data are read.
   level: ["--reference", "1", "--weighting", "Z"],
   orders: ["--tacho", "f", "--ppr", "1", "--channels", "a"],
+  comfort: ["--weighting", "wk", "--channels", "a"],
 };
 
 describe("every command refuses bad recordings the same way and writes nothing", () => {
