@@ -112,6 +112,11 @@ describe("axes, the vector sum and A(8)", () => {
       (1.4 * wd1 / Math.SQRT2) ** 2 + (1.4 * 2 * wd1 / Math.SQRT2) ** 2 + (wk / Math.SQRT2) ** 2,
     );
     expect(Math.abs(rows[3].aw! / expected - 1)).toBeLessThan(0.005);
+    // The total VDV is the fourth root of the sum of the axes' (k·VDV)⁴ (ISO 2631-1, from
+    // memory), each axis's VDV the sine's closed form |W|·A·(3T/8)^¼.
+    const vdv = (gain: number, amplitude: number) => gain * amplitude * (3 * 30 / 8) ** 0.25;
+    const total = ((1.4 * vdv(wd1, 1)) ** 4 + (1.4 * vdv(wd1, 2)) ** 4 + vdv(wk, 1) ** 4) ** 0.25;
+    expect(Math.abs(rows[3].vdv! / total - 1)).toBeLessThan(0.01);
     expect(r.table.columns.map((c) => c.unit === "" ? c.name : `${c.name} [${c.unit}]`)).toEqual([
       "axis",
       "channel",
