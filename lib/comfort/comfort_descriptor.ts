@@ -11,7 +11,7 @@ import { COMFORT_METADATA } from "./comfort_metadata.ts";
 
 /** comfort's and hand-arm's side outputs (their option tables spread them in). */
 export const VIBRATION_OUTPUTS = {
-  "history-out": sideOutput("csv", {
+  "history-out": sideOutput("json", {
     help:
       "running r.m.s. (τ = 1 s) against time, every 0.1 s:\ntime_s, then one column per channel or axis",
   }),

@@ -8,7 +8,9 @@
 import { escapeXml } from "../escape_xml.ts";
 import { formatNumber } from "../../format_number.ts";
 import { COMFORT_METADATA } from "../../comfort/comfort_metadata.ts";
-import type { SectionBuilder } from "../section.ts";
+import type { SectionBuilder, SectionInput } from "../section.ts";
+import { type Figure, lineFigure } from "../figure.ts";
+import { numbers, sideResult } from "../section_data.ts";
 
 type Row = {
   axis: string;
@@ -83,14 +85,30 @@ export function vibrationTableHtml(rows: readonly Row[], reactions: boolean): st
   }</tr></thead><tbody>${body.join("")}</tbody></table>`;
 }
 
+/** The running r.m.s. against time, from the step's history side result when there is one. */
+export async function historyFigures(input: SectionInput): Promise<Figure[]> {
+  const h = await sideResult(input, "history");
+  if (h === undefined || h.columns.length < 2) return [];
+  const t = numbers(h.columns[0]);
+  return [{
+    name: `${input.step.id}_running_rms`,
+    ...lineFigure({
+      title: `${input.title}: running r.m.s. (τ = 1 s)`,
+      x: { label: "Time [s]" },
+      y: { label: "Weighted acceleration [m/s²]" },
+      series: h.columns.slice(1).map((c) => ({ name: c.name, x: t, y: numbers(c) })),
+    }),
+  }];
+}
+
 /** The section of a comfort step. */
-export const section: SectionBuilder = ({ title, result, note }) => {
-  const m = COMFORT_METADATA.parse(result.metadata);
+export const section: SectionBuilder = async (input) => {
+  const m = COMFORT_METADATA.parse(input.result.metadata);
   const reactions = m.purpose === null || m.purpose === "comfort";
-  return Promise.resolve({
-    heading: title,
-    note,
-    figures: [],
+  return {
+    heading: input.title,
+    note: input.note,
+    figures: await historyFigures(input),
     html: vibrationTableHtml(m.rows, reactions) + `<p class="safety">${escapeXml(m.safety)}</p>`,
-  });
+  };
 };
