@@ -36,6 +36,7 @@ const OUTPUT = {
 const READING = {
   rate: RECORDING_TABLE.rate,
   "time-column": RECORDING_TABLE["time-column"],
+  group: RECORDING_TABLE.group,
   setup: RECORDING_TABLE.setup,
   delimiter: RECORDING_TABLE.delimiter,
   decimal: RECORDING_TABLE.decimal,
@@ -91,6 +92,15 @@ interface RecordingInfo {
   readonly duration_s: number | null;
   readonly channels: readonly ChannelInfo[];
   readonly setup: string | null;
+  /** Every group of a file that holds several (the one described above among them). */
+  readonly groups?: readonly {
+    readonly name: string;
+    readonly samples: number | null;
+    readonly rate_hz: number | null;
+    readonly channels: readonly { readonly name: string; readonly unit: string }[];
+  }[];
+  /** What the file holds that quiver does not read, in words. */
+  readonly unsupported?: readonly string[];
 }
 
 const MARK_NAMES: Record<DecimalMark, string> = { ".": "point", ",": "comma" };
@@ -140,6 +150,19 @@ async function recordingInfo(
     duration_s: found.rate === null ? null : found.samples / found.rate,
     channels: found.channels.map((c, i) => channelInfo(c, transforms[i])),
     setup: setupPath === undefined ? null : resolve(setupPath),
+    ...(found.groups !== undefined
+      ? {
+        groups: found.groups.map((g) => ({
+          name: g.name,
+          samples: g.samples,
+          rate_hz: g.rate,
+          channels: g.channels.map((c) => ({ name: c.name, unit: c.unit })),
+        })),
+      }
+      : {}),
+    ...(found.unsupported !== undefined && found.unsupported.length > 0
+      ? { unsupported: found.unsupported }
+      : {}),
   };
   return { info, where: found.positionName };
 }
@@ -205,6 +228,17 @@ function infoText(info: RecordingInfo, where: string): string {
       } (${changes} of ${info.channels.length} channels changed on reading)`,
     );
   }
+  if (info.groups !== undefined) {
+    lines.push(`groups: ${info.groups.length}`);
+    for (const g of info.groups) {
+      const rate = g.rate_hz === null ? "rate unknown" : `${formatNumber(g.rate_hz, 10)} Hz`;
+      const samples = g.samples === null ? "length unknown" : `${g.samples} samples`;
+      lines.push(
+        `  ${quote(g.name)}: ${g.channels.length} channels, ${rate}, ${samples}`,
+      );
+    }
+  }
+  for (const u of info.unsupported ?? []) lines.push(`not read: ${printable(u)}`);
   return `${lines.join("\n")}\n`;
 }
 

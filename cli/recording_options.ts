@@ -31,6 +31,12 @@ export const RECORDING_TABLE = {
       'the time column, by name (Zeit) or whole header cell ("Time [s]");\nits unit must be s or none',
     default: "time_s or time",
   }),
+  group: option(z.string().trim().min(1, "must name a group"), {
+    value: "NAME",
+    help:
+      "the group to read in a file that holds several (an HDF5 group's\npath, an MDF 4 channel group's name or index)",
+    default: "the only one",
+  }),
   setup: option(z.string(), {
     value: "FILE.json",
     help: 'channel set-up: units, sensitivities, roles (README.md,\n"Channel set-up")',
@@ -69,6 +75,7 @@ export function toReadOptions(values: {
   delimiter?: "auto" | "comma" | "semicolon" | "tab";
   decimal?: "auto" | "point" | "comma";
   "time-column"?: string;
+  group?: string;
 }): CommandReadOptions {
   const delimiters = { auto: "auto", comma: ",", semicolon: ";", tab: "\t" } as const;
   const decimals = { auto: "auto", point: ".", comma: "," } as const;
@@ -78,6 +85,7 @@ export function toReadOptions(values: {
     ...(values.start !== undefined ? { start: values.start } : {}),
     ...(values.end !== undefined ? { end: values.end } : {}),
     ...(values["time-column"] !== undefined ? { timeColumn: values["time-column"] } : {}),
+    ...(values.group !== undefined ? { group: values.group } : {}),
     delimiter: delimiters[values.delimiter ?? "auto"],
     decimal: decimals[values.decimal ?? "auto"],
     sizing: values as Readonly<Record<string, unknown>>,

@@ -74,6 +74,8 @@ const recordingSchema = z.strictObject({
   file: z.string().min(1),
   setup: z.string().min(1).optional(),
   rate: z.number().positive().optional(),
+  /** The group to read in a file that holds several (HDF5, MDF 4): a path, name or index. */
+  group: z.string().min(1).optional(),
   /** A time slice of the recording, s on its own time axis, for every analysis of it. */
   start: z.number().optional(),
   end: z.number().optional(),

@@ -152,6 +152,7 @@ function readRecording(
     inputs.push(at(rec.setup));
   }
   if (rec.rate !== undefined) argv.push("--rate", String(rec.rate));
+  if (rec.group !== undefined) argv.push("--group", rec.group);
   // The recording's slice; an analysis may narrow it with its own start/end, never widen it.
   const problem = sliceProblem(options, rec, name, where);
   if (problem !== undefined) {

@@ -226,4 +226,17 @@ describe("quiver info", () => {
       "quiver info: info takes one recording, got 2\n",
     );
   });
+
+  test("--group is refused for a CSV or a WAV, which hold one recording each", () => {
+    for (const [file, label] of [[shaker, "CSV"], [wav16, "WAV"]]) {
+      const r = runQuiver(["info", file, "--group", "1"]);
+      expect(r.code).toBe(2);
+      expect(r.stderr).toBe(
+        `quiver info: ${file}: a ${label} file holds one recording; do not name a group (--group)\n`,
+      );
+      expect(r.stdout).toBe("");
+      const s = runQuiver(["spectrum", file, "--group", "1", "--out", "/tmp/never.csv"]);
+      expect(s.code).toBe(2);
+    }
+  });
 });

@@ -21,6 +21,7 @@ import {
   type FormatOptions,
   type RecordingDescription,
   type RecordingFormat,
+  refuseGroup,
 } from "./format.ts";
 
 const READ_BYTES = 1 << 20;
@@ -53,6 +54,7 @@ async function openCsv(
   path: string,
   options: FormatOptions,
 ): Promise<RecordingStream> {
+  refuseGroup(options, "CSV", path);
   const csvOptions = { ...options, file: path };
   const scanner = new CsvScanner(csvOptions);
   let bytes = 0;
@@ -119,6 +121,7 @@ async function describeCsv(
   path: string,
   options: Omit<FormatOptions, "setup">,
 ): Promise<RecordingDescription> {
+  refuseGroup(options, "CSV", path);
   const scan = await scanCsv(path, options);
   const header = parseHeaderRow(scan.headerText, scan.delimiter, scan.headerLine, path);
   const timeColumn = findTimeColumn(header, scan.headerLine, { ...options, file: path });

@@ -8,6 +8,7 @@
  *
  * @module
  */
+import { QuiverError } from "../../errors.ts";
 import { type ChannelTransform, readChannelSetup, setupTransforms } from "../channel_setup.ts";
 import type { CsvDelimiter } from "../csv_dialect.ts";
 import type { CsvReadOptions } from "../csv_recording.ts";
@@ -22,6 +23,12 @@ export interface ReadRecordingOptions extends Omit<CsvReadOptions, "file"> {
   start?: number;
   /** End of the stretch to read (exclusive), s. Default: its end. */
   end?: number;
+  /**
+   * The group to read, in a format that holds several recordings in one file
+   * (an HDF5 group's path, an MDF 4 channel group's name or index). Formats
+   * without groups refuse it. Default: the file's only group.
+   */
+  group?: string;
 }
 
 /** What a format's `open` is given: the reading options but the time slice, applied above it. */
@@ -35,6 +42,18 @@ export interface DescribedChannel {
   readonly name: string;
   /** Unit in the file ("" when none). */
   readonly unit: string;
+}
+
+/** One group of a file that holds several recordings, for `quiver info`. */
+export interface DescribedGroup {
+  /** How `--group` names it (a path, a name or an index). */
+  readonly name: string;
+  /** Samples per channel; null when only reading the samples would tell. */
+  readonly samples: number | null;
+  /** Sample rate, Hz; null when unknown. */
+  readonly rate: number | null;
+  /** Its channels as the file holds them. */
+  readonly channels: readonly DescribedChannel[];
 }
 
 /**
@@ -63,6 +82,17 @@ export interface RecordingDescription {
   readonly channels: readonly DescribedChannel[];
   /** What a channel's place is called in `quiver info`'s text: "column", "channel". */
   readonly positionName: string;
+  /**
+   * Every group of a file that holds several, the one described above among
+   * them; absent for a format without groups.
+   */
+  readonly groups?: readonly DescribedGroup[];
+  /**
+   * What the file holds that quiver does not read, in words (a bus-frame
+   * channel group, a conversion it lacks), so that `quiver info` lists it
+   * rather than hiding it; absent or empty when there is none.
+   */
+  readonly unsupported?: readonly string[];
 }
 
 /** A recording file format. */
@@ -98,6 +128,30 @@ export interface RecordingFormat {
    * @throws {QuiverError} as `open` does for the header.
    */
   describe(path: string, options: Omit<FormatOptions, "setup">): Promise<RecordingDescription>;
+}
+
+/**
+ * Refuses `--group` for a format whose files hold one recording.
+ *
+ * @throws {QuiverError} (usage) when `options.group` is given.
+ *
+ * @example
+ * ```ts
+ * import { refuseGroup } from "./format.ts";
+ * refuseGroup({}, "WAV", "r.wav");
+ * let refused = false;
+ * try { refuseGroup({ group: "1" }, "WAV", "r.wav"); } catch { refused = true; }
+ * if (!refused) throw new Error();
+ * ```
+ */
+export function refuseGroup(options: { group?: string }, label: string, path: string): void {
+  if (options.group !== undefined) {
+    throw new QuiverError(
+      `a ${label} file holds one recording; do not name a group (--group)`,
+      { file: path },
+      "usage",
+    );
+  }
 }
 
 /**

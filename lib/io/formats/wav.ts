@@ -22,6 +22,7 @@ import {
   type FormatOptions,
   type RecordingDescription,
   type RecordingFormat,
+  refuseGroup,
 } from "./format.ts";
 
 async function openWav(
@@ -90,6 +91,7 @@ async function openWav(
     if (options.timeColumn !== undefined) {
       fail("a WAV file has no time column; do not name one (--time-column)", "usage");
     }
+    refuseGroup(options, "WAV", path);
     const f = format;
     // Validate the format with the in-memory decoder on a header-only copy.
     const probe = new Uint8Array(dataStart + f.blockAlign);
