@@ -93,10 +93,10 @@ describe("quiver run", () => {
     async () => {
       const r = runQuiver(["run", `${dir}/tamarack_b2_plan.json`, "--out-dir", `${dir}/out`]);
       expect(r.code).toBe(0);
-      expect(r.stderr).toMatch(/\[24\/24\] compare bracket_vs_sim: ok/);
+      expect(r.stderr).toMatch(/\[25\/25\] compare bracket_vs_sim: ok/);
       const manifest = JSON.parse(await readFile(`${dir}/out/manifest.json`, "utf8"));
       expect(manifest.status).toBe("ok");
-      expect(manifest.steps).toHaveLength(24);
+      expect(manifest.steps).toHaveLength(25);
       const hammer = manifest.steps.find((s: { id: string }) => s.id === "bracket_frf");
       expect(hammer.inputs[0].sha256).toMatch(/^[0-9a-f]{64}$/);
       expect(hammer.outputs["hits-out"].path).toBe("bracket_frf_hits.csv");
@@ -153,6 +153,10 @@ describe("quiver run", () => {
       }
       expect(html).toContain("ISO 2631-1 Annex C");
       expect(html).toMatch(/not a certified measurement of a person/);
+      // Speech intelligibility at the driver's ear: the index, its standard, each band's share.
+      expect(targets.cabin_sii.pass).toBe(true);
+      expect(html).toContain("ANSI S3.5-1997");
+      expect(existsSync(`${dir}/out/figures/cabin_speech_contributions.svg`)).toBe(true);
     },
   );
 
@@ -169,7 +173,7 @@ describe("quiver run", () => {
       const orders = manifest.steps.find((s: { id: string }) => s.id === "mount_orders");
       expect(orders.status).toBe("failed");
       expect(orders.error).toMatch(/broken\.csv:3: row has 2 fields/);
-      expect(manifest.steps.filter((s: { status: string }) => s.status === "ok")).toHaveLength(21);
+      expect(manifest.steps.filter((s: { status: string }) => s.status === "ok")).toHaveLength(22);
     },
   );
 });
