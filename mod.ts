@@ -35,3 +35,17 @@ export { runPlan } from "./lib/plan/runner.ts";
 export { type Plan, planSchema } from "./lib/plan/schema.ts";
 export { type Manifest, manifestSchema } from "./lib/plan/manifest.ts";
 export { writeReport } from "./lib/report/html_report.ts";
+export { SII_BANDS, SII_STANDARD, type SiiBand } from "./lib/quality/sii_tables.ts";
+export {
+  type SiiOptions,
+  type SiiResult,
+  spectrumLevel,
+  speechIntelligibilityIndex,
+} from "./lib/quality/sii.ts";
+export {
+  SPEECH_LEAST_RATE_HZ,
+  SPEECH_NOTE,
+  speechAnalysis,
+  type SpeechOptions,
+  type SpeechResult,
+} from "./lib/quality/speech_analysis.ts";

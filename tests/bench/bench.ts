@@ -24,6 +24,7 @@ import { openRecordingStream } from "../../lib/io/recording_stream.ts";
 import { BLOCK, DIR, median, seeded, writeCsv, writeRigWav } from "./bench_files.ts";
 import { stageTimes } from "./stages.ts";
 import { timed } from "./timed.ts";
+import { comfortBench } from "./comfort.ts";
 
 const MAIN = fileURLToPath(new URL("../../cli/main.ts", import.meta.url));
 const PEER = fileURLToPath(new URL("./peer_welch.py", import.meta.url));
@@ -245,6 +246,7 @@ console.log(
 // `--headline`: the headline rows only (start-up floor, CSV and WAV → PSD with their stages, the
 // core, ingest), without the memory table and the campaign.
 if (!Deno.args.includes("--headline")) await memoryAndCampaign();
+if (!Deno.args.includes("--headline")) await comfortBench(); // ride comfort (issue #31)
 
 async function memoryAndCampaign(): Promise<void> {
   console.log("\nPeak RSS against record length (4-channel WAV, 2^20 and 2^24 samples):");

@@ -114,6 +114,26 @@ describe("quiver comfort", () => {
   }
 });
 
+describe("units", () => {
+  test("the same samples in g, m/s² and mm/s²: a_w and VDV scale by g_n and 10⁻³", async () => {
+    const numbers = sine(1000, 3, "time_s,a [m/s^2],b [g],c [mm/s^2]", [5, 5, 5]);
+    await writeFile(`${dir}/units.csv`, numbers);
+    const r = runQuiver(
+      ["comfort", "units.csv", "--weighting", "wk", "--out", "units.json"],
+      dir,
+    );
+    expect(r.code).toBe(0);
+    const rows = JSON.parse(await readFile(`${dir}/units.json`, "utf8")).metadata.rows;
+    const [a, b, c] = rows as { aw: number; vdv: number }[];
+    // g_n = 9.80665 m/s² exactly (ISO 80000-3:2019, standard acceleration of free fall); the
+    // weighting filter is linear, so a_w and VDV scale with the unit's factor.
+    expect(Math.abs(b.aw / a.aw / 9.80665 - 1)).toBeLessThan(1e-12);
+    expect(Math.abs(b.vdv / a.vdv / 9.80665 - 1)).toBeLessThan(1e-12);
+    expect(Math.abs(c.aw / a.aw / 1e-3 - 1)).toBeLessThan(1e-12);
+    expect(Math.abs(c.vdv / a.vdv / 1e-3 - 1)).toBeLessThan(1e-12);
+  });
+});
+
 describe("quiver hand-arm", () => {
   const bad: [string, string[], number, RegExp][] = [
     ["a missing axis", ["--x", "sx", "--y", "sy"], 2, /--z/],

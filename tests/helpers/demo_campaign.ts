@@ -7,7 +7,9 @@ import { writeCampaign } from "../../fixtures/demo/campaign.ts";
 export async function demoFolder(): Promise<string> {
   const dir = await mkdtemp("/tmp/quiver-demo-");
   await writeCampaign(dir);
-  for (const file of ["tamarack_b2_plan.json", "tamarack_road_setup.json"]) {
+  for (
+    const file of ["tamarack_b2_plan.json", "tamarack_road_setup.json", "tamarack_seat_setup.json"]
+  ) {
     await copyFile(
       fileURLToPath(new URL(`../../fixtures/demo/${file}`, import.meta.url)),
       `${dir}/${file}`,

@@ -93,10 +93,10 @@ describe("quiver run", () => {
     async () => {
       const r = runQuiver(["run", `${dir}/tamarack_b2_plan.json`, "--out-dir", `${dir}/out`]);
       expect(r.code).toBe(0);
-      expect(r.stderr).toMatch(/\[22\/22\] compare bracket_vs_sim: ok/);
+      expect(r.stderr).toMatch(/\[25\/25\] compare bracket_vs_sim: ok/);
       const manifest = JSON.parse(await readFile(`${dir}/out/manifest.json`, "utf8"));
       expect(manifest.status).toBe("ok");
-      expect(manifest.steps).toHaveLength(22);
+      expect(manifest.steps).toHaveLength(25);
       const hammer = manifest.steps.find((s: { id: string }) => s.id === "bracket_frf");
       expect(hammer.inputs[0].sha256).toMatch(/^[0-9a-f]{64}$/);
       expect(hammer.outputs["hits-out"].path).toBe("bracket_frf_hits.csv");
@@ -140,6 +140,23 @@ describe("quiver run", () => {
       expect(existsSync(`${dir}/out/figures/mount_paths_contributions.svg`)).toBe(true);
       expect(existsSync(`${dir}/out/figures/mount_paths_bands.svg`)).toBe(true);
       expect(html).toMatch(/Paths ranked by energy/);
+      // The seat pad and the steering wheel (invented: a few tenths of a m/s² weighted, two
+      // potholes): the comfort and hand-arm steps, their targets, their report sections.
+      for (const id of ["seat_av", "seat_vdv", "wheel_ahv"]) {
+        expect(targets[id].pass, id).toBe(true);
+      }
+      const seat = JSON.parse(await readFile(`${dir}/out/seat_comfort.json`, "utf8"));
+      // The pothole's jolt on z, at a crest factor above 9 (ISO 2631-1 6.2.1), is flagged.
+      expect(seat.metadata.rows[2].flags).toContain("crest>9");
+      for (const figure of ["seat_comfort_running_rms", "wheel_hand_arm_running_rms"]) {
+        expect(existsSync(`${dir}/out/figures/${figure}.svg`), figure).toBe(true);
+      }
+      expect(html).toContain("ISO 2631-1 Annex C");
+      expect(html).toMatch(/not a certified measurement of a person/);
+      // Speech intelligibility at the driver's ear: the index, its standard, each band's share.
+      expect(targets.cabin_sii.pass).toBe(true);
+      expect(html).toContain("ANSI S3.5-1997");
+      expect(existsSync(`${dir}/out/figures/cabin_speech_contributions.svg`)).toBe(true);
     },
   );
 
@@ -156,7 +173,7 @@ describe("quiver run", () => {
       const orders = manifest.steps.find((s: { id: string }) => s.id === "mount_orders");
       expect(orders.status).toBe("failed");
       expect(orders.error).toMatch(/broken\.csv:3: row has 2 fields/);
-      expect(manifest.steps.filter((s: { status: string }) => s.status === "ok")).toHaveLength(19);
+      expect(manifest.steps.filter((s: { status: string }) => s.status === "ok")).toHaveLength(22);
     },
   );
 });
