@@ -42,6 +42,7 @@ const HELP_ORDER = [
   "orders",
   "comfort",
   "hand-arm",
+  "loudness",
   "paths",
   "compare",
   "run",
