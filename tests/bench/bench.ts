@@ -24,6 +24,7 @@ import { openRecordingStream } from "../../lib/io/recording_stream.ts";
 import { BLOCK, DIR, median, seeded, writeCsv, writeRigWav } from "./bench_files.ts";
 import { stageTimes } from "./stages.ts";
 import { timed } from "./timed.ts";
+import { loudnessBench } from "./loudness.ts";
 
 const MAIN = fileURLToPath(new URL("../../cli/main.ts", import.meta.url));
 const PEER = fileURLToPath(new URL("./peer_welch.py", import.meta.url));
@@ -244,6 +245,7 @@ console.log(
 }
 // `--headline`: the headline rows only (start-up floor, CSV and WAV → PSD with their stages, the
 // core, ingest), without the memory table and the campaign.
+await loudnessBench(quiver, Deno.args.includes("--headline"));
 if (!Deno.args.includes("--headline")) await memoryAndCampaign();
 
 async function memoryAndCampaign(): Promise<void> {
