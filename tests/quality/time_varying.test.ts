@@ -7,7 +7,8 @@
 import { describe, expect, test } from "vitest";
 import { assertClose } from "../helpers/assert_close.ts";
 import { uniformGenerator } from "../helpers/random.ts";
-import { TimeVaryingLoudnessMeter } from "../../lib/quality/loudness_time_varying.ts";
+import { decay, TimeVaryingLoudnessMeter } from "../../lib/quality/loudness_time_varying.ts";
+import { StationaryBandMeter } from "../../lib/quality/loudness_stationary.ts";
 import { LoudnessHistogram } from "../../lib/quality/loudness_percentiles.ts";
 import { loudnessAnalysis } from "../../lib/quality/loudness_analysis.ts";
 import { bandNoise, tones } from "./signals.ts";
@@ -70,6 +71,39 @@ describe("time-varying loudness", () => {
       expect(v.loudness).toBe(whole.loudness);
       expect(Array.from(v.history!)).toEqual(Array.from(whole.history!));
     }
+  }, 120_000);
+});
+
+describe("the nonlinear decay", () => {
+  const after = (steps: number) => {
+    const out = new Float64Array(1), store = new Float64Array(1);
+    for (let i = 0; i < steps; i++) decay(new Float64Array([1]), out, store);
+    for (let i = 0; i < 10; i++) decay(new Float64Array([0]), out, store); // 20 ms of silence
+    return out[0];
+  };
+  test("a long sound dies away with the long time constant, a short burst much faster", () => {
+    // DIN 45631/A1 (from memory): τ = 15 ms after a long sound, 5 ms after a short one; 20 ms
+    // after a long sound the output is at least e^(−20/15) = 0.26 of it (it cannot fall faster
+    // than its store), after a 4-ms burst below 0.1.
+    const long = after(500);
+    expect(long).toBeGreaterThanOrEqual(Math.exp(-20 / 15));
+    expect(long).toBeLessThan(0.45);
+    expect(after(2)).toBeLessThan(0.1);
+  });
+});
+
+describe("stationary band levels", () => {
+  test("chunks of any size give exactly one pass's levels", () => {
+    // An analytic equality: the filter bank keeps its state between chunks.
+    const x = bandNoise(RATE, 1, 30, 12000, 60, 13);
+    const levels = (chunk: number) => {
+      const m = new StationaryBandMeter(RATE, x.length);
+      for (let at = 0; at < x.length; at += chunk) m.push(x.slice(at, at + chunk));
+      return Array.from(m.finish().levels);
+    };
+    const whole = levels(x.length);
+    expect(levels(777)).toEqual(whole);
+    expect(levels(65536)).toEqual(whole);
   }, 120_000);
 });
 

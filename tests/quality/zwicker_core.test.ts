@@ -118,6 +118,17 @@ describe("the low-frequency weighting", () => {
   });
 });
 
+describe("the outer ear", () => {
+  test("a 4 kHz band is louder than a 1 kHz band at the same level", () => {
+    // ISO 226:2003 (from memory): the 60-phon contour dips to about 52–55 dB SPL near 3–4 kHz,
+    // the ear canal's resonance, so 60 dB at 4 kHz is some 5–8 phon above 60 dB at 1 kHz.
+    const at1k = loudnessOfLevels(oneBand(KHZ1, 60), "free").loudnessLevel;
+    const at4k = loudnessOfLevels(oneBand(KHZ4, 60), "free").loudnessLevel;
+    expect(at4k - at1k).toBeGreaterThan(4);
+    expect(at4k - at1k).toBeLessThan(10);
+  });
+});
+
 describe("sample rates", () => {
   test("44.1, 48 and 25.6 kHz give the same loudness within 1 %", async () => {
     // An analytic equality: the band edges are exact at every rate (pre-warped), and all the
