@@ -12,12 +12,12 @@ import { LOUDNESS_METADATA } from "./loudness_metadata.ts";
 /** loudness's side outputs (its option table spreads them in). */
 export const LOUDNESS_OUTPUTS = {
   "specific-out": sideOutput("json", {
-    help: "specific loudness against critical-band rate, tidy:\nchannel, z [Bark], " +
-      "specific_loudness [sone/Bark] (time-averaged when time-varying)",
+    help: "specific loudness N′ against Bark, tidy:\nchannel, z, specific_loudness " +
+      "(time-averaged\nwhen time-varying)",
   }),
   "history-out": sideOutput("json", {
-    help: "time-varying only: N and sharpness every 2 ms:\ntime_s, then per channel " +
-      "CH [sone] and CH:sharpness [acum]",
+    help: "time-varying only: N and sharpness every 2 ms:\ntime_s, then per channel CH " +
+      "[sone] and\nCH:sharpness [acum]",
     onlyWith: (options) => options.method === "time-varying",
   }),
 };
