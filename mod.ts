@@ -49,3 +49,31 @@ export {
   type SpeechOptions,
   type SpeechResult,
 } from "./lib/quality/speech_analysis.ts";
+// Loudness (ISO 532-1) and sharpness (DIN 45692): lib/quality/ has no mod.ts of its own yet.
+export {
+  LOUDNESS_METHODS,
+  LOUDNESS_SAFETY_NOTE,
+  loudnessAnalysis,
+  type LoudnessMethod,
+  type LoudnessOptions,
+  type LoudnessResult,
+} from "./lib/quality/loudness_analysis.ts";
+export {
+  coreLoudness,
+  loudnessLevel,
+  SOUND_FIELDS,
+  type SoundField,
+  specificLoudness,
+} from "./lib/quality/zwicker_core.ts";
+export {
+  loudnessOfLevels,
+  type LoudnessValues,
+  StationaryBandMeter,
+} from "./lib/quality/loudness_stationary.ts";
+export {
+  TimeVaryingLoudnessMeter,
+  type TimeVaryingOptions,
+  type TimeVaryingValues,
+} from "./lib/quality/loudness_time_varying.ts";
+export { sharpness, sharpnessWeighting } from "./lib/quality/sharpness.ts";
+export { LOUDNESS_BANDS } from "./lib/quality/loudness_bands.ts";

@@ -42,6 +42,8 @@ const HELP_ORDER = [
   "orders",
   "comfort",
   "hand-arm",
+  "loudness",
+  "speech",
   "paths",
   "compare",
   "run",

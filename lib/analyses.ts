@@ -27,6 +27,7 @@ import { compareDescriptor } from "./compare/compare_descriptor.ts";
 import { comfortDescriptor } from "./comfort/comfort_descriptor.ts";
 import { handArmDescriptor } from "./comfort/hand_arm_descriptor.ts";
 import { speechDescriptor } from "./quality/speech_descriptor.ts";
+import { loudnessDescriptor } from "./quality/loudness_descriptor.ts";
 
 /** A table of analyses with what the command table, plans and targets ask of it. */
 export interface AnalysisTable {
@@ -106,4 +107,5 @@ export const ANALYSES: AnalysisTable = analysisTable([
   comfortDescriptor,
   handArmDescriptor,
   speechDescriptor,
+  loudnessDescriptor,
 ]);

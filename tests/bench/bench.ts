@@ -25,6 +25,7 @@ import { BLOCK, DIR, median, seeded, writeCsv, writeRigWav } from "./bench_files
 import { stageTimes } from "./stages.ts";
 import { timed } from "./timed.ts";
 import { comfortBench } from "./comfort.ts";
+import { loudnessBench } from "./loudness.ts";
 
 const MAIN = fileURLToPath(new URL("../../cli/main.ts", import.meta.url));
 const PEER = fileURLToPath(new URL("./peer_welch.py", import.meta.url));
@@ -245,6 +246,7 @@ console.log(
 }
 // `--headline`: the headline rows only (start-up floor, CSV and WAV → PSD with their stages, the
 // core, ingest), without the memory table and the campaign.
+await loudnessBench(quiver, Deno.args.includes("--headline"));
 if (!Deno.args.includes("--headline")) await memoryAndCampaign();
 if (!Deno.args.includes("--headline")) await comfortBench(); // ride comfort (issue #31)
 
