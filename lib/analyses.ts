@@ -26,6 +26,7 @@ import { pathsDescriptor } from "./paths/paths_descriptor.ts";
 import { compareDescriptor } from "./compare/compare_descriptor.ts";
 import { comfortDescriptor } from "./comfort/comfort_descriptor.ts";
 import { handArmDescriptor } from "./comfort/hand_arm_descriptor.ts";
+import { tonesDescriptor } from "./quality/tones_descriptor.ts";
 
 /** A table of analyses with what the command table, plans and targets ask of it. */
 export interface AnalysisTable {
@@ -104,4 +105,5 @@ export const ANALYSES: AnalysisTable = analysisTable([
   compareDescriptor,
   comfortDescriptor,
   handArmDescriptor,
+  tonesDescriptor,
 ]);

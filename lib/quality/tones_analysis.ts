@@ -17,6 +17,7 @@ import { asStream, type RecordingSource } from "../io/recording_stream.ts";
 import type { ColumnValues, Table, TableColumn } from "../io/table.ts";
 import { checkAutoSpectra } from "../dsp/averaged_spectrum.ts";
 import { spectralEstimateOf } from "../dsp/spectral_pipeline.ts";
+import { spectrumUnit } from "../dsp/spectrum_kinds.ts";
 import { segmentMetadata } from "../dsp/segment_metadata.ts";
 import { levelDb, levelUnit, standardReference } from "../acoustics/levels.ts";
 import { spectrogramAgainstRpm } from "../orders/rpm_spectrogram.ts";
@@ -57,6 +58,12 @@ export interface TonesOptions extends SpeedSource, RpmStepOptions {
   readonly minTnr?: number;
   /** The criterion of the verdict. Default "tnr". */
   readonly criterion?: Criterion;
+}
+
+/** A tones result: the table, and against time the averaged PSD the tones were found in. */
+export interface TonesResult {
+  readonly table: Table<TonesMetadata, ColumnValues>;
+  readonly spectrum?: Table;
 }
 
 /** The power of two whose lines at `rate` are at most `df` Hz apart. */
@@ -140,7 +147,7 @@ function tableOf(
  * // A 1 kHz tone of 0.1 Pa rms in noise of 0.01 Pa rms at 8192 Hz.
  * const rate = 8192, noise = gaussianNoise(3, 8 * rate);
  * const data = noise.map((v, i) => 0.01 * v + 0.1 * Math.SQRT2 * Math.sin(2 * Math.PI * 1000 * i / rate));
- * const t = await tonesAnalysis({ rate, startTime: 0, channels: [{ name: "mic", unit: "Pa", data }] });
+ * const { table: t } = await tonesAnalysis({ rate, startTime: 0, channels: [{ name: "mic", unit: "Pa", data }] });
  * const f = t.columns.find((c) => c.name === "frequency_hz")!.values as Float64Array;
  * if (f.length !== 1 || Math.abs(f[0] - 1000) > 1) throw new Error(String(f));
  * ```
@@ -148,7 +155,7 @@ function tableOf(
 export async function tonesAnalysis(
   source: RecordingSource,
   options: TonesOptions = {},
-): Promise<Table<TonesMetadata, ColumnValues>> {
+): Promise<TonesResult> {
   const stream = asStream(source);
   const against = options.against ?? "time";
   const criterion = options.criterion ?? "tnr";
@@ -194,7 +201,7 @@ export async function tonesAnalysis(
         });
       }
     });
-    return tableOf(rows, false, levelUnitOf(channels), {
+    const table = tableOf(rows, false, levelUnitOf(channels), {
       ...common,
       min_tnr_db: minTnr,
       orders: [],
@@ -213,6 +220,18 @@ export async function tonesAnalysis(
       rate_hz: rate,
       warnings,
     });
+    const spectrum: Table = {
+      columns: [
+        { name: "frequency_hz", unit: "Hz", values: estimate.frequencies },
+        ...channels.map((c, i) => ({
+          name: c.name,
+          unit: spectrumUnit(c.unit, "psd"),
+          values: estimate.auto[i],
+        })),
+      ],
+      metadata: { analysis: "tones spectrum", kind: "psd", window: "hann", df_hz: estimate.df },
+    };
+    return { table, spectrum };
   }
   const orders = options.orders ?? [];
   if (orders.length === 0) throw new RangeError("tones against rpm need the orders to follow");
@@ -249,7 +268,7 @@ export async function tonesAnalysis(
     }
   });
   const m = map.metadata;
-  return tableOf(rows, true, levelUnitOf(channels), {
+  const table = tableOf(rows, true, levelUnitOf(channels), {
     ...common,
     min_tnr_db: minTnr,
     orders: [...orders],
@@ -268,6 +287,7 @@ export async function tonesAnalysis(
     frame_centre: m.frame_centre,
     warnings: m.warnings ?? [],
   });
+  return { table };
 }
 
 /** An order above half the rate: nothing measured. */

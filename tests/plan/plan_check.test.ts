@@ -102,7 +102,7 @@ describe("what each problem says", () => {
       ],
     });
     const types =
-      'type "min" or "max" checks one value (keys id, value, of: {analysis, quantity}; optional unit, description, of.channel, of.mode); ' +
+      'type "min" or "max" checks one value (keys id, value, of: {analysis, quantity}; optional unit, description, of.channel, of.mode, of.order, of.frequency_hz); ' +
       'type "limit_curve" checks a spectrum against a curve (keys id, limit: "min" or "max", of: {analysis, channel}, points: [[Hz, value], …]; optional unit, description)';
     expect(lines).toEqual([
       `plan key targets[0].type: "maxx" is not a target type; did you mean "max"? (${types})`,
