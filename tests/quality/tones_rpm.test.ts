@@ -1,0 +1,49 @@
+/**
+ * Tones against rpm: a synthetic run-up with an order of known amplitude
+ * over white noise of known density gives TNR = 10·lg(A² / (N0·Δf_c(f)))
+ * along the rpm steps (ECMA-418-1's definition, analytic), at f = k·rpm/60.
+ */
+import { describe, expect, test } from "vitest";
+import { assertClose } from "../helpers/assert_close.ts";
+import { linearProfile, orderResponse } from "../helpers/run_up.ts";
+import { tonesAnalysis } from "../../lib/quality/tones_analysis.ts";
+
+// ECMA-418-1, from memory: Δf_c = 25 + 75·(1 + 1.4·(f/1000)²)^0.69 Hz.
+const bandwidth = (f: number) => 25 + 75 * (1 + 1.4 * (f / 1000) ** 2) ** 0.69;
+
+describe("tones against rpm", () => {
+  test("order 16 of 0.05 Pa over noise: the expected TNR at each rpm step", async () => {
+    const rate = 4096, seconds = 60, sigma = 0.02, a = 0.05;
+    const profile = linearProfile(600, 1200, seconds);
+    const mic = orderResponse(profile, rate, seconds, [{ order: 16, rms: () => a }], sigma, 41);
+    const rpm = new Float64Array(mic.length).map((_, i) => profile.rpm(i / rate));
+    const { table } = await tonesAnalysis({
+      rate,
+      startTime: 0,
+      channels: [{ name: "n", unit: "rpm", data: rpm }, { name: "mic", unit: "Pa", data: mic }],
+    }, {
+      against: "rpm",
+      rpmChannel: "n",
+      orders: [16],
+      rpmStep: 50,
+      block: 1024,
+      frames: 8,
+    });
+    const col = (n: string) => table.columns.find((c) => c.name === n)!.values as Float64Array;
+    const steps = col("rpm"), tnr = col("tnr_db"), f = col("frequency_hz");
+    expect(steps.length).toBeGreaterThan(8);
+    // White noise of variance σ² has the one-sided density 2σ²/fs (Bendat & Piersol, eq. 5.180).
+    const n0 = 2 * sigma * sigma / rate;
+    let sum = 0;
+    for (let i = 0; i < steps.length; i++) {
+      expect(f[i]).toBeCloseTo(16 * steps[i] / 60, 9);
+      const expected = 10 * Math.log10(a * a / (n0 * bandwidth(f[i])));
+      // One step's noise estimate rests on ~8 segments of ~25 lines: about ±0.5 dB.
+      assertClose(tnr[i], expected, { relative: 0, absolute: 1.5 }, `TNR at ${steps[i]} rpm`);
+      sum += tnr[i] - expected;
+    }
+    // Over the steps the scatter averages out: no bias beyond 0.3 dB.
+    assertClose(sum / steps.length, 0, { relative: 0, absolute: 0.3 }, "mean error");
+    expect(table.columns.find((c) => c.name === "channel")!.values[0]).toBe("mic");
+  });
+});
