@@ -5,7 +5,8 @@
  *
  * The tone's lines: the Hann window's main lobe around the peak (±2 lines,
  * Harris 1978), widened while the next line still stands more than 3 dB
- * above the noise (a tone that moved within the averaging time). Summed over
+ * above the noise (a tone that moved within the averaging time, as an order
+ * in a run-up), up to three eighths of the critical band either side. Summed over
  * the whole lobe, a Hann-windowed density holds a tone's whole mean square
  * (Parseval), where the standard's reading between the tone's −3 dB points
  * (from memory) depends on where the tone falls between lines.
@@ -99,8 +100,8 @@ export function toneToNoise(
   const band = criticalBand(f0);
   if (band.low < 0 || band.high > (density.length - 0.5) * df) return NOT_MEASURED(peak, df);
   const skip = options.skip ?? (() => false);
-  // The tone may widen up to half its critical band.
-  const reach = Math.max(MAIN_LOBE_LINES, Math.floor(criticalBandwidth(f0) / (4 * df)));
+  // The tone may widen over up to three quarters of its critical band.
+  const reach = Math.max(MAIN_LOBE_LINES, Math.floor(3 * criticalBandwidth(f0) / (8 * df)));
   let first = Math.max(1, peak - MAIN_LOBE_LINES);
   let last = Math.min(density.length - 1, peak + MAIN_LOBE_LINES);
   const noiseDensity = () => {
@@ -113,15 +114,21 @@ export function toneToNoise(
     const width = band.high - band.low - skipped;
     return width > 1e-9 * df ? power / width : NaN;
   };
-  let noise = noiseDensity();
+  // The lobe widens against the band's median line (a smeared tone lifts the mean, not the
+  // median), then against the mean of the lines outside it, until it no longer grows.
+  let noise = medianLine(density, df, band, (k) => (k >= first && k <= last) || skip(k));
   if (!(noise >= 0)) return NOT_MEASURED(peak, df);
-  const above = (k: number) =>
-    k >= 1 && k < density.length && Math.abs(k - peak) <= reach && !skip(k) &&
-    density[k] > WIDEN_RATIO * noise;
-  while (above(first - 1)) first--;
-  while (above(last + 1)) last++;
-  noise = noiseDensity();
-  if (!(noise >= 0)) return NOT_MEASURED(peak, df);
+  for (let pass = 0; pass < 8; pass++) {
+    const above = (k: number) =>
+      k >= 1 && k < density.length && Math.abs(k - peak) <= reach && !skip(k) &&
+      density[k] > WIDEN_RATIO * noise;
+    const before = last - first;
+    while (above(first - 1)) first--;
+    while (above(last + 1)) last++;
+    noise = noiseDensity();
+    if (!(noise >= 0)) return NOT_MEASURED(peak, df);
+    if (last - first === before && pass > 0) break;
+  }
   let tone = 0, moment = 0;
   for (let k = first; k <= last; k++) {
     if (skip(k)) continue;
@@ -140,4 +147,21 @@ export function toneToNoise(
     first,
     last,
   };
+}
+
+/** The median density of the band's lines whose centres lie inside it, `skip` left out. */
+function medianLine(
+  density: Float64Array,
+  df: number,
+  band: { low: number; high: number },
+  skip: (k: number) => boolean,
+): number {
+  const values: number[] = [];
+  for (let k = Math.ceil(band.low / df); k * df <= band.high && k < density.length; k++) {
+    if (k >= 0 && !skip(k)) values.push(density[k]);
+  }
+  if (values.length === 0) return NaN;
+  values.sort((a, b) => a - b);
+  const mid = values.length >> 1;
+  return values.length % 2 === 1 ? values[mid] : (values[mid - 1] + values[mid]) / 2;
 }

@@ -46,4 +46,29 @@ describe("tones against rpm", () => {
     assertClose(sum / steps.length, 0, { relative: 0, absolute: 0.3 }, "mean error");
     expect(table.columns.find((c) => c.name === "channel")!.values[0]).toBe("mic");
   });
+
+  test("a fast run-up (order 16 sweeping 113 Hz/s, over ~4 lines a frame): the lobe widens with it", async () => {
+    const rate = 8192, seconds = 12, sigma = 0.005, a = 0.02;
+    const profile = linearProfile(900, 6000, seconds);
+    const mic = orderResponse(profile, rate, seconds, [{ order: 16, rms: () => a }], sigma, 42);
+    const rpm = new Float64Array(mic.length).map((_, i) => profile.rpm(i / rate));
+    const { table } = await tonesAnalysis({
+      rate,
+      startTime: 0,
+      channels: [{ name: "n", unit: "rpm", data: rpm }, { name: "mic", unit: "Pa", data: mic }],
+    }, { against: "rpm", rpmChannel: "n", orders: [16], rpmStep: 250, block: 1024 });
+    const col = (n: string) => table.columns.find((c) => c.name === n)!.values as Float64Array;
+    const tnr = col("tnr_db"), f = col("frequency_hz"), level = col("level_db");
+    const n0 = 2 * sigma * sigma / rate; // Bendat & Piersol, eq. 5.180
+    let sum = 0;
+    for (let i = 0; i < tnr.length; i++) {
+      const expected = 10 * Math.log10(a * a / (n0 * bandwidth(f[i])));
+      // One frame of 4 segments over ~13 lines of band at the low end: about ±1 dB a step.
+      assertClose(tnr[i], expected, { relative: 0, absolute: 3 }, `TNR at ${f[i]} Hz`);
+      // The tone's whole power is kept: 0.02 Pa re 20 µPa, 60 dB.
+      assertClose(level[i], 20 * Math.log10(a / 20e-6), { relative: 0, absolute: 0.3 }, "level");
+      sum += tnr[i] - expected;
+    }
+    assertClose(sum / tnr.length, 0, { relative: 0, absolute: 0.75 }, "mean error");
+  });
 });
