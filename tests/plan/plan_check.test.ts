@@ -71,11 +71,11 @@ describe("six planted mistakes", () => {
     expect(r.stderr.split("\n").slice(1).join("\n")).toBe(
       [
         '  plan key analyses[0].options.windwo: spectrum has no option "windwo"; did you mean "window"?',
-        '  plan key analyses[1].command: unknown command "spectrun"; did you mean "spectrum"? (allowed: spectrum, frf, hammer, damping, bands, level, orders, spectrogram, modal, mac, paths, comfort, hand-arm)',
+        '  plan key analyses[1].command: unknown command "spectrun"; did you mean "spectrum"? (allowed: spectrum, frf, hammer, damping, bands, level, orders, spectrogram, modal, mac, paths, comfort, hand-arm, tones)',
         '  plan key analyses[2].options.kind: unknown value "rsm" (allowed: psd, power, rms, peak)',
         '  plan key analyses[3].recording: no recording "tunel" in recordings; did you mean "tunnel"? (recordings: road, tunnel)',
         '  plan key analyses[4].id: "road_psd" is used twice (analyses[0].id has it too): ids must differ',
-        '  plan key targets[0].of.quantity: unknown quantity "overal_db"; did you mean "overall_db"? (allowed: first_mode_hz, mode_hz, overall_db, leq_db, lmax_db, pair_mac, pair_shift_percent, aw, mtvv, vdv, a_hv, a8)',
+        '  plan key targets[0].of.quantity: unknown quantity "overal_db"; did you mean "overall_db"? (allowed: first_mode_hz, mode_hz, overall_db, leq_db, lmax_db, pair_mac, pair_shift_percent, aw, mtvv, vdv, a_hv, a8, tnr_db)',
         "",
       ].join("\n"),
     );
