@@ -81,6 +81,28 @@ function centre(edge: number, sign: 1 | -1): number {
   return (lo + hi) / 2;
 }
 
+describe("two tones in one critical band", () => {
+  test("each is measured on its own: the other is neither its tone nor its noise", () => {
+    // Tones at 2000 and 2060 Hz (Δf_c(2 kHz) ≈ 303 Hz holds both) in white noise: each TNR is
+    // 10·lg(its mean square / (n0·Δf_c)) as if alone (our choice: ECMA-418-1's handling of
+    // several tones in a band is not taken up).
+    const sigma = 0.05, n0 = whiteDensity(sigma);
+    const noise = gaussianNoise(15, 60 * RATE);
+    const x = noise.map((v, i) =>
+      sigma * v + 0.03 * Math.SQRT2 * Math.sin(2 * Math.PI * 2000 * i / RATE) +
+      0.01 * Math.SQRT2 * Math.sin(2 * Math.PI * 2060 * i / RATE)
+    );
+    const est = spectrumOf(x);
+    const tones = findTones(est.auto[0], est.df);
+    expect(tones.map((t) => Math.round(t.frequency))).toEqual([2000, 2060]);
+    tones.forEach((t, i) => {
+      const rms = [0.03, 0.01][i];
+      const expected = 10 * Math.log10(rms * rms / (n0 * bandwidth([2000, 2060][i])));
+      assertClose(t.tnrDb, expected, { relative: 0, absolute: 0.25 }, `TNR ${t.frequency}`);
+    });
+  });
+});
+
 describe("prominence ratio of a tone in white noise (analytic)", () => {
   // PR = 10·lg(W_M / ((W_L + W_U)/2)), W the power in the middle critical band and the two
   // bands beside it, each as wide as the critical band at its centre (ECMA-418-1, from memory).
