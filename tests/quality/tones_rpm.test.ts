@@ -7,6 +7,8 @@ import { describe, expect, test } from "vitest";
 import { assertClose } from "../helpers/assert_close.ts";
 import { linearProfile, orderResponse } from "../helpers/run_up.ts";
 import { tonesAnalysis } from "../../lib/quality/tones_analysis.ts";
+import { openRecordingStream } from "../../lib/io/recording_stream.ts";
+import { mkdtemp, rm, writeFile } from "node:fs/promises";
 
 // ECMA-418-1, from memory: Δf_c = 25 + 75·(1 + 1.4·(f/1000)²)^0.69 Hz.
 const bandwidth = (f: number) => 25 + 75 * (1 + 1.4 * (f / 1000) ** 2) ** 0.69;
@@ -70,5 +72,38 @@ describe("tones against rpm", () => {
       sum += tnr[i] - expected;
     }
     assertClose(sum / tnr.length, 0, { relative: 0, absolute: 0.75 }, "mean error");
+  });
+
+  test("a CSV read in the reader's chunks gives the numbers of the recording in memory", async () => {
+    const rate = 4096, seconds = 20;
+    const profile = linearProfile(900, 1800, seconds);
+    const mic = orderResponse(profile, rate, seconds, [{ order: 8, rms: () => 0.03 }], 0.01, 43);
+    const rpm = new Float64Array(mic.length).map((_, i) => profile.rpm(i / rate));
+    const dir = await mkdtemp("/tmp/quiver-tones-stream-");
+    try {
+      // Shortest round-trip text: the file holds the very same doubles.
+      const lines = ["time_s,n [rpm],mic [Pa]"];
+      for (let i = 0; i < mic.length; i++) lines.push(`${i / rate},${rpm[i]},${mic[i]}`);
+      await writeFile(`${dir}/r.csv`, lines.join("\n") + "\n");
+      const options = {
+        against: "rpm" as const,
+        rpmChannel: "n",
+        orders: [8],
+        rpmStep: 100,
+        block: 1024,
+      };
+      const memory = await tonesAnalysis({
+        rate,
+        startTime: 0,
+        channels: [{ name: "n", unit: "rpm", data: rpm }, { name: "mic", unit: "Pa", data: mic }],
+      }, options);
+      const file = await tonesAnalysis(await openRecordingStream(`${dir}/r.csv`), options);
+      for (const name of ["rpm", "frequency_hz", "level_db", "tnr_db", "pr_db"]) {
+        const of = (t: typeof memory) => t.table.columns.find((c) => c.name === name)!.values;
+        expect(Array.from(of(file)), name).toEqual(Array.from(of(memory)));
+      }
+    } finally {
+      await rm(dir, { recursive: true, force: true });
+    }
   });
 });
