@@ -6,7 +6,7 @@
  */
 import { z } from "npm:zod@4.6.7";
 import { toStderr } from "./terminal.ts";
-import { numberOption, parseCommandArgs, usageError } from "./args.ts";
+import { integerOption, listOption, numberOption, parseCommandArgs, usageError } from "./args.ts";
 import { writeResult } from "./output.ts";
 import {
   analyseRecording,
@@ -27,8 +27,6 @@ import { SAFETY_NOTE, tonesAnalysis } from "../lib/quality/tones_analysis.ts";
 import { CRITERIA } from "../lib/quality/tones_criteria.ts";
 import { TONES_OUTPUTS } from "../lib/quality/tones_descriptor.ts";
 import { formatNumber } from "../lib/format_number.ts";
-import { listOption } from "./args.ts";
-import { integerOption } from "./args.ts";
 
 /** One-line summary for the command list. */
 export const summary = "tonal prominence (ECMA-418-1): TNR and PR of tones, or of orders along rpm";
@@ -107,6 +105,16 @@ export const schema = z.strictObject(shapeOf(TABLE))
   })
   .refine((v) => v.against === "rpm" || (!rpmGiven(v) && v.orders === undefined), {
     message: "--orders, --tacho and --rpm-channel go with --against rpm",
+  })
+  .refine(
+    (v) =>
+      v.against === "rpm" ||
+      (v.frames === undefined &&
+        Object.keys(SPEED_TABLE).every((k) => (v as Record<string, unknown>)[k] === undefined)),
+    { message: "--frames and the speed options go with --against rpm" },
+  )
+  .refine((v) => v.against !== "rpm" || v["min-tnr"] === undefined, {
+    message: "--min-tnr goes with --against time (against rpm every step's orders are listed)",
   })
   .refine((v) => v.tacho === undefined || v["rpm-channel"] === undefined, {
     message: "give --tacho (with --ppr) or --rpm-channel, one of them",

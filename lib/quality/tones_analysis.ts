@@ -143,10 +143,11 @@ function tableOf(
  * @example
  * ```ts
  * import { tonesAnalysis } from "./tones_analysis.ts";
- * import { gaussianNoise } from "../../tests/helpers/random.ts";
- * // A 1 kHz tone of 0.1 Pa rms in noise of 0.01 Pa rms at 8192 Hz.
- * const rate = 8192, noise = gaussianNoise(3, 8 * rate);
- * const data = noise.map((v, i) => 0.01 * v + 0.1 * Math.SQRT2 * Math.sin(2 * Math.PI * 1000 * i / rate));
+ * // A 1 kHz tone of 0.1 Pa rms in uniform noise (a linear congruential generator) at 8192 Hz.
+ * const rate = 8192;
+ * let seed = 1;
+ * const noise = () => (seed = (seed * 1103515245 + 12345) % 2147483648) / 2147483648 - 0.5;
+ * const data = new Float64Array(8 * rate).map((_, i) => 0.03 * noise() + 0.1 * Math.SQRT2 * Math.sin(2 * Math.PI * 1000 * i / rate));
  * const { table: t } = await tonesAnalysis({ rate, startTime: 0, channels: [{ name: "mic", unit: "Pa", data }] });
  * const f = t.columns.find((c) => c.name === "frequency_hz")!.values as Float64Array;
  * if (f.length !== 1 || Math.abs(f[0] - 1000) > 1) throw new Error(String(f));

@@ -44,6 +44,12 @@ describe("quiver tones", () => {
       ["--against rpm without orders", ["--against", "rpm", "--rpm-channel", "acc"], /--orders/],
       ["orders against time", ["--orders", "8"], /go with --against rpm/],
       ["no channel in Pa", ["--channels", "nope"], /nope/],
+      ["an rpm step against time", ["--rpm-step", "50"], /go with --against rpm/],
+      [
+        "--min-tnr against rpm",
+        ["--against", "rpm", "--rpm-channel", "acc", "--orders", "8", "--min-tnr", "3"],
+        /--min-tnr goes with --against time/,
+      ],
     ] as const
   ) {
     test(`refused: ${what}`, async () => {
