@@ -84,12 +84,22 @@ test("tones steps against time and rpm, tnr_db targets of a tone and an order, r
   expect(manifest.status).toBe("ok");
   expect(Object.keys(manifest.steps[0].outputs)).toEqual(["out", "spectrum-out"]);
   expect(Object.keys(manifest.steps[1].outputs)).toEqual(["out"]);
-  const targets = Object.fromEntries(manifest.targets.map((t) => [t.id, t]));
+  type Outcome = {
+    id: string;
+    value: number;
+    pass: boolean;
+    status: string;
+    description: string;
+    reason: string;
+  };
+  const targets = Object.fromEntries(
+    (manifest.targets as readonly Outcome[]).map((t) => [t.id, t]),
+  );
   // White noise of variance σ² has the density 2σ²/fs (Bendat & Piersol, eq. 5.180). The steady
   // tone's TNR over 30 s: 10·lg(0.02² / (n0·Δf_c(2 kHz))); the sweeping order at 12·rpm/60 lies
   // far outside its critical band except where it passes 2 kHz (at 10 000 rpm: never).
   const n0 = 2 * SIGMA * SIGMA / RATE;
-  const tone = targets.tone as { value: number; pass: boolean };
+  const tone = targets.tone;
   assertClose(tone.value, 10 * Math.log10(0.02 ** 2 / (n0 * bandwidth(2000))), {
     relative: 0,
     absolute: 0.5,
@@ -97,14 +107,14 @@ test("tones steps against time and rpm, tnr_db targets of a tone and an order, r
   expect(tone.pass).toBe(true);
   // The order's highest TNR over the steps: at the top step the band is widest, so the TNR is
   // least there; the highest is near the lowest step (240 Hz), within a step's scatter (±1.5 dB).
-  const order = targets.order as { value: number; pass: boolean; description: string };
+  const order = targets.order;
   const lowest = 10 * Math.log10(0.03 ** 2 / (n0 * bandwidth(12 * 1200 / 60)));
   expect(order.value).toBeGreaterThan(lowest - 1.5);
   expect(order.value).toBeLessThan(lowest + 3);
   expect(order.pass).toBe(false);
   expect(order.description).toMatch(/order 12 at \d+ rpm/);
   expect(targets.wrong.status).toBe("not_checked");
-  expect((targets.wrong as { reason: string }).reason).toMatch(/of\.order, not of\.frequency_hz/);
+  expect(targets.wrong.reason).toMatch(/of\.order, not of\.frequency_hz/);
 
   const html = await readFile(`${dir}/out/report.html`, "utf8");
   expect(html).toMatch(/<table class="tones">/);
