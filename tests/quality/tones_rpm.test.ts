@@ -99,7 +99,8 @@ describe("tones against rpm", () => {
       }, options);
       const file = await tonesAnalysis(await openRecordingStream(`${dir}/r.csv`), options);
       for (const name of ["rpm", "frequency_hz", "level_db", "tnr_db", "pr_db"]) {
-        const of = (t: typeof memory) => t.table.columns.find((c) => c.name === name)!.values;
+        const of = (t: typeof memory) =>
+          t.table.columns.find((c) => c.name === name)!.values as Float64Array;
         expect(Array.from(of(file)), name).toEqual(Array.from(of(memory)));
       }
     } finally {
