@@ -77,3 +77,16 @@ export {
 } from "./lib/quality/loudness_time_varying.ts";
 export { sharpness, sharpnessWeighting } from "./lib/quality/sharpness.ts";
 export { LOUDNESS_BANDS } from "./lib/quality/loudness_bands.ts";
+// Tonal prominence (ECMA-418-1), lib/quality/ (shared with other sound-quality helpers).
+export {
+  bandAbove,
+  bandBelow,
+  bandPower,
+  criticalBand,
+  criticalBandwidth,
+} from "./lib/quality/critical_band.ts";
+export { type ToneMeasure, toneToNoise } from "./lib/quality/tone_to_noise.ts";
+export { prominenceBands, prominenceRatio } from "./lib/quality/prominence_ratio.ts";
+export { prCriterion, tnrCriterion } from "./lib/quality/tones_criteria.ts";
+export { findTones, type Tone, toneAt } from "./lib/quality/tones_search.ts";
+export { tonesAnalysis, type TonesOptions } from "./lib/quality/tones_analysis.ts";

@@ -40,6 +40,7 @@ const HELP_ORDER = [
   "level",
   "calibrate",
   "orders",
+  "tones",
   "comfort",
   "hand-arm",
   "loudness",

@@ -28,6 +28,7 @@ import { comfortDescriptor } from "./comfort/comfort_descriptor.ts";
 import { handArmDescriptor } from "./comfort/hand_arm_descriptor.ts";
 import { speechDescriptor } from "./quality/speech_descriptor.ts";
 import { loudnessDescriptor } from "./quality/loudness_descriptor.ts";
+import { tonesDescriptor } from "./quality/tones_descriptor.ts";
 
 /** A table of analyses with what the command table, plans and targets ask of it. */
 export interface AnalysisTable {
@@ -108,4 +109,5 @@ export const ANALYSES: AnalysisTable = analysisTable([
   handArmDescriptor,
   speechDescriptor,
   loudnessDescriptor,
+  tonesDescriptor,
 ]);

@@ -13,6 +13,10 @@ export interface QuantityOf {
   readonly channel?: string;
   /** The mode (1-based), for quantities of one mode. */
   readonly mode?: number;
+  /** The order, for quantities of one order of a run-up (tones against rpm). */
+  readonly order?: number;
+  /** The frequency, Hz, for quantities of the tone nearest it. */
+  readonly frequencyHz?: number;
 }
 
 /** A quantity's value, and what it was judged on when that is not plain (the mode used). */

@@ -138,6 +138,8 @@ function valueTargetOf(table: AnalysisTable) {
       quantity: z.enum(names(table.quantities)),
       channel: z.string().optional(),
       mode: z.number().int().positive().optional(),
+      order: z.number().positive().optional(),
+      frequency_hz: z.number().positive().optional(),
     }),
   });
 }
@@ -287,7 +289,7 @@ export function stepFile(step: PlanAnalysis, key: string): string | undefined {
 
 /** What each target type needs, for messages. */
 const TARGET_TYPES =
-  'type "min" or "max" checks one value (keys id, value, of: {analysis, quantity}; optional unit, description, of.channel, of.mode); ' +
+  'type "min" or "max" checks one value (keys id, value, of: {analysis, quantity}; optional unit, description, of.channel, of.mode, of.order, of.frequency_hz); ' +
   'type "limit_curve" checks a spectrum against a curve (keys id, limit: "min" or "max", of: {analysis, channel}, points: [[Hz, value], …]; optional unit, description)';
 
 /** An item of a plan list that passed its schema, or what could be read of one that did not. */

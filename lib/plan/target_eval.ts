@@ -50,13 +50,15 @@ async function quantityOf(
   result: ResultTable,
   table: AnalysisTable,
 ): Promise<QuantityValue> {
-  const { quantity, channel, mode } = t.of;
+  const { quantity, channel, mode, order, frequency_hz } = t.of;
   const read = table.quantity(quantity);
   // The plan's schema takes only the table's quantities: this is a plan checked against another.
   if (read === undefined) throw new Error(`no analysis gives the quantity "${quantity}"`);
   return await read(result, {
     ...(channel !== undefined ? { channel } : {}),
     ...(mode !== undefined ? { mode } : {}),
+    ...(order !== undefined ? { order } : {}),
+    ...(frequency_hz !== undefined ? { frequencyHz: frequency_hz } : {}),
   });
 }
 

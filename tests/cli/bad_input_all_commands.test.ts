@@ -37,6 +37,7 @@ const COMMANDS: Record<string, string[]> = {
   level: ["--reference", "1", "--weighting", "Z"],
   orders: ["--tacho", "f", "--ppr", "1", "--channels", "a"],
   comfort: ["--weighting", "wk", "--channels", "a"],
+  tones: ["--channels", "a"],
 };
 
 describe("every command refuses bad recordings the same way and writes nothing", () => {

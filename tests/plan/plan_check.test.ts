@@ -71,11 +71,11 @@ describe("six planted mistakes", () => {
     expect(r.stderr.split("\n").slice(1).join("\n")).toBe(
       [
         '  plan key analyses[0].options.windwo: spectrum has no option "windwo"; did you mean "window"?',
-        '  plan key analyses[1].command: unknown command "spectrun"; did you mean "spectrum"? (allowed: spectrum, frf, hammer, damping, bands, level, orders, spectrogram, modal, mac, paths, comfort, hand-arm, speech, loudness)',
+        '  plan key analyses[1].command: unknown command "spectrun"; did you mean "spectrum"? (allowed: spectrum, frf, hammer, damping, bands, level, orders, spectrogram, modal, mac, paths, comfort, hand-arm, speech, loudness, tones)',
         '  plan key analyses[2].options.kind: unknown value "rsm" (allowed: psd, power, rms, peak)',
         '  plan key analyses[3].recording: no recording "tunel" in recordings; did you mean "tunnel"? (recordings: road, tunnel)',
         '  plan key analyses[4].id: "road_psd" is used twice (analyses[0].id has it too): ids must differ',
-        '  plan key targets[0].of.quantity: unknown quantity "overal_db"; did you mean "overall_db"? (allowed: first_mode_hz, mode_hz, overall_db, leq_db, lmax_db, pair_mac, pair_shift_percent, aw, mtvv, vdv, a_hv, a8, sii, loudness_sone, n5_sone, sharpness_acum)',
+        '  plan key targets[0].of.quantity: unknown quantity "overal_db"; did you mean "overall_db"? (allowed: first_mode_hz, mode_hz, overall_db, leq_db, lmax_db, pair_mac, pair_shift_percent, aw, mtvv, vdv, a_hv, a8, sii, loudness_sone, n5_sone, sharpness_acum, tnr_db)',
         "",
       ].join("\n"),
     );
@@ -102,7 +102,7 @@ describe("what each problem says", () => {
       ],
     });
     const types =
-      'type "min" or "max" checks one value (keys id, value, of: {analysis, quantity}; optional unit, description, of.channel, of.mode); ' +
+      'type "min" or "max" checks one value (keys id, value, of: {analysis, quantity}; optional unit, description, of.channel, of.mode, of.order, of.frequency_hz); ' +
       'type "limit_curve" checks a spectrum against a curve (keys id, limit: "min" or "max", of: {analysis, channel}, points: [[Hz, value], …]; optional unit, description)';
     expect(lines).toEqual([
       `plan key targets[0].type: "maxx" is not a target type; did you mean "max"? (${types})`,

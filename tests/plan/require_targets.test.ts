@@ -16,7 +16,7 @@ describe("targets and the exit code", () => {
   test("by default a failed target is reported and the run exits 0", () => {
     const r = runQuiver(["run", `${dir}/tamarack_b2_plan.json`, "--out-dir", `${dir}/a`]);
     expect(r.code).toBe(0);
-    expect(r.stderr).toMatch(/targets 11\/12 passed/);
+    expect(r.stderr).toMatch(/targets 11\/13 passed/);
   });
 
   test("--require-targets makes it exit 4, naming the target", async () => {
@@ -29,6 +29,7 @@ describe("targets and the exit code", () => {
     ]);
     expect(r.code).toBe(4);
     expect(r.stderr).toMatch(/target cabin_thirds: FAIL/);
+    expect(r.stderr).toMatch(/target whine_tnr: FAIL/);
     const manifest = JSON.parse(await readFile(`${dir}/b/manifest.json`, "utf8"));
     expect(manifest.require_targets).toBe(true);
   });
