@@ -80,6 +80,8 @@ interface RecordingInfo {
   readonly file: string;
   /** The format's name (formats/mod.ts): "csv", "wav". */
   readonly format: string;
+  /** The container when the format has several and the file is not in the usual one ("RF64"). */
+  readonly container?: string;
   readonly delimiter: { readonly char: CsvDelimiter; readonly from: string } | null;
   readonly decimal_mark: { readonly char: DecimalMark; readonly from: string } | null;
   readonly time_column:
@@ -140,6 +142,7 @@ async function recordingInfo(
   const info: RecordingInfo = {
     file: resolve(input),
     format: format.name,
+    ...(found.container !== undefined ? { container: found.container } : {}),
     delimiter: found.delimiter,
     decimal_mark: found.decimalMark,
     time_column: found.timeColumn,
@@ -173,7 +176,12 @@ const withUnit = (name: string, unit: string) =>
 
 /** The human-readable form. */
 function infoText(info: RecordingInfo, where: string): string {
-  const lines = [`file: ${printable(info.file)}`, `format: ${info.format.toUpperCase()}`];
+  const lines = [
+    `file: ${printable(info.file)}`,
+    `format: ${info.format.toUpperCase()}${
+      info.container !== undefined ? ` (${info.container})` : ""
+    }`,
+  ];
   if (info.delimiter !== null) {
     lines.push(`delimiter: ${DELIMITER_NAMES[info.delimiter.char]} (${info.delimiter.from})`);
     lines.push(
