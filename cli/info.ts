@@ -18,7 +18,11 @@ import {
   setupTransforms,
 } from "../lib/io/channel_setup.ts";
 import { type CsvDelimiter, DELIMITER_NAMES } from "../lib/io/csv_dialect.ts";
-import { type DescribedChannel, sniffRecording } from "../lib/io/formats/mod.ts";
+import {
+  type DescribedChannel,
+  RECORDING_FORMAT_NAMES,
+  sniffRecording,
+} from "../lib/io/formats/mod.ts";
 import type { DecimalMark } from "../lib/io/numbers.ts";
 import { inFileAsync, parseCommandArgs, usageError } from "./args.ts";
 import { commandHelp, option, shapeOf, specOf } from "./option_table.ts";
@@ -47,7 +51,7 @@ const TABLE = { ...READING, ...OUTPUT };
 /** The command's help text. */
 export const help = commandHelp({
   usage: "quiver info IN [options]",
-  about: `What the recording IN (CSV or WAV) holds and how quiver reads it:
+  about: `What the recording IN (${RECORDING_FORMAT_NAMES}) holds and how quiver reads it:
 channels with their units, sample rate, length in samples and seconds; for a
 CSV the delimiter, decimal mark and time column found; with --setup what the
 set-up changes (names, units, factors, roles). Nothing is analysed: a CSV is

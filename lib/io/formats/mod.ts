@@ -54,6 +54,17 @@ function listed(words: readonly string[], last: string): string {
 }
 
 /**
+ * The formats quiver reads, for help texts: "CSV, WAV or MAT v5".
+ *
+ * @example
+ * ```ts
+ * import { RECORDING_FORMAT_NAMES } from "./mod.ts";
+ * if (!RECORDING_FORMAT_NAMES.startsWith("CSV, WAV")) throw new Error(RECORDING_FORMAT_NAMES);
+ * ```
+ */
+export const RECORDING_FORMAT_NAMES: string = listed(RECORDING_FORMATS.map((f) => f.label), "or");
+
+/**
  * The error for a file of no format quiver reads, naming them all; `advice`
  * (what to do about it) ends it in brackets.
  *
