@@ -98,6 +98,69 @@ describe("MAT v5 files written by scipy.io.savemat (and one big-endian by hand)"
   });
 });
 
+describe("MAT v5: the time vector and quiver info", () => {
+  const writeMat = async (variables: { name: string; values: Float64Array }[]) => {
+    const dir = await mkdtemp("/tmp/quiver-mat5-t-");
+    await writeFile(`${dir}/r.mat`, mat5File(variables, false));
+    return `${dir}/r.mat`;
+  };
+  const a = new Float64Array(5000).map((_, i) => Math.sin(i));
+
+  test("a time vector 10 + i/3000 s gives the nominal 3000 Hz and its first value as the start", async () => {
+    // (n − 1)/span of times 10 + i/3000 is 3000 Hz but for rounding of the doubles (analytic);
+    // measured from float64 times it is 2999.9999999999986 (numpy 2.4).
+    const t = new Float64Array(5000).map((_, i) => 10 + i / 3000);
+    const path = await writeMat([{ name: "time", values: t }, { name: "a", values: a }]);
+    const d = await (await sniffRecording(path)).describe(path, {});
+    expect(d.rate).toBe(3000);
+    expect(d.startTime).toBe(10);
+    expect(d.rateFrom).toBe('the time vector "time"');
+    const both = await writeMat([{ name: "fs", values: new Float64Array([3000]) }, {
+      name: "t",
+      values: t,
+    }, { name: "a", values: a }]);
+    const e = await (await sniffRecording(both)).describe(both, {});
+    expect(e.rateFrom).toBe('the variable "fs", agreeing with the time vector "t"');
+  });
+
+  test("a gap in the time vector is refused, naming the sample (as a CSV time column's)", async () => {
+    // Steps of 1 ms with one of 2 ms at sample 4000: 100 % off the median step, past 1 %.
+    const t = new Float64Array(5000).map((_, i) => (i < 4000 ? i : i + 1) / 1000);
+    const path = await writeMat([{ name: "t", values: t }, { name: "a", values: a }]);
+    await expect(openRecordingStream(path)).rejects.toThrow(
+      /the time vector variable "t" \(element at byte 128\): not uniform: the step to sample 4000 is 0\.002 s, the median step 0\.001 s/,
+    );
+  });
+
+  test(
+    "quiver info: format, rate and its source, length, channels with units, what is not read",
+    () => {
+      // make_mat5_reference.py: 512 samples at 1024 Hz, fs = 1024, units N and m/s^2.
+      const path = pathOf("shaker_f64");
+      const r = runQuiver(["info", path]);
+      expect(r.code).toBe(0);
+      const lines = r.stdout.split("\n");
+      expect(lines).toContain("format: MAT5");
+      expect(lines).toContain('sample rate: 1024 Hz (from the variable "fs")');
+      expect(lines).toContain("length: 512 samples, 0.5 s");
+      expect(lines).toContain("  variable 1: drive_force [N]");
+      expect(lines).toContain("  variable 2: mount_acc [m/s^2]");
+      expect(
+        lines.some((l) =>
+          /^not read: variable "setup" \(element at byte \d+\): a struct array$/.test(l)
+        ),
+      )
+        .toBe(true);
+      expect(lines.some((l) => /^not read: variable "operator" .*: a 1×6 char array$/.test(l)))
+        .toBe(true);
+      const rf64 = runQuiver(["info", fixturePath("recordings/rf64/bw64_pcm24.wav")]).stdout;
+      // make_rf64_reference.py: BW64, 4096 Hz, 512 frames.
+      expect(rf64).toContain("format: WAV (BW64)\nsample rate: 4096 Hz (from the BW64 header)\n");
+    },
+    120_000,
+  );
+});
+
 describe("bad MAT v5 files are refused, naming the file, the variable or element and its offset", () => {
   const plain = new Uint8Array(readFileSync(pathOf("shaker_f64")));
   const packed = new Uint8Array(readFileSync(pathOf("shaker_f64_z")));
