@@ -43,6 +43,7 @@ export class InflatedElement {
   #queue: Uint8Array[] = [];
   #queued = 0;
   #ended = false;
+  #inputEnded = false;
   #fault: Error | undefined;
   #wake: (() => void) | undefined;
   readonly #piece: Uint8Array;
@@ -73,8 +74,13 @@ export class InflatedElement {
 
   /** Feeds one more piece of compressed bytes (or ends the input) and waits for its output. */
   async #feed(): Promise<void> {
+    if (this.#inputEnded) {
+      this.#ended = true; // ended once already: nothing more will come
+      return;
+    }
     if (this.#position >= this.#end) {
       // No more input: wait for the stream's end (or its complaint of a cut stream).
+      this.#inputEnded = true;
       await new Promise<void>((resolve) => {
         this.#wake = resolve;
         this.#inflate.end();
@@ -85,7 +91,7 @@ export class InflatedElement {
     const { bytesRead } = await this.#handle.read(this.#piece, 0, n, this.#position);
     if (bytesRead < n) throw new InflateFault("the file ends inside the compressed bytes");
     this.#position += n;
-    // zlib keeps no reference to a written chunk once its callback ran: the piece is reused.
+    // A copy is written: the piece's buffer is reused for the next read.
     await new Promise<void>((resolve) => {
       this.#wake = resolve;
       this.#inflate.write(this.#piece.slice(0, n), () => resolve());
