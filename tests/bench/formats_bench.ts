@@ -13,6 +13,7 @@ import { existsSync } from "node:fs";
 import { mkdir, writeFile } from "node:fs/promises";
 import process from "node:process";
 import { fileURLToPath } from "node:url";
+import { openRecordingStream } from "../../lib/io/recording_stream.ts";
 import { mat5File } from "../helpers/mat5_write.ts";
 import { BLOCK, DIR, median, seeded } from "./bench_files.ts";
 import { timed } from "./timed.ts";
@@ -118,6 +119,25 @@ export async function formatRows(): Promise<void> {
     `  CSV ${median(times.csv).toFixed(2)} s, MAT ${median(times.mat).toFixed(2)} s, ` +
       `compressed MAT ${median(times.matZ).toFixed(2)} s (medians of 3); CSV/MAT time ratio ` +
       `${ratio("mat")}, CSV/compressed ${ratio("matZ")} (goal: several times faster)`,
+  );
+
+  // The reading alone, in this process (the command's start-up and transforms are the same for
+  // both): best of 3 of opening and reading both channels.
+  const ingest = async (file: string) => {
+    const runs: number[] = [];
+    for (let i = 0; i < 3; i++) {
+      const t0 = performance.now();
+      const stream = await openRecordingStream(file);
+      await stream.read([0, 1], () => {});
+      runs.push((performance.now() - t0) / 1000);
+    }
+    return Math.min(...runs);
+  };
+  const [ic, im, iz] = [await ingest(csv), await ingest(mat), await ingest(matZ)];
+  console.log(
+    `  reading alone (best of 3): CSV ${ic.toFixed(2)} s, MAT ${im.toFixed(2)} s, compressed MAT ${
+      iz.toFixed(2)
+    } s; CSV/MAT ${(ic / im).toFixed(1)}, CSV/compressed ${(ic / iz).toFixed(1)}`,
   );
 
   const big = "/tmp/quiver_bench_5gb_rf64.wav", small = "/tmp/quiver_bench_small_rf64.wav";
