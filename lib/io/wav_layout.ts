@@ -197,7 +197,7 @@ export function wavLayout(head: Uint8Array, fileSize: number, file?: string): Wa
       const available = fileSize - start;
       if (size > available) {
         fail(
-          `truncated: the data chunk at byte ${offset} declares ${size} bytes but the file holds ${available} after its header`,
+          `truncated: the data chunk declares ${size} bytes but the file holds ${available} after its header (the chunk is at byte ${offset})`,
         );
       }
       if (size % f.blockAlign !== 0) {
