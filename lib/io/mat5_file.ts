@@ -49,7 +49,16 @@ export interface Mat5Directory {
   readonly other: readonly string[];
 }
 
-/** A QuiverError for the file, naming the element (and variable) and its offset. */
+/**
+ * A QuiverError (data) for the file, the detail naming the element (and
+ * variable) and its offset.
+ *
+ * @example
+ * ```ts
+ * import { mat5Fault } from "./mat5_file.ts";
+ * if (mat5Fault("r.mat", "element at byte 128: cut").message !== "r.mat: element at byte 128: cut") throw new Error();
+ * ```
+ */
 export function mat5Fault(path: string, detail: string): QuiverError {
   return new QuiverError(detail, { file: path });
 }
@@ -66,6 +75,25 @@ async function readAt(handle: FileHandle, at: number, length: number): Promise<U
  * @throws {QuiverError} for an element that runs past the end of the file,
  * a header that is cut or malformed, or a compressed element that does not
  * inflate.
+ *
+ * @example
+ * ```ts
+ * import { Mat5Values, scanMat5, variableAt } from "./mat5_file.ts";
+ * import { open, mkdtemp, writeFile } from "node:fs/promises";
+ * // Header (version 0x0100, "IM"), then variable "a" = [1, 2]: array flags (double), dimensions
+ * // 1×2, name (small element), 16 bytes of miDOUBLE.
+ * const head = new Uint8Array(128);
+ * head.set([0x00, 0x01, 0x49, 0x4d], 124);
+ * const body = new Uint32Array([14, 64, 6, 8, 6, 0, 5, 8, 1, 2, 0x00010001, 0x61, 9, 16, 0, 0x3ff00000, 0, 0x40000000]);
+ * const dir = await mkdtemp("/tmp/quiver-doc-");
+ * await writeFile(`${dir}/a.mat`, new Uint8Array([...head, ...new Uint8Array(body.buffer)]));
+ * const handle = await open(`${dir}/a.mat`, "r");
+ * const { variables } = await scanMat5(`${dir}/a.mat`, handle, true);
+ * const out = new Float64Array(2);
+ * await new Mat5Values(`${dir}/a.mat`, handle, variables[0], true, 0, 2).read(out, 2);
+ * await handle.close();
+ * if (variableAt(variables[0]) !== 'variable "a" (element at byte 128)' || out[1] !== 2) throw new Error();
+ * ```
  */
 export async function scanMat5(
   path: string,
@@ -160,14 +188,14 @@ async function compressedHeader(
   }
 }
 
-/** How a variable is named in messages: its name and its element's offset. */
+/** How a variable is named in messages: its name and its element's offset (example: {@linkcode scanMat5}). */
 export const variableAt = (v: Mat5Variable): string =>
   `variable "${v.name}" (${v.compressed ? "compressed element" : "element"} at byte ${v.offset})`;
 
 /**
  * The values of a variable's real part (or of a stretch of it: one column
  * of a matrix), read in order chunk by chunk: from the file at their offset,
- * or inflated in a stream.
+ * or inflated in a stream. Example: {@linkcode scanMat5}.
  */
 export class Mat5Values {
   readonly #path: string;
@@ -251,7 +279,27 @@ export class Mat5Values {
   }
 }
 
-/** Every value of a small variable (a scalar, a unit's text), read whole. */
+/**
+ * Every value of a small variable (a scalar), read whole.
+ *
+ * @example
+ * ```ts
+ * import { readWhole, scanMat5 } from "./mat5_file.ts";
+ * import { open, mkdtemp, writeFile } from "node:fs/promises";
+ * // Header (version 0x0100, "IM"), then variable "a" = [1, 2]: array flags (double), dimensions
+ * // 1×2, name (small element), 16 bytes of miDOUBLE.
+ * const head = new Uint8Array(128);
+ * head.set([0x00, 0x01, 0x49, 0x4d], 124);
+ * const body = new Uint32Array([14, 64, 6, 8, 6, 0, 5, 8, 1, 2, 0x00010001, 0x61, 9, 16, 0, 0x3ff00000, 0, 0x40000000]);
+ * const dir = await mkdtemp("/tmp/quiver-doc-");
+ * await writeFile(`${dir}/a.mat`, new Uint8Array([...head, ...new Uint8Array(body.buffer)]));
+ * const handle = await open(`${dir}/a.mat`, "r");
+ * const { variables } = await scanMat5(`${dir}/a.mat`, handle, true);
+ * const values = await readWhole(`${dir}/a.mat`, handle, variables[0], true);
+ * await handle.close();
+ * if (values.length !== 2 || values[0] !== 1) throw new Error();
+ * ```
+ */
 export async function readWhole(
   path: string,
   handle: FileHandle,
@@ -270,7 +318,26 @@ export async function readWhole(
   return out;
 }
 
-/** The text of a char variable. */
+/**
+ * The text of a char variable.
+ *
+ * @example
+ * ```ts
+ * import { readText, scanMat5 } from "./mat5_file.ts";
+ * import { open, mkdtemp, writeFile } from "node:fs/promises";
+ * // Variable "u" = 'V': char class (4), dimensions 1×1, name, one miUTF8 byte (small elements).
+ * const head = new Uint8Array(128);
+ * head.set([0x00, 0x01, 0x49, 0x4d], 124);
+ * const body = new Uint32Array([14, 48, 6, 8, 4, 0, 5, 8, 1, 1, 0x00010001, 0x75, 0x00010010, 0x56]);
+ * const dir = await mkdtemp("/tmp/quiver-doc-");
+ * await writeFile(`${dir}/u.mat`, new Uint8Array([...head, ...new Uint8Array(body.buffer)]));
+ * const handle = await open(`${dir}/u.mat`, "r");
+ * const { variables } = await scanMat5(`${dir}/u.mat`, handle, true);
+ * const text = await readText(`${dir}/u.mat`, handle, variables[0], true);
+ * await handle.close();
+ * if (text !== "V") throw new Error(text);
+ * ```
+ */
 export async function readText(
   path: string,
   handle: FileHandle,

@@ -12,7 +12,15 @@ import { createInflate, type Inflate } from "node:zlib";
 /** Compressed bytes fed at a time: deflate expands at most ~1000×, so ≤ ~8 MB held. */
 const PIECE = 8192;
 
-/** Thrown when the stream does not inflate (bad data, cut short); the caller names the element. */
+/**
+ * Thrown when the stream does not inflate (bad data, cut short); the caller names the element.
+ *
+ * @example
+ * ```ts
+ * import { InflateFault } from "./mat5_inflate.ts";
+ * if (!(new InflateFault("incorrect header check") instanceof Error)) throw new Error();
+ * ```
+ */
 export class InflateFault extends Error {}
 
 /**

@@ -110,6 +110,24 @@ function kindOf(v: Mat5Variable, path: string): { kind: Kind; why?: string } {
  * @throws {QuiverError} for vectors of different lengths, no channel, no
  * rate (usage), rates that disagree (usage), a time vector that is not
  * uniform, or a bad element (naming variable and offset).
+ *
+ * @example
+ * ```ts
+ * import { mat5Layout } from "./mat5_recording.ts";
+ * import { scanMat5 } from "./mat5_file.ts";
+ * import { open, mkdtemp, writeFile } from "node:fs/promises";
+ * // Variable "a" = [1, 2] (as in scanMat5's example); the rate comes from --rate.
+ * const head = new Uint8Array(128);
+ * head.set([0x00, 0x01, 0x49, 0x4d], 124);
+ * const body = new Uint32Array([14, 64, 6, 8, 6, 0, 5, 8, 1, 2, 0x00010001, 0x61, 9, 16, 0, 0x3ff00000, 0, 0x40000000]);
+ * const dir = await mkdtemp("/tmp/quiver-doc-");
+ * const path = `${dir}/a.mat`;
+ * await writeFile(path, new Uint8Array([...head, ...new Uint8Array(body.buffer)]));
+ * const handle = await open(path, "r");
+ * const layout = await mat5Layout(path, handle, await scanMat5(path, handle, true), { rate: 100 });
+ * await handle.close();
+ * if (layout.length !== 2 || layout.channels[0].name !== "a" || layout.rateFrom !== "--rate") throw new Error();
+ * ```
  */
 export async function mat5Layout(
   path: string,

@@ -109,7 +109,19 @@ function readDs64(
   return { riff, data, table, end: 20 + size + (size % 2) };
 }
 
-/** Refuses a sample format quiver does not read. */
+/**
+ * Refuses a sample format quiver does not read, through `fail`.
+ *
+ * @example
+ * ```ts
+ * import { checkWavFormat } from "./wav_layout.ts";
+ * let message = "";
+ * checkWavFormat({ code: 1, channels: 2, rate: 8000, blockAlign: 4, bits: 16 }, (d) => { throw new Error(d); });
+ * try { checkWavFormat({ code: 1, channels: 2, rate: 8000, blockAlign: 4, bits: 12 }, (d) => { throw new Error(d); }); }
+ * catch (e) { message = (e as Error).message; }
+ * if (!message.includes("12 bits")) throw new Error(message);
+ * ```
+ */
 export function checkWavFormat(f: WavFormat, fail: (detail: string) => never): void {
   if (f.code !== FORMAT_PCM && f.code !== FORMAT_FLOAT) {
     fail(
