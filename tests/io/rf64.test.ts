@@ -59,6 +59,30 @@ describe("RF64 and BW64 files (WAV beyond 4 GB), written from the specifications
   });
 });
 
+describe("RF64 sizes past 4 GiB are 64-bit numbers, not 32-bit ints", () => {
+  test("a sparse 5 GiB RF64 file opens with its frame count from ds64", async () => {
+    // The fixture's header (make_rf64_reference.py) with ds64's sizes raised to 5 GiB of data,
+    // then the file extended sparse to that size: 5 GiB / 8-byte frames (2 × float32).
+    const head = bytesOf("rf64_float32").slice(0, 12 + 36 + 24 + 8);
+    const v = new DataView(head.buffer);
+    const data = 5 * 2 ** 30;
+    const dataStart = head.length; // ds64 (8 + 28), fmt (8 + 16), data tag (8) after byte 12
+    expect(String.fromCharCode(...head.subarray(dataStart - 8, dataStart - 4))).toBe("data");
+    v.setBigUint64(20, BigInt(dataStart - 8 + data), true);
+    v.setBigUint64(28, BigInt(data), true);
+    const dir = await mkdtemp("/tmp/quiver-rf64-big-");
+    const path = `${dir}/big.wav`;
+    await writeFile(path, head);
+    const { truncate } = await import("node:fs/promises");
+    await truncate(path, dataStart + data);
+    const stream = await openRecordingStream(path);
+    expect(stream.length).toBe(data / 8);
+    expect(stream.length / stream.rate).toBe(data / 8 / 4096);
+    const { rm } = await import("node:fs/promises");
+    await rm(dir, { recursive: true });
+  });
+});
+
 describe("bad RF64 headers are refused, naming the file, the chunk and its offset", () => {
   const good = bytesOf("rf64_pcm16");
   const refuse = (bytes: Uint8Array, pattern: RegExp) => {
