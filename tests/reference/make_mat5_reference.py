@@ -9,9 +9,10 @@ Files (fixtures/recordings/mat/):
 - shaker_f32_z.mat: float32 vectors, compressed, rate from a float64 time vector `t`.
 - shaker_i16.mat: int16 column vectors (oned_as="column"), scalar `sample_rate`.
 - shaker_matrix_z.mat: a 2-D samples x channels float64 matrix `acc` (N x 3) and `fs`, compressed.
-- shaker_be.mat: big-endian ("MI"), written by hand with struct from MATLAB's documented Level 5
+- shaker_be.mat, shaker_be_z.mat: big-endian ("MI"), written by hand with struct from MATLAB's documented Level 5
   layout (128-byte header, tags, array flags, dimensions, name in the small-element form for
-  names of up to 4 bytes, real part), float64 and int32 vectors and a float64 scalar `fs`.
+  names of up to 4 bytes, real part), float64 and int32 vectors and a float64 scalar `fs`; the _z
+  one with each variable's element deflated by zlib inside an miCOMPRESSED element.
 - mixed_lengths.mat: two float64 vectors of different lengths (refused).
 - shaker_f64_same.csv: shaker_f64.mat's samples as CSV (repr, exact), for the spectrum check.
 Expected values: scipy.io.loadmat reading each file back (for the hand-written big-endian file
@@ -20,6 +21,7 @@ too), as float64; the rate and where it comes from are what this script wrote.
 import json
 import struct
 import sys
+import zlib
 from pathlib import Path
 
 import numpy as np
@@ -55,13 +57,23 @@ def be_matrix(name: str, values: np.ndarray, mx_class: int, mi_type: int, dtype:
     return struct.pack(">II", 14, len(body)) + body
 
 
-def write_big_endian(path: Path, x: np.ndarray) -> None:
+def write_big_endian(path: Path, x: np.ndarray, compress: bool = False) -> None:
     text = b"MATLAB 5.0 MAT-file, written by quiver's make_mat5_reference.py (big-endian)"
     header = text.ljust(116, b" ") + bytes(8) + struct.pack(">H", 0x0100) + b"MI"
     body = be_matrix("fs", np.array([float(RATE)]), 6, 9, ">f8")  # mxDOUBLE, miDOUBLE
     body += be_matrix("wheel_z", x[0], 6, 9, ">f8")
     counts = np.round(x[1] * 1e6).astype(np.int64)
     body += be_matrix("seat_z_counts", counts, 12, 5, ">i4")  # mxINT32, miINT32
+    if compress:
+        # Each variable's element deflated (zlib) inside an miCOMPRESSED element, not padded.
+        parts = [body[:0]]
+        at = 0
+        while at < len(body):
+            size = struct.unpack(">I", body[at + 4:at + 8])[0]
+            z = zlib.compress(body[at:at + 8 + size])
+            parts.append(struct.pack(">II", 15, len(z)) + z)
+            at += 8 + size
+        body = b"".join(parts)
     path.write_bytes(header + body)
 
 
@@ -90,6 +102,8 @@ def main() -> None:
     expected_rate["shaker_matrix_z"] = [RATE, 'the variable "fs"']
     write_big_endian(OUT / "shaker_be.mat", x)
     expected_rate["shaker_be"] = [RATE, 'the variable "fs"']
+    write_big_endian(OUT / "shaker_be_z.mat", x, compress=True)
+    expected_rate["shaker_be_z"] = [RATE, 'the variable "fs"']
     scipy.io.savemat(OUT / "mixed_lengths.mat", {"a": x[0], "b": x[1][:-1], "fs": float(RATE)})
 
     rows = ["time_s,drive_force [N],mount_acc [m/s^2]"] + [
