@@ -69,6 +69,9 @@ type Kind = "scalar" | "vector" | "matrix" | "unit" | "other";
 function kindOf(v: Mat5Variable, path: string): { kind: Kind; why?: string } {
   const [rows, cols] = v.dims;
   const shape = v.dims.join("×");
+  // MATLAB keeps the contents of objects (string, table, datetime) in one unnamed variable at the
+  // end of the file, the header's subsystem data: not a channel.
+  if (v.name === "") return { kind: "other", why: "unnamed (MATLAB's subsystem data of objects)" };
   if (v.classId === CHAR_CLASS) {
     return v.name.endsWith("_unit") && v.dims.length === 2 && rows <= 1
       ? { kind: "unit" }

@@ -123,6 +123,18 @@ describe("MAT v5: the time vector and quiver info", () => {
     expect(e.rateFrom).toBe('the variable "fs", agreeing with the time vector "t"');
   });
 
+  test("an unnamed variable (MATLAB's subsystem data) is listed as not read, not a channel", async () => {
+    const path = await writeMat([{ name: "fs", values: new Float64Array([100]) }, {
+      name: "a",
+      values: a,
+    }, { name: "", values: new Float64Array(7) }]);
+    const d = await (await sniffRecording(path)).describe(path, {});
+    expect(d.channels.map((c) => c.name)).toEqual(["a"]);
+    expect(d.unsupported?.some((u) => u.startsWith('variable "" ') && u.includes("unnamed"))).toBe(
+      true,
+    );
+  });
+
   test("a gap in the time vector is refused, naming the sample (as a CSV time column's)", async () => {
     // Steps of 1 ms with one of 2 ms at sample 4000: 100 % off the median step, past 1 %.
     const t = new Float64Array(5000).map((_, i) => (i < 4000 ? i : i + 1) / 1000);
