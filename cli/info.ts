@@ -18,7 +18,11 @@ import {
   setupTransforms,
 } from "../lib/io/channel_setup.ts";
 import { type CsvDelimiter, DELIMITER_NAMES } from "../lib/io/csv_dialect.ts";
-import { type DescribedChannel, sniffRecording } from "../lib/io/formats/mod.ts";
+import {
+  type DescribedChannel,
+  RECORDING_FORMAT_NAMES,
+  sniffRecording,
+} from "../lib/io/formats/mod.ts";
 import type { DecimalMark } from "../lib/io/numbers.ts";
 import { inFileAsync, parseCommandArgs, usageError } from "./args.ts";
 import { commandHelp, option, shapeOf, specOf } from "./option_table.ts";
@@ -47,7 +51,7 @@ const TABLE = { ...READING, ...OUTPUT };
 /** The command's help text. */
 export const help = commandHelp({
   usage: "quiver info IN [options]",
-  about: `What the recording IN (CSV or WAV) holds and how quiver reads it:
+  about: `What the recording IN (${RECORDING_FORMAT_NAMES}) holds and how quiver reads it:
 channels with their units, sample rate, length in samples and seconds; for a
 CSV the delimiter, decimal mark and time column found; with --setup what the
 set-up changes (names, units, factors, roles). Nothing is analysed: a CSV is
@@ -80,6 +84,8 @@ interface RecordingInfo {
   readonly file: string;
   /** The format's name (formats/mod.ts): "csv", "wav". */
   readonly format: string;
+  /** The container when the format has several and the file is not in the usual one ("RF64"). */
+  readonly container?: string;
   readonly delimiter: { readonly char: CsvDelimiter; readonly from: string } | null;
   readonly decimal_mark: { readonly char: DecimalMark; readonly from: string } | null;
   readonly time_column:
@@ -140,6 +146,7 @@ async function recordingInfo(
   const info: RecordingInfo = {
     file: resolve(input),
     format: format.name,
+    ...(found.container !== undefined ? { container: found.container } : {}),
     delimiter: found.delimiter,
     decimal_mark: found.decimalMark,
     time_column: found.timeColumn,
@@ -173,7 +180,12 @@ const withUnit = (name: string, unit: string) =>
 
 /** The human-readable form. */
 function infoText(info: RecordingInfo, where: string): string {
-  const lines = [`file: ${printable(info.file)}`, `format: ${info.format.toUpperCase()}`];
+  const lines = [
+    `file: ${printable(info.file)}`,
+    `format: ${info.format.toUpperCase()}${
+      info.container !== undefined ? ` (${info.container})` : ""
+    }`,
+  ];
   if (info.delimiter !== null) {
     lines.push(`delimiter: ${DELIMITER_NAMES[info.delimiter.char]} (${info.delimiter.from})`);
     lines.push(

@@ -21,6 +21,7 @@ import {
 } from "./recording_options.ts";
 import { oneBlockChoice, OUTPUT_TABLE, SEGMENT_TABLE } from "./segment_options.ts";
 import { commandHelp, libraryOptions, option, shapeOf, specOf } from "./option_table.ts";
+import { RECORDING_FORMAT_NAMES } from "../lib/io/formats/mod.ts";
 
 /** One-line summary for the command list. */
 export const summary = "spectra against time or rpm (a colour map's data), scaled as spectrum";
@@ -95,7 +96,8 @@ const TABLE = { ...AGAINST, ...ANALYSIS, ...RPM_ONLY, ...RECORDING_TABLE, ...OUT
 /** The command's help text. */
 export const help = commandHelp({
   usage: "quiver spectrogram IN [options]",
-  about: `One spectrum per frame of the channels of IN (CSV or WAV): each frame is one
+  about:
+    `One spectrum per frame of the channels of IN (${RECORDING_FORMAT_NAMES}): each frame is one
 segment (or --frames K segments averaged), scaled exactly as quiver spectrum
 with the same options. Against time, frames follow each other through the
 record; against rpm, one frame is centred where the speed first passes each

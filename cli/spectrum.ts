@@ -19,6 +19,7 @@ import {
   toReadOptions,
 } from "./recording_options.ts";
 import { oneBlockChoice, OUTPUT_TABLE, SEGMENT_TABLE } from "./segment_options.ts";
+import { RECORDING_FORMAT_NAMES } from "../lib/io/formats/mod.ts";
 
 /** One-line summary for the command list. */
 export const summary = "averaged autospectra (PSD, power spectrum, RMS or peak) of a recording";
@@ -54,7 +55,7 @@ const TABLE = { ...ANALYSIS, ...RECORDING_TABLE, ...OUTPUT_TABLE };
 /** The command's help text. */
 export const help = commandHelp({
   usage: "quiver spectrum IN [options]",
-  about: `Averaged one-sided spectra of the channels of IN (CSV or WAV), by Welch's
+  about: `Averaged one-sided spectra of the channels of IN (${RECORDING_FORMAT_NAMES}), by Welch's
 method: segments, detrend, window, FFT, average.`,
   groups: [["Analysis", ANALYSIS], [RECORDING_HEADING, RECORDING_TABLE], ["Output", OUTPUT_TABLE]],
   notes: `CSV columns: frequency_hz, then one per channel headed "name [unit]".

@@ -1,5 +1,5 @@
 /**
- * RIFF/WAVE reading and writing. Integer PCM of 8 (unsigned), 16, 24 and 32
+ * RIFF/WAVE reading and writing (and reading RF64/BW64: wav_layout.ts). Integer PCM of 8 (unsigned), 16, 24 and 32
  * bits and IEEE float of 32 and 64 bits, any number of channels, plain or
  * WAVE_FORMAT_EXTENSIBLE headers. Samples come out as fractions of digital
  * full scale (unit `FS`): integers are divided by 2^(bits−1); floats are
@@ -10,6 +10,7 @@
  */
 import { QuiverError } from "../errors.ts";
 import type { Recording } from "./recording.ts";
+import { FORMAT_FLOAT, FORMAT_PCM, wavContainer, type WavFormat, wavLayout } from "./wav_layout.ts";
 
 /** Sample encodings the writer produces. */
 export type WavEncoding = "pcm16" | "pcm24" | "pcm32" | "float32";
@@ -17,13 +18,11 @@ export type WavEncoding = "pcm16" | "pcm24" | "pcm32" | "float32";
 /** The unit of samples read from a WAV file: fraction of digital full scale. */
 export const FULL_SCALE_UNIT = "FS";
 
-const FORMAT_PCM = 1;
-/** The WAV format code of IEEE float samples. */
-export const FORMAT_FLOAT = 3;
-const FORMAT_EXTENSIBLE = 0xfffe;
+export { FORMAT_FLOAT, type WavFormat } from "./wav_layout.ts";
 
 /**
- * True when the bytes start with a RIFF/WAVE header.
+ * True when the bytes start with a WAV header: RIFF/WAVE, or RF64 or BW64
+ * (the 64-bit containers, wav_layout.ts).
  *
  * @example
  * ```ts
@@ -32,12 +31,7 @@ const FORMAT_EXTENSIBLE = 0xfffe;
  * ```
  */
 export function looksLikeWav(bytes: Uint8Array): boolean {
-  return bytes.length >= 12 && ascii(bytes, 0, 4) === "RIFF" &&
-    ascii(bytes, 8, 4) === "WAVE";
-}
-
-function ascii(bytes: Uint8Array, offset: number, length: number): string {
-  return String.fromCharCode(...bytes.subarray(offset, offset + length));
+  return wavContainer(bytes) !== undefined;
 }
 
 /**
@@ -56,89 +50,15 @@ function ascii(bytes: Uint8Array, offset: number, length: number): string {
  * ```
  */
 export function parseWav(bytes: Uint8Array, file?: string): Recording {
-  const fail = (detail: string): never => {
-    throw new QuiverError(detail, { file });
-  };
-  if (!looksLikeWav(bytes)) fail("not a RIFF/WAVE file (no RIFF…WAVE header)");
+  const { format, dataStart, dataBytes } = wavLayout(bytes, bytes.length, file);
   const view = new DataView(bytes.buffer, bytes.byteOffset, bytes.byteLength);
-  let format:
-    | { code: number; channels: number; rate: number; blockAlign: number; bits: number }
-    | undefined;
-  let offset = 12;
-  while (offset + 8 <= bytes.length) {
-    const id = ascii(bytes, offset, 4);
-    const size = view.getUint32(offset + 4, true);
-    const start = offset + 8;
-    if (id === "fmt ") {
-      if (size < 16 || start + size > bytes.length) {
-        fail("truncated or malformed fmt chunk");
-      }
-      let code = view.getUint16(start, true);
-      const bits = view.getUint16(start + 14, true);
-      if (code === FORMAT_EXTENSIBLE) {
-        if (size < 40) fail("extensible fmt chunk is shorter than 40 bytes");
-        // The sub-format GUID starts with the ordinary format code.
-        code = view.getUint16(start + 24, true);
-      }
-      format = {
-        code,
-        channels: view.getUint16(start + 2, true),
-        rate: view.getUint32(start + 4, true),
-        blockAlign: view.getUint16(start + 12, true),
-        bits,
-      };
-    } else if (id === "data") {
-      if (format === undefined) fail("data chunk comes before the fmt chunk");
-      const f = format as NonNullable<typeof format>;
-      checkFormat(f, fail);
-      const available = bytes.length - start;
-      if (size > available) {
-        fail(
-          `truncated: the data chunk declares ${size} bytes but the file holds ${available} after its header`,
-        );
-      }
-      if (size % f.blockAlign !== 0) {
-        fail(`data chunk of ${size} bytes is not a whole number of ${f.blockAlign}-byte frames`);
-      }
-      return decodeFrames({ view, start, frames: size / f.blockAlign, f, file });
-    }
-    offset = start + size + (size % 2);
-  }
-  return fail(format === undefined ? "no fmt chunk" : "no data chunk");
-}
-
-function checkFormat(
-  f: { code: number; channels: number; rate: number; blockAlign: number; bits: number },
-  fail: (detail: string) => never,
-): void {
-  if (f.code !== FORMAT_PCM && f.code !== FORMAT_FLOAT) {
-    fail(
-      `unsupported WAV encoding (format code ${f.code}); quiver reads integer PCM and IEEE float`,
-    );
-  }
-  const supported = f.code === FORMAT_PCM ? [8, 16, 24, 32] : [32, 64];
-  if (!supported.includes(f.bits)) {
-    fail(
-      `unsupported ${
-        f.code === FORMAT_PCM ? "integer PCM" : "float"
-      } sample size of ${f.bits} bits; supported: ${supported.join(", ")}`,
-    );
-  }
-  if (f.channels < 1) fail("the fmt chunk declares no channels");
-  if (f.rate < 1) fail("the fmt chunk declares a sample rate of 0");
-  if (f.blockAlign !== f.channels * f.bits / 8) {
-    fail(`block align ${f.blockAlign} does not match ${f.channels} channels of ${f.bits} bits`);
-  }
-}
-
-/** The sample format of a WAV file's data chunk. */
-export interface WavFormat {
-  /** 1 integer PCM, 3 IEEE float. */
-  readonly code: number;
-  readonly channels: number;
-  readonly rate: number;
-  readonly blockAlign: number;
-  readonly bits: number;
+  return decodeFrames({
+    view,
+    start: dataStart,
+    frames: dataBytes / format.blockAlign,
+    f: format,
+    file,
+  });
 }
 
 /**

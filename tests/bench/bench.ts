@@ -323,4 +323,5 @@ async function memoryAndCampaign(): Promise<void> {
   );
 }
 
+if (!Deno.args.includes("--headline")) await (await import("./formats_bench.ts")).formatRows();
 console.log(`\nload average (1, 5, 15 min) at the end: ${load()}`);

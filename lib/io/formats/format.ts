@@ -83,6 +83,11 @@ export interface RecordingDescription {
   /** What a channel's place is called in `quiver info`'s text: "column", "channel". */
   readonly positionName: string;
   /**
+   * The container, for a format that has several and a file not in the
+   * usual one (a WAV file's "RF64" or "BW64"); absent otherwise.
+   */
+  readonly container?: string;
+  /**
    * Every group of a file that holds several, the one described above among
    * them; absent for a format without groups.
    */

@@ -11,6 +11,7 @@ import { NotUtf8Error } from "../csv_scanner.ts";
 import { assertRegularFile, unreadable } from "../file_kinds.ts";
 import { csvFormat } from "./csv.ts";
 import { type RecordingFormat, SNIFF_BYTES } from "./format.ts";
+import { mat5Format } from "./mat5.ts";
 import { wavFormat } from "./wav.ts";
 
 export type {
@@ -26,7 +27,7 @@ export type {
  * tried against the binary formats first (in this order), then the text
  * ones.
  */
-export const RECORDING_FORMATS: readonly RecordingFormat[] = [csvFormat, wavFormat];
+export const RECORDING_FORMATS: readonly RecordingFormat[] = [csvFormat, wavFormat, mat5Format];
 
 /**
  * The format of a file whose first bytes are `head`: the first binary
@@ -53,6 +54,17 @@ function listed(words: readonly string[], last: string): string {
 }
 
 /**
+ * The formats quiver reads, for help texts: "CSV, WAV or MAT v5".
+ *
+ * @example
+ * ```ts
+ * import { RECORDING_FORMAT_NAMES } from "./mod.ts";
+ * if (!RECORDING_FORMAT_NAMES.startsWith("CSV, WAV")) throw new Error(RECORDING_FORMAT_NAMES);
+ * ```
+ */
+export const RECORDING_FORMAT_NAMES: string = listed(RECORDING_FORMATS.map((f) => f.label), "or");
+
+/**
  * The error for a file of no format quiver reads, naming them all; `advice`
  * (what to do about it) ends it in brackets.
  *
@@ -60,7 +72,7 @@ function listed(words: readonly string[], last: string): string {
  * ```ts
  * import { notRecognised } from "./mod.ts";
  * const e = notRecognised("x.bin");
- * if (e.message !== "x.bin: neither a WAV file nor UTF-8 text; quiver reads CSV and WAV recordings") throw new Error(e.message);
+ * if (e.message !== "x.bin: neither a WAV or MAT v5 file nor UTF-8 text; quiver reads CSV, WAV and MAT v5 recordings") throw new Error(e.message);
  * ```
  */
 export function notRecognised(file?: string, advice?: string): QuiverError {
@@ -104,7 +116,7 @@ async function recognised<T>(work: Promise<T>): Promise<T> {
  * const format = await sniffRecording(`${dir}/r.csv`);
  * let message = "";
  * try { await format.open(`${dir}/r.csv`, {}); } catch (e) { message = (e as Error).message; }
- * if (format.name !== "csv" || !message.includes(": neither a WAV file nor UTF-8 text; quiver reads CSV and WAV recordings (")) throw new Error(message);
+ * if (format.name !== "csv" || !message.includes(": neither a WAV or MAT v5 file nor UTF-8 text; quiver reads CSV, WAV and MAT v5 recordings (")) throw new Error(message);
  * ```
  */
 export async function sniffRecording(path: string): Promise<RecordingFormat> {

@@ -1,6 +1,6 @@
 /**
- * WAV recordings (RIFF/WAVE; integer PCM and IEEE float, wav.ts): the header
- * is read at opening, then the data chunk frame block by frame block, each
+ * WAV recordings (RIFF/WAVE, and RF64/BW64 beyond 4 GB: wav_layout.ts;
+ * integer PCM and IEEE float, wav.ts): the header is read at opening, then the data chunk frame block by frame block, each
  * decoded into the chunk's arrays. Channels are `ch1` … `chN` in fractions
  * of full scale until a set-up names them; integer PCM carries its
  * converter's rails (for the clipping check).
@@ -13,10 +13,11 @@ import { CHUNK_ROWS, type RecordingStream } from "../recording_source.ts";
 import {
   decodeWavFrames,
   FORMAT_FLOAT,
+  FULL_SCALE_UNIT,
   looksLikeWav,
-  parseWav,
   refuseNonFiniteSamples,
 } from "../wav.ts";
+import { type WavContainer, wavLayout } from "../wav_layout.ts";
 import {
   channelTransforms,
   type FormatOptions,
@@ -25,85 +26,33 @@ import {
   refuseGroup,
 } from "./format.ts";
 
-async function openWav(
+/** A WAV stream and the container its header names (RIFF, RF64, BW64). */
+async function openWavWithContainer(
   path: string,
   options: FormatOptions,
-): Promise<RecordingStream> {
+): Promise<RecordingStream & { container: WavContainer }> {
   const handle = await open(path, "r");
   try {
     const size = (await handle.stat()).size;
     const head = new Uint8Array(Math.min(size, 1 << 20));
     await handle.read(head, 0, head.length, 0);
-    if (!looksLikeWav(head)) parseWav(head, path); // throws its precise message
-    const view = new DataView(head.buffer);
-    let offset = 12;
-    let fmt:
-      | { code: number; channels: number; rate: number; blockAlign: number; bits: number }
-      | undefined;
-    let dataStart = -1;
-    let dataBytes = 0;
-    while (offset + 8 <= head.length) {
-      const id = String.fromCharCode(...head.subarray(offset, offset + 4));
-      const chunkSize = view.getUint32(offset + 4, true);
-      if (id === "data") {
-        dataStart = offset + 8;
-        dataBytes = chunkSize;
-        break;
-      }
-      if (id === "fmt " && offset + 8 + 16 <= head.length) {
-        let code = view.getUint16(offset + 8, true);
-        if (code === 0xfffe && offset + 8 + 26 <= head.length) {
-          code = view.getUint16(offset + 8 + 24, true);
-        }
-        fmt = {
-          code,
-          channels: view.getUint16(offset + 10, true),
-          rate: view.getUint32(offset + 12, true),
-          blockAlign: view.getUint16(offset + 20, true),
-          bits: view.getUint16(offset + 22, true),
-        };
-      }
-      offset += 8 + chunkSize + (chunkSize % 2);
-    }
-    const fail = (detail: string, kind: "data" | "usage" = "data"): never => {
-      throw new QuiverError(detail, { file: path }, kind);
+    const layout = wavLayout(head, size, path);
+    const fail = (detail: string): never => {
+      throw new QuiverError(detail, { file: path }, "usage");
     };
-    if (fmt === undefined || dataStart < 0) {
-      parseWav(head, path); // a missing or misplaced chunk: its precise message
-      fail("no fmt and data chunks in the first MiB of the file");
-    }
-    const format = fmt as NonNullable<typeof fmt>;
-    if (dataStart + dataBytes > size) {
-      fail(
-        `truncated: the data chunk declares ${dataBytes} bytes but the file holds ${
-          size - dataStart
-        } after its header`,
-      );
-    }
-    if (format.blockAlign === 0 || dataBytes % format.blockAlign !== 0) {
-      fail(
-        `data chunk of ${dataBytes} bytes is not a whole number of ${format.blockAlign}-byte frames`,
-      );
-    }
-    if (options.rate !== undefined) {
-      fail("a WAV file states its own sample rate; do not give one", "usage");
-    }
+    if (options.rate !== undefined) fail("a WAV file states its own sample rate; do not give one");
     if (options.timeColumn !== undefined) {
-      fail("a WAV file has no time column; do not name one (--time-column)", "usage");
+      fail("a WAV file has no time column; do not name one (--time-column)");
     }
     refuseGroup(options, "WAV", path);
-    const f = format;
-    // Validate the format with the in-memory decoder on a header-only copy.
-    const probe = new Uint8Array(dataStart + f.blockAlign);
-    probe.set(head.subarray(0, dataStart));
-    new DataView(probe.buffer).setUint32(dataStart - 4, f.blockAlign, true);
-    const decoded = parseWav(probe, path);
+    const { dataStart, dataBytes, format: f } = layout;
     const frames = dataBytes / f.blockAlign;
     const transforms = await channelTransforms(
-      decoded.channels.map((c) => ({ name: c.name, unit: c.unit })),
+      Array.from({ length: f.channels }, (_, c) => ({ name: `ch${c + 1}`, unit: FULL_SCALE_UNIT })),
       options,
     );
     return {
+      container: layout.container,
       rate: f.rate,
       startTime: 0,
       length: frames,
@@ -151,17 +100,18 @@ async function describeWav(
   path: string,
   options: Omit<FormatOptions, "setup">,
 ): Promise<RecordingDescription> {
-  const stream = await openWav(path, options);
+  const stream = await openWavWithContainer(path, options);
   return {
     delimiter: null,
     decimalMark: null,
     timeColumn: null,
     rate: stream.rate,
-    rateFrom: "the WAV header",
+    rateFrom: `the ${stream.container === "RIFF" ? "WAV" : stream.container} header`,
     startTime: stream.startTime,
     samples: stream.length,
     channels: stream.channels.map((c, i) => ({ position: i + 1, name: c.name, unit: c.unit })),
     positionName: "channel",
+    ...(stream.container !== "RIFF" ? { container: stream.container } : {}),
   };
 }
 
@@ -185,6 +135,6 @@ export const wavFormat: RecordingFormat = {
   label: "WAV",
   kind: "binary",
   sniff: looksLikeWav,
-  open: openWav,
+  open: (path, options) => openWavWithContainer(path, options),
   describe: describeWav,
 };
