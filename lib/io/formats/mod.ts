@@ -11,6 +11,8 @@ import { NotUtf8Error } from "../csv_scanner.ts";
 import { assertRegularFile, unreadable } from "../file_kinds.ts";
 import { csvFormat } from "./csv.ts";
 import { type RecordingFormat, SNIFF_BYTES } from "./format.ts";
+import { hdf5Format } from "./hdf5.ts";
+import { mat73Format } from "./mat73.ts";
 import { wavFormat } from "./wav.ts";
 
 export type {
@@ -26,7 +28,12 @@ export type {
  * tried against the binary formats first (in this order), then the text
  * ones.
  */
-export const RECORDING_FORMATS: readonly RecordingFormat[] = [csvFormat, wavFormat];
+export const RECORDING_FORMATS: readonly RecordingFormat[] = [
+  csvFormat,
+  wavFormat,
+  hdf5Format,
+  mat73Format,
+];
 
 /**
  * The format of a file whose first bytes are `head`: the first binary
@@ -60,7 +67,7 @@ function listed(words: readonly string[], last: string): string {
  * ```ts
  * import { notRecognised } from "./mod.ts";
  * const e = notRecognised("x.bin");
- * if (e.message !== "x.bin: neither a WAV file nor UTF-8 text; quiver reads CSV and WAV recordings") throw new Error(e.message);
+ * if (e.message !== "x.bin: neither a WAV, HDF5 or MAT v7.3 file nor UTF-8 text; quiver reads CSV, WAV, HDF5 and MAT v7.3 recordings") throw new Error(e.message);
  * ```
  */
 export function notRecognised(file?: string, advice?: string): QuiverError {
@@ -104,7 +111,7 @@ async function recognised<T>(work: Promise<T>): Promise<T> {
  * const format = await sniffRecording(`${dir}/r.csv`);
  * let message = "";
  * try { await format.open(`${dir}/r.csv`, {}); } catch (e) { message = (e as Error).message; }
- * if (format.name !== "csv" || !message.includes(": neither a WAV file nor UTF-8 text; quiver reads CSV and WAV recordings (")) throw new Error(message);
+ * if (format.name !== "csv" || !message.includes(": neither a WAV, HDF5 or MAT v7.3 file nor UTF-8 text; quiver reads CSV, WAV, HDF5 and MAT v7.3 recordings (")) throw new Error(message);
  * ```
  */
 export async function sniffRecording(path: string): Promise<RecordingFormat> {
