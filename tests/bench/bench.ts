@@ -24,6 +24,7 @@ import { openRecordingStream } from "../../lib/io/recording_stream.ts";
 import { BLOCK, DIR, median, seeded, writeCsv, writeRigWav } from "./bench_files.ts";
 import { stageTimes } from "./stages.ts";
 import { timed } from "./timed.ts";
+import { benchHdf5 } from "./hdf5.ts";
 
 const MAIN = fileURLToPath(new URL("../../cli/main.ts", import.meta.url));
 const PEER = fileURLToPath(new URL("./peer_welch.py", import.meta.url));
@@ -318,5 +319,7 @@ async function memoryAndCampaign(): Promise<void> {
     }; ratio ${(c1 / c2 / independent).toFixed(2)} (target ≥ 0.9)`,
   );
 }
+
+benchHdf5(); // HDF5: memory of a 1 GiB file, and against CSV for the same samples
 
 console.log(`\nload average (1, 5, 15 min) at the end: ${load()}`);
