@@ -47,7 +47,7 @@ const TABLE = { ...READING, ...OUTPUT };
 /** The command's help text. */
 export const help = commandHelp({
   usage: "quiver info IN [options]",
-  about: `What the recording IN (CSV or WAV) holds and how quiver reads it:
+  about: `What the recording IN (CSV, WAV, HDF5, MAT v7.3) holds and how quiver reads it:
 channels with their units, sample rate, length in samples and seconds; for a
 CSV the delimiter, decimal mark and time column found; with --setup what the
 set-up changes (names, units, factors, roles). Nothing is analysed: a CSV is
