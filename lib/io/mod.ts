@@ -1,5 +1,5 @@
 /**
- * Reading and writing: recordings (CSV, WAV) in chunks or whole, channel
+ * Reading and writing: recordings (every format of formats/mod.ts) in chunks or whole, channel
  * set-ups, units, result tables and safe writes.
  *
  * @example

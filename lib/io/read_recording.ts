@@ -14,7 +14,7 @@ import { openRecordingStream } from "./recording_stream.ts";
 export type { ReadRecordingOptions } from "./formats/format.ts";
 
 /**
- * Reads a recording (CSV, WAV: formats/mod.ts) with an optional channel set-up.
+ * Reads a recording (any format of formats/mod.ts) with an optional channel set-up.
  *
  * @throws {QuiverError} for unreadable files and bad content.
  *

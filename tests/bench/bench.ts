@@ -26,6 +26,7 @@ import { stageTimes } from "./stages.ts";
 import { timed } from "./timed.ts";
 import { comfortBench } from "./comfort.ts";
 import { loudnessBench } from "./loudness.ts";
+import { benchHdf5 } from "./hdf5.ts";
 
 const MAIN = fileURLToPath(new URL("../../cli/main.ts", import.meta.url));
 const PEER = fileURLToPath(new URL("./peer_welch.py", import.meta.url));
@@ -324,4 +325,6 @@ async function memoryAndCampaign(): Promise<void> {
 }
 
 if (!Deno.args.includes("--headline")) await (await import("./formats_bench.ts")).formatRows();
+benchHdf5(); // HDF5: memory of a 1 GiB file, and against CSV for the same samples
+
 console.log(`\nload average (1, 5, 15 min) at the end: ${load()}`);
