@@ -199,7 +199,12 @@ describe("quiver spectrum refuses bad input and writes nothing", () => {
     ["duplicate names", ["duplicate.csv"], 1, /duplicate\.csv:1:3: duplicate column name/],
     ["jumping time", ["jump.csv"], 1, /jump\.csv:5:1: .*gap, jump or jitter/],
     ["reversed time", ["reversed.csv"], 1, /reversed\.csv:4:1: time goes backwards/],
-    ["binary garbage", ["garbage.bin"], 1, /garbage\.bin: neither a WAV file nor UTF-8 text/],
+    [
+      "binary garbage",
+      ["garbage.bin"],
+      1,
+      /garbage\.bin: neither a WAV or MDF 4 file nor UTF-8 text/,
+    ],
     ["Inf", ["inf.csv"], 1, /inf\.csv:3:2: .*not a finite number/],
     ["only blank cells", ["blank_cells.csv"], 1, /blank_cells\.csv: no header row/],
     ["truncated WAV", ["truncated.wav"], 1, /truncated\.wav: truncated: the data chunk declares/],

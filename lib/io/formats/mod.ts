@@ -11,6 +11,7 @@ import { NotUtf8Error } from "../csv_scanner.ts";
 import { assertRegularFile, unreadable } from "../file_kinds.ts";
 import { csvFormat } from "./csv.ts";
 import { type RecordingFormat, SNIFF_BYTES } from "./format.ts";
+import { mdf4Format } from "./mdf4.ts";
 import { wavFormat } from "./wav.ts";
 
 export type {
@@ -26,7 +27,11 @@ export type {
  * tried against the binary formats first (in this order), then the text
  * ones.
  */
-export const RECORDING_FORMATS: readonly RecordingFormat[] = [csvFormat, wavFormat];
+export const RECORDING_FORMATS: readonly RecordingFormat[] = [
+  csvFormat,
+  wavFormat,
+  mdf4Format,
+];
 
 /**
  * The format of a file whose first bytes are `head`: the first binary
@@ -60,7 +65,7 @@ function listed(words: readonly string[], last: string): string {
  * ```ts
  * import { notRecognised } from "./mod.ts";
  * const e = notRecognised("x.bin");
- * if (e.message !== "x.bin: neither a WAV file nor UTF-8 text; quiver reads CSV and WAV recordings") throw new Error(e.message);
+ * if (e.message !== "x.bin: neither a WAV or MDF 4 file nor UTF-8 text; quiver reads CSV, WAV and MDF 4 recordings") throw new Error(e.message);
  * ```
  */
 export function notRecognised(file?: string, advice?: string): QuiverError {
@@ -104,7 +109,7 @@ async function recognised<T>(work: Promise<T>): Promise<T> {
  * const format = await sniffRecording(`${dir}/r.csv`);
  * let message = "";
  * try { await format.open(`${dir}/r.csv`, {}); } catch (e) { message = (e as Error).message; }
- * if (format.name !== "csv" || !message.includes(": neither a WAV file nor UTF-8 text; quiver reads CSV and WAV recordings (")) throw new Error(message);
+ * if (format.name !== "csv" || !message.includes(": neither a WAV or MDF 4 file nor UTF-8 text; quiver reads CSV, WAV and MDF 4 recordings (")) throw new Error(message);
  * ```
  */
 export async function sniffRecording(path: string): Promise<RecordingFormat> {

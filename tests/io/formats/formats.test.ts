@@ -5,7 +5,7 @@ import { openRecordingStream } from "../../../lib/io/recording_stream.ts";
 import { encodeWav } from "../../../lib/io/wav.ts";
 
 const NOT_RECOGNISED =
-  "neither a WAV file nor UTF-8 text; quiver reads CSV and WAV recordings (save a CSV as UTF-8: a header in Latin-1 or Windows-1252, e.g. with µ or °, is not UTF-8)";
+  "neither a WAV or MDF 4 file nor UTF-8 text; quiver reads CSV, WAV and MDF 4 recordings (save a CSV as UTF-8: a header in Latin-1 or Windows-1252, e.g. with µ or °, is not UTF-8)";
 
 describe("the list of recording formats", () => {
   test("names are unique, and a text format is there for files no signature claims", () => {
