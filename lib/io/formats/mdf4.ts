@@ -34,13 +34,17 @@ function groupLabel(group: Mdf4Group, all: readonly Mdf4Group[]): string {
   return unique ? group.name : String(group.index);
 }
 
-/** The groups in words, for a message: `"engine" (1000 Hz, 3 channels, 2000 records)`. */
-function listGroups(groups: readonly DescribedGroup[]): string {
-  return groups.map((g) =>
-    `"${g.name}" (${
-      g.rate === null ? "rate unknown" : `${formatNumber(g.rate, 10)} Hz`
-    }, ${g.channels.length} channels, ${g.samples ?? "?"} records)`
-  ).join(", ");
+/**
+ * The groups in words, for a message: `"engine" (1000 Hz, 3 channels, 2000 records)`, and
+ * `"CAN1" (not read)` for a group quiver does not read.
+ */
+function listGroups(groups: readonly DescribedGroup[], found: readonly Mdf4Group[]): string {
+  return groups.map((g, i) => {
+    if (found[i].problems.length > 0) return `"${g.name}" (not read)`;
+    const rate = g.rate === null ? "rate found on reading" : `${formatNumber(g.rate, 10)} Hz`;
+    const n = g.channels.length;
+    return `"${g.name}" (${rate}, ${n} channel${n === 1 ? "" : "s"}, ${g.samples} records)`;
+  }).join(", ");
 }
 
 /** Everything about a file quiver found at opening. */
@@ -113,7 +117,7 @@ function pickGroup(
     group = named[0] ??
       (/^[1-9][0-9]*$/.test(wanted) ? groups[Number(wanted) - 1] : undefined);
     if (group === undefined) {
-      usage(`no channel group "${wanted}"; the file holds ${listGroups(described)}`);
+      usage(`no channel group "${wanted}"; the file holds ${listGroups(described, groups)}`);
     }
   } else {
     const candidates = groups.filter((g) => g.records > 0 && g.problems.length === 0);
@@ -123,7 +127,7 @@ function pickGroup(
           candidates.length === 0
             ? "no channel group quiver reads holds samples"
             : `${candidates.length} channel groups hold samples`
-        }; name one with --group: ${listGroups(described)}`,
+        }; name one with --group: ${listGroups(described, groups)}`,
       );
     }
     group = candidates[0];
@@ -299,7 +303,8 @@ async function describeMdf4(
     samples: group.records,
     channels: group.channels.map((c, i) => ({ position: i + 1, name: c.name, unit: c.unit })),
     positionName: "channel",
-    groups: described,
+    // The group read has its rate found now, whichever master gives it.
+    groups: described.map((g, i) => groups[i] === group ? { ...g, rate: timing.rate } : g),
     unsupported: unsupportedOf(groups),
   };
 }
