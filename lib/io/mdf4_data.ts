@@ -172,12 +172,16 @@ export function dataLength(pieces: readonly DataPiece[]): number {
  * if (t.join() !== "1,2,3,4,5,6,7") throw new Error(t.join());
  * ```
  */
-export function untranspose(data: Uint8Array, columns: number): Uint8Array {
+export function untranspose(
+  data: Uint8Array,
+  columns: number,
+  into = new Uint8Array(data.length),
+): Uint8Array {
   const rows = Math.floor(data.length / columns);
-  const out = new Uint8Array(data.length);
+  const out = into.subarray(0, data.length);
   for (let c = 0; c < columns; c++) {
     const from = c * rows;
-    for (let r = 0; r < rows; r++) out[r * columns + c] = data[from + r];
+    for (let r = 0, to = c; r < rows; r++, to += columns) out[to] = data[from + r];
   }
   out.set(data.subarray(rows * columns), rows * columns);
   return out;
@@ -198,7 +202,7 @@ export async function* dataSegments(
   blocks: Mdf4Blocks,
   pieces: readonly DataPiece[],
 ): AsyncGenerator<Uint8Array> {
-  let buffer = new Uint8Array(0);
+  let buffer = new Uint8Array(0), zipBuffer = new Uint8Array(0), plain = new Uint8Array(0);
   for (const p of pieces) {
     if (p.kind === "raw") {
       for (let at = 0; at < p.length; at += READ_BYTES) {
@@ -211,10 +215,14 @@ export async function* dataSegments(
       continue;
     }
     const name = blockName("DZ", p.block);
-    const zipped = await blocks.bytes(p.start, p.zipped);
+    // The compressed bytes and the untransposed ones in buffers reused from block to block.
+    if (zipBuffer.length < p.zipped) zipBuffer = new Uint8Array(p.zipped);
+    const zipped = zipBuffer.subarray(0, p.zipped);
+    await blocks.read(zipped, p.start);
     let inflated: Uint8Array;
     try {
-      inflated = inflateSync(zipped);
+      // One output buffer of the declared size: zlib's 16 KiB pieces, joined, churn memory.
+      inflated = inflateSync(zipped, { chunkSize: Math.max(64, p.original) });
     } catch (error) {
       blocks.fail(`${name} does not inflate (${(error as Error).message})`);
     }
@@ -223,6 +231,7 @@ export async function* dataSegments(
         `${name} inflates to ${inflated.length} bytes, not the ${p.original} it declares`,
       );
     }
-    yield p.columns > 0 ? untranspose(inflated, p.columns) : inflated;
+    if (p.columns > 0 && plain.length < p.original) plain = new Uint8Array(p.original);
+    yield p.columns > 0 ? untranspose(inflated, p.columns, plain) : inflated;
   }
 }

@@ -24,6 +24,7 @@ import { openRecordingStream } from "../../lib/io/recording_stream.ts";
 import { BLOCK, DIR, median, seeded, writeCsv, writeRigWav } from "./bench_files.ts";
 import { stageTimes } from "./stages.ts";
 import { timed } from "./timed.ts";
+import { benchMdf4 } from "./mdf4.ts";
 
 const MAIN = fileURLToPath(new URL("../../cli/main.ts", import.meta.url));
 const PEER = fileURLToPath(new URL("./peer_welch.py", import.meta.url));
@@ -242,6 +243,7 @@ console.log(
   }
   await printStages(rigs[1], ourWav);
 }
+await benchMdf4(quiver, RUNS); // MDF 4 → PSD against CSV for the same samples, and its memory
 // `--headline`: the headline rows only (start-up floor, CSV and WAV → PSD with their stages, the
 // core, ingest), without the memory table and the campaign.
 if (!Deno.args.includes("--headline")) await memoryAndCampaign();
