@@ -145,6 +145,8 @@ def sorted_dt():
     rec["volt"] = (3 * np.cos(2 * np.pi * 120 * t) + 0.1 * rng.standard_normal(n)).astype(np.float32)
     rec["force"] = 250 * np.sin(2 * np.pi * 75 * t) + rng.standard_normal(n)
     raw12 = rng.integers(-2048, 2048, n)
+    raw12[:3] = [-2048, 2047, -1]  # the extremes of a signed 12-bit value, and −1
+    rec["pres"][:2] = [0, 2**32 - 1]  # the extremes of a uint32
     rec["bits"] = ((raw12 & 0xFFF) << 4 | 0b1010).astype(np.uint16)  # low 4 bits: another signal
     lin = (0.5, 0.001)  # phys = 0.001·raw + 0.5
     rat = (0.0, 2.0, 100.0, 0.0, 0.0, 4.0)  # phys = (2·raw + 100) / 4
