@@ -119,23 +119,34 @@ export async function dataPieces(blocks: Mdf4Blocks, dg: Mdf4Block): Promise<Dat
     }
     blocks.need(list, equal ? 16 : 8 + 8 * count);
     const equalLength = equal ? blocks.u64(list, 8, "equal length") : 0;
-    // Offsets count from the start of the data group's data, across the chain (from memory).
-    const listStart = 0;
+    // The list's blocks' headers read 64 at a time: a long record has thousands of them.
+    const headers: (Mdf4Block | null)[] = [];
+    for (let from = 0; from < count; from += 64) {
+      const batch = Array.from({ length: Math.min(64, count - from) }, (_, k) => from + k + 1);
+      headers.push(
+        ...await Promise.all(
+          batch.map((link) =>
+            blocks.follow(list as Mdf4Block, link, ["DT", "DZ"], `data block ${link}`, {
+              whole: false,
+              dataBytes: DZ_FIELDS,
+            })
+          ),
+        ),
+      );
+    }
     for (let i = 0; i < count; i++) {
-      const block = await blocks.follow(list, i + 1, ["DT", "DZ"], `data block ${i + 1}`, {
-        whole: false,
-        dataBytes: DZ_FIELDS,
-      });
+      const block = headers[i];
       if (block === null) blocks.fail(`${name} links data block ${i + 1} to byte 0`);
       const p = piece(blocks, block as Mdf4Block);
       const length = p.kind === "raw" ? p.length : p.original;
       // The list's own account of where each block's data starts must agree with the blocks.
+      // Offsets count from the start of the data group's data, across the chain (from memory).
       const listed = equal ? 0 : blocks.u64(list, 8 + 8 * i, `offset ${i + 1}`);
-      if (!equal && listed !== total - listStart) {
+      if (!equal && listed !== total) {
         blocks.fail(
           `${name} places data block ${
             i + 1
-          } at data byte ${listed}, but the blocks before it hold ${total - listStart}`,
+          } at data byte ${listed}, but the blocks before it hold ${total}`,
         );
       }
       if (equal && i < count - 1 && length !== equalLength) {
