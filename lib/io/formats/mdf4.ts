@@ -176,7 +176,11 @@ async function openStructure(
     if (group.master === null) {
       usage(`channel group "${label}" has no time master: give its sample rate (--rate HZ)`);
     }
-    blocks.fail(`channel group "${label}" holds ${group.records} record: no rate from one time`);
+    blocks.fail(
+      `channel group "${label}" holds ${group.records} record${
+        group.records === 1 ? "" : "s"
+      }: too few for a rate from its time master`,
+    );
   }
   return { blocks, groups, described, group, pieces, timing: timing as GroupTiming };
 }
