@@ -226,6 +226,15 @@ describe("what quiver does not read is refused by name and listed by quiver info
     );
   });
 
+  test("a group without a time master needs --rate (exit 2)", { timeout: 120_000 }, () => {
+    const file = fixturePath("recordings/mdf4/no_master.mf4");
+    const r = runQuiver(["info", file]);
+    expect([r.code, r.stderr]).toEqual([
+      2,
+      `quiver info: ${file}: channel group "1" has no time master: give its sample rate (--rate HZ)\n`,
+    ]);
+  });
+
   test(
     "a rate given for a group with a time master is refused (exit 2)",
     { timeout: 120_000 },

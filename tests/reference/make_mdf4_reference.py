@@ -20,6 +20,9 @@ Files (fixtures/recordings/mdf4/):
 - zipped_hl.mf4: an HL, a DL of equal-length blocks: DZ deflate, DZ transposition
   then deflate, and a DT; a virtual time master at 512 Hz; uint8 and int32 channels;
   and a second data group holding a bus-frame channel group (CAN frames).
+- no_master.mf4: one sorted group without a time master (its rate is given: 100 Hz), a
+  big-endian uint16 whose unit is in an MD block, and a big-endian unsigned 20-bit value at
+  bit offset 3 of three bytes.
 The JSON (fixtures/reference/mdf4_reference.json) holds each group's rate, start,
 channels with units and values, and every block's offset and fields as written.
 """
@@ -306,11 +309,40 @@ def zipped_hl():
     return data, blocks, groups
 
 
+def no_master():
+    rng = np.random.default_rng(36)
+    n = 50
+    u16 = rng.integers(0, 2**16, n).astype(np.uint16)
+    raw20 = rng.integers(0, 2**20, n)
+    raw20[:2] = [0, 2**20 - 1]
+    word = (raw20 << 3) | 0b101  # bits 0–2: another signal
+    rec = np.zeros(n, np.dtype({"names": ["u", "w0", "w1", "w2"], "formats": [">u2", "u1", "u1", "u1"],
+                                "offsets": [0, 2, 3, 4], "itemsize": 5}))
+    rec["u"] = u16
+    rec["w0"], rec["w1"], rec["w2"] = (word >> 16) & 0xFF, (word >> 8) & 0xFF, word & 0xFF
+    f = MdfFile()
+    hd(f, "dg")
+    dg(f, "dg", None, "cg", "dt", 0)
+    cg(f, "cg", None, "cn_u", None, None, 0, n, 0, 5, 0)
+    tx(f, "tx_u", "strain")
+    tx(f, "tx_w", "counter")
+    unit = "<CNunit><TX>m/s^2</TX></CNunit>".encode() + b"\0"
+    f.add("md_u", "MD", [], unit + bytes((-len(unit)) % 8))
+    cn(f, "cn_u", "cn_w", "tx_u", None, "md_u", 0, 0, 1, 0, 0, 16)
+    cn(f, "cn_w", None, "tx_w", None, None, 0, 0, 1, 3, 2, 20)
+    f.add("dt", "DT", [], rec.tobytes())
+    data, blocks = f.build()
+    return data, blocks, [{"name": "1", "rate": 100.0, "rate_given": True, "start": 0.0, "records": n, "channels": [
+        {"name": "strain", "unit": "m/s^2", "values": values(u16)},
+        {"name": "counter", "unit": "", "values": values(raw20)},
+    ]}]
+
+
 def main() -> None:
     OUT.mkdir(parents=True, exist_ok=True)
     files = {}
     for name, make in [("sorted_dt.mf4", sorted_dt), ("unsorted_dl.mf4", unsorted_dl),
-                       ("zipped_hl.mf4", zipped_hl)]:
+                       ("zipped_hl.mf4", zipped_hl), ("no_master.mf4", no_master)]:
         data, blocks, groups = make()
         (OUT / name).write_bytes(data)
         files[name] = {"bytes": len(data), "blocks": blocks, "groups": groups}
