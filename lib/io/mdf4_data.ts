@@ -2,7 +2,7 @@
  * An MDF 4 data group's data as one stream of bytes: the DT, DZ, DL and HL
  * blocks its data link leads to, resolved into pieces at opening and read
  * piece by piece ({@linkcode dataSegments}): a DT block in chunks, a DZ
- * block inflated one at a time (node's zlib), so memory stays that of one
+ * block inflated one at a time into a reused buffer (fflate), so memory stays that of one
  * chunk or one DZ block however long the recording.
  *
  * Layouts, from memory of the standard:
@@ -18,7 +18,7 @@
  *
  * @module
  */
-import { inflateSync } from "node:zlib";
+import { unzlibSync } from "fflate";
 import { BLOCK_HEADER_BYTES, blockName, type Mdf4Block, type Mdf4Blocks } from "./mdf4_blocks.ts";
 
 /** One data block's share of the data: stored as is, or deflated (DZ). */
@@ -198,6 +198,39 @@ export function untranspose(
   return out;
 }
 
+/**
+ * The zlib stream of the DZ piece `p` (bytes `zipped`) inflated into `out`
+ * (reused from block to block: no buffer per block for the collector to
+ * find), checked to give the length the block declares.
+ *
+ * @throws {QuiverError} for a stream that does not inflate or inflates to
+ * another length.
+ */
+export function inflatePiece(
+  blocks: Mdf4Blocks,
+  p: Extract<DataPiece, { kind: "zip" }>,
+  zipped: Uint8Array,
+  out: Uint8Array,
+): Uint8Array {
+  const name = blockName("DZ", p.block);
+  // One byte more than declared: a stream that holds more fills it, and is refused below.
+  const room = out.subarray(0, p.original + 1);
+  let inflated: Uint8Array;
+  try {
+    inflated = unzlibSync(zipped, { out: room });
+  } catch (error) {
+    return blocks.fail(`${name} does not inflate (${(error as Error).message})`);
+  }
+  if (inflated.length !== p.original) {
+    blocks.fail(
+      `${name} inflates to ${
+        inflated.length > p.original ? "more than" : inflated.length
+      } bytes, not the ${p.original} it declares`,
+    );
+  }
+  return inflated;
+}
+
 /** Bytes read at a time from a DT block. */
 const READ_BYTES = 1 << 20;
 
@@ -213,7 +246,8 @@ export async function* dataSegments(
   blocks: Mdf4Blocks,
   pieces: readonly DataPiece[],
 ): AsyncGenerator<Uint8Array> {
-  let buffer = new Uint8Array(0), zipBuffer = new Uint8Array(0), plain = new Uint8Array(0);
+  let buffer = new Uint8Array(0), zipBuffer = new Uint8Array(0);
+  let inflateBuffer = new Uint8Array(0), plain = new Uint8Array(0);
   for (const p of pieces) {
     if (p.kind === "raw") {
       for (let at = 0; at < p.length; at += READ_BYTES) {
@@ -225,23 +259,12 @@ export async function* dataSegments(
       }
       continue;
     }
-    const name = blockName("DZ", p.block);
-    // The compressed bytes and the untransposed ones in buffers reused from block to block.
+    // The compressed, inflated and untransposed bytes in buffers reused from block to block.
     if (zipBuffer.length < p.zipped) zipBuffer = new Uint8Array(p.zipped);
     const zipped = zipBuffer.subarray(0, p.zipped);
     await blocks.read(zipped, p.start);
-    let inflated: Uint8Array;
-    try {
-      // One output buffer of the declared size: zlib's 16 KiB pieces, joined, churn memory.
-      inflated = inflateSync(zipped, { chunkSize: Math.max(64, p.original) });
-    } catch (error) {
-      blocks.fail(`${name} does not inflate (${(error as Error).message})`);
-    }
-    if (inflated.length !== p.original) {
-      blocks.fail(
-        `${name} inflates to ${inflated.length} bytes, not the ${p.original} it declares`,
-      );
-    }
+    if (inflateBuffer.length < p.original + 1) inflateBuffer = new Uint8Array(p.original + 1);
+    const inflated = inflatePiece(blocks, p, zipped, inflateBuffer);
     if (p.columns > 0 && plain.length < p.original) plain = new Uint8Array(p.original);
     yield p.columns > 0 ? untranspose(inflated, p.columns, plain) : inflated;
   }

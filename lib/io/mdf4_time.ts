@@ -13,10 +13,8 @@
 import { QuiverError } from "../errors.ts";
 import { formatNumber } from "../format_number.ts";
 import type { Mdf4Blocks } from "./mdf4_blocks.ts";
-import { inflateSync } from "node:zlib";
-import { blockName } from "./mdf4_blocks.ts";
 import { convertOne } from "./mdf4_conversions.ts";
-import { type DataPiece, dataSegments, untranspose } from "./mdf4_data.ts";
+import { type DataPiece, dataSegments, inflatePiece, untranspose } from "./mdf4_data.ts";
 import type { Mdf4Group } from "./mdf4_file.ts";
 import { decodeChannel, RecordSplitter } from "./mdf4_records.ts";
 
@@ -43,12 +41,12 @@ async function bytesAt(
       const take = Math.min(length - from, count - filled);
       if (p.kind === "raw") await blocks.read(out.subarray(filled, filled + take), p.start + from);
       else {
-        let data: Uint8Array;
-        try {
-          data = inflateSync(await blocks.bytes(p.start, p.zipped));
-        } catch (error) {
-          blocks.fail(`${blockName("DZ", p.block)} does not inflate (${(error as Error).message})`);
-        }
+        let data = inflatePiece(
+          blocks,
+          p,
+          await blocks.bytes(p.start, p.zipped),
+          new Uint8Array(p.original + 1),
+        );
         if (p.columns > 0) data = untranspose(data, p.columns);
         out.set(data.subarray(from, from + take), filled);
       }

@@ -8,6 +8,7 @@
 import { existsSync } from "node:fs";
 import { writeFile } from "node:fs/promises";
 import { maxOf } from "../../lib/extent.ts";
+import { openRecordingStream } from "../../lib/io/recording_stream.ts";
 import { loggerMdf4 } from "../../fixtures/demo/mdf4_logger.ts";
 import { BLOCK, DIR, median, seeded } from "./bench_files.ts";
 import type { TimedRun } from "./timed.ts";
@@ -58,6 +59,23 @@ export async function benchMdf4(quiver: (args: string[]) => TimedRun, runs: numb
     } s, ${median(csv.map((r) => r.rssMb)).toFixed(0)} MB; CSV/MDF 4 time ratio ${
       (c / m).toFixed(1)
     }`,
+  );
+  // Ingest alone, in this process: the file opened and both channels read (best of 3 each).
+  const ingest = async (file: string) => {
+    let best = Infinity;
+    for (let i = 0; i < 3; i++) {
+      const t0 = performance.now();
+      const stream = await openRecordingStream(file);
+      await stream.read([0, 1], () => {});
+      best = Math.min(best, (performance.now() - t0) / 1000);
+    }
+    return best;
+  };
+  const [im, ic] = [await ingest(`${stem}.mf4`), await ingest(`${stem}.csv`)];
+  console.log(
+    `  ingest alone (open and read, best of 3): MDF 4 ${im.toFixed(2)} s, CSV ${
+      ic.toFixed(2)
+    } s; ratio ${(ic / im).toFixed(1)}`,
   );
   const small = `${DIR}/mdf4_two_channels_2e19`, large = `${DIR}/mdf4_two_channels_2e24`;
   await writePair(small, 2 ** 19, false);
