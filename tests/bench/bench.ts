@@ -27,6 +27,7 @@ import { timed } from "./timed.ts";
 import { comfortBench } from "./comfort.ts";
 import { loudnessBench } from "./loudness.ts";
 import { benchHdf5 } from "./hdf5.ts";
+import { benchMdf4 } from "./mdf4.ts";
 
 const MAIN = fileURLToPath(new URL("../../cli/main.ts", import.meta.url));
 const PEER = fileURLToPath(new URL("./peer_welch.py", import.meta.url));
@@ -245,6 +246,7 @@ console.log(
   }
   await printStages(rigs[1], ourWav);
 }
+await benchMdf4(quiver, RUNS); // MDF 4 → PSD against CSV for the same samples, and its memory
 // `--headline`: the headline rows only (start-up floor, CSV and WAV → PSD with their stages, the
 // core, ingest), without the memory table and the campaign.
 await loudnessBench(quiver, Deno.args.includes("--headline"));

@@ -70,7 +70,7 @@ describe("a CSV whose header is Latin-1, not UTF-8", () => {
       const r = runQuiver([command, "latin1.csv", ...args], dir);
       expect(r.code).toBe(1);
       expect(r.stderr.trim()).toBe(
-        `quiver ${command}: latin1.csv: neither a WAV, MAT v5, HDF5 or MAT v7.3 file nor UTF-8 text; quiver reads CSV, WAV, MAT v5, HDF5 and MAT v7.3 recordings (save a CSV as UTF-8: a header in Latin-1 or Windows-1252, e.g. with µ or °, is not UTF-8)`,
+        `quiver ${command}: latin1.csv: neither a WAV, MAT v5, HDF5, MAT v7.3 or MDF 4 file nor UTF-8 text; quiver reads CSV, WAV, MAT v5, HDF5, MAT v7.3 and MDF 4 recordings (save a CSV as UTF-8: a header in Latin-1 or Windows-1252, e.g. with µ or °, is not UTF-8)`,
       );
     });
   }

@@ -14,6 +14,7 @@ import { type RecordingFormat, SNIFF_BYTES } from "./format.ts";
 import { mat5Format } from "./mat5.ts";
 import { hdf5Format } from "./hdf5.ts";
 import { mat73Format } from "./mat73.ts";
+import { mdf4Format } from "./mdf4.ts";
 import { wavFormat } from "./wav.ts";
 
 export type {
@@ -35,6 +36,7 @@ export const RECORDING_FORMATS: readonly RecordingFormat[] = [
   mat5Format,
   hdf5Format,
   mat73Format,
+  mdf4Format,
 ];
 
 /**
@@ -80,7 +82,7 @@ export const RECORDING_FORMAT_NAMES: string = listed(RECORDING_FORMATS.map((f) =
  * ```ts
  * import { notRecognised } from "./mod.ts";
  * const e = notRecognised("x.bin");
- * if (e.message !== "x.bin: neither a WAV, MAT v5, HDF5 or MAT v7.3 file nor UTF-8 text; quiver reads CSV, WAV, MAT v5, HDF5 and MAT v7.3 recordings") throw new Error(e.message);
+ * if (e.message !== "x.bin: neither a WAV, MAT v5, HDF5, MAT v7.3 or MDF 4 file nor UTF-8 text; quiver reads CSV, WAV, MAT v5, HDF5, MAT v7.3 and MDF 4 recordings") throw new Error(e.message);
  * ```
  */
 export function notRecognised(file?: string, advice?: string): QuiverError {
@@ -124,7 +126,7 @@ async function recognised<T>(work: Promise<T>): Promise<T> {
  * const format = await sniffRecording(`${dir}/r.csv`);
  * let message = "";
  * try { await format.open(`${dir}/r.csv`, {}); } catch (e) { message = (e as Error).message; }
- * if (format.name !== "csv" || !message.includes(": neither a WAV, MAT v5, HDF5 or MAT v7.3 file nor UTF-8 text; quiver reads CSV, WAV, MAT v5, HDF5 and MAT v7.3 recordings (")) throw new Error(message);
+ * if (format.name !== "csv" || !message.includes(": neither a WAV, MAT v5, HDF5, MAT v7.3 or MDF 4 file nor UTF-8 text; quiver reads CSV, WAV, MAT v5, HDF5, MAT v7.3 and MDF 4 recordings (")) throw new Error(message);
  * ```
  */
 export async function sniffRecording(path: string): Promise<RecordingFormat> {

@@ -5,7 +5,7 @@ import { openRecordingStream } from "../../../lib/io/recording_stream.ts";
 import { encodeWav } from "../../../lib/io/wav.ts";
 
 const NOT_RECOGNISED =
-  "neither a WAV, MAT v5, HDF5 or MAT v7.3 file nor UTF-8 text; quiver reads CSV, WAV, MAT v5, HDF5 and MAT v7.3 recordings (save a CSV as UTF-8: a header in Latin-1 or Windows-1252, e.g. with µ or °, is not UTF-8)";
+  "neither a WAV, MAT v5, HDF5, MAT v7.3 or MDF 4 file nor UTF-8 text; quiver reads CSV, WAV, MAT v5, HDF5, MAT v7.3 and MDF 4 recordings (save a CSV as UTF-8: a header in Latin-1 or Windows-1252, e.g. with µ or °, is not UTF-8)";
 
 describe("the list of recording formats", () => {
   test("names are unique, and a text format is there for files no signature claims", () => {
