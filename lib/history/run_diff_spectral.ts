@@ -89,17 +89,10 @@ function lineChange(
   else if (b.quantity === "power") ratio = vc / vb;
   else ratio = (vc / vb) ** 2; // an amplitude: the power ratio is its square
   const nb = degreesAt(b.degreesOfFreedom, i), nc = degreesAt(c.degreesOfFreedom, j);
-  // A level's difference is taken as it is, not through its ratio and back.
-  const differenceDb = b.quantity === "level" ? vc - vb : 10 * Math.log10(ratio);
-  if (nb === undefined || nc === undefined || !(nb > 0 && nc > 0)) return { differenceDb };
-  const interval = powerRatioInterval(ratio, nb, nc, confidence);
-  const shift = differenceDb - interval.differenceDb;
-  return {
-    differenceDb,
-    lowerDb: interval.lowerDb + shift,
-    upperDb: interval.upperDb + shift,
-    significant: interval.significant,
-  };
+  if (nb === undefined || nc === undefined || !(nb > 0 && nc > 0)) {
+    return { differenceDb: b.quantity === "level" ? vc - vb : 10 * Math.log10(ratio) };
+  }
+  return powerRatioInterval(ratio, nb, nc, confidence);
 }
 
 /**

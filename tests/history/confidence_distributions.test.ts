@@ -12,6 +12,7 @@ import {
   normalQuantile,
   regularizedBeta,
 } from "../../lib/history/confidence_distributions.ts";
+import { powerRatioInterval } from "../../lib/history/confidence_intervals.ts";
 import { assertClose } from "../helpers/assert_close.ts";
 
 interface Reference {
@@ -78,4 +79,16 @@ test("impossible parameters are refused", () => {
   expect(() => fQuantile(1, 2, 2)).toThrow(RangeError);
   expect(() => fQuantile(0.5, 0, 2)).toThrow(RangeError);
   expect(() => normalQuantile(0)).toThrow(RangeError);
+});
+
+test("a power ratio's interval comes from F(ν_c, ν_b), the candidate's degrees of freedom first", () => {
+  // Bendat & Piersol, Random Data, ch. 8: Ĝ_c/Ĝ_b ~ F(ν_c, ν_b) when both estimate the same G.
+  // Quantiles from scipy.stats.f.ppf (fixture): F(30, 158) at 0.025 and 0.975.
+  const q = (p: number) =>
+    REFERENCE.f_ppf.find((r) => r.d1 === 30 && r.d2 === 158 && r.p === p)!.ppf;
+  const c = powerRatioInterval(2, 158, 30, 0.95);
+  assertClose(c.differenceDb, 10 * Math.log10(2), { relative: 1e-14, absolute: 0 });
+  assertClose(c.lowerDb, 10 * Math.log10(2 / q(0.975)), { relative: 1e-9, absolute: 1e-12 });
+  assertClose(c.upperDb, 10 * Math.log10(2 / q(0.025)), { relative: 1e-9, absolute: 1e-12 });
+  expect(c.significant).toBe(10 * Math.log10(2 / q(0.975)) > 0);
 });
