@@ -35,3 +35,13 @@ export { runPlan } from "./lib/plan/runner.ts";
 export { type Plan, planSchema } from "./lib/plan/schema.ts";
 export { type Manifest, manifestSchema } from "./lib/plan/manifest.ts";
 export { writeReport } from "./lib/report/html_report.ts";
+export { diffRuns } from "./lib/history/run_diff.ts";
+export type { DiffOptions, DiffSummary, RunDiff } from "./lib/history/run_diff.ts";
+export { writeRunDiff } from "./lib/history/run_diff_write.ts";
+export {
+  equivalentDegreesOfFreedom,
+  frfChangeInterval,
+  frfRandomError,
+  powerRatioInterval,
+} from "./lib/history/confidence_intervals.ts";
+export { fCdf, fQuantile, normalQuantile } from "./lib/history/confidence_distributions.ts";

@@ -147,7 +147,8 @@ function targetChanges(baseline: RunRead, candidate: RunRead): TargetChange[] {
       change: old !== null && now !== null ? now - old : null,
       oldVerdict,
       newVerdict,
-      verdictChanged: oldVerdict !== newVerdict,
+      // A target of one run only is listed, not counted as a changed verdict.
+      verdictChanged: o !== undefined && n !== undefined && oldVerdict !== newVerdict,
     };
   });
 }

@@ -26,7 +26,10 @@ export interface ChannelChange {
   readonly judged: number;
   /** Lines whose change is significant. */
   readonly significant: number;
-  /** The significant line of largest |change|, or null when none is. */
+  /**
+   * The significant line of largest |change| among those significant with
+   * both neighbours, else among all significant lines; null when none is.
+   */
   readonly largest: { readonly at: readonly number[]; readonly differenceDb: number } | null;
   /** Mean change over the compared lines, dB. */
   readonly meanDifferenceDb: number | null;
@@ -169,8 +172,23 @@ export function spectralDiff(
       judged++;
       if (!change.significant) return;
       significant++;
-      if (largest === null || Math.abs(change.differenceDb) > Math.abs(largest.differenceDb)) {
-        largest = { at: baseline.grid.map((g) => g.values[i]), differenceDb: change.differenceDb };
+    });
+    // The largest change among lines significant with both neighbours (same sign): over
+    // thousands of lines, chance alone makes some isolated line extreme (multiple comparisons);
+    // a lone significant line counts only when no run of three exists.
+    let sustained = false;
+    pairs.forEach(([i], k) => {
+      if (verdict[k] !== "true") return;
+      const run = k > 0 && k < pairs.length - 1 && verdict[k - 1] === "true" &&
+        verdict[k + 1] === "true" && Math.sign(difference[k - 1]) === Math.sign(difference[k]) &&
+        Math.sign(difference[k + 1]) === Math.sign(difference[k]);
+      if (sustained && !run) return;
+      if (
+        largest === null || (run && !sustained) ||
+        Math.abs(difference[k]) > Math.abs(largest.differenceDb)
+      ) {
+        largest = { at: baseline.grid.map((g) => g.values[i]), differenceDb: difference[k] };
+        sustained ||= run;
       }
     });
     columns.push(
