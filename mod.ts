@@ -90,3 +90,13 @@ export { prominenceBands, prominenceRatio } from "./lib/quality/prominence_ratio
 export { prCriterion, tnrCriterion } from "./lib/quality/tones_criteria.ts";
 export { findTones, type Tone, toneAt } from "./lib/quality/tones_search.ts";
 export { tonesAnalysis, type TonesOptions } from "./lib/quality/tones_analysis.ts";
+export { diffRuns } from "./lib/history/run_diff.ts";
+export type { DiffOptions, DiffSummary, RunDiff } from "./lib/history/run_diff.ts";
+export { writeRunDiff } from "./lib/history/run_diff_write.ts";
+export {
+  equivalentDegreesOfFreedom,
+  frfChangeInterval,
+  frfRandomError,
+  powerRatioInterval,
+} from "./lib/history/confidence_intervals.ts";
+export { fCdf, fQuantile, normalQuantile } from "./lib/history/confidence_distributions.ts";

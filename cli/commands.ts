@@ -14,13 +14,14 @@ import { ANALYSES } from "../lib/analyses.ts";
 import type { CommandModule } from "../lib/analysis_descriptor.ts";
 export type { CommandModule } from "../lib/analysis_descriptor.ts";
 
-/** The commands that are no analysis: a file's contents, calibration, campaigns. */
+/** The commands that are no analysis: a file's contents, calibration, campaigns, run against run. */
 const TOOLS: Readonly<Record<string, () => Promise<CommandModule>>> = {
   info: () => import("./info.ts"),
   calibrate: () => import("./calibrate.ts"),
   run: () => import("./run.ts"),
   merge: () => import("./merge.ts"),
   report: () => import("./report.ts"),
+  diff: () => import("./diff.ts"),
 };
 
 /**
@@ -50,6 +51,7 @@ const HELP_ORDER = [
   "run",
   "merge",
   "report",
+  "diff",
 ];
 
 /** The commands, by name: each a loader of its module. */

@@ -15,6 +15,7 @@ import type { ParseArgsOptionsConfig } from "node:util";
 import type { OptionEntry } from "../cli/option_table.ts";
 import type { QuantityReader } from "./quantity_reading.ts";
 import type { SectionModule } from "./report/section.ts";
+import type { DiffModule } from "./history/run_diff_view.ts";
 
 /** What every command module exports. */
 export interface CommandModule {
@@ -125,4 +126,11 @@ export interface AnalysisDescriptor {
   readonly quantities?: Readonly<Record<string, QuantityReader>>;
   /** Loads the module that builds its steps' report sections. Default: none (no section). */
   readonly report?: () => Promise<SectionModule>;
+  /**
+   * Loads what `quiver diff` reads of its result: its lines with the kind of
+   * quantity and the degrees of freedom of each column, its single values
+   * (lib/history/run_diff_view.ts). Default: none (its steps are listed as
+   * not compared).
+   */
+  readonly diff?: () => Promise<DiffModule>;
 }

@@ -15,6 +15,7 @@ export const bandsDescriptor: AnalysisDescriptor = {
   load: () => import("../../cli/bands.ts"),
   metadata: BANDS_METADATA,
   report: () => import("../report/sections/bands.ts"),
+  diff: () => import("./bands_diff.ts").then((m) => m.BANDS_DIFF),
   plan: { step: "analysis", reads: { recording: true } },
   quantities: {
     /** The overall level of `channel`. */

@@ -29,6 +29,7 @@ export const levelDescriptor: AnalysisDescriptor = {
   load: () => import("../../cli/level.ts"),
   metadata: LEVEL_METADATA,
   report: () => import("../report/sections/level.ts"),
+  diff: () => import("./level_diff.ts").then((m) => m.LEVEL_DIFF),
   plan: { step: "analysis", reads: { recording: true } },
   quantities: {
     leq_db: (result, of) => summaryValue(result, of, "leq_db"),

@@ -12,5 +12,6 @@ export const spectrogramDescriptor: AnalysisDescriptor = {
   load: () => import("../../cli/spectrogram.ts"),
   metadata: SPECTROGRAM_METADATA,
   report: () => import("../report/sections/spectrogram.ts"),
+  diff: () => import("./spectrogram_diff.ts").then((m) => m.SPECTROGRAM_DIFF),
   plan: { step: "analysis", reads: { recording: true } },
 };

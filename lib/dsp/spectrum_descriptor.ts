@@ -12,5 +12,6 @@ export const spectrumDescriptor: AnalysisDescriptor = {
   load: () => import("../../cli/spectrum.ts"),
   metadata: SPECTRUM_METADATA,
   report: () => import("../report/sections/spectrum.ts"),
+  diff: () => import("./spectrum_diff.ts").then((m) => m.SPECTRUM_DIFF),
   plan: { step: "analysis", reads: { recording: true } },
 };

@@ -41,6 +41,7 @@ export const frfDescriptor: AnalysisDescriptor = {
   load: () => import("../../cli/frf.ts"),
   metadata: FRF_METADATA,
   report: () => import("../report/sections/frf.ts"),
+  diff: () => import("./frf_diff.ts").then((m) => m.FRF_DIFF),
   plan: { step: "analysis", reads: { recording: true } },
   outputs: FRF_OUTPUTS,
 };

@@ -21,6 +21,7 @@ export const hammerDescriptor: AnalysisDescriptor = {
   load: () => import("../../cli/hammer.ts"),
   metadata: HAMMER_METADATA,
   report: () => import("../report/sections/hammer.ts"),
+  diff: () => import("./frf_diff.ts").then((m) => m.FRF_DIFF),
   plan: { step: "analysis", reads: { recording: true } },
   outputs: HAMMER_OUTPUTS,
 };

@@ -63,6 +63,7 @@ export const dampingDescriptor: AnalysisDescriptor = {
   load: () => import("../../cli/damping.ts"),
   metadata: DAMPING_METADATA,
   report: () => import("../report/sections/damping.ts"),
+  diff: () => import("./mode_values.ts").then((m) => m.MODE_DIFF),
   plan: {
     step: "analysis",
     reads: {

@@ -26,6 +26,7 @@ export const modalDescriptor: AnalysisDescriptor = {
   load: () => import("../../cli/modal.ts"),
   metadata: MODAL_METADATA,
   report: () => import("../report/sections/modal.ts"),
+  diff: () => import("./mode_values.ts").then((m) => m.MODE_DIFF),
   plan: {
     step: "analysis",
     reads: {

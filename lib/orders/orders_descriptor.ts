@@ -21,6 +21,7 @@ export const ordersDescriptor: AnalysisDescriptor = {
   load: () => import("../../cli/orders.ts"),
   metadata: ORDERS_METADATA,
   report: () => import("../report/sections/orders.ts"),
+  diff: () => import("./orders_diff.ts").then((m) => m.ORDERS_DIFF),
   plan: { step: "analysis", reads: { recording: true } },
   outputs: ORDERS_OUTPUTS,
 };
