@@ -21,6 +21,7 @@ const TOOLS: Readonly<Record<string, () => Promise<CommandModule>>> = {
   run: () => import("./run.ts"),
   merge: () => import("./merge.ts"),
   report: () => import("./report.ts"),
+  history: () => import("./history.ts"),
 };
 
 /**
@@ -47,6 +48,7 @@ const HELP_ORDER = [
   "run",
   "merge",
   "report",
+  "history",
 ];
 
 /** The commands, by name: each a loader of its module. */
