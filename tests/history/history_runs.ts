@@ -26,8 +26,8 @@ export function sineLeqDb(rms: number): number {
   return 20 * Math.log10(rms / 20e-6);
 }
 
-/** Writes the plan and recording under `dir` and runs it into `dir/out`; returns the run folder. */
-export async function finishedRun(dir: string, rms: number): Promise<string> {
+/** Writes the plan and its recording (a sine of r.m.s. `rms` Pa) under `dir`; returns the plan. */
+export async function runInputs(dir: string, rms: number): Promise<string> {
   await mkdir(dir, { recursive: true });
   const rows = ["time_s,mic [Pa]"];
   const amplitude = rms * Math.SQRT2;
@@ -65,6 +65,12 @@ export async function finishedRun(dir: string, rms: number): Promise<string> {
       ],
     }),
   );
+  return `${dir}/plan.json`;
+}
+
+/** Writes the plan and recording under `dir` and runs it into `dir/out`; returns the run folder. */
+export async function finishedRun(dir: string, rms: number): Promise<string> {
+  await runInputs(dir, rms);
   const out = `${dir}/out`;
   const manifest = await runPlan(`${dir}/plan.json`, {
     outDir: out,
