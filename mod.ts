@@ -35,3 +35,11 @@ export { runPlan } from "./lib/plan/runner.ts";
 export { type Plan, planSchema } from "./lib/plan/schema.ts";
 export { type Manifest, manifestSchema } from "./lib/plan/manifest.ts";
 export { writeReport } from "./lib/report/html_report.ts";
+export {
+  HistoryStore,
+  openHistory,
+  type RunLabels,
+  type RunSummary,
+  type TrendPoint,
+} from "./lib/history/history_store.ts";
+export { readRunRecord, type RunRecord } from "./lib/history/run_record.ts";

@@ -9,7 +9,15 @@ import { formatNumber } from "../format_number.ts";
 import { neutraliseFormula } from "../io/table.ts";
 import type { RunSummary, TrendPoint } from "./history_store.ts";
 
-/** The formats of `history list` and `history trend`. */
+/**
+ * The formats of `history list` and `history trend`.
+ *
+ * @example
+ * ```ts
+ * import { HISTORY_FORMATS } from "./history_format.ts";
+ * if (HISTORY_FORMATS.join() !== "text,csv,json") throw new Error();
+ * ```
+ */
 export const HISTORY_FORMATS = ["text", "csv", "json"] as const;
 
 /** One of {@linkcode HISTORY_FORMATS}. */

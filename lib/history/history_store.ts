@@ -10,7 +10,6 @@
 import { QuiverError } from "../errors.ts";
 import { didYouMeanClause } from "../nearest_name.ts";
 import { migrate } from "./migrations.ts";
-import { openPostgresStore } from "./postgres_store.ts";
 import type { RunRecord } from "./run_record.ts";
 import { openSqliteStore } from "./sqlite_store.ts";
 import { isServerUrl, type SqlRow, type StoreConnection } from "./store_connection.ts";
@@ -64,7 +63,27 @@ const text = (v: unknown): string => String(v);
 const textOrNull = (v: unknown): string | null => v === null || v === undefined ? null : String(v);
 const numberOrNull = (v: unknown): number | null => typeof v === "number" ? v : null;
 
-/** The history of runs in one database. */
+/**
+ * The history of runs in one database.
+ *
+ * @example
+ * ```ts
+ * import { openHistory } from "./history_store.ts";
+ * const run = (key: string, value: number) => ({
+ *   key, planTitle: "road", planSha256: "ab", planText: "{}", quiverVersion: "0.1.0",
+ *   started: "2026-01-01T00:00:00Z", finished: null, status: "ok", steps: [], files: [],
+ *   targets: [{ id: "leq", description: "Leq ≤ 70 dB", status: "checked", verdict: value <= 70 ? "pass" as const : "fail" as const,
+ *     value, limit: 70, margin: 70 - value, unit: "dB", reason: null }],
+ * });
+ * const history = await openHistory(":memory:");
+ * await history.add(run("k1", 72.5), { build: "B1" });
+ * await history.add(run("k2", 68.1), { build: "B2" });
+ * if ((await history.add(run("k2", 68.1), { build: "B2" })).added) throw new Error(); // once
+ * const trend = await history.trend("leq");
+ * if (trend.map((p) => `${p.build}:${p.verdict}`).join() !== "B1:fail,B2:pass") throw new Error();
+ * await history.close();
+ * ```
+ */
 export class HistoryStore {
   /** The database connection (for the tests' checks of the schema). */
   readonly connection: StoreConnection;
@@ -283,8 +302,9 @@ export async function openHistory(
   db: string,
   options: OpenHistoryOptions = {},
 ): Promise<HistoryStore> {
+  // The PostgreSQL client is loaded only for a server: a SQLite history never loads it.
   const connection = isServerUrl(db)
-    ? openPostgresStore(db)
+    ? (await import("./postgres_store.ts")).openPostgresStore(db)
     : await openSqliteStore(db, options.mustExist === true ? { mustExist: true } : {});
   try {
     await migrate(connection);
@@ -295,7 +315,18 @@ export async function openHistory(
   return new HistoryStore(connection);
 }
 
-/** Refuses an empty build label or one with control characters (it leads every trend line). */
+/**
+ * Refuses an empty build label or one with control characters (it leads every trend line).
+ *
+ * @example
+ * ```ts
+ * import { checkLabel } from "./history_store.ts";
+ * if (checkLabel("B2", "--build") !== "B2") throw new Error();
+ * let said = "";
+ * try { checkLabel(" ", "--build"); } catch (e) { said = (e as Error).message; }
+ * if (!said.includes("--build must be printable")) throw new Error(said);
+ * ```
+ */
 export function checkLabel(value: string, option: string): string {
   // deno-lint-ignore no-control-regex
   if (value.trim() === "" || /[\u0000-\u001f\u007f]/.test(value)) {

@@ -20,11 +20,27 @@ export interface Migration {
   readonly statements: readonly string[];
 }
 
-/** The table that records the schema's version, one row per migration applied. */
+/**
+ * The table that records the schema's version, one row per migration applied.
+ *
+ * @example
+ * ```ts
+ * import { SCHEMA_VERSION_TABLE } from "./migrations.ts";
+ * if (!SCHEMA_VERSION_TABLE.startsWith("CREATE TABLE schema_version")) throw new Error();
+ * ```
+ */
 export const SCHEMA_VERSION_TABLE =
   "CREATE TABLE schema_version (version INTEGER PRIMARY KEY, summary TEXT NOT NULL, applied TEXT NOT NULL)";
 
-/** Version 1: runs, and each run's target outcomes. */
+/**
+ * Version 1: runs, and each run's target outcomes.
+ *
+ * @example
+ * ```ts
+ * import { SCHEMA_V1 } from "./migrations.ts";
+ * if (SCHEMA_V1.length !== 2 || !SCHEMA_V1[1].includes("target_values")) throw new Error();
+ * ```
+ */
 export const SCHEMA_V1: readonly string[] = [
   `CREATE TABLE runs (
     run_key TEXT PRIMARY KEY,
@@ -54,7 +70,15 @@ export const SCHEMA_V1: readonly string[] = [
   )`,
 ];
 
-/** Every migration, in order; the last one's version is the schema's. */
+/**
+ * Every migration, in order; the last one's version is the schema's.
+ *
+ * @example
+ * ```ts
+ * import { MIGRATIONS, SCHEMA_VERSION } from "./migrations.ts";
+ * if (MIGRATIONS.map((m) => m.version).join() !== "1,2" || SCHEMA_VERSION !== 2) throw new Error();
+ * ```
+ */
 export const MIGRATIONS: readonly Migration[] = [
   { version: 1, summary: "runs and target values", statements: SCHEMA_V1 },
   {
@@ -91,10 +115,31 @@ export const MIGRATIONS: readonly Migration[] = [
   },
 ];
 
-/** The schema version this quiver writes. */
+/**
+ * The schema version this quiver writes.
+ *
+ * @example
+ * ```ts
+ * import { SCHEMA_VERSION } from "./migrations.ts";
+ * if (!Number.isInteger(SCHEMA_VERSION) || SCHEMA_VERSION < 1) throw new Error();
+ * ```
+ */
 export const SCHEMA_VERSION: number = MIGRATIONS[MIGRATIONS.length - 1].version;
 
-/** The version a database holds: 0 for one without quiver's tables. */
+/**
+ * The version a database holds: 0 for one without quiver's tables.
+ *
+ * @example
+ * ```ts
+ * import { migrate, schemaVersion } from "./migrations.ts";
+ * import { openSqliteStore } from "./sqlite_store.ts";
+ * const db = await openSqliteStore(":memory:");
+ * if (await schemaVersion(db) !== 0) throw new Error();
+ * const { from, to } = await migrate(db);
+ * if (from !== 0 || to !== 2 || await schemaVersion(db) !== 2) throw new Error();
+ * await db.close();
+ * ```
+ */
 export async function schemaVersion(connection: StoreConnection): Promise<number> {
   const tables = await connection.tableNames();
   if (!tables.includes("schema_version")) {
@@ -117,6 +162,18 @@ export async function schemaVersion(connection: StoreConnection): Promise<number
  * the versions before and after.
  *
  * @throws {QuiverError} for a database of a newer schema than this quiver knows.
+ *
+ * @example
+ * ```ts
+ * import { migrate, SCHEMA_V1 } from "./migrations.ts";
+ * import { openSqliteStore } from "./sqlite_store.ts";
+ * const db = await openSqliteStore(":memory:");
+ * // Version 1 only, then the rest: the runs table gains its vehicle column.
+ * await migrate(db, [{ version: 1, summary: "v1", statements: SCHEMA_V1 }]);
+ * if ((await migrate(db)).from !== 1) throw new Error();
+ * await db.query("SELECT vehicle FROM runs");
+ * await db.close();
+ * ```
  */
 export async function migrate(
   connection: StoreConnection,

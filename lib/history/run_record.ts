@@ -65,7 +65,15 @@ export interface RunRecord {
   readonly files: readonly RunFile[];
 }
 
-/** The name under which the manifest's targets are vouched for among a run's files. */
+/**
+ * The name under which the manifest's targets are vouched for among a run's files.
+ *
+ * @example
+ * ```ts
+ * import { TARGETS_RECORD } from "./run_record.ts";
+ * if (TARGETS_RECORD !== "manifest.json (its targets)") throw new Error();
+ * ```
+ */
 export const TARGETS_RECORD = `${MANIFEST_FILE} (its targets)`;
 
 const targetSchema = z.object({
@@ -165,6 +173,16 @@ async function checkedFile(
  * @throws {QuiverError} naming the file, for a folder without a manifest, an
  * unfinished run, a shard, a plan or result that changed since the run, or
  * target verdicts in the manifest that its results do not give.
+ *
+ * @example
+ * ```ts
+ * import { readRunRecord } from "./run_record.ts";
+ * import { mkdtemp } from "node:fs/promises";
+ * const dir = await mkdtemp("/tmp/quiver-doc-");
+ * let said = "";
+ * try { await readRunRecord(dir); } catch (e) { said = (e as Error).message; }
+ * if (!said.includes("no readable manifest.json here")) throw new Error(said);
+ * ```
  */
 export async function readRunRecord(
   runDir: string,

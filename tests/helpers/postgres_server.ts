@@ -7,13 +7,23 @@
  * Debian's postgresql; without its binaries the tests say so and skip.
  */
 import { type ChildProcess, spawn, spawnSync } from "node:child_process";
-import { existsSync } from "node:fs";
+import { existsSync, readdirSync } from "node:fs";
 import { chown, mkdtemp, rm } from "node:fs/promises";
 import { createServer } from "node:net";
 import process from "node:process";
 
-/** Debian's PostgreSQL 15 binaries. */
-export const POSTGRES_BIN = "/usr/lib/postgresql/15/bin";
+/** Debian's PostgreSQL binaries: the newest major version installed (15 on bookworm). */
+export const POSTGRES_BIN = (() => {
+  let versions: number[] = [];
+  try {
+    versions = readdirSync("/usr/lib/postgresql").map(Number).filter(Number.isInteger);
+  } catch {
+    // not installed: postgresMissing says so
+  }
+  versions.sort((a, b) => b - a);
+  const found = versions.find((v) => existsSync(`/usr/lib/postgresql/${v}/bin/postgres`));
+  return `/usr/lib/postgresql/${found ?? 15}/bin`;
+})();
 const BINARIES = ["initdb", "postgres", "pg_ctl"].map((b) => `${POSTGRES_BIN}/${b}`);
 
 /** Why the PostgreSQL tests cannot run here, or undefined when they can. */
