@@ -100,3 +100,11 @@ export {
   powerRatioInterval,
 } from "./lib/history/confidence_intervals.ts";
 export { fCdf, fQuantile, normalQuantile } from "./lib/history/confidence_distributions.ts";
+export {
+  HistoryStore,
+  openHistory,
+  type RunLabels,
+  type RunSummary,
+  type TrendPoint,
+} from "./lib/history/history_store.ts";
+export { readRunRecord, type RunRecord } from "./lib/history/run_record.ts";

@@ -22,6 +22,7 @@ const TOOLS: Readonly<Record<string, () => Promise<CommandModule>>> = {
   merge: () => import("./merge.ts"),
   report: () => import("./report.ts"),
   diff: () => import("./diff.ts"),
+  history: () => import("./history.ts"),
 };
 
 /**
@@ -52,6 +53,7 @@ const HELP_ORDER = [
   "merge",
   "report",
   "diff",
+  "history",
 ];
 
 /** The commands, by name: each a loader of its module. */

@@ -28,6 +28,7 @@ export const summary =
 
 /** The command's help text. */
 export const help = `quiver run PLAN.json [--out-dir DIR] [--jobs N] [--shard K/N|auto]
+quiver run PLAN.json --history DB --build LABEL [--out-dir DIR] [--jobs N]
 quiver run PLAN.json --slurm-script N [--partition P] [--time T] [--cpus C] [--out-dir DIR]
 
 Runs every analysis and comparison of a plan file in order, checks its
@@ -69,6 +70,9 @@ run it on the cluster's login node: bash campaign_slurm.sh. DIR must be on a
 file system every node sees. --partition, --time (Slurm's format, e.g.
 02:00:00) and --cpus (per shard, also its --jobs) go into both submissions.
 
+--history DB --build LABEL adds the finished run to a history of runs
+(a SQLite file or postgres://…), as quiver history add does.
+
 The plan file (every key, with an example) is described in README.md,
 "The plan file".
 `;
@@ -85,6 +89,11 @@ const TABLE = {
   partition: option(z.string().min(1), { value: "P", help: "Slurm partition" }),
   time: option(z.string().min(1), { value: "T", help: "Slurm time limit per job" }),
   cpus: option(integerOption(), { value: "C", help: "CPUs per shard" }),
+  history: option(z.string().min(1), {
+    value: "DB",
+    help: "add the finished run to this history (quiver history)",
+  }),
+  build: option(z.string().min(1), { value: "LABEL", help: "the run's build, with --history" }),
 };
 
 /** parseArgs spec of the options. */
@@ -98,7 +107,12 @@ export const schema = z.strictObject(shapeOf(TABLE)).refine(
   { message: "--partition, --time and --cpus go with --slurm-script" },
 ).refine((v) => v["slurm-script"] === undefined || v.shard === undefined, {
   message: "give --shard or --slurm-script, not both",
-});
+}).refine((v) => (v.history === undefined) === (v.build === undefined), {
+  message: "--history and --build go together",
+}).refine(
+  (v) => v.history === undefined || (v.shard === undefined && v["slurm-script"] === undefined),
+  { message: "--history records a whole run: add the merged run with quiver history add" },
+);
 
 /** Runs the command; sets the exit code to 1 when a step failed. */
 export async function run(argv: readonly string[]): Promise<void> {
@@ -161,6 +175,11 @@ export async function run(argv: readonly string[]): Promise<void> {
     return;
   }
   reportOutcome(manifest);
+  if (values.history !== undefined && values.build !== undefined) {
+    // The run is finished and its manifest written: the history reads it as `history add` does.
+    const { addRun } = await import("./history.ts");
+    await addRun(outDir, values.history, { build: values.build });
+  }
 }
 
 /** The run's (or merge's) closing lines and exit code: 1 for a failed step, 4 for unmet targets when required. */
