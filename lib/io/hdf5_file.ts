@@ -20,7 +20,7 @@ import { fstatSync, ftruncateSync, openSync, readSync, unlinkSync } from "node:f
 import { tmpdir } from "node:os";
 import { join } from "node:path";
 import process from "node:process";
-import type * as H5 from "h5wasm";
+import type * as H5 from "npm:h5wasm@0.10.3";
 import { QuiverError } from "../errors.ts";
 
 /** An attribute's value as quiver uses it: a number, a text, a list of texts; null otherwise. */
@@ -71,14 +71,14 @@ export interface Hdf5Group {
   readonly groups: readonly string[];
 }
 
-type H5Namespace = typeof import("h5wasm");
+type H5Namespace = typeof import("npm:h5wasm@0.10.3");
 type H5Module = typeof H5.Module;
 let library: Promise<{ h5: H5Namespace; module: H5Module; diagnostics: number }> | undefined;
 
 /** Loads h5wasm once, with HDF5's standard error caught in an unlinked temporary file. */
 function load(): Promise<{ h5: H5Namespace; module: H5Module; diagnostics: number }> {
   library ??= (async () => {
-    const h5 = await import("h5wasm/node") as H5Namespace;
+    const h5 = await import("npm:h5wasm@0.10.3/node") as H5Namespace;
     const module = await h5.default.ready;
     const path = join(tmpdir(), `quiver-hdf5-${process.pid}-${Date.now()}.log`);
     const diagnostics = openSync(path, "a+");

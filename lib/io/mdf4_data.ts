@@ -18,7 +18,7 @@
  *
  * @module
  */
-import { unzlibSync } from "fflate";
+import { unzlibSync } from "npm:fflate@0.8.3";
 import { BLOCK_HEADER_BYTES, blockName, type Mdf4Block, type Mdf4Blocks } from "./mdf4_blocks.ts";
 
 /** One data block's share of the data: stored as is, or deflated (DZ). */
