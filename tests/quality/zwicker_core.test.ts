@@ -9,6 +9,7 @@ import { assertClose } from "../helpers/assert_close.ts";
 import { coreLoudness, loudnessLevel, specificLoudness } from "../../lib/quality/zwicker_core.ts";
 import { loudnessOfLevels } from "../../lib/quality/loudness_stationary.ts";
 import { loudnessAnalysis } from "../../lib/quality/loudness_analysis.ts";
+import { SLOPE_RANGE, UPPER_SLOPE } from "../../lib/quality/zwicker_tables.ts";
 import { tones } from "./signals.ts";
 
 /** Levels of the 28 bands with only the band of `hz` (a nominal frequency) at `db`. */
@@ -142,6 +143,31 @@ describe("the low-frequency weighting by level range", () => {
 });
 
 describe("the upper slopes", () => {
+  test("the typed slope table has the standard's shape: steeper when louder and lower in z", () => {
+    // ISO 532-1:2017 Annex A (the table's shape, from memory): in sone/Bark per Bark the
+    // steepness falls with the specific loudness it starts from, and is largest for the lowest
+    // bands (Zwicker & Fastl, Psychoacoustics, ch. 4: upper masking slopes are steepest at low
+    // frequency), so it never rises down a column (lower N′) nor along a row (higher band). A
+    // mistyped entry (5.5 for 0.55) breaks this. The one exception, as
+    // recalled: the top range (above 16 sone/Bark) of bands 3 and 4 is a little shallower than
+    // the next (5.7 < 6.0, 5.0 < 5.1), so the columns are checked from the second range down.
+    for (let r = 0; r < UPPER_SLOPE.length; r++) {
+      for (let c = 0; c < UPPER_SLOPE[r].length; c++) {
+        if (r > 1) {
+          expect(UPPER_SLOPE[r][c], `row ${r}, column ${c}`).toBeLessThan(UPPER_SLOPE[r - 1][c]);
+        }
+        if (c > 0) {
+          expect(UPPER_SLOPE[r][c], `row ${r}, column ${c}`).toBeLessThanOrEqual(
+            UPPER_SLOPE[r][c - 1],
+          );
+        }
+      }
+    }
+    for (let r = 1; r < SLOPE_RANGE.length; r++) {
+      expect(SLOPE_RANGE[r]).toBeLessThan(SLOPE_RANGE[r - 1]);
+    }
+  });
+
   test("a slope's steepness is that of the band it falls from (the first band's column)", () => {
     // ISO 532-1:2017 Annex A (from memory): the steepness of the upper slope is tabled by the
     // specific loudness and by the critical band from which the slope falls. 17 sone/Bark in the
