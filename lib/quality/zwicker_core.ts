@@ -120,7 +120,9 @@ export function specificLoudness(core: Float64Array, specific?: Float64Array): n
   const last = SLOPE_RANGE.length - 1;
   for (let i = 0; i <= CRITICAL_BAND_COUNT; i++) {
     const top = BAND_TOP_BARK[i] + 1e-4;
-    const column = Math.min(i, UPPER_SLOPE[0].length - 1);
+    // A slope in band i's range falls from the band below: its steepness is that band's
+    // column (ISO 532-1:2017, from memory; band 0 has no band below and never starts a slope).
+    const column = Math.max(0, Math.min(i - 1, UPPER_SLOPE[0].length - 1));
     const value = i < CRITICAL_BAND_COUNT ? core[i] : 0;
     while (z1 < top) {
       let n2: number, z2: number, slope = 0;

@@ -43,6 +43,9 @@ describe("DIN 45692", () => {
     expect(sharpnessWeighting(3)).toBe(1);
     expect(sharpnessWeighting(15.8)).toBe(1);
     assertClose(sharpnessWeighting(24), 5.5468, { relative: 0, absolute: 1e-3 }, "g(24)");
+    // Just above the knee: g(16.8) = 0.15·e^0.42 + 0.85 = 1.0783, g(20) = 0.15·e^1.764 + 0.85 = 1.7254.
+    assertClose(sharpnessWeighting(16.8), 1.0783, { relative: 0, absolute: 1e-4 }, "g(16.8)");
+    assertClose(sharpnessWeighting(20), 1.7254, { relative: 0, absolute: 1e-4 }, "g(20)");
   });
 
   test("all loudness at one z below 15.8 Bark: S = 0.11·z", () => {

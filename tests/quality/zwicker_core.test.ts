@@ -9,6 +9,7 @@ import { assertClose } from "../helpers/assert_close.ts";
 import { coreLoudness, loudnessLevel, specificLoudness } from "../../lib/quality/zwicker_core.ts";
 import { loudnessOfLevels } from "../../lib/quality/loudness_stationary.ts";
 import { loudnessAnalysis } from "../../lib/quality/loudness_analysis.ts";
+import { SLOPE_RANGE, UPPER_SLOPE } from "../../lib/quality/zwicker_tables.ts";
 import { tones } from "./signals.ts";
 
 /** Levels of the 28 bands with only the band of `hz` (a nominal frequency) at `db`. */
@@ -115,6 +116,74 @@ describe("the low-frequency weighting", () => {
     const low = loudnessOfLevels(oneBand(3, 60), "free").loudnessLevel;
     expect(low).toBeGreaterThan(30);
     expect(low).toBeLessThan(50);
+  });
+});
+
+describe("the low-frequency weighting by level range", () => {
+  test("a 25 Hz band at 60 dB is inaudible, at 80 dB audible", () => {
+    // ISO 226:2003 (from memory): the hearing threshold at 25 Hz is 68.7 dB SPL. In the method
+    // (ISO 532-1:2017 Annex A, from memory) 60 dB at 25 Hz lies in the lowest level range, is
+    // weighted by −32 dB to 28 dB, below the first critical band's threshold of 30 dB; the range
+    // is chosen by the weighted level (L + ΔL > the range's limit), so at 80 dB (80 − 32 = 48 >
+    // 45) the next range's −29 dB applies: 51 dB, audible.
+    expect(total(oneBand(0, 60), "free")).toBe(0);
+    expect(total(oneBand(0, 80), "free")).toBeGreaterThan(0.5);
+  });
+
+  test("the lowest critical band's core loudness is reduced by min(1, 0.4 + 0.32·N′^0.2)", () => {
+    // ISO 532-1:2017 (from memory): the threshold varies inside the first critical band, so its
+    // core loudness N′ is multiplied by 0.4 + 0.32·N′^0.2 (at most 1). 80 Hz at 70 dB: the
+    // low-frequency weighting is 0 dB at 80 Hz in every range, the first band's threshold is
+    // 30 dB and its band-width correction −0.25 dB, so L_E = 70.25 dB and
+    // N′ = 0.0635·10^(0.025·30)·((0.75 + 0.25·10^((70.25 − 30)/10))^0.25 − 1) (all from memory).
+    const n = 0.0635 * 10 ** (0.025 * 30) * ((0.75 + 0.25 * 10 ** ((70.25 - 30) / 10)) ** 0.25 - 1);
+    const core = coreLoudness(oneBand(5, 70), "free");
+    assertClose(core[0], n * (0.4 + 0.32 * n ** 0.2), { relative: 1e-9, absolute: 0 }, "N′(1)");
+  });
+});
+
+describe("the upper slopes", () => {
+  test("the typed slope table has the standard's shape: steeper when louder and lower in z", () => {
+    // ISO 532-1:2017 Annex A (the table's shape, from memory): in sone/Bark per Bark the
+    // steepness falls with the specific loudness it starts from, and is largest for the lowest
+    // bands (Zwicker & Fastl, Psychoacoustics, ch. 4: upper masking slopes are steepest at low
+    // frequency), so it never rises down a column (lower N′) nor along a row (higher band). A
+    // mistyped entry (5.5 for 0.55) breaks this. The one exception, as
+    // recalled: the top range (above 16 sone/Bark) of bands 3 and 4 is a little shallower than
+    // the next (5.7 < 6.0, 5.0 < 5.1), so the columns are checked from the second range down.
+    for (let r = 0; r < UPPER_SLOPE.length; r++) {
+      for (let c = 0; c < UPPER_SLOPE[r].length; c++) {
+        if (r > 1) {
+          expect(UPPER_SLOPE[r][c], `row ${r}, column ${c}`).toBeLessThan(UPPER_SLOPE[r - 1][c]);
+        }
+        if (c > 0) {
+          expect(UPPER_SLOPE[r][c], `row ${r}, column ${c}`).toBeLessThanOrEqual(
+            UPPER_SLOPE[r][c - 1],
+          );
+        }
+      }
+    }
+    for (let r = 1; r < SLOPE_RANGE.length; r++) {
+      expect(SLOPE_RANGE[r]).toBeLessThan(SLOPE_RANGE[r - 1]);
+    }
+  });
+
+  test("a slope's steepness is that of the band it falls from (the first band's column)", () => {
+    // ISO 532-1:2017 Annex A (from memory): the steepness of the upper slope is tabled by the
+    // specific loudness and by the critical band from which the slope falls. 17 sone/Bark in the
+    // first band (0–0.9 Bark) falls at 9.0 sone/Bark per Bark (range 16–18 sone/Bark, band 1);
+    // band 2's column would give 7.5. N′(0.95 Bark) = 17 − 0.05·9.0; the slope reaches 16 at
+    // 0.9 + 1/9 Bark and falls on at 7.8 (range 14–16, band 1; band 2's would be 6.7), so
+    // N′(1.05 Bark) = 16 − (0.15 − 1/9)·7.8.
+    const core = new Float64Array(20);
+    core[0] = 17;
+    const specific = new Float64Array(240);
+    specificLoudness(core, specific);
+    assertClose(specific[9], 17 - 0.05 * 9.0, { relative: 0, absolute: 1e-3 }, "0.95 Bark");
+    assertClose(specific[10], 16 - (0.15 - 1 / 9) * 7.8, {
+      relative: 0,
+      absolute: 1e-3,
+    }, "1.05 Bark");
   });
 });
 
