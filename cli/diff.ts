@@ -78,7 +78,7 @@ export async function run(argv: readonly string[]): Promise<void> {
         formatNumber(100 * r.significantShare, 3)
       } % of lines significant, largest ${formatNumber(r.largestDb, 3)} dB at ${
         r.at.map((v) => formatNumber(v, 5)).join(", ")
-      }`,
+      }${r.familywise ? " (holds for all lines)" : ""}`,
     );
   }
   if (s.ranking.length === 0) console.error("  nothing changed beyond chance");

@@ -83,17 +83,60 @@ export interface DiffSummary {
     readonly onlyBaseline: readonly string[];
     readonly onlyCandidate: readonly string[];
   };
-  /** Channels changed beyond chance, largest significant change first. */
-  readonly ranking: readonly {
-    readonly step: string;
-    readonly channel: string;
-    readonly significantShare: number;
-    readonly largestDb: number;
-    readonly at: readonly number[];
-  }[];
+  /**
+   * Channels changed beyond chance: those whose largest change holds for all
+   * their lines at once (`familywise`, see ChannelChange) first, each group
+   * by largest |change|.
+   */
+  readonly ranking: readonly RankedChange[];
   readonly spectral: readonly SpectralStepChange[];
   readonly values: readonly ValueChange[];
   readonly targets: readonly TargetChange[];
+}
+
+/** One channel of the ranking. */
+export interface RankedChange {
+  readonly step: string;
+  readonly channel: string;
+  readonly significantShare: number;
+  readonly largestDb: number;
+  readonly at: readonly number[];
+  /** The largest change holds at the Bonferroni level for all the channel's lines. */
+  readonly familywise: boolean;
+}
+
+/**
+ * The channels changed beyond chance, those whose largest change holds for
+ * all their lines at once first, each group by largest |change|.
+ *
+ * @example
+ * ```ts
+ * import { rankChanges } from "./run_diff.ts";
+ * const ch = (channel: string, db: number, familywise: boolean) => ({ channel, quantity: "power" as const,
+ *   lines: 10, judged: 10, significant: 9, changed: true, meanDifferenceDb: db,
+ *   largest: { at: [1], differenceDb: db, familywise } });
+ * const r = rankChanges([{ step: "s", channels: [ch("a", -50, false), ch("b", 6, true), ch("c", -12, true)] }]);
+ * if (r.map((x) => x.channel).join() !== "c,b,a") throw new Error(r.map((x) => x.channel).join());
+ * ```
+ */
+export function rankChanges(
+  spectral: readonly {
+    readonly step: string;
+    readonly channels: readonly (ChannelChange & { readonly changed: boolean })[];
+  }[],
+): RankedChange[] {
+  return spectral.flatMap((s) =>
+    s.channels.filter((ch) => ch.changed && ch.largest !== null).map((ch) => ({
+      step: s.step,
+      channel: ch.channel,
+      significantShare: ch.significant / ch.judged,
+      largestDb: ch.largest!.differenceDb,
+      at: ch.largest!.at,
+      familywise: ch.largest!.familywise,
+    }))
+  ).sort((x, y) =>
+    Number(y.familywise) - Number(x.familywise) || Math.abs(y.largestDb) - Math.abs(x.largestDb)
+  );
 }
 
 /** Which run a side of the diff is. */
@@ -249,15 +292,7 @@ export async function diffRuns(
       notCompared.push({ id: b.id, why: error instanceof Error ? error.message : String(error) });
     }
   }
-  const ranking = spectral.flatMap((s) =>
-    s.channels.filter((ch) => ch.changed && ch.largest !== null).map((ch) => ({
-      step: s.step,
-      channel: ch.channel,
-      significantShare: ch.significant / ch.judged,
-      largestDb: ch.largest!.differenceDb,
-      at: ch.largest!.at,
-    }))
-  ).sort((x, y) => Math.abs(y.largestDb) - Math.abs(x.largestDb));
+  const ranking = rankChanges(spectral);
   const identity = (run: RunRead): RunIdentity => ({
     dir: run.dir,
     title: run.title,

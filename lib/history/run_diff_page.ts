@@ -40,13 +40,15 @@ export function diffSections({ summary, tables }: RunDiff): ReportSection[] {
       pct(summary.confidence)
     } confidence (a repeat with the same statistics is significant on about ${
       pct(1 - summary.confidence)
-    } of its lines), ordered by their largest significant change.`,
+    } of its lines). First those whose largest change holds for all their lines at once (the
+    confidence raised for the number of lines, Bonferroni), then the others; each by their largest
+    significant change.`,
     figures: [],
     html: summary.ranking.length === 0 ? "<p>Nothing changed beyond chance.</p>" : table(
-      ["Step", "Channel", "Significant lines", "Largest change, dB", "At"],
+      ["Step", "Channel", "Significant lines", "Largest change, dB", "At", "Holds for all lines"],
       summary.ranking.map((r) =>
         cell(r.step) + cell(r.channel) + cell(pct(r.significantShare)) + num(r.largestDb, 3) +
-        cell(r.at.map((v) => formatNumber(v, 5)).join(", "))
+        cell(r.at.map((v) => formatNumber(v, 5)).join(", ")) + cell(r.familywise ? "yes" : "no")
       ),
     ),
   }];

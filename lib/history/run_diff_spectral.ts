@@ -27,10 +27,17 @@ export interface ChannelChange {
   /** Lines whose change is significant. */
   readonly significant: number;
   /**
-   * The significant line of largest |change| among those significant with
-   * both neighbours, else among all significant lines; null when none is.
+   * The line to name first: the one of largest |change| among lines still
+   * significant when the confidence is raised for all the channel's judged
+   * lines at once (Bonferroni: 1 − (1 − c)/judged; `familywise` true); else
+   * among those significant with both neighbours, else among all
+   * significant lines (`familywise` false); null when none is.
    */
-  readonly largest: { readonly at: readonly number[]; readonly differenceDb: number } | null;
+  readonly largest: {
+    readonly at: readonly number[];
+    readonly differenceDb: number;
+    readonly familywise: boolean;
+  } | null;
   /** Mean change over the compared lines, dB. */
   readonly meanDifferenceDb: number | null;
 }
@@ -176,9 +183,25 @@ export function spectralDiff(
     // The largest change among lines significant with both neighbours (same sign): over
     // thousands of lines, chance alone makes some isolated line extreme (multiple comparisons);
     // a lone significant line counts only when no run of three exists.
+    // Over thousands of lines of few degrees of freedom (a spectrogram's cells) even runs of
+    // three arise by chance; a change that holds at the Bonferroni level for every judged line
+    // at once does not (the family-wise error stays at 1 − c), so such a line is named first.
+    const strict = 1 - (1 - confidence) / Math.max(judged, 1);
+    pairs.forEach(([i, j], k) => {
+      if (verdict[k] !== "true") return;
+      const change = lineChange(b, c, i, j, strict);
+      if (change === undefined || !("significant" in change) || !change.significant) return;
+      if (largest === null || Math.abs(difference[k]) > Math.abs(largest.differenceDb)) {
+        largest = {
+          at: baseline.grid.map((g) => g.values[i]),
+          differenceDb: difference[k],
+          familywise: true,
+        };
+      }
+    });
     let sustained = false;
     pairs.forEach(([i], k) => {
-      if (verdict[k] !== "true") return;
+      if (largest?.familywise || verdict[k] !== "true") return;
       const run = k > 0 && k < pairs.length - 1 && verdict[k - 1] === "true" &&
         verdict[k + 1] === "true" && Math.sign(difference[k - 1]) === Math.sign(difference[k]) &&
         Math.sign(difference[k + 1]) === Math.sign(difference[k]);
@@ -187,7 +210,11 @@ export function spectralDiff(
         largest === null || (run && !sustained) ||
         Math.abs(difference[k]) > Math.abs(largest.differenceDb)
       ) {
-        largest = { at: baseline.grid.map((g) => g.values[i]), differenceDb: difference[k] };
+        largest = {
+          at: baseline.grid.map((g) => g.values[i]),
+          differenceDb: difference[k],
+          familywise: false,
+        };
         sustained ||= run;
       }
     });
