@@ -16,12 +16,13 @@
  *
  * @module
  */
-import { fstatSync, ftruncateSync, openSync, readSync, unlinkSync } from "node:fs";
+import { closeSync, fstatSync, ftruncateSync, openSync, readSync, unlinkSync } from "node:fs";
 import { tmpdir } from "node:os";
 import { join } from "node:path";
 import process from "node:process";
 import type * as H5 from "npm:h5wasm@0.10.3";
 import { QuiverError } from "../errors.ts";
+import { contiguousStorage, type RawStorage } from "./hdf5_storage.ts";
 
 /** An attribute's value as quiver uses it: a number, a text, a list of texts; null otherwise. */
 export type Hdf5Attribute = number | string | readonly string[] | null;
@@ -186,6 +187,11 @@ export class Hdf5File {
   readonly path: string;
   #pointer = 0;
   #capacity = 0;
+  /** The file opened by node:fs for contiguous datasets' bytes; -1 until needed. */
+  #fd = -1;
+  #raw = new Uint8Array(0);
+  /** Each dataset's contiguous storage, checked against the library's reading; null: none. */
+  readonly #storage = new Map<string, RawStorage | null>();
 
   private constructor(
     path: string,
@@ -307,6 +313,106 @@ export class Hdf5File {
     const width = dataset.shape.length === 2 ? dataset.shape[1 - axis] : 1;
     const bytes = typeBytes(dataset.type);
     const need = count * width * bytes;
+    const storage = this.storageOf(dataset, axis);
+    if (storage !== null && this.#readRaw(dataset, storage, first * width * bytes, need, out)) {
+      return;
+    }
+    this.#readLibrary(dataset, first, count, out, axis);
+  }
+
+  /**
+   * The contiguous storage of a dataset whose rows along `axis` lie in one
+   * run of bytes, which {@linkcode Hdf5File.readRows} reads straight from the
+   * file, once its first and last rows read both ways agree; null otherwise
+   * (chunked, filtered, big-endian, not written, a structure not known: the
+   * library reads it).
+   */
+  storageOf(dataset: Hdf5Dataset, axis = 0): RawStorage | null {
+    const { shape } = dataset;
+    const runs = shape.length === 1 || (shape.length === 2 && (axis === 0 || shape[0] === 1));
+    if (!runs || dataset.chunks !== null || dataset.filters.length > 0) return null;
+    if (this.#storage.has(dataset.path)) return this.#storage.get(dataset.path)!;
+    let storage: RawStorage | null = null;
+    try {
+      storage = this.#findStorage(dataset, axis);
+    } catch {
+      storage = null;
+    }
+    this.#storage.set(dataset.path, storage);
+    return storage;
+  }
+
+  #findStorage(dataset: Hdf5Dataset, axis: number): RawStorage | null {
+    const meta = this.#module.get_dataset_metadata(this.#file.file_id, dataset.path);
+    if (
+      !meta.littleEndian || meta.type !== this.#module.H5T_class_t.H5T_FLOAT.value &&
+        meta.type !== this.#module.H5T_class_t.H5T_INTEGER.value
+    ) return null;
+    const length = dataset.shape[axis];
+    const width = dataset.shape.length === 2 ? dataset.shape[1 - axis] : 1;
+    const total = length * width * typeBytes(dataset.type);
+    if (length < 1) return null;
+    // An object reference holds the object header's address (relative to the superblock).
+    const reference = Uint8Array.from(
+      this.#module.create_object_reference(this.#file.file_id, dataset.path) as ArrayLike<number>,
+    );
+    if (reference.length < 8) return null;
+    const header = Number(new DataView(reference.buffer).getBigUint64(0, true));
+    if (this.#fd < 0) this.#fd = openSync(this.path, "r");
+    const storage = contiguousStorage(this.#fd, header);
+    if (storage === null || storage.bytes !== total) return null;
+    if (storage.offset + total > fstatSync(this.#fd).size) return null;
+    // Checked, not trusted: the first and last rows read raw must equal the library's.
+    for (const at of length > 1 ? [0, length - 1] : [0]) {
+      const a = new Float64Array(width), b = new Float64Array(width);
+      this.#readLibrary(dataset, at, 1, a, axis);
+      const bytes = width * typeBytes(dataset.type);
+      if (!this.#readRaw(dataset, storage, at * bytes, bytes, b)) return null;
+      for (let i = 0; i < width; i++) if (!Object.is(a[i], b[i])) return null;
+    }
+    return storage;
+  }
+
+  /** `need` bytes from `start` of a contiguous storage, as doubles into `out`; false if short. */
+  #readRaw(
+    dataset: Hdf5Dataset,
+    storage: RawStorage,
+    start: number,
+    need: number,
+    out: Float64Array,
+  ): boolean {
+    if (this.#raw.length < need) this.#raw = new Uint8Array(need);
+    let got = 0;
+    while (got < need) {
+      const n = readSync(this.#fd, this.#raw, got, need - got, storage.offset + start + got);
+      if (n <= 0) return false;
+      got += n;
+    }
+    const heap = this.#raw.buffer as ArrayBuffer;
+    const n = need / typeBytes(dataset.type);
+    if (dataset.type === "int64" || dataset.type === "uint64") {
+      const values = dataset.type === "int64"
+        ? new BigInt64Array(heap, 0, n)
+        : new BigUint64Array(heap, 0, n);
+      for (let i = 0; i < n; i++) out[i] = Number(values[i]);
+      return true;
+    }
+    const Kind = ARRAYS[dataset.type as keyof typeof ARRAYS];
+    out.set(new Kind(heap, 0, n));
+    return true;
+  }
+
+  /** Rows read through the library's hyperslab selection. */
+  #readLibrary(
+    dataset: Hdf5Dataset,
+    first: number,
+    count: number,
+    out: Float64Array,
+    axis: number,
+  ): void {
+    const width = dataset.shape.length === 2 ? dataset.shape[1 - axis] : 1;
+    const bytes = typeBytes(dataset.type);
+    const need = count * width * bytes;
     if (need > this.#capacity) {
       if (this.#pointer !== 0) this.#module._free(this.#pointer);
       this.#pointer = this.#module._malloc(need);
@@ -379,6 +485,8 @@ export class Hdf5File {
 
   /** Closes the file and frees the row buffer. */
   close(): void {
+    if (this.#fd >= 0) closeSync(this.#fd);
+    this.#fd = -1;
     if (this.#pointer !== 0) this.#module._free(this.#pointer);
     this.#pointer = 0;
     this.#capacity = 0;

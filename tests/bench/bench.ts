@@ -327,6 +327,6 @@ async function memoryAndCampaign(): Promise<void> {
 }
 
 if (!Deno.args.includes("--headline")) await (await import("./formats_bench.ts")).formatRows();
-benchHdf5(); // HDF5: memory of a 1 GiB file, and against CSV for the same samples
+await benchHdf5(); // HDF5: memory of a 1 GiB file, and against CSV for the same samples
 
 console.log(`\nload average (1, 5, 15 min) at the end: ${load()}`);
