@@ -12,17 +12,18 @@
  */
 import { ANALYSES } from "../lib/analyses.ts";
 import type { CommandModule } from "../lib/analysis_descriptor.ts";
+import { lazyImport } from "../lib/lazy_import.ts";
 export type { CommandModule } from "../lib/analysis_descriptor.ts";
 
 /** The commands that are no analysis: a file's contents, calibration, campaigns, run against run. */
 const TOOLS: Readonly<Record<string, () => Promise<CommandModule>>> = {
-  info: () => import("./info.ts"),
-  calibrate: () => import("./calibrate.ts"),
-  run: () => import("./run.ts"),
-  merge: () => import("./merge.ts"),
-  report: () => import("./report.ts"),
-  diff: () => import("./diff.ts"),
-  history: () => import("./history.ts"),
+  info: () => lazyImport<typeof import("./info.ts")>("./info.ts", import.meta.url),
+  calibrate: () => lazyImport<typeof import("./calibrate.ts")>("./calibrate.ts", import.meta.url),
+  run: () => lazyImport<typeof import("./run.ts")>("./run.ts", import.meta.url),
+  merge: () => lazyImport<typeof import("./merge.ts")>("./merge.ts", import.meta.url),
+  report: () => lazyImport<typeof import("./report.ts")>("./report.ts", import.meta.url),
+  diff: () => lazyImport<typeof import("./diff.ts")>("./diff.ts", import.meta.url),
+  history: () => lazyImport<typeof import("./history.ts")>("./history.ts", import.meta.url),
 };
 
 /**

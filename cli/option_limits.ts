@@ -21,7 +21,7 @@ import { formatNumber } from "../lib/format_number.ts";
 import { MAX_FFT_SIZE } from "../lib/dsp/fft.ts";
 import { DEFAULT_BLOCK } from "../lib/dsp/spectral_core.ts";
 import { CHUNK_ROWS } from "../lib/io/recording_stream.ts";
-import { MAX_RPM_STEPS } from "../lib/orders/speed.ts";
+import { MAX_RPM_STEPS } from "../lib/orders/rpm_steps.ts";
 
 /** What the header tells: enough to size every analysis before reading. */
 export interface RecordShape {

@@ -11,8 +11,9 @@
  *
  * @module
  */
-import type { z } from "npm:zod@4.6.7";
+import { z } from "npm:zod@4.6.7";
 import type { OptionSpec } from "./args.ts";
+import type { SideOutput } from "../lib/analysis_descriptor.ts";
 
 /** One option. */
 export interface OptionEntry<S extends z.ZodType = z.ZodType> {
@@ -34,8 +35,11 @@ export interface OptionEntry<S extends z.ZodType = z.ZodType> {
   readonly helpWith?: string;
 }
 
-/** A command's options (or one group of them), by flag name without the dashes. */
-export type OptionTable = Readonly<Record<string, OptionEntry>>;
+/**
+ * A command's options (or one group of them), by flag name without the dashes;
+ * an analysis's side outputs (lib/analysis_descriptor.ts, `sideOutput`) among them.
+ */
+export type OptionTable = Readonly<Record<string, OptionEntry | SideOutput>>;
 
 /**
  * Declares an option, keeping the schema's type and whether it is required.
@@ -62,8 +66,10 @@ export function option<S extends z.ZodType, R extends boolean = false, F extends
 }
 
 type Shape<T extends OptionTable> = {
-  [K in keyof T]: T[K] extends { required: true } ? T[K]["schema"]
-    : z.ZodOptional<T[K]["schema"]>;
+  [K in keyof T]: T[K] extends SideOutput ? z.ZodOptional<z.ZodString>
+    : T[K] extends OptionEntry ? T[K] extends { required: true } ? T[K]["schema"]
+      : z.ZodOptional<T[K]["schema"]>
+    : never;
 };
 
 /**
@@ -80,7 +86,9 @@ type Shape<T extends OptionTable> = {
 export function shapeOf<T extends OptionTable>(table: T): Shape<T> {
   const shape: Record<string, z.ZodType> = {};
   for (const [name, entry] of Object.entries(table)) {
-    shape[name] = entry.required === true ? entry.schema : entry.schema.optional();
+    // A side output is a file name (its descriptor carries no schema: it loads no zod).
+    const schema = "schema" in entry ? entry.schema : z.string().min(1);
+    shape[name] = entry.required === true ? schema : schema.optional();
   }
   return shape as Shape<T>;
 }
@@ -124,7 +132,7 @@ export function helpOf(heading: string | undefined, table: OptionTable): string 
   const joined = new Set(Object.values(table).flatMap((e) => e.helpWith ?? []));
   for (const [name, entry] of Object.entries(table)) {
     if (joined.has(name)) continue;
-    const flagText = (n: string, e: OptionEntry) =>
+    const flagText = (n: string, e: OptionEntry | SideOutput) =>
       `--${n}${e.flag === true ? "" : ` ${e.value ?? "X"}`}`;
     let left = `  ${flagText(name, entry)}`;
     if (entry.helpWith !== undefined) {
@@ -183,7 +191,8 @@ export function libraryOptions<T extends OptionTable, V extends Partial<Record<k
 ): LibraryOptions<T, V> {
   const out: Record<string, unknown> = {};
   for (const [name, entry] of Object.entries(table)) {
-    const key = entry.feeds ?? name.replace(/-([a-z])/g, (_, c: string) => c.toUpperCase());
+    const key = ("feeds" in entry ? entry.feeds : undefined) ??
+      name.replace(/-([a-z])/g, (_, c: string) => c.toUpperCase());
     out[key] = (values as Record<string, unknown>)[name];
   }
   return out as LibraryOptions<T, V>;

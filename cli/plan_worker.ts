@@ -20,12 +20,15 @@ const scope = self as unknown as {
   postMessage(message: unknown): void;
 };
 
-const commands = await planCommandTable();
+// The handler is set at once and waits for the table itself: a message that came while the
+// module still awaited its commands (loaded at run time, lib/lazy_import.ts) would be lost.
+const commands = planCommandTable();
 
 scope.onmessage = async (event) => {
   const { command, argv, label } = event.data;
   try {
-    await withStderrLabel(label, () => commands[command].run(argv));
+    const table = await commands;
+    await withStderrLabel(label, () => table[command].run(argv));
     scope.postMessage({ ok: true });
   } catch (error) {
     scope.postMessage({ ok: false, error: error instanceof Error ? error.message : String(error) });

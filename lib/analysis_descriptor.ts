@@ -8,8 +8,9 @@
  *
  * @module
  */
+// Types only: the table of analyses loads at every start-up (quiver --version too), so
+// nothing here or in a descriptor loads zod, a schema or an analysis before it is used.
 import type { z } from "npm:zod@4.6.7";
-import { z as zod } from "npm:zod@4.6.7";
 import type { ParseArgsOptionsConfig } from "node:util";
 // Types only: lib/ loads cli/ modules only through a descriptor's `load`.
 import type { OptionEntry } from "../cli/option_table.ts";
@@ -37,12 +38,19 @@ export type StepOptions = Readonly<Record<string, unknown>>;
 /**
  * A side output: an `*-out` option of the command's option table, with the
  * kind of file the plan runner names for it (`<id>_<part>.json` or `.csv`).
+ * It carries no schema, so that a descriptor loads no zod: the option
+ * table gives a side output the schema of a FILE option (cli/option_table.ts,
+ * `shapeOf`).
  */
-export interface SideOutput extends OptionEntry {
+export interface SideOutput extends Omit<OptionEntry, "schema" | "feeds"> {
   /** The file the option writes, as the runner names it. */
   readonly writes: "json" | "csv";
   /** The output is written only when this holds of the step's options. Default: always. */
   readonly onlyWith?: (options: StepOptions) => boolean;
+  /** A FILE option. */
+  readonly value: "FILE";
+  /** Never required. */
+  readonly required: false;
 }
 
 /**
@@ -53,15 +61,14 @@ export interface SideOutput extends OptionEntry {
  * ```ts
  * import { sideOutput } from "./analysis_descriptor.ts";
  * const hits = sideOutput("csv", { help: "hit log" });
- * if (hits.writes !== "csv" || hits.value !== "FILE" || hits.schema.safeParse("").success) throw new Error();
+ * if (hits.writes !== "csv" || hits.value !== "FILE" || hits.required) throw new Error();
  * ```
  */
 export function sideOutput(
   writes: "json" | "csv",
   entry: { help: string; onlyWith?: (options: StepOptions) => boolean },
-): OptionEntry<z.ZodString> & { readonly required: false } & SideOutput {
-  // The entry cli/option_table.ts's `option` makes of a required-less FILE option.
-  return { schema: zod.string().min(1), value: "FILE", required: false, ...entry, writes };
+): SideOutput {
+  return { value: "FILE", required: false, ...entry, writes };
 }
 
 /** Earlier plan steps' results that a step reads. */
@@ -111,8 +118,11 @@ export interface AnalysisDescriptor {
   readonly name: string;
   /** Loads the command's module, only when it is asked for (start-up loads no other command). */
   readonly load: () => Promise<CommandModule>;
-  /** The zod schema of its result's metadata. */
-  readonly metadata: z.ZodType;
+  /**
+   * The zod schema of its result's metadata, or (as quiver's own descriptors
+   * give it) a loader of it, so that start-up builds no schema.
+   */
+  readonly metadata: z.ZodType | (() => Promise<z.ZodType>);
   /**
    * How a plan runs it: as an analysis (reading `reads`), as a comparison
    * (the plan's `comparisons` section), or not at all.

@@ -5,17 +5,24 @@
  * @module
  */
 import type { AnalysisDescriptor } from "../analysis_descriptor.ts";
-import { LEVEL_METADATA } from "./level_metadata.ts";
-import { resultMetadata } from "../io/result_metadata.ts";
 import type { ResultTable } from "../io/result_file.ts";
 import { finiteValue, oneChannel, type QuantityOf } from "../quantity_reading.ts";
+import { lazyImport } from "../lazy_import.ts";
+
+// The schemas are loaded when a target asks (the table of analyses loads at start-up).
+const results = () =>
+  lazyImport<typeof import("../io/result_metadata.ts")>(
+    "../io/result_metadata.ts",
+    import.meta.url,
+  );
 
 /** The summary's `key` of `channel`, named `quantity` in messages. */
-function summaryValue(
+async function summaryValue(
   result: ResultTable,
   { channel }: QuantityOf,
   key: "leq_db" | "lmax_db",
-): { value: number } {
+): Promise<{ value: number }> {
+  const { resultMetadata } = await results();
   const summary = resultMetadata(result, "level").summary;
   const name = oneChannel(summary.map((x) => x.channel), channel, "level summary");
   const s = summary.find((x) => x.channel === name);
@@ -26,10 +33,21 @@ function summaryValue(
 /** `quiver level`: time-weighted sound level of a recording. */
 export const levelDescriptor: AnalysisDescriptor = {
   name: "level",
-  load: () => import("../../cli/level.ts"),
-  metadata: LEVEL_METADATA,
-  report: () => import("../report/sections/level.ts"),
-  diff: () => import("./level_diff.ts").then((m) => m.LEVEL_DIFF),
+  load: () =>
+    lazyImport<typeof import("../../cli/level.ts")>("../../cli/level.ts", import.meta.url),
+  metadata: () =>
+    lazyImport<typeof import("./level_metadata.ts")>("./level_metadata.ts", import.meta.url).then((
+      m,
+    ) => m.LEVEL_METADATA),
+  report: () =>
+    lazyImport<typeof import("../report/sections/level.ts")>(
+      "../report/sections/level.ts",
+      import.meta.url,
+    ),
+  diff: () =>
+    lazyImport<typeof import("./level_diff.ts")>("./level_diff.ts", import.meta.url).then((m) =>
+      m.LEVEL_DIFF
+    ),
   plan: { step: "analysis", reads: { recording: true } },
   quantities: {
     leq_db: (result, of) => summaryValue(result, of, "leq_db"),

@@ -7,7 +7,7 @@
 import { type AnalysisDescriptor, sideOutput } from "../analysis_descriptor.ts";
 import type { ResultTable } from "../io/result_file.ts";
 import { finiteValue, oneChannel, type QuantityOf } from "../quantity_reading.ts";
-import { COMFORT_METADATA } from "./comfort_metadata.ts";
+import { lazyImport } from "../lazy_import.ts";
 
 /** comfort's and hand-arm's side outputs (their option tables spread them in). */
 export const VIBRATION_OUTPUTS = {
@@ -33,15 +33,28 @@ export function rowValue(
   return { value: finiteValue(row[key], key) };
 }
 
-const read = (key: "aw" | "mtvv" | "vdv") => (result: ResultTable, of: QuantityOf) =>
-  rowValue(COMFORT_METADATA.parse(result.metadata).rows, of, key);
+// Its schema is loaded when a target asks (the table of analyses loads at start-up).
+const read = (key: "aw" | "mtvv" | "vdv") => async (result: ResultTable, of: QuantityOf) => {
+  const { COMFORT_METADATA } = await lazyImport<typeof import("./comfort_metadata.ts")>(
+    "./comfort_metadata.ts",
+    import.meta.url,
+  );
+  return rowValue(COMFORT_METADATA.parse(result.metadata).rows, of, key);
+};
 
 /** `quiver comfort`: whole-body vibration, ISO 2631-1. */
 export const comfortDescriptor: AnalysisDescriptor = {
   name: "comfort",
-  load: () => import("../../cli/comfort.ts"),
-  metadata: COMFORT_METADATA,
-  report: () => import("../report/sections/comfort.ts"),
+  load: () =>
+    lazyImport<typeof import("../../cli/comfort.ts")>("../../cli/comfort.ts", import.meta.url),
+  metadata: () =>
+    lazyImport<typeof import("./comfort_metadata.ts")>("./comfort_metadata.ts", import.meta.url)
+      .then((m) => m.COMFORT_METADATA),
+  report: () =>
+    lazyImport<typeof import("../report/sections/comfort.ts")>(
+      "../report/sections/comfort.ts",
+      import.meta.url,
+    ),
   plan: { step: "analysis", reads: { recording: true } },
   outputs: VIBRATION_OUTPUTS,
   quantities: { aw: read("aw"), mtvv: read("mtvv"), vdv: read("vdv") },

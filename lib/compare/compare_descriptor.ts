@@ -4,7 +4,7 @@
  * @module
  */
 import { type AnalysisDescriptor, sideOutput } from "../analysis_descriptor.ts";
-import { COMPARE_METADATA } from "./compare_metadata.ts";
+import { lazyImport } from "../lazy_import.ts";
 
 /** compare's side outputs (its option table spreads them in). */
 export const COMPARE_OUTPUTS = {
@@ -17,9 +17,16 @@ export const COMPARE_OUTPUTS = {
 /** `quiver compare`: a test curve against a simulation; a plan's comparisons. */
 export const compareDescriptor: AnalysisDescriptor = {
   name: "compare",
-  load: () => import("../../cli/compare.ts"),
-  metadata: COMPARE_METADATA,
-  report: () => import("../report/sections/compare.ts"),
+  load: () =>
+    lazyImport<typeof import("../../cli/compare.ts")>("../../cli/compare.ts", import.meta.url),
+  metadata: () =>
+    lazyImport<typeof import("./compare_metadata.ts")>("./compare_metadata.ts", import.meta.url)
+      .then((m) => m.COMPARE_METADATA),
+  report: () =>
+    lazyImport<typeof import("../report/sections/compare.ts")>(
+      "../report/sections/compare.ts",
+      import.meta.url,
+    ),
   plan: { step: "comparison" },
   outputs: COMPARE_OUTPUTS,
 };

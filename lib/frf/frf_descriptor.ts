@@ -4,7 +4,7 @@
  * @module
  */
 import { type AnalysisDescriptor, sideOutput, type StepOptions } from "../analysis_descriptor.ts";
-import { FRF_METADATA } from "./frf_metadata.ts";
+import { lazyImport } from "../lazy_import.ts";
 
 /**
  * Whether a step's `inputs` option names two or more channels (a list, or
@@ -38,10 +38,20 @@ export const FRF_OUTPUTS = {
 /** `quiver frf`: frequency response functions of a recording. */
 export const frfDescriptor: AnalysisDescriptor = {
   name: "frf",
-  load: () => import("../../cli/frf.ts"),
-  metadata: FRF_METADATA,
-  report: () => import("../report/sections/frf.ts"),
-  diff: () => import("./frf_diff.ts").then((m) => m.FRF_DIFF),
+  load: () => lazyImport<typeof import("../../cli/frf.ts")>("../../cli/frf.ts", import.meta.url),
+  metadata: () =>
+    lazyImport<typeof import("./frf_metadata.ts")>("./frf_metadata.ts", import.meta.url).then((m) =>
+      m.FRF_METADATA
+    ),
+  report: () =>
+    lazyImport<typeof import("../report/sections/frf.ts")>(
+      "../report/sections/frf.ts",
+      import.meta.url,
+    ),
+  diff: () =>
+    lazyImport<typeof import("./frf_diff.ts")>("./frf_diff.ts", import.meta.url).then((m) =>
+      m.FRF_DIFF
+    ),
   plan: { step: "analysis", reads: { recording: true } },
   outputs: FRF_OUTPUTS,
 };

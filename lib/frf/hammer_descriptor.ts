@@ -4,7 +4,7 @@
  * @module
  */
 import { type AnalysisDescriptor, sideOutput } from "../analysis_descriptor.ts";
-import { HAMMER_METADATA } from "./hammer_metadata.ts";
+import { lazyImport } from "../lazy_import.ts";
 
 /** hammer's side outputs (its option table spreads them in): the hit log is a plain CSV table. */
 export const HAMMER_OUTPUTS = {
@@ -18,10 +18,21 @@ export const HAMMER_OUTPUTS = {
 /** `quiver hammer`: FRFs from an impact-hammer test. */
 export const hammerDescriptor: AnalysisDescriptor = {
   name: "hammer",
-  load: () => import("../../cli/hammer.ts"),
-  metadata: HAMMER_METADATA,
-  report: () => import("../report/sections/hammer.ts"),
-  diff: () => import("./frf_diff.ts").then((m) => m.FRF_DIFF),
+  load: () =>
+    lazyImport<typeof import("../../cli/hammer.ts")>("../../cli/hammer.ts", import.meta.url),
+  metadata: () =>
+    lazyImport<typeof import("./hammer_metadata.ts")>("./hammer_metadata.ts", import.meta.url).then(
+      (m) => m.HAMMER_METADATA,
+    ),
+  report: () =>
+    lazyImport<typeof import("../report/sections/hammer.ts")>(
+      "../report/sections/hammer.ts",
+      import.meta.url,
+    ),
+  diff: () =>
+    lazyImport<typeof import("./frf_diff.ts")>("./frf_diff.ts", import.meta.url).then((m) =>
+      m.FRF_DIFF
+    ),
   plan: { step: "analysis", reads: { recording: true } },
   outputs: HAMMER_OUTPUTS,
 };

@@ -18,7 +18,6 @@
  *
  * @module
  */
-import { unzlibSync } from "npm:fflate@0.8.3";
 import { BLOCK_HEADER_BYTES, blockName, type Mdf4Block, type Mdf4Blocks } from "./mdf4_blocks.ts";
 
 /** One data block's share of the data: stored as is, or deflated (DZ). */
@@ -206,12 +205,14 @@ export function untranspose(
  * @throws {QuiverError} for a stream that does not inflate or inflates to
  * another length.
  */
-export function inflatePiece(
+export async function inflatePiece(
   blocks: Mdf4Blocks,
   p: Extract<DataPiece, { kind: "zip" }>,
   zipped: Uint8Array,
   out: Uint8Array,
-): Uint8Array {
+): Promise<Uint8Array> {
+  // fflate is loaded with the first DZ block: every other read (and start-up) goes without it.
+  const { unzlibSync } = await import("npm:fflate@0.8.3");
   const name = blockName("DZ", p.block);
   // One byte more than declared: a stream that holds more fills it, and is refused below.
   const room = out.subarray(0, p.original + 1);
@@ -264,7 +265,7 @@ export async function* dataSegments(
     const zipped = zipBuffer.subarray(0, p.zipped);
     await blocks.read(zipped, p.start);
     if (inflateBuffer.length < p.original + 1) inflateBuffer = new Uint8Array(p.original + 1);
-    const inflated = inflatePiece(blocks, p, zipped, inflateBuffer);
+    const inflated = await inflatePiece(blocks, p, zipped, inflateBuffer);
     if (p.columns > 0 && plain.length < p.original) plain = new Uint8Array(p.original);
     yield p.columns > 0 ? untranspose(inflated, p.columns, plain) : inflated;
   }

@@ -41,7 +41,7 @@ async function bytesAt(
       const take = Math.min(length - from, count - filled);
       if (p.kind === "raw") await blocks.read(out.subarray(filled, filled + take), p.start + from);
       else {
-        let data = inflatePiece(
+        let data = await inflatePiece(
           blocks,
           p,
           await blocks.bytes(p.start, p.zipped),

@@ -5,8 +5,6 @@
  * @module
  */
 import type { AnalysisDescriptor } from "../analysis_descriptor.ts";
-import { DAMPING_METADATA } from "./damping_metadata.ts";
-import { resultMetadata } from "../io/result_metadata.ts";
 import type { ResultTable } from "../io/result_file.ts";
 import {
   finiteValue,
@@ -15,9 +13,17 @@ import {
   type QuantityValue,
 } from "../quantity_reading.ts";
 import { formatNumber } from "../format_number.ts";
+import { lazyImport } from "../lazy_import.ts";
 
-// The rules of modes come from first_mode.ts, loaded when a target asks (not at start-up).
-const rules = () => import("./first_mode.ts");
+// The rules of modes come from first_mode.ts, and the schemas from result_metadata.ts,
+// loaded when a target asks (not at start-up).
+const rules = () =>
+  lazyImport<typeof import("./first_mode.ts")>("./first_mode.ts", import.meta.url);
+const results = () =>
+  lazyImport<typeof import("../io/result_metadata.ts")>(
+    "../io/result_metadata.ts",
+    import.meta.url,
+  );
 
 /**
  * `first_mode_hz`: the lowest numbered mode, never a candidate flagged
@@ -26,6 +32,7 @@ const rules = () => import("./first_mode.ts");
  */
 async function firstModeHz(result: ResultTable, { channel }: QuantityOf): Promise<QuantityValue> {
   const { describeSkipped, firstMode } = await rules();
+  const { resultMetadata } = await results();
   const modes = resultMetadata(result, "damping").modes;
   if (channel !== undefined) oneChannel(modes.map((m) => m.channel), channel, "mode");
   const { used, skipped } = firstMode(modes, channel);
@@ -45,6 +52,7 @@ async function firstModeHz(result: ResultTable, { channel }: QuantityOf): Promis
 /** `mode_hz`: mode `mode` (1-based, as numbered in the damping table) of `channel`. */
 async function modeHz(result: ResultTable, { channel, mode }: QuantityOf): Promise<QuantityValue> {
   const { isMode } = await rules();
+  const { resultMetadata } = await results();
   const modes = resultMetadata(result, "damping").modes;
   const name = oneChannel(modes.map((m) => m.channel), channel, "mode");
   const wanted = mode ?? 1;
@@ -60,10 +68,20 @@ async function modeHz(result: ResultTable, { channel, mode }: QuantityOf): Promi
 /** `quiver damping`: modes and damping of an frf or hammer result. */
 export const dampingDescriptor: AnalysisDescriptor = {
   name: "damping",
-  load: () => import("../../cli/damping.ts"),
-  metadata: DAMPING_METADATA,
-  report: () => import("../report/sections/damping.ts"),
-  diff: () => import("./mode_values.ts").then((m) => m.MODE_DIFF),
+  load: () =>
+    lazyImport<typeof import("../../cli/damping.ts")>("../../cli/damping.ts", import.meta.url),
+  metadata: () =>
+    lazyImport<typeof import("./damping_metadata.ts")>("./damping_metadata.ts", import.meta.url)
+      .then((m) => m.DAMPING_METADATA),
+  report: () =>
+    lazyImport<typeof import("../report/sections/damping.ts")>(
+      "../report/sections/damping.ts",
+      import.meta.url,
+    ),
+  diff: () =>
+    lazyImport<typeof import("./mode_values.ts")>("./mode_values.ts", import.meta.url).then((m) =>
+      m.MODE_DIFF
+    ),
   plan: {
     step: "analysis",
     reads: {

@@ -5,11 +5,17 @@
  * @module
  */
 import { type AnalysisDescriptor, sideOutput } from "../analysis_descriptor.ts";
-import { MAC_METADATA } from "./mac_metadata.ts";
-import { resultMetadata } from "../io/result_metadata.ts";
 import type { ResultTable } from "../io/result_file.ts";
 import { finiteValue, type QuantityOf } from "../quantity_reading.ts";
 import { formatNumber } from "../format_number.ts";
+import { lazyImport } from "../lazy_import.ts";
+
+// The schemas are loaded when a target asks (the table of analyses loads at start-up).
+const results = () =>
+  lazyImport<typeof import("../io/result_metadata.ts")>(
+    "../io/result_metadata.ts",
+    import.meta.url,
+  );
 
 /** mac's side outputs (its option table spreads them in). */
 export const MAC_OUTPUTS = {
@@ -24,8 +30,9 @@ export const MAC_OUTPUTS = {
  * apart from its rival is no basis for a verdict: a PASS on it may be a
  * PASS on the wrong mode.
  */
-function pairOf(result: ResultTable, { mode }: QuantityOf) {
+async function pairOf(result: ResultTable, { mode }: QuantityOf) {
   const wanted = mode ?? 1;
+  const { resultMetadata } = await results();
   const pair = resultMetadata(result, "mac").pairs.find((p) => p.test_mode === wanted);
   if (pair === undefined) throw new Error(`test mode ${wanted} has no simulation pair`);
   if (pair.ambiguous === true) {
@@ -48,9 +55,16 @@ function pairOf(result: ResultTable, { mode }: QuantityOf) {
 /** `quiver mac`: test modes paired with simulation modes. */
 export const macDescriptor: AnalysisDescriptor = {
   name: "mac",
-  load: () => import("../../cli/mac.ts"),
-  metadata: MAC_METADATA,
-  report: () => import("../report/sections/mac.ts"),
+  load: () => lazyImport<typeof import("../../cli/mac.ts")>("../../cli/mac.ts", import.meta.url),
+  metadata: () =>
+    lazyImport<typeof import("./mac_metadata.ts")>("./mac_metadata.ts", import.meta.url).then((m) =>
+      m.MAC_METADATA
+    ),
+  report: () =>
+    lazyImport<typeof import("../report/sections/mac.ts")>(
+      "../report/sections/mac.ts",
+      import.meta.url,
+    ),
   plan: {
     step: "analysis",
     reads: {
@@ -70,11 +84,13 @@ export const macDescriptor: AnalysisDescriptor = {
   },
   outputs: MAC_OUTPUTS,
   quantities: {
-    pair_mac: (result, of) => ({ value: finiteValue(pairOf(result, of).mac, "the pair's MAC") }),
+    pair_mac: async (result, of) => ({
+      value: finiteValue((await pairOf(result, of)).mac, "the pair's MAC"),
+    }),
     // The shift as its magnitude, so that a `max` target bounds it either way.
-    pair_shift_percent: (result, of) => ({
+    pair_shift_percent: async (result, of) => ({
       value: Math.abs(
-        finiteValue(pairOf(result, of).shift_percent, "the pair's frequency shift"),
+        finiteValue((await pairOf(result, of)).shift_percent, "the pair's frequency shift"),
       ),
     }),
   },

@@ -4,7 +4,7 @@
  * @module
  */
 import { type AnalysisDescriptor, sideOutput } from "../analysis_descriptor.ts";
-import { MODAL_METADATA } from "./modal_metadata.ts";
+import { lazyImport } from "../lazy_import.ts";
 
 /** modal's side outputs (its option table spreads them in). */
 export const MODAL_OUTPUTS = {
@@ -23,10 +23,21 @@ export const MODAL_OUTPUTS = {
 /** `quiver modal`: modes fitted to the FRFs of several frf or hammer results. */
 export const modalDescriptor: AnalysisDescriptor = {
   name: "modal",
-  load: () => import("../../cli/modal.ts"),
-  metadata: MODAL_METADATA,
-  report: () => import("../report/sections/modal.ts"),
-  diff: () => import("./mode_values.ts").then((m) => m.MODE_DIFF),
+  load: () =>
+    lazyImport<typeof import("../../cli/modal.ts")>("../../cli/modal.ts", import.meta.url),
+  metadata: () =>
+    lazyImport<typeof import("./modal_metadata.ts")>("./modal_metadata.ts", import.meta.url).then((
+      m,
+    ) => m.MODAL_METADATA),
+  report: () =>
+    lazyImport<typeof import("../report/sections/modal.ts")>(
+      "../report/sections/modal.ts",
+      import.meta.url,
+    ),
+  diff: () =>
+    lazyImport<typeof import("./mode_values.ts")>("./mode_values.ts", import.meta.url).then((m) =>
+      m.MODE_DIFF
+    ),
   plan: {
     step: "analysis",
     reads: {

@@ -4,7 +4,7 @@
  * @module
  */
 import { type AnalysisDescriptor, sideOutput } from "../analysis_descriptor.ts";
-import { ORDERS_METADATA } from "./orders_metadata.ts";
+import { lazyImport } from "../lazy_import.ts";
 
 /** orders' side outputs (its option table spreads them in). */
 export const ORDERS_OUTPUTS = {
@@ -18,10 +18,21 @@ export const ORDERS_OUTPUTS = {
 /** `quiver orders`: order tracks against rpm. */
 export const ordersDescriptor: AnalysisDescriptor = {
   name: "orders",
-  load: () => import("../../cli/orders.ts"),
-  metadata: ORDERS_METADATA,
-  report: () => import("../report/sections/orders.ts"),
-  diff: () => import("./orders_diff.ts").then((m) => m.ORDERS_DIFF),
+  load: () =>
+    lazyImport<typeof import("../../cli/orders.ts")>("../../cli/orders.ts", import.meta.url),
+  metadata: () =>
+    lazyImport<typeof import("./orders_metadata.ts")>("./orders_metadata.ts", import.meta.url).then(
+      (m) => m.ORDERS_METADATA,
+    ),
+  report: () =>
+    lazyImport<typeof import("../report/sections/orders.ts")>(
+      "../report/sections/orders.ts",
+      import.meta.url,
+    ),
+  diff: () =>
+    lazyImport<typeof import("./orders_diff.ts")>("./orders_diff.ts", import.meta.url).then((m) =>
+      m.ORDERS_DIFF
+    ),
   plan: { step: "analysis", reads: { recording: true } },
   outputs: ORDERS_OUTPUTS,
 };

@@ -13,6 +13,9 @@ import { type Recording, selectChannels } from "../io/recording.ts";
 import { memorySeries, type SampleSeries } from "../io/sample_series.ts";
 import { motionFromPulses, motionFromRpm, type ShaftMotion } from "./shaft_motion.ts";
 import { type TachoPulses, tachoPulses } from "./tacho.ts";
+import { MAX_RPM_STEPS } from "./rpm_steps.ts";
+
+export { MAX_RPM_STEPS };
 
 /** Where the speed comes from. Give `tacho` (with `ppr`) or `rpmChannel`. */
 export interface SpeedSource {
@@ -234,12 +237,6 @@ export function timeAtRpm(motion: ShaftMotion, rpm: number): number | undefined 
   }
   return undefined;
 }
-
-/**
- * The most rpm steps quiver makes: 20 000 (1 rpm steps over 0–20 000 rpm).
- * Each step is one spectrum of the map and one row of the cuts.
- */
-export const MAX_RPM_STEPS = 20_000;
 
 /** rpm steps and the recorded speed range. */
 export interface RpmSteps {

@@ -4,7 +4,7 @@
  * @module
  */
 import { type AnalysisDescriptor, sideOutput } from "../analysis_descriptor.ts";
-import { PATHS_METADATA } from "./paths_metadata.ts";
+import { lazyImport } from "../lazy_import.ts";
 
 /** paths' side outputs (its option table spreads them in). */
 export const PATHS_OUTPUTS = {
@@ -16,9 +16,17 @@ export const PATHS_OUTPUTS = {
 /** `quiver paths`: each path's contribution to a target, from operating data and transfers. */
 export const pathsDescriptor: AnalysisDescriptor = {
   name: "paths",
-  load: () => import("../../cli/paths.ts"),
-  metadata: PATHS_METADATA,
-  report: () => import("../report/sections/paths.ts"),
+  load: () =>
+    lazyImport<typeof import("../../cli/paths.ts")>("../../cli/paths.ts", import.meta.url),
+  metadata: () =>
+    lazyImport<typeof import("./paths_metadata.ts")>("./paths_metadata.ts", import.meta.url).then((
+      m,
+    ) => m.PATHS_METADATA),
+  report: () =>
+    lazyImport<typeof import("../report/sections/paths.ts")>(
+      "../report/sections/paths.ts",
+      import.meta.url,
+    ),
   plan: {
     step: "analysis",
     reads: {

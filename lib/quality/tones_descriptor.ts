@@ -10,8 +10,7 @@ import { type AnalysisDescriptor, sideOutput } from "../analysis_descriptor.ts";
 import type { ResultTable } from "../io/result_file.ts";
 import { formatNumber } from "../format_number.ts";
 import { oneChannel, type QuantityOf, type QuantityValue } from "../quantity_reading.ts";
-import { TONES_METADATA } from "./tones_metadata.ts";
-import { criticalBandwidth } from "./critical_band.ts";
+import { lazyImport } from "../lazy_import.ts";
 
 /** tones' side outputs (its option table spreads them in). */
 export const TONES_OUTPUTS = {
@@ -49,10 +48,20 @@ const numeric = (result: ResultTable, name: string): Float64Array => {
  *   columns: [{ name: "channel", unit: "", values: ["mic", "mic"] },
  *     { name: "frequency_hz", unit: "Hz", values: new Float64Array([500, 1200]) },
  *     { name: "tnr_db", unit: "dB", values: new Float64Array([12, 9]) }] };
- * if (tnrOf(result, {}).value !== 12 || tnrOf(result, { frequencyHz: 1190 }).value !== 9) throw new Error();
+ * if ((await tnrOf(result, {})).value !== 12) throw new Error();
+ * if ((await tnrOf(result, { frequencyHz: 1190 })).value !== 9) throw new Error();
  * ```
  */
-export function tnrOf(result: ResultTable, of: QuantityOf): QuantityValue {
+export async function tnrOf(result: ResultTable, of: QuantityOf): Promise<QuantityValue> {
+  // Loaded when a target asks: the table of analyses loads at start-up.
+  const { TONES_METADATA } = await lazyImport<typeof import("./tones_metadata.ts")>(
+    "./tones_metadata.ts",
+    import.meta.url,
+  );
+  const { criticalBandwidth } = await lazyImport<typeof import("./critical_band.ts")>(
+    "./critical_band.ts",
+    import.meta.url,
+  );
   const m = TONES_METADATA.parse(result.metadata);
   const channels = column(result, "channel") as readonly string[];
   const channel = oneChannel(channels, of.channel, "tone");
@@ -108,9 +117,17 @@ export function tnrOf(result: ResultTable, of: QuantityOf): QuantityValue {
 /** `quiver tones`: tonal prominence, ECMA-418-1. */
 export const tonesDescriptor: AnalysisDescriptor = {
   name: "tones",
-  load: () => import("../../cli/tones.ts"),
-  metadata: TONES_METADATA,
-  report: () => import("../report/sections/tones.ts"),
+  load: () =>
+    lazyImport<typeof import("../../cli/tones.ts")>("../../cli/tones.ts", import.meta.url),
+  metadata: () =>
+    lazyImport<typeof import("./tones_metadata.ts")>("./tones_metadata.ts", import.meta.url).then((
+      m,
+    ) => m.TONES_METADATA),
+  report: () =>
+    lazyImport<typeof import("../report/sections/tones.ts")>(
+      "../report/sections/tones.ts",
+      import.meta.url,
+    ),
   plan: { step: "analysis", reads: { recording: true } },
   outputs: TONES_OUTPUTS,
   quantities: { tnr_db: tnrOf },

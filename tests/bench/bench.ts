@@ -28,6 +28,7 @@ import { comfortBench } from "./comfort.ts";
 import { loudnessBench } from "./loudness.ts";
 import { benchHdf5 } from "./hdf5.ts";
 import { benchMdf4 } from "./mdf4.ts";
+import { cpuFloor } from "./startup.ts";
 
 const MAIN = fileURLToPath(new URL("../../cli/main.ts", import.meta.url));
 const PEER = fileURLToPath(new URL("./peer_welch.py", import.meta.url));
@@ -62,6 +63,7 @@ console.log(
   `\nstart-up floor (median of 5): quiver --version ${versionFloor.toFixed(2)} s, ` +
     `spectrum of 1024 samples ${spectrumFloor.toFixed(2)} s`,
 );
+console.log(`  as CPU time (user + sys, median of 5): ${cpuFloor(MAIN, tiny, `${DIR}/tiny_psd`)}`);
 
 /** One line of where a command's time goes (stages.ts), beside the command's own time. */
 async function printStages(path: string, command: number): Promise<void> {
