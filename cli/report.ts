@@ -8,7 +8,7 @@ import { existsSync } from "node:fs";
 import { resolve, sep } from "node:path";
 import { sha256Hex } from "../lib/io/table_file.ts";
 import { realPathOf } from "../lib/io/output_paths.ts";
-import { manifestSchema } from "../lib/plan/manifest.ts";
+import { readFinishedManifest } from "../lib/plan/finished_run.ts";
 import { MANIFEST_FILE } from "../lib/plan/runner.ts";
 import { readFile } from "node:fs/promises";
 import { join } from "node:path";
@@ -142,33 +142,10 @@ async function unchangedPlan(manifest: Manifest): Promise<Plan> {
  * @throws {QuiverError} naming what does not hold.
  */
 async function verifiedManifest(outDir: string): Promise<Manifest> {
-  let json: unknown;
-  try {
-    json = JSON.parse(await readFile(join(outDir, MANIFEST_FILE), "utf8"));
-  } catch {
-    throw new QuiverError(
-      "no readable manifest.json here; run a plan first",
-      { file: outDir },
-      "usage",
-    );
-  }
-  const parsed = manifestSchema.safeParse(json);
-  if (!parsed.success) {
-    const issue = parsed.error.issues[0];
-    throw new QuiverError(
-      `manifest.json is not a quiver manifest: ${
-        issue.path.join(".") || "(top level)"
-      }: ${issue.message}`,
-      { file: outDir },
-    );
-  }
-  const manifest = parsed.data;
-  if (manifest.status === "running" || manifest.status === "aborted") {
-    throw new QuiverError(
-      `the run that wrote this folder did not finish (its manifest says ${manifest.status}): run the plan again`,
-      { file: outDir },
-    );
-  }
+  const manifest = await readFinishedManifest(outDir, {
+    missing: "run a plan first",
+    unfinished: "run the plan again",
+  });
   const realOut = realPathOf(outDir);
   const problems: string[] = [];
   for (const step of manifest.steps) {

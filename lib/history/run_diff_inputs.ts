@@ -14,7 +14,8 @@ import { basename, isAbsolute, join, resolve } from "node:path";
 import { z } from "npm:zod@4.6.7";
 import { QuiverError } from "../errors.ts";
 import { sha256Hex } from "../io/table_file.ts";
-import { type Manifest, manifestSchema } from "../plan/manifest.ts";
+import type { Manifest } from "../plan/manifest.ts";
+import { readFinishedManifest } from "../plan/finished_run.ts";
 
 /** One step of a run as the diff sees it. */
 export interface RunStep {
@@ -89,33 +90,10 @@ async function readPlan(
  * run that did not finish, or a plan that changed since.
  */
 export async function readRun(dir: string): Promise<RunRead> {
-  const manifestPath = join(dir, "manifest.json");
-  let raw: unknown;
-  try {
-    raw = JSON.parse(await readFile(manifestPath, "utf8"));
-  } catch (error) {
-    throw new QuiverError(
-      (error as { code?: string }).code === "ENOENT"
-        ? "no manifest.json here: not the folder of a finished quiver run"
-        : "manifest.json is not JSON",
-      { file: manifestPath },
-      "data",
-    );
-  }
-  const parsed = manifestSchema.safeParse(raw);
-  if (!parsed.success) {
-    throw new QuiverError("not a quiver manifest", { file: manifestPath }, "data");
-  }
-  const manifest = parsed.data;
-  if (
-    manifest.finished === null || manifest.status === "running" || manifest.status === "aborted"
-  ) {
-    throw new QuiverError(
-      `the run did not finish (status ${manifest.status}); compare finished runs only`,
-      { file: manifestPath },
-      "data",
-    );
-  }
+  const manifest = await readFinishedManifest(dir, {
+    missing: "not the folder of a finished quiver run",
+    unfinished: "compare finished runs only",
+  });
   const plan = await readPlan(dir, manifest);
   const planData = planSchema.safeParse(JSON.parse(new TextDecoder().decode(plan.bytes)));
   if (!planData.success) throw new QuiverError("not a quiver plan", { file: plan.path }, "data");

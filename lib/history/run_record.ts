@@ -16,7 +16,8 @@ import { readResultFile } from "../io/result_file.ts";
 import { realPathOf } from "../io/output_paths.ts";
 import { sha256Hex } from "../io/table_file.ts";
 import { MANIFEST_FILE } from "../plan/campaign_paths.ts";
-import { type Manifest, manifestSchema } from "../plan/manifest.ts";
+import type { Manifest } from "../plan/manifest.ts";
+import { readFinishedManifest } from "../plan/finished_run.ts";
 import { loadPlan } from "../plan/plan_file.ts";
 import { evaluateTargets } from "../plan/target_eval.ts";
 import { type StepValue, stepValues } from "./step_values.ts";
@@ -111,33 +112,10 @@ export function runKey(
 }
 
 async function readManifest(runDir: string): Promise<Manifest> {
-  let json: unknown;
-  try {
-    json = JSON.parse(await readFile(join(runDir, MANIFEST_FILE), "utf8"));
-  } catch {
-    throw new QuiverError(
-      "no readable manifest.json here: not the folder of a finished run",
-      { file: runDir },
-      "usage",
-    );
-  }
-  const parsed = manifestSchema.safeParse(json);
-  if (!parsed.success) {
-    const issue = parsed.error.issues[0];
-    throw new QuiverError(
-      `manifest.json is not a quiver manifest: ${
-        issue.path.join(".") || "(top level)"
-      }: ${issue.message}`,
-      { file: runDir },
-    );
-  }
-  const manifest = parsed.data;
-  if (manifest.status === "running" || manifest.status === "aborted") {
-    throw new QuiverError(
-      `the run did not finish (its manifest says ${manifest.status}): only finished runs are recorded`,
-      { file: runDir },
-    );
-  }
+  const manifest = await readFinishedManifest(runDir, {
+    missing: "not the folder of a finished run",
+    unfinished: "only finished runs are recorded",
+  });
   if (manifest.shard !== undefined) {
     throw new QuiverError(
       "this is one shard's manifest: merge the shards (quiver merge) and add the merged run",

@@ -67,9 +67,10 @@ test("a step whose units differ refuses the diff, naming both (exit 1)", async (
 
 test("a folder that is no run, a confidence out of range, a run folder as output", () => {
   const none = runQuiver(["diff", base, dir, "--out-dir", `${dir}/d4`]);
-  expect(none.code).toBe(1);
+  // A folder that is not a run is a wrong argument (exit 2), as for `report` and `history add`.
+  expect(none.code).toBe(2);
   expect(lines(none.stderr)).toHaveLength(1);
-  expect(none.stderr).toContain("no manifest.json");
+  expect(none.stderr).toContain("no readable manifest.json here");
   const confidence = runQuiver([
     "diff",
     base,
