@@ -245,7 +245,14 @@ export const SLOPE_RANGE: readonly number[] = [
  * {@linkcode SLOPE_RANGE}, one column per critical band from which the slope
  * falls (the eighth for the eighth and every band above). From memory, and
  * the least sure of these tables below the first four rows: ISO 532-1:2017
- * Annex A is the authority.
+ * Annex A is the authority. The suspects, by the sone scale at 1 kHz
+ * (README, "Not a certified meter"; tests/reference/make_zwicker_reference.py):
+ * the last column in the ranges from 0.3 to 4 sone/Bark. A lone 1 kHz band
+ * comes out 1.0 to 1.9 phon loud from 50 to 80 dB, all of it in its upper
+ * slope, which only that column shapes; 17 % steeper there would meet the
+ * scale within 0.4 phon from 50 to 80 dB (0.65 phon under at 40 dB). Not
+ * changed: no source at hand says whether the entries or the method's own
+ * departure from the scale is the cause.
  */
 export const UPPER_SLOPE: readonly (readonly number[])[] = [
   [13.0, 8.2, 5.7, 5.0, 5.0, 5.0, 5.0, 5.0],

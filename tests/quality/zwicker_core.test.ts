@@ -50,7 +50,9 @@ describe("ISO 532-1 definitions", () => {
 
   test("a 1 kHz tone's loudness doubles per 10 phon above 40 phon", () => {
     // ISO 532-1:2017 clause 3 (the sone scale: 10 phon more is twice as loud); Zwicker's method
-    // follows the scale within about 2 phon at 1 kHz (from memory).
+    // follows the scale within about 2 phon at 1 kHz (from memory). With our tables a lone 1 kHz
+    // band is 1.0 … 1.9 phon loud from 50 to 80 dB, all of it in the upper slope (README, "Not a
+    // certified meter"): the tolerance cannot tighten until the slope table is checked.
     for (const db of [50, 60, 70, 80]) {
       const v = loudnessOfLevels(oneBand(KHZ1, db), "free");
       assertClose(v.loudnessLevel, db, { relative: 0, absolute: 2 }, `L_N at ${db} dB`);
