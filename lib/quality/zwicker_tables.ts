@@ -9,44 +9,22 @@
  *
  * @module
  */
-
-/** Nominal mid-band frequencies of the method's 28 one-third octaves, Hz (IEC 61260-1 bands −16 … 11). */
-export const THIRD_OCTAVE_HZ: readonly number[] = [
-  25,
-  31.5,
-  40,
-  50,
-  63,
-  80,
-  100,
-  125,
-  160,
-  200,
-  250,
-  315,
-  400,
-  500,
-  630,
-  800,
-  1000,
-  1250,
-  1600,
-  2000,
-  2500,
-  3150,
-  4000,
-  5000,
-  6300,
-  8000,
-  10000,
-  12500,
-];
+import { band } from "../acoustics/bands.ts";
 
 /** The IEC 61260-1 band number of the method's first one-third octave (25 Hz). */
 export const FIRST_BAND_INDEX = -16;
 
 /** The method's number of one-third octaves. */
 export const BAND_COUNT = 28;
+
+/**
+ * Nominal mid-band frequencies of the method's 28 one-third octaves, Hz (IEC
+ * 61260-1 bands −16 … 11, 25 Hz … 12.5 kHz), from the one band plan.
+ */
+export const THIRD_OCTAVE_HZ: readonly number[] = Array.from(
+  { length: BAND_COUNT },
+  (_, i) => band(FIRST_BAND_INDEX + i, 3).nominalHz,
+);
 
 /** The number of approximated critical bands of the core loudness. */
 export const CRITICAL_BAND_COUNT = 20;
