@@ -8,6 +8,14 @@
 import type { SpectralEstimate, SpectralOptions } from "./spectral_core.ts";
 import type { RingBuffers } from "../shared_ring.ts";
 import type { PostedError } from "../workers.ts";
+import type { ConverterScale } from "../io/recording.ts";
+
+/** A channel whose signal checks (lib/io/signal_checks.ts) a worker makes on its share. */
+export interface CheckedChannel {
+  name: string;
+  unit: string;
+  fullScale?: ConverterScale;
+}
 
 /** The ring flag that tells the worker the record has ended. */
 export const END_OF_RECORD = 1;
@@ -18,9 +26,15 @@ export interface SpectralWorkerStart {
   options: Omit<SpectralOptions, "frames">;
   ring: RingBuffers;
   slotRows: number;
+  /** The group's channels, when the worker makes their signal checks too. */
+  checks?: CheckedChannel[];
 }
 
 /** The worker's one reply. */
 export type SpectralWorkerReply =
-  | { estimate: SpectralEstimate }
+  | {
+    estimate: SpectralEstimate;
+    /** Each channel's signal warnings, when the start asked for checks. */
+    warnings?: string[][];
+  }
   | { error: PostedError };

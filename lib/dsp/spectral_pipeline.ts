@@ -12,7 +12,10 @@
  * memory (16 MiB): `push` copies the worker's channels into a free slot and
  * waits (Atomics.wait) only when every slot is still full, which bounds the
  * memory whatever the speed of either side, then transforms this thread's
- * channels while the worker transforms its own.
+ * channels while the worker transforms its own. Read through
+ * {@linkcode spectralEstimateOf}, each thread also makes the signal checks
+ * of its own channels (lib/io/signal_checks.ts: the same warnings, in the
+ * same order, as {@linkcode readChecked} gives in one thread).
  *
  * @module
  */
@@ -25,11 +28,13 @@ import {
 import { SharedRing } from "../shared_ring.ts";
 import { insideWorker, thrownError } from "../workers.ts";
 import {
+  type CheckedChannel,
   END_OF_RECORD,
   type SpectralWorkerReply,
   type SpectralWorkerStart,
 } from "./spectral_messages.ts";
 import { readChecked, type RecordingStream } from "../io/recording_stream.ts";
+import { ChannelStatistics } from "../io/signal_checks.ts";
 
 /** Where the spectral core runs: fed chunk by chunk, then asked for the estimate. */
 export interface SpectralSink {
@@ -157,6 +162,20 @@ export function spectralSink(
   options: SpectralOptions,
   sinkOptions: SpectralSinkOptions = {},
 ): SpectralSink {
+  return chosenSink(channelCount, options, sinkOptions);
+}
+
+/**
+ * {@linkcode spectralSink}'s choice; with `checks` (one per channel), a
+ * shared sink also makes the channels' signal checks, each in the thread
+ * that transforms the channel.
+ */
+function chosenSink(
+  channelCount: number,
+  options: SpectralOptions,
+  sinkOptions: SpectralSinkOptions,
+  checks?: readonly CheckedChannel[],
+): SpectralSink | SharedSink {
   validateSpectralOptions(channelCount, options);
   const threads = sinkOptions.threads ??
     automaticThreads(channelCount, options, sinkOptions.samples);
@@ -172,7 +191,7 @@ export function spectralSink(
   if (options.frames !== undefined) {
     throw new RangeError("frames cannot be handed out of a worker; use one thread");
   }
-  return new SharedSink(channelCount, options, groups);
+  return new SharedSink(channelCount, options, groups, checks);
 }
 
 /** The options of one group's accumulator: its pairs, numbered within the group. */
@@ -195,7 +214,11 @@ class WorkerPart {
   readonly #reply: Promise<SpectralWorkerReply>;
   readonly #worker: Worker;
 
-  constructor(group: readonly number[], options: SpectralOptions) {
+  constructor(
+    group: readonly number[],
+    options: SpectralOptions,
+    checks: readonly CheckedChannel[] | undefined,
+  ) {
     this.group = group;
     this.#ring = SharedRing.create(slotsFor(group.length), group.length * SLOT_ROWS);
     this.#worker = new Worker(new URL("./spectral_worker.ts", import.meta.url).href, {
@@ -213,6 +236,7 @@ class WorkerPart {
       options: groupOptions(options, group),
       ring: this.#ring.buffers,
       slotRows: SLOT_ROWS,
+      ...(checks === undefined ? {} : { checks: group.map((c) => checks[c]) }),
     };
     this.#worker.postMessage(start);
   }
@@ -244,12 +268,13 @@ class WorkerPart {
     this.#worker.terminate();
   }
 
-  async finish(): Promise<SpectralEstimate> {
+  /** The group's estimate and, when checks were asked for, each channel's warnings. */
+  async finish(): Promise<{ estimate: SpectralEstimate; warnings?: string[][] }> {
     this.#freeSlot();
     this.#ring.publish(0, END_OF_RECORD);
     const reply = await this.#reply;
     this.#worker.terminate();
-    if ("estimate" in reply) return reply.estimate;
+    if ("estimate" in reply) return reply;
     throw thrownError(reply.error);
   }
 }
@@ -261,14 +286,37 @@ class SharedSink implements SpectralSink {
   readonly #group: readonly number[];
   readonly #here: SpectralAccumulator;
   readonly #workers: WorkerPart[];
+  /** With checks: the signal checks of this thread's group, and every channel's warnings. */
+  readonly #checks: readonly CheckedChannel[] | undefined;
+  readonly #statistics: ChannelStatistics[];
+  readonly #warnings: string[][];
 
-  constructor(channelCount: number, options: SpectralOptions, groups: readonly number[][]) {
+  constructor(
+    channelCount: number,
+    options: SpectralOptions,
+    groups: readonly number[][],
+    checks?: readonly CheckedChannel[],
+  ) {
     this.#channelCount = channelCount;
     this.#pairs = options.pairs ?? [];
     const [here, ...others] = groups;
     this.#group = here;
     this.#here = new SpectralAccumulator(here.length, groupOptions(options, here));
-    this.#workers = others.map((group) => new WorkerPart(group, options));
+    // Every channel's rails are checked here, before any worker starts (a RangeError as
+    // readChecked gives); this thread keeps its own group's statistics.
+    const statistics = (checks ?? []).map((c) => new ChannelStatistics(c.fullScale));
+    this.#checks = checks;
+    this.#statistics = checks === undefined ? [] : here.map((c) => statistics[c]);
+    this.#warnings = [];
+    this.#workers = others.map((group) => new WorkerPart(group, options, checks));
+  }
+
+  /**
+   * The signal warnings of every channel in channel order, after
+   * {@linkcode SharedSink.finish} (a sink made with checks).
+   */
+  warnings(): string[] {
+    return this.#warnings.flat();
   }
 
   push(chunk: readonly Float64Array[]): void {
@@ -281,7 +329,9 @@ class SharedSink implements SpectralSink {
     }
     // The workers' shares first, so that they transform while this thread does its own.
     for (const worker of this.#workers) worker.push(chunk);
-    this.#here.push(pick(chunk, this.#group));
+    const own = pick(chunk, this.#group);
+    for (let i = 0; i < this.#statistics.length; i++) this.#statistics[i].push(own[i]);
+    this.#here.push(own);
   }
 
   cancel(): void {
@@ -298,9 +348,18 @@ class SharedSink implements SpectralSink {
       this.cancel();
       throw error;
     }
-    const parts = [{ group: this.#group, estimate: here }];
+    const checks = this.#checks;
+    const parts = [{
+      group: this.#group,
+      estimate: here,
+      warnings: checks && this.#group.map((c, i) => this.#statistics[i].warnings(checks[c])),
+    }];
     for (let w = 0; w < replies.length; w++) {
-      parts.push({ group: this.#workers[w].group, estimate: await replies[w] });
+      const { estimate, warnings } = await replies[w];
+      parts.push({ group: this.#workers[w].group, estimate, warnings });
+    }
+    for (const { group, warnings } of parts) {
+      group.forEach((c, i) => this.#warnings[c] = warnings?.[i] ?? []);
     }
     // Each channel's spectrum, and each pair's, from the group that made it.
     const auto = new Array<Float64Array>(this.#channelCount);
@@ -341,13 +400,25 @@ export async function spectralEstimateOf(
   options: SpectralOptions,
   sinkOptions: SpectralSinkOptions = {},
 ): Promise<{ estimate: SpectralEstimate; warnings: string[] }> {
-  const sink = spectralSink(indices.length, options, { samples: stream.length, ...sinkOptions });
-  let warnings: string[];
+  const checks = indices.map((i): CheckedChannel => {
+    const { name, unit, fullScale } = stream.channels[i];
+    return fullScale === undefined ? { name, unit } : { name, unit, fullScale };
+  });
+  const sink = chosenSink(
+    indices.length,
+    options,
+    { samples: stream.length, ...sinkOptions },
+    checks,
+  );
+  let warnings: string[] | undefined;
   try {
-    warnings = await readChecked(stream, indices, (chunk) => sink.push(chunk));
+    // A shared sink checks each channel in the thread that transforms it; otherwise here.
+    if (sink instanceof SharedSink) await stream.read(indices, (chunk) => sink.push(chunk));
+    else warnings = await readChecked(stream, indices, (chunk) => sink.push(chunk));
   } catch (error) {
     sink.cancel();
     throw error;
   }
-  return { estimate: await sink.finish(), warnings };
+  const estimate = await sink.finish();
+  return { estimate, warnings: warnings ?? (sink as SharedSink).warnings() };
 }

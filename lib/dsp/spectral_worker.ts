@@ -1,7 +1,8 @@
 /**
  * The worker side of {@linkcode spectralSink}: takes its group's chunks from
- * the shared ring in order, feeds them to one {@linkcode SpectralAccumulator},
- * frees each slot, and at the end posts the estimate (or the error) once.
+ * the shared ring in order, feeds them to one {@linkcode SpectralAccumulator}
+ * (and, when asked, to each channel's signal checks first), frees each slot,
+ * and at the end posts the estimate and the warnings (or the error) once.
  *
  * @module
  */
@@ -13,6 +14,7 @@ import {
 } from "./spectral_messages.ts";
 import { SharedRing } from "../shared_ring.ts";
 import { postedError } from "../workers.ts";
+import { ChannelStatistics } from "../io/signal_checks.ts";
 
 interface WorkerScope {
   onmessage: ((event: MessageEvent<SpectralWorkerStart>) => void) | null;
@@ -21,12 +23,14 @@ interface WorkerScope {
 const scope = globalThis as unknown as WorkerScope;
 
 scope.onmessage = (event) => {
-  const { channelCount, options, ring: buffers, slotRows } = event.data;
+  const { channelCount, options, ring: buffers, slotRows, checks } = event.data;
   const ring = SharedRing.attach(buffers);
   let accumulator: SpectralAccumulator | undefined;
+  let statistics: ChannelStatistics[] = [];
   let failure: unknown;
   try {
     accumulator = new SpectralAccumulator(channelCount, options);
+    statistics = (checks ?? []).map((c) => new ChannelStatistics(c.fullScale));
   } catch (error) {
     failure = error;
   }
@@ -39,6 +43,7 @@ scope.onmessage = (event) => {
         views[c] = data.subarray(c * slotRows, c * slotRows + count);
       }
       try {
+        for (let c = 0; c < statistics.length; c++) statistics[c].push(views[c]);
         accumulator!.push(views);
       } catch (error) {
         failure = error; // keep freeing slots, so that the reader never waits for ever
@@ -48,7 +53,9 @@ scope.onmessage = (event) => {
   }
   try {
     if (failure !== undefined) throw failure;
-    scope.postMessage({ estimate: accumulator!.finish() });
+    const estimate = accumulator!.finish();
+    if (checks === undefined) scope.postMessage({ estimate });
+    else scope.postMessage({ estimate, warnings: checks.map((c, i) => statistics[i].warnings(c)) });
   } catch (error) {
     scope.postMessage({ error: postedError(error) });
   }

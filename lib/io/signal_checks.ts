@@ -165,8 +165,9 @@ export class ChannelStatistics {
   #low = emptyRail();
   // The grid of the samples so far (greatest common step of successive differences).
   #step = Infinity;
-  // Whether the grid is still above GRID_FLOOR (refined further).
-  #refining = true;
+  // Whether the grid is still above GRID_FLOOR (refined further); never with a converter's step,
+  // which is used instead (closeRun, warnings).
+  #refining: boolean;
   // The two samples before the current one.
   #last1 = NaN;
   #last2 = NaN;
@@ -200,6 +201,7 @@ export class ChannelStatistics {
       );
     }
     this.#converter = converter;
+    this.#refining = converter?.step === undefined;
   }
 
   /** Adds the next samples. */
@@ -225,10 +227,42 @@ export class ChannelStatistics {
     const fsLow = converter === undefined ? -Infinity : converter.low + railTolerance;
     // No closure over the loop's locals: a captured variable lives in a context, read slowly.
     const knownStep = converter?.step ?? 0;
+    // Two fast paths do exactly what the full body below would do in the two common cases, with
+    // fewer tests per sample (the body's tests cost more than the sums themselves): a new value
+    // strictly inside the range so far (`plain`: nothing pending, no run of 3 to close, no grid
+    // to refine, not at a rail before; `upper`/`lower` fold the range and the rails), and the
+    // same value again (`runValue` always equals `last1`, the previous sample: so the step to it
+    // is 0, and it was at a rail when `fsRun` > 0). Anything else (a new extreme, a run to close,
+    // NaN) takes the full body, which then sets them again. A converter's known step makes the
+    // grid unneeded: it is not refined then (the grid's remainders are the slowest test).
+    let plain = false, upper = -Infinity, lower = Infinity;
     for (let i = 0; i < x.length; i++) {
       const v = x[i];
       sum += v;
       sumSquares += v * v;
+      if (v !== runValue) {
+        if (plain && v < upper && v > lower) {
+          runBefore1 = last1;
+          runBefore2 = last2;
+          runValue = v;
+          runLength = 1;
+          last2 = last1;
+          last1 = v;
+          continue;
+        }
+      } else if (pending === undefined) {
+        if (v === max) high.count++;
+        if (v === min) low.count++;
+        if (fsRun > 0) {
+          fsCount++;
+          fsRun++;
+        }
+        runLength++;
+        last2 = last1;
+        last1 = v;
+        plain = false; // the run may be long enough to judge when it ends
+        continue;
+      }
       if (v > max) {
         max = v;
         high = emptyRail();
@@ -290,6 +324,9 @@ export class ChannelStatistics {
       }
       last2 = last1;
       last1 = v;
+      plain = !refining && pending === undefined && runLength < 3 && fsRun === 0;
+      upper = max < fsHigh ? max : fsHigh;
+      lower = min > fsLow ? min : fsLow;
     }
     this.#n += x.length;
     this.#sum = sum;

@@ -64,7 +64,24 @@ export function parseWav(bytes: Uint8Array, file?: string): Recording {
 /**
  * Decodes `frames` frames starting at byte `start` of `view` into `out`
  * (one array per channel, each at least `frames` long), as fractions of full
- * scale. Allocates nothing: the chunked reader reuses its arrays.
+ * scale. Allocates no sample array: the chunked reader reuses its arrays.
+ *
+ * @returns true when every decoded sample is known to be finite (integer
+ * PCM always is; aligned float samples are checked as they are copied);
+ * false when some may not be: the caller then refuses them with
+ * {@linkcode refuseNonFiniteSamples}, which names the first.
+ *
+ * @example
+ * ```ts
+ * import { decodeWavFrames, encodeWav } from "./wav.ts";
+ * import { wavLayout } from "./wav_layout.ts";
+ * const rec = { rate: 8, startTime: 0, channels: [{ name: "a", unit: "FS", data: new Float64Array([0.5, -0.25]) }] };
+ * const bytes = encodeWav(rec, "float32");
+ * const { format, dataStart } = wavLayout(bytes, bytes.length);
+ * const out = [new Float64Array(2)];
+ * const finite = decodeWavFrames(new DataView(bytes.buffer), { start: dataStart, count: 2, format, out });
+ * if (!finite || out[0][1] !== -0.25) throw new Error();
+ * ```
  */
 export function decodeWavFrames(
   view: DataView,
@@ -78,16 +95,18 @@ export function decodeWavFrames(
     /** One array per channel, each at least `count` long. */
     out: readonly Float64Array[];
   },
-): void {
+): boolean {
   const { start, count, format: f, out } = frames;
   const bytesPerSample = f.bits / 8;
-  if (decodeAligned(view, start, count, f, out)) return;
+  const aligned = decodeAligned(view, start, count, f, out);
+  if (aligned !== undefined) return aligned;
   for (let i = 0; i < count; i++) {
     for (let c = 0; c < f.channels; c++) {
       const at = start + i * f.blockAlign + c * bytesPerSample;
       out[c][i] = readSample(view, at, f.code, f.bits);
     }
   }
+  return f.code !== FORMAT_FLOAT;
 }
 
 const LITTLE_ENDIAN = new Uint8Array(new Uint16Array([1]).buffer)[0] === 1;
@@ -95,9 +114,10 @@ const LITTLE_ENDIAN = new Uint8Array(new Uint16Array([1]).buffer)[0] === 1;
 /**
  * The common encodings through a typed-array view of the frames, one tight
  * loop per channel: the same values as {@linkcode readSample} (a float32 or
- * int16 read is exact either way) at several times its speed. False when the
- * machine or the alignment does not allow a view; the caller then decodes
- * sample by sample.
+ * int16 read is exact either way) at several times its speed. Undefined when
+ * the machine or the alignment does not allow a view (the caller then
+ * decodes sample by sample); otherwise whether every sample is finite (float
+ * samples are checked as they are copied).
  */
 function decodeAligned(
   view: DataView,
@@ -105,34 +125,62 @@ function decodeAligned(
   count: number,
   f: WavFormat,
   out: readonly Float64Array[],
-): boolean {
+): boolean | undefined {
   const at = view.byteOffset + start;
   const bytes = f.bits / 8;
-  if (!LITTLE_ENDIAN || at % bytes !== 0 || f.blockAlign !== bytes * f.channels) return false;
-  const channels = f.channels;
-  const length = count * channels;
-  let samples: Float32Array | Float64Array | Int16Array | Int32Array;
-  let scale = 1;
+  if (!LITTLE_ENDIAN || at % bytes !== 0 || f.blockAlign !== bytes * f.channels) return undefined;
+  const length = count * f.channels;
   if (f.code === FORMAT_FLOAT) {
-    samples = f.bits === 32
-      ? new Float32Array(view.buffer, at, length)
-      : new Float64Array(view.buffer, at, length);
-  } else if (f.bits === 16) {
-    samples = new Int16Array(view.buffer, at, length);
-    scale = 1 / 32768;
-  } else if (f.bits === 32) {
-    samples = new Int32Array(view.buffer, at, length);
-    scale = 1 / 2147483648;
-  } else {
-    return false;
+    return f.bits === 32
+      ? copyFloats(new Float32Array(view.buffer, at, length), f.channels, count, out)
+      : copyFloats(new Float64Array(view.buffer, at, length), f.channels, count, out);
   }
-  for (let c = 0; c < channels; c++) {
-    const o = out[c];
-    // Multiplying by a power of two is exact: the same value as the division in readSample.
-    if (scale === 1) { for (let i = 0, j = c; i < count; i++, j += channels) o[i] = samples[j]; }
-    else for (let i = 0, j = c; i < count; i++, j += channels) o[i] = samples[j] * scale;
+  // Multiplying by a power of two is exact: the same value as the division in readSample.
+  if (f.bits === 16) {
+    scaleIntegers(new Int16Array(view.buffer, at, length), 1 / 32768, f.channels, count, out);
+  } else if (f.bits === 32) {
+    scaleIntegers(new Int32Array(view.buffer, at, length), 1 / 2147483648, f.channels, count, out);
+  } else {
+    return undefined;
   }
   return true;
+}
+
+/**
+ * Interleaved float samples into one array per channel; whether all were
+ * finite (`v - v` is 0 for a finite v, NaN otherwise: one test per sample,
+ * the samples themselves copied untouched).
+ */
+function copyFloats(
+  samples: Float32Array | Float64Array,
+  channels: number,
+  count: number,
+  out: readonly Float64Array[],
+): boolean {
+  let finite = true;
+  for (let c = 0; c < channels; c++) {
+    const o = out[c];
+    for (let i = 0, j = c; i < count; i++, j += channels) {
+      const v = samples[j];
+      o[i] = v;
+      if (v - v !== 0) finite = false;
+    }
+  }
+  return finite;
+}
+
+/** Interleaved integer codes into one array per channel, each times `scale`. */
+function scaleIntegers(
+  samples: Int16Array | Int32Array,
+  scale: number,
+  channels: number,
+  count: number,
+  out: readonly Float64Array[],
+): void {
+  for (let c = 0; c < channels; c++) {
+    const o = out[c];
+    for (let i = 0, j = c; i < count; i++, j += channels) o[i] = samples[j] * scale;
+  }
 }
 
 /**
@@ -180,8 +228,9 @@ function decodeFrames(
   },
 ): Recording {
   const data = Array.from({ length: f.channels }, () => new Float64Array(frames));
-  decodeWavFrames(view, { start, count: frames, format: f, out: data });
-  if (f.code === FORMAT_FLOAT) refuseNonFiniteSamples(data, frames, 0, file);
+  if (!decodeWavFrames(view, { start, count: frames, format: f, out: data })) {
+    refuseNonFiniteSamples(data, frames, 0, file);
+  }
   return {
     rate: f.rate,
     startTime: 0,

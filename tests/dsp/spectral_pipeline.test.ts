@@ -112,4 +112,54 @@ describe("the spectral core shared among threads", () => {
       expect(Array.from(a)).toEqual(Array.from(one.estimate.auto[c]));
     });
   });
+
+  test("each thread checks its own channels: the one-thread warnings, in channel order", async () => {
+    // A clipped channel with known rails, a DC offset, a dead channel and clean noise: channels
+    // 0 and 2 stay in this thread, 1 and 3 go to the worker, and the read order is shuffled.
+    const noise = gaussianNoise(60, 100_000);
+    const rails = { low: -1, high: 32767 / 32768, step: 1 / 32768 };
+    const clipped = noise.map((v) =>
+      Math.max(rails.low, Math.min(rails.high, Math.round(v * 16384) / 32768))
+    );
+    const stream = recordingSource({
+      rate: 4096,
+      startTime: 0,
+      channels: [
+        { name: "clean", unit: "V", data: gaussianNoise(61, 100_000) },
+        { name: "clipped", unit: "FS", data: clipped, fullScale: rails },
+        { name: "offset", unit: "V", data: noise.map((v) => 10 + v) },
+        { name: "dead", unit: "V", data: new Float64Array(100_000).fill(0.25) },
+      ],
+    });
+    const options = { rate: 4096, block: 1024 };
+    const one = await spectralEstimateOf(stream, [3, 1, 2, 0], options, { threads: 1 });
+    const two = await spectralEstimateOf(stream, [3, 1, 2, 0], options, { threads: 2 });
+    expect(one.warnings.map((w) => w.split(" ")[1])).toEqual([
+      '"dead"',
+      '"clipped"',
+      '"offset"',
+    ]);
+    expect(two.warnings).toEqual(one.warnings);
+    two.estimate.auto.forEach((a, c) => {
+      expect(Array.from(a)).toEqual(Array.from(one.estimate.auto[c]));
+    });
+  });
+
+  test("rails out of order are refused before reading, in either path", async () => {
+    const data = new Float64Array(1000);
+    const stream = recordingSource({
+      rate: 1000,
+      startTime: 0,
+      channels: [0, 1].map((c) => ({
+        name: `a${c}`,
+        unit: "V",
+        data,
+        fullScale: { low: 1, high: -1 },
+      })),
+    });
+    for (const threads of [1, 2]) {
+      await expect(spectralEstimateOf(stream, [0, 1], { rate: 1000, block: 256 }, { threads }))
+        .rejects.toThrow(/converter rails must satisfy low < high/);
+    }
+  });
 });

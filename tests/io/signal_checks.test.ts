@@ -2,12 +2,12 @@ import { describe, expect, test } from "vitest";
 import { mkdtempSync, rmSync, writeFileSync } from "node:fs";
 import { tmpdir } from "node:os";
 import { join } from "node:path";
-import { channelWarnings } from "../../lib/io/signal_checks.ts";
+import { ChannelStatistics, channelWarnings } from "../../lib/io/signal_checks.ts";
 import { openRecordingStream, readChecked } from "../../lib/io/recording_stream.ts";
 import { encodeWav } from "../../lib/io/wav.ts";
 import { averagedSpectrum } from "../../lib/dsp/averaged_spectrum.ts";
 import { frequencyResponse } from "../../lib/frf/frf_analysis.ts";
-import { gaussianNoise } from "../helpers/random.ts";
+import { gaussianNoise, uniformGenerator } from "../helpers/random.ts";
 
 const channel = (data: Float64Array) => ({ name: "acc", unit: "m/s^2", data });
 
@@ -271,4 +271,44 @@ describe("a CSV column's converter range from the set-up", () => {
       rmSync(dir, { recursive: true, force: true });
     }
   });
+});
+
+describe("the statistics' fast paths change nothing", () => {
+  // A chunk of one sample starts from the full per-sample body (the fast path for a new value
+  // needs a sample before it in the chunk); the whole record in one chunk takes the fast paths
+  // wherever they apply. Both must give the same warnings and extent, on signals that exercise
+  // every branch: runs, clipping at rails (known and not), quantised and float noise, zeros.
+  const uniform = uniformGenerator(2026);
+  const kinds = ["noise", "quantised", "clipped", "pulses", "runs", "rails", "zeros"] as const;
+  for (const kind of kinds) {
+    test(kind, () => {
+      for (let trial = 0; trial < 20; trial++) {
+        const n = 200 + Math.floor(uniform() * 3000), q = 1 / 256, f = 0.02 + uniform() * 0.2;
+        const x = new Float64Array(n).map((_, i) => {
+          const v = (0.5 + 2 * uniform()) * Math.sin(f * i) + 0.1 * (uniform() - 0.5);
+          if (kind === "quantised" || kind === "rails") return Math.round(v / q) * q;
+          if (kind === "clipped") return Math.max(-0.9, Math.min(0.9, v));
+          if (kind === "pulses") return uniform() < 0.1 ? 0.5 : 0;
+          if (kind === "runs") return Math.round(4 * uniform()) / 4;
+          if (kind === "zeros") return uniform() < 0.5 ? (uniform() < 0.5 ? 0 : -0) : v;
+          return v;
+        });
+        if (kind === "runs") { for (let i = 1; i < n; i++) if (uniform() < 0.7) x[i] = x[i - 1]; }
+        if (kind === "rails") {
+          for (let i = 0; i < n; i++) x[i] = Math.max(-1, Math.min(1 - q, x[i]));
+        }
+        const converter = kind === "rails"
+          ? { low: -1, high: 1 - q, step: q }
+          : kind === "clipped" && trial % 2 === 0
+          ? { low: -0.9, high: 0.9 }
+          : undefined;
+        const whole = new ChannelStatistics(converter), single = new ChannelStatistics(converter);
+        whole.push(x);
+        for (let i = 0; i < n; i++) single.push(x.subarray(i, i + 1));
+        const c = { name: "c", unit: "V" };
+        expect(whole.warnings(c)).toEqual(single.warnings(c));
+        expect(whole.extent).toEqual(single.extent);
+      }
+    });
+  }
 });

@@ -48,6 +48,39 @@ describe("WAV decoding does not depend on where the bytes sit", () => {
   }
 });
 
+describe("non-finite float samples are refused wherever the bytes sit", () => {
+  // Aligned float frames are checked as they are copied, others after decoding: both name the
+  // first non-finite sample in file order (frame by frame, channel by channel).
+  const cases: [string, [number, number, number][], RegExp][] = [
+    [
+      "a later channel's earlier frame first",
+      [[0, 7, Infinity], [1, 5, NaN]],
+      /ch2, sample 5: NaN/,
+    ],
+    ["the first channel of a frame first", [[1, 5, NaN], [0, 5, -Infinity]], /ch1, sample 5: -Inf/],
+    ["the last sample", [[1, 19, Infinity]], /ch2, sample 19: Infinity is not a finite number/],
+  ];
+  for (const [what, bad, message] of cases) {
+    test(what, () => {
+      const data = [0, 1].map((c) => new Float64Array(20).map((_, i) => 0.01 * (i - c)));
+      for (const [c, i, v] of bad) data[c][i] = v;
+      const rec = {
+        rate: 1000,
+        startTime: 0,
+        channels: data.map((d, c) => ({ name: `ch${c + 1}`, unit: "FS", data: d })),
+      };
+      const file = encodeWav(rec, "float32");
+      for (let offset = 0; offset < 4; offset++) {
+        const holder = new Uint8Array(file.length + 4);
+        holder.set(file, offset);
+        expect(() => parseWav(holder.subarray(offset, offset + file.length), "x.wav")).toThrow(
+          message,
+        );
+      }
+    });
+  }
+});
+
 describe("WAV round trips", () => {
   const encodings: [WavEncoding, number][] = [
     ["pcm16", 2 ** -15],

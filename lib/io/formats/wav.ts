@@ -77,8 +77,9 @@ async function openWavWithContainer(
           for (let first = 0; first < frames; first += CHUNK_ROWS) {
             const count = Math.min(CHUNK_ROWS, frames - first);
             await h.read(bytes, 0, count * f.blockAlign, dataStart + first * f.blockAlign);
-            decodeWavFrames(view, { start: 0, count, format: f, out: samples });
-            if (f.code === FORMAT_FLOAT) refuseNonFiniteSamples(samples, count, first, path);
+            if (!decodeWavFrames(view, { start: 0, count, format: f, out: samples })) {
+              refuseNonFiniteSamples(samples, count, first, path);
+            }
             onChunk(selected.map((s, j) => {
               const d = samples[s].subarray(0, count);
               if (factors[j] !== 1) { for (let i = 0; i < d.length; i++) d[i] *= factors[j]; }
