@@ -28,6 +28,7 @@ import { comfortBench } from "./comfort.ts";
 import { loudnessBench } from "./loudness.ts";
 import { benchHdf5 } from "./hdf5.ts";
 import { benchMdf4 } from "./mdf4.ts";
+import { formatsAgainstCsv } from "./against_csv.ts";
 import { cpuFloor } from "./startup.ts";
 
 const MAIN = fileURLToPath(new URL("../../cli/main.ts", import.meta.url));
@@ -248,7 +249,9 @@ console.log(
   }
   await printStages(rigs[1], ourWav);
 }
-await benchMdf4(quiver, RUNS); // MDF 4 → PSD against CSV for the same samples, and its memory
+await benchMdf4(quiver); // MDF 4 → PSD's memory against record length
+// MDF 4 → PSD and HDF5 → PSD against CSV → PSD for the same samples, at 4 × 2^21 and 4 × 2^24.
+await formatsAgainstCsv();
 // `--headline`: the headline rows only (start-up floor, CSV and WAV → PSD with their stages, the
 // core, ingest), without the memory table and the campaign.
 await loudnessBench(quiver, Deno.args.includes("--headline"));
@@ -329,6 +332,6 @@ async function memoryAndCampaign(): Promise<void> {
 }
 
 if (!Deno.args.includes("--headline")) await (await import("./formats_bench.ts")).formatRows();
-await benchHdf5(); // HDF5: memory of a 1 GiB file, and against CSV for the same samples
+benchHdf5(); // HDF5: memory of a 1 GiB file, and the start-up loading h5wasm adds
 
 console.log(`\nload average (1, 5, 15 min) at the end: ${load()}`);

@@ -2,19 +2,17 @@
  * HDF5 bench rows of `deno task bench` (also runnable alone: `deno run -A tests/bench/hdf5.ts`):
  * 1. memory: a large HDF5 file (4 × 2^26 float32, 1 GiB, written by Debian's /usr/bin/python3
  *    with h5py to /tmp and deleted after) read → PSD, peak RSS against a small one of 2^16;
- * 2. speed: HDF5 → PSD against CSV → PSD for the same samples (4 × 2^21), alternating pairs,
- *    medians and the median of the pairs' own ratios;
- * 3. where the difference goes: the start-up of each path (a spectrum of 2^14 samples of each,
- *    alternating: HDF5's includes loading h5wasm), and opening and reading alone in this process
- *    (best of 3, the library already loaded).
- * Nothing asserts; skipped when /usr/bin/python3 has no h5py.
+ * 2. the start-up of each path: a spectrum of 2^14 samples from HDF5 and from CSV, alternating
+ *    pairs, as wall and CPU time (HDF5's includes loading h5wasm, which every HDF5 file of a
+ *    process pays once).
+ * HDF5 → PSD against CSV → PSD for the same samples is in against_csv.ts. Nothing asserts;
+ * skipped when /usr/bin/python3 has no h5py.
  */
 import { spawnSync } from "node:child_process";
 import { rmSync } from "node:fs";
 import { fileURLToPath } from "node:url";
 import process from "node:process";
-import { openRecordingStream } from "../../lib/io/recording_stream.ts";
-import { timed } from "./timed.ts";
+import { timed, type TimedRun } from "./timed.ts";
 
 const MAIN = fileURLToPath(new URL("../../cli/main.ts", import.meta.url));
 const PY = "/usr/bin/python3";
@@ -41,25 +39,13 @@ if ${csv === undefined ? "False" : "True"}:
   if (r.status !== 0) throw new Error(`h5py could not write ${path}: ${r.stderr}`);
 }
 
-const PAIRS = 5; // alternating HDF5/CSV pairs of each timed comparison
+const PAIRS = 5; // alternating HDF5/CSV pairs of the start-up comparison
 
 /** The median of a list. */
 const med = (v: number[]) => [...v].sort((x, y) => x - y)[Math.floor(v.length / 2)];
 
-/** Opening and reading every channel in this process, best of 3 (s). */
-async function ingest(path: string): Promise<number> {
-  let best = Infinity;
-  for (let i = 0; i < 3; i++) {
-    const t0 = performance.now();
-    const stream = await openRecordingStream(path);
-    await stream.read(stream.channels.map((_, k) => k), () => {});
-    best = Math.min(best, (performance.now() - t0) / 1000);
-  }
-  return best;
-}
-
 /** Runs the HDF5 bench rows, printing them. */
-export async function benchHdf5(): Promise<void> {
+export function benchHdf5(): void {
   if (spawnSync(PY, ["-c", "import h5py"]).status !== 0) {
     console.log("\nHDF5: skipped (/usr/bin/python3 has no h5py: apt-get install python3-h5py)");
     return;
@@ -68,7 +54,6 @@ export async function benchHdf5(): Promise<void> {
   const spectrum = (input: string, out: string) =>
     timed(deno, ["run", "-A", MAIN, "spectrum", input, "--block", "8192", "--out", out]);
   const small = "/tmp/quiver-bench-small.h5", large = "/tmp/quiver-bench-large.h5";
-  const mid = "/tmp/quiver-bench-mid.h5", midCsv = "/tmp/quiver-bench-mid.csv";
   const tinyH5 = "/tmp/quiver-bench-tiny.h5", tinyCsv = "/tmp/quiver-bench-tiny.csv";
   try {
     writeHdf5(small, 1 << 16);
@@ -83,41 +68,28 @@ export async function benchHdf5(): Promise<void> {
       } MB (ratio ${(b.rssMb / a.rssMb).toFixed(2)}; target: about 1)`,
     );
     rmSync(large, { force: true });
-    writeHdf5(mid, 1 << 21, midCsv);
     writeHdf5(tinyH5, 1 << 14, tinyCsv);
-    const pairs = (h5: string, csv: string) => {
-      const t = { h5: [] as number[], csv: [] as number[], ratio: [] as number[] };
-      for (let i = 0; i < PAIRS; i++) {
-        const a = spectrum(h5, "/tmp/quiver-bench-mid-psd.csv").seconds;
-        const b = spectrum(csv, "/tmp/quiver-bench-mid-psd.csv").seconds;
-        t.h5.push(a), t.csv.push(b), t.ratio.push(b / a);
-      }
-      return t;
-    };
-    const speed = pairs(mid, midCsv);
+    const h5: TimedRun[] = [], csv: TimedRun[] = [];
+    for (let i = 0; i < PAIRS; i++) {
+      h5.push(spectrum(tinyH5, "/tmp/quiver-bench-tiny-psd.csv"));
+      csv.push(spectrum(tinyCsv, "/tmp/quiver-bench-tiny-psd.csv"));
+    }
+    const wall = (v: TimedRun[]) => med(v.map((r) => r.seconds)).toFixed(2);
+    const cpu = (v: TimedRun[]) => med(v.map((r) => r.cpuSeconds)).toFixed(2);
     console.log(
-      `HDF5 → PSD against CSV → PSD, same 4 × 2^21 samples (${PAIRS} alternating pairs): HDF5 ${
-        med(speed.h5).toFixed(2)
-      } s, CSV ${med(speed.csv).toFixed(2)} s; CSV/HDF5 ${
-        (med(speed.csv) / med(speed.h5)).toFixed(2)
-      } (pairs ${speed.ratio.map((r) => r.toFixed(2)).join(", ")}; goal: several times)`,
-    );
-    const floor = pairs(tinyH5, tinyCsv);
-    const [ih, ic] = [await ingest(mid), await ingest(midCsv)];
-    console.log(
-      `  start-up, spectrum of 2^14 samples: HDF5 ${med(floor.h5).toFixed(2)} s, CSV ${
-        med(floor.csv).toFixed(2)
-      } s (HDF5's includes loading h5wasm); opening and reading alone, in this process (best of 3): HDF5 ${
-        ih.toFixed(2)
-      } s, CSV ${ic.toFixed(2)} s; ratio ${(ic / ih).toFixed(1)}`,
+      `HDF5 start-up, spectrum of 4 × 2^14 samples (${PAIRS} alternating pairs, medians): HDF5 ${
+        wall(h5)
+      } s (CPU ${cpu(h5)} s), CSV ${wall(csv)} s (CPU ${
+        cpu(csv)
+      } s); the difference is mostly loading h5wasm`,
     );
   } finally {
-    for (const f of [small, large, mid, midCsv, tinyH5, tinyCsv]) rmSync(f, { force: true });
-    for (const f of ["small", "large", "mid"]) {
+    for (const f of [small, large, tinyH5, tinyCsv]) rmSync(f, { force: true });
+    for (const f of ["small", "large", "tiny"]) {
       rmSync(`/tmp/quiver-bench-${f}-psd.csv`, { force: true });
       rmSync(`/tmp/quiver-bench-${f}-psd.csv.meta.json`, { force: true });
     }
   }
 }
 
-if (import.meta.main) await benchHdf5();
+if (import.meta.main) benchHdf5();
