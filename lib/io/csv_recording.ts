@@ -249,6 +249,19 @@ export function findTimeColumn(
 }
 
 /**
+ * 0.999 × 10^m at index m + POWER_OFFSET, m from −330 to 330. A time of at
+ * most 0.999 × 10^m, with m = the most significant digits seen less this
+ * row's decimals, has log10 below m − 0.0004, which no rounding of
+ * Math.log10 carries to m: the row's significant digits are at most those
+ * seen, and the logarithm (a tenth of the CSV reader's time) is skipped.
+ */
+const POWER_OFFSET = 330;
+const BELOW_POWER = Float64Array.from(
+  { length: 2 * POWER_OFFSET + 1 },
+  (_, i) => 0.999 * 10 ** (i - POWER_OFFSET),
+);
+
+/**
  * Checks the time column row by row: increasing, and every step within the
  * tolerance of the median of the first {@linkcode REFERENCE_STEPS} steps.
  */
@@ -275,10 +288,14 @@ export class TimeStepCheck {
   /** The next row's time, line and decimals written. @throws {QuiverError} at a bad step. */
   push(time: number, line: number, decimals: number): void {
     if (decimals > this.#decimals) this.#decimals = decimals;
-    // Digits written: those before the point (from the magnitude) plus the decimals.
+    // Digits written: those before the point (from the magnitude) plus the decimals. The
+    // logarithm only when they could exceed the most seen (see BELOW_POWER).
     if (time !== 0 && Number.isFinite(decimals)) {
-      const significant = Math.floor(Math.log10(Math.abs(time))) + 1 + decimals;
-      if (significant > this.#significant) this.#significant = significant;
+      const k = this.#significant - decimals + POWER_OFFSET;
+      if (!(k >= 0 && k < BELOW_POWER.length && Math.abs(time) <= BELOW_POWER[k])) {
+        const significant = Math.floor(Math.log10(Math.abs(time))) + 1 + decimals;
+        if (significant > this.#significant) this.#significant = significant;
+      }
     }
     const previous = this.#previous;
     this.#previous = time;
