@@ -410,7 +410,7 @@ export async function spectralEstimateOf(
     { samples: stream.length, ...sinkOptions },
     checks,
   );
-  let warnings: string[] | undefined;
+  let warnings: string[] = [];
   try {
     // A shared sink checks each channel in the thread that transforms it; otherwise here.
     if (sink instanceof SharedSink) await stream.read(indices, (chunk) => sink.push(chunk));
@@ -420,5 +420,5 @@ export async function spectralEstimateOf(
     throw error;
   }
   const estimate = await sink.finish();
-  return { estimate, warnings: warnings ?? (sink as SharedSink).warnings() };
+  return { estimate, warnings: sink instanceof SharedSink ? sink.warnings() : warnings };
 }

@@ -23,6 +23,12 @@ export interface RawStorage {
 const SIGNATURE = [0x89, 0x48, 0x44, 0x46, 0x0d, 0x0a, 0x1a, 0x0a];
 const UNDEFINED_ADDRESS = 2 ** 53; // all-ones addresses and anything past 2^53 read as "none"
 
+/** Whether `b` starts with the four ASCII letters of `tag` (an object header's "OHDR", "OCHK"). */
+function startsWith(b: Uint8Array, tag: string): boolean {
+  for (let i = 0; i < 4; i++) if (b[i] !== tag.charCodeAt(i)) return false;
+  return true;
+}
+
 function bytesAt(fd: number, at: number, length: number): Uint8Array | null {
   const out = new Uint8Array(length);
   return readSync(fd, out, 0, length, at) === length ? out : null;
@@ -67,7 +73,7 @@ function messages(
   if (prefix[0] === 1) {
     // Version 1: 16 bytes of prefix (with padding), then the first block of messages.
     blocks.push({ at: base + header + 16, length: uint(prefix, 8, 4) });
-  } else if (String.fromCharCode(...prefix.subarray(0, 4)) === "OHDR" && prefix[4] === 2) {
+  } else if (startsWith(prefix, "OHDR") && prefix[4] === 2) {
     v2 = true;
     const flags = prefix[5];
     creationOrder = (flags & 0x04) !== 0;
@@ -88,7 +94,7 @@ function messages(
     if (block === null) return null;
     let p = 0;
     if (v2 && k > 0) {
-      if (String.fromCharCode(...block.subarray(0, 4)) !== "OCHK") return null;
+      if (!startsWith(block, "OCHK")) return null;
       p = 4;
     }
     // A version 2 continuation block's length counts its signature and checksum; the first
