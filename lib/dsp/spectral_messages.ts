@@ -9,6 +9,7 @@ import type { SpectralEstimate, SpectralOptions } from "./spectral_core.ts";
 import type { RingBuffers } from "../shared_ring.ts";
 import type { PostedError } from "../workers.ts";
 import type { ConverterScale } from "../io/recording.ts";
+import type { StreamRecipe } from "../io/recording_stream.ts";
 
 /** A channel whose signal checks (lib/io/signal_checks.ts) a worker makes on its share. */
 export interface CheckedChannel {
@@ -20,12 +21,18 @@ export interface CheckedChannel {
 /** The ring flag that tells the worker the record has ended. */
 export const END_OF_RECORD = 1;
 
-/** The message that starts a worker: a ring slot holds `slotRows` rows of each channel in turn. */
+/**
+ * The message that starts a worker. Its samples come either through `ring`
+ * (a slot holds `slotRows` rows of each channel in turn) or, with `reopen`,
+ * from the worker's own read of the file: the stream opened again from its
+ * recipe and the stream's channels at `channels` read.
+ */
 export interface SpectralWorkerStart {
   channelCount: number;
   options: Omit<SpectralOptions, "frames">;
-  ring: RingBuffers;
+  ring?: RingBuffers;
   slotRows: number;
+  reopen?: { recipe: StreamRecipe; channels: number[] };
   /** The group's channels, when the worker makes their signal checks too. */
   checks?: CheckedChannel[];
 }

@@ -7,10 +7,13 @@
  * channel's samples alone (a cross spectrum on its pair's), so the numbers
  * are identical to the last bit wherever they were made.
  *
- * The reader calls `push` synchronously (a CSV chunk is handed on from inside
- * the parser), so a worker's share goes through a ring of slots in shared
- * memory (16 MiB): `push` copies the worker's channels into a free slot and
- * waits (Atomics.wait) only when every slot is still full, which bounds the
+ * A stream opened from a binary file (a recipe to open it again:
+ * {@linkcode streamRecipe}) is read by every thread for its own channels
+ * only, so that decoding is shared too. Otherwise the reader calls `push`
+ * synchronously (a CSV chunk is handed on from inside the parser), so a
+ * worker's share goes through a ring of slots in shared memory (16 MiB):
+ * `push` copies the worker's channels into a free slot and waits
+ * (Atomics.wait) only when every slot is still full, which bounds the
  * memory whatever the speed of either side, then transforms this thread's
  * channels while the worker transforms its own. Read through
  * {@linkcode spectralEstimateOf}, each thread also makes the signal checks
@@ -33,7 +36,12 @@ import {
   type SpectralWorkerReply,
   type SpectralWorkerStart,
 } from "./spectral_messages.ts";
-import { readChecked, type RecordingStream } from "../io/recording_stream.ts";
+import {
+  readChecked,
+  type RecordingStream,
+  type StreamRecipe,
+  streamRecipe,
+} from "../io/recording_stream.ts";
 import { ChannelStatistics } from "../io/signal_checks.ts";
 
 /** Where the spectral core runs: fed chunk by chunk, then asked for the estimate. */
@@ -175,6 +183,7 @@ function chosenSink(
   options: SpectralOptions,
   sinkOptions: SpectralSinkOptions,
   checks?: readonly CheckedChannel[],
+  reading?: OwnReading,
 ): SpectralSink | SharedSink {
   validateSpectralOptions(channelCount, options);
   const threads = sinkOptions.threads ??
@@ -191,7 +200,7 @@ function chosenSink(
   if (options.frames !== undefined) {
     throw new RangeError("frames cannot be handed out of a worker; use one thread");
   }
-  return new SharedSink(channelCount, options, groups, checks);
+  return new SharedSink(channelCount, options, groups, checks, reading);
 }
 
 /** The options of one group's accumulator: its pairs, numbered within the group. */
@@ -207,10 +216,19 @@ function groupOptions(options: SpectralOptions, group: readonly number[]): Spect
 const pick = (chunk: readonly Float64Array[], group: readonly number[]) =>
   group.map((c) => chunk[c]);
 
-/** One group's accumulator in a worker, fed through a ring. */
+/** How the workers read for themselves: the stream's recipe and the stream's channel of each. */
+interface OwnReading {
+  readonly recipe: StreamRecipe;
+  readonly indices: readonly number[];
+}
+
+/**
+ * One group's accumulator in a worker, fed through a ring, or reading its
+ * channels itself when given `reading`.
+ */
 class WorkerPart {
   readonly group: readonly number[];
-  readonly #ring: SharedRing;
+  readonly #ring: SharedRing | undefined;
   readonly #reply: Promise<SpectralWorkerReply>;
   readonly #worker: Worker;
 
@@ -218,9 +236,12 @@ class WorkerPart {
     group: readonly number[],
     options: SpectralOptions,
     checks: readonly CheckedChannel[] | undefined,
+    reading?: OwnReading,
   ) {
     this.group = group;
-    this.#ring = SharedRing.create(slotsFor(group.length), group.length * SLOT_ROWS);
+    this.#ring = reading === undefined
+      ? SharedRing.create(slotsFor(group.length), group.length * SLOT_ROWS)
+      : undefined;
     this.#worker = new Worker(new URL("./spectral_worker.ts", import.meta.url).href, {
       type: "module",
     });
@@ -234,18 +255,21 @@ class WorkerPart {
     const start: SpectralWorkerStart = {
       channelCount: group.length,
       options: groupOptions(options, group),
-      ring: this.#ring.buffers,
       slotRows: SLOT_ROWS,
+      ...(this.#ring === undefined ? {} : { ring: this.#ring.buffers }),
+      ...(reading === undefined ? {} : {
+        reopen: { recipe: reading.recipe, channels: group.map((c) => reading.indices[c]) },
+      }),
       ...(checks === undefined ? {} : { checks: group.map((c) => checks[c]) }),
     };
     this.#worker.postMessage(start);
   }
 
   /** Waits for a free slot. */
-  #freeSlot(): Float64Array {
+  #freeSlot(ring: SharedRing): Float64Array {
     // A slot takes milliseconds; minutes without one mean the worker never started
     // (its events cannot reach this thread while it waits here).
-    const slot = this.#ring.claim(STALL_MS);
+    const slot = ring.claim(STALL_MS);
     if (slot !== undefined) return slot;
     this.#worker.terminate();
     throw new Error(`the spectral worker took no chunk in ${STALL_MS / 1000} s`);
@@ -253,14 +277,15 @@ class WorkerPart {
 
   /** Copies the group's channels of `chunk` into the ring, a slot at a time. */
   push(chunk: readonly Float64Array[]): void {
+    const ring = this.#ring!;
     const length = chunk[0].length;
     for (let from = 0; from < length; from += SLOT_ROWS) {
       const rows = Math.min(SLOT_ROWS, length - from);
-      const slot = this.#freeSlot();
+      const slot = this.#freeSlot(ring);
       this.group.forEach((c, i) => {
         slot.set(rows === length ? chunk[c] : chunk[c].subarray(from, from + rows), i * SLOT_ROWS);
       });
-      this.#ring.publish(rows);
+      ring.publish(rows);
     }
   }
 
@@ -270,8 +295,10 @@ class WorkerPart {
 
   /** The group's estimate and, when checks were asked for, each channel's warnings. */
   async finish(): Promise<{ estimate: SpectralEstimate; warnings?: string[][] }> {
-    this.#freeSlot();
-    this.#ring.publish(0, END_OF_RECORD);
+    if (this.#ring !== undefined) {
+      this.#freeSlot(this.#ring);
+      this.#ring.publish(0, END_OF_RECORD);
+    }
     const reply = await this.#reply;
     this.#worker.terminate();
     if ("estimate" in reply) return reply;
@@ -291,16 +318,27 @@ class SharedSink implements SpectralSink {
   readonly #statistics: ChannelStatistics[];
   readonly #warnings: string[][];
 
+  /**
+   * Whether the workers read their channels themselves: this thread is then
+   * fed its own group's channels only ({@linkcode SharedSink.pushOwn}).
+   */
+  readonly readsOwn: boolean;
+  /** This thread's channels, as positions among the sink's channels. */
+  readonly ownGroup: readonly number[];
+
   constructor(
     channelCount: number,
     options: SpectralOptions,
     groups: readonly number[][],
     checks?: readonly CheckedChannel[],
+    reading?: OwnReading,
   ) {
     this.#channelCount = channelCount;
     this.#pairs = options.pairs ?? [];
     const [here, ...others] = groups;
     this.#group = here;
+    this.ownGroup = here;
+    this.readsOwn = reading !== undefined;
     this.#here = new SpectralAccumulator(here.length, groupOptions(options, here));
     // Every channel's rails are checked here, before any worker starts (a RangeError as
     // readChecked gives); this thread keeps its own group's statistics.
@@ -308,7 +346,7 @@ class SharedSink implements SpectralSink {
     this.#checks = checks;
     this.#statistics = checks === undefined ? [] : here.map((c) => statistics[c]);
     this.#warnings = [];
-    this.#workers = others.map((group) => new WorkerPart(group, options, checks));
+    this.#workers = others.map((group) => new WorkerPart(group, options, checks, reading));
   }
 
   /**
@@ -329,7 +367,11 @@ class SharedSink implements SpectralSink {
     }
     // The workers' shares first, so that they transform while this thread does its own.
     for (const worker of this.#workers) worker.push(chunk);
-    const own = pick(chunk, this.#group);
+    this.pushOwn(pick(chunk, this.#group));
+  }
+
+  /** Feeds this thread's group alone (its channels in the group's order). */
+  pushOwn(own: readonly Float64Array[]): void {
     for (let i = 0; i < this.#statistics.length; i++) this.#statistics[i].push(own[i]);
     this.#here.push(own);
   }
@@ -380,7 +422,9 @@ class SharedSink implements SpectralSink {
  * (its transforms shared among threads as {@linkcode spectralSink} chooses
  * for the stream's length) and returns the estimate with the signal
  * warnings of the read. A failed read stops the workers before the error
- * goes on.
+ * goes on. When the workers read their own channels (a binary file) and
+ * a fault lies in the channels of more than one thread, this thread's is
+ * the one reported, else the first worker's that failed.
  *
  * @throws {QuiverError} as the reader and the core do.
  *
@@ -404,17 +448,23 @@ export async function spectralEstimateOf(
     const { name, unit, fullScale } = stream.channels[i];
     return fullScale === undefined ? { name, unit } : { name, unit, fullScale };
   });
+  const recipe = streamRecipe(stream);
   const sink = chosenSink(
     indices.length,
     options,
     { samples: stream.length, ...sinkOptions },
     checks,
+    recipe === undefined ? undefined : { recipe, indices },
   );
   let warnings: string[] = [];
   try {
     // A shared sink checks each channel in the thread that transforms it; otherwise here.
-    if (sink instanceof SharedSink) await stream.read(indices, (chunk) => sink.push(chunk));
-    else warnings = await readChecked(stream, indices, (chunk) => sink.push(chunk));
+    if (sink instanceof SharedSink && sink.readsOwn) {
+      const own = sink.ownGroup.map((c) => indices[c]);
+      await stream.read(own, (chunk) => sink.pushOwn(chunk));
+    } else if (sink instanceof SharedSink) {
+      await stream.read(indices, (chunk) => sink.push(chunk));
+    } else warnings = await readChecked(stream, indices, (chunk) => sink.push(chunk));
   } catch (error) {
     sink.cancel();
     throw error;

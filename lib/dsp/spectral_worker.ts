@@ -1,8 +1,10 @@
 /**
- * The worker side of {@linkcode spectralSink}: takes its group's chunks from
- * the shared ring in order, feeds them to one {@linkcode SpectralAccumulator}
- * (and, when asked, to each channel's signal checks first), frees each slot,
- * and at the end posts the estimate and the warnings (or the error) once.
+ * The worker side of {@linkcode spectralSink}: feeds its group's chunks to
+ * one {@linkcode SpectralAccumulator} (and, when asked, to each channel's
+ * signal checks first) and at the end posts the estimate and the warnings
+ * (or the error) once. The chunks come from the shared ring in order, each
+ * slot freed after use, or from the worker's own read of the file when the
+ * start message holds a recipe to open it again.
  *
  * @module
  */
@@ -22,40 +24,83 @@ interface WorkerScope {
 }
 const scope = globalThis as unknown as WorkerScope;
 
-scope.onmessage = (event) => {
-  const { channelCount, options, ring: buffers, slotRows, checks } = event.data;
-  const ring = SharedRing.attach(buffers);
-  let accumulator: SpectralAccumulator | undefined;
-  let statistics: ChannelStatistics[] = [];
-  let failure: unknown;
-  try {
-    accumulator = new SpectralAccumulator(channelCount, options);
-    statistics = (checks ?? []).map((c) => new ChannelStatistics(c.fullScale));
-  } catch (error) {
-    failure = error;
+/** The group's accumulator and signal checks, fed chunk by chunk. */
+class GroupWork {
+  readonly accumulator: SpectralAccumulator;
+  readonly statistics: ChannelStatistics[];
+
+  constructor(start: SpectralWorkerStart) {
+    this.accumulator = new SpectralAccumulator(start.channelCount, start.options);
+    this.statistics = (start.checks ?? []).map((c) => new ChannelStatistics(c.fullScale));
   }
+
+  push(chunk: readonly Float64Array[]): void {
+    for (let c = 0; c < this.statistics.length; c++) this.statistics[c].push(chunk[c]);
+    this.accumulator.push(chunk);
+  }
+}
+
+/** Takes the ring's slots until the end of the record, pushing each while nothing failed. */
+function drainRing(start: SpectralWorkerStart, work: GroupWork | undefined): unknown {
+  const ring = SharedRing.attach(start.ring!);
+  const { channelCount, slotRows } = start;
   const views = new Array<Float64Array>(channelCount);
+  let failure: unknown;
   for (;;) {
     const { data, count, flag } = ring.take();
     if (flag === END_OF_RECORD) break;
-    if (failure === undefined) {
+    if (failure === undefined && work !== undefined) {
       for (let c = 0; c < channelCount; c++) {
         views[c] = data.subarray(c * slotRows, c * slotRows + count);
       }
       try {
-        for (let c = 0; c < statistics.length; c++) statistics[c].push(views[c]);
-        accumulator!.push(views);
+        work.push(views);
       } catch (error) {
         failure = error; // keep freeing slots, so that the reader never waits for ever
       }
     }
     ring.release();
   }
+  return failure;
+}
+
+/** Reads the group's channels from the file opened again (loaded only on this path). */
+async function readOwn(start: SpectralWorkerStart, work: GroupWork): Promise<void> {
+  const { reopenRecordingStream } = await import("../io/recording_stream.ts");
+  const { recipe, channels } = start.reopen!;
+  const stream = await reopenRecordingStream(recipe);
+  await stream.read(channels, (chunk) => work.push(chunk));
+}
+
+scope.onmessage = async (event) => {
+  const start = event.data;
+  let work: GroupWork | undefined;
+  let failure: unknown;
+  try {
+    work = new GroupWork(start);
+  } catch (error) {
+    failure = error;
+  }
+  if (start.reopen === undefined) {
+    failure = drainRing(start, work) ?? failure;
+  } else if (work !== undefined) {
+    try {
+      await readOwn(start, work);
+    } catch (error) {
+      failure = error;
+    }
+  }
   try {
     if (failure !== undefined) throw failure;
-    const estimate = accumulator!.finish();
+    const estimate = work!.accumulator.finish();
+    const { checks } = start;
     if (checks === undefined) scope.postMessage({ estimate });
-    else scope.postMessage({ estimate, warnings: checks.map((c, i) => statistics[i].warnings(c)) });
+    else {
+      scope.postMessage({
+        estimate,
+        warnings: checks.map((c, i) => work!.statistics[i].warnings(c)),
+      });
+    }
   } catch (error) {
     scope.postMessage({ error: postedError(error) });
   }

@@ -8,6 +8,8 @@
  *
  * @module
  */
+import { stat } from "node:fs/promises";
+import { QuiverError } from "../errors.ts";
 import { sniffRecording } from "./formats/mod.ts";
 import type { ReadRecordingOptions } from "./formats/format.ts";
 import { type RecordingStream, sliceStream } from "./recording_source.ts";
@@ -54,5 +56,64 @@ export async function openRecordingStream(
   const format = await sniffRecording(path);
   const { start, end, ...formatOptions } = options;
   const stream = await format.open(path, formatOptions);
-  return start === undefined && end === undefined ? stream : sliceStream(stream, start, end, path);
+  const sliced = start === undefined && end === undefined
+    ? stream
+    : sliceStream(stream, start, end, path);
+  if (format.kind === "binary") {
+    const { size, mtimeMs } = await stat(path);
+    recipes.set(sliced, { path, options: { ...options }, size, mtimeMs });
+  }
+  return sliced;
+}
+
+/**
+ * How another thread opens a stream again: the file, the options it was
+ * opened with, and the file's size and time of change then (a file changed
+ * in between is refused, not read as another record).
+ */
+export interface StreamRecipe {
+  readonly path: string;
+  readonly options: ReadRecordingOptions;
+  readonly size: number;
+  readonly mtimeMs: number;
+}
+
+/**
+ * The recipes of streams that {@linkcode openRecordingStream} opened from a
+ * binary file, by the stream object itself: a stream made from one (a
+ * wrapper that changes its samples) is another object and has none. Text
+ * files have none: their parse is most of the work and would be done twice.
+ */
+const recipes = new WeakMap<RecordingStream, StreamRecipe>();
+
+/**
+ * How to open `stream` again in another thread, when it was opened from a
+ * binary file by {@linkcode openRecordingStream}; otherwise undefined.
+ * Reading a subset of its channels from the reopened stream gives the same
+ * samples, chunk for chunk, as from `stream`.
+ *
+ * @example
+ * ```ts
+ * import { recordingSource, streamRecipe } from "./recording_stream.ts";
+ * const s = recordingSource({ rate: 10, startTime: 0, channels: [{ name: "a", unit: "V", data: new Float64Array(4) }] });
+ * if (streamRecipe(s) !== undefined) throw new Error();
+ * ```
+ */
+export function streamRecipe(stream: RecordingStream): StreamRecipe | undefined {
+  return recipes.get(stream);
+}
+
+/**
+ * Opens the stream a {@linkcode StreamRecipe} describes.
+ *
+ * @throws {QuiverError} when the file's size or time of change differ from
+ * the recipe's, and as {@linkcode openRecordingStream} does.
+ */
+export async function reopenRecordingStream(recipe: StreamRecipe): Promise<RecordingStream> {
+  const stream = await openRecordingStream(recipe.path, recipe.options);
+  const { size, mtimeMs } = await stat(recipe.path);
+  if (size !== recipe.size || mtimeMs !== recipe.mtimeMs) {
+    throw new QuiverError("the file changed while it was read", { file: recipe.path });
+  }
+  return stream;
 }

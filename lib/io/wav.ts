@@ -63,8 +63,9 @@ export function parseWav(bytes: Uint8Array, file?: string): Recording {
 
 /**
  * Decodes `frames` frames starting at byte `start` of `view` into `out`
- * (one array per channel, each at least `frames` long), as fractions of full
- * scale. Allocates no sample array: the chunked reader reuses its arrays.
+ * (one array per channel, each at least `frames` long, or undefined for a
+ * channel not to decode), as fractions of full scale. Allocates no sample
+ * array: the chunked reader reuses its arrays.
  *
  * @returns true when every decoded sample is known to be finite (integer
  * PCM always is; aligned float samples are checked as they are copied);
@@ -92,8 +93,8 @@ export function decodeWavFrames(
     count: number;
     /** The file's format. */
     format: WavFormat;
-    /** One array per channel, each at least `count` long. */
-    out: readonly Float64Array[];
+    /** One array per channel, each at least `count` long; undefined: not decoded. */
+    out: readonly (Float64Array | undefined)[];
   },
 ): boolean {
   const { start, count, format: f, out } = frames;
@@ -102,8 +103,10 @@ export function decodeWavFrames(
   if (aligned !== undefined) return aligned;
   for (let i = 0; i < count; i++) {
     for (let c = 0; c < f.channels; c++) {
-      const at = start + i * f.blockAlign + c * bytesPerSample;
-      out[c][i] = readSample(view, at, f.code, f.bits);
+      const o = out[c];
+      if (o !== undefined) {
+        o[i] = readSample(view, start + i * f.blockAlign + c * bytesPerSample, f.code, f.bits);
+      }
     }
   }
   return f.code !== FORMAT_FLOAT;
@@ -124,7 +127,7 @@ function decodeAligned(
   start: number,
   count: number,
   f: WavFormat,
-  out: readonly Float64Array[],
+  out: readonly (Float64Array | undefined)[],
 ): boolean | undefined {
   const at = view.byteOffset + start;
   const bytes = f.bits / 8;
@@ -155,11 +158,12 @@ function copyFloats(
   samples: Float32Array | Float64Array,
   channels: number,
   count: number,
-  out: readonly Float64Array[],
+  out: readonly (Float64Array | undefined)[],
 ): boolean {
   let finite = true;
   for (let c = 0; c < channels; c++) {
     const o = out[c];
+    if (o === undefined) continue;
     for (let i = 0, j = c; i < count; i++, j += channels) {
       const v = samples[j];
       o[i] = v;
@@ -175,17 +179,19 @@ function scaleIntegers(
   scale: number,
   channels: number,
   count: number,
-  out: readonly Float64Array[],
+  out: readonly (Float64Array | undefined)[],
 ): void {
   for (let c = 0; c < channels; c++) {
     const o = out[c];
+    if (o === undefined) continue;
     for (let i = 0, j = c; i < count; i++, j += channels) o[i] = samples[j] * scale;
   }
 }
 
 /**
  * Refuses a NaN or infinite sample among the first `frames` of `decoded`
- * (only float WAV files can hold them), naming the channel and the sample
+ * (only float WAV files can hold them; a channel left undefined was not
+ * decoded and is passed over), naming the channel and the sample
  * (0-based, counted from `firstFrame`), as the CSV reader refuses such cells.
  *
  * @throws {QuiverError} at the first such sample in file order.
@@ -200,14 +206,14 @@ function scaleIntegers(
  * ```
  */
 export function refuseNonFiniteSamples(
-  decoded: readonly Float64Array[],
+  decoded: readonly (Float64Array | undefined)[],
   frames: number,
   firstFrame = 0,
   file?: string,
 ): void {
   for (let i = 0; i < frames; i++) {
     for (let c = 0; c < decoded.length; c++) {
-      const v = decoded[c][i];
+      const v = decoded[c]?.[i] ?? 0;
       if (v - v !== 0) {
         throw new QuiverError(
           `channel ch${c + 1}, sample ${firstFrame + i}: ${v} is not a finite number`,

@@ -6,8 +6,15 @@ import {
   spectralSink,
 } from "../../lib/dsp/spectral_pipeline.ts";
 import { QuiverError } from "../../lib/errors.ts";
-import { recordingSource } from "../../lib/io/recording_stream.ts";
+import {
+  openRecordingStream,
+  recordingSource,
+  reopenRecordingStream,
+  streamRecipe,
+} from "../../lib/io/recording_stream.ts";
+import { encodeWav } from "../../lib/io/wav.ts";
 import { gaussianNoise } from "../helpers/random.ts";
+import { mkdtemp, utimes, writeFile } from "node:fs/promises";
 
 // A worker runs the same accumulator code on the same samples of its channels in the same
 // order, so the estimate must be identical to the last bit, not merely close
@@ -161,5 +168,82 @@ describe("the spectral core shared among threads", () => {
       await expect(spectralEstimateOf(stream, [0, 1], { rate: 1000, block: 256 }, { threads }))
         .rejects.toThrow(/converter rails must satisfy low < high/);
     }
+  });
+});
+
+// A stream opened from a binary file is opened again by the worker, which reads and decodes
+// its own channels; each channel's samples are the same, so its spectrum is bit-identical.
+describe("workers that read their own channels from the file", () => {
+  /** A float32 WAV of four noise channels, one with a DC offset; its path. */
+  async function noiseWav(length: number, poison?: { channel: number; sample: number }) {
+    const dir = await mkdtemp("/tmp/quiver-pipeline-");
+    const channels = [70, 71, 72, 73].map((seed, c) => {
+      const data = gaussianNoise(seed, length).map((v) => 0.1 * v + (c === 2 ? 0.5 : 0));
+      if (poison?.channel === c) data[poison.sample] = NaN;
+      return { name: `ch${c + 1}`, unit: "FS", data };
+    });
+    const path = `${dir}/run.wav`;
+    await writeFile(path, encodeWav({ rate: 8192, startTime: 0, channels }, "float32"));
+    return path;
+  }
+
+  test("binary files carry a recipe, text files and streams in memory none", async () => {
+    const wav = await noiseWav(1000);
+    expect(streamRecipe(await openRecordingStream(wav))?.path).toBe(wav);
+    const sliced = await openRecordingStream(wav, { start: 0.01, end: 0.1 });
+    expect(streamRecipe(sliced)?.options).toEqual({ start: 0.01, end: 0.1 });
+    const dir = await mkdtemp("/tmp/quiver-pipeline-");
+    await writeFile(`${dir}/r.csv`, "time_s,a [V]\n0,1\n0.001,2\n0.002,3\n");
+    expect(streamRecipe(await openRecordingStream(`${dir}/r.csv`))).toBeUndefined();
+    const memory = recordingSource({
+      rate: 10,
+      startTime: 0,
+      channels: [{ name: "a", unit: "V", data: new Float64Array(8) }],
+    });
+    expect(streamRecipe(memory)).toBeUndefined();
+  });
+
+  test("give the one-thread estimate and warnings exactly, for a slice and a shuffled order", async () => {
+    const wav = await noiseWav(300_000);
+    for (const read of [{}, { start: 3.5, end: 30 }]) {
+      const stream = await openRecordingStream(wav, read);
+      const options = { rate: 8192, block: 2048, overlap: 0.75 };
+      const one = await spectralEstimateOf(stream, [3, 0, 2, 1], options, { threads: 1 });
+      const two = await spectralEstimateOf(stream, [3, 0, 2, 1], options, { threads: 2 });
+      // The DC offset of ch3 is warned of, at its place in the channel order.
+      expect(one.warnings.length).toBe(1);
+      expect(one.warnings[0]).toMatch(/"ch3"/);
+      expect(two.warnings).toEqual(one.warnings);
+      expect(two.estimate.averages).toBe(one.estimate.averages);
+      two.estimate.auto.forEach((a, c) => {
+        expect(Array.from(a)).toEqual(Array.from(one.estimate.auto[c]));
+      });
+    }
+  });
+
+  test("a fault in a worker's channels is reported as in one thread", async () => {
+    // Channels [0, 1] in the order read: this thread takes one, the worker the other.
+    const wav = await noiseWav(50_000, { channel: 1, sample: 40_000 });
+    const stream = await openRecordingStream(wav);
+    const options = { rate: 8192, block: 1024 };
+    const one = await spectralEstimateOf(stream, [0, 1], options, { threads: 1 }).catch((e) => e);
+    const two = await spectralEstimateOf(stream, [0, 1], options, { threads: 2 }).catch((e) => e);
+    expect(one).toBeInstanceOf(QuiverError);
+    expect(one.message).toMatch(/channel ch2, sample 40000: NaN is not a finite number/);
+    expect(two).toBeInstanceOf(QuiverError);
+    expect(two.message).toBe(one.message);
+    // A channel that is not read is not decoded, so its NaN concerns no result.
+    const other = await spectralEstimateOf(stream, [0, 2], options, { threads: 2 });
+    expect(other.estimate.auto.length).toBe(2);
+  });
+
+  test("a file changed after it was opened is refused, not read as another record", async () => {
+    const wav = await noiseWav(1000);
+    const recipe = streamRecipe(await openRecordingStream(wav))!;
+    expect((await reopenRecordingStream(recipe)).length).toBe(1000);
+    await utimes(wav, new Date(), new Date(Date.now() + 5000));
+    await expect(reopenRecordingStream(recipe)).rejects.toThrow(
+      /run\.wav: the file changed while it was read/,
+    );
   });
 });

@@ -68,11 +68,13 @@ async function openWavWithContainer(
       async read(selected, onChunk) {
         const h = await open(path, "r");
         try {
-          // One byte buffer and one sample array per channel, reused for every chunk.
+          // One byte buffer and one sample array per selected channel, reused for every chunk;
+          // the other channels are not decoded (nor checked: their samples concern no result).
           const rows = Math.min(CHUNK_ROWS, frames);
           const bytes = new Uint8Array(rows * f.blockAlign);
           const view = new DataView(bytes.buffer);
-          const samples = Array.from({ length: f.channels }, () => new Float64Array(rows));
+          const samples = new Array<Float64Array | undefined>(f.channels);
+          for (const s of selected) samples[s] ??= new Float64Array(rows);
           const factors = selected.map((s) => transforms[s].factor);
           for (let first = 0; first < frames; first += CHUNK_ROWS) {
             const count = Math.min(CHUNK_ROWS, frames - first);
@@ -81,7 +83,7 @@ async function openWavWithContainer(
               refuseNonFiniteSamples(samples, count, first, path);
             }
             onChunk(selected.map((s, j) => {
-              const d = samples[s].subarray(0, count);
+              const d = samples[s]!.subarray(0, count);
               if (factors[j] !== 1) { for (let i = 0; i < d.length; i++) d[i] *= factors[j]; }
               return d;
             }));
