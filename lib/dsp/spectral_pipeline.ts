@@ -7,7 +7,7 @@
  * channel's samples alone (a cross spectrum on its pair's), so the numbers
  * are identical to the last bit wherever they were made.
  *
- * A stream opened from a binary file (a recipe to open it again:
+ * A stream opened from a WAV file (a recipe to open it again:
  * {@linkcode streamRecipe}) is read by every thread for its own channels
  * only, so that decoding is shared too. Otherwise the reader calls `push`
  * synchronously (a CSV chunk is handed on from inside the parser), so a
@@ -422,7 +422,7 @@ class SharedSink implements SpectralSink {
  * (its transforms shared among threads as {@linkcode spectralSink} chooses
  * for the stream's length) and returns the estimate with the signal
  * warnings of the read. A failed read stops the workers before the error
- * goes on. When the workers read their own channels (a binary file) and
+ * goes on. When the workers read their own channels (a WAV file) and
  * a fault lies in the channels of more than one thread, this thread's is
  * the one reported, else the first worker's that failed.
  *

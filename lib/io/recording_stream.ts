@@ -59,7 +59,7 @@ export async function openRecordingStream(
   const sliced = start === undefined && end === undefined
     ? stream
     : sliceStream(stream, start, end, path);
-  if (format.kind === "binary") {
+  if (format.opensAgain === true) {
     const { size, mtimeMs } = await stat(path);
     recipes.set(sliced, { path, options: { ...options }, size, mtimeMs });
   }
@@ -80,15 +80,18 @@ export interface StreamRecipe {
 
 /**
  * The recipes of streams that {@linkcode openRecordingStream} opened from a
- * binary file, by the stream object itself: a stream made from one (a
- * wrapper that changes its samples) is another object and has none. Text
- * files have none: their parse is most of the work and would be done twice.
+ * file of a format that opens again cheaply (`opensAgain`: WAV), by the
+ * stream object itself: a stream made from one (a wrapper that changes its
+ * samples) is another object and has none. Other formats have none: a CSV
+ * file's parse is most of the work and would be done twice; an MDF 4 file
+ * read again by a worker was slower than the ring (measured).
  */
 const recipes = new WeakMap<RecordingStream, StreamRecipe>();
 
 /**
- * How to open `stream` again in another thread, when it was opened from a
- * binary file by {@linkcode openRecordingStream}; otherwise undefined.
+ * How to open `stream` again in another thread, when it was opened by
+ * {@linkcode openRecordingStream} from a file of a format that opens again
+ * cheaply (WAV); otherwise undefined.
  * Reading a subset of its channels from the reopened stream gives the same
  * samples, chunk for chunk, as from `stream`.
  *

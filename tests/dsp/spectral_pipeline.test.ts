@@ -171,7 +171,7 @@ describe("the spectral core shared among threads", () => {
   });
 });
 
-// A stream opened from a binary file is opened again by the worker, which reads and decodes
+// A stream opened from a WAV file is opened again by the worker, which reads and decodes
 // its own channels; each channel's samples are the same, so its spectrum is bit-identical.
 describe("workers that read their own channels from the file", () => {
   /** A float32 WAV of four noise channels, one with a DC offset; its path. */
@@ -187,7 +187,7 @@ describe("workers that read their own channels from the file", () => {
     return path;
   }
 
-  test("binary files carry a recipe, text files and streams in memory none", async () => {
+  test("WAV files carry a recipe; CSV files, MDF 4 files and streams in memory none", async () => {
     const wav = await noiseWav(1000);
     expect(streamRecipe(await openRecordingStream(wav))?.path).toBe(wav);
     const sliced = await openRecordingStream(wav, { start: 0.01, end: 0.1 });
@@ -195,6 +195,8 @@ describe("workers that read their own channels from the file", () => {
     const dir = await mkdtemp("/tmp/quiver-pipeline-");
     await writeFile(`${dir}/r.csv`, "time_s,a [V]\n0,1\n0.001,2\n0.002,3\n");
     expect(streamRecipe(await openRecordingStream(`${dir}/r.csv`))).toBeUndefined();
+    const mdf4 = new URL("../../fixtures/recordings/mdf4/sorted_dt.mf4", import.meta.url).pathname;
+    expect(streamRecipe(await openRecordingStream(mdf4))).toBeUndefined();
     const memory = recordingSource({
       rate: 10,
       startTime: 0,

@@ -113,6 +113,13 @@ export interface RecordingFormat {
    */
   readonly kind: "binary" | "text";
   /**
+   * Whether another thread may open the file again to read some of its
+   * channels itself (a spectral worker, lib/dsp/spectral_pipeline.ts): true
+   * only where opening again costs little and a subset of channels is
+   * cheaper to read than all of them, as measured (WAV). Default: false.
+   */
+  readonly opensAgain?: boolean;
+  /**
    * Whether a file whose first bytes are `head` is of this format. `head`
    * holds the first {@linkcode SNIFF_BYTES} bytes, or the whole file when
    * it is shorter.
