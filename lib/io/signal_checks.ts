@@ -89,6 +89,28 @@ function gridGcd(a: number, b: number, tolerance: number): number {
   return x;
 }
 
+/**
+ * Whether `d` lies more than `tolerance` from every whole multiple of `step`
+ * (`step` > 10 × `tolerance`, as the grid's floor ensures). `d − n·step`
+ * with n the nearest whole number is within a few ulps of `d` of the exact
+ * distance, far below the tolerance, so only a distance near the tolerance
+ * needs the exact remainder (`%`: a library call, the slowest test of the
+ * checks on quantised samples, which refine the grid at every new value).
+ *
+ * @example
+ * ```ts ignore
+ * offGrid(3 * 2 ** -15, 2 ** -15, 1e-9) === false; offGrid(0.5 * 2 ** -15, 2 ** -15, 1e-9) === true;
+ * ```
+ */
+function offGrid(d: number, step: number, tolerance: number): boolean {
+  const e = d - Math.round(d / step) * step;
+  const distance = e < 0 ? -e : e;
+  if (distance < 0.5 * tolerance) return false;
+  if (distance > 2 * tolerance) return true;
+  const r = d % step;
+  return r > tolerance && step - r > tolerance;
+}
+
 /** What is known of one rail (the channel's highest or lowest value so far). */
 interface Rail {
   /** Samples exactly at the rail. */
@@ -234,13 +256,23 @@ export class ChannelStatistics {
     // same value again (`runValue` always equals `last1`, the previous sample: so the step to it
     // is 0, and it was at a rail when `fsRun` > 0). Anything else (a new extreme, a run to close,
     // NaN) takes the full body, which then sets them again. A converter's known step makes the
-    // grid unneeded: it is not refined then (the grid's remainders are the slowest test).
-    let plain = false, upper = -Infinity, lower = Infinity;
+    // grid unneeded: it is not refined then. While the grid is refined, a plain value whose step
+    // from the last is clearly on the grid (within half the tolerance, by the nearest multiple:
+    // see offGrid) changes nothing there either and stays on the fast path; any other goes
+    // through the full body, which refines.
+    let plain = false, upper = -Infinity, lower = Infinity, onGrid = 0, perStep = 1 / step;
     for (let i = 0; i < x.length; i++) {
       const v = x[i];
       sum += v;
       sumSquares += v * v;
       if (v !== runValue) {
+        if (plain && v < upper && v > lower) {
+          if (refining) {
+            const d = v > last1 ? v - last1 : last1 - v;
+            const e = d - Math.round(d * perStep) * step; // NaN while there is no step yet
+            if (!((e < 0 ? -e : e) < onGrid)) plain = false;
+          }
+        }
         if (plain && v < upper && v > lower) {
           runBefore1 = last1;
           runBefore2 = last2;
@@ -282,8 +314,7 @@ export class ChannelStatistics {
             // GRID_FLOOR the data are unquantised for this purpose: the grid is left alone.
             const scale = max > -min ? max : -min;
             const tolerance = GRID_TOLERANCE * scale;
-            const r = d % step;
-            if (r > tolerance && step - r > tolerance) {
+            if (offGrid(d, step, tolerance)) {
               step = gridGcd(step, d, tolerance);
               refining = step > GRID_FLOOR * scale;
             }
@@ -324,7 +355,9 @@ export class ChannelStatistics {
       }
       last2 = last1;
       last1 = v;
-      plain = !refining && pending === undefined && runLength < 3 && fsRun === 0;
+      plain = pending === undefined && runLength < 3 && fsRun === 0;
+      onGrid = 0.5 * GRID_TOLERANCE * (max > -min ? max : -min);
+      perStep = 1 / step; // a multiplication in the fast path, not a division
       upper = max < fsHigh ? max : fsHigh;
       lower = min > fsLow ? min : fsLow;
     }

@@ -312,3 +312,27 @@ describe("the statistics' fast paths change nothing", () => {
     });
   }
 });
+
+// While the grid is refined, a value inside the range whose step is clearly on the grid stays on
+// the fast path; one off the grid must still refine it (the clipping message prints the step).
+test("a value off the grid late in the record, inside the range, refines the grid", () => {
+  const uniform = uniformGenerator(2027);
+  const q = 1 / 256, n = 20_000;
+  const x = new Float64Array(n).map((_, i) => {
+    const v = 2 * Math.sin(0.05 * i) + 0.1 * (uniform() - 0.5);
+    return Math.round(Math.max(-0.75, Math.min(0.75, v)) / q) * q;
+  });
+  // Inside the range, between two on-grid values: half a step off the grid.
+  let at = 15_000;
+  while (Math.abs(x[at]) > 0.5) at++;
+  x[at] += q / 2;
+  const whole = new ChannelStatistics(), single = new ChannelStatistics();
+  whole.push(x);
+  for (let i = 0; i < n; i++) single.push(x.subarray(i, i + 1));
+  const c = { name: "c", unit: "V" };
+  const warnings = whole.warnings(c);
+  expect(warnings).toEqual(single.warnings(c));
+  expect(warnings.join()).toMatch(/looks clipped/);
+  // The grid is half the written step: 1/512 V (formatNumber: 4 significant figures).
+  expect(warnings.join()).toMatch(/quantisation steps of 0\.001953 V/);
+});
