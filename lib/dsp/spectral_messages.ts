@@ -27,12 +27,17 @@ export const END_OF_RECORD = 1;
  * from the worker's own read of the file: the stream opened again from its
  * recipe and the stream's channels at `channels` read.
  */
-export interface SpectralWorkerStart {
+export type SpectralWorkerStart =
+  & WorkerGroup
+  & (
+    | { ring: RingBuffers; slotRows: number; reopen?: never }
+    | { reopen: { recipe: StreamRecipe; channels: number[] }; ring?: never }
+  );
+
+/** What every start message holds: the group's channels, options and checks. */
+export interface WorkerGroup {
   channelCount: number;
   options: Omit<SpectralOptions, "frames">;
-  ring?: RingBuffers;
-  slotRows: number;
-  reopen?: { recipe: StreamRecipe; channels: number[] };
   /** The group's channels, when the worker makes their signal checks too. */
   checks?: CheckedChannel[];
 }

@@ -28,6 +28,7 @@ import {
   type SpectralOptions,
   validateSpectralOptions,
 } from "./spectral_core.ts";
+import { QuiverError } from "../errors.ts";
 import { SharedRing } from "../shared_ring.ts";
 import { insideWorker, thrownError } from "../workers.ts";
 import {
@@ -252,16 +253,17 @@ class WorkerPart {
         resolve({ error: { name: "Error", message: `spectral worker: ${event.message}` } });
       };
     });
-    const start: SpectralWorkerStart = {
+    const common = {
       channelCount: group.length,
       options: groupOptions(options, group),
-      slotRows: SLOT_ROWS,
-      ...(this.#ring === undefined ? {} : { ring: this.#ring.buffers }),
-      ...(reading === undefined ? {} : {
-        reopen: { recipe: reading.recipe, channels: group.map((c) => reading.indices[c]) },
-      }),
       ...(checks === undefined ? {} : { checks: group.map((c) => checks[c]) }),
     };
+    const start: SpectralWorkerStart = this.#ring !== undefined
+      ? { ...common, ring: this.#ring.buffers, slotRows: SLOT_ROWS }
+      : {
+        ...common,
+        reopen: { recipe: reading!.recipe, channels: group.map((c) => reading!.indices[c]) },
+      };
     this.#worker.postMessage(start);
   }
 
@@ -277,7 +279,8 @@ class WorkerPart {
 
   /** Copies the group's channels of `chunk` into the ring, a slot at a time. */
   push(chunk: readonly Float64Array[]): void {
-    const ring = this.#ring!;
+    const ring = this.#ring;
+    if (ring === undefined) throw new Error("this worker reads its own channels: push none");
     const length = chunk[0].length;
     for (let from = 0; from < length; from += SLOT_ROWS) {
       const rows = Math.min(SLOT_ROWS, length - from);
@@ -358,6 +361,7 @@ class SharedSink implements SpectralSink {
   }
 
   push(chunk: readonly Float64Array[]): void {
+    if (this.readsOwn) throw new Error("the workers read their own channels: use pushOwn");
     if (chunk.length !== this.#channelCount) {
       throw new RangeError(`chunk has ${chunk.length} channels, expected ${this.#channelCount}`);
     }
@@ -418,13 +422,32 @@ class SharedSink implements SpectralSink {
 }
 
 /**
+ * After a thread's read failed with `error`: throws the first fault over all
+ * the channels at `indices` in file order, by reading them in this thread
+ * until it (for a fault in the samples, no further than where that thread
+ * found its own); returns when that read finds none, for the caller to
+ * throw `error`.
+ */
+async function firstFault(
+  stream: RecordingStream,
+  indices: readonly number[],
+  error: unknown,
+): Promise<void> {
+  // Only a fault of the data is looked for again: anything else (a worker that
+  // could not start, say) is the error itself.
+  if (!(error instanceof QuiverError)) return;
+  await stream.read(indices, () => {});
+}
+
+/**
  * Reads the channels at `indices` of `stream` through the spectral core
  * (its transforms shared among threads as {@linkcode spectralSink} chooses
  * for the stream's length) and returns the estimate with the signal
  * warnings of the read. A failed read stops the workers before the error
- * goes on. When the workers read their own channels (a WAV file) and
- * a fault lies in the channels of more than one thread, this thread's is
- * the one reported, else the first worker's that failed.
+ * goes on. When the workers read their own channels (a WAV file), each
+ * thread stops at the first fault of its own channels; the one reported is
+ * the first over all of them, as one thread would meet it, found by reading
+ * them all again in this thread up to it.
  *
  * @throws {QuiverError} as the reader and the core do.
  *
@@ -467,8 +490,16 @@ export async function spectralEstimateOf(
     } else warnings = await readChecked(stream, indices, (chunk) => sink.push(chunk));
   } catch (error) {
     sink.cancel();
+    if (sink instanceof SharedSink && sink.readsOwn) await firstFault(stream, indices, error);
     throw error;
   }
-  const estimate = await sink.finish();
+  let estimate: SpectralEstimate;
+  try {
+    estimate = await sink.finish();
+  } catch (error) {
+    // A worker's fault: with its own reading, the first in file order is found as below.
+    if (sink instanceof SharedSink && sink.readsOwn) await firstFault(stream, indices, error);
+    throw error;
+  }
   return { estimate, warnings: sink instanceof SharedSink ? sink.warnings() : warnings };
 }

@@ -13,8 +13,10 @@ import {
   END_OF_RECORD,
   type SpectralWorkerReply,
   type SpectralWorkerStart,
+  type WorkerGroup,
 } from "./spectral_messages.ts";
-import { SharedRing } from "../shared_ring.ts";
+import { type RingBuffers, SharedRing } from "../shared_ring.ts";
+import type { StreamRecipe } from "../io/recording_stream.ts";
 import { postedError } from "../workers.ts";
 import { ChannelStatistics } from "../io/signal_checks.ts";
 
@@ -29,7 +31,7 @@ class GroupWork {
   readonly accumulator: SpectralAccumulator;
   readonly statistics: ChannelStatistics[];
 
-  constructor(start: SpectralWorkerStart) {
+  constructor(start: WorkerGroup) {
     this.accumulator = new SpectralAccumulator(start.channelCount, start.options);
     this.statistics = (start.checks ?? []).map((c) => new ChannelStatistics(c.fullScale));
   }
@@ -41,8 +43,11 @@ class GroupWork {
 }
 
 /** Takes the ring's slots until the end of the record, pushing each while nothing failed. */
-function drainRing(start: SpectralWorkerStart, work: GroupWork | undefined): unknown {
-  const ring = SharedRing.attach(start.ring!);
+function drainRing(
+  start: WorkerGroup & { ring: RingBuffers; slotRows: number },
+  work: GroupWork | undefined,
+): unknown {
+  const ring = SharedRing.attach(start.ring);
   const { channelCount, slotRows } = start;
   const views = new Array<Float64Array>(channelCount);
   let failure: unknown;
@@ -65,9 +70,11 @@ function drainRing(start: SpectralWorkerStart, work: GroupWork | undefined): unk
 }
 
 /** Reads the group's channels from the file opened again (loaded only on this path). */
-async function readOwn(start: SpectralWorkerStart, work: GroupWork): Promise<void> {
+async function readOwn(
+  { recipe, channels }: { recipe: StreamRecipe; channels: number[] },
+  work: GroupWork,
+): Promise<void> {
   const { reopenRecordingStream } = await import("../io/recording_stream.ts");
-  const { recipe, channels } = start.reopen!;
   const stream = await reopenRecordingStream(recipe);
   await stream.read(channels, (chunk) => work.push(chunk));
 }
@@ -85,7 +92,7 @@ scope.onmessage = async (event) => {
     failure = drainRing(start, work) ?? failure;
   } else if (work !== undefined) {
     try {
-      await readOwn(start, work);
+      await readOwn(start.reopen, work);
     } catch (error) {
       failure = error;
     }

@@ -55,27 +55,41 @@ export async function openRecordingStream(
 ): Promise<RecordingStream> {
   const format = await sniffRecording(path);
   const { start, end, ...formatOptions } = options;
+  // The files' state before they are parsed: a change after it shows when opened again.
+  const files = format.opensAgain === true ? await fileStates(path, options.setup) : undefined;
   const stream = await format.open(path, formatOptions);
   const sliced = start === undefined && end === undefined
     ? stream
     : sliceStream(stream, start, end, path);
-  if (format.opensAgain === true) {
-    const { size, mtimeMs } = await stat(path);
-    recipes.set(sliced, { path, options: { ...options }, size, mtimeMs });
-  }
+  if (files !== undefined) recipes.set(sliced, { path, options: { ...options }, files });
   return sliced;
+}
+
+/** The recording's and the set-up's size and time of change. */
+async function fileStates(path: string, setup: string | undefined): Promise<FileState[]> {
+  return await Promise.all([path, ...(setup === undefined ? [] : [setup])].map(async (p) => {
+    const { size, mtimeMs } = await stat(p);
+    return { path: p, size, mtimeMs };
+  }));
+}
+
+/** A file's size and time of change when it was read. */
+export interface FileState {
+  readonly path: string;
+  readonly size: number;
+  readonly mtimeMs: number;
 }
 
 /**
  * How another thread opens a stream again: the file, the options it was
- * opened with, and the file's size and time of change then (a file changed
- * in between is refused, not read as another record).
+ * opened with, and the size and time of change of the recording and its
+ * set-up before they were first read (a file changed in between is
+ * refused, not read as another record).
  */
 export interface StreamRecipe {
   readonly path: string;
   readonly options: ReadRecordingOptions;
-  readonly size: number;
-  readonly mtimeMs: number;
+  readonly files: readonly FileState[];
 }
 
 /**
@@ -109,14 +123,29 @@ export function streamRecipe(stream: RecordingStream): StreamRecipe | undefined 
 /**
  * Opens the stream a {@linkcode StreamRecipe} describes.
  *
- * @throws {QuiverError} when the file's size or time of change differ from
- * the recipe's, and as {@linkcode openRecordingStream} does.
+ * @throws {QuiverError} when the recording's or the set-up's size or time
+ * of change differ from the recipe's, naming the file, and as
+ * {@linkcode openRecordingStream} does.
+ *
+ * @example
+ * ```ts
+ * import { openRecordingStream, reopenRecordingStream, streamRecipe } from "./recording_stream.ts";
+ * import { encodeWav } from "./wav.ts";
+ * import { mkdtemp, writeFile } from "node:fs/promises";
+ * const dir = await mkdtemp("/tmp/quiver-doc-");
+ * const data = new Float64Array(64).map((_, i) => Math.sin(i));
+ * await writeFile(`${dir}/r.wav`, encodeWav({ rate: 8000, startTime: 0, channels: [{ name: "a", unit: "FS", data }] }, "float32"));
+ * const again = await reopenRecordingStream(streamRecipe(await openRecordingStream(`${dir}/r.wav`))!);
+ * if (again.length !== 64 || again.rate !== 8000) throw new Error();
+ * ```
  */
 export async function reopenRecordingStream(recipe: StreamRecipe): Promise<RecordingStream> {
   const stream = await openRecordingStream(recipe.path, recipe.options);
-  const { size, mtimeMs } = await stat(recipe.path);
-  if (size !== recipe.size || mtimeMs !== recipe.mtimeMs) {
-    throw new QuiverError("the file changed while it was read", { file: recipe.path });
-  }
+  const now = await fileStates(recipe.path, recipe.options.setup);
+  recipe.files.forEach((then, i) => {
+    if (now[i].size !== then.size || now[i].mtimeMs !== then.mtimeMs) {
+      throw new QuiverError("the file changed while it was read", { file: then.path });
+    }
+  });
   return stream;
 }

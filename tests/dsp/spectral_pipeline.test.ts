@@ -13,8 +13,9 @@ import {
   streamRecipe,
 } from "../../lib/io/recording_stream.ts";
 import { encodeWav } from "../../lib/io/wav.ts";
+import { wavLayout } from "../../lib/io/wav_layout.ts";
 import { gaussianNoise } from "../helpers/random.ts";
-import { mkdtemp, utimes, writeFile } from "node:fs/promises";
+import { mkdtemp, readFile, utimes, writeFile } from "node:fs/promises";
 
 // A worker runs the same accumulator code on the same samples of its channels in the same
 // order, so the estimate must be identical to the last bit, not merely close
@@ -237,6 +238,53 @@ describe("workers that read their own channels from the file", () => {
     // A channel that is not read is not decoded, so its NaN concerns no result.
     const other = await spectralEstimateOf(stream, [0, 2], options, { threads: 2 });
     expect(other.estimate.auto.length).toBe(2);
+  });
+
+  test("faults in both threads' channels: the first in file order, as one thread meets it", async () => {
+    // The worker's channel (ch2) fails at sample 100, this thread's (ch1) only at 150 000.
+    const wav = await noiseWav(200_000, { channel: 1, sample: 100 });
+    const bytes = await readFile(wav);
+    const { dataStart } = wavLayout(bytes, bytes.length);
+    new DataView(bytes.buffer, bytes.byteOffset).setFloat32(dataStart + 150_000 * 16, NaN, true);
+    await writeFile(wav, bytes);
+    const stream = await openRecordingStream(wav);
+    const options = { rate: 8192, block: 1024 };
+    const one = await spectralEstimateOf(stream, [0, 1], options, { threads: 1 }).catch((e) => e);
+    const two = await spectralEstimateOf(stream, [0, 1], options, { threads: 2 }).catch((e) => e);
+    expect(one.message).toMatch(/channel ch2, sample 100: NaN/);
+    expect(two).toBeInstanceOf(QuiverError);
+    expect(two.message).toBe(one.message);
+  });
+
+  test("a channel read twice with a set-up factor: each position scaled once", async () => {
+    const wav = await noiseWav(100_000);
+    const setup = `${wav}.setup.json`;
+    await writeFile(
+      setup,
+      JSON.stringify({
+        channels: { ch1: { unit: "Pa", full_scale_volts: 2, sensitivity_mv_per_unit: 50 } },
+      }),
+    );
+    const stream = await openRecordingStream(wav, { setup });
+    const options = { rate: 8192, block: 1024 };
+    const alone = await spectralEstimateOf(stream, [0], options, { threads: 1 });
+    for (const threads of [1, 2]) {
+      const twice = await spectralEstimateOf(stream, [0, 0], options, { threads });
+      for (const auto of twice.estimate.auto) {
+        expect(Array.from(auto)).toEqual(Array.from(alone.estimate.auto[0]));
+      }
+    }
+  });
+
+  test("a set-up changed after the recording was opened is refused, naming it", async () => {
+    const wav = await noiseWav(1000);
+    const setup = `${wav}.setup.json`;
+    await writeFile(setup, JSON.stringify({ channels: { ch1: { name: "mic" } } }));
+    const recipe = streamRecipe(await openRecordingStream(wav, { setup }))!;
+    await utimes(setup, new Date(), new Date(Date.now() + 5000));
+    await expect(reopenRecordingStream(recipe)).rejects.toThrow(
+      /run\.wav\.setup\.json: the file changed while it was read/,
+    );
   });
 
   test("a file changed after it was opened is refused, not read as another record", async () => {

@@ -313,6 +313,33 @@ describe("the statistics' fast paths change nothing", () => {
   }
 });
 
+// The grid's tolerance is 1e-9 of the largest magnitude (signal_checks.ts, GRID_TOLERANCE): a step
+// off the grid by 1.5 tolerances refines it, by 0.4 does not, as the remainder rule `d % step`
+// says. Both sit where the fast test must give way to the exact one or agree with it.
+test("a step just beyond the grid's tolerance refines the grid, one just within does not", () => {
+  const q = 1 / 256, n = 20_000;
+  const base = new Float64Array(n).map((_, i) => {
+    const v = 2 * Math.sin(0.05 * i);
+    return Math.round(Math.max(-0.75, Math.min(0.75, v)) / q) * q;
+  });
+  const tolerance = 1e-9 * 0.75;
+  const stepIn = (offBy: number) => {
+    const x = base.slice();
+    let at = 15_000;
+    while (Math.abs(x[at]) > 0.5) at++;
+    x[at] += offBy * tolerance;
+    const s = new ChannelStatistics();
+    s.push(x);
+    const message = s.warnings({ name: "c", unit: "V" }).join();
+    expect(message).toMatch(/looks clipped/);
+    return /quantisation steps of 0\.003906 V/.test(message);
+  };
+  expect(stepIn(0)).toBe(true);
+  expect(stepIn(0.4)).toBe(true);
+  expect(stepIn(1.5)).toBe(false);
+  expect(stepIn(3)).toBe(false);
+});
+
 // While the grid is refined, a value inside the range whose step is clearly on the grid stays on
 // the fast path; one off the grid must still refine it (the clipping message prints the step).
 test("a value off the grid late in the record, inside the range, refines the grid", () => {

@@ -75,17 +75,27 @@ async function openWavWithContainer(
           const view = new DataView(bytes.buffer);
           const samples = new Array<Float64Array | undefined>(f.channels);
           for (const s of selected) samples[s] ??= new Float64Array(rows);
-          const factors = selected.map((s) => transforms[s].factor);
+          // A channel selected twice is scaled once and handed on as a copy the second time
+          // (each array of a chunk its own, as the caller may change it in place).
+          const copies = selected.map((s, j) =>
+            selected.indexOf(s) === j ? undefined : new Float64Array(rows)
+          );
+          const distinct = selected.filter((s, j) => selected.indexOf(s) === j);
           for (let first = 0; first < frames; first += CHUNK_ROWS) {
             const count = Math.min(CHUNK_ROWS, frames - first);
             await h.read(bytes, 0, count * f.blockAlign, dataStart + first * f.blockAlign);
             if (!decodeWavFrames(view, { start: 0, count, format: f, out: samples })) {
               refuseNonFiniteSamples(samples, count, first, path);
             }
+            for (const s of distinct) {
+              const factor = transforms[s].factor, d = samples[s]!;
+              if (factor !== 1) { for (let i = 0; i < count; i++) d[i] *= factor; }
+            }
             onChunk(selected.map((s, j) => {
-              const d = samples[s]!.subarray(0, count);
-              if (factors[j] !== 1) { for (let i = 0; i < d.length; i++) d[i] *= factors[j]; }
-              return d;
+              const d = samples[s]!.subarray(0, count), copy = copies[j];
+              if (copy === undefined) return d;
+              copy.set(d);
+              return copy.subarray(0, count);
             }));
           }
         } finally {
