@@ -10,6 +10,7 @@
  *
  * @module
  */
+import { latin1, utf16Text } from "./byte_text.ts";
 
 /** Data types of MAT v5 elements (miINT8 … miUTF32). */
 export const MI = {
@@ -295,10 +296,14 @@ export function decodeValues(
 }
 
 const LITTLE_ENDIAN_MACHINE = new Uint8Array(new Uint16Array([1]).buffer)[0] === 1;
+// A leading U+FEFF in a char array is a character of the text, not a byte order mark.
+const UTF16LE = new TextDecoder("utf-16le", { ignoreBOM: true });
+const UTF16BE = new TextDecoder("utf-16be", { ignoreBOM: true });
 
 /**
  * The text of a char array's data (miUTF8, miINT8/miUINT8 as Latin-1,
- * miUINT16/miUTF16 as UTF-16 code units, miUTF32 as code points).
+ * miUINT16/miUTF16 as UTF-16 code units, miUTF32 as code points; a lone
+ * surrogate or a code point past U+10FFFF reads as U+FFFD).
  *
  * @example
  * ```ts
@@ -307,14 +312,30 @@ const LITTLE_ENDIAN_MACHINE = new Uint8Array(new Uint16Array([1]).buffer)[0] ===
  * ```
  */
 export function decodeChars(bytes: Uint8Array, type: number, littleEndian: boolean): string {
-  const v = new DataView(bytes.buffer, bytes.byteOffset, bytes.byteLength);
+  // Decoded whole by TextDecoder, never spread as String.fromCharCode's arguments: that
+  // overflows the stack for a long text variable.
   if (type === MI.UTF8) return new TextDecoder().decode(bytes);
-  if (type === MI.INT8 || type === MI.UINT8) return String.fromCharCode(...bytes);
-  const units: number[] = [];
+  if (type === MI.INT8 || type === MI.UINT8) return latin1(bytes);
   if (type === MI.UINT16 || type === MI.UTF16) {
-    for (let i = 0; i + 2 <= bytes.length; i += 2) units.push(v.getUint16(i, littleEndian));
-    return String.fromCharCode(...units);
+    const decoder = littleEndian ? UTF16LE : UTF16BE;
+    return decoder.decode(bytes.subarray(0, bytes.length - (bytes.length % 2)));
   }
-  for (let i = 0; i + 4 <= bytes.length; i += 4) units.push(v.getUint32(i, littleEndian));
-  return String.fromCodePoint(...units);
+  // miUTF32: each code point as one UTF-16 code unit, or a surrogate pair above U+FFFF
+  // (U+FFFD for a value past U+10FFFF).
+  const v = new DataView(bytes.buffer, bytes.byteOffset, bytes.byteLength);
+  const count = Math.floor(bytes.length / 4);
+  const units = new Uint16Array(2 * count);
+  let n = 0;
+  for (let i = 0; i < count; i++) {
+    const c = v.getUint32(4 * i, littleEndian);
+    if (c < 0x10000) {
+      units[n++] = c;
+    } else if (c <= 0x10ffff) {
+      units[n++] = 0xd800 + ((c - 0x10000) >> 10);
+      units[n++] = 0xdc00 + ((c - 0x10000) & 0x3ff);
+    } else {
+      units[n++] = 0xfffd;
+    }
+  }
+  return utf16Text(units.subarray(0, n));
 }

@@ -18,6 +18,7 @@
  */
 import type { FileHandle } from "node:fs/promises";
 import { QuiverError } from "../errors.ts";
+import { latin1 } from "./byte_text.ts";
 
 /** Bytes of a block header. */
 export const BLOCK_HEADER_BYTES = 24;
@@ -57,7 +58,7 @@ export function blockName(id: string, offset: number): string {
  */
 export function looksLikeMdf4(head: Uint8Array): boolean {
   if (head.length < 16) return false;
-  const text = String.fromCharCode(...head.subarray(0, 12));
+  const text = latin1(head.subarray(0, 12));
   return text.startsWith("MDF     4.");
 }
 
@@ -145,7 +146,7 @@ export class Mdf4Blocks {
     }
     const head = await this.bytes(offset, BLOCK_HEADER_BYTES);
     const view = new DataView(head.buffer);
-    const mark = String.fromCharCode(...head.subarray(0, 4));
+    const mark = latin1(head.subarray(0, 4));
     const id = mark.slice(2);
     if (!mark.startsWith("##") || !expected.includes(id)) {
       this.fail(

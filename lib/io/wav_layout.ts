@@ -9,6 +9,7 @@
  *
  * @module
  */
+import { latin1 } from "./byte_text.ts";
 import { QuiverError } from "../errors.ts";
 
 /** The WAV format code of integer PCM samples. */
@@ -43,7 +44,7 @@ export interface WavLayout {
 }
 
 function ascii(bytes: Uint8Array, offset: number, length: number): string {
-  return String.fromCharCode(...bytes.subarray(offset, offset + length));
+  return latin1(bytes.subarray(offset, offset + length));
 }
 
 /**

@@ -4,6 +4,7 @@ import { describe, expect, test } from "vitest";
 import { spectralEstimate } from "../../lib/dsp/spectral_core.ts";
 import { autoSpectrum } from "../../lib/dsp/spectrum_kinds.ts";
 import { sniffRecording } from "../../lib/io/formats/mod.ts";
+import { decodeChars, MI } from "../../lib/io/mat5_elements.ts";
 import { collectRecording, openRecordingStream } from "../../lib/io/recording_stream.ts";
 import { assertClose } from "../helpers/assert_close.ts";
 import { runQuiver } from "../helpers/cli.ts";
@@ -171,6 +172,56 @@ describe("MAT v5: the time vector and quiver info", () => {
     },
     120_000,
   );
+});
+
+describe("MAT v5: a long char variable is read whole", () => {
+  // 200 000 UTF-16 code units: spread as String.fromCharCode's arguments they overflow V8's
+  // stack (as 100 000 do not). Non-ASCII, and a pair of surrogates (U+1D465) across the units.
+  const N = 200_000;
+  const piece = "m/s² µ° \u{1d465} ";
+  const text = piece.repeat(Math.ceil(N / piece.length)).trim(); // at least N units, pairs whole
+  const a = new Float64Array(64).map((_, i) => Math.sin(i));
+
+  for (const [type, compress] of [["uint16", false], ["uint16", true], ["utf8", true]] as const) {
+    test(`a ${text.length}-character unit as ${type}${compress ? ", compressed" : ""}`, async () => {
+      const dir = await mkdtemp("/tmp/quiver-mat5-char-");
+      await writeFile(
+        `${dir}/c.mat`,
+        mat5File([
+          { name: "fs", values: new Float64Array([100]) },
+          { name: "a", values: a },
+          { name: "a_unit", text, type },
+        ], compress),
+      );
+      const d = await (await sniffRecording(`${dir}/c.mat`)).describe(`${dir}/c.mat`, {});
+      expect(d.channels.map((c) => c.name)).toEqual(["a"]);
+      expect(d.channels[0].unit.length).toBe(text.length);
+      expect(d.channels[0].unit === text).toBe(true); // not toBe: its diff would print 200 000 chars
+    });
+  }
+
+  test("decodeChars: big-endian UTF-16, Latin-1 bytes and UTF-32 code points, each 200 000 long", () => {
+    const units = new Uint16Array(N).map((_, i) => [0x6d, 0xb5, 0x20ac, 0xd835, 0xdc65][i % 5]);
+    const want = Array.from({ length: N / 5 }, () => "mµ€\u{1d465}").join("");
+    const be = new Uint8Array(2 * N);
+    const beView = new DataView(be.buffer);
+    for (let i = 0; i < N; i++) beView.setUint16(2 * i, units[i], false);
+    expect(decodeChars(be, MI.UINT16, false) === want).toBe(true);
+    expect(decodeChars(be.subarray(0, 6), MI.UTF16, false)).toBe("mµ€");
+    // Latin-1: each byte its own code point, 0x80–0x9F included (not windows-1252).
+    const bytes = new Uint8Array(N).map((_, i) => [0x41, 0x80, 0x9f, 0xb5][i % 4]);
+    const latin = decodeChars(bytes, MI.UINT8, true);
+    expect(latin.length).toBe(N);
+    expect(latin === "A\u0080\u009fµ".repeat(N / 4)).toBe(true);
+    expect(decodeChars(bytes, MI.INT8, true) === latin).toBe(true);
+    const points = new Uint8Array(4 * N);
+    const pointsView = new DataView(points.buffer);
+    for (let i = 0; i < N; i++) pointsView.setUint32(4 * i, [0x6d, 0xb5, 0x1d465][i % 3], true);
+    const utf32 = decodeChars(points, MI.UTF32, true);
+    expect(utf32.length).toBe(N + Math.ceil((N - 2) / 3));
+    expect(utf32.startsWith("mµ\u{1d465}m")).toBe(true);
+    expect(utf32 === "mµ\u{1d465}".repeat(N / 3 | 0) + "mµ".slice(0, N % 3)).toBe(true);
+  });
 });
 
 describe("bad MAT v5 files are refused, naming the file, the variable or element and its offset", () => {
