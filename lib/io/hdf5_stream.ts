@@ -11,7 +11,7 @@
  */
 import { QuiverError } from "../errors.ts";
 import { formatNumber } from "../format_number.ts";
-import type { ChannelTransform } from "./channel_setup.ts";
+import type { ChannelTransform } from "./channel_transforms.ts";
 import { type Hdf5Dataset, Hdf5File } from "./hdf5_file.ts";
 import type { Hdf5Layout } from "./hdf5_layout.ts";
 import { CHUNK_ROWS, type RecordingStream } from "./recording_source.ts";

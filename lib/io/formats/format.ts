@@ -9,7 +9,8 @@
  * @module
  */
 import { QuiverError } from "../../errors.ts";
-import { type ChannelTransform, readChannelSetup, setupTransforms } from "../channel_setup.ts";
+import { type ChannelTransform, setupTransforms } from "../channel_transforms.ts";
+import { lazyImport } from "../../lazy_import.ts";
 import type { CsvDelimiter } from "../csv_dialect.ts";
 import type { CsvReadOptions } from "../csv_recording.ts";
 import type { DecimalMark } from "../numbers.ts";
@@ -193,5 +194,10 @@ export async function channelTransforms(
   options: FormatOptions,
 ): Promise<ChannelTransform[]> {
   if (options.setup === undefined) return setupTransforms(channels, { channels: {} });
+  // The set-up file's schema (zod) is loaded only for a reading that has one.
+  const { readChannelSetup } = await lazyImport<typeof import("../channel_setup.ts")>(
+    "../channel_setup.ts",
+    import.meta.url,
+  );
   return setupTransforms(channels, await readChannelSetup(options.setup), options.setup);
 }

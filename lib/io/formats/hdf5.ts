@@ -16,7 +16,6 @@ import {
   isNumeric,
 } from "../hdf5_layout.ts";
 import { hdf5Stream, hdf5Timing } from "../hdf5_stream.ts";
-import { isMat73Header } from "../hdf5_mat73.ts";
 import type { RecordingStream } from "../recording_source.ts";
 import {
   channelTransforms,
@@ -25,19 +24,7 @@ import {
   type RecordingDescription,
   type RecordingFormat,
 } from "./format.ts";
-
-/** HDF5's format signature. */
-const SIGNATURE = [0x89, 0x48, 0x44, 0x46, 0x0d, 0x0a, 0x1a, 0x0a];
-
-/**
- * Whether `head` shows HDF5's signature where the library looks for it: at
- * byte 0 or after a user block of 512, 1024 or 2048 bytes.
- */
-export function hasHdf5Signature(head: Uint8Array): boolean {
-  return [0, 512, 1024, 2048].some((at) =>
-    head.length >= at + 8 && SIGNATURE.every((b, i) => head[at + i] === b)
-  );
-}
+import { HDF5_HEAD } from "./signatures.ts";
 
 /** Refuses the options of text formats that do not apply to a binary file. */
 export function refuseTextOptions(options: FormatOptions, label: string, path: string): void {
@@ -168,10 +155,7 @@ async function describeHdf5(
  * ```
  */
 export const hdf5Format: RecordingFormat = {
-  name: "hdf5",
-  label: "HDF5",
-  kind: "binary",
-  sniff: (head) => hasHdf5Signature(head) && !isMat73Header(head),
+  ...HDF5_HEAD,
   open: openHdf5,
   describe: describeHdf5,
 };

@@ -21,6 +21,7 @@ import {
   type RecordingFormat,
   refuseGroup,
 } from "./format.ts";
+import { MAT5_HEAD } from "./signatures.ts";
 
 /** The file's layout, found with the file open (closed after). */
 async function layoutOf(
@@ -140,10 +141,7 @@ async function describeMat5(
  * ```
  */
 export const mat5Format: RecordingFormat = {
-  name: "mat5",
-  label: "MAT v5",
-  kind: "binary",
-  sniff: (head) => mat5Endian(head) !== undefined,
+  ...MAT5_HEAD,
   open: openMat5,
   describe: describeMat5,
 };

@@ -7,7 +7,7 @@
  * @module
  */
 import { Hdf5File } from "../hdf5_file.ts";
-import { isMat73Header, matLayout } from "../hdf5_mat73.ts";
+import { matLayout } from "../hdf5_mat73.ts";
 import type { RecordingStream } from "../recording_source.ts";
 import { describeLayout, openLayout, refuseTextOptions } from "./hdf5.ts";
 import {
@@ -16,6 +16,7 @@ import {
   type RecordingFormat,
   refuseGroup,
 } from "./format.ts";
+import { MAT73_HEAD } from "./signatures.ts";
 
 /** The layout of a MAT-file, its scalars read from the open file. */
 function layoutOf(file: Hdf5File) {
@@ -65,10 +66,7 @@ async function describeMat73(
  * ```
  */
 export const mat73Format: RecordingFormat = {
-  name: "mat73",
-  label: "MAT v7.3",
-  kind: "binary",
-  sniff: isMat73Header,
+  ...MAT73_HEAD,
   open: openMat73,
   describe: describeMat73,
 };

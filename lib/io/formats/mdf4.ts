@@ -13,7 +13,7 @@
 import { open } from "node:fs/promises";
 import { QuiverError } from "../../errors.ts";
 import { formatNumber } from "../../format_number.ts";
-import { looksLikeMdf4, Mdf4Blocks } from "../mdf4_blocks.ts";
+import { Mdf4Blocks } from "../mdf4_blocks.ts";
 import { applyConversion } from "../mdf4_conversions.ts";
 import { dataLength, type DataPiece, dataPieces, dataSegments } from "../mdf4_data.ts";
 import { type Mdf4Group, readMdf4Structure } from "../mdf4_file.ts";
@@ -27,6 +27,7 @@ import {
   type RecordingDescription,
   type RecordingFormat,
 } from "./format.ts";
+import { MDF4_HEAD } from "./signatures.ts";
 
 /** How `--group` names a group: its name when it has one no other group shares, else its index. */
 function groupLabel(group: Mdf4Group, all: readonly Mdf4Group[]): string {
@@ -323,10 +324,7 @@ async function describeMdf4(
  * ```
  */
 export const mdf4Format: RecordingFormat = {
-  name: "mdf4",
-  label: "MDF 4",
-  kind: "binary",
-  sniff: looksLikeMdf4,
+  ...MDF4_HEAD,
   open: openMdf4,
   describe: describeMdf4,
 };

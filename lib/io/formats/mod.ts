@@ -1,7 +1,10 @@
 /**
  * The recording formats quiver reads: ONE list ({@linkcode RECORDING_FORMATS}),
  * which the reader's sniffing and its message for a file of no known format
- * use. A new format is one file in this folder and one entry here.
+ * use. A new format is one file in this folder and one entry here. A binary
+ * format's entry is its head (signatures.ts) and its file, loaded when a file
+ * of that format is first opened or described: every start-up reads CSV's
+ * code (the format files no signature claims fall to), no other reader's.
  *
  * @module
  */
@@ -11,11 +14,15 @@ import { NotUtf8Error } from "../csv_scanner.ts";
 import { assertRegularFile, unreadable } from "../file_kinds.ts";
 import { csvFormat } from "./csv.ts";
 import { type RecordingFormat, SNIFF_BYTES } from "./format.ts";
-import { mat5Format } from "./mat5.ts";
-import { hdf5Format } from "./hdf5.ts";
-import { mat73Format } from "./mat73.ts";
-import { mdf4Format } from "./mdf4.ts";
-import { wavFormat } from "./wav.ts";
+import { lazyImport } from "../../lazy_import.ts";
+import {
+  type FormatHead,
+  HDF5_HEAD,
+  MAT5_HEAD,
+  MAT73_HEAD,
+  MDF4_HEAD,
+  WAV_HEAD,
+} from "./signatures.ts";
 
 export type {
   DescribedChannel,
@@ -26,17 +33,59 @@ export type {
 } from "./format.ts";
 
 /**
+ * The format of `head`, its `open` and `describe` those of the format that
+ * `load` gives, loaded on the first call (lazyImport: not at start-up).
+ *
+ * @throws {Error} (internal) when the loaded format is not the one `head` names.
+ */
+function loadedWhenUsed(head: FormatHead, load: () => Promise<RecordingFormat>): RecordingFormat {
+  let loaded: Promise<RecordingFormat> | undefined;
+  const format = () =>
+    loaded ??= load().then((f) => {
+      if (f.name !== head.name || f.label !== head.label || f.kind !== head.kind) {
+        throw new Error(`format ${head.name} loaded as ${f.name} (${f.label}, ${f.kind})`);
+      }
+      return f;
+    });
+  return {
+    ...head,
+    open: async (path, options) => (await format()).open(path, options),
+    describe: async (path, options) => (await format()).describe(path, options),
+  };
+}
+
+/**
  * Every format quiver reads, in the order messages name them. A file is
  * tried against the binary formats first (in this order), then the text
  * ones.
  */
 export const RECORDING_FORMATS: readonly RecordingFormat[] = [
   csvFormat,
-  wavFormat,
-  mat5Format,
-  hdf5Format,
-  mat73Format,
-  mdf4Format,
+  loadedWhenUsed(
+    WAV_HEAD,
+    async () =>
+      (await lazyImport<typeof import("./wav.ts")>("./wav.ts", import.meta.url)).wavFormat,
+  ),
+  loadedWhenUsed(
+    MAT5_HEAD,
+    async () =>
+      (await lazyImport<typeof import("./mat5.ts")>("./mat5.ts", import.meta.url)).mat5Format,
+  ),
+  loadedWhenUsed(
+    HDF5_HEAD,
+    async () =>
+      (await lazyImport<typeof import("./hdf5.ts")>("./hdf5.ts", import.meta.url)).hdf5Format,
+  ),
+  loadedWhenUsed(
+    MAT73_HEAD,
+    async () =>
+      (await lazyImport<typeof import("./mat73.ts")>("./mat73.ts", import.meta.url)).mat73Format,
+  ),
+  loadedWhenUsed(
+    MDF4_HEAD,
+    async () =>
+      (await lazyImport<typeof import("./mdf4.ts")>("./mdf4.ts", import.meta.url)).mdf4Format,
+  ),
 ];
 
 /**

@@ -3,6 +3,11 @@ import { describe, expect, test } from "vitest";
 import { formatOf, RECORDING_FORMATS, sniffRecording } from "../../../lib/io/formats/mod.ts";
 import { openRecordingStream } from "../../../lib/io/recording_stream.ts";
 import { encodeWav } from "../../../lib/io/wav.ts";
+import { wavFormat } from "../../../lib/io/formats/wav.ts";
+import { mat5Format } from "../../../lib/io/formats/mat5.ts";
+import { hdf5Format } from "../../../lib/io/formats/hdf5.ts";
+import { mat73Format } from "../../../lib/io/formats/mat73.ts";
+import { mdf4Format } from "../../../lib/io/formats/mdf4.ts";
 
 const NOT_RECOGNISED =
   "neither a WAV, MAT v5, HDF5, MAT v7.3 or MDF 4 file nor UTF-8 text; quiver reads CSV, WAV, MAT v5, HDF5, MAT v7.3 and MDF 4 recordings (save a CSV as UTF-8: a header in Latin-1 or Windows-1252, e.g. with µ or °, is not UTF-8)";
@@ -12,6 +17,17 @@ describe("the list of recording formats", () => {
     const names = RECORDING_FORMATS.map((f) => f.name);
     expect(new Set(names).size).toBe(names.length);
     expect(RECORDING_FORMATS.some((f) => f.kind === "text")).toBe(true);
+  });
+
+  test("each binary format's head (signatures.ts, read at start-up) is its format file's", () => {
+    // The list's binary entries load their files when first used; they must sniff and be named
+    // as the files do (formats/wav.ts spells its head out rather than importing it).
+    const files = [wavFormat, mat5Format, hdf5Format, mat73Format, mdf4Format];
+    const binary = RECORDING_FORMATS.filter((f) => f.kind === "binary");
+    expect(binary.map((f) => [f.name, f.label, f.kind, f.sniff])).toEqual(
+      files.map((f) => [f.name, f.label, f.kind, f.sniff]),
+    );
+    binary.forEach((f, i) => expect(f.sniff).toBe(files[i].sniff));
   });
 
   test("a file's first bytes choose its format; bytes no signature claims go to CSV", () => {
