@@ -42,7 +42,10 @@ function loadedWhenUsed(head: FormatHead, load: () => Promise<RecordingFormat>):
   let loaded: Promise<RecordingFormat> | undefined;
   const format = () =>
     loaded ??= load().then((f) => {
-      if (f.name !== head.name || f.label !== head.label || f.kind !== head.kind) {
+      if (
+        f.name !== head.name || f.label !== head.label || f.kind !== head.kind ||
+        f.opensAgain !== head.opensAgain
+      ) {
         throw new Error(`format ${head.name} loaded as ${f.name} (${f.label}, ${f.kind})`);
       }
       return f;

@@ -10,14 +10,9 @@
 import { open } from "node:fs/promises";
 import { QuiverError } from "../../errors.ts";
 import { CHUNK_ROWS, type RecordingStream } from "../recording_source.ts";
-import {
-  decodeWavFrames,
-  FORMAT_FLOAT,
-  FULL_SCALE_UNIT,
-  looksLikeWav,
-  refuseNonFiniteSamples,
-} from "../wav.ts";
+import { decodeWavFrames, FORMAT_FLOAT, FULL_SCALE_UNIT, refuseNonFiniteSamples } from "../wav.ts";
 import { type WavContainer, wavLayout } from "../wav_layout.ts";
+import { WAV_HEAD } from "./signatures.ts";
 import {
   channelTransforms,
   type FormatOptions,
@@ -144,12 +139,7 @@ async function describeWav(
  * ```
  */
 export const wavFormat: RecordingFormat = {
-  name: "wav",
-  label: "WAV",
-  kind: "binary",
-  // Measured: 4 × 2^24 samples, a worker decoding its own channels about 1.05× the ring.
-  opensAgain: true,
-  sniff: looksLikeWav,
+  ...WAV_HEAD,
   open: (path, options) => openWavWithContainer(path, options),
   describe: describeWav,
 };

@@ -20,13 +20,14 @@ describe("the list of recording formats", () => {
   });
 
   test("each binary format's head (signatures.ts, read at start-up) is its format file's", () => {
-    // The list's binary entries load their files when first used; they must sniff and be named
-    // as the files do (formats/wav.ts spells its head out rather than importing it).
+    // The list's binary entries load their files when first used; they must sniff, be named and
+    // open again for a worker (WAV only) as the files do.
     const files = [wavFormat, mat5Format, hdf5Format, mat73Format, mdf4Format];
     const binary = RECORDING_FORMATS.filter((f) => f.kind === "binary");
-    expect(binary.map((f) => [f.name, f.label, f.kind, f.sniff])).toEqual(
-      files.map((f) => [f.name, f.label, f.kind, f.sniff]),
+    expect(binary.map((f) => [f.name, f.label, f.kind, f.sniff, f.opensAgain])).toEqual(
+      files.map((f) => [f.name, f.label, f.kind, f.sniff, f.opensAgain]),
     );
+    expect(binary.filter((f) => f.opensAgain === true).map((f) => f.name)).toEqual(["wav"]);
     binary.forEach((f, i) => expect(f.sniff).toBe(files[i].sniff));
   });
 
