@@ -326,8 +326,6 @@ class SharedSink implements SpectralSink {
    * fed its own group's channels only ({@linkcode SharedSink.pushOwn}).
    */
   readonly readsOwn: boolean;
-  /** This thread's channels, as positions among the sink's channels. */
-  readonly ownGroup: readonly number[];
 
   constructor(
     channelCount: number,
@@ -340,7 +338,6 @@ class SharedSink implements SpectralSink {
     this.#pairs = options.pairs ?? [];
     const [here, ...others] = groups;
     this.#group = here;
-    this.ownGroup = here;
     this.readsOwn = reading !== undefined;
     this.#here = new SpectralAccumulator(here.length, groupOptions(options, here));
     // Every channel's rails are checked here, before any worker starts (a RangeError as
@@ -350,6 +347,11 @@ class SharedSink implements SpectralSink {
     this.#statistics = checks === undefined ? [] : here.map((c) => statistics[c]);
     this.#warnings = [];
     this.#workers = others.map((group) => new WorkerPart(group, options, checks, reading));
+  }
+
+  /** This thread's channels, as positions among the sink's channels. */
+  get ownGroup(): readonly number[] {
+    return this.#group;
   }
 
   /**
@@ -480,6 +482,7 @@ export async function spectralEstimateOf(
     recipe === undefined ? undefined : { recipe, indices },
   );
   let warnings: string[] = [];
+  let estimate: SpectralEstimate;
   try {
     // A shared sink checks each channel in the thread that transforms it; otherwise here.
     if (sink instanceof SharedSink && sink.readsOwn) {
@@ -488,16 +491,10 @@ export async function spectralEstimateOf(
     } else if (sink instanceof SharedSink) {
       await stream.read(indices, (chunk) => sink.push(chunk));
     } else warnings = await readChecked(stream, indices, (chunk) => sink.push(chunk));
+    estimate = await sink.finish(); // a worker's fault is thrown here
   } catch (error) {
     sink.cancel();
-    if (sink instanceof SharedSink && sink.readsOwn) await firstFault(stream, indices, error);
-    throw error;
-  }
-  let estimate: SpectralEstimate;
-  try {
-    estimate = await sink.finish();
-  } catch (error) {
-    // A worker's fault: with its own reading, the first in file order is found as below.
+    // With each thread reading its own channels, the first fault in file order over all of them.
     if (sink instanceof SharedSink && sink.readsOwn) await firstFault(stream, indices, error);
     throw error;
   }
